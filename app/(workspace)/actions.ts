@@ -1,0 +1,24 @@
+"use server";
+
+import { cookies } from "next/headers";
+import { redirect } from "next/navigation";
+import { z } from "zod";
+import { signOut } from "@/lib/auth/config";
+import { loadCaller, WORKSPACE_COOKIE } from "@/lib/auth/guards";
+
+const switchSchema = z.object({ workspaceId: z.string().uuid() });
+
+/** Make another of the caller's workspaces the active one; membership is checked against the database. */
+export async function switchWorkspace(form: FormData): Promise<void> {
+  const parsed = switchSchema.safeParse({ workspaceId: form.get("workspaceId") });
+  const caller = await loadCaller();
+  if (!caller) redirect("/sign-in");
+  if (parsed.success && caller.workspaces.some((w) => w.id === parsed.data.workspaceId)) {
+    (await cookies()).set(WORKSPACE_COOKIE, parsed.data.workspaceId, { httpOnly: true, sameSite: "lax", path: "/", secure: process.env.AUTH_URL?.startsWith("https://") ?? false });
+  }
+  redirect("/parts");
+}
+
+export async function signOutAction(): Promise<void> {
+  await signOut({ redirectTo: "/" });
+}

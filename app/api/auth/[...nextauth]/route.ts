@@ -1,0 +1,4 @@
+import { handlers } from "@/lib/auth/config";
+
+export const runtime = "nodejs";
+export const { GET, POST } = handlers;

@@ -1,0 +1,87 @@
+import "server-only";
+import { and, asc, count, desc, eq, isNull, max, or, sql } from "drizzle-orm";
+import { db } from "@/db";
+import { kitParts, kits, memberships, parts, plates, templates, users } from "@/db/schema";
+import type { Caller } from "@/lib/auth/guards";
+
+// Every read is scoped to the caller's active workspace; there is no query here without that filter.
+
+export async function listParts(caller: Caller) {
+  return db()
+    .select({
+      id: parts.id,
+      name: parts.name,
+      format: parts.format,
+      triangles: parts.triangles,
+      sizeX: parts.sizeX,
+      sizeY: parts.sizeY,
+      sizeZ: parts.sizeZ,
+      volume: parts.volume,
+      createdAt: parts.createdAt,
+      uploadedBy: users.name,
+    })
+    .from(parts)
+    .leftJoin(users, eq(users.id, parts.uploadedBy))
+    .where(eq(parts.workspaceId, caller.workspace.id))
+    .orderBy(desc(parts.createdAt), asc(parts.name));
+}
+
+export async function listKits(caller: Caller) {
+  const pieceCounts = db()
+    .select({ kitId: kitParts.kitId, pieces: sql<number>`coalesce(sum(${kitParts.quantity}), 0)::int`.as("pieces") })
+    .from(kitParts)
+    .groupBy(kitParts.kitId)
+    .as("piece_counts");
+  const lastPlates = db()
+    .select({ kitId: plates.kitId, lastPlateAt: max(plates.createdAt).as("last_plate_at") })
+    .from(plates)
+    .where(eq(plates.workspaceId, caller.workspace.id))
+    .groupBy(plates.kitId)
+    .as("last_plates");
+  return db()
+    .select({
+      id: kits.id,
+      name: kits.name,
+      description: kits.description,
+      updatedAt: kits.updatedAt,
+      pieces: sql<number>`coalesce(${pieceCounts.pieces}, 0)`,
+      lastPlateAt: lastPlates.lastPlateAt,
+    })
+    .from(kits)
+    .leftJoin(pieceCounts, eq(pieceCounts.kitId, kits.id))
+    .leftJoin(lastPlates, eq(lastPlates.kitId, kits.id))
+    .where(and(eq(kits.workspaceId, caller.workspace.id), isNull(kits.archivedAt)))
+    .orderBy(asc(kits.name));
+}
+
+export async function listTemplates(caller: Caller) {
+  return db()
+    .select({ id: templates.id, name: templates.name, version: templates.currentVersion, starter: sql<boolean>`${templates.workspaceId} is null`, updatedAt: templates.updatedAt })
+    .from(templates)
+    .where(and(or(eq(templates.workspaceId, caller.workspace.id), isNull(templates.workspaceId)), isNull(templates.archivedAt)))
+    .orderBy(asc(templates.name));
+}
+
+export async function listPlates(caller: Caller) {
+  return db()
+    .select({ id: plates.id, status: plates.status, source: plates.source, pieceCount: plates.pieceCount, createdAt: plates.createdAt, kitName: kits.name })
+    .from(plates)
+    .leftJoin(kits, eq(kits.id, plates.kitId))
+    .where(eq(plates.workspaceId, caller.workspace.id))
+    .orderBy(desc(plates.createdAt))
+    .limit(100);
+}
+
+export async function listMembers(caller: Caller) {
+  return db()
+    .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })
+    .from(memberships)
+    .innerJoin(users, eq(users.id, memberships.userId))
+    .where(eq(memberships.workspaceId, caller.workspace.id))
+    .orderBy(asc(users.email));
+}
+
+export async function countParts(caller: Caller): Promise<number> {
+  const [row] = await db().select({ n: count() }).from(parts).where(eq(parts.workspaceId, caller.workspace.id));
+  return row?.n ?? 0;
+}

@@ -1,0 +1,4 @@
+export * from "./auth";
+export * from "./workspaces";
+export * from "./parts";
+export * from "./plates";

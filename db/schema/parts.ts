@@ -1,0 +1,98 @@
+import { sql } from "drizzle-orm";
+import {
+  check,
+  doublePrecision,
+  index,
+  integer,
+  jsonb,
+  pgEnum,
+  pgTable,
+  real,
+  text,
+  timestamp,
+} from "drizzle-orm/pg-core";
+import { users } from "./auth";
+import { workspaces } from "./workspaces";
+
+export const meshFormatEnum = pgEnum("mesh_format", ["stl", "3mf", "obj"]);
+
+/** An uploaded mesh: its measured metadata plus a reference to the stored bytes (SHA-256 key). */
+export const parts = pgTable(
+  "parts",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    format: meshFormatEnum("format").notNull(),
+    blobKey: text("blob_key").notNull(),
+    byteSize: integer("byte_size").notNull(),
+    triangles: integer("triangles").notNull(),
+    /** Bounding-box size in millimetres. */
+    sizeX: real("size_x").notNull(),
+    sizeY: real("size_y").notNull(),
+    sizeZ: real("size_z").notNull(),
+    /** mm³ */
+    volume: doublePrecision("volume").notNull(),
+    /** mm², the footprint one layer above the base; known once the engine has measured it. */
+    contactArea: doublePrecision("contact_area"),
+    repairs: jsonb("repairs").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    uploadedBy: text("uploaded_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("parts_workspace_created_idx").on(t.workspaceId, t.createdAt),
+    index("parts_workspace_name_idx").on(t.workspaceId, t.name),
+    check("parts_triangles_positive", sql`${t.triangles} > 0`),
+  ],
+);
+
+export const orientationEnum = pgEnum("piece_orientation", ["as-imported", "lay-flat", "turned"]);
+
+/** A named set of parts with quantities. */
+export const kits = pgTable(
+  "kits",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    description: text("description"),
+    archivedAt: timestamp("archived_at", { withTimezone: true }),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("kits_workspace_updated_idx").on(t.workspaceId, t.updatedAt)],
+);
+
+/** One line of a kit. A part used by a kit cannot be deleted (restrict). */
+export const kitParts = pgTable(
+  "kit_parts",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    kitId: text("kit_id")
+      .notNull()
+      .references(() => kits.id, { onDelete: "cascade" }),
+    partId: text("part_id")
+      .notNull()
+      .references(() => parts.id, { onDelete: "restrict" }),
+    quantity: integer("quantity").notNull().default(1),
+    /** Degrees about Z. */
+    rotation: real("rotation").notNull().default(0),
+    orientation: orientationEnum("orientation").notNull().default("as-imported"),
+    position: integer("position").notNull().default(0),
+  },
+  (t) => [
+    index("kit_parts_kit_idx").on(t.kitId, t.position),
+    index("kit_parts_part_idx").on(t.partId),
+    check("kit_parts_quantity_positive", sql`${t.quantity} > 0`),
+  ],
+);
+
+export type Part = typeof parts.$inferSelect;
+export type Kit = typeof kits.$inferSelect;
+export type KitPart = typeof kitParts.$inferSelect;

@@ -1,0 +1,79 @@
+import { sql } from "drizzle-orm";
+import { index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
+import { users } from "./auth";
+import { kits } from "./parts";
+import { workspaces } from "./workspaces";
+
+/** A saved slab-and-marks recipe. The options live in versions; editing adds a version. */
+export const templates = pgTable(
+  "templates",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    /** null for the starter templates shipped with the product, shared by every workspace. */
+    workspaceId: text("workspace_id").references(() => workspaces.id, { onDelete: "cascade" }),
+    name: text("name").notNull(),
+    currentVersion: integer("current_version").notNull().default(1),
+    archivedAt: timestamp("archived_at", { withTimezone: true }),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("templates_workspace_updated_idx").on(t.workspaceId, t.updatedAt)],
+);
+
+export type TemplateVariable = { name: string; default: string; sample: string };
+
+export const templateVersions = pgTable(
+  "template_versions",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    templateId: text("template_id")
+      .notNull()
+      .references(() => templates.id, { onDelete: "cascade" }),
+    version: integer("version").notNull(),
+    /** The slab builder's canonical options. */
+    options: jsonb("options").$type<Record<string, unknown>>().notNull(),
+    variables: jsonb("variables").$type<TemplateVariable[]>().notNull().default(sql`'[]'::jsonb`),
+    note: text("note"),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [uniqueIndex("template_versions_template_version_key").on(t.templateId, t.version)],
+);
+
+export const plateSourceEnum = pgEnum("plate_source", ["editor", "api", "reprint"]);
+export const plateStatusEnum = pgEnum("plate_status", ["building", "ready", "failed"]);
+
+/** One generated output for one bed: what it was made from, what the checks said, and its files. */
+export const plates = pgTable(
+  "plates",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    kitId: text("kit_id").references(() => kits.id, { onDelete: "set null" }),
+    /** Plates keep the exact version they used, so versions are never deleted under them. */
+    templateVersionId: text("template_version_id").references(() => templateVersions.id, { onDelete: "restrict" }),
+    source: plateSourceEnum("source").notNull(),
+    status: plateStatusEnum("status").notNull().default("building"),
+    options: jsonb("options").$type<Record<string, unknown>>().notNull(),
+    variables: jsonb("variables").$type<Record<string, string>>().notNull().default(sql`'{}'::jsonb`),
+    findings: jsonb("findings").$type<unknown[]>().notNull().default(sql`'[]'::jsonb`),
+    estimates: jsonb("estimates").$type<Record<string, unknown>>(),
+    stats: jsonb("stats").$type<Record<string, unknown>>(),
+    stlBlobKey: text("stl_blob_key"),
+    threeMfBlobKey: text("three_mf_blob_key"),
+    pieceCount: integer("piece_count").notNull().default(0),
+    createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [
+    index("plates_workspace_created_idx").on(t.workspaceId, t.createdAt),
+    index("plates_kit_created_idx").on(t.kitId, t.createdAt),
+  ],
+);
+
+export type Template = typeof templates.$inferSelect;
+export type TemplateVersion = typeof templateVersions.$inferSelect;
+export type Plate = typeof plates.$inferSelect;

@@ -1,0 +1,175 @@
+/**
+ * The demo workshop: an invented small shop, Marrowby Tabletop Co., selling a board-game token kit.
+ * Idempotent: running it again changes nothing and keeps the same demo API key.
+ */
+import { promises as fs } from "node:fs";
+import path from "node:path";
+import { and, eq } from "drizzle-orm";
+import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, users, workspaces, type Role } from "@/db/schema";
+import { generateApiKey, hashApiKey } from "@/lib/auth/api-keys";
+import { hashPassword, verifyPassword } from "@/lib/auth/password";
+import { env } from "@/lib/env";
+import { hexTile, pawn } from "@/lib/geometry/demo-shapes";
+import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
+import { bounds, signedVolume, triangleCount, type IndexedMesh } from "@/lib/geometry/mesh";
+import { blobStore } from "@/lib/storage";
+import { createDb, createPool } from "./index";
+
+export const DEMO_WORKSPACE = { name: "Marrowby Tabletop Co.", slug: "marrowby" };
+
+export const DEMO_USERS: { email: string; name: string; password: string; role: Role }[] = [
+  { email: "olive@marrowby.example", name: "Olive Marrow", password: "slab-demo-owner", role: "owner" },
+  { email: "dario@marrowby.example", name: "Dario Fenn", password: "slab-demo-designer", role: "designer" },
+  { email: "opal@marrowby.example", name: "Opal Reyes", password: "slab-demo-operator", role: "operator" },
+  { email: "vic@marrowby.example", name: "Vic Hale", password: "slab-demo-viewer", role: "viewer" },
+];
+
+const DEMO_KEY_NAME = "Demo order system";
+
+export type DemoCredentials = { users: { email: string; password: string; role: Role }[]; apiKey: string };
+
+export function credentialsFile(): string {
+  return process.env.SLAB_CREDENTIALS_FILE ?? path.join(process.cwd(), ".data", "demo-credentials.json");
+}
+
+async function readSavedKey(): Promise<string | null> {
+  try {
+    const saved = JSON.parse(await fs.readFile(credentialsFile(), "utf8")) as Partial<DemoCredentials>;
+    return typeof saved.apiKey === "string" ? saved.apiKey : null;
+  } catch {
+    return null;
+  }
+}
+
+function partRow(name: string, mesh: IndexedMesh) {
+  const b = bounds(mesh);
+  return {
+    name,
+    mesh,
+    stl: writeBinaryStl([mesh]),
+    sizeX: b.max[0] - b.min[0],
+    sizeY: b.max[1] - b.min[1],
+    sizeZ: b.max[2] - b.min[2],
+    volume: signedVolume(mesh),
+    triangles: triangleCount(mesh),
+  };
+}
+
+export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCredentials> {
+  const demoParts = [partRow("Harbour tile", hexTile()), partRow("Beacon pawn", pawn())];
+  // Bytes first: content-addressed, so a retry after a failed transaction reuses them.
+  const stored = await Promise.all(demoParts.map((p) => blobStore().put(p.stl)));
+  const savedKey = await readSavedKey();
+
+  const pool = createPool(databaseUrl);
+  const db = createDb(pool);
+  let apiKey = savedKey ?? "";
+  try {
+    await db.transaction(async (tx) => {
+      await tx.insert(workspaces).values(DEMO_WORKSPACE).onConflictDoNothing({ target: workspaces.slug });
+      const [ws] = await tx.select().from(workspaces).where(eq(workspaces.slug, DEMO_WORKSPACE.slug));
+      if (!ws) throw new Error("demo workspace missing after insert");
+
+      const userIds: Record<Role, string> = { owner: "", designer: "", operator: "", viewer: "" };
+      for (const u of DEMO_USERS) {
+        const [existing] = await tx.select().from(users).where(eq(users.email, u.email));
+        let id = existing?.id;
+        if (!existing) {
+          const [row] = await tx
+            .insert(users)
+            .values({ email: u.email, name: u.name, passwordHash: await hashPassword(u.password), emailVerified: new Date() })
+            .returning({ id: users.id });
+          id = row!.id;
+        } else if (!(await verifyPassword(u.password, existing.passwordHash))) {
+          // Someone changed a demo password: put the documented one back so the README stays true.
+          await tx.update(users).set({ passwordHash: await hashPassword(u.password) }).where(eq(users.id, existing.id));
+        }
+        userIds[u.role] = id!;
+        await tx.insert(memberships).values({ workspaceId: ws.id, userId: id!, role: u.role }).onConflictDoUpdate({
+          target: [memberships.workspaceId, memberships.userId],
+          set: { role: u.role },
+        });
+      }
+
+      const partIds: string[] = [];
+      for (const [i, p] of demoParts.entries()) {
+        const blob = stored[i]!;
+        const [existing] = await tx
+          .select({ id: parts.id })
+          .from(parts)
+          .where(and(eq(parts.workspaceId, ws.id), eq(parts.blobKey, blob.key)));
+        if (existing) {
+          partIds.push(existing.id);
+          continue;
+        }
+        const [row] = await tx
+          .insert(parts)
+          .values({
+            workspaceId: ws.id,
+            name: p.name,
+            format: "stl",
+            blobKey: blob.key,
+            byteSize: blob.size,
+            triangles: p.triangles,
+            sizeX: p.sizeX,
+            sizeY: p.sizeY,
+            sizeZ: p.sizeZ,
+            volume: p.volume,
+            uploadedBy: userIds.designer,
+          })
+          .returning({ id: parts.id });
+        partIds.push(row!.id);
+      }
+
+      const kitName = "Harbour Run token set";
+      const [kit] = await tx.select().from(kits).where(and(eq(kits.workspaceId, ws.id), eq(kits.name, kitName)));
+      if (!kit) {
+        const [k] = await tx
+          .insert(kits)
+          .values({ workspaceId: ws.id, name: kitName, description: "Four harbour tiles and two beacon pawns for the Harbour Run board game.", createdBy: userIds.designer })
+          .returning({ id: kits.id });
+        await tx.insert(kitParts).values([
+          { kitId: k!.id, partId: partIds[0]!, quantity: 4, position: 0 },
+          { kitId: k!.id, partId: partIds[1]!, quantity: 2, position: 1 },
+        ]);
+      }
+
+      // Keep the saved demo key when this database still knows it; otherwise issue a new one.
+      const known = savedKey
+        ? await tx.select({ id: apiKeys.id }).from(apiKeys).where(and(eq(apiKeys.workspaceId, ws.id), eq(apiKeys.keyHash, hashApiKey(savedKey))))
+        : [];
+      if (known.length === 0) {
+        const fresh = generateApiKey();
+        apiKey = fresh.key;
+        await tx.insert(apiKeys).values({
+          workspaceId: ws.id,
+          name: DEMO_KEY_NAME,
+          prefix: fresh.prefix,
+          keyHash: fresh.hash,
+          scopes: [...apiKeyScopes],
+          createdBy: userIds.owner,
+        });
+      }
+    });
+  } finally {
+    await pool.end();
+  }
+
+  const creds: DemoCredentials = { users: DEMO_USERS.map(({ email, password, role }) => ({ email, password, role })), apiKey };
+  await fs.mkdir(path.dirname(credentialsFile()), { recursive: true });
+  const tmp = `${credentialsFile()}.tmp`;
+  await fs.writeFile(tmp, `${JSON.stringify(creds, null, 2)}\n`, { mode: 0o600 });
+  await fs.rename(tmp, credentialsFile());
+  return creds;
+}
+
+// Run directly (npm run db:seed, or by the start and test scripts).
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const started = Date.now();
+  seedDemo()
+    .then(() => console.log(`seed: demo workshop ready (${Date.now() - started} ms)`))
+    .catch((err: unknown) => {
+      console.error("seed failed:", err);
+      process.exitCode = 1;
+    });
+}

@@ -1,0 +1,34 @@
+import { z } from "zod";
+import { databaseUrl } from "@/scripts/db-url.mjs";
+
+/**
+ * The environment, parsed once. Defaults make a plain checkout work: our own PostgreSQL on loopback
+ * (scripts/pg.sh) and blobs on local disk under .data/.
+ */
+const schema = z.object({
+  NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
+  DATABASE_URL: z.string().url().default(databaseUrl()),
+  STORAGE_DRIVER: z.enum(["disk", "s3"]).default("disk"),
+  STORAGE_DIR: z.string().default(".data/blobs"),
+  S3_ENDPOINT: z.string().url().optional(),
+  S3_REGION: z.string().default("us-east-1"),
+  S3_BUCKET: z.string().optional(),
+  S3_ACCESS_KEY_ID: z.string().optional(),
+  S3_SECRET_ACCESS_KEY: z.string().optional(),
+});
+
+export type Env = z.infer<typeof schema>;
+
+let cached: Env | undefined;
+
+export function env(): Env {
+  if (!cached) {
+    const parsed = schema.safeParse(process.env);
+    if (!parsed.success) {
+      const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n");
+      throw new Error(`Invalid environment:\n${lines}`);
+    }
+    cached = parsed.data;
+  }
+  return cached;
+}

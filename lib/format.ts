@@ -1,0 +1,23 @@
+/** Millimetres with the unit, one decimal unless finer matters (design.md). */
+export function mm(value: number, decimals = 1): string {
+  return `${value.toFixed(decimals)} mm`;
+}
+
+export function size3(x: number, y: number, z: number): string {
+  return `${x.toFixed(1)} × ${y.toFixed(1)} × ${z.toFixed(1)} mm`;
+}
+
+/** mm³ shown as cm³ once it is large enough to read better that way. */
+export function volume(mm3: number): string {
+  return mm3 >= 1000 ? `${(mm3 / 1000).toFixed(2)} cm³` : `${mm3.toFixed(0)} mm³`;
+}
+
+export function count(n: number): string {
+  return n.toLocaleString("en-US");
+}
+
+export function when(d: Date | string | null | undefined): string {
+  if (!d) return "—";
+  const date = typeof d === "string" ? new Date(d) : d;
+  return date.toISOString().slice(0, 16).replace("T", " ");
+}

@@ -1,0 +1,68 @@
+/**
+ * An indexed triangle mesh in the kernel's own layout (manifold's `Mesh`): three floats per vertex,
+ * three vertex indices per triangle, counter-clockwise seen from outside.
+ */
+export type IndexedMesh = {
+  vertProperties: Float32Array;
+  triVerts: Uint32Array;
+};
+
+export type Bounds = { min: [number, number, number]; max: [number, number, number] };
+
+export function triangleCount(mesh: IndexedMesh): number {
+  return mesh.triVerts.length / 3;
+}
+
+export function bounds(mesh: IndexedMesh): Bounds {
+  const p = mesh.vertProperties;
+  const min: [number, number, number] = [Infinity, Infinity, Infinity];
+  const max: [number, number, number] = [-Infinity, -Infinity, -Infinity];
+  for (let i = 0; i < p.length; i += 3) {
+    for (let a = 0; a < 3; a++) {
+      const v = p[i + a]!;
+      if (v < min[a]!) min[a] = v;
+      if (v > max[a]!) max[a] = v;
+    }
+  }
+  return { min, max };
+}
+
+/** Signed volume by the divergence theorem (sum of signed tetrahedra to the origin); negative = inside out. */
+export function signedVolume(mesh: IndexedMesh): number {
+  const p = mesh.vertProperties;
+  const t = mesh.triVerts;
+  let six = 0;
+  for (let i = 0; i < t.length; i += 3) {
+    const a = t[i]! * 3;
+    const b = t[i + 1]! * 3;
+    const c = t[i + 2]! * 3;
+    const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!;
+    const bx = p[b]!, by = p[b + 1]!, bz = p[b + 2]!;
+    const cx = p[c]!, cy = p[c + 1]!, cz = p[c + 2]!;
+    six += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+  }
+  return six / 6;
+}
+
+/**
+ * Watertightness as a printer needs it: every directed edge appears once and its reverse once
+ * (each edge shared by exactly two triangles with opposite orientation). Returns the count of bad edges.
+ */
+export function openOrMisorientedEdges(mesh: IndexedMesh): number {
+  const t = mesh.triVerts;
+  const directed = new Map<string, number>();
+  for (let i = 0; i < t.length; i += 3) {
+    for (let e = 0; e < 3; e++) {
+      const a = t[i + e]!;
+      const b = t[i + ((e + 1) % 3)]!;
+      const k = `${a},${b}`;
+      directed.set(k, (directed.get(k) ?? 0) + 1);
+    }
+  }
+  let bad = 0;
+  for (const [k, n] of directed) {
+    const [a, b] = k.split(",");
+    if (n !== 1 || directed.get(`${b},${a}`) !== 1) bad++;
+  }
+  return bad;
+}

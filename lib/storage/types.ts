@@ -1,0 +1,36 @@
+/** Where uploaded meshes and generated plate files are kept. Keys are SHA-256 hex of the content. */
+export interface BlobStore {
+  readonly kind: "disk" | "s3";
+  /** Store bytes; storing the same content twice is a no-op that returns the same key. */
+  put(bytes: Uint8Array): Promise<StoredBlob>;
+  get(key: string): Promise<Uint8Array>;
+  has(key: string): Promise<boolean>;
+  /** Remove a blob; removing a missing one is not an error. */
+  delete(key: string): Promise<void>;
+}
+
+export type StoredBlob = { key: string; size: number; created: boolean };
+
+export class BlobNotFoundError extends Error {
+  readonly code = "blob_not_found";
+  constructor(readonly key: string) {
+    super(`No stored file with key ${key}`);
+    this.name = "BlobNotFoundError";
+  }
+}
+
+export class BadBlobKeyError extends Error {
+  readonly code = "bad_blob_key";
+  constructor(key: string) {
+    super(`Not a content key: ${JSON.stringify(key.slice(0, 80))}`);
+    this.name = "BadBlobKeyError";
+  }
+}
+
+const KEY = /^[0-9a-f]{64}$/;
+
+/** A key is only ever a SHA-256 hex digest, so nothing a user sends can become a path or an object name. */
+export function assertKey(key: string): string {
+  if (!KEY.test(key)) throw new BadBlobKeyError(key);
+  return key;
+}

@@ -1,0 +1,4 @@
+export declare const DEFAULT_PG_PORT: number;
+export declare function pgPort(): number;
+export declare function databaseName(): string;
+export declare function databaseUrl(): string;

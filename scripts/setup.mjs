@@ -1,0 +1,184 @@
+// Set-up steps shared by `npm start` and `npm test`. Plain Node with no dependencies: this file runs
+// before node_modules exists.
+import { spawn, spawnSync } from "node:child_process";
+import { createHash, randomBytes } from "node:crypto";
+import fs from "node:fs";
+import path from "node:path";
+import { fileURLToPath } from "node:url";
+import { databaseName, databaseUrl, pgPort } from "./db-url.mjs";
+
+export const ROOT = path.resolve(path.dirname(fileURLToPath(import.meta.url)), "..");
+export const DATA = path.join(ROOT, ".data");
+
+export function log(msg) {
+  process.stdout.write(`» ${msg}\n`);
+}
+
+export function fail(msg) {
+  process.stderr.write(`✕ ${msg}\n`);
+  process.exit(1);
+}
+
+/** Run a command to completion with inherited output; exit on failure unless allowFail. */
+export function run(cmd, args, { env = {}, allowFail = false, quiet = false } = {}) {
+  const res = spawnSync(cmd, args, {
+    cwd: ROOT,
+    stdio: quiet ? ["ignore", "pipe", "pipe"] : "inherit",
+    env: { ...process.env, ...env },
+  });
+  if (res.status !== 0 && !allowFail) {
+    if (quiet) process.stderr.write(String(res.stderr ?? ""));
+    fail(`${cmd} ${args.join(" ")} failed (exit ${res.status ?? res.signal})`);
+  }
+  return res;
+}
+
+export function bin(name) {
+  return path.join(ROOT, "node_modules", ".bin", name);
+}
+
+function sha256File(file) {
+  return createHash("sha256").update(fs.readFileSync(file)).digest("hex");
+}
+
+/** `npm ci` when node_modules is missing or was installed from another package-lock.json. */
+export function ensureDependencies() {
+  const stamp = path.join(ROOT, "node_modules", ".slabwright-lock");
+  const want = sha256File(path.join(ROOT, "package-lock.json"));
+  const have = fs.existsSync(stamp) ? fs.readFileSync(stamp, "utf8").trim() : "";
+  if (have === want && fs.existsSync(bin("next"))) return;
+  log(fs.existsSync(path.join(ROOT, "node_modules")) ? "dependencies changed: npm ci" : "installing dependencies: npm ci");
+  run("npm", ["ci", "--no-audit", "--no-fund"]);
+  fs.writeFileSync(stamp, `${want}\n`);
+}
+
+/** Debian's Chromium for the browser tests (never a browser download of the test tool's own). */
+export function ensureChromium() {
+  if (fs.existsSync("/usr/bin/chromium")) return "/usr/bin/chromium";
+  log("installing Debian's chromium for the browser tests");
+  if (process.getuid?.() !== 0) fail("chromium is missing: run 'apt-get install chromium' as root");
+  run("apt-get", ["update", "-qq"], { env: { DEBIAN_FRONTEND: "noninteractive" } });
+  run("apt-get", ["install", "-y", "-qq", "chromium"], { env: { DEBIAN_FRONTEND: "noninteractive" } });
+  if (!fs.existsSync("/usr/bin/chromium")) fail("chromium did not install");
+  return "/usr/bin/chromium";
+}
+
+export function pgRunning() {
+  return run("bash", ["scripts/pg.sh", "status"], { allowFail: true, quiet: true }).status === 0;
+}
+
+/** Start our PostgreSQL when it is not running. Returns true when this call started it. */
+export function startPostgres({ fast = false } = {}) {
+  if (process.env.DATABASE_URL) return false; // someone else's server
+  const wasRunning = pgRunning();
+  run("bash", ["scripts/pg.sh", "start"], { env: fast ? { SLAB_PG_FAST: "1" } : {} });
+  return !wasRunning;
+}
+
+export function stopPostgres() {
+  run("bash", ["scripts/pg.sh", "stop"], { allowFail: true });
+}
+
+export function ensureDatabase(name) {
+  if (process.env.DATABASE_URL) return;
+  run("bash", ["scripts/pg.sh", "ensure-db", name]);
+}
+
+export function migrateAndSeed(env) {
+  run(bin("tsx"), ["scripts/migrate.ts"], { env });
+  run(bin("tsx"), ["db/seed.ts"], { env });
+}
+
+/** A secret for signing session tokens, made once per checkout and kept in .data/. */
+export function authSecret() {
+  if (process.env.AUTH_SECRET) return process.env.AUTH_SECRET;
+  const file = path.join(DATA, "auth-secret");
+  if (!fs.existsSync(file)) {
+    fs.mkdirSync(DATA, { recursive: true });
+    fs.writeFileSync(file, randomBytes(32).toString("base64url"), { mode: 0o600 });
+  }
+  return fs.readFileSync(file, "utf8").trim();
+}
+
+const BUILD_INPUTS = ["app", "lib", "db/schema", "db/queries", "db/index.ts", "fonts", "public", "types", "next.config.mjs", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
+
+function sourceHash() {
+  const h = createHash("sha256");
+  const walk = (p) => {
+    const full = path.join(ROOT, p);
+    if (!fs.existsSync(full)) return;
+    const st = fs.statSync(full);
+    if (st.isDirectory()) {
+      for (const name of fs.readdirSync(full).sort()) walk(path.join(p, name));
+    } else if (!/\.test\.tsx?$/.test(p)) {
+      h.update(p).update("\0").update(fs.readFileSync(full));
+    }
+  };
+  for (const p of BUILD_INPUTS) walk(p);
+  return h.digest("hex");
+}
+
+/** `next build` unless .next already holds a build of exactly these sources. */
+export function ensureBuild() {
+  const stamp = path.join(ROOT, ".next", ".slabwright-sources");
+  const want = sourceHash();
+  if (fs.existsSync(path.join(ROOT, ".next", "BUILD_ID")) && fs.existsSync(stamp) && fs.readFileSync(stamp, "utf8").trim() === want) {
+    return;
+  }
+  log("building the app (next build)");
+  run(bin("next"), ["build"], { env: { NEXT_TELEMETRY_DISABLED: "1" } });
+  fs.writeFileSync(stamp, `${want}\n`);
+}
+
+export function appEnv({ port, dbName }) {
+  return {
+    SLAB_DB_NAME: dbName,
+    DATABASE_URL: process.env.DATABASE_URL ?? databaseUrl().replace(/\/[^/]+$/, `/${dbName}`),
+    AUTH_SECRET: authSecret(),
+    AUTH_URL: `http://localhost:${port}`,
+    AUTH_TRUST_HOST: "true",
+    NEXT_TELEMETRY_DISABLED: "1",
+    SLAB_PG_PORT: String(pgPort()),
+  };
+}
+
+/** A pid file that says an instance is running; stale files (dead pid) are taken over. */
+export function takeLock(name) {
+  fs.mkdirSync(DATA, { recursive: true });
+  const file = path.join(DATA, `${name}.pid`);
+  if (fs.existsSync(file)) {
+    const pid = Number(fs.readFileSync(file, "utf8").trim());
+    if (pid && pid !== process.pid && alive(pid)) return { ok: false, pid };
+  }
+  fs.writeFileSync(file, `${process.pid}\n`);
+  return { ok: true, release: () => fs.rmSync(file, { force: true }) };
+}
+
+function alive(pid) {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+export async function waitForHttp(url, timeoutMs = 60_000) {
+  const until = Date.now() + timeoutMs;
+  while (Date.now() < until) {
+    try {
+      const res = await fetch(url);
+      if (res.status < 500) return true;
+    } catch {
+      // not up yet
+    }
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  return false;
+}
+
+export function spawnChild(cmd, args, env) {
+  return spawn(cmd, args, { cwd: ROOT, stdio: "inherit", env: { ...process.env, ...env } });
+}
+
+export { databaseName, pgPort };

@@ -1,0 +1,105 @@
+// `npm start` (and `npm run dev` with --dev): install what is missing, start PostgreSQL, migrate, seed
+// the demo, build when needed, and serve on 127.0.0.1. Ctrl-C stops the app and the database.
+import fs from "node:fs";
+import net from "node:net";
+import path from "node:path";
+import {
+  DATA,
+  appEnv,
+  bin,
+  databaseName,
+  ensureBuild,
+  ensureDatabase,
+  ensureDependencies,
+  fail,
+  log,
+  migrateAndSeed,
+  spawnChild,
+  startPostgres,
+  stopPostgres,
+  takeLock,
+  waitForHttp,
+} from "./setup.mjs";
+
+const dev = process.argv.includes("--dev");
+const port = Number(process.env.PORT ?? 3000);
+const url = `http://localhost:${port}`;
+
+const lock = takeLock("app");
+if (!lock.ok) fail(`Slabwright is already running (pid ${lock.pid}) at ${url}. Stop it with Ctrl-C in its terminal first.`);
+
+function portFree(p) {
+  return new Promise((resolve) => {
+    const srv = net.createServer();
+    srv.once("error", () => resolve(false));
+    srv.listen(p, "127.0.0.1", () => srv.close(() => resolve(true)));
+  });
+}
+
+if (!(await portFree(port))) {
+  lock.release();
+  fail(`port ${port} on 127.0.0.1 is already in use; set PORT to another port.`);
+}
+
+ensureDependencies();
+const startedPg = startPostgres();
+let child;
+let stopping = false;
+
+function shutdown(code) {
+  if (stopping) return;
+  stopping = true;
+  log("stopping");
+  const finish = () => {
+    if (startedPg) stopPostgres();
+    lock.release();
+    process.exit(code);
+  };
+  if (child && child.exitCode === null) {
+    child.once("exit", finish);
+    child.kill("SIGTERM");
+    setTimeout(() => child.kill("SIGKILL"), 8000).unref();
+  } else {
+    finish();
+  }
+}
+process.on("SIGINT", () => shutdown(0));
+process.on("SIGTERM", () => shutdown(0));
+
+try {
+  const dbName = databaseName();
+  ensureDatabase(dbName);
+  const env = appEnv({ port, dbName });
+  migrateAndSeed(env);
+  if (!dev) ensureBuild();
+
+  child = spawnChild(bin("next"), [dev ? "dev" : "start", "-H", "127.0.0.1", "-p", String(port)], env);
+  child.on("exit", (code) => {
+    if (!stopping) {
+      log(`the app exited (${code})`);
+      shutdown(code ?? 1);
+    }
+  });
+
+  if (!(await waitForHttp(`${url}/api/health`, 120_000))) {
+    log("the app did not answer within 2 minutes");
+    shutdown(1);
+  } else {
+    const creds = JSON.parse(fs.readFileSync(path.join(DATA, "demo-credentials.json"), "utf8"));
+    const lines = [
+      "",
+      `Slabwright is running at ${url}`,
+      "",
+      "Demo sign-ins (Marrowby Tabletop Co.):",
+      ...creds.users.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(26)} ${u.password}`),
+      `Demo API key (every scope): ${creds.apiKey}`,
+      "",
+      "Ctrl-C stops the app and the database.",
+      "",
+    ];
+    process.stdout.write(lines.join("\n"));
+  }
+} catch (err) {
+  console.error(err);
+  shutdown(1);
+}

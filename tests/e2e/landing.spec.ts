@@ -1,0 +1,61 @@
+import { readFileSync } from "node:fs";
+import { expect, test } from "@playwright/test";
+
+type Creds = { users: { email: string; password: string; role: string }[] };
+const creds = (): Creds => JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"));
+
+test("the landing page says what the product does and leads to sign-in", async ({ page }) => {
+  await page.goto("/");
+  await expect(page.getByRole("heading", { level: 1 })).toContainText("slab");
+  await expect(page.getByText("carrier slab", { exact: false }).first()).toBeVisible();
+  await expect(page.getByText("Before you print")).toBeVisible(); // the safety cautions
+  await page.getByRole("link", { name: "Sign in" }).first().click();
+  await expect(page).toHaveURL(/\/sign-in$/);
+  await expect(page.getByLabel("E-mail")).toBeVisible();
+  await expect(page.getByLabel("Password")).toBeVisible();
+});
+
+test("a wrong password is refused with a message at the form, a bad e-mail at the field", async ({ page }) => {
+  await page.goto("/sign-in");
+  await page.getByLabel("E-mail").fill("not-an-email");
+  await page.getByLabel("Password").fill("x");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.locator("#email-error")).toContainText("e-mail address");
+  await page.getByLabel("E-mail").fill(creds().users[0]!.email);
+  await page.getByLabel("Password").fill("definitely-wrong");
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page.getByTestId("form-message")).toContainText("do not match");
+});
+
+test("the demo owner signs in, sees the demo parts and kit, and signs out", async ({ page }) => {
+  const owner = creds().users.find((u) => u.role === "owner")!;
+  await page.goto("/parts");
+  await expect(page).toHaveURL(/\/sign-in$/); // signed-out visitors are sent to sign in
+  await page.getByLabel("E-mail").fill(owner.email);
+  await page.getByLabel("Password").fill(owner.password);
+  await page.getByRole("button", { name: "Sign in" }).click();
+  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page.getByTestId("whoami")).toContainText("owner");
+  await expect(page.getByRole("cell", { name: "Harbour tile" })).toBeVisible();
+  await expect(page.getByRole("cell", { name: "Beacon pawn" })).toBeVisible();
+  await page.getByRole("link", { name: "Kits" }).click();
+  await expect(page.getByRole("cell", { name: /Harbour Run token set/ })).toBeVisible();
+  await expect(page.getByRole("row", { name: /Harbour Run/ }).getByRole("cell").nth(1)).toHaveText("6");
+  await page.getByRole("button", { name: "Sign out" }).click();
+  await expect(page).toHaveURL(/\/$/);
+  await page.goto("/parts");
+  await expect(page).toHaveURL(/\/sign-in$/);
+});
+
+test("health answers ok with the version", async ({ request }) => {
+  const res = await request.get("/api/health");
+  expect(res.status()).toBe(200);
+  expect(await res.json()).toMatchObject({ status: "ok", db: "ok", version: expect.any(String) });
+});
+
+test("the landing page fits a phone without sideways scrolling @phone", async ({ page }) => {
+  await page.goto("/");
+  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+  expect(overflow).toBeLessThanOrEqual(0);
+  await expect(page.getByRole("link", { name: "Sign in" }).first()).toBeVisible();
+});
