@@ -154,12 +154,28 @@ export function takeLock(name) {
   return { ok: true, release: () => fs.rmSync(file, { force: true }) };
 }
 
+/** A live process that is one of ours (a killed one may linger as a zombie where nothing reaps it). */
+/** Whether another live process holds the named lock. */
+export function lockHeld(name) {
+  const file = path.join(DATA, `${name}.pid`);
+  if (!fs.existsSync(file)) return false;
+  const pid = Number(fs.readFileSync(file, "utf8").trim());
+  return Boolean(pid) && pid !== process.pid && alive(pid);
+}
+
 function alive(pid) {
   try {
     process.kill(pid, 0);
-    return true;
   } catch {
     return false;
+  }
+  try {
+    const stat = fs.readFileSync(`/proc/${pid}/stat`, "utf8");
+    const state = stat.slice(stat.lastIndexOf(")") + 2, stat.lastIndexOf(")") + 3);
+    if (state === "Z" || state === "X") return false;
+    return fs.readFileSync(`/proc/${pid}/cmdline`, "utf8").includes("scripts/");
+  } catch {
+    return true; // no /proc: trust the signal check
   }
 }
 

@@ -12,6 +12,7 @@ import {
   ensureDatabase,
   ensureDependencies,
   fail,
+  lockHeld,
   log,
   migrateAndSeed,
   spawnChild,
@@ -51,7 +52,9 @@ function shutdown(code) {
   stopping = true;
   log("stopping");
   const finish = () => {
-    if (startedPg) stopPostgres();
+    // npm start owns the database: stop it (also one left running by an earlier crash) unless a
+    // test run is using it right now.
+    if (startedPg || !lockHeld("test")) stopPostgres();
     lock.release();
     process.exit(code);
   };

@@ -16,12 +16,18 @@ import {
   run,
   startPostgres,
   stopPostgres,
+  takeLock,
 } from "./setup.mjs";
 
 const started = Date.now();
 const only = process.argv.slice(2); // e.g. `npm test -- unit` runs one stage
 const want = (stage) => only.length === 0 || only.includes(stage);
 
+const lock = takeLock("test");
+if (!lock.ok) {
+  process.stderr.write(`✕ another npm test is running (pid ${lock.pid})\n`);
+  process.exit(1);
+}
 ensureDependencies();
 const chromium = ensureChromium();
 const startedPg = startPostgres({ fast: true });
@@ -87,6 +93,7 @@ try {
   }
 } finally {
   if (startedPg) stopPostgres();
+  lock.release();
 }
 
 log(`npm test took ${((Date.now() - started) / 1000).toFixed(0)} s`);
