@@ -47,7 +47,8 @@ ensure_installed() {
 
 # Run a command as the cluster's owner: initdb and postgres refuse to run as root.
 as_owner() {
-  if [ "$IS_ROOT" = 1 ]; then runuser -u postgres -- "$@"; else "$@"; fi
+  # From /, since the postgres user may not be able to enter the project's folder.
+  if [ "$IS_ROOT" = 1 ]; then (cd / && runuser -u postgres -- "$@"); else "$@"; fi
 }
 
 pick_dir() {
