@@ -52,15 +52,26 @@ export function ensureDependencies() {
   fs.writeFileSync(stamp, `${want}\n`);
 }
 
-/** Debian's Chromium for the browser tests (never a browser download of the test tool's own). */
-export function ensureChromium() {
-  if (fs.existsSync("/usr/bin/chromium")) return "/usr/bin/chromium";
-  log("installing Debian's chromium for the browser tests");
-  if (process.getuid?.() !== 0) fail("chromium is missing: run 'apt-get install chromium' as root");
-  run("apt-get", ["update", "-qq"], { env: { DEBIAN_FRONTEND: "noninteractive" } });
-  run("apt-get", ["install", "-y", "-qq", "chromium"], { env: { DEBIAN_FRONTEND: "noninteractive" } });
-  if (!fs.existsSync("/usr/bin/chromium")) fail("chromium did not install");
-  return "/usr/bin/chromium";
+/**
+ * Debian packages the tests use: chromium for the browser tests (never a browser download of the
+ * test tool's own) and admesh, an independent STL checker. Installed in one apt-get run when missing.
+ */
+const TEST_PACKAGES = [
+  { pkg: "chromium", file: "/usr/bin/chromium" },
+  { pkg: "admesh", file: "/usr/bin/admesh" },
+];
+
+export function ensureTestPackages() {
+  const missing = TEST_PACKAGES.filter((p) => !fs.existsSync(p.file));
+  if (missing.length > 0) {
+    const names = missing.map((p) => p.pkg);
+    log(`installing Debian's ${names.join(", ")} for the tests`);
+    if (process.getuid?.() !== 0) fail(`missing ${names.join(", ")}: run 'apt-get install ${names.join(" ")}' as root`);
+    run("apt-get", ["update", "-qq"], { env: { DEBIAN_FRONTEND: "noninteractive" } });
+    run("apt-get", ["install", "-y", "-qq", ...names], { env: { DEBIAN_FRONTEND: "noninteractive" } });
+    for (const p of missing) if (!fs.existsSync(p.file)) fail(`${p.pkg} did not install`);
+  }
+  return { chromium: "/usr/bin/chromium" };
 }
 
 export function pgRunning() {

@@ -8,9 +8,9 @@ import {
   appEnv,
   bin,
   ensureBuild,
-  ensureChromium,
   ensureDatabase,
   ensureDependencies,
+  ensureTestPackages,
   log,
   migrateAndSeed,
   run,
@@ -29,7 +29,7 @@ if (!lock.ok) {
   process.exit(1);
 }
 ensureDependencies();
-const chromium = ensureChromium();
+const { chromium } = ensureTestPackages();
 const startedPg = startPostgres({ fast: true });
 const resultsDir = path.join(DATA, "test-results");
 fs.rmSync(resultsDir, { recursive: true, force: true });
