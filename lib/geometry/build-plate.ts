@@ -1,0 +1,474 @@
+import type { CrossSection, Manifold } from "manifold-3d";
+import { runChecks, type Finding } from "./checks";
+import { estimate, type Estimates } from "./estimates";
+import { bestPackingAngle, measureFootprint, rotatedBounds, type PartFootprint } from "./footprint";
+import type { FontBook } from "./fonts";
+import { write3mf } from "./io/3mf-write";
+import { writeBinaryStl } from "./io/stl-write";
+import type { DeflateRaw } from "./io/zip-write";
+import type { Kernel, Scope } from "./kernel";
+import { arrange, type PackItem, type Packed } from "./layout";
+import { qrShape, QUIET_ZONE_MODULES, type QrShape } from "./marks/qr";
+import { layoutText, type Contour, type TextShape } from "./marks/text";
+import type { IndexedMesh } from "./mesh";
+import { NUMBER_SIZE, parseOptions, RING, type SlabOptions, type SlabOptionsInput, type TextMark } from "./options";
+import { slabOutline, type SlabShape } from "./slab";
+import { fillPlaceholders } from "./variables";
+
+export type PlatePart = {
+  id: string;
+  name: string;
+  /** A closed mesh standing on z = 0 (as import and orientation leave it). */
+  mesh: IndexedMesh;
+  quantity: number;
+};
+
+export type BuildInput = {
+  parts: PlatePart[];
+  options?: SlabOptionsInput | SlabOptions;
+  fonts: FontBook;
+  variables?: Record<string, string>;
+  /** Files to write; none for a preview or a check-only build. */
+  formats?: ("stl" | "3mf")[];
+  title?: string;
+  deflateRaw?: DeflateRaw;
+};
+
+export type PlacedPiece = {
+  /** The number engraved beside the piece and listed on the plate map: row by row from the top left. */
+  number: number;
+  /** The piece's place in kit order (copy, then part, then quantity), which `layout.placements` refers to. */
+  slot: number;
+  partId: string;
+  partName: string;
+  copy: number;
+  /** Where the part's origin sits on the slab (mm) and its turn about Z (degrees). */
+  x: number;
+  y: number;
+  rotation: number;
+  /** Height of the part's base above the bed: slab thickness + gap (less the pocket depth for pockets). */
+  z: number;
+  height: number;
+  shadowArea: number;
+  contactArea: number;
+  /** The shadow footprint's extent on the slab. */
+  bounds: { minX: number; minY: number; maxX: number; maxY: number };
+  /** The shadow outline on the slab (outer contours), for the plate map. */
+  outline: Contour[];
+  numberAt?: { x: number; y: number };
+};
+
+export type PlateLayout = {
+  slab: { shape: SlabShape; width: number; depth: number; outline: Contour[]; thickness: number };
+  bed: { width: number; depth: number };
+  utilisation: number;
+  marks: { kind: "text" | "qr"; value: string; bounds: { minX: number; minY: number; maxX: number; maxY: number } }[];
+};
+
+export type PlateResult = {
+  stl?: Uint8Array;
+  threeMf?: Uint8Array;
+  pieces: PlacedPiece[];
+  layout: PlateLayout | null;
+  findings: Finding[];
+  estimates: Estimates | null;
+  stats: { triangles: number; bodies: number; timings: Record<string, number> };
+  /** Kernel-free meshes of every body, for a preview. */
+  bodies?: { name: string; mesh: IndexedMesh; piece?: number }[];
+};
+
+export const POCKET_DEPTH = 0.4;
+
+type Work = {
+  slot: number;
+  part: PlatePart;
+  partIndex: number;
+  copy: number;
+  fp: PartFootprint;
+  angle: number;
+  x: number;
+  y: number;
+  rect?: Packed;
+};
+
+type TextBlock = { mark: TextMark; value: string; shape: TextShape; x: number; y: number };
+type QrBlock = { shape: QrShape; x: number; y: number; mark: NonNullable<SlabOptions["marks"]["qr"]>; value: string };
+
+/**
+ * The one entry point: parts and options in, a print-ready plate out. Every kernel object it makes is
+ * tracked in one scope and freed before it returns, whatever happens.
+ */
+export function buildPlate(kernel: Kernel, input: BuildInput): PlateResult {
+  const timings: Record<string, number> = {};
+  let t0 = performance.now();
+  const lap = (name: string) => {
+    const t = performance.now();
+    timings[name] = Math.round((t - t0) * 10) / 10;
+    t0 = t;
+  };
+  const o = parseOptions(input.options ?? {});
+  const vars = input.variables ?? {};
+  const scope = kernel.scope();
+  try {
+    return build(kernel, scope, input, o, vars, lap, timings);
+  } finally {
+    scope.close();
+  }
+}
+
+function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, vars: Record<string, string>, lap: (n: string) => void, timings: Record<string, number>): PlateResult {
+  const { Manifold, Mesh, CrossSection } = kernel.wasm;
+  const findings: Finding[] = [];
+  const m = o.slab.margin;
+  const spacing = o.layout.spacing;
+
+  // 1. Parts into the kernel, footprints once per part.
+  const solids: Manifold[] = [];
+  const footprints: PartFootprint[] = [];
+  for (const part of input.parts) {
+    const solid = scope.track(new Manifold(new Mesh({ numProp: 3, vertProperties: part.mesh.vertProperties, triVerts: part.mesh.triVerts })));
+    solids.push(solid);
+    footprints.push(measureFootprint(kernel, scope, solid, o.layerHeight));
+  }
+  lap("footprints");
+
+  // 2. Pieces in kit order: copies, then parts, then quantity.
+  const work: Work[] = [];
+  for (let copy = 1; copy <= o.layout.copies; copy++) {
+    input.parts.forEach((part, partIndex) => {
+      for (let q = 0; q < part.quantity; q++) {
+        const fp = footprints[partIndex]!;
+        work.push({ slot: work.length + 1, part, partIndex, copy, fp, angle: bestPackingAngle(fp.hull), x: 0, y: 0 });
+      }
+    });
+  }
+
+  // Marks that need room: text lines and the QR code.
+  const texts = o.marks.text.map((mark) => {
+    const value = fillPlaceholders(mark.value, vars);
+    return { mark, value, shape: layoutText(input.fonts[mark.font], value, mark.size) };
+  });
+  const qrMark = o.marks.qr;
+  const qr = qrMark ? { mark: qrMark, value: fillPlaceholders(qrMark.value, vars), shape: qrShape(fillPlaceholders(qrMark.value, vars), qrMark.module, qrMark.level) } : null;
+
+  const ext = o.marks.outlines === "ring" ? RING.clearance + RING.width : o.marks.outlines === "pocket" ? RING.clearance : 0;
+  const numberFont = input.fonts["mono-bold"];
+  const labelW = o.marks.numbers ? layoutText(numberFont, String(Math.max(1, work.length)), NUMBER_SIZE).advance : 0;
+  const gutter = o.marks.numbers ? labelW + 0.8 : 0;
+
+  const bandOf = (where: "top" | "bottom") => {
+    const lines = texts.filter((t) => t.mark.position === where || (where === "bottom" && t.mark.position === "auto"));
+    const q = qr && (qr.mark.position === where || (where === "bottom" && qr.mark.position === "auto")) ? qr : null;
+    const textH = lines.reduce((s, t, i) => s + t.mark.size * (i === 0 ? 1 : 1.6), 0) + (lines.length ? 0.4 * (lines[lines.length - 1]!.mark.size) : 0);
+    const textW = Math.max(0, ...lines.map((t) => t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX)));
+    const qrSide = q ? q.shape.sizeWithQuietZone : 0;
+    const h = Math.max(textH, qrSide);
+    const w = textW + (q && lines.length ? spacing : 0) + qrSide;
+    return { lines, q, h, w, textH };
+  };
+  const bottom = bandOf("bottom");
+  const top = bandOf("top");
+  const bandsH = (bottom.h ? bottom.h + spacing : 0) + (top.h ? top.h + spacing : 0);
+  const bandsW = Math.max(bottom.w, top.w);
+  lap("marks layout");
+
+  // 3. Layout.
+  const maxW = o.layout.bed.width - 2 * m;
+  const maxH = o.layout.bed.depth - 2 * m - bandsH;
+  const fixed = new Map((o.layout.placements ?? []).map((p) => [p.piece, p]));
+  const itemOf = (w: Work): PackItem => {
+    const rb = rotatedBounds(w.fp.hull, w.angle);
+    return { key: w.slot, w: rb.w + 2 * ext + gutter, h: Math.max(rb.h + 2 * ext, o.marks.numbers ? NUMBER_SIZE + 0.6 : 0), canTurn: true };
+  };
+  const auto = work.filter((w) => !fixed.has(w.slot));
+  const manual = work.filter((w) => fixed.has(w.slot));
+  for (const w of manual) {
+    const p = fixed.get(w.slot)!;
+    w.angle = p.rotation;
+    w.x = p.x;
+    w.y = p.y;
+  }
+  let arrangement = { packed: [] as Packed[], width: 0, height: 0 };
+  if (auto.length) {
+    // Hand-placed pieces keep their places; the rest are packed to their right.
+    const manualMaxX = manual.length ? Math.max(...manual.map((w) => pieceBounds(w).maxX)) - m + spacing : 0;
+    const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, o.slab.shape === "disc");
+    if (!found || texts.some((t) => t.shape.bounds.maxX - t.shape.bounds.minX > maxW) || bandsW > maxW || maxH <= 0) {
+      const needW = Math.max(bandsW, ...auto.map((w) => Math.min(itemOf(w).w, itemOf(w).h)));
+      findings.push({
+        severity: "error",
+        code: "does_not_fit",
+        message: `The pieces and marks do not fit a ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed with ${m} mm margins${needW > maxW ? ` (the widest row needs ${needW.toFixed(1)} mm, ${(needW - maxW).toFixed(1)} mm more than there is)` : ""}. Use a bigger bed, fewer copies, or split the kit over two plates.`,
+      });
+      for (const t of texts) {
+        const width = t.shape.bounds.maxX - t.shape.bounds.minX;
+        if (width > maxW) findings.push({ severity: "error", code: "text_too_long", message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.` });
+      }
+      lap("layout");
+      return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
+    }
+    arrangement = found;
+    const baseY = m + (bottom.h ? bottom.h + spacing : 0);
+    for (const p of found.packed) {
+      const w = work[p.key - 1]!;
+      if (p.turned) w.angle = (w.angle + 90) % 360;
+      const rb = rotatedBounds(w.fp.hull, w.angle);
+      w.rect = { ...p, x: p.x + m + manualMaxX, y: p.y + baseY };
+      w.x = w.rect.x + gutter + ext - rb.minX;
+      w.y = w.rect.y + ext - rb.minY;
+    }
+  }
+  lap("layout");
+
+  // Content extent: pieces (with their rings and numbers) and the bands.
+  const contentMinX = m;
+  const piecesBox = work.map((w) => {
+    const b = pieceBounds(w);
+    return { minX: b.minX - ext - gutter, minY: b.minY - ext, maxX: b.maxX + ext, maxY: b.maxY + ext };
+  });
+  const piecesMaxX = Math.max(m, ...piecesBox.map((b) => b.maxX));
+  const piecesMinY = Math.min(...piecesBox.map((b) => b.minY), m + (bottom.h ? bottom.h + spacing : 0));
+  const piecesMaxY = Math.max(m, ...piecesBox.map((b) => b.maxY));
+  const innerW = Math.max(piecesMaxX - contentMinX, bandsW);
+  const bottomY = Math.min(m, piecesMinY - spacing - bottom.h);
+  const topY = piecesMaxY + (top.h ? spacing : 0);
+
+  // Text and QR places inside the bands: text left-aligned, the QR at the right.
+  const blocks: TextBlock[] = [];
+  const placeBand = (band: typeof bottom, y0: number) => {
+    let y = y0 + band.h - (band.lines[0]?.mark.size ?? 0) - Math.max(0, (band.h - band.textH) / 2);
+    band.lines.forEach((t, i) => {
+      if (i > 0) y -= t.mark.size * 1.6;
+      blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: contentMinX - Math.min(0, t.shape.bounds.minX), y });
+    });
+  };
+  placeBand(bottom, bottomY);
+  placeBand(top, topY);
+  for (const t of texts) {
+    if (typeof t.mark.position === "object") blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: t.mark.position.x, y: t.mark.position.y });
+  }
+  let qrBlock: QrBlock | null = null;
+  if (qr) {
+    const side = qr.shape.sizeWithQuietZone;
+    const pos = qr.mark.position;
+    const qx = typeof pos === "object" ? pos.x : contentMinX + innerW - side;
+    const qy = typeof pos === "object" ? pos.y : pos === "top" ? topY + top.h - side : bottomY;
+    qrBlock = { shape: qr.shape, x: qx, y: qy, mark: qr.mark, value: qr.value };
+  }
+
+  // 4. The slab outline around everything, with the margin.
+  const contentBoxes = [
+    ...piecesBox,
+    ...blocks.map((b) => ({ minX: b.x + b.shape.bounds.minX, minY: b.y + b.shape.bounds.minY, maxX: b.x + b.shape.bounds.maxX, maxY: b.y + b.shape.bounds.maxY })),
+    ...(qrBlock ? [{ minX: qrBlock.x, minY: qrBlock.y, maxX: qrBlock.x + qrBlock.shape.sizeWithQuietZone, maxY: qrBlock.y + qrBlock.shape.sizeWithQuietZone }] : []),
+  ];
+  const outline = slabOutline(kernel, scope, o, {
+    boxes: contentBoxes,
+    pieceShadows: work.map((w) => placedShadow(scope, w)),
+    ext,
+  });
+  // Shift everything so the slab sits in the positive quadrant from (0, 0).
+  const ob = outline.bounds();
+  const dx = -ob.min[0], dy = -ob.min[1];
+  const slabCs = scope.track(outline.translate(dx, dy));
+  for (const w of work) {
+    w.x += dx;
+    w.y += dy;
+  }
+  for (const b of blocks) {
+    b.x += dx;
+    b.y += dy;
+  }
+  if (qrBlock) {
+    qrBlock.x += dx;
+    qrBlock.y += dy;
+  }
+  const slabW = ob.max[0] - ob.min[0];
+  const slabD = ob.max[1] - ob.min[1];
+  lap("slab outline");
+
+  // Numbers: row by row from the top left.
+  const order = [...work].sort((a, b) => pieceBounds(b).maxY - pieceBounds(a).maxY);
+  const rowTol = Math.max(2, Math.min(...work.map((w) => pieceBounds(w).maxY - pieceBounds(w).minY)) / 2);
+  const rows: Work[][] = [];
+  for (const w of order) {
+    const row = rows.find((r) => Math.abs(pieceBounds(r[0]!).maxY - pieceBounds(w).maxY) <= rowTol);
+    if (row) row.push(w);
+    else rows.push([w]);
+  }
+  const numbered = rows.flatMap((r) => r.sort((a, b) => pieceBounds(a).minX - pieceBounds(b).minX || a.slot - b.slot));
+  const numberOf = new Map(numbered.map((w, i) => [w.slot, i + 1]));
+
+  // 5. Marks as cutters (engraved) or additions (embossed), grouped by depth.
+  const lift = o.slab.thickness + o.slab.gap - (o.marks.outlines === "pocket" ? POCKET_DEPTH : 0);
+  const engrave = new Map<number, CrossSection[]>();
+  const emboss = new Map<number, CrossSection[]>();
+  const add = (relief: "engrave" | "emboss", depth: number, cs: CrossSection) => {
+    const map = relief === "engrave" ? engrave : emboss;
+    const list = map.get(depth) ?? [];
+    list.push(cs);
+    map.set(depth, list);
+  };
+  const textCs = (contours: Contour[], x: number, y: number) => scope.track(scope.track(new CrossSection(contours, "NonZero")).translate(x, y));
+  const markRegions: { kind: "text" | "qr" | "number"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[] = [];
+  for (const b of blocks) {
+    if (b.shape.contours.length === 0) continue;
+    const cs = textCs(b.shape.contours, b.x, b.y);
+    add(b.mark.relief, b.mark.depth, cs);
+    markRegions.push({ kind: "text", label: `"${b.value}"`, cs, relief: b.mark.relief });
+  }
+  if (qrBlock) {
+    const inset = QUIET_ZONE_MODULES * qrBlock.mark.module;
+    const cs = textCs(qrBlock.shape.contours, qrBlock.x + inset, qrBlock.y + inset);
+    add(qrBlock.mark.relief, qrBlock.mark.depth, cs);
+  }
+  const placed: PlacedPiece[] = [];
+  const ringDepth = o.marks.text[0]?.depth ?? 0.4;
+  for (const w of work) {
+    const shadow = placedShadow(scope, w);
+    const n = numberOf.get(w.slot)!;
+    const b = pieceBounds(w);
+    let numberAt: { x: number; y: number } | undefined;
+    if (o.marks.numbers) {
+      const shape = layoutText(numberFont, String(n), NUMBER_SIZE);
+      numberAt = { x: b.minX - ext - gutter, y: b.maxY + ext - NUMBER_SIZE - 0.3 };
+      const cs = textCs(shape.contours, numberAt.x - Math.min(0, shape.bounds.minX), numberAt.y);
+      add("engrave", 0.4, cs);
+      markRegions.push({ kind: "number", label: `number ${n}`, cs, relief: "engrave" });
+    }
+    if (o.marks.outlines === "ring") {
+      const outer = scope.track(shadow.offset(RING.clearance + RING.width, "Round", 2, 48));
+      const inner = scope.track(shadow.offset(RING.clearance, "Round", 2, 48));
+      add("engrave", ringDepth, scope.track(scope.track(outer.subtract(inner)).simplify(0.005)));
+    } else if (o.marks.outlines === "pocket") {
+      add("engrave", POCKET_DEPTH, scope.track(scope.track(shadow.offset(RING.clearance, "Round", 2, 48)).simplify(0.005)));
+    }
+    placed.push({
+      number: n,
+      slot: w.slot,
+      partId: w.part.id,
+      partName: w.part.name,
+      copy: w.copy,
+      x: w.x,
+      y: w.y,
+      rotation: w.angle,
+      z: lift,
+      height: w.fp.height,
+      shadowArea: w.fp.shadowArea,
+      contactArea: w.fp.contactArea,
+      bounds: b,
+      outline: shadow.toPolygons(),
+      numberAt,
+    });
+  }
+  placed.sort((a, b) => a.number - b.number);
+  lap("marks");
+
+  // 6. Checks, before the expensive booleans: an error stops the build here.
+  const pieceShadows = work.map((w) => ({ number: numberOf.get(w.slot)!, cs: placedShadow(scope, w), w }));
+  findings.push(
+    ...runChecks(kernel, scope, {
+      options: o,
+      slab: slabCs,
+      slabSize: { width: slabW, depth: slabD },
+      pieces: pieceShadows.map((p) => ({ number: p.number, shadow: p.cs, name: p.w.part.name, height: p.w.fp.height, contactArea: p.w.fp.contactArea, partId: p.w.part.id, bounds: pieceBounds(p.w), ringExt: ext })),
+      marks: markRegions,
+      texts: blocks,
+      qr: qrBlock,
+      unfilled: [...o.marks.text.map((t) => fillPlaceholders(t.value, vars)), qr?.value ?? ""].flatMap((v) => [...v.matchAll(/\{([a-z][a-z0-9_]*)\}/gi)].map((x) => x[0])),
+      solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, solid: solids[i]! })),
+    }),
+  );
+  lap("checks");
+
+  const layout: PlateLayout = {
+    slab: { shape: o.slab.shape, width: slabW, depth: slabD, outline: slabCs.toPolygons(), thickness: o.slab.thickness },
+    bed: o.layout.bed,
+    utilisation: work.reduce((s, w) => s + w.fp.shadowArea, 0) / slabCs.area(),
+    marks: [
+      ...blocks.map((b) => ({ kind: "text" as const, value: b.value, bounds: { minX: b.x + b.shape.bounds.minX, minY: b.y + b.shape.bounds.minY, maxX: b.x + b.shape.bounds.maxX, maxY: b.y + b.shape.bounds.maxY } })),
+      ...(qrBlock ? [{ kind: "qr" as const, value: qrBlock.value, bounds: { minX: qrBlock.x, minY: qrBlock.y, maxX: qrBlock.x + qrBlock.shape.sizeWithQuietZone, maxY: qrBlock.y + qrBlock.shape.sizeWithQuietZone } }] : []),
+    ],
+  };
+  if (findings.some((f) => f.severity === "error")) {
+    return { pieces: placed, layout, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
+  }
+
+  // 7. The slab solid: one n-ary difference with every cutter, then embossed marks joined on.
+  const slabBase = scope.track(slabCs.extrude(o.slab.thickness));
+  const cutters: Manifold[] = [];
+  const overshoot = 0.01;
+  for (const [depth, list] of engrave) {
+    const cs = scope.track(CrossSection.union(list));
+    cutters.push(scope.track(scope.track(cs.extrude(depth + overshoot)).translate(0, 0, o.slab.thickness - depth)));
+  }
+  let slab = cutters.length ? scope.track(Manifold.difference([slabBase, ...cutters])) : slabBase;
+  const adds: Manifold[] = [];
+  for (const [depth, list] of emboss) {
+    const cs = scope.track(CrossSection.union(list));
+    adds.push(scope.track(scope.track(cs.extrude(depth)).translate(0, 0, o.slab.thickness)));
+  }
+  if (adds.length) slab = scope.track(Manifold.union([slab, ...adds]));
+  const slabMesh = toIndexed(slab.getMesh());
+  lap("slab booleans");
+
+  // Pieces: the part's own welded mesh turned and moved in plain arithmetic (no kernel round trip).
+  const pieceMeshes = placed.map((p) => ({ piece: p, mesh: placeMesh(input.parts.find((x) => x.id === p.partId)!.mesh, p.rotation, p.x, p.y, p.z) }));
+  lap("pieces");
+
+  const bodies: { name: string; mesh: IndexedMesh; piece?: number }[] = [{ name: "Slab", mesh: slabMesh }, ...pieceMeshes.map(({ piece, mesh }) => ({ name: `${piece.number} · ${piece.partName}`, mesh, piece: piece.number }))];
+  const formats = input.formats ?? [];
+  let stl: Uint8Array | undefined;
+  let threeMf: Uint8Array | undefined;
+  if (formats.includes("stl")) {
+    stl = writeBinaryStl(bodies.map((b) => b.mesh));
+    lap("stl");
+  }
+  if (formats.includes("3mf")) {
+    threeMf = write3mf(
+      bodies.map((b) => ({ name: b.name, mesh: b.mesh, partNumber: b.piece ? String(b.piece) : "slab" })),
+      { title: input.title ?? "Slabwright plate", description: `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap` },
+      input.deflateRaw,
+    );
+    lap("3mf");
+  }
+  const estimates = estimate(o, slab.volume(), placed.map((p) => ({ number: p.number, volume: solidsVolume(solids, input.parts, p.partId) })));
+  const triangles = bodies.reduce((s, b) => s + b.mesh.triVerts.length / 3, 0);
+  return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings }, bodies };
+
+  function pieceBounds(w: Work) {
+    const rb = rotatedBounds(w.fp.hull, w.angle);
+    return { minX: w.x + rb.minX, minY: w.y + rb.minY, maxX: w.x + rb.maxX, maxY: w.y + rb.maxY };
+  }
+}
+
+function placedShadow(scope: Scope, w: Work): CrossSection {
+  return scope.track(scope.track(w.fp.shadow.rotate(w.angle)).translate(w.x, w.y));
+}
+
+function solidsVolume(solids: Manifold[], parts: PlatePart[], partId: string): number {
+  const i = parts.findIndex((p) => p.id === partId);
+  return solids[i]!.volume();
+}
+
+function toIndexed(mesh: { vertProperties: Float32Array; triVerts: Uint32Array; numProp: number }): IndexedMesh {
+  if (mesh.numProp === 3) return { vertProperties: mesh.vertProperties.slice(), triVerts: mesh.triVerts.slice() };
+  const n = mesh.vertProperties.length / mesh.numProp;
+  const out = new Float32Array(n * 3);
+  for (let i = 0; i < n; i++) for (let a = 0; a < 3; a++) out[i * 3 + a] = mesh.vertProperties[i * mesh.numProp + a]!;
+  return { vertProperties: out, triVerts: mesh.triVerts.slice() };
+}
+
+/** Turn a mesh about Z by `deg` and move it to (x, y, z). */
+export function placeMesh(mesh: IndexedMesh, deg: number, x: number, y: number, z: number): IndexedMesh {
+  const r = (deg * Math.PI) / 180, c = Math.cos(r), s = Math.sin(r);
+  const p = mesh.vertProperties;
+  const out = new Float32Array(p.length);
+  for (let i = 0; i < p.length; i += 3) {
+    const px = p[i]!, py = p[i + 1]!;
+    out[i] = c * px - s * py + x;
+    out[i + 1] = s * px + c * py + y;
+    out[i + 2] = p[i + 2]! + z;
+  }
+  return { vertProperties: out, triVerts: mesh.triVerts };
+}

@@ -1,0 +1,197 @@
+import type { CrossSection, Manifold } from "manifold-3d";
+import type { Kernel, Scope } from "./kernel";
+import type { QrShape } from "./marks/qr";
+import { MATERIALS, type SlabOptions } from "./options";
+
+export type Severity = "error" | "warning" | "info";
+export type Finding = { severity: Severity; code: string; message: string; piece?: number; pieces?: number[] };
+
+type Box = { minX: number; minY: number; maxX: number; maxY: number };
+
+export type CheckInput = {
+  options: SlabOptions;
+  slab: CrossSection;
+  slabSize: { width: number; depth: number };
+  pieces: { number: number; shadow: CrossSection; name: string; height: number; contactArea: number; partId: string; bounds: Box; ringExt: number }[];
+  marks: { kind: "text" | "qr" | "number"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[];
+  texts: { mark: { relief: "engrave" | "emboss"; size: number }; value: string }[];
+  qr: { shape: QrShape; x: number; y: number; mark: { module: number } } | null;
+  unfilled: string[];
+  solids: { partId: string; name: string; solid: Manifold }[];
+};
+
+/** Areas below this (mm²) are rounding, not overlap. */
+const AREA_EPS = 0.01;
+
+/**
+ * Height over contact width above which a piece standing on an air gap may be knocked over by the
+ * nozzle (from memory: about 3:1 for FDM parts without a brim).
+ */
+export const TIP_RATIO = 3;
+
+/** The small-parts cylinder of US 16 CFR 1501: 31.75 mm across, 57.15 mm deep at its deepest. */
+export const SMALL_PARTS = { diameter: 31.75, depth: 57.15 };
+
+/** Warn when an opening (shrink, then grow back) by half the printable stroke removes more of a mark than this. */
+const THIN_LOSS = 0.25;
+
+const r1 = (n: number) => n.toFixed(1);
+const r2 = (n: number) => n.toFixed(2);
+
+function overlaps(a: Box, b: Box, pad = 0): boolean {
+  return a.minX < b.maxX + pad && b.minX < a.maxX + pad && a.minY < b.maxY + pad && b.minY < a.maxY + pad;
+}
+
+export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[] {
+  const { CrossSection } = kernel.wasm;
+  const o = c.options;
+  const out: Finding[] = [];
+  const area = (cs: CrossSection) => cs.area();
+
+  // Bed.
+  if (c.slabSize.width > o.layout.bed.width + 1e-6 || c.slabSize.depth > o.layout.bed.depth + 1e-6) {
+    out.push({
+      severity: "error",
+      code: "slab_outside_bed",
+      message: `The slab is ${r1(c.slabSize.width)} × ${r1(c.slabSize.depth)} mm; the bed is ${o.layout.bed.width} × ${o.layout.bed.depth} mm.`,
+    });
+  }
+
+  // Pieces against the slab and each other.
+  const inner = scope.track(c.slab.offset(-o.slab.margin, "Round", 2, 48));
+  for (const p of c.pieces) {
+    const over = area(scope.track(p.shadow.subtract(c.slab)));
+    if (over > AREA_EPS) {
+      out.push({ severity: "error", code: "piece_over_edge", piece: p.number, message: `Piece ${p.number} (${p.name}) reaches over the slab's edge by ${r1(over)} mm².` });
+    } else if (area(scope.track(p.shadow.subtract(inner))) > AREA_EPS) {
+      out.push({ severity: "warning", code: "piece_in_margin", piece: p.number, message: `Piece ${p.number} (${p.name}) is closer than the ${o.slab.margin} mm margin to the slab's edge.` });
+    }
+  }
+  const bed = { minX: 0, minY: 0, maxX: o.layout.bed.width, maxY: o.layout.bed.depth };
+  for (const p of c.pieces) {
+    if (p.bounds.minX < bed.minX - 1e-6 || p.bounds.minY < bed.minY - 1e-6 || p.bounds.maxX > bed.maxX + 1e-6 || p.bounds.maxY > bed.maxY + 1e-6) {
+      out.push({ severity: "error", code: "piece_outside_bed", piece: p.number, message: `Piece ${p.number} (${p.name}) lies outside the ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed.` });
+    }
+  }
+  const spacing = o.layout.spacing;
+  const grown = new Map<number, CrossSection>();
+  const grow = (p: CheckInput["pieces"][number]) => {
+    let g = grown.get(p.number);
+    if (!g) {
+      g = scope.track(p.shadow.offset(Math.max(0, spacing / 2 - 1e-3), "Round", 2, 24));
+      grown.set(p.number, g);
+    }
+    return g;
+  };
+  for (let i = 0; i < c.pieces.length; i++) {
+    for (let j = i + 1; j < c.pieces.length; j++) {
+      const a = c.pieces[i]!, b = c.pieces[j]!;
+      if (!overlaps(a.bounds, b.bounds, spacing)) continue;
+      const both = area(scope.track(a.shadow.intersect(b.shadow)));
+      if (both > AREA_EPS) {
+        out.push({ severity: "error", code: "pieces_overlap", pieces: [a.number, b.number], piece: a.number, message: `Pieces ${a.number} and ${b.number} overlap by ${r1(both)} mm².` });
+      } else if (spacing > 0 && area(scope.track(grow(a).intersect(grow(b)))) > AREA_EPS) {
+        out.push({ severity: "warning", code: "pieces_too_close", pieces: [a.number, b.number], piece: a.number, message: `Pieces ${a.number} and ${b.number} are closer than the ${spacing} mm spacing.` });
+      }
+    }
+  }
+
+  // Standing steady on the gap.
+  for (const p of c.pieces) {
+    const d = 2 * Math.sqrt(p.contactArea / Math.PI);
+    if (p.contactArea < 1) {
+      out.push({ severity: "warning", code: "contact_too_small", piece: p.number, message: `Piece ${p.number} (${p.name}) touches the slab with only ${r2(p.contactArea)} mm²; lay it flat or add a base.` });
+    } else if (p.height / d > TIP_RATIO) {
+      out.push({
+        severity: "warning",
+        code: "tip_over_risk",
+        piece: p.number,
+        message: `Piece ${p.number} (${p.name}) is ${r1(p.height)} mm tall on a base about ${r1(d)} mm across (over ${TIP_RATIO}:1): it may be knocked over while printing.`,
+      });
+    }
+  }
+
+  // Marks against pieces and the slab.
+  if (c.marks.length || c.qr) {
+    const keepOut = scope.track(CrossSection.union(c.pieces.map((p) => scope.track(p.shadow.offset(p.ringExt, "Round", 2, 24)))));
+    for (const mk of c.marks) {
+      if (area(scope.track(mk.cs.intersect(keepOut))) > AREA_EPS) {
+        out.push({ severity: "error", code: "mark_collides", message: `The ${mk.kind === "number" ? mk.label : `text ${mk.label}`} runs under a piece or its outline; move it.` });
+      }
+      if (area(scope.track(mk.cs.subtract(c.slab))) > AREA_EPS) {
+        out.push({ severity: "error", code: "mark_off_slab", message: `The ${mk.kind === "number" ? mk.label : `text ${mk.label}`} runs off the slab.` });
+      }
+    }
+    if (c.qr) {
+      const s = c.qr.shape.sizeWithQuietZone;
+      const zone = scope.track(new CrossSection([[[c.qr.x, c.qr.y], [c.qr.x + s, c.qr.y], [c.qr.x + s, c.qr.y + s], [c.qr.x, c.qr.y + s]]]));
+      const others = c.marks.length ? scope.track(CrossSection.union(c.marks.map((m) => m.cs))) : null;
+      if (area(scope.track(zone.intersect(keepOut))) > AREA_EPS || (others && area(scope.track(zone.intersect(others))) > AREA_EPS)) {
+        out.push({ severity: "error", code: "qr_quiet_zone", message: "Something lies in the QR code's quiet zone (4 modules all round, ISO/IEC 18004); scanners may not read it. Move the code or the pieces." });
+      }
+      if (area(scope.track(zone.subtract(c.slab))) > AREA_EPS) {
+        out.push({ severity: "error", code: "mark_off_slab", message: "The QR code (with its quiet zone) runs off the slab." });
+      }
+    }
+  }
+
+  // Printable mark sizes.
+  const nozzle = o.nozzle;
+  if (c.qr && c.qr.mark.module < 2.5 * nozzle - 1e-9) {
+    out.push({ severity: "warning", code: "qr_module_too_small", message: `QR modules of ${r2(c.qr.mark.module)} mm are under 2.5 × the ${nozzle} mm nozzle (${r2(2.5 * nozzle)} mm); the code may not scan. Use bigger modules or a shorter value.` });
+  }
+  for (const mk of c.marks) {
+    if (mk.kind === "qr") continue;
+    const stroke = mk.relief === "engrave" ? nozzle : 2 * nozzle;
+    const a = area(mk.cs);
+    if (a <= 0) continue;
+    const opened = scope.track(scope.track(mk.cs.offset(-stroke / 2, "Round", 2, 16)).offset(stroke / 2, "Round", 2, 16));
+    const lost = 1 - area(opened) / a;
+    if (lost > THIN_LOSS) {
+      out.push({
+        severity: "warning",
+        code: "stroke_too_thin",
+        message: `Strokes of the ${mk.kind === "number" ? mk.label : `text ${mk.label}`} are narrower than ${r2(stroke)} mm (${mk.relief === "engrave" ? "1" : "2"} × the nozzle, for ${mk.relief === "engrave" ? "engraved" : "embossed"} marks): ${Math.round(lost * 100)} % of it would not print. Make it larger or bolder.`,
+      });
+    }
+  }
+
+  // Slab against warping and layers.
+  if (o.slab.shape === "rounded-rect" && o.slab.cornerRadius < 4 && MATERIALS[o.material].warpProne) {
+    out.push({ severity: "warning", code: "sharp_corners", message: `${o.material} warps: corners under 4 mm radius tend to lift. Round them to at least 4 mm or use a disc slab.` });
+  }
+  if (o.slab.gap < 0.2 - 1e-9 || o.slab.gap > 0.3 + 1e-9) {
+    out.push({ severity: "warning", code: "gap_out_of_range", message: `A ${r2(o.slab.gap)} mm gap is outside the usual 0.20–0.30 mm: ${o.slab.gap < 0.2 ? "pieces may fuse to the slab" : "pieces may come loose while printing"}.` });
+  }
+  if (o.slab.gap < o.layerHeight - 1e-9) {
+    out.push({ severity: "warning", code: "gap_below_layer", message: `The ${r2(o.slab.gap)} mm gap is thinner than one ${r2(o.layerHeight)} mm layer and will likely be lost when sliced.` });
+  }
+  const layers = (v: number) => Math.abs(v / o.layerHeight - Math.round(v / o.layerHeight)) > 1e-6;
+  if (layers(o.slab.thickness)) {
+    out.push({ severity: "info", code: "thickness_not_layers", message: `The ${r2(o.slab.thickness)} mm slab is not a whole number of ${r2(o.layerHeight)} mm layers; the slicer will round it.` });
+  }
+  if (layers(o.slab.gap)) {
+    out.push({ severity: "info", code: "gap_not_layers", message: `The ${r2(o.slab.gap)} mm gap is not a whole number of ${r2(o.layerHeight)} mm layers; keep it in the slicer (support gap settings) rather than letting it round away.` });
+  }
+
+  // Small parts (informational: only matters for kits that may reach children).
+  for (const s of c.solids) {
+    const b = s.solid.boundingBox();
+    const [a, m, l] = [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]].sort((x, y) => x - y) as [number, number, number];
+    if (m <= SMALL_PARTS.diameter && l <= SMALL_PARTS.depth) {
+      const numbers = c.pieces.filter((p) => p.partId === s.partId).map((p) => p.number);
+      out.push({
+        severity: "info",
+        code: "small_part",
+        pieces: numbers,
+        piece: numbers[0],
+        message: `${s.name} (${r1(a)} × ${r1(m)} × ${r1(l)} mm) may fit the small-parts cylinder (US 16 CFR 1501): not for children under 3; ages 3–6 need a choking-hazard warning. Check your local rules.`,
+      });
+    }
+  }
+
+  for (const name of new Set(c.unfilled)) {
+    out.push({ severity: "warning", code: "unfilled_placeholder", message: `${name} has no value, so it would be engraved as written.` });
+  }
+  return out;
+}

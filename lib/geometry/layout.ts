@@ -1,0 +1,82 @@
+/**
+ * Packing pieces' rectangles onto the slab: the MaxRects algorithm with the best-short-side-fit rule
+ * (J. Jylänki, "A Thousand Ways to Pack the Bin", 2010), allowing quarter turns. Deterministic: the
+ * same input gives the same layout. Spacing is kept by growing every rectangle (and the bin) by it.
+ */
+export type PackItem = { key: number; w: number; h: number; canTurn: boolean };
+export type Packed = { key: number; x: number; y: number; w: number; h: number; turned: boolean };
+
+type Free = { x: number; y: number; w: number; h: number };
+
+export function maxRectsPack(items: PackItem[], binW: number, binH: number, spacing: number): Packed[] | null {
+  const W = binW + spacing, H = binH + spacing;
+  let free: Free[] = [{ x: 0, y: 0, w: W, h: H }];
+  const out: Packed[] = [];
+  // Largest first; ties broken by key so the order never depends on sort stability.
+  const order = [...items].sort((a, b) => b.w * b.h - a.w * a.h || Math.max(b.w, b.h) - Math.max(a.w, a.h) || a.key - b.key);
+  for (const it of order) {
+    let best: { f: Free; w: number; h: number; turned: boolean; short: number; long: number } | null = null;
+    const tryFit = (w: number, h: number, turned: boolean) => {
+      for (const f of free) {
+        if (w <= f.w + 1e-9 && h <= f.h + 1e-9) {
+          const short = Math.min(f.w - w, f.h - h), long = Math.max(f.w - w, f.h - h);
+          // Bottom-left tie break keeps layouts compact and stable.
+          if (!best || short < best.short - 1e-9 || (Math.abs(short - best.short) <= 1e-9 && (long < best.long - 1e-9 || (Math.abs(long - best.long) <= 1e-9 && (f.y < best.f.y || (f.y === best.f.y && f.x < best.f.x)))))) {
+            best = { f, w, h, turned, short, long };
+          }
+        }
+      }
+    };
+    tryFit(it.w + spacing, it.h + spacing, false);
+    if (it.canTurn && Math.abs(it.w - it.h) > 1e-9) tryFit(it.h + spacing, it.w + spacing, true);
+    if (!best) return null;
+    const b: { f: Free; w: number; h: number; turned: boolean } = best;
+    const placed = { x: b.f.x, y: b.f.y, w: b.w, h: b.h };
+    out.push({ key: it.key, x: placed.x, y: placed.y, w: b.w - spacing, h: b.h - spacing, turned: b.turned });
+    // Split every free rectangle the new one overlaps, then drop free rectangles inside others.
+    const next: Free[] = [];
+    for (const f of free) {
+      if (placed.x >= f.x + f.w || placed.x + placed.w <= f.x || placed.y >= f.y + f.h || placed.y + placed.h <= f.y) {
+        next.push(f);
+        continue;
+      }
+      if (placed.x > f.x) next.push({ x: f.x, y: f.y, w: placed.x - f.x, h: f.h });
+      if (placed.x + placed.w < f.x + f.w) next.push({ x: placed.x + placed.w, y: f.y, w: f.x + f.w - placed.x - placed.w, h: f.h });
+      if (placed.y > f.y) next.push({ x: f.x, y: f.y, w: f.w, h: placed.y - f.y });
+      if (placed.y + placed.h < f.y + f.h) next.push({ x: f.x, y: placed.y + placed.h, w: f.w, h: f.y + f.h - placed.y - placed.h });
+    }
+    free = next.filter((a, i) => !next.some((b2, j) => j !== i && contains(b2, a) && (!contains(a, b2) || j < i)));
+  }
+  return out;
+}
+
+function contains(a: Free, b: Free): boolean {
+  return b.x >= a.x - 1e-9 && b.y >= a.y - 1e-9 && b.x + b.w <= a.x + a.w + 1e-9 && b.y + b.h <= a.y + a.h + 1e-9;
+}
+
+export type Arrangement = { packed: Packed[]; width: number; height: number };
+
+/**
+ * Find a compact arrangement inside at most maxW × maxH: pack into strips of several widths and keep
+ * the one whose bounding box has the least area (with a mild preference for square), since a
+ * smaller slab prints faster and warps less. `square` asks for aspect ≈ 1 (for a disc slab).
+ */
+export function arrange(items: PackItem[], maxW: number, maxH: number, spacing: number, square = false): Arrangement | null {
+  if (items.length === 0) return { packed: [], width: 0, height: 0 };
+  const area = items.reduce((s, i) => s + (i.w + spacing) * (i.h + spacing), 0);
+  const minSide = Math.max(...items.map((i) => (i.canTurn ? Math.min(i.w, i.h) : i.w)));
+  const lo = Math.max(minSide, Math.min(maxW, Math.sqrt(area) * 0.7));
+  let best: (Arrangement & { score: number }) | null = null;
+  const steps = 24;
+  for (let k = 0; k <= steps; k++) {
+    const w = lo + ((maxW - lo) * k) / steps;
+    const packed = maxRectsPack(items, w, maxH, spacing);
+    if (!packed) continue;
+    const width = Math.max(...packed.map((p) => p.x + p.w));
+    const height = Math.max(...packed.map((p) => p.y + p.h));
+    const aspect = Math.max(width, height) / Math.max(1e-9, Math.min(width, height));
+    const score = square ? Math.max(width, height) ** 2 : width * height * (1 + 0.05 * (aspect - 1));
+    if (!best || score < best.score - 1e-9) best = { packed, width, height, score };
+  }
+  return best ? { packed: best.packed, width: best.width, height: best.height } : null;
+}
