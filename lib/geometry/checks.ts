@@ -57,16 +57,8 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     });
   }
 
-  // Pieces against the slab and each other.
-  const inner = scope.track(c.slab.offset(-o.slab.margin, "Round", 2, 48));
-  for (const p of c.pieces) {
-    const over = area(scope.track(p.shadow.subtract(c.slab)));
-    if (over > AREA_EPS) {
-      out.push({ severity: "error", code: "piece_over_edge", piece: p.number, message: `Piece ${p.number} (${p.name}) reaches over the slab's edge by ${r1(over)} mm².` });
-    } else if (area(scope.track(p.shadow.subtract(inner))) > AREA_EPS) {
-      out.push({ severity: "warning", code: "piece_in_margin", piece: p.number, message: `Piece ${p.number} (${p.name}) is closer than the ${o.slab.margin} mm margin to the slab's edge.` });
-    }
-  }
+  // The slab is always drawn around every piece and mark (with the margin), hand-placed ones too,
+  // so nothing can hang over its edge; what can happen is that it outgrows the bed.
   const bed = { minX: 0, minY: 0, maxX: o.layout.bed.width, maxY: o.layout.bed.depth };
   for (const p of c.pieces) {
     if (p.bounds.minX < bed.minX - 1e-6 || p.bounds.minY < bed.minY - 1e-6 || p.bounds.maxX > bed.maxX + 1e-6 || p.bounds.maxY > bed.maxY + 1e-6) {
@@ -118,9 +110,6 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
       if (area(scope.track(mk.cs.intersect(keepOut))) > AREA_EPS) {
         out.push({ severity: "error", code: "mark_collides", message: `The ${mk.kind === "number" ? mk.label : `text ${mk.label}`} runs under a piece or its outline; move it.` });
       }
-      if (area(scope.track(mk.cs.subtract(c.slab))) > AREA_EPS) {
-        out.push({ severity: "error", code: "mark_off_slab", message: `The ${mk.kind === "number" ? mk.label : `text ${mk.label}`} runs off the slab.` });
-      }
     }
     if (c.qr) {
       const s = c.qr.shape.sizeWithQuietZone;
@@ -128,9 +117,6 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
       const others = c.marks.length ? scope.track(CrossSection.union(c.marks.map((m) => m.cs))) : null;
       if (area(scope.track(zone.intersect(keepOut))) > AREA_EPS || (others && area(scope.track(zone.intersect(others))) > AREA_EPS)) {
         out.push({ severity: "error", code: "qr_quiet_zone", message: "Something lies in the QR code's quiet zone (4 modules all round, ISO/IEC 18004); scanners may not read it. Move the code or the pieces." });
-      }
-      if (area(scope.track(zone.subtract(c.slab))) > AREA_EPS) {
-        out.push({ severity: "error", code: "mark_off_slab", message: "The QR code (with its quiet zone) runs off the slab." });
       }
     }
   }
