@@ -101,6 +101,49 @@ describe("areas and volumes against handbook formulas", () => {
   });
 });
 
+describe("outlines", () => {
+  const inside = (x: number, y: number, poly: [number, number][]) => {
+    let c = false;
+    for (let i = 0, j = poly.length - 1; i < poly.length; j = i++) {
+      const [xi, yi] = poly[i]!, [xj, yj] = poly[j]!;
+      if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) c = !c;
+    }
+    return c;
+  };
+  /** Slab-top heights under each piece's footprint, from the STL alone. */
+  function heightsUnderPieces(r: ReturnType<typeof plate>) {
+    const slabOnly = new Uint8Array(84 + 50 * (r.bodies![0]!.mesh.triVerts.length / 3));
+    slabOnly.set(r.stl!.subarray(0, slabOnly.length));
+    new DataView(slabOnly.buffer).setUint32(80, r.bodies![0]!.mesh.triVerts.length / 3, true);
+    const map = rasterizeStl(slabOnly, 8, { minX: 0, minY: 0, maxX: r.layout!.slab.width, maxY: r.layout!.slab.depth });
+    const zs: number[] = [];
+    for (const p of r.pieces) {
+      for (let py = 0; py < map.height; py++) {
+        const y = map.originY + (map.height - 1 - py + 0.5) / map.pxPerMm;
+        for (let px = 0; px < map.width; px++) {
+          const x = map.originX + (px + 0.5) / map.pxPerMm;
+          if (p.outline.some((c) => inside(x, y, c))) zs.push(map.z[py * map.width + px]!);
+        }
+      }
+    }
+    return zs;
+  }
+
+  it("rings and numbers never reach under a piece: the slab top is whole beneath every footprint", () => {
+    const r = plate({ marks: { outlines: "ring", numbers: true } }, undefined, { formats: ["stl"] });
+    const zs = heightsUnderPieces(r);
+    expect(zs.length).toBeGreaterThan(1000);
+    expect(zs.reduce((a, b) => Math.min(a, b), Infinity)).toBeCloseTo(1.0, 5);
+  });
+
+  it("pockets lower each piece and keep the air gap above the pocket floor", () => {
+    const r = plate({ marks: { outlines: "pocket" } }, undefined, { formats: ["stl"] });
+    const zs = heightsUnderPieces(r);
+    expect(zs.reduce((a, b) => Math.max(a, b), -Infinity)).toBeCloseTo(1.0 - 0.4, 5); // the pocket floor, 0.4 mm down
+    for (const p of r.bodies!.slice(1)) expect(meshBounds(p.mesh).min[2] - (1.0 - 0.4)).toBeCloseTo(0.25, 5);
+  });
+});
+
 describe("layout", () => {
   /** Least distance between two polygons' outlines (independent of the kernel): point-to-segment. */
   function distance(a: [number, number][][], b: [number, number][][]): number {

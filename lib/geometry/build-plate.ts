@@ -32,6 +32,8 @@ export type BuildInput = {
   formats?: ("stl" | "3mf")[];
   title?: string;
   deflateRaw?: DeflateRaw;
+  /** For benchmarks: sees the slab and its cutters just before the one n-ary difference. */
+  hooks?: { beforeBooleans?: (slab: Manifold, cutters: Manifold[]) => void };
 };
 
 export type PlacedPiece = {
@@ -176,10 +178,13 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   const maxW = o.layout.bed.width - 2 * m;
   const maxH = o.layout.bed.depth - 2 * m - bandsH;
   const fixed = new Map((o.layout.placements ?? []).map((p) => [p.piece, p]));
-  const itemOf = (w: Work): PackItem => {
-    const rb = rotatedBounds(w.fp.hull, w.angle);
-    return { key: w.slot, w: rb.w + 2 * ext + gutter, h: Math.max(rb.h + 2 * ext, o.marks.numbers ? NUMBER_SIZE + 0.6 : 0), canTurn: true };
+  // A piece's rectangle holds its shadow, its ring and, on the left, its number; the packer may also
+  // take it turned a quarter (the gutter stays on the left, so that is a different size, not a swap).
+  const sizeAt = (w: Work, angle: number): [number, number] => {
+    const rb = rotatedBounds(w.fp.hull, angle);
+    return [rb.w + 2 * ext + gutter, Math.max(rb.h + 2 * ext, o.marks.numbers ? NUMBER_SIZE + 0.6 : 0)];
   };
+  const itemOf = (w: Work): PackItem => ({ key: w.slot, sizes: [sizeAt(w, w.angle), sizeAt(w, w.angle + 90)] });
   const auto = work.filter((w) => !fixed.has(w.slot));
   const manual = work.filter((w) => fixed.has(w.slot));
   for (const w of manual) {
@@ -194,7 +199,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     const manualMaxX = manual.length ? Math.max(...manual.map((w) => pieceBounds(w).maxX)) - m + spacing : 0;
     const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, o.slab.shape === "disc");
     if (!found || texts.some((t) => t.shape.bounds.maxX - t.shape.bounds.minX > maxW) || bandsW > maxW || maxH <= 0) {
-      const needW = Math.max(bandsW, ...auto.map((w) => Math.min(itemOf(w).w, itemOf(w).h)));
+      const needW = Math.max(bandsW, ...auto.map((w) => Math.min(...itemOf(w).sizes.map((d) => d[0]))));
       findings.push({
         severity: "error",
         code: "does_not_fit",
@@ -211,7 +216,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     const baseY = m + (bottom.h ? bottom.h + spacing : 0);
     for (const p of found.packed) {
       const w = work[p.key - 1]!;
-      if (p.turned) w.angle = (w.angle + 90) % 360;
+      if (p.choice === 1) w.angle = (w.angle + 90) % 360;
       const rb = rotatedBounds(w.fp.hull, w.angle);
       w.rect = { ...p, x: p.x + m + manualMaxX, y: p.y + baseY };
       w.x = w.rect.x + gutter + ext - rb.minX;
@@ -402,6 +407,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     const cs = scope.track(CrossSection.union(list));
     cutters.push(scope.track(scope.track(cs.extrude(depth + overshoot)).translate(0, 0, o.slab.thickness - depth)));
   }
+  input.hooks?.beforeBooleans?.(slabBase, cutters);
   let slab = cutters.length ? scope.track(Manifold.difference([slabBase, ...cutters])) : slabBase;
   const adds: Manifold[] = [];
   for (const [depth, list] of emboss) {

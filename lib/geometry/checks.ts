@@ -160,20 +160,26 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     out.push({ severity: "info", code: "gap_not_layers", message: `The ${r2(o.slab.gap)} mm gap is not a whole number of ${r2(o.layerHeight)} mm layers; keep it in the slicer (support gap settings) rather than letting it round away.` });
   }
 
-  // Small parts (informational: only matters for kits that may reach children).
+  // Small parts (informational: only matters for kits that may reach children). One finding for the plate.
+  const small: { name: string; dims: number[]; numbers: number[] }[] = [];
   for (const s of c.solids) {
     const b = s.solid.boundingBox();
-    const [a, m, l] = [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]].sort((x, y) => x - y) as [number, number, number];
-    if (m <= SMALL_PARTS.diameter && l <= SMALL_PARTS.depth) {
-      const numbers = c.pieces.filter((p) => p.partId === s.partId).map((p) => p.number);
-      out.push({
-        severity: "info",
-        code: "small_part",
-        pieces: numbers,
-        piece: numbers[0],
-        message: `${s.name} (${r1(a)} × ${r1(m)} × ${r1(l)} mm) may fit the small-parts cylinder (US 16 CFR 1501): not for children under 3; ages 3–6 need a choking-hazard warning. Check your local rules.`,
-      });
+    const dims = [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]].sort((x, y) => x - y);
+    // It may fit if its two larger sizes fit the opening and the depth (a conservative reading of the test).
+    if (dims[1]! <= SMALL_PARTS.diameter && dims[2]! <= SMALL_PARTS.depth) {
+      small.push({ name: s.name, dims, numbers: c.pieces.filter((p) => p.partId === s.partId).map((p) => p.number) });
     }
+  }
+  if (small.length) {
+    const list = small.map((s) => `${s.name} (${s.dims.map(r1).join(" × ")} mm)`).join(", ");
+    const pieces = small.flatMap((s) => s.numbers).sort((a, b) => a - b);
+    out.push({
+      severity: "info",
+      code: "small_part",
+      pieces,
+      piece: pieces[0],
+      message: `${list} may fit the small-parts cylinder (US 16 CFR 1501): not for children under 3, and ages 3–6 need a choking-hazard warning. Check the rules where you sell.`,
+    });
   }
 
   for (const name of new Set(c.unfilled)) {

@@ -3,8 +3,9 @@
  * (J. Jylänki, "A Thousand Ways to Pack the Bin", 2010), allowing quarter turns. Deterministic: the
  * same input gives the same layout. Spacing is kept by growing every rectangle (and the bin) by it.
  */
-export type PackItem = { key: number; w: number; h: number; canTurn: boolean };
-export type Packed = { key: number; x: number; y: number; w: number; h: number; turned: boolean };
+/** A rectangle to place, with one or more sizes it may take (e.g. as it is, and turned a quarter). */
+export type PackItem = { key: number; sizes: [number, number][] };
+export type Packed = { key: number; x: number; y: number; w: number; h: number; choice: number };
 
 type Free = { x: number; y: number; w: number; h: number };
 
@@ -13,26 +14,26 @@ export function maxRectsPack(items: PackItem[], binW: number, binH: number, spac
   let free: Free[] = [{ x: 0, y: 0, w: W, h: H }];
   const out: Packed[] = [];
   // Largest first; ties broken by key so the order never depends on sort stability.
-  const order = [...items].sort((a, b) => b.w * b.h - a.w * a.h || Math.max(b.w, b.h) - Math.max(a.w, a.h) || a.key - b.key);
+  const dims = (i: PackItem) => i.sizes[0]!;
+  const order = [...items].sort((a, b) => dims(b)[0] * dims(b)[1] - dims(a)[0] * dims(a)[1] || Math.max(...dims(b)) - Math.max(...dims(a)) || a.key - b.key);
   for (const it of order) {
-    let best: { f: Free; w: number; h: number; turned: boolean; short: number; long: number } | null = null;
-    const tryFit = (w: number, h: number, turned: boolean) => {
+    let best: { f: Free; w: number; h: number; choice: number; short: number; long: number } | null = null;
+    const tryFit = (w: number, h: number, choice: number) => {
       for (const f of free) {
         if (w <= f.w + 1e-9 && h <= f.h + 1e-9) {
           const short = Math.min(f.w - w, f.h - h), long = Math.max(f.w - w, f.h - h);
           // Bottom-left tie break keeps layouts compact and stable.
           if (!best || short < best.short - 1e-9 || (Math.abs(short - best.short) <= 1e-9 && (long < best.long - 1e-9 || (Math.abs(long - best.long) <= 1e-9 && (f.y < best.f.y || (f.y === best.f.y && f.x < best.f.x)))))) {
-            best = { f, w, h, turned, short, long };
+            best = { f, w, h, choice, short, long };
           }
         }
       }
     };
-    tryFit(it.w + spacing, it.h + spacing, false);
-    if (it.canTurn && Math.abs(it.w - it.h) > 1e-9) tryFit(it.h + spacing, it.w + spacing, true);
+    it.sizes.forEach(([w, h], choice) => tryFit(w + spacing, h + spacing, choice));
     if (!best) return null;
-    const b: { f: Free; w: number; h: number; turned: boolean } = best;
+    const b: { f: Free; w: number; h: number; choice: number } = best;
     const placed = { x: b.f.x, y: b.f.y, w: b.w, h: b.h };
-    out.push({ key: it.key, x: placed.x, y: placed.y, w: b.w - spacing, h: b.h - spacing, turned: b.turned });
+    out.push({ key: it.key, x: placed.x, y: placed.y, w: b.w - spacing, h: b.h - spacing, choice: b.choice });
     // Split every free rectangle the new one overlaps, then drop free rectangles inside others.
     const next: Free[] = [];
     for (const f of free) {
@@ -63,8 +64,8 @@ export type Arrangement = { packed: Packed[]; width: number; height: number };
  */
 export function arrange(items: PackItem[], maxW: number, maxH: number, spacing: number, square = false): Arrangement | null {
   if (items.length === 0) return { packed: [], width: 0, height: 0 };
-  const area = items.reduce((s, i) => s + (i.w + spacing) * (i.h + spacing), 0);
-  const minSide = Math.max(...items.map((i) => (i.canTurn ? Math.min(i.w, i.h) : i.w)));
+  const area = items.reduce((s, i) => s + (i.sizes[0]![0] + spacing) * (i.sizes[0]![1] + spacing), 0);
+  const minSide = Math.max(...items.map((i) => Math.min(...i.sizes.map((d) => d[0]))));
   const lo = Math.max(minSide, Math.min(maxW, Math.sqrt(area) * 0.7));
   let best: (Arrangement & { score: number }) | null = null;
   const steps = 24;
