@@ -348,6 +348,15 @@ describe("one fixture per finding code", () => {
   }
 });
 
+describe("placeholders", () => {
+  it("fills {date} with today's date unless given, and the caller's values otherwise", () => {
+    const r = plate({ marks: { text: [{ value: "{date}" }, { value: "{order} for {customer}" }] } }, undefined, { variables: { order: "10482", customer: "Sam" } });
+    expect(r.layout!.marks.map((m) => m.value)).toEqual([new Date().toISOString().slice(0, 10), "10482 for Sam"]);
+    const fixed = plate({ marks: { text: [{ value: "{date}" }] } }, undefined, { variables: { date: "1 Dec" } });
+    expect(fixed.layout!.marks[0]!.value).toBe("1 Dec");
+  });
+});
+
 describe("files and memory", () => {
   it("writes STL and 3MF, checked as closed, and frees every kernel object", () => {
     const before = kernel.live();

@@ -109,7 +109,8 @@ export function buildPlate(kernel: Kernel, input: BuildInput): PlateResult {
     t0 = t;
   };
   const o = parseOptions(input.options ?? {});
-  const vars = input.variables ?? {};
+  // {date} is today's date unless the caller fills it (ISO 8601, unambiguous on a label).
+  const vars = { date: new Date().toISOString().slice(0, 10), ...input.variables };
   const scope = kernel.scope();
   try {
     return build(kernel, scope, input, o, vars, lap, timings);
