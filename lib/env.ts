@@ -8,6 +8,13 @@ import { databaseUrl } from "@/scripts/db-url.mjs";
 const schema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   DATABASE_URL: z.string().url().default(databaseUrl()),
+  /** Where links in e-mails point. */
+  AUTH_URL: z.string().url().default("http://localhost:3000"),
+  /** Outgoing mail. In development and tests this is our fake SMTP server on loopback. */
+  SMTP_URL: z.string().default("smtp://127.0.0.1:2525"),
+  MAIL_FROM: z.string().default("Slabwright <no-reply@slabwright.example>"),
+  /** "1" when the local fake SMTP server catches mail (development, tests): enables the outbox page. */
+  SLAB_FAKE_SMTP: z.enum(["0", "1"]).default("0"),
   STORAGE_DRIVER: z.enum(["disk", "s3"]).default("disk"),
   STORAGE_DIR: z.string().default(".data/blobs"),
   S3_ENDPOINT: z.string().url().optional(),

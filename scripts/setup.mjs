@@ -141,8 +141,12 @@ export function ensureBuild() {
   fs.writeFileSync(stamp, `${want}\n`);
 }
 
-export function appEnv({ port, dbName }) {
+export function appEnv({ port, dbName, smtpPort = 2525 }) {
   return {
+    SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}`,
+    SLAB_SMTP_PORT: String(smtpPort),
+    // The fake SMTP server catches mail unless a real relay is configured.
+    SLAB_FAKE_SMTP: process.env.SMTP_URL ? "0" : "1",
     SLAB_DB_NAME: dbName,
     DATABASE_URL: process.env.DATABASE_URL ?? databaseUrl().replace(/\/[^/]+$/, `/${dbName}`),
     AUTH_SECRET: authSecret(),
@@ -202,6 +206,12 @@ export async function waitForHttp(url, timeoutMs = 60_000) {
     await new Promise((r) => setTimeout(r, 250));
   }
   return false;
+}
+
+/** Our fake SMTP server (development and tests), unless SMTP_URL names a real relay. */
+export function startFakeSmtp(env) {
+  if (process.env.SMTP_URL) return null;
+  return spawn(bin("tsx"), ["scripts/fake-smtp.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
 }
 
 export function spawnChild(cmd, args, env) {

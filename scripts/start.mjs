@@ -16,6 +16,7 @@ import {
   log,
   migrateAndSeed,
   spawnChild,
+  startFakeSmtp,
   startPostgres,
   stopPostgres,
   takeLock,
@@ -45,6 +46,7 @@ if (!(await portFree(port))) {
 ensureDependencies();
 const startedPg = startPostgres();
 let child;
+let smtp = null;
 let stopping = false;
 
 function shutdown(code) {
@@ -75,6 +77,7 @@ try {
   const env = appEnv({ port, dbName });
   migrateAndSeed(env);
   if (!dev) ensureBuild();
+  smtp = startFakeSmtp(env);
 
   child = spawnChild(bin("next"), [dev ? "dev" : "start", "-H", "127.0.0.1", "-p", String(port)], env);
   child.on("exit", (code) => {
@@ -96,6 +99,7 @@ try {
       "Demo sign-ins (Marrowby Tabletop Co.):",
       ...creds.users.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(26)} ${u.password}`),
       `Demo API key (every scope): ${creds.apiKey}`,
+      env.SLAB_FAKE_SMTP === "1" ? `Mail is caught by a local fake server: owners read it at ${url}/settings/outbox` : "",
       "",
       "Ctrl-C stops the app and the database.",
       "",

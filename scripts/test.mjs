@@ -14,6 +14,7 @@ import {
   log,
   migrateAndSeed,
   run,
+  startFakeSmtp,
   startPostgres,
   stopPostgres,
   takeLock,
@@ -38,7 +39,7 @@ fs.mkdirSync(resultsDir, { recursive: true });
 const port = Number(process.env.SLAB_TEST_PORT ?? 3100);
 const dbName = "slabwright_test";
 const env = {
-  ...appEnv({ port, dbName }),
+  ...appEnv({ port, dbName, smtpPort: Number(process.env.SLAB_TEST_SMTP_PORT ?? 2526) }),
   NODE_ENV: "test",
   SLAB_CREDENTIALS_FILE: path.join(DATA, "demo-credentials.test.json"),
   SLAB_TEST_PORT: String(port),
@@ -56,9 +57,12 @@ function readJson(file) {
   }
 }
 
+let smtp = null;
 try {
   ensureDatabase(dbName);
   migrateAndSeed(env);
+  run(bin("tsx"), ["scripts/reset-test-state.ts"], { env });
+  smtp = startFakeSmtp(env);
 
   if (want("unit") || want("integration")) {
     const projects = ["unit", "integration"].filter(want).flatMap((p) => ["--project", p]);
@@ -92,6 +96,7 @@ try {
     }
   }
 } finally {
+  smtp?.kill("SIGTERM");
   if (startedPg) stopPostgres();
   lock.release();
 }

@@ -1,10 +1,9 @@
 "use server";
 
-import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
 import { z } from "zod";
 import { signOut } from "@/lib/auth/config";
-import { loadCaller, WORKSPACE_COOKIE } from "@/lib/auth/guards";
+import { loadCaller, setActiveWorkspace } from "@/lib/auth/guards";
 
 const switchSchema = z.object({ workspaceId: z.string().uuid() });
 
@@ -14,7 +13,7 @@ export async function switchWorkspace(form: FormData): Promise<void> {
   const caller = await loadCaller();
   if (!caller) redirect("/sign-in");
   if (parsed.success && caller.workspaces.some((w) => w.id === parsed.data.workspaceId)) {
-    (await cookies()).set(WORKSPACE_COOKIE, parsed.data.workspaceId, { httpOnly: true, sameSite: "lax", path: "/", secure: process.env.AUTH_URL?.startsWith("https://") ?? false });
+    await setActiveWorkspace(parsed.data.workspaceId);
   }
   redirect("/parts");
 }

@@ -1,7 +1,7 @@
 import "server-only";
 import { and, asc, count, desc, eq, isNull, max, or, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, memberships, parts, plates, templates, users } from "@/db/schema";
+import { kitParts, kits, parts, plates, templates, users } from "@/db/schema";
 import type { Caller } from "@/lib/auth/guards";
 
 // Every read is scoped to the caller's active workspace; there is no query here without that filter.
@@ -70,15 +70,6 @@ export async function listPlates(caller: Caller) {
     .where(eq(plates.workspaceId, caller.workspace.id))
     .orderBy(desc(plates.createdAt))
     .limit(100);
-}
-
-export async function listMembers(caller: Caller) {
-  return db()
-    .select({ userId: users.id, name: users.name, email: users.email, role: memberships.role, since: memberships.createdAt })
-    .from(memberships)
-    .innerJoin(users, eq(users.id, memberships.userId))
-    .where(eq(memberships.workspaceId, caller.workspace.id))
-    .orderBy(asc(users.email));
 }
 
 export async function countParts(caller: Caller): Promise<number> {

@@ -2,3 +2,4 @@ export * from "./auth";
 export * from "./workspaces";
 export * from "./parts";
 export * from "./plates";
+export * from "./accounts";

@@ -2,52 +2,88 @@ import "server-only";
 import { and, asc, eq } from "drizzle-orm";
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
+import { z } from "zod";
 import { db } from "@/db";
 import { memberships, users, workspaces, type Role } from "@/db/schema";
+import type { ActionResult } from "@/lib/validation/accounts";
 import { auth } from "./config";
+import { AccessError, forbidden, notSignedIn } from "./errors";
+import { can, type Permission } from "./permissions";
 
 export const WORKSPACE_COOKIE = "sw_workspace";
 
+export type SessionUser = { id: string; email: string; name: string | null };
+
 export type Caller = {
-  user: { id: string; email: string; name: string | null };
+  user: SessionUser;
   workspace: { id: string; name: string; slug: string };
   role: Role;
   workspaces: { id: string; name: string; role: Role }[];
 };
 
-/**
- * The signed-in person and their active workspace, read from the database on every call: a removed
- * member or a deleted user is refused at once, whatever the session token says.
- * Returns null when not signed in or a member of no workspace.
- */
-export async function loadCaller(): Promise<Caller | null> {
+/** The signed-in person, checked against the database (a deleted account is signed out at once). */
+export async function loadSessionUser(): Promise<SessionUser | null> {
   const session = await auth();
   const userId = session?.user?.id;
   if (!userId) return null;
-  const [user] = await db().select().from(users).where(eq(users.id, userId)).limit(1);
+  const [user] = await db().select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.id, userId)).limit(1);
+  return user ?? null;
+}
+
+/**
+ * The signed-in person and their active workspace, read from the database on every call: a removed
+ * member is refused at once, whatever the session token says. Null when not signed in or a member of
+ * no workspace.
+ */
+export async function loadCaller(): Promise<Caller | null> {
+  const user = await loadSessionUser();
   if (!user) return null;
+  return callerFor(user, (await cookies()).get(WORKSPACE_COOKIE)?.value);
+}
+
+export async function callerFor(user: SessionUser, wantedWorkspace?: string): Promise<Caller | null> {
   const rows = await db()
     .select({ id: workspaces.id, name: workspaces.name, slug: workspaces.slug, role: memberships.role })
     .from(memberships)
     .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
-    .where(eq(memberships.userId, userId))
+    .where(eq(memberships.userId, user.id))
     .orderBy(asc(workspaces.name));
   if (rows.length === 0) return null;
-  const wanted = (await cookies()).get(WORKSPACE_COOKIE)?.value;
-  const active = rows.find((r) => r.id === wanted) ?? rows[0]!;
+  const active = rows.find((r) => r.id === wantedWorkspace) ?? rows[0]!;
   return {
-    user: { id: user.id, email: user.email, name: user.name },
+    user,
     workspace: { id: active.id, name: active.name, slug: active.slug },
     role: active.role,
     workspaces: rows.map((r) => ({ id: r.id, name: r.name, role: r.role })),
   };
 }
 
-/** For pages: the caller, or a redirect to sign-in. */
+/** For pages: the caller, or off to sign in (or to set up a first workspace). */
 export async function requireCaller(): Promise<Caller> {
-  const caller = await loadCaller();
-  if (!caller) redirect("/sign-in");
+  const user = await loadSessionUser();
+  if (!user) redirect("/sign-in");
+  const caller = await callerFor(user, (await cookies()).get(WORKSPACE_COOKIE)?.value);
+  if (!caller) redirect("/welcome");
   return caller;
+}
+
+/** For pages that need a permission: the caller, or null with the reason to show. */
+export async function requirePermission(permission: Permission): Promise<{ caller: Caller; allowed: boolean }> {
+  const caller = await requireCaller();
+  return { caller, allowed: can(caller.role, permission) };
+}
+
+/** For code paths that throw: the caller allowed to do `permission`, or an AccessError. */
+export async function authorize(permission: Permission, what: string): Promise<Caller> {
+  const caller = await loadCaller();
+  if (!caller) throw notSignedIn();
+  if (!can(caller.role, permission)) throw forbidden(what);
+  return caller;
+}
+
+/** Make a workspace the active one for this browser (the membership is still checked on every request). */
+export async function setActiveWorkspace(workspaceId: string): Promise<void> {
+  (await cookies()).set(WORKSPACE_COOKIE, workspaceId, { httpOnly: true, sameSite: "lax", path: "/", secure: process.env.AUTH_URL?.startsWith("https://") ?? false });
 }
 
 /** Membership check for one workspace by id, straight from the database. */
@@ -58,4 +94,41 @@ export async function roleIn(workspaceId: string, userId: string): Promise<Role 
     .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
     .limit(1);
   return row?.role ?? null;
+}
+
+/**
+ * Server actions: validate the input with the shared schema, then load the caller and check the
+ * permission, then act. Field errors come back per field; access problems and unexpected failures
+ * come back as a message (unexpected ones are logged with their cause, never shown verbatim).
+ */
+export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Permission | null, what: string, fn: (input: z.output<S>, caller: Caller) => Promise<ActionResult<R>>) {
+  return async (input: z.input<S>): Promise<ActionResult<R>> => {
+    const parsed = schema.safeParse(input);
+    if (!parsed.success) {
+      return { ok: false, message: "Check the marked fields.", fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]> };
+    }
+    const caller = await loadCaller();
+    if (!caller) return { ok: false, code: "unauthorized", message: "Your session has ended; sign in again." };
+    if (permission && !can(caller.role, permission)) return { ok: false, code: "forbidden", message: forbidden(what).message };
+    try {
+      return await fn(parsed.data, caller);
+    } catch (err) {
+      if (err instanceof AccessError) return { ok: false, code: err.code, message: err.message };
+      if (err instanceof UserError) return { ok: false, code: err.code, message: err.message, fieldErrors: err.field ? { [err.field]: [err.message] } : undefined };
+      console.error(`[action] ${what} failed`, err);
+      return { ok: false, code: "internal", message: "Something went wrong and nothing was changed. Try again." };
+    }
+  };
+}
+
+/** A refusal a person can act on (the last owner, an already-used link), optionally tied to a field. */
+export class UserError extends Error {
+  constructor(
+    readonly code: string,
+    message: string,
+    readonly field?: string,
+  ) {
+    super(message);
+    this.name = "UserError";
+  }
 }

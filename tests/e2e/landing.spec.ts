@@ -11,29 +11,31 @@ test("the landing page says what the product does and leads to sign-in", async (
   await expect(page.getByText("Before you print")).toBeVisible(); // the safety cautions
   await page.getByRole("link", { name: "Sign in" }).first().click();
   await expect(page).toHaveURL(/\/sign-in$/);
-  await expect(page.getByLabel("E-mail")).toBeVisible();
-  await expect(page.getByLabel("Password")).toBeVisible();
+  await expect(page.getByRole("form", { name: "Sign in with a password" }).getByLabel("Password")).toBeVisible();
+  await expect(page.getByRole("form", { name: "Sign in by e-mail link" })).toBeVisible();
 });
 
 test("a wrong password is refused with a message at the form, a bad e-mail at the field", async ({ page }) => {
   await page.goto("/sign-in");
-  await page.getByLabel("E-mail").fill("not-an-email");
-  await page.getByLabel("Password").fill("x");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.locator("#email-error")).toContainText("e-mail address");
-  await page.getByLabel("E-mail").fill(creds().users[0]!.email);
-  await page.getByLabel("Password").fill("definitely-wrong");
-  await page.getByRole("button", { name: "Sign in" }).click();
-  await expect(page.getByTestId("form-message")).toContainText("do not match");
+  const form = page.getByRole("form", { name: "Sign in with a password" });
+  await form.getByLabel("E-mail").fill("not-an-email");
+  await form.getByLabel("Password").fill("x");
+  await form.getByRole("button", { name: "Sign in" }).click();
+  await expect(form.getByTestId("email-error")).toContainText("e-mail address");
+  await form.getByLabel("E-mail").fill(creds().users[0]!.email);
+  await form.getByLabel("Password").fill("definitely-wrong");
+  await form.getByRole("button", { name: "Sign in" }).click();
+  await expect(form.getByTestId("form-message")).toContainText("do not match");
 });
 
 test("the demo owner signs in, sees the demo parts and kit, and signs out", async ({ page }) => {
   const owner = creds().users.find((u) => u.role === "owner")!;
   await page.goto("/parts");
   await expect(page).toHaveURL(/\/sign-in$/); // signed-out visitors are sent to sign in
-  await page.getByLabel("E-mail").fill(owner.email);
-  await page.getByLabel("Password").fill(owner.password);
-  await page.getByRole("button", { name: "Sign in" }).click();
+  const form = page.getByRole("form", { name: "Sign in with a password" });
+  await form.getByLabel("E-mail").fill(owner.email);
+  await form.getByLabel("Password").fill(owner.password);
+  await form.getByRole("button", { name: "Sign in" }).click();
   await expect(page).toHaveURL(/\/parts$/);
   await expect(page.getByTestId("whoami")).toContainText("owner");
   await expect(page.getByRole("cell", { name: "Harbour tile" })).toBeVisible();

@@ -25,7 +25,7 @@ export function EmptyState({ message, action }: { message: string; action?: Reac
 export function DataTable({ head, children, label }: { head: string[]; children: ReactNode; label: string }) {
   return (
     <div className="card overflow-x-auto">
-      <table className="w-full text-left text-sm" aria-label={label}>
+      <table className="w-full text-left text-sm [&_td]:whitespace-nowrap" aria-label={label}>
         <thead className="border-b border-hairline text-xs uppercase tracking-wide text-muted">
           <tr>
             {head.map((h) => (

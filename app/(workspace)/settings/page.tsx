@@ -1,27 +1,22 @@
 import type { Metadata } from "next";
-import { listMembers } from "@/db/queries/library";
+import { listMembers, listPendingInvitations } from "@/db/queries/accounts";
 import { requireCaller } from "@/lib/auth/guards";
-import { when } from "@/lib/format";
-import { DataTable, PageHeader } from "../_components/page-header";
+import { can } from "@/lib/auth/permissions";
+import { People } from "./_components/people";
 
-export const metadata: Metadata = { title: "Settings" };
+export const metadata: Metadata = { title: "People" };
 
 export default async function SettingsPage() {
   const caller = await requireCaller();
+  const manage = can(caller.role, "members:manage");
   const members = await listMembers(caller);
+  const pending = manage ? await listPendingInvitations(caller) : [];
   return (
-    <>
-      <PageHeader title="Settings" lead={`${caller.workspace.name} · people and their roles`} />
-      <DataTable label="Members" head={["Person", "E-mail", "Role", "Member since"]}>
-        {members.map((m) => (
-          <tr key={m.userId}>
-            <td className="px-3 py-2 font-bold">{m.name ?? "—"}</td>
-            <td className="px-3 py-2">{m.email}</td>
-            <td className="px-3 py-2 capitalize">{m.role}</td>
-            <td className="px-3 py-2 text-muted">{when(m.since)}</td>
-          </tr>
-        ))}
-      </DataTable>
-    </>
+    <People
+      me={caller.user.id}
+      manage={manage}
+      members={members.map((m) => ({ ...m, since: m.since.toISOString() }))}
+      pending={pending.map((p) => ({ id: p.id, email: p.email, role: p.role, expiresAt: p.expiresAt.toISOString() }))}
+    />
   );
 }

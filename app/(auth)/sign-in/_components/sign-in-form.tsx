@@ -1,43 +1,36 @@
 "use client";
 
-import { useActionState } from "react";
-import { signInWithPassword, type SignInState } from "../actions";
+import Link from "next/link";
+import { Field, FormMessage, Submit, useServerForm } from "@/app/_components/form";
+import { magicLinkSchema, signInSchema } from "@/lib/validation/accounts";
+import { sendSignInLink, signInWithPassword } from "../../actions";
 
-export function SignInForm() {
-  const [state, action, pending] = useActionState<SignInState, FormData>(signInWithPassword, { ok: false });
+export function SignInForm({ next, email }: { next?: string; email?: string }) {
+  const pw = useServerForm(signInSchema, (v) => signInWithPassword({ ...v, next }), { email: email ?? "", password: "" });
+  const link = useServerForm(magicLinkSchema, (v) => sendSignInLink({ ...v, next }), { email: email ?? "" });
   return (
-    <form action={action} className="card space-y-4 p-6" noValidate>
-      {state.message ? (
-        <p className="rounded-card border border-finding-error/40 bg-finding-error/5 px-3 py-2 text-sm text-finding-error" data-testid="form-message">
-          <span aria-hidden="true">✕ </span>
-          {state.message}
-        </p>
-      ) : null}
-      <div>
-        <label htmlFor="email" className="block text-sm font-bold">
-          E-mail
-        </label>
-        <input id="email" name="email" type="email" autoComplete="email" className="field-input mt-1" defaultValue={state.values?.email} aria-invalid={Boolean(state.fieldErrors?.email)} aria-describedby="email-error" />
-        {state.fieldErrors?.email ? (
-          <p id="email-error" className="mt-1 text-sm text-finding-error">
-            {state.fieldErrors.email[0]}
-          </p>
-        ) : null}
-      </div>
-      <div>
-        <label htmlFor="password" className="block text-sm font-bold">
-          Password
-        </label>
-        <input id="password" name="password" type="password" autoComplete="current-password" className="field-input mt-1" aria-invalid={Boolean(state.fieldErrors?.password)} aria-describedby="password-error" />
-        {state.fieldErrors?.password ? (
-          <p id="password-error" className="mt-1 text-sm text-finding-error">
-            {state.fieldErrors.password[0]}
-          </p>
-        ) : null}
-      </div>
-      <button type="submit" className="btn-primary w-full" disabled={pending}>
-        {pending ? "Signing in…" : "Sign in"}
-      </button>
-    </form>
+    <div className="space-y-4">
+      <form onSubmit={pw.onSubmit} className="card space-y-4 p-6" noValidate aria-label="Sign in with a password">
+        <FormMessage message={pw.message} />
+        <Field form={pw.form} name="email" label="E-mail" type="email" autoComplete="email" />
+        <Field form={pw.form} name="password" label="Password" type="password" autoComplete="current-password" />
+        <div className="flex flex-wrap items-center justify-between gap-3">
+          <Submit pending={pw.pending} pendingText="Signing in…">
+            Sign in
+          </Submit>
+          <Link href="/reset-password" className="text-sm text-accent hover:underline">
+            Forgot your password?
+          </Link>
+        </div>
+      </form>
+      <form onSubmit={link.onSubmit} className="card space-y-3 p-6" noValidate aria-label="Sign in by e-mail link">
+        <p className="text-sm text-muted">No password? We can e-mail you a link that signs you in once.</p>
+        <FormMessage message={link.message} />
+        <Field form={link.form} name="email" label="E-mail for the link" type="email" autoComplete="email" />
+        <button type="submit" className="btn-quiet" disabled={link.pending}>
+          {link.pending ? "Sending…" : "E-mail me a sign-in link"}
+        </button>
+      </form>
+    </div>
   );
 }

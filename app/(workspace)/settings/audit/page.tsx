@@ -1,0 +1,56 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { listAudit } from "@/db/queries/accounts";
+import { requirePermission } from "@/lib/auth/guards";
+import { when } from "@/lib/format";
+import { DataTable } from "../../_components/page-header";
+
+export const metadata: Metadata = { title: "Audit log" };
+
+const LABEL: Record<string, string> = {
+  sign_in: "signed in",
+  sign_in_failed: "failed to sign in",
+  sign_up: "created an account",
+  password_reset_requested: "asked for a password reset",
+  password_reset: "reset the password",
+  invitation_sent: "invited",
+  invitation_revoked: "withdrew the invitation of",
+  invitation_accepted: "accepted an invitation",
+  role_changed: "changed the role of",
+  member_removed: "removed",
+  workspace_created: "created the workspace",
+  api_key_created: "created the API key",
+  api_key_revoked: "revoked the API key",
+};
+
+export default async function AuditPage({ searchParams }: { searchParams: Promise<{ page?: string }> }) {
+  const { caller, allowed } = await requirePermission("audit:view");
+  if (!allowed) return <p className="card p-4 text-sm">Only the workspace&apos;s owners can read the audit log.</p>;
+  const page = Math.max(1, Number.parseInt((await searchParams).page ?? "1", 10) || 1);
+  const { rows, pages, total } = await listAudit(caller, page);
+  return (
+    <div className="space-y-3">
+      <p className="text-sm text-muted">{total} events, newest first.</p>
+      <DataTable label="Audit log" head={["When", "Who", "What", "From"]}>
+        {rows.map((r) => (
+          <tr key={r.id}>
+            <td className="px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
+            <td className="px-3 py-2">{r.actorName ?? r.actorUserEmail ?? r.actorEmail ?? "—"}</td>
+            <td className="px-3 py-2">
+              {LABEL[r.action] ?? r.action} {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? <strong>{r.target}</strong> : null}
+              {r.details && "from" in r.details ? ` (${String(r.details.from)} → ${String(r.details.to)})` : ""}
+            </td>
+            <td className="px-3 py-2 font-mono text-xs text-muted">{r.ip ?? ""}</td>
+          </tr>
+        ))}
+      </DataTable>
+      <nav className="flex items-center gap-3 text-sm" aria-label="Pages">
+        {page > 1 ? <Link className="btn-quiet px-3 py-1" href={`?page=${page - 1}`}>Newer</Link> : null}
+        <span className="text-muted">
+          Page {page} of {pages}
+        </span>
+        {page < pages ? <Link className="btn-quiet px-3 py-1" href={`?page=${page + 1}`}>Older</Link> : null}
+      </nav>
+    </div>
+  );
+}

@@ -1,0 +1,43 @@
+import type { Metadata } from "next";
+import { listOutbox } from "@/db/queries/accounts";
+import { requirePermission } from "@/lib/auth/guards";
+import { env } from "@/lib/env";
+import { when } from "@/lib/format";
+
+export const metadata: Metadata = { title: "Outbox" };
+export const dynamic = "force-dynamic";
+
+/** The demo's caught mail, so a person trying Slabwright can click sign-in and invitation links. */
+export default async function OutboxPage() {
+  const { allowed } = await requirePermission("members:manage");
+  if (!allowed || env().SLAB_FAKE_SMTP !== "1") return <p className="card p-4 text-sm">The outbox exists only in the demo, for owners.</p>;
+  const mail = await listOutbox();
+  return (
+    <div className="space-y-3">
+      <p className="text-sm text-muted">Mail caught by the local fake mail server (this demo sends nothing out). Newest first.</p>
+      {mail.length === 0 ? <p className="card p-4 text-sm text-muted">No mail yet: invite someone or ask for a sign-in link.</p> : null}
+      {mail.map((m) => (
+        <article key={m.id} className="card p-4 text-sm" data-testid="outbox-message">
+          <header className="flex flex-wrap justify-between gap-2">
+            <strong>{m.subject}</strong>
+            <span className="font-mono text-xs text-muted">{when(m.receivedAt)}</span>
+          </header>
+          <p className="text-xs text-muted">to {m.toAddresses}</p>
+          <pre className="mt-2 whitespace-pre-wrap break-words font-sans">{linkify(m.text ?? "")}</pre>
+        </article>
+      ))}
+    </div>
+  );
+}
+
+function linkify(text: string) {
+  return text.split(/(https?:\/\/\S+)/g).map((part, i) =>
+    /^https?:\/\//.test(part) ? (
+      <a key={i} href={part} className="break-all text-accent underline">
+        {part}
+      </a>
+    ) : (
+      part
+    ),
+  );
+}

@@ -1,0 +1,66 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { Brand } from "@/app/_components/brand";
+import { invitationByToken, INVITATION_MESSAGES } from "@/db/queries/accounts";
+import { loadSessionUser } from "@/lib/auth/guards";
+import { ROLE_LABEL } from "@/lib/auth/permissions";
+import { AcceptButton } from "./_components/accept-button";
+
+export const metadata: Metadata = { title: "Invitation" };
+export const dynamic = "force-dynamic";
+
+export default async function InvitePage({ params }: { params: Promise<{ token: string }> }) {
+  const { token } = await params;
+  const { state, invitation } = await invitationByToken(token);
+  const user = await loadSessionUser();
+  const here = `/invite/${token}`;
+  return (
+    <div className="flex min-h-screen flex-col">
+      <header className="border-b border-hairline bg-surface">
+        <div className="mx-auto flex max-w-column items-center px-4 py-3">
+          <Brand />
+        </div>
+      </header>
+      <main className="mx-auto w-full max-w-md flex-1 px-4 py-10">
+        <div className="card space-y-4 p-6">
+          {state !== "valid" || !invitation ? (
+            <>
+              <h1 className="text-xl">This invitation cannot be used</h1>
+              <p className="text-sm text-finding-error" data-testid="invite-problem">
+                ✕ {INVITATION_MESSAGES[state === "valid" ? "unknown" : state]}
+              </p>
+              <Link href="/sign-in" className="btn-quiet">
+                Go to sign in
+              </Link>
+            </>
+          ) : (
+            <>
+              <h1 className="text-xl">Join {invitation.workspaceName}</h1>
+              <p className="text-sm text-muted">
+                You are invited as <strong className="text-ink">{invitation.role}</strong>: {ROLE_LABEL[invitation.role].split("— ")[1]}. The invitation is for {invitation.email}.
+              </p>
+              {user ? (
+                user.email.toLowerCase() === invitation.email.toLowerCase() ? (
+                  <AcceptButton token={token} workspace={invitation.workspaceName} />
+                ) : (
+                  <p className="text-sm text-finding-error">
+                    ✕ You are signed in as {user.email}. Sign out and sign in as {invitation.email} to accept.
+                  </p>
+                )
+              ) : (
+                <div className="flex flex-wrap gap-3">
+                  <Link className="btn-primary" href={`/sign-up?next=${encodeURIComponent(here)}&email=${encodeURIComponent(invitation.email)}`}>
+                    Create an account to join
+                  </Link>
+                  <Link className="btn-quiet" href={`/sign-in?next=${encodeURIComponent(here)}&email=${encodeURIComponent(invitation.email)}`}>
+                    I have an account
+                  </Link>
+                </div>
+              )}
+            </>
+          )}
+        </div>
+      </main>
+    </div>
+  );
+}

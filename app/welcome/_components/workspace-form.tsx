@@ -1,0 +1,20 @@
+"use client";
+
+import { useRouter } from "next/navigation";
+import { Field, FormMessage, Submit, useServerForm } from "@/app/_components/form";
+import { workspaceSchema } from "@/lib/validation/accounts";
+import { createFirstWorkspace } from "@/app/(auth)/actions";
+
+export function WorkspaceForm() {
+  const router = useRouter();
+  const f = useServerForm(workspaceSchema, createFirstWorkspace, { name: "" }, () => router.push("/parts"));
+  return (
+    <form onSubmit={f.onSubmit} className="card space-y-4 p-6" noValidate aria-label="Create a workshop">
+      <FormMessage message={f.message} />
+      <Field form={f.form} name="name" label="Workshop name" hint="Your shop or print farm." />
+      <Submit pending={f.pending} pendingText="Creating…">
+        Create workshop
+      </Submit>
+    </form>
+  );
+}

@@ -1,0 +1,30 @@
+import "server-only";
+import { and, asc, eq, isNull } from "drizzle-orm";
+import { db } from "@/db";
+import { kitParts, kits, parts } from "@/db/schema";
+import type { ApiCaller } from "@/lib/auth/api-guard";
+
+// Reads for API callers: always scoped to the key's workspace.
+
+export async function apiListKits(caller: ApiCaller) {
+  return db()
+    .select({ id: kits.id, name: kits.name, description: kits.description, updatedAt: kits.updatedAt })
+    .from(kits)
+    .where(and(eq(kits.workspaceId, caller.workspaceId), isNull(kits.archivedAt)))
+    .orderBy(asc(kits.name));
+}
+
+export async function apiGetKit(caller: ApiCaller, id: string) {
+  const [kit] = await db()
+    .select({ id: kits.id, name: kits.name, description: kits.description, updatedAt: kits.updatedAt })
+    .from(kits)
+    .where(and(eq(kits.id, id), eq(kits.workspaceId, caller.workspaceId)));
+  if (!kit) return null;
+  const lines = await db()
+    .select({ partId: parts.id, name: parts.name, quantity: kitParts.quantity, rotation: kitParts.rotation, orientation: kitParts.orientation, triangles: parts.triangles })
+    .from(kitParts)
+    .innerJoin(parts, eq(parts.id, kitParts.partId))
+    .where(eq(kitParts.kitId, kit.id))
+    .orderBy(asc(kitParts.position));
+  return { ...kit, parts: lines };
+}

@@ -1,0 +1,24 @@
+import "server-only";
+import { ZodError } from "zod";
+import { AccessError } from "@/lib/auth/errors";
+
+/** The public API's error body: `{ "error": { "code", "message", "details"? } }`. */
+export function apiError(status: number, code: string, message: string, details?: unknown, headers?: HeadersInit): Response {
+  return Response.json({ error: details === undefined ? { code, message } : { code, message, details } }, { status, headers });
+}
+
+/** Wrap a route handler: map our error classes to statuses; log anything else and answer 500 without its text. */
+export function apiRoute<C>(handler: (req: Request, ctx: C) => Promise<Response>) {
+  return async (req: Request, ctx: C): Promise<Response> => {
+    try {
+      return await handler(req, ctx);
+    } catch (err) {
+      if (err instanceof AccessError) {
+        return apiError(err.status, err.code, err.message, undefined, err.retryAfterSeconds ? { "Retry-After": String(err.retryAfterSeconds) } : undefined);
+      }
+      if (err instanceof ZodError) return apiError(422, "invalid", "The request does not match the API's schema.", err.issues);
+      console.error(`[api] ${req.method} ${new URL(req.url).pathname} failed`, err);
+      return apiError(500, "internal", "Something went wrong on our side; nothing was changed.");
+    }
+  };
+}

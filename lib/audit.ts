@@ -1,0 +1,36 @@
+import "server-only";
+import { db, type Db } from "@/db";
+import { auditEvents } from "@/db/schema";
+
+export type AuditAction =
+  | "sign_in"
+  | "sign_in_failed"
+  | "sign_up"
+  | "password_reset_requested"
+  | "password_reset"
+  | "invitation_sent"
+  | "invitation_revoked"
+  | "invitation_accepted"
+  | "role_changed"
+  | "member_removed"
+  | "workspace_created"
+  | "api_key_created"
+  | "api_key_revoked";
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+export type AuditEntry = {
+  workspaceId?: string | null;
+  actorUserId?: string | null;
+  actorApiKeyId?: string | null;
+  actorEmail?: string | null;
+  action: AuditAction;
+  target?: string | null;
+  ip?: string | null;
+  details?: Record<string, unknown>;
+};
+
+/** Record an event, inside the caller's transaction when it has one (so the event and the change land together). */
+export async function audit(entry: AuditEntry, tx?: Tx): Promise<void> {
+  await (tx ?? db()).insert(auditEvents).values(entry);
+}

@@ -1,0 +1,37 @@
+import "server-only";
+import { and, eq, isNull, lt, or } from "drizzle-orm";
+import { db } from "@/db";
+import { apiKeys, type ApiKeyScope } from "@/db/schema";
+import { hashApiKey, parseApiKeyPrefix } from "./api-keys";
+import { AccessError, rateLimited } from "./errors";
+import { hit, LIMITS } from "./rate-limit";
+
+export type ApiCaller = { keyId: string; workspaceId: string; scopes: ApiKeyScope[] };
+
+/**
+ * The caller of a public API route: `Authorization: Bearer <key>`, looked up by hash on every request
+ * (a revoked key is refused at once), with the scope the route needs and a per-key rate limit.
+ */
+export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<ApiCaller> {
+  const header = req.headers.get("authorization") ?? "";
+  const m = /^Bearer\s+(\S+)$/i.exec(header);
+  if (!m) throw new AccessError(401, "unauthorized", "Send an API key as `Authorization: Bearer <key>`.");
+  const key = m[1]!;
+  if (!parseApiKeyPrefix(key)) throw new AccessError(401, "unauthorized", "That is not a Slabwright API key.");
+  const [row] = await db()
+    .select({ id: apiKeys.id, workspaceId: apiKeys.workspaceId, scopes: apiKeys.scopes, lastUsedAt: apiKeys.lastUsedAt })
+    .from(apiKeys)
+    .where(and(eq(apiKeys.keyHash, hashApiKey(key)), isNull(apiKeys.revokedAt)))
+    .limit(1);
+  if (!row) throw new AccessError(401, "unauthorized", "This API key is unknown or has been revoked.");
+  const limit = await hit(`api:${row.id}`, LIMITS.apiPerKey);
+  if (!limit.ok) throw rateLimited(limit.retryAfter, "requests with this key");
+  if (!row.scopes.includes(scope)) throw new AccessError(403, "forbidden", `This key lacks the ${scope} scope.`);
+  // Last-used time, at most once a minute per key (no write on every request).
+  const minuteAgo = new Date(Date.now() - 60_000);
+  await db()
+    .update(apiKeys)
+    .set({ lastUsedAt: new Date() })
+    .where(and(eq(apiKeys.id, row.id), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, minuteAgo))));
+  return { keyId: row.id, workspaceId: row.workspaceId, scopes: row.scopes };
+}

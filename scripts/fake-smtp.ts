@@ -1,0 +1,40 @@
+/**
+ * A local fake SMTP server for development and tests: accepts every message on loopback and stores
+ * it in PostgreSQL (dev_outbox), where the owner's outbox page shows it. Never run in a deployment.
+ *   SLAB_SMTP_PORT (default 2525), DATABASE_URL.
+ */
+import { simpleParser } from "mailparser";
+import { SMTPServer } from "smtp-server";
+import { createPool } from "@/db/index";
+import { env } from "@/lib/env";
+
+const port = Number(process.env.SLAB_SMTP_PORT ?? 2525);
+const pool = createPool(env().DATABASE_URL);
+
+const server = new SMTPServer({
+  authOptional: true,
+  disabledCommands: ["STARTTLS"],
+  size: 5 * 1024 * 1024,
+  logger: false,
+  onData(stream, _session, callback) {
+    simpleParser(stream)
+      .then(async (mail) => {
+        const to = (Array.isArray(mail.to) ? mail.to : mail.to ? [mail.to] : []).map((a) => a.text).join(", ");
+        await pool.query("insert into dev_outbox (id, from_address, to_addresses, subject, text, html) values ($1, $2, $3, $4, $5, $6)", [
+          crypto.randomUUID(),
+          mail.from?.text ?? null,
+          to,
+          mail.subject ?? null,
+          mail.text ?? null,
+          typeof mail.html === "string" ? mail.html : null,
+        ]);
+        callback();
+      })
+      .catch((err: Error) => callback(err));
+  },
+});
+
+server.listen(port, "127.0.0.1", () => console.log(`fake SMTP listening on 127.0.0.1:${port}`));
+const stop = () => server.close(() => pool.end().then(() => process.exit(0)));
+process.on("SIGTERM", stop);
+process.on("SIGINT", stop);

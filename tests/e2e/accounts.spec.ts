@@ -1,0 +1,101 @@
+import { readFileSync } from "node:fs";
+import { expect, test, type Page } from "@playwright/test";
+
+type Creds = { users: { email: string; password: string; role: string }[] };
+const creds = (): Creds => JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"));
+const user = (role: string) => creds().users.find((u) => u.role === role)!;
+
+async function signIn(page: Page, email: string, password: string) {
+  await page.goto("/sign-in");
+  const form = page.getByRole("form", { name: "Sign in with a password" });
+  await form.getByLabel("E-mail").fill(email);
+  await form.getByLabel("Password").fill(password);
+  await form.getByRole("button", { name: "Sign in" }).click();
+  await expect(page).toHaveURL(/\/parts$/);
+}
+
+test("an invited person signs up from the e-mailed link, joins the demo workspace and sees what an operator may do", async ({ page, browser }) => {
+  const owner = user("owner");
+  const email = `new-operator-${Date.now()}@example.com`;
+  await signIn(page, owner.email, owner.password);
+  await page.goto("/settings");
+  const invite = page.getByRole("form", { name: "Invite someone" });
+  await invite.getByLabel("E-mail").fill(email);
+  await invite.getByLabel("Role").selectOption("operator");
+  await invite.getByRole("button", { name: "Send invitation" }).click();
+  await expect(invite.getByTestId("form-message")).toContainText(`Invitation sent to ${email}`);
+
+  // The mail reaches the fake SMTP server; the owner reads it in the demo outbox.
+  await page.goto("/settings/outbox");
+  const mail = page.getByTestId("outbox-message").filter({ hasText: email }).first();
+  await expect(mail).toBeVisible({ timeout: 10_000 });
+  const link = await mail.getByRole("link").first().getAttribute("href");
+  expect(link).toMatch(/\/invite\/[A-Za-z0-9_-]{43}$/);
+
+  // A new person, in a browser of their own.
+  const other = await browser.newContext();
+  const p = await other.newPage();
+  await p.goto(link!);
+  await expect(p.getByRole("heading", { name: /Join Marrowby Tabletop Co\./ })).toBeVisible();
+  await p.getByRole("link", { name: "Create an account to join" }).click();
+  const form = p.getByRole("form", { name: "Create an account" });
+  await expect(form.getByLabel("E-mail")).toHaveValue(email);
+  await form.getByLabel("Your name").fill("Nell Operator");
+  // The password rules show at the field before anything is sent.
+  await form.getByLabel("Password").fill("short");
+  await form.getByRole("button", { name: "Create account" }).click();
+  await expect(form.getByTestId("password-error")).toContainText("at least 10");
+  await form.getByLabel("Password").fill(email);
+  await form.getByRole("button", { name: "Create account" }).click();
+  await expect(form.getByTestId("password-error")).toContainText("must not be your e-mail");
+  await form.getByLabel("Password").fill("printing-all-night");
+  await form.getByRole("button", { name: "Create account" }).click();
+  await expect(p).toHaveURL(/\/invite\//);
+  await p.getByRole("button", { name: /Join Marrowby/ }).click();
+  await expect(p).toHaveURL(/\/parts$/);
+  await expect(p.getByTestId("whoami")).toContainText("Operator");
+  await expect(p.getByRole("cell", { name: "Harbour tile" })).toBeVisible();
+  // An operator sees the members but cannot manage them, keys or the audit log.
+  await p.goto("/settings");
+  await expect(p.getByTestId(`member-${email}`)).toBeVisible();
+  await expect(p.getByRole("form", { name: "Invite someone" })).toHaveCount(0);
+  await expect(p.getByText("Only owners can invite people")).toBeVisible();
+  await p.goto("/settings/api-keys");
+  await expect(p.getByText("Only the workspace's owners can see and manage API keys.")).toBeVisible();
+
+  // The used link does not work twice.
+  await p.goto(link!);
+  await expect(p.getByTestId("invite-problem")).toContainText("already been used");
+  await other.close();
+});
+
+test("an owner creates an API key that is shown once, and revokes it", async ({ page, request }) => {
+  const owner = user("owner");
+  await signIn(page, owner.email, owner.password);
+  await page.goto("/settings/api-keys");
+  const form = page.getByRole("form", { name: "Create an API key" });
+  await form.getByLabel("Name").fill("Playwright order system");
+  await form.getByLabel(/kits:read/).check();
+  await form.getByRole("button", { name: "Create key" }).click();
+  const shown = page.getByTestId("new-key").locator("code").first();
+  await expect(shown).toHaveText(/^swk_[0-9a-f]{8}_/);
+  const key = (await shown.textContent())!;
+  expect((await request.get("/api/v1/kits", { headers: { authorization: `Bearer ${key}` } })).status()).toBe(200);
+  await page.reload();
+  await expect(page.getByText(key)).toHaveCount(0); // never shown again
+  const prefix = key.slice(4, 12);
+  page.once("dialog", (d) => d.accept());
+  await page.getByTestId(`key-${prefix}`).getByRole("button", { name: "Revoke" }).click();
+  await expect(page.getByText("Key revoked")).toBeVisible();
+  expect((await request.get("/api/v1/kits", { headers: { authorization: `Bearer ${key}` } })).status()).toBe(401);
+});
+
+test("responses carry the security headers", async ({ request }) => {
+  const res = await request.get("/");
+  const h = res.headers();
+  expect(h["content-security-policy"]).toContain("frame-ancestors 'none'");
+  expect(h["content-security-policy"]).toContain("'wasm-unsafe-eval'");
+  expect(h["content-security-policy"]).toContain("worker-src 'self' blob:");
+  expect(h["x-content-type-options"]).toBe("nosniff");
+  expect(h["referrer-policy"]).toBe("strict-origin-when-cross-origin");
+});
