@@ -1,7 +1,7 @@
 "use client";
 
 import { zodResolver } from "@hookform/resolvers/zod";
-import { useState, type InputHTMLAttributes, type ReactNode } from "react";
+import { useId, useState, type InputHTMLAttributes, type ReactNode } from "react";
 import { useForm, type DefaultValues, type FieldValues, type Path, type UseFormReturn } from "react-hook-form";
 import type { z } from "zod";
 import type { ActionResult } from "@/lib/validation/accounts";
@@ -37,7 +37,8 @@ export function useServerForm<T extends FieldValues, R>(
 
 export function Field<T extends FieldValues>({ form, name, label, hint, ...input }: { form: UseFormReturn<T>; name: Path<T>; label: string; hint?: string } & Omit<InputHTMLAttributes<HTMLInputElement>, "form" | "name">) {
   const error = form.formState.errors[name]?.message as string | undefined;
-  const id = `f-${String(name)}`;
+  // Unique per form: two forms on one page (password and e-mailed link) both have an e-mail field.
+  const id = `${useId()}-${String(name)}`;
   return (
     <div>
       <label htmlFor={id} className="block text-sm font-bold">

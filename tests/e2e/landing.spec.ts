@@ -37,7 +37,7 @@ test("the demo owner signs in, sees the demo parts and kit, and signs out", asyn
   await form.getByLabel("Password").fill(owner.password);
   await form.getByRole("button", { name: "Sign in" }).click();
   await expect(page).toHaveURL(/\/parts$/);
-  await expect(page.getByTestId("whoami")).toContainText("owner");
+  await expect(page.getByTestId("whoami")).toContainText("Owner");
   await expect(page.getByRole("cell", { name: "Harbour tile" })).toBeVisible();
   await expect(page.getByRole("cell", { name: "Beacon pawn" })).toBeVisible();
   await page.getByRole("link", { name: "Kits" }).click();

@@ -27,7 +27,7 @@ export function TopBar({ caller }: { caller: Caller }) {
         </form>
         <div className="ml-auto flex items-center gap-3 text-sm">
           <span className="text-muted" data-testid="whoami">
-            {caller.user.name ?? caller.user.email} · <span className="capitalize">{caller.role}</span>
+            {caller.user.name ?? caller.user.email} · {caller.role.charAt(0).toUpperCase() + caller.role.slice(1)}
           </span>
           <form action={signOutAction}>
             <button type="submit" className="btn-quiet px-3 py-1">
