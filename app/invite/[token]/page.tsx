@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { Brand } from "@/app/_components/brand";
+import { NarrowPage } from "@/app/_components/narrow-page";
 import { invitationByToken, INVITATION_MESSAGES } from "@/db/queries/accounts";
 import { loadSessionUser } from "@/lib/auth/guards";
 import { ROLE_LABEL } from "@/lib/auth/permissions";
@@ -15,13 +15,7 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
   const user = await loadSessionUser();
   const here = `/invite/${token}`;
   return (
-    <div className="flex min-h-screen flex-col">
-      <header className="border-b border-hairline bg-surface">
-        <div className="mx-auto flex max-w-column items-center px-4 py-3">
-          <Brand />
-        </div>
-      </header>
-      <main className="mx-auto w-full max-w-md flex-1 px-4 py-10">
+    <NarrowPage>
         <div className="card space-y-4 p-6">
           {state !== "valid" || !invitation ? (
             <>
@@ -60,7 +54,6 @@ export default async function InvitePage({ params }: { params: Promise<{ token: 
             </>
           )}
         </div>
-      </main>
-    </div>
+    </NarrowPage>
   );
 }
