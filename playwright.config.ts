@@ -25,7 +25,8 @@ export default defineConfig({
     { name: "desktop", use: { ...devices["Desktop Chrome"], channel: undefined }, grepInvert: /@phone/ },
     { name: "phone", use: { ...devices["Pixel 7"], channel: undefined }, grep: /@phone/ },
   ],
-  webServer: {
+  // npm test starts the app itself (shared with the HTTP integration tests); run alone, Playwright does.
+  webServer: process.env.SLAB_TEST_SERVER === "1" ? undefined : {
     command: `node_modules/.bin/next start -H 127.0.0.1 -p ${port}`,
     url: `${baseURL}/api/health`,
     reuseExistingServer: false,

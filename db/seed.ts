@@ -11,7 +11,10 @@ import { hashPassword, verifyPassword } from "@/lib/auth/password";
 import { env } from "@/lib/env";
 import { hexTile, pawn } from "@/lib/geometry/demo-shapes";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
+import { loadKernel } from "@/lib/geometry/kernel";
 import { bounds, signedVolume, triangleCount, type IndexedMesh } from "@/lib/geometry/mesh";
+import { orientMesh } from "@/lib/geometry/orient";
+import { topViewSvg } from "@/lib/geometry/thumbnail";
 import { blobStore } from "@/lib/storage";
 import { createDb, createPool } from "./index";
 
@@ -41,11 +44,15 @@ async function readSavedKey(): Promise<string | null> {
   }
 }
 
-function partRow(name: string, mesh: IndexedMesh) {
+function partRow(name: string, raw: IndexedMesh, kernel: Awaited<ReturnType<typeof loadKernel>>) {
+  const mesh = orientMesh(raw);
   const b = bounds(mesh);
+  const thumb = topViewSvg(kernel, mesh);
   return {
     name,
     mesh,
+    thumbnailSvg: thumb.svg,
+    contactArea: thumb.contactArea,
     stl: writeBinaryStl([mesh]),
     sizeX: b.max[0] - b.min[0],
     sizeY: b.max[1] - b.min[1],
@@ -56,7 +63,8 @@ function partRow(name: string, mesh: IndexedMesh) {
 }
 
 export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCredentials> {
-  const demoParts = [partRow("Harbour tile", hexTile()), partRow("Beacon pawn", pawn())];
+  const kernel = await loadKernel();
+  const demoParts = [partRow("Harbour tile", hexTile(), kernel), partRow("Beacon pawn", pawn(), kernel)];
   // Bytes first: content-addressed, so a retry after a failed transaction reuses them.
   const stored = await Promise.all(demoParts.map((p) => blobStore().put(p.stl)));
   const savedKey = await readSavedKey();
@@ -99,6 +107,8 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
           .from(parts)
           .where(and(eq(parts.workspaceId, ws.id), eq(parts.blobKey, blob.key)));
         if (existing) {
+          // Fill in what later versions measure (thumbnails, contact area) on rows seeded before them.
+          await tx.update(parts).set({ thumbnailSvg: p.thumbnailSvg, contactArea: p.contactArea }).where(eq(parts.id, existing.id));
           partIds.push(existing.id);
           continue;
         }
@@ -115,6 +125,8 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
             sizeY: p.sizeY,
             sizeZ: p.sizeZ,
             volume: p.volume,
+            contactArea: p.contactArea,
+            thumbnailSvg: p.thumbnailSvg,
             uploadedBy: userIds.designer,
           })
           .returning({ id: parts.id });

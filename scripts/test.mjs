@@ -14,7 +14,9 @@ import {
   log,
   migrateAndSeed,
   run,
+  spawnChild,
   startFakeSmtp,
+  waitForHttp,
   startPostgres,
   stopPostgres,
   takeLock,
@@ -58,11 +60,34 @@ function readJson(file) {
 }
 
 let smtp = null;
+let stopApp = () => {};
+let cleaned = false;
+// Also on an early exit (a set-up step failing calls process.exit): leave no server running.
+function cleanUp() {
+  if (cleaned) return;
+  cleaned = true;
+  stopApp();
+  smtp?.kill("SIGTERM");
+  if (startedPg) stopPostgres();
+  lock.release();
+}
+process.on("exit", cleanUp);
 try {
   ensureDatabase(dbName);
   migrateAndSeed(env);
   run(bin("tsx"), ["scripts/reset-test-state.ts"], { env });
   smtp = startFakeSmtp(env);
+
+  // One built app on the test port serves the HTTP integration tests and the browser tests.
+  let app = null;
+  if (want("integration") || want("e2e")) {
+    ensureBuild();
+    app = spawnChild(bin("next"), ["start", "-H", "127.0.0.1", "-p", String(port)], { ...env, SLAB_MAX_UPLOAD_BYTES: String(20 * 1024 * 1024) });
+    if (!(await waitForHttp(`http://localhost:${port}/api/health`, 120_000))) throw new Error("the test app did not start");
+    env.SLAB_TEST_BASE_URL = `http://localhost:${port}`;
+    env.SLAB_TEST_SERVER = "1";
+    stopApp = () => app?.kill("SIGTERM");
+  }
 
   if (want("unit") || want("integration")) {
     const projects = ["unit", "integration"].filter(want).flatMap((p) => ["--project", p]);
@@ -81,7 +106,6 @@ try {
   }
 
   if (want("e2e")) {
-    ensureBuild();
     const out = path.join(resultsDir, "playwright.json");
     const res = run(bin("playwright"), ["test"], { env: { ...env, PLAYWRIGHT_JSON_OUTPUT_NAME: out }, allowFail: true });
     const json = readJson(out);
@@ -95,10 +119,12 @@ try {
       if (!json?.stats || (json.stats.unexpected ?? 0) === 0) totals.failed += 1;
     }
   }
+} catch (err) {
+  console.error(err);
+  exitCode = 1;
+  totals.failed += 1;
 } finally {
-  smtp?.kill("SIGTERM");
-  if (startedPg) stopPostgres();
-  lock.release();
+  cleanUp();
 }
 
 log(`npm test took ${((Date.now() - started) / 1000).toFixed(0)} s`);

@@ -1,30 +1,10 @@
 import "server-only";
-import { and, asc, count, desc, eq, isNull, max, or, sql } from "drizzle-orm";
+import { and, asc, desc, eq, isNull, max, or, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, parts, plates, templates, users } from "@/db/schema";
+import { kitParts, kits, plates, templates } from "@/db/schema";
 import type { Caller } from "@/lib/auth/guards";
 
 // Every read is scoped to the caller's active workspace; there is no query here without that filter.
-
-export async function listParts(caller: Caller) {
-  return db()
-    .select({
-      id: parts.id,
-      name: parts.name,
-      format: parts.format,
-      triangles: parts.triangles,
-      sizeX: parts.sizeX,
-      sizeY: parts.sizeY,
-      sizeZ: parts.sizeZ,
-      volume: parts.volume,
-      createdAt: parts.createdAt,
-      uploadedBy: users.name,
-    })
-    .from(parts)
-    .leftJoin(users, eq(users.id, parts.uploadedBy))
-    .where(eq(parts.workspaceId, caller.workspace.id))
-    .orderBy(desc(parts.createdAt), asc(parts.name));
-}
 
 export async function listKits(caller: Caller) {
   const pieceCounts = db()
@@ -70,9 +50,4 @@ export async function listPlates(caller: Caller) {
     .where(eq(plates.workspaceId, caller.workspace.id))
     .orderBy(desc(plates.createdAt))
     .limit(100);
-}
-
-export async function countParts(caller: Caller): Promise<number> {
-  const [row] = await db().select({ n: count() }).from(parts).where(eq(parts.workspaceId, caller.workspace.id));
-  return row?.n ?? 0;
 }

@@ -1,5 +1,6 @@
 import { sql } from "drizzle-orm";
 import {
+  boolean,
   check,
   doublePrecision,
   index,
@@ -38,6 +39,16 @@ export const parts = pgTable(
     /** mm², the footprint one layer above the base; known once the engine has measured it. */
     contactArea: doublePrecision("contact_area"),
     repairs: jsonb("repairs").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    /** Import warnings still standing (e.g. a size that suggests other units). */
+    warnings: jsonb("warnings").$type<{ code: string; message: string; suggestion?: { unit: string; scale: number } }[]>().notNull().default(sql`'[]'::jsonb`),
+    /** Length unit the file was read in (STL and OBJ have none of their own). */
+    unit: text("unit").notNull().default("millimeter"),
+    /** Stand the part on its largest flat face. */
+    layFlat: boolean("lay_flat").notNull().default(false),
+    /** Closed shells in the file: more than one can be split into separate parts. */
+    bodies: integer("bodies").notNull().default(1),
+    /** Top view for the library table, drawn at upload (SVG). */
+    thumbnailSvg: text("thumbnail_svg"),
     uploadedBy: text("uploaded_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),

@@ -1,6 +1,10 @@
 import "server-only";
 import { ZodError } from "zod";
 import { AccessError } from "@/lib/auth/errors";
+import { UserError } from "@/lib/auth/guards";
+
+/** Statuses for refusals a person can act on; anything else of that kind is a 422. */
+const USER_ERROR_STATUS: Record<string, number> = { not_found: 404, part_in_use: 409, conflict: 409 };
 
 /** The public API's error body: `{ "error": { "code", "message", "details"? } }`. */
 export function apiError(status: number, code: string, message: string, details?: unknown, headers?: HeadersInit): Response {
@@ -16,6 +20,7 @@ export function apiRoute<C>(handler: (req: Request, ctx: C) => Promise<Response>
       if (err instanceof AccessError) {
         return apiError(err.status, err.code, err.message, undefined, err.retryAfterSeconds ? { "Retry-After": String(err.retryAfterSeconds) } : undefined);
       }
+      if (err instanceof UserError) return apiError(USER_ERROR_STATUS[err.code] ?? 422, err.code, err.message);
       if (err instanceof ZodError) return apiError(422, "invalid", "The request does not match the API's schema.", err.issues);
       console.error(`[api] ${req.method} ${new URL(req.url).pathname} failed`, err);
       return apiError(500, "internal", "Something went wrong on our side; nothing was changed.");

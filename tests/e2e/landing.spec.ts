@@ -38,8 +38,8 @@ test("the demo owner signs in, sees the demo parts and kit, and signs out", asyn
   await form.getByRole("button", { name: "Sign in" }).click();
   await expect(page).toHaveURL(/\/parts$/);
   await expect(page.getByTestId("whoami")).toContainText("Owner");
-  await expect(page.getByRole("cell", { name: "Harbour tile" })).toBeVisible();
-  await expect(page.getByRole("cell", { name: "Beacon pawn" })).toBeVisible();
+  await expect(page.getByTestId("part-Harbour tile")).toBeVisible();
+  await expect(page.getByTestId("part-Beacon pawn")).toBeVisible();
   await page.getByRole("link", { name: "Kits" }).click();
   await expect(page.getByRole("cell", { name: /Harbour Run token set/ })).toBeVisible();
   await expect(page.getByRole("row", { name: /Harbour Run/ }).getByRole("cell").nth(1)).toHaveText("6");
