@@ -214,6 +214,11 @@ export function startFakeSmtp(env) {
   return spawn(bin("tsx"), ["scripts/fake-smtp.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
 }
 
+/** The build worker (queue consumer with its thread pool): `npm start` and `npm test` run one. */
+export function startWorker(env) {
+  return spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
+}
+
 export function spawnChild(cmd, args, env) {
   return spawn(cmd, args, { cwd: ROOT, stdio: "inherit", env: { ...process.env, ...env } });
 }

@@ -17,6 +17,7 @@ import {
   migrateAndSeed,
   spawnChild,
   startFakeSmtp,
+  startWorker,
   startPostgres,
   stopPostgres,
   takeLock,
@@ -47,6 +48,7 @@ ensureDependencies();
 const startedPg = startPostgres();
 let child;
 let smtp = null;
+let worker = null;
 let stopping = false;
 
 function shutdown(code) {
@@ -78,6 +80,7 @@ try {
   migrateAndSeed(env);
   if (!dev) ensureBuild();
   smtp = startFakeSmtp(env);
+  worker = startWorker(env);
 
   child = spawnChild(bin("next"), [dev ? "dev" : "start", "-H", "127.0.0.1", "-p", String(port)], env);
   child.on("exit", (code) => {

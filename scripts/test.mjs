@@ -16,6 +16,7 @@ import {
   run,
   spawnChild,
   startFakeSmtp,
+  startWorker,
   waitForHttp,
   startPostgres,
   stopPostgres,
@@ -60,6 +61,7 @@ function readJson(file) {
 }
 
 let smtp = null;
+let worker = null;
 let stopApp = () => {};
 let cleaned = false;
 // Also on an early exit (a set-up step failing calls process.exit): leave no server running.
@@ -68,6 +70,7 @@ function cleanUp() {
   cleaned = true;
   stopApp();
   smtp?.kill("SIGTERM");
+  worker?.kill("SIGTERM");
   if (startedPg) stopPostgres();
   lock.release();
 }
@@ -77,6 +80,9 @@ try {
   migrateAndSeed(env);
   run(bin("tsx"), ["scripts/reset-test-state.ts"], { env });
   smtp = startFakeSmtp(env);
+  // The build worker for the plate API tests; webhooks may call the tests' receiver on loopback.
+  Object.assign(env, { SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost", SLAB_JOB_EXPIRY_S: "8" });
+  worker = startWorker(env);
 
   // One built app on the test port serves the HTTP integration tests and the browser tests.
   let app = null;

@@ -1,5 +1,5 @@
 import { sql } from "drizzle-orm";
-import { index, integer, jsonb, pgEnum, pgTable, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
+import { index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
 import { users } from "./auth";
 import { kits } from "./parts";
 import { workspaces } from "./workspaces";
@@ -65,13 +65,48 @@ export const plates = pgTable(
     stlBlobKey: text("stl_blob_key"),
     threeMfBlobKey: text("three_mf_blob_key"),
     pieceCount: integer("piece_count").notNull().default(0),
+    /** The build job (pg-boss id) and how far it got: queued → running → done | failed. */
+    jobId: text("job_id"),
+    jobState: text("job_state").$type<"queued" | "running" | "done" | "failed">().notNull().default("queued"),
+    progress: real("progress").notNull().default(0),
+    /** Why the build failed, when it did: `{ code, message, details? }`. */
+    error: jsonb("error").$type<{ code: string; message: string; details?: unknown }>(),
+    /** What the build needs: part blobs with quantities (and how to read them), kit and template references. */
+    input: jsonb("input").$type<PlateInput>(),
+    callbackUrl: text("callback_url"),
+    title: text("title"),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [
     index("plates_workspace_created_idx").on(t.workspaceId, t.createdAt),
     index("plates_kit_created_idx").on(t.kitId, t.createdAt),
+    uniqueIndex("plates_job_key").on(t.jobId),
   ],
+);
+
+export type PlateInput = {
+  parts: { name: string; blobKey: string; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number; partId?: string }[];
+  kitId?: string;
+  templateId?: string;
+};
+
+/** Idempotency-Key of the plate API: the same key and request within 24 h answer with the same plate. */
+export const idempotencyKeys = pgTable(
+  "idempotency_keys",
+  {
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    key: text("key").notNull(),
+    requestHash: text("request_hash").notNull(),
+    plateId: text("plate_id")
+      .notNull()
+      .references(() => plates.id, { onDelete: "cascade" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.workspaceId, t.key] })],
 );
 
 export type Template = typeof templates.$inferSelect;

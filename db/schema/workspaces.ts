@@ -11,6 +11,8 @@ export const workspaces = pgTable(
     id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
     name: text("name").notNull(),
     slug: text("slug").notNull(),
+    /** Signs the plate API's webhook calls (HMAC-SHA256); made on first use. */
+    webhookSecret: text("webhook_secret"),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
   (t) => [uniqueIndex("workspaces_slug_key").on(t.slug)],

@@ -61,6 +61,15 @@ export type ImportResult = {
   warnings: ImportWarning[];
 };
 
+/** The format the bytes themselves show, or null: no file-name fallback (for refusing early). */
+export function sniffFormat(bytes: Uint8Array): MeshFormat | null {
+  if (bytes.byteLength >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) return "3mf";
+  if (isBinaryStl(bytes) || looksLikeAsciiStl(bytes)) return "stl";
+  const head = new TextDecoder("latin1").decode(bytes.subarray(0, Math.min(bytes.byteLength, 4096)));
+  if (/^\s*v\s/m.test(head) && /^\s*(f|o|g|vn|vt)\s/m.test(head)) return "obj";
+  return null;
+}
+
 export function detectFormat(bytes: Uint8Array, fileName: string): MeshFormat {
   if (bytes.byteLength >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) return "3mf";
   if (isBinaryStl(bytes) || looksLikeAsciiStl(bytes)) return "stl";

@@ -1,0 +1,14 @@
+import { apiRoute, ApiProblem } from "@/lib/api/respond";
+import { plateFile, plateFor } from "@/lib/api/plates";
+import { requireApiKey } from "@/lib/auth/api-guard";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+/** GET /api/v1/plates/{id}/file?format=stl|3mf (scope plates:read). */
+export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
+  const caller = await requireApiKey(req, "plates:read");
+  const format = new URL(req.url).searchParams.get("format") ?? "3mf";
+  if (format !== "stl" && format !== "3mf") throw new ApiProblem(400, "bad_request", "format must be stl or 3mf.");
+  return plateFile(await plateFor(caller, (await ctx.params).id), format);
+});

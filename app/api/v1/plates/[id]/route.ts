@@ -1,0 +1,12 @@
+import { apiRoute } from "@/lib/api/respond";
+import { plateFor, plateView } from "@/lib/api/plates";
+import { requireApiKey } from "@/lib/auth/api-guard";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+/** GET /api/v1/plates/{id} — the plate: status, pieces, layout, findings, estimates (scope plates:read). */
+export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
+  const caller = await requireApiKey(req, "plates:read");
+  return Response.json(plateView(await plateFor(caller, (await ctx.params).id)));
+});

@@ -1,0 +1,45 @@
+import { apiError, apiRoute, ApiProblem } from "@/lib/api/respond";
+import { createPlate, jobView, plateFile, plateView, readPlateRequest, waitForPlate } from "@/lib/api/plates";
+import { requireApiKey } from "@/lib/auth/api-guard";
+import { maxUploadBytes } from "@/lib/parts/upload";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+/** How long a request waits for its build before answering 202 with the job (SLAB_SYNC_WAIT_MS, default 20 s). */
+const syncWaitMs = () => Number(process.env.SLAB_SYNC_WAIT_MS ?? 20_000);
+
+/**
+ * POST /api/v1/plates — multipart: `part` files (or `kit`), `quantity`, `options`, `variables`,
+ * `format`, `callbackUrl`. Answers the file (200) when the build ends within the wait, else 202 with
+ * the job. `Prefer: respond-async` (RFC 7240) asks for the 202 at once.
+ */
+export const POST = apiRoute(async (req: Request) => {
+  const caller = await requireApiKey(req, "plates:write");
+  const type = req.headers.get("content-type") ?? "";
+  if (!type.startsWith("multipart/form-data")) return apiError(415, "unsupported_media_type", "Send multipart/form-data with `part` files or a `kit` id.");
+  const limit = maxUploadBytes();
+  const declared = Number(req.headers.get("content-length"));
+  if (Number.isFinite(declared) && declared > limit) return apiError(413, "file_too_large", `The request is larger than the ${(limit / 1024 / 1024).toFixed(0)} MB limit.`);
+  let form: FormData;
+  try {
+    form = await req.formData();
+  } catch {
+    throw new ApiProblem(400, "bad_request", "The multipart body could not be read.");
+  }
+  const request = await readPlateRequest(caller, form, new URL(req.url).searchParams.get("format"), limit);
+  const idem = req.headers.get("idempotency-key");
+  if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem)) throw new ApiProblem(400, "bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
+  const { plate } = await createPlate(caller, request, idem);
+  const asyncOnly = /respond-async/i.test(req.headers.get("prefer") ?? "");
+  const done = asyncOnly ? plate : await waitForPlate(plate.id, syncWaitMs());
+  if (done.jobState === "failed") {
+    const e = done.error ?? { code: "build_failed", message: "The build failed." };
+    return apiError(422, e.code, e.message, { plate: { id: done.id }, ...(e.code === "findings" ? { findings: e.details } : e.details ? { details: e.details } : {}) }, { "X-Plate-Id": done.id });
+  }
+  if (done.jobState !== "done") {
+    return Response.json({ job: jobView(done) }, { status: 202, headers: { Location: `/api/v1/jobs/${done.jobId}`, "X-Plate-Id": done.id } });
+  }
+  if (request.format === "json") return Response.json(plateView(done), { headers: { "X-Plate-Id": done.id } });
+  return plateFile(done, request.format);
+});

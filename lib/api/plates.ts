@@ -1,0 +1,215 @@
+import "server-only";
+import { createHash } from "node:crypto";
+import { and, eq, sql } from "drizzle-orm";
+import { z } from "zod";
+import { db } from "@/db";
+import { idempotencyKeys, kitParts, kits, parts, plates, type Plate, type PlateInput } from "@/db/schema";
+import type { ApiCaller } from "@/lib/auth/api-guard";
+import { ApiProblem } from "@/lib/api/respond";
+import { notFound } from "@/lib/auth/errors";
+import { sniffFormat } from "@/lib/geometry/import";
+import { slabOptionsSchema } from "@/lib/geometry/options";
+import { enqueueBuild } from "@/lib/jobs/queue";
+import { callbackProblem } from "@/lib/jobs/webhook";
+import { blobStore } from "@/lib/storage";
+
+export const formatSchema = z.enum(["stl", "3mf", "json"]);
+export const variablesSchema = z.record(z.string().regex(/^[a-z][a-z0-9_]*$/i), z.string().max(500));
+export const quantitySchema = z.array(z.number().int().min(1).max(500));
+
+function json<T>(raw: FormDataEntryValue | null, schema: z.ZodType<T>, field: string): T | undefined {
+  if (raw === null || raw === "") return undefined;
+  if (typeof raw !== "string") throw new ApiProblem(400, "bad_request", `${field} must be a text field holding JSON.`);
+  let value: unknown;
+  try {
+    value = JSON.parse(raw);
+  } catch {
+    throw new ApiProblem(400, "bad_request", `${field} is not valid JSON.`);
+  }
+  const parsed = schema.safeParse(value);
+  if (!parsed.success) throw new ApiProblem(422, "invalid", `${field} does not match the schema.`, parsed.error.issues);
+  return parsed.data;
+}
+
+export type PlateRequest = {
+  input: PlateInput;
+  options: z.output<typeof slabOptionsSchema>;
+  rawOptions: unknown;
+  variables: Record<string, string>;
+  format: z.infer<typeof formatSchema>;
+  callbackUrl?: string;
+  title: string;
+  kitId?: string;
+};
+
+/** Turn the multipart form into a build request: files stored (content-addressed), kit and options checked. */
+export async function readPlateRequest(caller: ApiCaller, form: FormData, queryFormat: string | null, maxPartBytes: number): Promise<PlateRequest> {
+  const files = form.getAll("part");
+  const kitId = form.get("kit");
+  if (files.length && kitId) throw new ApiProblem(400, "bad_request", "Send either part files or a kit, not both.");
+  if (!files.length && !kitId) throw new ApiProblem(400, "bad_request", "Send one or more `part` files, or a `kit` id.");
+  const rawOptions = json(form.get("options"), z.record(z.string(), z.unknown()), "options") ?? {};
+  const parsedOptions = slabOptionsSchema.safeParse(rawOptions);
+  if (!parsedOptions.success) throw new ApiProblem(422, "invalid_options", "options do not match the slab builder's options.", parsedOptions.error.issues);
+  const variables = json(form.get("variables"), variablesSchema, "variables") ?? {};
+  const fmt = formatSchema.safeParse((form.get("format") as string | null) ?? queryFormat ?? "3mf");
+  if (!fmt.success) throw new ApiProblem(400, "bad_request", "format must be stl, 3mf or json.");
+  const callbackUrl = (form.get("callbackUrl") as string | null) || undefined;
+  if (callbackUrl) {
+    const problem = await callbackProblem(callbackUrl);
+    if (problem) throw new ApiProblem(422, "invalid_callback", problem);
+  }
+  if (form.get("template")) throw new ApiProblem(404, "not_found", "No such template.");
+
+  const input: PlateInput = { parts: [] };
+  let title = "Slabwright plate";
+  if (kitId) {
+    if (typeof kitId !== "string") throw new ApiProblem(400, "bad_request", "kit must be an id.");
+    const [kit] = await db().select().from(kits).where(and(eq(kits.id, kitId), eq(kits.workspaceId, caller.workspaceId)));
+    if (!kit) throw new ApiProblem(404, "not_found", "No such kit.");
+    const lines = await db().select({ kp: kitParts, part: parts }).from(kitParts).innerJoin(parts, eq(parts.id, kitParts.partId)).where(eq(kitParts.kitId, kit.id)).orderBy(kitParts.position);
+    input.kitId = kit.id;
+    title = kit.name;
+    input.parts = lines.map(({ kp, part }) => ({
+      name: `${part.name}.${part.format}`,
+      blobKey: part.blobKey,
+      quantity: kp.quantity,
+      unit: part.unit,
+      layFlat: part.layFlat || kp.orientation === "lay-flat",
+      turned: kp.orientation === "turned",
+      rotation: kp.rotation,
+      partId: part.id,
+    }));
+  } else {
+    const quantity = json(form.get("quantity"), quantitySchema, "quantity");
+    if (quantity && quantity.length !== files.length) throw new ApiProblem(422, "invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
+    for (const [i, f] of files.entries()) {
+      if (typeof f === "string") throw new ApiProblem(400, "bad_request", "Each part must be a file.");
+      if (f.size > maxPartBytes) throw new ApiProblem(413, "file_too_large", `${f.name} is larger than the ${(maxPartBytes / 1024 / 1024).toFixed(0)} MB limit.`);
+      const bytes = new Uint8Array(await f.arrayBuffer());
+      // Refuse what is plainly not a mesh here; the worker's import says what is wrong with the rest.
+      if (bytes.byteLength === 0) throw new ApiProblem(422, "empty", `${f.name}: the file is empty.`);
+      if (!sniffFormat(bytes) && !(bytes.byteLength >= 84 && /\.stl$/i.test(f.name))) {
+        throw new ApiProblem(415, "not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads STL (binary or ASCII), 3MF and OBJ.`);
+      }
+      const put = await blobStore().put(bytes);
+      input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: put.key, quantity: quantity?.[i] ?? 1 });
+    }
+  }
+  return { input, options: parsedOptions.data, rawOptions, variables, format: fmt.data, callbackUrl, title, kitId: input.kitId };
+}
+
+function requestHash(r: PlateRequest): string {
+  return createHash("sha256").update(JSON.stringify({ input: r.input, options: r.rawOptions, variables: r.variables, callbackUrl: r.callbackUrl ?? null })).digest("hex");
+}
+
+/**
+ * Make the plate row and queue its build. With an Idempotency-Key, the same key and request within
+ * 24 hours return the first plate; the same key with another request is a conflict (409).
+ */
+export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotencyKey: string | null): Promise<{ plate: Plate; replay: boolean }> {
+  const hash = requestHash(r);
+  const found = idempotencyKey ? await priorPlate(caller, idempotencyKey, hash) : null;
+  if (found) return { plate: found, replay: true };
+  const plate = await db().transaction(async (tx) => {
+    const [row] = await tx
+      .insert(plates)
+      .values({ workspaceId: caller.workspaceId, kitId: r.kitId ?? null, source: "api", status: "building", options: r.rawOptions as Record<string, unknown>, variables: r.variables, input: r.input, callbackUrl: r.callbackUrl ?? null, title: r.title, pieceCount: r.input.parts.reduce((s, p) => s + p.quantity, 0) * r.options.layout.copies })
+      .returning();
+    if (idempotencyKey) {
+      const ins = await tx.insert(idempotencyKeys).values({ workspaceId: caller.workspaceId, key: idempotencyKey, requestHash: hash, plateId: row!.id }).onConflictDoNothing().returning();
+      if (!ins[0]) return null; // another request with this key won the race
+    }
+    return row!;
+  });
+  if (!plate) {
+    const again = await priorPlate(caller, idempotencyKey!, hash);
+    if (again) return { plate: again, replay: true };
+    throw new ApiProblem(409, "idempotency_conflict", "This Idempotency-Key is being used by another request.");
+  }
+  try {
+    const jobId = await enqueueBuild(plate.id);
+    const [withJob] = await db().update(plates).set({ jobId }).where(eq(plates.id, plate.id)).returning();
+    return { plate: withJob!, replay: false };
+  } catch (err) {
+    await db().update(plates).set({ status: "failed", jobState: "failed", error: { code: "queue_unavailable", message: "The build queue is not available." } }).where(eq(plates.id, plate.id));
+    throw err;
+  }
+}
+
+async function priorPlate(caller: ApiCaller, key: string, hash: string): Promise<Plate | null> {
+  const [row] = await db()
+    .select({ k: idempotencyKeys, p: plates })
+    .from(idempotencyKeys)
+    .innerJoin(plates, eq(plates.id, idempotencyKeys.plateId))
+    .where(and(eq(idempotencyKeys.workspaceId, caller.workspaceId), eq(idempotencyKeys.key, key), sql`${idempotencyKeys.createdAt} > now() - interval '24 hours'`));
+  if (!row) return null;
+  if (row.k.requestHash !== hash) throw new ApiProblem(409, "idempotency_conflict", "This Idempotency-Key was used with a different request in the last 24 hours.");
+  return row.p;
+}
+
+export async function plateFor(caller: ApiCaller, id: string): Promise<Plate> {
+  const [p] = await db().select().from(plates).where(and(eq(plates.id, id), eq(plates.workspaceId, caller.workspaceId)));
+  if (!p) throw notFound("plate");
+  return p;
+}
+
+export async function plateByJob(caller: ApiCaller, jobId: string): Promise<Plate> {
+  const [p] = await db().select().from(plates).where(and(eq(plates.jobId, jobId), eq(plates.workspaceId, caller.workspaceId)));
+  if (!p) throw notFound("job");
+  return p;
+}
+
+/** Wait for a plate's build to end, up to `ms`; returns the latest row either way. */
+export async function waitForPlate(id: string, ms: number): Promise<Plate> {
+  const until = Date.now() + ms;
+  for (;;) {
+    const [p] = await db().select().from(plates).where(eq(plates.id, id));
+    if (!p || p.jobState === "done" || p.jobState === "failed" || Date.now() >= until) return p!;
+    await new Promise((r) => setTimeout(r, 100));
+  }
+}
+
+export function jobView(p: Plate) {
+  return {
+    id: p.jobId,
+    status: p.jobState,
+    progress: p.progress,
+    statusUrl: `/api/v1/jobs/${p.jobId}`,
+    plate: { id: p.id, url: `/api/v1/plates/${p.id}` },
+    result: p.jobState === "done" ? { stl: `/api/v1/plates/${p.id}/file?format=stl`, "3mf": `/api/v1/plates/${p.id}/file?format=3mf` } : null,
+    error: p.error ?? null,
+  };
+}
+
+export function plateView(p: Plate) {
+  const stats = (p.stats ?? {}) as { pieces?: unknown; layout?: unknown; [k: string]: unknown };
+  const { pieces, layout, ...rest } = stats;
+  return {
+    plate: { id: p.id, status: p.status, job: jobView(p), kitId: p.kitId, pieceCount: p.pieceCount, createdAt: p.createdAt, finishedAt: p.finishedAt, title: p.title },
+    pieces: pieces ?? [],
+    layout: layout ?? null,
+    findings: p.findings,
+    estimates: p.estimates,
+    stats: rest,
+  };
+}
+
+/** The plate's file with its headers: type, a file name, the plate id and its warnings. */
+export async function plateFile(plate: Plate, format: "stl" | "3mf"): Promise<Response> {
+  const key = format === "stl" ? plate.stlBlobKey : plate.threeMfBlobKey;
+  if (!key || plate.jobState !== "done") throw new ApiProblem(409, "not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
+  const bytes = await blobStore().get(key);
+  const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
+  const name = `${(plate.title ?? "plate").replace(/[^A-Za-z0-9._-]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate"}-${plate.id.slice(0, 8)}.${format}`;
+  return new Response(new Uint8Array(bytes), {
+    headers: {
+      "Content-Type": format === "stl" ? "model/stl" : "model/3mf",
+      "Content-Disposition": `attachment; filename="${name}"`,
+      "Content-Length": String(bytes.byteLength),
+      "X-Plate-Id": plate.id,
+      "X-Plate-Warnings": warnings.join(","),
+    },
+  });
+}
+

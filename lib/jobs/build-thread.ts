@@ -1,0 +1,80 @@
+/**
+ * One build in a worker thread (run by piscina from the worker process). Each thread holds its own
+ * kernel and fonts, loaded once. The thread ends itself after a number of builds, or after any build
+ * that hit the WASM memory limit, so its memory (which WebAssembly never gives back) is renewed.
+ */
+import { readFileSync } from "node:fs";
+import path from "node:path";
+import { deflateRawSync } from "node:zlib";
+import { buildPlate, type PlateResult } from "@/lib/geometry/build-plate";
+import { MeshImportError } from "@/lib/geometry/errors";
+import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId } from "@/lib/geometry/fonts";
+import { importMesh } from "@/lib/geometry/import";
+import type { Unit } from "@/lib/geometry/io/raw";
+import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
+import type { IndexedMesh } from "@/lib/geometry/mesh";
+import type { SlabOptionsInput } from "@/lib/geometry/options";
+import { orientMesh } from "@/lib/geometry/orient";
+
+export type BuildTask = {
+  parts: { name: string; bytes: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number }[];
+  options: SlabOptionsInput;
+  variables: Record<string, string>;
+  title: string;
+};
+
+export type BuildOutcome =
+  | { ok: true; result: Omit<PlateResult, "bodies"> }
+  | { ok: false; code: string; message: string; details?: unknown };
+
+const MAX_BUILDS = Number(process.env.SLAB_THREAD_MAX_BUILDS ?? 100);
+let builds = 0;
+let kernel: Promise<Kernel> | undefined;
+let fonts: ReturnType<typeof parseFontBook> | undefined;
+
+function loadFonts() {
+  const dir = path.join(process.cwd(), "fonts");
+  const bytes = Object.fromEntries(Object.entries(ENGRAVING_FONTS).map(([id, f]) => [id, readFileSync(path.join(dir, f.file))])) as Record<EngravingFontId, Buffer>;
+  return parseFontBook(bytes);
+}
+
+function combine(meshes: IndexedMesh[]): IndexedMesh {
+  if (meshes.length === 1) return meshes[0]!;
+  const v: number[] = [], t: number[] = [];
+  for (const m of meshes) {
+    const base = v.length / 3;
+    for (const x of m.vertProperties) v.push(x);
+    for (const i of m.triVerts) t.push(i + base);
+  }
+  return { vertProperties: new Float32Array(v), triVerts: new Uint32Array(t) };
+}
+
+function retire() {
+  // Let piscina deliver this answer first, then end the thread; piscina starts a fresh one.
+  setTimeout(() => process.exit(0), 50);
+}
+
+export default async function build(task: BuildTask): Promise<BuildOutcome> {
+  kernel ??= loadKernel();
+  fonts ??= loadFonts();
+  const k = await kernel;
+  try {
+    const parts = task.parts.map((p, i) => {
+      const imported = importMesh(p.bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
+      const mesh = orientMesh(combine(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+      return { id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity };
+    });
+    const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
+    return { ok: true, result };
+  } catch (err) {
+    if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.message, details: err.details };
+    if (err instanceof WebAssembly.RuntimeError || (err instanceof RangeError && /memory/i.test(err.message))) {
+      retire();
+      return { ok: false, code: "out_of_memory", message: "The plate is too large to build in one go (the geometry kernel ran out of memory). Split the kit over more plates." };
+    }
+    if (err instanceof Error && err.name === "ZodError") return { ok: false, code: "invalid_options", message: err.message };
+    throw err;
+  } finally {
+    if (++builds >= MAX_BUILDS) retire();
+  }
+}

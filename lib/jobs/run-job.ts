@@ -1,0 +1,63 @@
+import { eq } from "drizzle-orm";
+import type { Piscina } from "piscina";
+import { db } from "@/db";
+import { plates, type Plate } from "@/db/schema";
+import { blobStore } from "@/lib/storage";
+import type { BuildOutcome, BuildTask } from "./build-thread";
+import { deliver } from "./webhook";
+
+const errorFindings = (findings: unknown[]) => (findings as { severity: string }[]).filter((f) => f.severity === "error");
+
+/**
+ * Run one plate's build: read its inputs, build in a pool thread, store both files, record the
+ * outcome on the plate, then call its webhook. A bad input (a mesh that does not import, options that
+ * cannot fit) fails the plate for good; anything unexpected is thrown so the queue retries the job.
+ */
+export async function runPlateJob(pool: Piscina, plateId: string, jobId: string): Promise<void> {
+  const [plate] = await db().select().from(plates).where(eq(plates.id, plateId));
+  if (!plate || !plate.input) throw new Error(`plate ${plateId} has no input`);
+  if (plate.jobState === "done" || plate.jobState === "failed") return; // finished by an earlier delivery of this job
+  await db().update(plates).set({ jobState: "running", progress: 0.1, jobId }).where(eq(plates.id, plateId));
+  const task: BuildTask = {
+    parts: await Promise.all(plate.input.parts.map(async (p) => ({ ...p, bytes: await blobStore().get(p.blobKey) }))),
+    options: plate.options,
+    variables: plate.variables,
+    title: plate.title ?? "Slabwright plate",
+  };
+  await db().update(plates).set({ progress: 0.3 }).where(eq(plates.id, plateId));
+  const outcome = (await pool.run(task)) as BuildOutcome;
+  if (!outcome.ok) {
+    await finish(plate, { jobState: "failed", status: "failed", error: { code: outcome.code, message: outcome.message, details: outcome.details } });
+    return;
+  }
+  const r = outcome.result;
+  if (errorFindings(r.findings).length || !r.stl || !r.threeMf) {
+    await finish(plate, { jobState: "failed", status: "failed", findings: r.findings, error: { code: "findings", message: "The plate has findings of severity error.", details: errorFindings(r.findings) } });
+    return;
+  }
+  await db().update(plates).set({ progress: 0.9 }).where(eq(plates.id, plateId));
+  const [stl, tmf] = await Promise.all([blobStore().put(r.stl), blobStore().put(r.threeMf)]);
+  await finish(plate, {
+    jobState: "done",
+    status: "ready",
+    stlBlobKey: stl.key,
+    threeMfBlobKey: tmf.key,
+    findings: r.findings,
+    estimates: r.estimates as unknown as Record<string, unknown>,
+    stats: { ...r.stats, layout: r.layout, pieces: r.pieces } as unknown as Record<string, unknown>,
+    pieceCount: r.pieces.length,
+  });
+}
+
+async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>) {
+  const finishedAt = new Date();
+  await db().update(plates).set({ ...set, progress: 1, finishedAt }).where(eq(plates.id, plate.id));
+  if (plate.callbackUrl) {
+    await deliver(plate.workspaceId, plate.callbackUrl, {
+      event: set.jobState === "done" ? "plate.done" : "plate.failed",
+      plate: { id: plate.id, status: set.status, error: set.error ?? null },
+      job: { id: plate.jobId, status: set.jobState },
+      at: finishedAt.toISOString(),
+    });
+  }
+}
