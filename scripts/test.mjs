@@ -71,6 +71,18 @@ function cleanUp() {
   stopApp();
   smtp?.kill("SIGTERM");
   worker?.kill("SIGTERM");
+  // Workers a test started in place of one it killed.
+  try {
+    for (const pid of fs.readFileSync(path.join(resultsDir, "extra-pids"), "utf8").split("\n").filter(Boolean)) {
+      try {
+        process.kill(Number(pid), "SIGTERM");
+      } catch {
+        // already gone
+      }
+    }
+  } catch {
+    // none
+  }
   if (startedPg) stopPostgres();
   lock.release();
 }
@@ -81,8 +93,9 @@ try {
   run(bin("tsx"), ["scripts/reset-test-state.ts"], { env });
   smtp = startFakeSmtp(env);
   // The build worker for the plate API tests; webhooks may call the tests' receiver on loopback.
-  Object.assign(env, { SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost", SLAB_JOB_EXPIRY_S: "8" });
+  Object.assign(env, { SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost", SLAB_JOB_EXPIRY_S: "6", SLAB_QUEUE_MAINTENANCE_S: "1", SLAB_THREAD_MAX_BUILDS: "5" });
   worker = startWorker(env);
+  env.SLAB_TEST_WORKER_PID = String(worker.pid);
 
   // One built app on the test port serves the HTTP integration tests and the browser tests.
   let app = null;

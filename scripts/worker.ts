@@ -2,29 +2,65 @@
  * The build worker: takes plate jobs from the PostgreSQL queue and builds them in a pool of worker
  * threads, one per core by default (SLAB_WORKER_THREADS). Run more of these on other machines with the
  * same DATABASE_URL (and the same blob storage) to share the work.
+ *
+ * Each thread slot runs its own fetch loop: it wakes at once on a NOTIFY from the app when a job is
+ * queued, and otherwise polls once a second (a job handed out again after a crash has no NOTIFY).
  */
 import os from "node:os";
+import pg from "pg";
 import { Piscina } from "piscina";
-import { BUILD_QUEUE, boss } from "@/lib/jobs/queue";
+import { env } from "@/lib/env";
+import { BUILD_QUEUE, boss, JOB_CHANNEL } from "@/lib/jobs/queue";
 import { runPlateJob } from "@/lib/jobs/run-job";
 
 const threads = Number(process.env.SLAB_WORKER_THREADS ?? Math.max(1, os.availableParallelism()));
 const pool = new Piscina({ filename: new URL("../lib/jobs/build-thread-entry.mjs", import.meta.url).href, minThreads: threads, maxThreads: threads, idleTimeout: 60_000 });
 const queue = await boss();
 
-// One subscription per thread, each taking one job at a time: a failing job fails alone.
-for (let i = 0; i < threads; i++) {
-  await queue.work<{ plateId: string }>(BUILD_QUEUE, { batchSize: 1, pollingIntervalSeconds: 0.5 }, async ([job]) => {
-    if (job) await runPlateJob(pool, job.data.plateId, job.id);
-  });
-}
-console.log(`worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}`);
+let wake: (() => void)[] = [];
+const nudge = () => {
+  const w = wake;
+  wake = [];
+  for (const f of w) f();
+};
+const listener = new pg.Client({ connectionString: env().DATABASE_URL });
+await listener.connect();
+listener.on("notification", nudge);
+await listener.query(`listen ${JOB_CHANNEL}`);
 
 let stopping = false;
+async function slot() {
+  while (!stopping) {
+    const [job] = await queue.fetch<{ plateId: string }>(BUILD_QUEUE, { batchSize: 1 }).catch((err: unknown) => {
+      console.error("[worker] fetch failed", err);
+      return [];
+    });
+    if (!job) {
+      await new Promise<void>((resolve) => {
+        wake.push(resolve);
+        setTimeout(resolve, 1000);
+      });
+      continue;
+    }
+    try {
+      await runPlateJob(pool, job.data.plateId, job.id);
+      await queue.complete(BUILD_QUEUE, job.id);
+    } catch (err) {
+      console.error(`[worker] job ${job.id} failed`, err);
+      await queue.fail(BUILD_QUEUE, job.id, { message: err instanceof Error ? err.message : String(err) }).catch(() => undefined);
+    }
+  }
+}
+const slots = Array.from({ length: threads }, () => slot());
+console.log(`worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}`);
+
 async function stop() {
   if (stopping) return;
   stopping = true;
-  await queue.stop({ graceful: true, timeout: 10_000 }).catch(() => undefined);
+  nudge();
+  await Promise.race([Promise.all(slots), new Promise((r) => setTimeout(r, 10_000))]);
+  await listener.end().catch(() => undefined);
+  await queue.stop({ graceful: true, timeout: 5_000 }).catch(() => undefined);
   await pool.destroy();
   process.exit(0);
 }

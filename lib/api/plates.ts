@@ -1,6 +1,7 @@
 import "server-only";
 import { createHash } from "node:crypto";
 import { and, eq, sql } from "drizzle-orm";
+import pg from "pg";
 import { z } from "zod";
 import { db } from "@/db";
 import { idempotencyKeys, kitParts, kits, parts, plates, type Plate, type PlateInput } from "@/db/schema";
@@ -9,13 +10,12 @@ import { ApiProblem } from "@/lib/api/respond";
 import { notFound } from "@/lib/auth/errors";
 import { sniffFormat } from "@/lib/geometry/import";
 import { slabOptionsSchema } from "@/lib/geometry/options";
-import { enqueueBuild } from "@/lib/jobs/queue";
+import { env } from "@/lib/env";
+import { enqueueBuild, PLATE_CHANNEL } from "@/lib/jobs/queue";
 import { callbackProblem } from "@/lib/jobs/webhook";
 import { blobStore } from "@/lib/storage";
+import { formatSchema, quantitySchema, variablesSchema } from "@/lib/validation/plates";
 
-export const formatSchema = z.enum(["stl", "3mf", "json"]);
-export const variablesSchema = z.record(z.string().regex(/^[a-z][a-z0-9_]*$/i), z.string().max(500));
-export const quantitySchema = z.array(z.number().int().min(1).max(500));
 
 function json<T>(raw: FormDataEntryValue | null, schema: z.ZodType<T>, field: string): T | undefined {
   if (raw === null || raw === "") return undefined;
@@ -160,13 +160,46 @@ export async function plateByJob(caller: ApiCaller, jobId: string): Promise<Plat
   return p;
 }
 
-/** Wait for a plate's build to end, up to `ms`; returns the latest row either way. */
+const gw = globalThis as unknown as { __slabPlateListener?: Promise<Map<string, Set<() => void>>> };
+
+/** One LISTEN connection per app process; a worker's NOTIFY wakes the requests waiting for that plate. */
+function plateListener(): Promise<Map<string, Set<() => void>>> {
+  gw.__slabPlateListener ??= (async () => {
+    const waiters = new Map<string, Set<() => void>>();
+    const client = new pg.Client({ connectionString: env().DATABASE_URL });
+    client.on("notification", (n) => {
+      for (const f of waiters.get(n.payload ?? "") ?? []) f();
+    });
+    client.on("error", (err) => {
+      console.error("[plates] listener lost", err);
+      gw.__slabPlateListener = undefined;
+    });
+    await client.connect();
+    await client.query(`listen ${PLATE_CHANNEL}`);
+    return waiters;
+  })();
+  return gw.__slabPlateListener;
+}
+
+/** Wait for a plate's build to end, up to `ms` (woken by the worker's NOTIFY, checked every second anyway). */
 export async function waitForPlate(id: string, ms: number): Promise<Plate> {
   const until = Date.now() + ms;
+  const waiters = await plateListener().catch(() => null);
   for (;;) {
     const [p] = await db().select().from(plates).where(eq(plates.id, id));
     if (!p || p.jobState === "done" || p.jobState === "failed" || Date.now() >= until) return p!;
-    await new Promise((r) => setTimeout(r, 100));
+    await new Promise<void>((resolve) => {
+      const set = waiters?.get(id) ?? new Set();
+      waiters?.set(id, set);
+      const done = () => {
+        set.delete(done);
+        if (set.size === 0) waiters?.delete(id);
+        clearTimeout(timer);
+        resolve();
+      };
+      const timer = setTimeout(done, Math.min(1000, Math.max(1, until - Date.now())));
+      set.add(done);
+    });
   }
 }
 

@@ -1,8 +1,13 @@
 import PgBoss from "pg-boss";
+import { pool } from "@/db/index";
 import { env } from "@/lib/env";
 
 /** The build queue lives in PostgreSQL (pg-boss): any number of worker processes on any machine share it. */
 export const BUILD_QUEUE = "plate-build";
+/** NOTIFY channel that wakes idle workers when a job is queued. */
+export const JOB_CHANNEL = "slab_jobs";
+/** NOTIFY channel on which a worker says a plate's build ended (payload: the plate id). */
+export const PLATE_CHANNEL = "slab_plates";
 
 /**
  * A job not finished within this many seconds is taken to be lost with its worker and is handed to
@@ -12,11 +17,12 @@ export function jobExpirySeconds(): number {
   return Number(process.env.SLAB_JOB_EXPIRY_S ?? 60);
 }
 
+/** How often the queue looks for expired jobs (those whose worker died) to hand them out again. */
 const g = globalThis as unknown as { __slabBoss?: Promise<PgBoss> };
 
 export function boss(): Promise<PgBoss> {
   g.__slabBoss ??= (async () => {
-    const b = new PgBoss({ connectionString: env().DATABASE_URL, max: 4 });
+    const b = new PgBoss({ connectionString: env().DATABASE_URL, max: 4, maintenanceIntervalSeconds: Number(process.env.SLAB_QUEUE_MAINTENANCE_S ?? 15) });
     b.on("error", (err) => console.error("[queue]", err));
     await b.start();
     await b.createQueue(BUILD_QUEUE, { name: BUILD_QUEUE, retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
@@ -28,5 +34,6 @@ export function boss(): Promise<PgBoss> {
 export async function enqueueBuild(plateId: string): Promise<string> {
   const id = await (await boss()).send(BUILD_QUEUE, { plateId }, { retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
   if (!id) throw new Error("the queue did not accept the build");
+  await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;
 }

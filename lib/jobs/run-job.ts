@@ -1,9 +1,10 @@
-import { eq } from "drizzle-orm";
+import { eq, sql } from "drizzle-orm";
 import type { Piscina } from "piscina";
 import { db } from "@/db";
 import { plates, type Plate } from "@/db/schema";
 import { blobStore } from "@/lib/storage";
 import type { BuildOutcome, BuildTask } from "./build-thread";
+import { PLATE_CHANNEL } from "./queue";
 import { deliver } from "./webhook";
 
 const errorFindings = (findings: unknown[]) => (findings as { severity: string }[]).filter((f) => f.severity === "error");
@@ -17,14 +18,13 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
   const [plate] = await db().select().from(plates).where(eq(plates.id, plateId));
   if (!plate || !plate.input) throw new Error(`plate ${plateId} has no input`);
   if (plate.jobState === "done" || plate.jobState === "failed") return; // finished by an earlier delivery of this job
-  await db().update(plates).set({ jobState: "running", progress: 0.1, jobId }).where(eq(plates.id, plateId));
+  await db().update(plates).set({ jobState: "running", progress: 0.2, jobId }).where(eq(plates.id, plateId));
   const task: BuildTask = {
     parts: await Promise.all(plate.input.parts.map(async (p) => ({ ...p, bytes: await blobStore().get(p.blobKey) }))),
     options: plate.options,
     variables: plate.variables,
     title: plate.title ?? "Slabwright plate",
   };
-  await db().update(plates).set({ progress: 0.3 }).where(eq(plates.id, plateId));
   const outcome = (await pool.run(task)) as BuildOutcome;
   if (!outcome.ok) {
     await finish(plate, { jobState: "failed", status: "failed", error: { code: outcome.code, message: outcome.message, details: outcome.details } });
@@ -52,6 +52,7 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
 async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>) {
   const finishedAt = new Date();
   await db().update(plates).set({ ...set, progress: 1, finishedAt }).where(eq(plates.id, plate.id));
+  await db().execute(sql`select pg_notify(${PLATE_CHANNEL}, ${plate.id})`);
   if (plate.callbackUrl) {
     await deliver(plate.workspaceId, plate.callbackUrl, {
       event: set.jobState === "done" ? "plate.done" : "plate.failed",

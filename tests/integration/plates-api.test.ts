@@ -178,3 +178,18 @@ describe("webhooks", () => {
     expect(Math.abs(Date.now() / 1000 - Number(m![1]))).toBeLessThan(60);
   });
 });
+
+describe("GET /api/v1/openapi.json", () => {
+  it("is a valid OpenAPI 3.1 document (checked by @seriousme/openapi-schema-validator) describing the plate routes", async () => {
+    const { Validator } = await import("@seriousme/openapi-schema-validator");
+    const doc = (await (await fetch(`${baseUrl()}/api/v1/openapi.json`)).json()) as { openapi: string; paths: Record<string, unknown>; components: { schemas: Record<string, { properties?: Record<string, unknown> }> } };
+    const v = new Validator();
+    const res = await v.validate(doc as never);
+    expect(res.errors ?? []).toEqual([]);
+    expect(res.valid).toBe(true);
+    expect(v.version).toBe("3.1");
+    expect(Object.keys(doc.paths)).toEqual(expect.arrayContaining(["/api/v1/plates", "/api/v1/jobs/{id}", "/api/v1/plates/{id}", "/api/v1/plates/{id}/file"]));
+    // Generated from the options schema itself: the canonical names are there.
+    expect(Object.keys(doc.components.schemas.SlabOptions!.properties!)).toEqual(expect.arrayContaining(["slab", "layout", "marks", "material", "nozzle", "layerHeight", "pricePerKg"]));
+  });
+});

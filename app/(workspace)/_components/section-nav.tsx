@@ -9,6 +9,7 @@ const sections = [
   { href: "/templates", label: "Templates" },
   { href: "/plates", label: "Plates" },
   { href: "/floor", label: "Floor" },
+  { href: "/developers", label: "API" },
   { href: "/settings", label: "Settings" },
 ];
 

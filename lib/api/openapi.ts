@@ -1,0 +1,111 @@
+import { z } from "zod";
+import { apiKeyScopes } from "@/db/schema/workspaces";
+import { slabOptionsSchema } from "@/lib/geometry/options";
+import { APP_VERSION } from "@/lib/version";
+import { formatSchema, quantitySchema, variablesSchema } from "@/lib/validation/plates";
+
+/** Response shapes of the public API, as zod schemas: the OpenAPI document is generated from them. */
+export const errorSchema = z.object({ error: z.object({ code: z.string(), message: z.string(), details: z.unknown().optional() }) });
+export const jobSchema = z
+  .object({
+    id: z.string(),
+    status: z.enum(["queued", "running", "done", "failed"]),
+    progress: z.number().min(0).max(1),
+    statusUrl: z.string(),
+    plate: z.object({ id: z.string(), url: z.string() }),
+    result: z.object({ stl: z.string(), "3mf": z.string() }).nullable(),
+    error: z.object({ code: z.string(), message: z.string(), details: z.unknown().optional() }).nullable(),
+  })
+  ;
+export const findingSchema = z
+  .object({ severity: z.enum(["error", "warning", "info"]), code: z.string(), message: z.string(), piece: z.number().int().optional(), pieces: z.array(z.number().int()).optional() })
+  ;
+export const plateSchema = z
+  .object({
+    plate: z.object({ id: z.string(), status: z.enum(["building", "ready", "failed"]), job: jobSchema, kitId: z.string().nullable(), pieceCount: z.number().int(), createdAt: z.string(), finishedAt: z.string().nullable(), title: z.string().nullable() }),
+    pieces: z.array(z.record(z.string(), z.unknown())),
+    layout: z.record(z.string(), z.unknown()).nullable(),
+    findings: z.array(findingSchema),
+    estimates: z.record(z.string(), z.unknown()).nullable(),
+    stats: z.record(z.string(), z.unknown()),
+  })
+  ;
+export const kitListSchema = z.object({ kits: z.array(z.object({ id: z.string(), name: z.string(), description: z.string().nullable(), updatedAt: z.string() })) });
+
+const plateForm = z.object({
+  part: z.array(z.string()).optional().describe("Mesh files (STL, 3MF, OBJ); the file name is the part's name. Repeat the field for several parts."),
+  kit: z.string().optional().describe("A stored kit's id, instead of part files."),
+  quantity: z.string().optional().describe(`JSON array of quantities matching the part order, e.g. [2, 1]. Schema: ${JSON.stringify(z.toJSONSchema(quantitySchema))}`),
+  options: z.string().optional().describe("JSON object with the slab builder's options (see the SlabOptions schema)."),
+  variables: z.string().optional().describe(`JSON object filling {name} placeholders. Schema: ${JSON.stringify(z.toJSONSchema(variablesSchema))}`),
+  format: formatSchema.optional(),
+  callbackUrl: z.string().optional().describe("http(s) URL called with a signed plate.done / plate.failed event."),
+  template: z.string().optional().describe("A template id; options override it."),
+});
+
+function schema(s: z.ZodType, io: "input" | "output" = "output") {
+  const { $schema: _drop, ...rest } = z.toJSONSchema(s, { io, unrepresentable: "any", reused: "inline" }) as Record<string, unknown>;
+  return rest;
+}
+
+const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
+const errors = (...codes: number[]) =>
+  Object.fromEntries(codes.map((c) => [String(c), { description: STATUS[c]!, content: { "application/json": { schema: ref("Error") } } }]));
+const STATUS: Record<number, string> = {
+  400: "Malformed request", 401: "Missing, unknown or revoked API key", 403: "The key lacks the scope", 404: "Not found (or another workspace's)", 409: "Conflict (Idempotency-Key reused with another request, or the plate is not ready)", 413: "Too large", 415: "Not multipart, or a part that is not a mesh", 422: "Invalid options or parts, or findings of severity error", 429: "Rate limited (see Retry-After)",
+};
+
+/** OpenAPI 3.1, generated from the same zod schemas the routes validate with. */
+export function openApiDocument() {
+  const idParam = (name: string) => ({ name, in: "path", required: true, schema: { type: "string" } });
+  return {
+    openapi: "3.1.0",
+    info: { title: "Slabwright API", version: APP_VERSION, description: "Post part meshes or name a kit and get a print-ready plate (carrier slab with marks) back." },
+    servers: [{ url: "/" }],
+    security: [{ apiKey: [] }],
+    components: {
+      securitySchemes: { apiKey: { type: "http", scheme: "bearer", description: `An API key from Settings → API keys. Scopes: ${apiKeyScopes.join(", ")}.` } },
+      schemas: { SlabOptions: schema(slabOptionsSchema, "input"), Error: schema(errorSchema), Job: schema(jobSchema), Finding: schema(findingSchema), Plate: schema(plateSchema), KitList: schema(kitListSchema) },
+    },
+    paths: {
+      "/api/v1/plates": {
+        post: {
+          operationId: "createPlate",
+          summary: "Make a plate (scope plates:write)",
+          parameters: [
+            { name: "Idempotency-Key", in: "header", required: false, schema: { type: "string", maxLength: 200 }, description: "Same key and request within 24 h → the same plate." },
+            { name: "Prefer", in: "header", required: false, schema: { type: "string", enum: ["respond-async"] }, description: "Answer 202 with the job at once." },
+            { name: "format", in: "query", required: false, schema: schema(formatSchema) },
+          ],
+          requestBody: { required: true, content: { "multipart/form-data": { schema: schema(plateForm, "input"), encoding: { part: { contentType: "application/octet-stream, model/stl, model/3mf, model/obj" } } } } },
+          responses: {
+            "200": {
+              description: "The plate file (or JSON with format=json). Headers X-Plate-Id and X-Plate-Warnings.",
+              headers: { "X-Plate-Id": { schema: { type: "string" } }, "X-Plate-Warnings": { schema: { type: "string" } } },
+              content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } }, "application/json": { schema: ref("Plate") } },
+            },
+            "202": { description: "Still building: poll the job.", content: { "application/json": { schema: { type: "object", properties: { job: ref("Job") }, required: ["job"] } } } },
+            ...errors(400, 401, 403, 404, 409, 413, 415, 422, 429),
+          },
+        },
+      },
+      "/api/v1/jobs/{id}": {
+        get: { operationId: "getJob", summary: "A build job (scope plates:read)", parameters: [idParam("id")], responses: { "200": { description: "The job", content: { "application/json": { schema: { type: "object", properties: { job: ref("Job") }, required: ["job"] } } } }, ...errors(401, 403, 404, 429) } },
+      },
+      "/api/v1/plates/{id}": {
+        get: { operationId: "getPlate", summary: "A plate (scope plates:read)", parameters: [idParam("id")], responses: { "200": { description: "The plate", content: { "application/json": { schema: ref("Plate") } } }, ...errors(401, 403, 404, 429) } },
+      },
+      "/api/v1/plates/{id}/file": {
+        get: {
+          operationId: "getPlateFile",
+          summary: "A plate's file (scope plates:read)",
+          parameters: [idParam("id"), { name: "format", in: "query", required: false, schema: { type: "string", enum: ["stl", "3mf"] } }],
+          responses: { "200": { description: "The file", content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } } } }, ...errors(400, 401, 403, 404, 409, 429) },
+        },
+      },
+      "/api/v1/kits": {
+        get: { operationId: "listKits", summary: "The workspace's kits (scope kits:read)", responses: { "200": { description: "Kits", content: { "application/json": { schema: ref("KitList") } } }, ...errors(401, 403, 429) } },
+      },
+    },
+  };
+}
