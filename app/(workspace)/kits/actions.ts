@@ -1,6 +1,13 @@
 "use server";
 
+import { eq } from "drizzle-orm";
 import { revalidatePath } from "next/cache";
+import { z } from "zod";
+import { db } from "@/db";
+import { plates } from "@/db/schema";
+import { createPlate, readPlateRequest } from "@/lib/api/plates";
+import { ApiProblem } from "@/lib/api/respond";
+import { maxUploadBytes } from "@/lib/parts/upload";
 import { archiveKit, duplicateKit, saveKit } from "@/db/queries/kits";
 import { guardedAction } from "@/lib/auth/guards";
 import { idSchema } from "@/lib/validation/accounts";
@@ -22,4 +29,24 @@ export const archiveKitAction = guardedAction(idSchema, "kits:write", "archiving
   await archiveKit(caller, input.id);
   revalidatePath("/kits");
   return { ok: true, data: undefined, message: "Kit archived." };
+});
+
+const makePlateSchema = z.object({ kitId: z.string().min(1), options: z.record(z.string(), z.unknown()), variables: z.record(z.string(), z.string()) });
+
+/** "Make the plate" in the slab editor: the same queue and worker as the API. */
+export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "making plates", async (input, caller) => {
+  const form = new FormData();
+  form.set("kit", input.kitId);
+  form.set("options", JSON.stringify(input.options));
+  form.set("variables", JSON.stringify(input.variables));
+  try {
+    const request = await readPlateRequest({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, form, null, maxUploadBytes());
+    const { plate } = await createPlate({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, { ...request, title: request.title }, null);
+    await db().update(plates).set({ source: "editor", createdBy: caller.user.id }).where(eq(plates.id, plate.id));
+    revalidatePath("/plates");
+    return { ok: true, data: { plateId: plate.id } };
+  } catch (err) {
+    if (err instanceof ApiProblem) return { ok: false, code: err.code, message: err.message };
+    throw err;
+  }
 });

@@ -32,6 +32,9 @@ export default async function KitsPage() {
                   {k.name}
                 </Link>
                 {k.description ? <span className="block text-xs text-muted">{k.description}</span> : null}
+                <Link href={`/kits/${k.id}/slab`} className="text-xs text-accent hover:underline">
+                  Slab editor →
+                </Link>
               </td>
               <td className="px-3 py-2 font-mono">{k.pieces}</td>
               <td className="px-3 py-2 text-muted">{k.lastPlateAt ? when(k.lastPlateAt) : "none yet"}</td>

@@ -1,0 +1,78 @@
+"use client";
+
+import { useRef, useState } from "react";
+import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
+
+const path = (contours: [number, number][][]) => contours.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${y.toFixed(2)}`).join("L")}Z`).join("");
+
+/**
+ * The plate map, to scale (1 unit = 1 mm, y up): the slab, each piece's outline and number. Drag a
+ * piece to move it (snapped to 0.5 mm; hold Alt for free moves).
+ */
+export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }: { layout: PlateLayout; pieces: PlacedPiece[]; selected?: number; flagged: Set<number>; onSelect: (n?: number) => void; onMove: (piece: PlacedPiece, dx: number, dy: number) => void }) {
+  const svg = useRef<SVGSVGElement>(null);
+  const [drag, setDrag] = useState<{ piece: PlacedPiece; x0: number; y0: number; dx: number; dy: number } | null>(null);
+  const { width: W, depth: D } = layout.slab;
+  const toMm = (e: React.PointerEvent) => {
+    const m = svg.current!.getScreenCTM()!.inverse();
+    const p = new DOMPoint(e.clientX, e.clientY).matrixTransform(m);
+    return { x: p.x, y: D - p.y };
+  };
+  return (
+    <svg
+      ref={svg}
+      viewBox={`-2 -2 ${W + 4} ${D + 4}`}
+      className="h-full w-full touch-none select-none"
+      role="img"
+      aria-label={`Plate map: a ${W.toFixed(0)} × ${D.toFixed(0)} mm slab with ${pieces.length} pieces`}
+      data-testid="plate-map"
+      onPointerMove={(e) => {
+        if (!drag) return;
+        const p = toMm(e);
+        let dx = p.x - drag.x0, dy = p.y - drag.y0;
+        if (!e.altKey) {
+          dx = Math.round(dx * 2) / 2;
+          dy = Math.round(dy * 2) / 2;
+        }
+        setDrag({ ...drag, dx, dy });
+      }}
+      onPointerUp={() => {
+        if (drag && (drag.dx || drag.dy)) onMove(drag.piece, drag.dx, drag.dy);
+        setDrag(null);
+      }}
+      onPointerLeave={() => setDrag(null)}
+    >
+      <g transform={`translate(0 ${D}) scale(1 -1)`}>
+        <path d={path(layout.slab.outline)} fill="#efe8dc" stroke="#c9bfae" strokeWidth={0.4} />
+        {layout.marks.map((m, i) => (
+          <rect key={i} x={m.bounds.minX} y={m.bounds.minY} width={m.bounds.maxX - m.bounds.minX} height={m.bounds.maxY - m.bounds.minY} fill="none" stroke="#a99c86" strokeDasharray="1 1" strokeWidth={0.3} />
+        ))}
+        {pieces.map((p) => {
+          const moving = drag?.piece.number === p.number;
+          const colour = p.number === selected ? "#6d4aff" : flagged.has(p.number) ? "#b7791f" : "#4a4f57";
+          return (
+            <g
+              key={p.number}
+              transform={moving ? `translate(${drag.dx} ${drag.dy})` : undefined}
+              data-testid={`map-piece-${p.number}`}
+              className="cursor-grab"
+              onPointerDown={(e) => {
+                e.currentTarget.ownerSVGElement?.setPointerCapture?.(e.pointerId);
+                const q = toMm(e);
+                onSelect(p.number);
+                setDrag({ piece: p, x0: q.x, y0: q.y, dx: 0, dy: 0 });
+              }}
+            >
+              <path d={path(p.outline)} fill={colour} fillOpacity={0.85} stroke="#1f2328" strokeWidth={0.2} />
+            </g>
+          );
+        })}
+      </g>
+      {pieces.map((p) => (
+        <text key={p.number} x={p.bounds.minX - 0.5 + (drag?.piece.number === p.number ? drag.dx : 0)} y={D - p.bounds.maxY - 0.5 - (drag?.piece.number === p.number ? drag.dy : 0)} fontSize={4} fontFamily="var(--font-mono)" fill="#5c6370" textAnchor="end">
+          {p.number}
+        </text>
+      ))}
+    </svg>
+  );
+}

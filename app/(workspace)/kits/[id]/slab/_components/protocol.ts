@@ -1,0 +1,21 @@
+import type { Finding } from "@/lib/geometry/checks";
+import type { Estimates } from "@/lib/geometry/estimates";
+import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
+import type { SlabOptionsInput } from "@/lib/geometry/options";
+
+/**
+ * Messages between the slab editor and its Web Worker, which runs the same lib/geometry engine as the
+ * server. The worker keeps the parts' meshes between edits; each `build` re-lays and re-marks the slab.
+ */
+export type EditorPart = { id: string; name: string; quantity: number; rotation: number; orientation: "as-imported" | "lay-flat" | "turned" };
+
+export type ToWorker =
+  | { type: "init"; parts: EditorPart[] }
+  | { type: "build"; seq: number; options: SlabOptionsInput; variables: Record<string, string> };
+
+export type Body = { name: string; piece?: number; positions: Float32Array; indices: Uint32Array };
+
+export type FromWorker =
+  | { type: "ready"; ms: number; triangles: number }
+  | { type: "built"; seq: number; ms: number; bodies: Body[]; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null }
+  | { type: "error"; seq?: number; message: string };

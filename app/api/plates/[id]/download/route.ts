@@ -1,0 +1,15 @@
+import { apiRoute, ApiProblem } from "@/lib/api/respond";
+import { plateFile } from "@/lib/api/plates";
+import { sessionPlate } from "@/lib/api/session-plates";
+import { authorize } from "@/lib/auth/guards";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+/** GET /api/plates/{id}/download?format=stl|3mf — for signed-in members allowed to download plate files. */
+export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
+  const caller = await authorize("plates:download", "downloading plate files");
+  const format = new URL(req.url).searchParams.get("format") ?? "3mf";
+  if (format !== "stl" && format !== "3mf") throw new ApiProblem(400, "bad_request", "format must be stl or 3mf.");
+  return plateFile(await sessionPlate(caller, (await ctx.params).id), format);
+});
