@@ -8,7 +8,7 @@
 import { spawn } from "node:child_process";
 import { readFileSync } from "node:fs";
 import { buildPlate } from "../lib/geometry/build-plate";
-import { hexTile, pawn } from "../lib/geometry/demo-shapes";
+import { DEMO_PAWN_SEGMENTS, hexTile, pawn } from "../lib/geometry/demo-shapes";
 import { loadKernel } from "../lib/geometry/kernel";
 import { orientMesh } from "../lib/geometry/orient";
 import { benchFonts } from "./kit";
@@ -52,7 +52,7 @@ const kernel = await loadKernel();
 const fonts = benchFonts();
 const parts = [
   { id: "tile", name: "Harbour tile", mesh: orientMesh(hexTile()), quantity: 4 },
-  { id: "pawn", name: "Beacon pawn", mesh: orientMesh(pawn()), quantity: 2 },
+  { id: "pawn", name: "Beacon pawn", mesh: orientMesh(pawn(DEMO_PAWN_SEGMENTS)), quantity: 2 },
 ];
 buildPlate(kernel, { parts, fonts, formats: ["stl", "3mf"] });
 const t0 = performance.now();

@@ -9,7 +9,7 @@ import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, users, works
 import { generateApiKey, hashApiKey } from "@/lib/auth/api-keys";
 import { hashPassword, verifyPassword } from "@/lib/auth/password";
 import { env } from "@/lib/env";
-import { hexTile, pawn } from "@/lib/geometry/demo-shapes";
+import { DEMO_PAWN_SEGMENTS, hexTile, pawn } from "@/lib/geometry/demo-shapes";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { loadKernel } from "@/lib/geometry/kernel";
 import { bounds, signedVolume, triangleCount, type IndexedMesh } from "@/lib/geometry/mesh";
@@ -64,7 +64,7 @@ function partRow(name: string, raw: IndexedMesh, kernel: Awaited<ReturnType<type
 
 export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCredentials> {
   const kernel = await loadKernel();
-  const demoParts = [partRow("Harbour tile", hexTile(), kernel), partRow("Beacon pawn", pawn(), kernel)];
+  const demoParts = [partRow("Harbour tile", hexTile(), kernel), partRow("Beacon pawn", pawn(DEMO_PAWN_SEGMENTS), kernel)];
   // Bytes first: content-addressed, so a retry after a failed transaction reuses them.
   const stored = await Promise.all(demoParts.map((p) => blobStore().put(p.stl)));
   const savedKey = await readSavedKey();
@@ -105,10 +105,13 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
         const [existing] = await tx
           .select({ id: parts.id })
           .from(parts)
-          .where(and(eq(parts.workspaceId, ws.id), eq(parts.blobKey, blob.key)));
+          .where(and(eq(parts.workspaceId, ws.id), eq(parts.name, p.name), eq(parts.uploadedBy, userIds.designer)));
         if (existing) {
-          // Fill in what later versions measure (thumbnails, contact area) on rows seeded before them.
-          await tx.update(parts).set({ thumbnailSvg: p.thumbnailSvg, contactArea: p.contactArea }).where(eq(parts.id, existing.id));
+          // Bring a part seeded by an earlier version up to date (mesh, thumbnail, measurements).
+          await tx
+            .update(parts)
+            .set({ blobKey: blob.key, byteSize: blob.size, triangles: p.triangles, sizeX: p.sizeX, sizeY: p.sizeY, sizeZ: p.sizeZ, volume: p.volume, thumbnailSvg: p.thumbnailSvg, contactArea: p.contactArea })
+            .where(eq(parts.id, existing.id));
           partIds.push(existing.id);
           continue;
         }

@@ -34,6 +34,13 @@ const server = new SMTPServer({
   },
 });
 
+server.on("error", (err: NodeJS.ErrnoException) => {
+  if (err.code === "EADDRINUSE") {
+    console.error(`fake SMTP: 127.0.0.1:${port} is taken (another copy running?); mail goes to whatever listens there. Set SLAB_SMTP_PORT to use another port.`);
+    process.exit(0);
+  }
+  console.error("fake SMTP:", err);
+});
 server.listen(port, "127.0.0.1", () => console.log(`fake SMTP listening on 127.0.0.1:${port}`));
 const stop = () => server.close(() => pool.end().then(() => process.exit(0)));
 process.on("SIGTERM", stop);

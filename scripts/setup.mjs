@@ -211,7 +211,8 @@ export async function waitForHttp(url, timeoutMs = 60_000) {
 /** Our fake SMTP server (development and tests), unless SMTP_URL names a real relay. */
 export function startFakeSmtp(env) {
   if (process.env.SMTP_URL) return null;
-  return spawn(bin("tsx"), ["scripts/fake-smtp.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
+  // Node itself with tsx's loader (not the tsx wrapper), so stopping the child stops the server.
+  return spawn(process.execPath, ["--import", "tsx", "scripts/fake-smtp.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
 }
 
 /** The build worker (queue consumer with its thread pool): `npm start` and `npm test` run one. */

@@ -61,6 +61,9 @@ export function hexTile(across = 30, height = 4, chamfer = 0.4): IndexedMesh {
   return loft([ring(0, r - inset), ring(chamfer, r), ring(height - chamfer, r), ring(height, r - inset)]);
 }
 
+/** Segments of the seeded demo pawn (≈24k triangles each, so the demo kit is ≈48k on a plate). */
+export const DEMO_PAWN_SEGMENTS = 800;
+
 /** A turned pawn: base, waist, collar and a domed head, revolved from a radius profile. */
 export function pawn(segments = 48): IndexedMesh {
   const profile: [number, number][] = [

@@ -17,7 +17,7 @@ import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { orientMesh } from "@/lib/geometry/orient";
 
 export type BuildTask = {
-  parts: { name: string; bytes: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number }[];
+  parts: { name: string; blobKey: string; bytes: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number }[];
   options: SlabOptionsInput;
   variables: Record<string, string>;
   title: string;
@@ -31,6 +31,12 @@ const MAX_BUILDS = Number(process.env.SLAB_THREAD_MAX_BUILDS ?? 100);
 let builds = 0;
 let kernel: Promise<Kernel> | undefined;
 let fonts: ReturnType<typeof parseFontBook> | undefined;
+/**
+ * Parts already read and oriented by this thread, by content key and reading: an order system sends
+ * the same kit again and again, and importing (weld + kernel check) costs more than the build itself.
+ */
+const meshCache = new Map<string, IndexedMesh>();
+const CACHE_ENTRIES = 64;
 
 function loadFonts() {
   const dir = path.join(process.cwd(), "fonts");
@@ -60,8 +66,14 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
   const k = await kernel;
   try {
     const parts = task.parts.map((p, i) => {
-      const imported = importMesh(p.bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
-      const mesh = orientMesh(combine(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+      const cacheKey = `${p.blobKey}|${p.unit ?? ""}|${p.layFlat ? 1 : 0}|${p.turned ? 1 : 0}|${p.rotation ?? 0}`;
+      let mesh = meshCache.get(cacheKey);
+      if (!mesh) {
+        const imported = importMesh(p.bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
+        mesh = orientMesh(combine(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+        if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
+        meshCache.set(cacheKey, mesh);
+      }
       return { id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity };
     });
     const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
