@@ -42,6 +42,10 @@ server.on("error", (err: NodeJS.ErrnoException) => {
   console.error("fake SMTP:", err);
 });
 server.listen(port, "127.0.0.1", () => console.log(`fake SMTP listening on 127.0.0.1:${port}`));
-const stop = () => server.close(() => pool.end().then(() => process.exit(0)));
+const stop = () => {
+  // Do not wait for idle SMTP sessions to time out.
+  setTimeout(() => process.exit(0), 1500).unref();
+  server.close(() => pool.end().then(() => process.exit(0)));
+};
 process.on("SIGTERM", stop);
 process.on("SIGINT", stop);

@@ -55,6 +55,9 @@ function shutdown(code) {
   if (stopping) return;
   stopping = true;
   log("stopping");
+  // Stop the app, the mail fake and the worker, wait for them (at most 8 s), then the database.
+  const children = [child, smtp, worker].filter((c) => c && c.exitCode === null && c.signalCode === null);
+  let left = children.length;
   const finish = () => {
     // npm start owns the database: stop it (also one left running by an earlier crash) unless a
     // test run is using it right now.
@@ -62,12 +65,19 @@ function shutdown(code) {
     lock.release();
     process.exit(code);
   };
-  if (child && child.exitCode === null) {
-    child.once("exit", finish);
-    child.kill("SIGTERM");
-    setTimeout(() => child.kill("SIGKILL"), 8000).unref();
-  } else {
+  if (left === 0) return finish();
+  const timer = setTimeout(() => {
+    for (const c of children) c.kill("SIGKILL");
     finish();
+  }, 8000);
+  for (const c of children) {
+    c.once("exit", () => {
+      if (--left === 0) {
+        clearTimeout(timer);
+        finish();
+      }
+    });
+    c.kill("SIGTERM");
   }
 }
 process.on("SIGINT", () => shutdown(0));
