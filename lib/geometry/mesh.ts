@@ -66,3 +66,19 @@ export function openOrMisorientedEdges(mesh: IndexedMesh): number {
   }
   return bad;
 }
+
+/** Several meshes as one (vertex lists appended, indices shifted): a part made of several bodies. */
+export function combineMeshes(meshes: IndexedMesh[]): IndexedMesh {
+  if (meshes.length === 1) return meshes[0]!;
+  const nv = meshes.reduce((s, m) => s + m.vertProperties.length, 0);
+  const nt = meshes.reduce((s, m) => s + m.triVerts.length, 0);
+  const v = new Float32Array(nv), t = new Uint32Array(nt);
+  let vo = 0, to = 0;
+  for (const m of meshes) {
+    v.set(m.vertProperties, vo);
+    for (let i = 0; i < m.triVerts.length; i++) t[to + i] = m.triVerts[i]! + vo / 3;
+    vo += m.vertProperties.length;
+    to += m.triVerts.length;
+  }
+  return { vertProperties: v, triVerts: t };
+}

@@ -12,7 +12,7 @@ import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId } from "@/lib/geom
 import { importMesh } from "@/lib/geometry/import";
 import type { Unit } from "@/lib/geometry/io/raw";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
-import type { IndexedMesh } from "@/lib/geometry/mesh";
+import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { orientMesh } from "@/lib/geometry/orient";
 
@@ -44,16 +44,6 @@ function loadFonts() {
   return parseFontBook(bytes);
 }
 
-function combine(meshes: IndexedMesh[]): IndexedMesh {
-  if (meshes.length === 1) return meshes[0]!;
-  const v: number[] = [], t: number[] = [];
-  for (const m of meshes) {
-    const base = v.length / 3;
-    for (const x of m.vertProperties) v.push(x);
-    for (const i of m.triVerts) t.push(i + base);
-  }
-  return { vertProperties: new Float32Array(v), triVerts: new Uint32Array(t) };
-}
 
 function retire() {
   // Let piscina deliver this answer first, then end the thread; piscina starts a fresh one.
@@ -70,7 +60,7 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       let mesh = meshCache.get(cacheKey);
       if (!mesh) {
         const imported = importMesh(p.bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
-        mesh = orientMesh(combine(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+        mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
         meshCache.set(cacheKey, mesh);
       }

@@ -7,7 +7,7 @@ import { MeshImportError } from "@/lib/geometry/errors";
 import { importMesh, type ImportResult } from "@/lib/geometry/import";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { UNIT_MM, type Unit } from "@/lib/geometry/io/raw";
-import { bounds, signedVolume, type IndexedMesh } from "@/lib/geometry/mesh";
+import { bounds, combineMeshes, signedVolume, type IndexedMesh } from "@/lib/geometry/mesh";
 import { orientMesh } from "@/lib/geometry/orient";
 import { topViewSvg } from "@/lib/geometry/thumbnail";
 import { serverKernel } from "@/lib/kernel-server";
@@ -18,20 +18,6 @@ export type IngestOutcome =
   | { ok: true; file: string; parts: StoredPart[] }
   | { ok: false; file: string; code: string; message: string; details?: Record<string, unknown> };
 
-function combine(meshes: IndexedMesh[]): IndexedMesh {
-  if (meshes.length === 1) return meshes[0]!;
-  const nv = meshes.reduce((s, m) => s + m.vertProperties.length, 0);
-  const nt = meshes.reduce((s, m) => s + m.triVerts.length, 0);
-  const v = new Float32Array(nv), t = new Uint32Array(nt);
-  let vo = 0, to = 0;
-  for (const m of meshes) {
-    v.set(m.vertProperties, vo);
-    for (let i = 0; i < m.triVerts.length; i++) t[to + i] = m.triVerts[i]! + vo / 3;
-    vo += m.vertProperties.length;
-    to += m.triVerts.length;
-  }
-  return { vertProperties: v, triVerts: t };
-}
 
 /** Everything the library shows about a part, measured on the mesh as it will stand on the slab. */
 async function measure(mesh: IndexedMesh, layFlat: boolean) {
@@ -80,7 +66,7 @@ export async function ingestFile(caller: Caller, bytes: Uint8Array, fileName: st
     const groups = opts.split && result.bodies.length > 1 ? result.bodies.map((b) => ({ name: b.name, meshes: [b.mesh], own: true })) : [{ name: stemOf(fileName), meshes: result.bodies.map((b) => b.mesh), own: false }];
     const rows: (typeof parts.$inferInsert)[] = [];
     for (const g of groups) {
-      const mesh = combine(g.meshes);
+      const mesh = combineMeshes(g.meshes);
       // A split body is stored as its own STL (already in millimetres); a whole file as uploaded.
       const data = g.own ? writeBinaryStl([mesh]) : bytes;
       const put = await blobStore().put(data);
@@ -125,7 +111,7 @@ const EXT: Record<Part["format"], string> = { stl: "stl", "3mf": "3mf", obj: "ob
 export async function loadPartMesh(part: Part): Promise<IndexedMesh> {
   const bytes = await blobStore().get(part.blobKey);
   const r = importMesh(bytes, await serverKernel(), { fileName: `${part.name}.${EXT[part.format]}`, unit: part.unit as Unit });
-  return orientMesh(combine(r.bodies.map((b) => b.mesh)), { layFlat: part.layFlat });
+  return orientMesh(combineMeshes(r.bodies.map((b) => b.mesh)), { layFlat: part.layFlat });
 }
 
 /** Rename, change the unit it is read in, or lay it flat; measurements follow. */
@@ -137,7 +123,7 @@ export async function updatePart(caller: Caller, id: string, change: { name?: st
   if ((change.unit && change.unit !== part.unit) || (change.layFlat !== undefined && change.layFlat !== part.layFlat)) {
     const bytes = await blobStore().get(part.blobKey);
     const r = importMesh(bytes, await serverKernel(), { fileName: `${part.name}.${EXT[part.format]}`, unit: next.unit as Unit });
-    measured = { ...(await measure(combine(r.bodies.map((b) => b.mesh)), next.layFlat)), warnings: r.warnings };
+    measured = { ...(await measure(combineMeshes(r.bodies.map((b) => b.mesh)), next.layFlat)), warnings: r.warnings };
   }
   const [row] = await db()
     .update(parts)

@@ -2,11 +2,10 @@ import { mkdtempSync, readFileSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { expect, test } from "@playwright/test";
+import { signInAs } from "./helpers";
 import { pawn } from "@/lib/geometry/demo-shapes";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 
-type Creds = { users: { email: string; password: string; role: string }[] };
-const designer = () => (JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as Creds).users.find((u) => u.role === "designer")!;
 
 test("the demo designer uploads three files (one broken), sees progress and the refusal, and makes a kit of two parts × 3", async ({ page }) => {
   const tag = Date.now().toString(36);
@@ -19,12 +18,7 @@ test("the demo designer uploads three files (one broken), sees progress and the 
   const broken = path.join(dir, `bunny-${tag}.stl`);
   writeFileSync(broken, readFileSync("node_modules/stl-models/objects/bunny.bin.stl")); // has holes
 
-  await page.goto("/sign-in");
-  const f = page.getByRole("form", { name: "Sign in with a password" });
-  await f.getByLabel("E-mail").fill(designer().email);
-  await f.getByLabel("Password").fill(designer().password);
-  await f.getByRole("button", { name: "Sign in" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
+  await signInAs(page, "designer");
 
   const cdp = await page.context().newCDPSession(page);
   await cdp.send("Network.enable");

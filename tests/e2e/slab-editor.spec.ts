@@ -1,16 +1,9 @@
-import { readFileSync } from "node:fs";
 import { expect, test } from "@playwright/test";
+import { signInAs } from "./helpers";
 
-type Creds = { users: { email: string; password: string; role: string }[] };
-const designer = () => (JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as Creds).users.find((u) => u.role === "designer")!;
 
 test("a designer tunes the demo kit's slab live, places a piece by hand, and makes the plate", async ({ page }) => {
-  await page.goto("/sign-in");
-  const f = page.getByRole("form", { name: "Sign in with a password" });
-  await f.getByLabel("E-mail").fill(designer().email);
-  await f.getByLabel("Password").fill(designer().password);
-  await f.getByRole("button", { name: "Sign in" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
+  await signInAs(page, "designer");
   await page.goto("/kits");
   await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
 

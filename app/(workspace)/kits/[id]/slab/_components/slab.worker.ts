@@ -5,7 +5,7 @@ import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId, type FontBook } f
 import { importMesh } from "@/lib/geometry/import";
 import type { Unit } from "@/lib/geometry/io/raw";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
-import type { IndexedMesh } from "@/lib/geometry/mesh";
+import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import { orientMesh } from "@/lib/geometry/orient";
 import type { FromWorker, ToWorker } from "./protocol";
 
@@ -17,16 +17,6 @@ let parts: PlatePart[] = [];
 let pending: Extract<ToWorker, { type: "build" }> | null = null;
 let busy = false;
 
-function combine(meshes: IndexedMesh[]): IndexedMesh {
-  if (meshes.length === 1) return meshes[0]!;
-  const v: number[] = [], t: number[] = [];
-  for (const m of meshes) {
-    const base = v.length / 3;
-    for (const x of m.vertProperties) v.push(x);
-    for (const i of m.triVerts) t.push(i + base);
-  }
-  return { vertProperties: new Float32Array(v), triVerts: new Uint32Array(t) };
-}
 
 async function init(msg: Extract<ToWorker, { type: "init" }>) {
   const t0 = performance.now();
@@ -41,7 +31,7 @@ async function init(msg: Extract<ToWorker, { type: "init" }>) {
       const bytes = new Uint8Array(await res.arrayBuffer());
       const r = importMesh(bytes, kernel!, { fileName: `${p.name}.${res.headers.get("x-part-format") ?? "stl"}`, unit: (res.headers.get("x-part-unit") ?? undefined) as Unit | undefined });
       const layFlat = res.headers.get("x-part-lay-flat") === "1" || p.orientation === "lay-flat";
-      const mesh = orientMesh(combine(r.bodies.map((b) => b.mesh)), { layFlat, turnX: p.orientation === "turned" ? 2 : 0, rotateZ: p.rotation });
+      const mesh = orientMesh(combineMeshes(r.bodies.map((b) => b.mesh)), { layFlat, turnX: p.orientation === "turned" ? 2 : 0, rotateZ: p.rotation });
       return { id: p.id, name: p.name, mesh, quantity: p.quantity };
     }),
   );
