@@ -7,17 +7,20 @@ import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import type { Body } from "./protocol";
 
 function Controls({ top, center }: { top: boolean; center: [number, number, number] }) {
-  const { camera, gl } = useThree();
+  const { camera, gl, invalidate } = useThree();
   useEffect(() => {
     const c = new OrbitControls(camera, gl.domElement);
+    // Frames are drawn on demand (after a change or while the view is moved), not 60 times a second.
+    c.addEventListener("change", () => invalidate());
     c.target.set(...center);
     const d = Math.max(center[0], center[1]) * 2.6 + 40;
     if (top) camera.position.set(center[0], center[1], d);
     else camera.position.set(center[0] + d * 0.45, center[1] - d * 0.75, d * 0.6);
     camera.up.set(0, 0, 1);
     c.update();
+    invalidate();
     return () => c.dispose();
-  }, [camera, gl, top, center]);
+  }, [camera, gl, top, center, invalidate]);
   return null;
 }
 
@@ -42,7 +45,7 @@ function BodyMesh({ body, selected, flagged, onPick }: { body: Body; selected: b
 export function View3D({ bodies, size, top, selected, flagged, onPick }: { bodies: Body[]; size: { width: number; depth: number }; top: boolean; selected?: number; flagged: Set<number>; onPick: (n?: number) => void }) {
   const center = useMemo<[number, number, number]>(() => [size.width / 2, size.depth / 2, 0], [size.width, size.depth]);
   return (
-    <Canvas camera={{ fov: 35, near: 1, far: 5000 }} data-testid="view-3d" onPointerMissed={() => onPick(undefined)}>
+    <Canvas frameloop="demand" camera={{ fov: 35, near: 1, far: 5000 }} data-testid="view-3d" onPointerMissed={() => onPick(undefined)}>
       <ambientLight intensity={0.55} />
       <directionalLight position={[size.width, -size.depth, 300]} intensity={1.6} />
       <directionalLight position={[-100, 200, 150]} intensity={0.4} />
