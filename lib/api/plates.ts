@@ -234,7 +234,9 @@ export async function plateFile(plate: Plate, format: "stl" | "3mf"): Promise<Re
   if (!key || plate.jobState !== "done") throw new ApiProblem(409, "not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
   const bytes = await blobStore().get(key);
   const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
-  const name = `${(plate.title ?? "plate").replace(/[^A-Za-z0-9._-]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate"}-${plate.id.slice(0, 8)}.${format}`;
+  // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.
+  const stem = (plate.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
+  const name = `${stem}-${plate.createdAt.toISOString().slice(0, 10)}-${plate.id.slice(0, 4)}.${format}`;
   return new Response(new Uint8Array(bytes), {
     headers: {
       "Content-Type": format === "stl" ? "model/stl" : "model/3mf",

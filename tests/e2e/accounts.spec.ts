@@ -54,6 +54,7 @@ test("an invited person signs up from the e-mailed link, joins the demo workspac
   await p.getByRole("button", { name: /Join Marrowby/ }).click();
   await expect(p).toHaveURL(/\/parts$/);
   await expect(p.getByTestId("whoami")).toContainText("Operator");
+  await p.getByLabel("Search parts").fill("Harbour tile");
   await expect(p.getByTestId("part-Harbour tile")).toBeVisible();
   // An operator sees the members but cannot manage them, keys or the audit log.
   await p.goto("/settings");

@@ -38,7 +38,9 @@ test("the demo owner signs in, sees the demo parts and kit, and signs out", asyn
   await form.getByRole("button", { name: "Sign in" }).click();
   await expect(page).toHaveURL(/\/parts$/);
   await expect(page.getByTestId("whoami")).toContainText("Owner");
+  await page.getByLabel("Search parts").fill("Harbour tile");
   await expect(page.getByTestId("part-Harbour tile")).toBeVisible();
+  await page.getByLabel("Search parts").fill("Beacon pawn");
   await expect(page.getByTestId("part-Beacon pawn")).toBeVisible();
   await page.getByRole("link", { name: "Kits" }).click();
   await expect(page.getByRole("cell", { name: /Harbour Run token set/ })).toBeVisible();

@@ -42,3 +42,68 @@ test("a designer tunes the demo kit's slab live, places a piece by hand, and mak
   await page.goto("/plates");
   await expect(page.getByRole("row", { name: /Harbour Run token set/ }).first()).toContainText("slab editor");
 });
+
+test("disc outline, a text line and a QR code change the preview; the downloaded STL holds the slab and every piece", async ({ page }) => {
+  test.setTimeout(90_000);
+  await page.setViewportSize({ width: 1440, height: 1000 });
+  await signInAs(page, "designer");
+  await page.goto("/kits");
+  await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
+  await expect(page.getByTestId("preview-ms")).toContainText("frame");
+  const canvas = page.getByTestId("view-3d");
+  const before = await canvas.screenshot();
+
+  const built = async () => {
+    const t = await page.getByTestId("preview-ms").textContent();
+    return t ?? "";
+  };
+  let last = await built();
+  const changed = async () => {
+    await expect.poll(built, { timeout: 10_000 }).not.toBe(last);
+    last = await built();
+  };
+  await page.getByLabel("Bed").selectOption("300x300"); // a disc round the marks needs the room
+  await changed();
+  await page.getByLabel("Slab outline").selectOption("disc");
+  await changed();
+  await page.getByLabel("Text line 1").fill("HARBOUR RUN · SET {order}");
+  await changed();
+  await page.getByLabel("QR value").fill("https://shop.example/o/{order}");
+  await changed();
+  await expect(page.getByTestId("findings")).not.toContainText("error");
+  await page.waitForTimeout(300);
+  const after = await canvas.screenshot();
+  expect(Buffer.compare(before, after)).not.toBe(0); // the canvas pixels differ
+  await page.screenshot({ path: ".data/test-results/screenshots/slab-editor-1440.png" });
+  await page.setViewportSize({ width: 1024, height: 900 });
+  await page.waitForTimeout(300);
+  await page.screenshot({ path: ".data/test-results/screenshots/slab-editor-1024.png", fullPage: true });
+  await page.setViewportSize({ width: 1440, height: 1000 });
+
+  // Drag a piece a little way (into free space on the disc), then undo and redo the move.
+  const p = (await page.getByTestId("map-piece-1").boundingBox())!;
+  await page.mouse.move(p.x + p.width / 2, p.y + p.height / 2);
+  await page.mouse.down();
+  await page.mouse.move(p.x + p.width / 2 + 3, p.y + p.height / 2 + 3, { steps: 4 });
+  await page.mouse.up();
+  await changed();
+  await page.getByRole("button", { name: "Undo" }).click();
+  await changed();
+  await page.getByRole("button", { name: "Redo" }).click();
+  await changed();
+
+  await page.getByRole("button", { name: "Make the plate" }).click();
+  await expect(page.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
+  await expect(page.getByTestId("cautions")).toContainText("let the plate cool");
+  const href = await page.getByRole("link", { name: "Download STL" }).getAttribute("href");
+  const res = await page.request.get(href!);
+  expect(res.headers()["content-disposition"]).toMatch(/harbour-run-token-set-\d{4}-\d{2}-\d{2}/);
+  const stl = new Uint8Array(await res.body());
+  const n = new DataView(stl.buffer, stl.byteOffset).getUint32(80, true);
+  expect(stl.byteLength).toBe(84 + 50 * n); // a valid binary STL by the size rule
+  const { importMesh } = await import("@/lib/geometry/import");
+  const { loadKernel } = await import("@/lib/geometry/kernel");
+  const back = importMesh(stl, await loadKernel(), { fileName: "plate.stl" });
+  expect(back.bodies).toHaveLength(7); // the slab and the kit's six pieces
+});

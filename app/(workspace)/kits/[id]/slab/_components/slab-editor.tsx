@@ -83,8 +83,41 @@ const tone = { error: "text-finding-error", warning: "text-finding-warning", inf
 
 export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean }) {
   const [form, setForm] = useState<Form>(DEFAULT_FORM);
-  const [placements, setPlacements] = useState<{ piece: number; x: number; y: number; rotation: number }[] | undefined>();
-  const [result, setResult] = useState<{ bodies: Body[]; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number } | null>(null);
+  type Placements = { piece: number; x: number; y: number; rotation: number }[] | undefined;
+  // Layout moves with undo and redo: `past` holds earlier layouts, `future` the undone ones.
+  const [placements, setPlacementsNow] = useState<Placements>();
+  const [past, setPast] = useState<Placements[]>([]);
+  const [future, setFuture] = useState<Placements[]>([]);
+  const setPlacements = useCallback(
+    (next: Placements) => {
+      setPast((p) => [...p.slice(-49), placements]);
+      setFuture([]);
+      setPlacementsNow(next);
+    },
+    [placements],
+  );
+  const undo = useCallback(() => {
+    if (!past.length) return;
+    setFuture((f) => [placements, ...f]);
+    setPlacementsNow(past[past.length - 1]);
+    setPast((p) => p.slice(0, -1));
+  }, [past, placements]);
+  const redo = useCallback(() => {
+    if (!future.length) return;
+    setPast((p) => [...p, placements]);
+    setPlacementsNow(future[0]);
+    setFuture((f) => f.slice(1));
+  }, [future, placements]);
+  useEffect(() => {
+    const onKey = (e: KeyboardEvent) => {
+      if (!(e.ctrlKey || e.metaKey) || (e.target as HTMLElement).closest("input, select, textarea")) return;
+      if (e.key.toLowerCase() === "z" && !e.shiftKey) (e.preventDefault(), undo());
+      else if (e.key.toLowerCase() === "y" || (e.key.toLowerCase() === "z" && e.shiftKey)) (e.preventDefault(), redo());
+    };
+    window.addEventListener("keydown", onKey);
+    return () => window.removeEventListener("keydown", onKey);
+  }, [undo, redo]);
+  const [result, setResult] = useState<{ bodies: Body[]; stale?: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number } | null>(null);
   const [ready, setReady] = useState<{ ms: number; triangles: number } | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [selected, setSelected] = useState<number | undefined>();
@@ -108,7 +141,8 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
       else if (m.type === "error") setProblem(m.message);
       else if (m.seq === seq.current) {
         setProblem(null);
-        setResult({ bodies: m.bodies, pieces: m.pieces, layout: m.layout, findings: m.findings, estimates: m.estimates, ms: m.ms });
+        // A build stopped by an error finding has no geometry: keep showing the last slab that built.
+        setResult((prev) => ({ bodies: m.bodies.length ? m.bodies : (prev?.bodies ?? []), stale: m.bodies.length === 0 && Boolean(prev?.bodies.length), pieces: m.pieces, layout: m.layout ?? prev?.layout ?? null, findings: m.findings, estimates: m.estimates, ms: m.ms }));
         const t = sentAt.current.get(m.seq);
         // Option change → frame: measured to the next animation frame after the new meshes arrive.
         if (t !== undefined) requestAnimationFrame(() => setLatency(performance.now() - t));
@@ -150,13 +184,13 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
   }
 
   return (
-    <div className="grid gap-4 lg:grid-cols-[18rem_1fr_18rem]">
+    <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
       <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
         <fieldset className="space-y-2">
           <legend className="font-bold">Slab</legend>
           <label className="block text-xs text-muted">
             Outline
-            <select className="field-input mt-0.5 py-1 text-sm" value={form.shape} onChange={(e) => set("shape")(e.target.value as Form["shape"])} aria-label="Outline">
+            <select className="field-input mt-0.5 py-1 text-sm" value={form.shape} onChange={(e) => set("shape")(e.target.value as Form["shape"])} aria-label="Slab outline">
               <option value="rounded-rect">rounded rectangle</option>
               <option value="disc">disc</option>
               <option value="contour">follows the pieces</option>
@@ -253,7 +287,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
             <label className="flex items-center gap-2 text-xs">
               <input type="checkbox" checked={form.numbers} onChange={(e) => set("numbers")(e.target.checked)} /> numbers
             </label>
-            <select className="field-input py-1 text-sm" value={form.outlines} onChange={(e) => set("outlines")(e.target.value as Form["outlines"])} aria-label="Outlines">
+            <select className="field-input py-1 text-sm" value={form.outlines} onChange={(e) => set("outlines")(e.target.value as Form["outlines"])} aria-label="Piece outlines">
               <option value="ring">outline rings</option>
               <option value="pocket">pockets</option>
               <option value="none">no outlines</option>
@@ -279,6 +313,11 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
           ) : (
             <p className="p-4 text-sm text-muted">{problem ?? (ready ? "Building the preview…" : "Starting the engine in your browser…")}</p>
           )}
+          {result?.stale ? (
+            <p className="absolute left-2 top-2 rounded-card bg-surface/90 px-2 py-1 text-xs text-finding-error" data-testid="stale-preview">
+              ✕ This change cannot be built (see the findings); the view shows the last slab that could.
+            </p>
+          ) : null}
           <button type="button" className="btn-quiet absolute right-2 top-2 px-2 py-1 text-xs" onClick={() => setTop(!top)}>
             {top ? "Angled view" : "Top view"}
           </button>
@@ -293,6 +332,12 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
         <div className="flex flex-wrap items-center gap-2 text-xs">
           <button type="button" className="btn-quiet px-2 py-1" disabled={!placements} onClick={() => setPlacements(undefined)}>
             Automatic layout
+          </button>
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!past.length} onClick={undo} title="Ctrl+Z">
+            Undo
+          </button>
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!future.length} onClick={redo} title="Ctrl+Y">
+            Redo
           </button>
           {sel ? (
             <>
@@ -311,7 +356,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
         </div>
       </div>
 
-      <aside className="space-y-3 text-sm">
+      <aside className="space-y-3 text-sm md:col-span-2 md:grid md:grid-cols-2 md:gap-3 md:space-y-0 xl:col-span-1 xl:block xl:space-y-3">
         <section className="card p-3">
           <h2 className="text-base">Findings</h2>
           {!result ? <p className="text-muted">—</p> : result.findings.length === 0 ? <p className="text-muted">None: the slab passes every check.</p> : null}
@@ -369,7 +414,12 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
                 ) : null}
               </div>
             ) : null}
-            <p className="text-xs text-muted">Keep the air gap in your slicer. Let the bed cool before lifting the slab.</p>
+            <ul className="list-disc space-y-0.5 pl-4 text-xs text-muted" data-testid="cautions">
+              <li>Keep the air gap in your slicer (support gap settings), or the pieces fuse to the slab.</li>
+              <li>The nozzle (≈190–260 °C) and bed (up to ≈110 °C) are hot: let the plate cool before lifting the slab.</li>
+              {MATERIALS[form.material].styrene ? <li className="text-finding-warning">⚠ {form.material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
+              {result?.findings.some((f) => f.code === "small_part") ? <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li> : null}
+            </ul>
           </section>
         ) : null}
         {ready ? <p className="text-xs text-muted">Engine ready in {ready.ms.toFixed(0)} ms · {ready.triangles.toLocaleString("en-US")} part triangles</p> : null}
