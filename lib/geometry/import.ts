@@ -66,17 +66,15 @@ export function sniffFormat(bytes: Uint8Array): MeshFormat | null {
   if (bytes.byteLength >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) return "3mf";
   if (isBinaryStl(bytes) || looksLikeAsciiStl(bytes)) return "stl";
   const head = new TextDecoder("latin1").decode(bytes.subarray(0, Math.min(bytes.byteLength, 4096)));
-  if (/^\s*v\s/m.test(head) && /^\s*(f|o|g|vn|vt)\s/m.test(head)) return "obj";
+  if (/^\s*v\s/m.test(head)) return "obj";
   return null;
 }
 
+/** The format by content; a file named .stl that matches nothing goes to the STL reader, which says what is wrong. */
 export function detectFormat(bytes: Uint8Array, fileName: string): MeshFormat {
-  if (bytes.byteLength >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) return "3mf";
-  if (isBinaryStl(bytes) || looksLikeAsciiStl(bytes)) return "stl";
-  const head = new TextDecoder("latin1").decode(bytes.subarray(0, Math.min(bytes.byteLength, 4096)));
-  if (/^\s*(v|f|o|g|vn|vt|mtllib|usemtl)\s/m.test(head) && /^\s*v\s/m.test(head)) return "obj";
-  const ext = fileName.toLowerCase().split(".").pop();
-  if (ext === "stl") return "stl"; // lets the STL reader say exactly what is wrong
+  const sniffed = sniffFormat(bytes);
+  if (sniffed) return sniffed;
+  if (fileName.toLowerCase().endsWith(".stl")) return "stl";
   if (bytes.byteLength === 0) throw new MeshImportError("empty", fileName, "the file is empty");
   throw new UnsupportedFormatError(fileName, "this is not a mesh file we recognise");
 }

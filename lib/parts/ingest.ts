@@ -5,6 +5,7 @@ import { kitParts, kits, parts, type Part } from "@/db/schema";
 import { UserError, type Caller } from "@/lib/auth/guards";
 import { MeshImportError } from "@/lib/geometry/errors";
 import { importMesh, type ImportResult } from "@/lib/geometry/import";
+import { stem } from "@/lib/geometry/io/stl-read";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { UNIT_MM, type Unit } from "@/lib/geometry/io/raw";
 import { bounds, combineMeshes, signedVolume, type IndexedMesh } from "@/lib/geometry/mesh";
@@ -63,7 +64,7 @@ export async function ingestFile(caller: Caller, bytes: Uint8Array, fileName: st
   }
   const created: string[] = [];
   try {
-    const groups = opts.split && result.bodies.length > 1 ? result.bodies.map((b) => ({ name: b.name, meshes: [b.mesh], own: true })) : [{ name: stemOf(fileName), meshes: result.bodies.map((b) => b.mesh), own: false }];
+    const groups = opts.split && result.bodies.length > 1 ? result.bodies.map((b) => ({ name: b.name, meshes: [b.mesh], own: true })) : [{ name: stem(fileName) || "part", meshes: result.bodies.map((b) => b.mesh), own: false }];
     const rows: (typeof parts.$inferInsert)[] = [];
     for (const g of groups) {
       const mesh = combineMeshes(g.meshes);
@@ -92,12 +93,6 @@ export async function ingestFile(caller: Caller, bytes: Uint8Array, fileName: st
     await dropOrphans(created);
     throw err;
   }
-}
-
-function stemOf(file: string) {
-  const base = file.split(/[\\/]/).pop() ?? file;
-  const dot = base.lastIndexOf(".");
-  return (dot > 0 ? base.slice(0, dot) : base) || "part";
 }
 
 export async function getPart(caller: Caller, id: string): Promise<Part | null> {
