@@ -6,7 +6,11 @@ import * as schema from "./schema";
 export type Db = NodePgDatabase<typeof schema>;
 
 export function createPool(url: string): pg.Pool {
-  return new pg.Pool({ connectionString: url, max: 10, connectionTimeoutMillis: 3000, idleTimeoutMillis: 30_000 });
+  const p = new pg.Pool({ connectionString: url, max: 10, connectionTimeoutMillis: 3000, idleTimeoutMillis: 30_000 });
+  // An idle connection closed by the server (a restart, a shutdown) is dropped from the pool and
+  // replaced on the next query; without a listener the pool's "error" event would end the process.
+  p.on("error", (err) => console.warn(`database: an idle connection closed (${err.message})`));
+  return p;
 }
 
 export function createDb(pool: pg.Pool): Db {

@@ -1,7 +1,7 @@
 import "server-only";
 import { and, asc, desc, eq, isNull, max, or, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, plates, templates } from "@/db/schema";
+import { kitParts, kits, plates, templates, users } from "@/db/schema";
 import type { Caller } from "@/lib/auth/guards";
 
 // Every read is scoped to the caller's active workspace; there is no query here without that filter.
@@ -42,12 +42,30 @@ export async function listTemplates(caller: Caller) {
     .orderBy(asc(templates.name));
 }
 
-export async function listPlates(caller: Caller) {
+export async function listPlates(caller: Caller, filter: { kitId?: string; limit?: number } = {}) {
   return db()
-    .select({ id: plates.id, status: plates.status, source: plates.source, pieceCount: plates.pieceCount, createdAt: plates.createdAt, kitName: kits.name })
+    .select({
+      id: plates.id,
+      status: plates.status,
+      jobState: plates.jobState,
+      source: plates.source,
+      pieceCount: plates.pieceCount,
+      createdAt: plates.createdAt,
+      kitId: plates.kitId,
+      kitName: kits.name,
+      title: plates.title,
+      estimates: plates.estimates,
+      findings: plates.findings,
+      hasStl: sql<boolean>`${plates.stlBlobKey} is not null`,
+      has3mf: sql<boolean>`${plates.threeMfBlobKey} is not null`,
+      makerName: users.name,
+      makerEmail: users.email,
+    })
     .from(plates)
     .leftJoin(kits, eq(kits.id, plates.kitId))
-    .where(eq(plates.workspaceId, caller.workspace.id))
+    .leftJoin(users, eq(users.id, plates.createdBy))
+    .where(and(eq(plates.workspaceId, caller.workspace.id), filter.kitId ? eq(plates.kitId, filter.kitId) : undefined))
     .orderBy(desc(plates.createdAt))
-    .limit(100);
+    .limit(filter.limit ?? 100);
 }
+export type PlateRow = Awaited<ReturnType<typeof listPlates>>[number];

@@ -7,7 +7,7 @@ import { write3mf } from "./io/3mf-write";
 import { writeBinaryStl } from "./io/stl-write";
 import type { DeflateRaw } from "./io/zip-write";
 import type { Kernel, Scope } from "./kernel";
-import { arrange, type PackItem, type Packed } from "./layout";
+import { arrange, areaScore, type PackItem, type Packed } from "./layout";
 import { qrShape, QUIET_ZONE_MODULES, type QrShape } from "./marks/qr";
 import { layoutText, type Contour, type TextShape } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
@@ -32,6 +32,12 @@ export type BuildInput = {
   formats?: ("stl" | "3mf")[];
   title?: string;
   deflateRaw?: DeflateRaw;
+  /**
+   * Parts measured by earlier builds (footprints, size, volume), kept as plain data keyed by the mesh
+   * object: the slab editor and the worker threads keep their parts' meshes between builds, so a
+   * change of options re-measures nothing.
+   */
+  cache?: PartCache;
   /** For benchmarks: sees the slab and its cutters just before the one n-ary difference. */
   hooks?: { beforeBooleans?: (slab: Manifold, cutters: Manifold[]) => void };
 };
@@ -81,6 +87,64 @@ export type PlateResult = {
 
 export const POCKET_DEPTH = 0.4;
 
+/** What a build needs to know of a part, measured once per mesh and layer height; kernel-free. */
+export type PartMeasure = {
+  shadow: Contour[];
+  shadowArea: number;
+  contact: Contour[];
+  contactArea: number;
+  hull: [number, number][];
+  height: number;
+  size: [number, number, number];
+  volume: number;
+};
+/**
+ * What one process keeps between builds: each part's measures (by mesh object and layer height) and
+ * the last few slab solids, by a fingerprint of exactly what shapes them (outline, thickness, every
+ * mark's cross-section and depth). A change that leaves the slab as it was (the gap, the material, a
+ * price) then reuses it instead of running the booleans again.
+ */
+export type PartCache = { parts: WeakMap<IndexedMesh, Map<number, PartMeasure>>; slabs: Map<string, { mesh: IndexedMesh; volume: number }> };
+export const newPartCache = (): PartCache => ({ parts: new WeakMap(), slabs: new Map() });
+const SLAB_ENTRIES = 4;
+
+/** A 2 × 32-bit hash of a stream of numbers (their float64 bits), for cache keys. */
+function fingerprint(feed: (add: (x: number) => void) => void): string {
+  const f = new Float64Array(1), u = new Uint32Array(f.buffer);
+  let h1 = 0x811c9dc5, h2 = 0x01000193;
+  feed((x) => {
+    f[0] = x;
+    h1 = Math.imul(h1 ^ u[0]!, 0x01000193) ^ Math.imul(h2, 31);
+    h2 = Math.imul(h2 ^ u[1]!, 0x85ebca6b) + (h1 >>> 7);
+  });
+  return `${(h1 >>> 0).toString(16)}${(h2 >>> 0).toString(16)}`;
+}
+
+function measurePart(kernel: Kernel, scope: Scope, mesh: IndexedMesh, layerHeight: number, cache?: PartCache): PartMeasure {
+  const hit = cache?.parts.get(mesh)?.get(layerHeight);
+  if (hit) return hit;
+  const { Manifold, Mesh } = kernel.wasm;
+  const solid = scope.track(new Manifold(new Mesh({ numProp: 3, vertProperties: mesh.vertProperties, triVerts: mesh.triVerts })));
+  const fp = measureFootprint(kernel, scope, solid, layerHeight);
+  const box = solid.boundingBox();
+  const m: PartMeasure = {
+    shadow: fp.shadow.toPolygons(),
+    shadowArea: fp.shadowArea,
+    contact: fp.contact.toPolygons(),
+    contactArea: fp.contactArea,
+    hull: fp.hull,
+    height: fp.height,
+    size: [box.max[0] - box.min[0], box.max[1] - box.min[1], box.max[2] - box.min[2]],
+    volume: solid.volume(),
+  };
+  if (cache) {
+    const byLayer = cache.parts.get(mesh) ?? new Map<number, PartMeasure>();
+    byLayer.set(layerHeight, m);
+    cache.parts.set(mesh, byLayer);
+  }
+  return m;
+}
+
 type Work = {
   slot: number;
   part: PlatePart;
@@ -120,19 +184,21 @@ export function buildPlate(kernel: Kernel, input: BuildInput): PlateResult {
 }
 
 function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, vars: Record<string, string>, lap: (n: string) => void, timings: Record<string, number>): PlateResult {
-  const { Manifold, Mesh, CrossSection } = kernel.wasm;
+  const { Manifold, CrossSection } = kernel.wasm;
   const findings: Finding[] = [];
   const m = o.slab.margin;
   const spacing = o.layout.spacing;
 
-  // 1. Parts into the kernel, footprints once per part.
-  const solids: Manifold[] = [];
-  const footprints: PartFootprint[] = [];
-  for (const part of input.parts) {
-    const solid = scope.track(new Manifold(new Mesh({ numProp: 3, vertProperties: part.mesh.vertProperties, triVerts: part.mesh.triVerts })));
-    solids.push(solid);
-    footprints.push(measureFootprint(kernel, scope, solid, o.layerHeight));
-  }
+  // 1. Parts measured once (or taken from the cache), footprints as kernel cross-sections.
+  const measures = input.parts.map((part) => measurePart(kernel, scope, part.mesh, o.layerHeight, input.cache));
+  const footprints: PartFootprint[] = measures.map((pm) => ({
+    shadow: scope.track(new CrossSection(pm.shadow, "Positive")),
+    shadowArea: pm.shadowArea,
+    contact: scope.track(new CrossSection(pm.contact, "Positive")),
+    contactArea: pm.contactArea,
+    hull: pm.hull,
+    height: pm.height,
+  }));
   lap("footprints");
 
   // 2. Pieces in kit order: copies, then parts, then quantity.
@@ -198,7 +264,13 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   if (auto.length) {
     // Hand-placed pieces keep their places; the rest are packed to their right.
     const manualMaxX = manual.length ? Math.max(...manual.map((w) => pieceBounds(w).maxX)) - m + spacing : 0;
-    const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, o.slab.shape === "disc");
+    // Rate a candidate by the slab it leads to: the pieces' block with the bands above and below it;
+    // for a disc, the diagonal of that whole block (the circle around it), else its area.
+    const score = (w: number, h: number) => {
+      const W = Math.max(w + manualMaxX, bandsW), H = h + bandsH;
+      return o.slab.shape === "disc" ? Math.hypot(W, H) : areaScore(W, H);
+    };
+    const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, score);
     if (!found || texts.some((t) => t.shape.bounds.maxX - t.shape.bounds.minX > maxW) || bandsW > maxW || maxH <= 0) {
       const needW = Math.max(bandsW, ...auto.map((w) => Math.min(...itemOf(w).sizes.map((d) => d[0]))));
       findings.push({
@@ -245,7 +317,11 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     let y = y0 + band.h - (band.lines[0]?.mark.size ?? 0) - Math.max(0, (band.h - band.textH) / 2);
     band.lines.forEach((t, i) => {
       if (i > 0) y -= t.mark.size * 1.6;
-      blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: contentMinX - Math.min(0, t.shape.bounds.minX), y });
+      // On a disc the lines are centred (in the room the QR leaves), which keeps the disc small.
+      const room = innerW - (band.q ? band.q.shape.sizeWithQuietZone + spacing : 0);
+      const width = t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX);
+      const indent = o.slab.shape === "disc" ? Math.max(0, (room - width) / 2) : 0;
+      blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: contentMinX + indent - Math.min(0, t.shape.bounds.minX), y });
     });
   };
   placeBand(bottom, bottomY);
@@ -382,7 +458,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
       texts: blocks,
       qr: qrBlock,
       unfilled: [...o.marks.text.map((t) => fillPlaceholders(t.value, vars)), qr?.value ?? ""].flatMap((v) => [...v.matchAll(/\{([a-z][a-z0-9_]*)\}/gi)].map((x) => x[0])),
-      solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, solid: solids[i]! })),
+      solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, size: measures[i]!.size })),
     }),
   );
   lap("checks");
@@ -401,22 +477,55 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   }
 
   // 7. The slab solid: one n-ary difference with every cutter, then embossed marks joined on.
-  const slabBase = scope.track(slabCs.extrude(o.slab.thickness));
-  const cutters: Manifold[] = [];
-  const overshoot = 0.01;
-  for (const [depth, list] of engrave) {
-    const cs = scope.track(CrossSection.union(list));
-    cutters.push(scope.track(scope.track(cs.extrude(depth + overshoot)).translate(0, 0, o.slab.thickness - depth)));
+  const slabKey = input.cache
+    ? fingerprint((add) => {
+        add(o.slab.thickness);
+        const polys = (cs: CrossSection) => {
+          for (const c of cs.toPolygons()) {
+            add(c.length);
+            for (const [x, y] of c) (add(x), add(y));
+          }
+        };
+        polys(slabCs);
+        for (const [tag, map] of [[1, engrave], [2, emboss]] as const) {
+          for (const [depth, list] of map) {
+            add(tag);
+            add(depth);
+            for (const cs of list) (add(-1), polys(cs));
+          }
+        }
+      })
+    : undefined;
+  const kept = slabKey ? input.cache!.slabs.get(slabKey) : undefined;
+  let slabMesh: IndexedMesh;
+  let slabVolume: number;
+  if (kept) {
+    slabMesh = { vertProperties: kept.mesh.vertProperties.slice(), triVerts: kept.mesh.triVerts.slice() };
+    slabVolume = kept.volume;
+  } else {
+    const slabBase = scope.track(slabCs.extrude(o.slab.thickness));
+    const cutters: Manifold[] = [];
+    const overshoot = 0.01;
+    for (const [depth, list] of engrave) {
+      const cs = scope.track(CrossSection.union(list));
+      cutters.push(scope.track(scope.track(cs.extrude(depth + overshoot)).translate(0, 0, o.slab.thickness - depth)));
+    }
+    input.hooks?.beforeBooleans?.(slabBase, cutters);
+    let slab = cutters.length ? scope.track(Manifold.difference([slabBase, ...cutters])) : slabBase;
+    const adds: Manifold[] = [];
+    for (const [depth, list] of emboss) {
+      const cs = scope.track(CrossSection.union(list));
+      adds.push(scope.track(scope.track(cs.extrude(depth)).translate(0, 0, o.slab.thickness)));
+    }
+    if (adds.length) slab = scope.track(Manifold.union([slab, ...adds]));
+    slabMesh = toIndexed(slab.getMesh());
+    slabVolume = slab.volume();
+    if (slabKey) {
+      const slabs = input.cache!.slabs;
+      if (slabs.size >= SLAB_ENTRIES) slabs.delete(slabs.keys().next().value!);
+      slabs.set(slabKey, { mesh: { vertProperties: slabMesh.vertProperties.slice(), triVerts: slabMesh.triVerts.slice() }, volume: slabVolume });
+    }
   }
-  input.hooks?.beforeBooleans?.(slabBase, cutters);
-  let slab = cutters.length ? scope.track(Manifold.difference([slabBase, ...cutters])) : slabBase;
-  const adds: Manifold[] = [];
-  for (const [depth, list] of emboss) {
-    const cs = scope.track(CrossSection.union(list));
-    adds.push(scope.track(scope.track(cs.extrude(depth)).translate(0, 0, o.slab.thickness)));
-  }
-  if (adds.length) slab = scope.track(Manifold.union([slab, ...adds]));
-  const slabMesh = toIndexed(slab.getMesh());
   lap("slab booleans");
 
   // Pieces: the part's own welded mesh turned and moved in plain arithmetic (no kernel round trip).
@@ -439,7 +548,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     );
     lap("3mf");
   }
-  const estimates = estimate(o, slab.volume(), placed.map((p) => ({ number: p.number, volume: solidsVolume(solids, input.parts, p.partId) })));
+  const estimates = estimate(o, slabVolume, placed.map((p) => ({ number: p.number, volume: measures[input.parts.findIndex((x) => x.id === p.partId)]!.volume })));
   const triangles = bodies.reduce((s, b) => s + b.mesh.triVerts.length / 3, 0);
   return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings }, bodies };
 
@@ -451,11 +560,6 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
 
 function placedShadow(scope: Scope, w: Work): CrossSection {
   return scope.track(scope.track(w.fp.shadow.rotate(w.angle)).translate(w.x, w.y));
-}
-
-function solidsVolume(solids: Manifold[], parts: PlatePart[], partId: string): number {
-  const i = parts.findIndex((p) => p.id === partId);
-  return solids[i]!.volume();
 }
 
 function toIndexed(mesh: { vertProperties: Float32Array; triVerts: Uint32Array; numProp: number }): IndexedMesh {

@@ -17,7 +17,8 @@ export type CheckInput = {
   texts: { mark: { relief: "engrave" | "emboss"; size: number }; value: string }[];
   qr: { shape: QrShape; x: number; y: number; mark: { module: number } } | null;
   unfilled: string[];
-  solids: { partId: string; name: string; solid: Manifold }[];
+  /** Each part's extent (mm) along x, y and z. */
+  solids: { partId: string; name: string; size: [number, number, number] }[];
 };
 
 /** Areas below this (mm²) are rounding, not overlap. */
@@ -163,8 +164,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
   // Small parts (informational: only matters for kits that may reach children). One finding for the plate.
   const small: { name: string; dims: number[]; numbers: number[] }[] = [];
   for (const s of c.solids) {
-    const b = s.solid.boundingBox();
-    const dims = [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]].sort((x, y) => x - y);
+    const dims = [...s.size].sort((x, y) => x - y);
     // It may fit if its two larger sizes fit the opening and the depth (a conservative reading of the test).
     if (dims[1]! <= SMALL_PARTS.diameter && dims[2]! <= SMALL_PARTS.depth) {
       small.push({ name: s.name, dims, numbers: c.pieces.filter((p) => p.partId === s.partId).map((p) => p.number) });

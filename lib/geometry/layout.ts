@@ -60,9 +60,11 @@ export type Arrangement = { packed: Packed[]; width: number; height: number };
 /**
  * Find a compact arrangement inside at most maxW × maxH: pack into strips of several widths and keep
  * the one whose bounding box has the least area (with a mild preference for square), since a
- * smaller slab prints faster and warps less. `square` asks for aspect ≈ 1 (for a disc slab).
+ * smaller slab prints faster and warps less. `score` rates a candidate's width and height (lower is
+ * better): the slab builder passes one that counts what else sits on the slab (text and QR bands) and
+ * the slab's shape, so a disc asks for the smallest enclosing circle, not the smallest rectangle.
  */
-export function arrange(items: PackItem[], maxW: number, maxH: number, spacing: number, square = false): Arrangement | null {
+export function arrange(items: PackItem[], maxW: number, maxH: number, spacing: number, score: (width: number, height: number) => number = areaScore): Arrangement | null {
   if (items.length === 0) return { packed: [], width: 0, height: 0 };
   const area = items.reduce((s, i) => s + (i.sizes[0]![0] + spacing) * (i.sizes[0]![1] + spacing), 0);
   const minSide = Math.max(...items.map((i) => Math.min(...i.sizes.map((d) => d[0]))));
@@ -75,9 +77,14 @@ export function arrange(items: PackItem[], maxW: number, maxH: number, spacing: 
     if (!packed) continue;
     const width = Math.max(...packed.map((p) => p.x + p.w));
     const height = Math.max(...packed.map((p) => p.y + p.h));
-    const aspect = Math.max(width, height) / Math.max(1e-9, Math.min(width, height));
-    const score = square ? Math.max(width, height) ** 2 : width * height * (1 + 0.05 * (aspect - 1));
-    if (!best || score < best.score - 1e-9) best = { packed, width, height, score };
+    const s = score(width, height);
+    if (!best || s < best.score - 1e-9) best = { packed, width, height, score: s };
   }
   return best ? { packed: best.packed, width: best.width, height: best.height } : null;
+}
+
+/** Rectangle area with a mild preference for square. */
+export function areaScore(width: number, height: number): number {
+  const aspect = Math.max(width, height) / Math.max(1e-9, Math.min(width, height));
+  return width * height * (1 + 0.05 * (aspect - 1));
 }

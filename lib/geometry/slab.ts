@@ -52,12 +52,11 @@ export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, conten
     { minX: Infinity, minY: Infinity, maxX: -Infinity, maxY: -Infinity },
   );
   if (o.slab.shape === "disc") {
-    const cx = (b.minX + b.maxX) / 2, cy = (b.minY + b.maxY) / 2;
-    let r = 0;
-    for (const x of content.boxes) for (const [px, py] of [[x.minX, x.minY], [x.maxX, x.minY], [x.minX, x.maxY], [x.maxX, x.maxY]] as const) r = Math.max(r, Math.hypot(px - cx, py - cy));
+    const pts = content.boxes.flatMap((x) => [[x.minX, x.minY], [x.maxX, x.minY], [x.minX, x.maxY], [x.maxX, x.maxY]] as [number, number][]);
+    const c = enclosingCircle(pts);
     // Grow by the margin, and by the polygon's inset so the inscribed edges keep the full margin.
-    const radius = (r + m) / Math.cos(Math.PI / DISC_SEGMENTS);
-    return scope.track(new CrossSection([disc(cx, cy, radius)]));
+    const radius = (c.r + m) / Math.cos(Math.PI / DISC_SEGMENTS);
+    return scope.track(new CrossSection([disc(c.x, c.y, radius)]));
   }
   if (o.slab.shape === "contour") {
     const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + m, "Round", 2, 48)));
@@ -72,4 +71,48 @@ export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, conten
   }
   const w = b.maxX - b.minX + 2 * m, h = b.maxY - b.minY + 2 * m;
   return scope.track(new CrossSection([roundedRect(b.minX - m, b.minY - m, w, h, o.slab.cornerRadius)]));
+}
+
+export type Circle = { x: number; y: number; r: number };
+
+/**
+ * The smallest circle holding every point (Welzl's algorithm in its iterative form, E. Welzl,
+ * "Smallest enclosing disks", 1991). Points are visited in a fixed shuffled order so the result
+ * never depends on chance and the expected time stays linear.
+ */
+export function enclosingCircle(points: [number, number][]): Circle {
+  const p = [...points];
+  let seed = 0x9e3779b9;
+  for (let i = p.length - 1; i > 0; i--) {
+    seed = (Math.imul(seed ^ (seed >>> 15), 0x2c1b3c6d) + 0x6d2b79f5) >>> 0;
+    const j = seed % (i + 1);
+    [p[i], p[j]] = [p[j]!, p[i]!];
+  }
+  const eps = 1e-7;
+  const inside = (c: Circle, q: [number, number]) => Math.hypot(q[0] - c.x, q[1] - c.y) <= c.r + eps;
+  const two = (a: [number, number], b: [number, number]): Circle => ({ x: (a[0] + b[0]) / 2, y: (a[1] + b[1]) / 2, r: Math.hypot(a[0] - b[0], a[1] - b[1]) / 2 });
+  const three = (a: [number, number], b: [number, number], c: [number, number]): Circle => {
+    const d = 2 * (a[0] * (b[1] - c[1]) + b[0] * (c[1] - a[1]) + c[0] * (a[1] - b[1]));
+    if (Math.abs(d) < 1e-12) {
+      // Collinear: the circle on the two farthest apart.
+      const cands = [two(a, b), two(a, c), two(b, c)];
+      return cands.reduce((x, y) => (y.r > x.r ? y : x));
+    }
+    const a2 = a[0] ** 2 + a[1] ** 2, b2 = b[0] ** 2 + b[1] ** 2, c2 = c[0] ** 2 + c[1] ** 2;
+    const x = (a2 * (b[1] - c[1]) + b2 * (c[1] - a[1]) + c2 * (a[1] - b[1])) / d;
+    const y = (a2 * (c[0] - b[0]) + b2 * (a[0] - c[0]) + c2 * (b[0] - a[0])) / d;
+    return { x, y, r: Math.hypot(a[0] - x, a[1] - y) };
+  };
+  if (p.length === 0) return { x: 0, y: 0, r: 0 };
+  let c: Circle = { x: p[0]![0], y: p[0]![1], r: 0 };
+  for (let i = 1; i < p.length; i++) {
+    if (inside(c, p[i]!)) continue;
+    c = { x: p[i]![0], y: p[i]![1], r: 0 };
+    for (let j = 0; j < i; j++) {
+      if (inside(c, p[j]!)) continue;
+      c = two(p[i]!, p[j]!);
+      for (let k = 0; k < j; k++) if (!inside(c, p[k]!)) c = three(p[i]!, p[j]!, p[k]!);
+    }
+  }
+  return c;
 }

@@ -6,7 +6,7 @@
 import { readFileSync } from "node:fs";
 import path from "node:path";
 import { deflateRawSync } from "node:zlib";
-import { buildPlate, type PlateResult } from "@/lib/geometry/build-plate";
+import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
 import { MeshImportError } from "@/lib/geometry/errors";
 import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId } from "@/lib/geometry/fonts";
 import { importMesh } from "@/lib/geometry/import";
@@ -37,6 +37,8 @@ let fonts: ReturnType<typeof parseFontBook> | undefined;
  */
 const meshCache = new Map<string, IndexedMesh>();
 const CACHE_ENTRIES = 64;
+/** Their measures (footprints, size, volume), kept while the mesh stays in the cache above. */
+const partCache = newPartCache();
 
 function loadFonts() {
   const dir = path.join(process.cwd(), "fonts");
@@ -66,7 +68,7 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       }
       return { id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity };
     });
-    const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
+    const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
     return { ok: true, result };
   } catch (err) {
     if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.message, details: err.details };

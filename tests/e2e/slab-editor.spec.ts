@@ -54,10 +54,8 @@ test("disc outline, a text line and a QR code change the preview; the downloaded
   const canvas = page.getByTestId("view-3d");
   const before = await canvas.screenshot();
 
-  const built = async () => {
-    const t = await page.getByTestId("preview-ms").textContent();
-    return t ?? "";
-  };
+  // Each finished preview build has its own number: wait for the next one, not for different text.
+  const built = async () => (await page.getByTestId("preview-ms").getAttribute("data-build")) ?? "";
   let last = await built();
   const changed = async () => {
     await expect.poll(built, { timeout: 10_000 }).not.toBe(last);
@@ -92,10 +90,32 @@ test("disc outline, a text line and a QR code change the preview; the downloaded
   await changed();
   await page.getByRole("button", { name: "Redo" }).click();
   await changed();
+  // From the keyboard: a piece takes focus, Shift+arrow moves it 5 mm, Ctrl+Z takes the move back.
+  const piece2 = page.getByTestId("map-piece-2");
+  await piece2.focus();
+  const at = (await piece2.boundingBox())!;
+  await page.keyboard.press("Shift+ArrowUp");
+  await changed();
+  const mid = async () => {
+    const b = (await piece2.boundingBox())!;
+    return b.y + b.height / 2;
+  };
+  const atMid = at.y + at.height / 2;
+  await expect.poll(mid).toBeLessThan(atMid - 2);
+  await page.keyboard.press("Control+z");
+  await changed();
+  await expect.poll(async () => Math.abs((await mid()) - atMid)).toBeLessThan(1);
+  // Per-line options: the second line embossed at 0.6 mm still builds.
+  await page.getByLabel("Relief").nth(1).selectOption("emboss");
+  await page.getByLabel("Height").first().fill("0.6");
+  await changed();
+  await expect(page.getByTestId("findings")).not.toContainText("error");
 
   await page.getByRole("button", { name: "Make the plate" }).click();
   await expect(page.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
   await expect(page.getByTestId("cautions")).toContainText("let the plate cool");
+  await expect(page.getByTestId("toasts")).toContainText("Plate made");
+  await expect(page.getByRole("table", { name: "Plates of this kit" }).getByTestId("plate-row").first()).toContainText("ready");
   const href = await page.getByRole("link", { name: "Download STL" }).getAttribute("href");
   const res = await page.request.get(href!);
   expect(res.headers()["content-disposition"]).toMatch(/harbour-run-token-set-\d{4}-\d{2}-\d{2}/);

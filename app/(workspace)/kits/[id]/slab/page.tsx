@@ -1,9 +1,11 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { getKit } from "@/db/queries/kits";
+import { listPlates } from "@/db/queries/library";
 import { requireCaller } from "@/lib/auth/guards";
 import { can } from "@/lib/auth/permissions";
 import { PageHeader } from "../../../_components/page-header";
+import { PlatesTable } from "../../../plates/_components/plates-table";
 import { SlabEditor } from "./_components/slab-editor";
 
 export const metadata: Metadata = { title: "Slab editor" };
@@ -12,11 +14,18 @@ export default async function SlabEditorPage({ params }: { params: Promise<{ id:
   const caller = await requireCaller();
   const kit = await getKit(caller, (await params).id);
   if (!kit) notFound();
+  const plates = await listPlates(caller, { kitId: kit.id, limit: 20 });
   const parts = kit.lines.map((l) => ({ id: l.partId, name: l.name, quantity: l.quantity, rotation: l.rotation, orientation: l.orientation }));
   return (
     <>
       <PageHeader title={`Slab editor · ${kit.name}`} lead="Every change rebuilds the preview in your browser with the same engine that makes the plate." />
       <SlabEditor kitId={kit.id} kitName={kit.name} parts={parts} canMake={can(caller.role, "plates:make")} />
+      <section className="mt-6 space-y-2" aria-labelledby="kit-plates">
+        <h2 id="kit-plates" className="text-lg">
+          Plates of this kit
+        </h2>
+        <PlatesTable rows={plates} label="Plates of this kit" showKit={false} empty="No plate made from this kit yet: tune the slab above, then make the plate." />
+      </section>
     </>
   );
 }

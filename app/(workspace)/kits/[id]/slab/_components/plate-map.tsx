@@ -7,9 +7,10 @@ const path = (contours: [number, number][][]) => contours.map((c) => `M${c.map((
 
 /**
  * The plate map, to scale (1 unit = 1 mm, y up): the slab, each piece's outline and number. Drag a
- * piece to move it (snapped to 0.5 mm; hold Alt for free moves).
+ * piece to move it (snapped to 0.5 mm; hold Alt for free moves). From the keyboard: Tab to a piece,
+ * arrow keys move it 0.5 mm (Shift: 5 mm), R turns it 15° (Shift+R: 1°).
  */
-export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }: { layout: PlateLayout; pieces: PlacedPiece[]; selected?: number; flagged: Set<number>; onSelect: (n?: number) => void; onMove: (piece: PlacedPiece, dx: number, dy: number) => void }) {
+export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }: { layout: PlateLayout; pieces: PlacedPiece[]; selected?: number; flagged: Set<number>; onSelect: (n?: number) => void; onMove: (piece: PlacedPiece, dx: number, dy: number, turn?: number) => void }) {
   const svg = useRef<SVGSVGElement>(null);
   const [drag, setDrag] = useState<{ piece: PlacedPiece; x0: number; y0: number; dx: number; dy: number } | null>(null);
   const { width: W, depth: D } = layout.slab;
@@ -52,10 +53,27 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
           const colour = p.number === selected ? "#6d4aff" : flagged.has(p.number) ? "#b7791f" : "#4a4f57";
           return (
             <g
-              key={p.number}
+              key={p.slot}
               transform={moving ? `translate(${drag.dx} ${drag.dy})` : undefined}
               data-testid={`map-piece-${p.number}`}
-              className="cursor-grab"
+              className="cursor-grab outline-none [&:focus-visible>path]:stroke-[#6d4aff] [&:focus-visible>path]:[stroke-width:0.8]"
+              tabIndex={0}
+              role="button"
+              aria-label={`Piece ${p.number}, ${p.partName}: arrow keys move it, R turns it`}
+              aria-pressed={p.number === selected}
+              onFocus={() => onSelect(p.number)}
+              onKeyDown={(e) => {
+                const step = e.shiftKey ? 5 : 0.5;
+                const moves: Record<string, [number, number]> = { ArrowLeft: [-step, 0], ArrowRight: [step, 0], ArrowUp: [0, step], ArrowDown: [0, -step] };
+                const mv = moves[e.key];
+                if (mv) {
+                  e.preventDefault();
+                  onMove(p, mv[0], mv[1]);
+                } else if (e.key.toLowerCase() === "r") {
+                  e.preventDefault();
+                  onMove(p, 0, 0, e.shiftKey ? 1 : 15);
+                }
+              }}
               onPointerDown={(e) => {
                 e.currentTarget.ownerSVGElement?.setPointerCapture?.(e.pointerId);
                 const q = toMm(e);

@@ -15,7 +15,14 @@ export type ToWorker =
 
 export type Body = { name: string; piece?: number; positions: Float32Array; indices: Uint32Array };
 
+/**
+ * A part as the 3D view draws it: sent once, then every piece made from it is the same geometry
+ * moved and turned (a piece's x, y, z and rotation), so an edit only sends the new slab. Parts with
+ * many triangles are sent decimated (the files made on the server keep every triangle).
+ */
+export type DisplayPart = { id: string; positions: Float32Array; indices: Uint32Array; triangles: number; shownTriangles: number };
+
 export type FromWorker =
-  | { type: "ready"; ms: number; triangles: number }
-  | { type: "built"; seq: number; ms: number; bodies: Body[]; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null }
+  | { type: "ready"; ms: number; triangles: number; parts: DisplayPart[] }
+  | { type: "built"; seq: number; ms: number; slab: Body | null; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null }
   | { type: "error"; seq?: number; message: string };

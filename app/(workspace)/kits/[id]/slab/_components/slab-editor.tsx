@@ -5,84 +5,25 @@ import { useCallback, useEffect, useMemo, useRef, useState } from "react";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 import type { Finding } from "@/lib/geometry/checks";
 import type { Estimates } from "@/lib/geometry/estimates";
-import { MATERIALS, slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
+import { useRouter } from "next/navigation";
+import { useForm, useWatch } from "react-hook-form";
+import { useToast } from "@/app/_components/toasts";
+import { MATERIALS, slabOptionsSchema } from "@/lib/geometry/options";
+import { DEFAULT_VALUES, formToOptions, OptionsFields, slabResolver, type FormValues } from "./options-form";
 import { makePlateAction } from "../../../actions";
 import { PlateMap } from "./plate-map";
-import type { Body, EditorPart, FromWorker } from "./protocol";
+import type { Body, DisplayPart, EditorPart, FromWorker } from "./protocol";
 
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
-
-const BEDS = [[180, 180], [220, 220], [235, 235], [250, 210], [256, 256], [300, 300], [350, 350], [400, 400]] as const;
-
-type Form = {
-  shape: "rounded-rect" | "disc" | "contour";
-  thickness: number;
-  gap: number;
-  cornerRadius: number;
-  margin: number;
-  spacing: number;
-  bed: string;
-  bedWidth: number;
-  bedDepth: number;
-  copies: number;
-  material: keyof typeof MATERIALS;
-  nozzle: number;
-  layerHeight: number;
-  pricePerKg: number;
-  text1: string;
-  text1Size: number;
-  text2: string;
-  text2Size: number;
-  font: "sans-bold" | "mono-bold";
-  relief: "engrave" | "emboss";
-  qr: string;
-  qrModule: number;
-  qrLevel: "L" | "M" | "Q" | "H";
-  numbers: boolean;
-  outlines: "ring" | "pocket" | "none";
-  order: string;
-  customer: string;
-};
-
-const DEFAULT_FORM: Form = {
-  shape: "rounded-rect", thickness: 1, gap: 0.25, cornerRadius: 5, margin: 4, spacing: 3, bed: "220x220", bedWidth: 220, bedDepth: 220, copies: 1,
-  material: "PLA", nozzle: 0.4, layerHeight: 0.2, pricePerKg: 25, text1: "ORDER {order}", text1Size: 5, text2: "Thank you, {customer}!", text2Size: 4, font: "sans-bold", relief: "engrave",
-  qr: "", qrModule: 1.2, qrLevel: "M", numbers: true, outlines: "ring", order: "10482", customer: "Sam",
-};
-
-function toOptions(f: Form, placements?: { piece: number; x: number; y: number; rotation: number }[]): SlabOptionsInput {
-  const [w, d] = f.bed === "custom" ? [f.bedWidth, f.bedDepth] : f.bed.split("x").map(Number);
-  const text = [
-    f.text1.trim() ? { value: f.text1, size: f.text1Size, font: f.font, relief: f.relief } : null,
-    f.text2.trim() ? { value: f.text2, size: f.text2Size, font: f.font, relief: f.relief } : null,
-  ].filter((t): t is NonNullable<typeof t> => t !== null);
-  return {
-    slab: { shape: f.shape, thickness: f.thickness, gap: f.gap, cornerRadius: f.cornerRadius, margin: f.margin },
-    layout: { spacing: f.spacing, bed: { width: w!, depth: d! }, copies: f.copies, ...(placements ? { placements } : {}) },
-    marks: { text, ...(f.qr.trim() ? { qr: { value: f.qr, module: f.qrModule, level: f.qrLevel } } : {}), numbers: f.numbers, outlines: f.outlines },
-    material: f.material,
-    nozzle: f.nozzle,
-    layerHeight: f.layerHeight,
-    pricePerKg: f.pricePerKg,
-  };
-}
-
-function Num({ label, unit, value, step, onChange, error, testId }: { label: string; unit?: string; value: number; step: number; onChange: (v: number) => void; error?: string; testId?: string }) {
-  return (
-    <label className="block text-xs text-muted">
-      {label}
-      {unit ? <span className="ml-1">({unit})</span> : null}
-      <input type="number" step={step} value={Number.isFinite(value) ? value : ""} onChange={(e) => onChange(e.target.valueAsNumber)} className="field-input mt-0.5 py-1 text-sm" aria-invalid={Boolean(error)} data-testid={testId} />
-      {error ? <span className="mt-0.5 block text-finding-error">{error}</span> : null}
-    </label>
-  );
-}
 
 const icon = { error: "✕", warning: "⚠", info: "ℹ" } as const;
 const tone = { error: "text-finding-error", warning: "text-finding-warning", info: "text-finding-info" } as const;
 
 export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean }) {
-  const [form, setForm] = useState<Form>(DEFAULT_FORM);
+  const toast = useToast();
+  const router = useRouter();
+  const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
+  const values = useWatch({ control: form.control }) as FormValues;
   type Placements = { piece: number; x: number; y: number; rotation: number }[] | undefined;
   // Layout moves with undo and redo: `past` holds earlier layouts, `future` the undone ones.
   const [placements, setPlacementsNow] = useState<Placements>();
@@ -117,8 +58,8 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
     window.addEventListener("keydown", onKey);
     return () => window.removeEventListener("keydown", onKey);
   }, [undo, redo]);
-  const [result, setResult] = useState<{ bodies: Body[]; stale?: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number } | null>(null);
-  const [ready, setReady] = useState<{ ms: number; triangles: number } | null>(null);
+  const [result, setResult] = useState<{ slab: Body | null; viewPieces: PlacedPiece[]; stale?: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number; seq: number } | null>(null);
+  const [ready, setReady] = useState<{ ms: number; triangles: number; parts: DisplayPart[] } | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
   const [selected, setSelected] = useState<number | undefined>();
   const [top, setTop] = useState(false);
@@ -128,21 +69,21 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
   const sentAt = useRef(new Map<number, number>());
   const [latency, setLatency] = useState<number | null>(null);
 
-  const options = useMemo(() => toOptions(form, placements), [form, placements]);
+  const options = useMemo(() => formToOptions(values, placements), [values, placements]);
   const check = useMemo(() => slabOptionsSchema.safeParse(options), [options]);
-  const fieldError = (p: string) => (check.success ? undefined : check.error.issues.find((i) => i.path.join(".") === p)?.message);
+  const variables = useMemo(() => ({ order: values.samples.order, customer: values.samples.customer, kit: kitName }), [values.samples.order, values.samples.customer, kitName]);
 
   useEffect(() => {
     const w = new Worker(new URL("./slab.worker.ts", import.meta.url), { type: "module" });
     worker.current = w;
     w.onmessage = (e: MessageEvent<FromWorker>) => {
       const m = e.data;
-      if (m.type === "ready") setReady({ ms: m.ms, triangles: m.triangles });
+      if (m.type === "ready") setReady({ ms: m.ms, triangles: m.triangles, parts: m.parts });
       else if (m.type === "error") setProblem(m.message);
       else if (m.seq === seq.current) {
         setProblem(null);
         // A build stopped by an error finding has no geometry: keep showing the last slab that built.
-        setResult((prev) => ({ bodies: m.bodies.length ? m.bodies : (prev?.bodies ?? []), stale: m.bodies.length === 0 && Boolean(prev?.bodies.length), pieces: m.pieces, layout: m.layout ?? prev?.layout ?? null, findings: m.findings, estimates: m.estimates, ms: m.ms }));
+        setResult((prev) => ({ slab: m.slab ?? prev?.slab ?? null, stale: !m.slab && Boolean(prev?.slab), pieces: m.pieces, viewPieces: m.slab || !prev ? m.pieces : prev.viewPieces, layout: m.layout ?? prev?.layout ?? null, findings: m.findings, estimates: m.estimates, ms: m.ms, seq: m.seq }));
         const t = sentAt.current.get(m.seq);
         // Option change → frame: measured to the next animation frame after the new meshes arrive.
         if (t !== undefined) requestAnimationFrame(() => setLatency(performance.now() - t));
@@ -156,10 +97,9 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
     if (!check.success || !worker.current) return;
     const n = ++seq.current;
     sentAt.current.set(n, performance.now());
-    worker.current.postMessage({ type: "build", seq: n, options, variables: { order: form.order, customer: form.customer, kit: kitName } });
-  }, [options, check.success, form.order, form.customer, kitName]);
+    worker.current.postMessage({ type: "build", seq: n, options, variables });
+  }, [options, check.success, variables]);
 
-  const set = <K extends keyof Form>(k: K) => (v: Form[K]) => setForm((f) => ({ ...f, [k]: v }));
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
   const moveTo = useCallback(
     (piece: PlacedPiece, dx: number, dy: number, dr = 0) => {
@@ -172,13 +112,30 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
 
   async function make() {
     setMaking({ progress: 0, status: "queued" });
-    const r = await makePlateAction({ kitId, options, variables: { order: form.order, customer: form.customer, kit: kitName } });
-    if (!r.ok) return setMaking({ progress: 0, status: "failed", message: r.message });
+    const r = await makePlateAction({ kitId, options, variables });
+    if (!r.ok) {
+      toast("problem", `The plate was not made: ${r.message}`);
+      return setMaking({ progress: 0, status: "failed", message: r.message });
+    }
     const plateId = r.data.plateId;
     for (;;) {
-      const s = (await (await fetch(`/api/plates/${plateId}/status`)).json()) as { job: { status: string; progress: number; error: { message: string } | null } };
+      const res = await fetch(`/api/plates/${plateId}/status`);
+      if (!res.ok) {
+        toast("problem", "Lost track of the plate being made; it is listed under Plates when it is done.");
+        return setMaking({ plateId, progress: 0, status: "failed", message: `status check answered HTTP ${res.status}` });
+      }
+      const s = (await res.json()) as { job: { status: string; progress: number; error: { message: string } | null } };
       setMaking({ plateId, progress: s.job.progress, status: s.job.status, message: s.job.error?.message });
-      if (s.job.status === "done" || s.job.status === "failed") break;
+      if (s.job.status === "done") {
+        toast("done", `Plate made: ${result?.pieces.length ?? ""} pieces on one slab. Both files are ready to download.`);
+        router.refresh();
+        break;
+      }
+      if (s.job.status === "failed") {
+        toast("problem", `The plate could not be made: ${s.job.error?.message ?? "the build failed"}`);
+        router.refresh();
+        break;
+      }
       await new Promise((res) => setTimeout(res, 300));
     }
   }
@@ -186,130 +143,13 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
   return (
     <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
       <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
-        <fieldset className="space-y-2">
-          <legend className="font-bold">Slab</legend>
-          <label className="block text-xs text-muted">
-            Outline
-            <select className="field-input mt-0.5 py-1 text-sm" value={form.shape} onChange={(e) => set("shape")(e.target.value as Form["shape"])} aria-label="Slab outline">
-              <option value="rounded-rect">rounded rectangle</option>
-              <option value="disc">disc</option>
-              <option value="contour">follows the pieces</option>
-            </select>
-          </label>
-          <div className="grid grid-cols-2 gap-2">
-            <Num label="Thickness" unit="mm" step={0.1} value={form.thickness} onChange={set("thickness")} error={fieldError("slab.thickness")} />
-            <Num label="Air gap" unit="mm" step={0.05} value={form.gap} onChange={set("gap")} error={fieldError("slab.gap")} testId="opt-gap" />
-            <Num label="Corner radius" unit="mm" step={0.5} value={form.cornerRadius} onChange={set("cornerRadius")} error={fieldError("slab.cornerRadius")} />
-            <Num label="Margin" unit="mm" step={0.5} value={form.margin} onChange={set("margin")} error={fieldError("slab.margin")} />
-            <Num label="Spacing" unit="mm" step={0.5} value={form.spacing} onChange={set("spacing")} error={fieldError("layout.spacing")} testId="opt-spacing" />
-            <Num label="Copies" step={1} value={form.copies} onChange={set("copies")} error={fieldError("layout.copies")} />
-          </div>
-          <label className="block text-xs text-muted">
-            Bed
-            <select className="field-input mt-0.5 py-1 text-sm" value={form.bed} onChange={(e) => set("bed")(e.target.value)} aria-label="Bed">
-              {BEDS.map(([w, d]) => (
-                <option key={`${w}x${d}`} value={`${w}x${d}`}>
-                  {w} × {d} mm
-                </option>
-              ))}
-              <option value="custom">custom size</option>
-            </select>
-          </label>
-          {form.bed === "custom" ? (
-            <div className="grid grid-cols-2 gap-2">
-              <Num label="Bed width" unit="mm" step={1} value={form.bedWidth} onChange={set("bedWidth")} error={fieldError("layout.bed.width")} />
-              <Num label="Bed depth" unit="mm" step={1} value={form.bedDepth} onChange={set("bedDepth")} error={fieldError("layout.bed.depth")} />
-            </div>
-          ) : null}
-        </fieldset>
-        <fieldset className="space-y-2">
-          <legend className="font-bold">Print</legend>
-          <div className="grid grid-cols-2 gap-2">
-            <label className="block text-xs text-muted">
-              Material
-              <select className="field-input mt-0.5 py-1 text-sm" value={form.material} onChange={(e) => set("material")(e.target.value as Form["material"])} aria-label="Material">
-                {Object.keys(MATERIALS).map((m) => (
-                  <option key={m}>{m}</option>
-                ))}
-              </select>
-            </label>
-            <Num label="Nozzle" unit="mm" step={0.1} value={form.nozzle} onChange={set("nozzle")} error={fieldError("nozzle")} />
-            <Num label="Layer height" unit="mm" step={0.02} value={form.layerHeight} onChange={set("layerHeight")} error={fieldError("layerHeight")} />
-            <Num label="Price per kg" step={1} value={form.pricePerKg} onChange={set("pricePerKg")} error={fieldError("pricePerKg")} />
-          </div>
-        </fieldset>
-        <fieldset className="space-y-2">
-          <legend className="font-bold">Marks</legend>
-          <label className="block text-xs text-muted">
-            Text line 1
-            <input className="field-input mt-0.5 py-1 text-sm" value={form.text1} onChange={(e) => set("text1")(e.target.value)} aria-label="Text line 1" />
-          </label>
-          <label className="block text-xs text-muted">
-            Text line 2
-            <input className="field-input mt-0.5 py-1 text-sm" value={form.text2} onChange={(e) => set("text2")(e.target.value)} aria-label="Text line 2" />
-          </label>
-          <div className="grid grid-cols-2 gap-2">
-            <Num label="Line 1 size" unit="mm" step={0.5} value={form.text1Size} onChange={set("text1Size")} error={fieldError("marks.text.0.size")} />
-            <Num label="Line 2 size" unit="mm" step={0.5} value={form.text2Size} onChange={set("text2Size")} />
-            <label className="block text-xs text-muted">
-              Face
-              <select className="field-input mt-0.5 py-1 text-sm" value={form.font} onChange={(e) => set("font")(e.target.value as Form["font"])}>
-                <option value="sans-bold">sans bold</option>
-                <option value="mono-bold">mono bold</option>
-              </select>
-            </label>
-            <label className="block text-xs text-muted">
-              Relief
-              <select className="field-input mt-0.5 py-1 text-sm" value={form.relief} onChange={(e) => set("relief")(e.target.value as Form["relief"])}>
-                <option value="engrave">engraved</option>
-                <option value="emboss">embossed</option>
-              </select>
-            </label>
-          </div>
-          <label className="block text-xs text-muted">
-            QR code says (empty: none)
-            <input className="field-input mt-0.5 py-1 text-sm" value={form.qr} onChange={(e) => set("qr")(e.target.value)} aria-label="QR value" placeholder="https://shop.example/o/{order}" />
-          </label>
-          {form.qr ? (
-            <div className="grid grid-cols-2 gap-2">
-              <Num label="Module" unit="mm" step={0.1} value={form.qrModule} onChange={set("qrModule")} error={fieldError("marks.qr.module")} />
-              <label className="block text-xs text-muted">
-                Error correction
-                <select className="field-input mt-0.5 py-1 text-sm" value={form.qrLevel} onChange={(e) => set("qrLevel")(e.target.value as Form["qrLevel"])}>
-                  {(["L", "M", "Q", "H"] as const).map((l) => (
-                    <option key={l}>{l}</option>
-                  ))}
-                </select>
-              </label>
-            </div>
-          ) : null}
-          <div className="grid grid-cols-2 gap-2">
-            <label className="flex items-center gap-2 text-xs">
-              <input type="checkbox" checked={form.numbers} onChange={(e) => set("numbers")(e.target.checked)} /> numbers
-            </label>
-            <select className="field-input py-1 text-sm" value={form.outlines} onChange={(e) => set("outlines")(e.target.value as Form["outlines"])} aria-label="Piece outlines">
-              <option value="ring">outline rings</option>
-              <option value="pocket">pockets</option>
-              <option value="none">no outlines</option>
-            </select>
-          </div>
-          <div className="grid grid-cols-2 gap-2">
-            <label className="block text-xs text-muted">
-              {"{order}"} sample
-              <input className="field-input mt-0.5 py-1 text-sm" value={form.order} onChange={(e) => set("order")(e.target.value)} />
-            </label>
-            <label className="block text-xs text-muted">
-              {"{customer}"} sample
-              <input className="field-input mt-0.5 py-1 text-sm" value={form.customer} onChange={(e) => set("customer")(e.target.value)} />
-            </label>
-          </div>
-        </fieldset>
+        <OptionsFields form={form} />
       </form>
 
       <div className="space-y-3">
         <div className="card relative h-[22rem] overflow-hidden bg-paper">
-          {result?.bodies.length && result.layout ? (
-            <View3D bodies={result.bodies} size={result.layout.slab} top={top} selected={selected} flagged={flagged} onPick={setSelected} />
+          {result?.slab && result.layout && ready ? (
+            <View3D slab={result.slab} parts={ready.parts} pieces={result.viewPieces} size={result.layout.slab} top={top} selected={selected} flagged={flagged} onPick={setSelected} />
           ) : (
             <p className="p-4 text-sm text-muted">{problem ?? (ready ? "Building the preview…" : "Starting the engine in your browser…")}</p>
           )}
@@ -324,7 +164,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
         </div>
         <div className="card h-[20rem] p-2">
           {result?.layout ? (
-            <PlateMap layout={result.layout} pieces={result.pieces} selected={selected} flagged={flagged} onSelect={setSelected} onMove={(p, dx, dy) => moveTo(p, dx, dy)} />
+            <PlateMap layout={result.layout} pieces={result.pieces} selected={selected} flagged={flagged} onSelect={setSelected} onMove={(p, dx, dy, turn) => moveTo(p, dx, dy, turn)} />
           ) : (
             <p className="p-2 text-sm text-muted">The plate map appears with the first preview.</p>
           )}
@@ -349,7 +189,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
           ) : (
             <span className="text-muted">Drag a piece on the plate map to place it by hand.</span>
           )}
-          <span className="ml-auto text-muted" data-testid="preview-ms">
+          <span className="ml-auto text-muted" data-testid="preview-ms" data-build={result?.seq ?? 0}>
             {result ? `built in ${result.ms.toFixed(0)} ms` : ""}
             {latency !== null ? ` · frame ${latency.toFixed(0)} ms after the change` : ""}
           </span>
@@ -417,7 +257,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
             <ul className="list-disc space-y-0.5 pl-4 text-xs text-muted" data-testid="cautions">
               <li>Keep the air gap in your slicer (support gap settings), or the pieces fuse to the slab.</li>
               <li>The nozzle (≈190–260 °C) and bed (up to ≈110 °C) are hot: let the plate cool before lifting the slab.</li>
-              {MATERIALS[form.material].styrene ? <li className="text-finding-warning">⚠ {form.material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
+              {MATERIALS[values.material]?.styrene ? <li className="text-finding-warning">⚠ {values.material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
               {result?.findings.some((f) => f.code === "small_part") ? <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li> : null}
             </ul>
           </section>

@@ -1,5 +1,5 @@
 /// <reference lib="webworker" />
-import { buildPlate, type PlatePart } from "@/lib/geometry/build-plate";
+import { buildPlate, newPartCache, type PlatePart } from "@/lib/geometry/build-plate";
 import { MeshImportError } from "@/lib/geometry/errors";
 import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId, type FontBook } from "@/lib/geometry/fonts";
 import { importMesh } from "@/lib/geometry/import";
@@ -7,13 +7,15 @@ import type { Unit } from "@/lib/geometry/io/raw";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
 import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import { orientMesh } from "@/lib/geometry/orient";
-import type { FromWorker, ToWorker } from "./protocol";
+import type { DisplayPart, FromWorker, ToWorker } from "./protocol";
 
 const post = (m: FromWorker, transfer: Transferable[] = []) => (self as unknown as DedicatedWorkerGlobalScope).postMessage(m, transfer);
 
 let kernel: Kernel | undefined;
 let fonts: FontBook | undefined;
 let parts: PlatePart[] = [];
+// Footprints and sizes of the parts, measured by the first build and reused by every edit after it.
+const cache = newPartCache();
 let pending: Extract<ToWorker, { type: "build" }> | null = null;
 let busy = false;
 
@@ -35,7 +37,31 @@ async function init(msg: Extract<ToWorker, { type: "init" }>) {
       return { id: p.id, name: p.name, mesh, quantity: p.quantity };
     }),
   );
-  post({ type: "ready", ms: performance.now() - t0, triangles: parts.reduce((s, p) => s + p.mesh.triVerts.length / 3, 0) });
+  const display = parts.map((p) => decimate(p));
+  post(
+    { type: "ready", ms: performance.now() - t0, triangles: parts.reduce((s, p) => s + p.quantity * (p.mesh.triVerts.length / 3), 0), parts: display },
+    display.flatMap((d) => [d.positions.buffer, d.indices.buffer]) as ArrayBuffer[],
+  );
+}
+
+/** Above this many triangles a part is shown simplified, within 0.02 mm of its surface. */
+const DISPLAY_TRIANGLES = 5000;
+const DISPLAY_TOLERANCE = 0.02;
+
+function decimate(p: PlatePart): DisplayPart {
+  const triangles = p.mesh.triVerts.length / 3;
+  if (triangles <= DISPLAY_TRIANGLES) return { id: p.id, positions: p.mesh.vertProperties.slice(), indices: p.mesh.triVerts.slice(), triangles, shownTriangles: triangles };
+  const scope = kernel!.scope();
+  try {
+    const { Manifold, Mesh } = kernel!.wasm;
+    const solid = scope.track(new Manifold(new Mesh({ numProp: 3, vertProperties: p.mesh.vertProperties, triVerts: p.mesh.triVerts })));
+    const m = scope.track(solid.simplify(DISPLAY_TOLERANCE)).getMesh();
+    const positions = new Float32Array(m.numVert * 3);
+    for (let i = 0; i < m.numVert; i++) for (let a = 0; a < 3; a++) positions[i * 3 + a] = m.vertProperties[i * m.numProp + a]!;
+    return { id: p.id, positions, indices: m.triVerts.slice(), triangles, shownTriangles: m.triVerts.length / 3 };
+  } finally {
+    scope.close();
+  }
 }
 
 /** Build the newest request only: edits that arrive while a build runs replace each other. */
@@ -46,12 +72,13 @@ function pump() {
   busy = true;
   try {
     const t0 = performance.now();
-    const r = buildPlate(kernel, { parts, options: msg.options, fonts, variables: msg.variables, formats: [] });
-    // Pieces share their part's index array: copy it, since what is sent is handed over (transferred).
-    const bodies = (r.bodies ?? []).map((b) => ({ name: b.name, piece: b.piece, positions: b.mesh.vertProperties.slice(), indices: b.mesh.triVerts.slice() }));
+    const r = buildPlate(kernel, { parts, options: msg.options, fonts, variables: msg.variables, formats: [], cache });
+    // Only the slab is sent: the view already holds the parts and places them from `pieces`.
+    const s = r.bodies?.find((b) => b.piece === undefined);
+    const slab = s ? { name: s.name, positions: s.mesh.vertProperties, indices: s.mesh.triVerts } : null;
     post(
-      { type: "built", seq: msg.seq, ms: performance.now() - t0, bodies, pieces: r.pieces, layout: r.layout, findings: r.findings, estimates: r.estimates },
-      bodies.flatMap((b) => [b.positions.buffer, b.indices.buffer]).filter((buf, i, all) => all.indexOf(buf) === i) as ArrayBuffer[],
+      { type: "built", seq: msg.seq, ms: performance.now() - t0, slab, pieces: r.pieces, layout: r.layout, findings: r.findings, estimates: r.estimates },
+      slab ? ([slab.positions.buffer, slab.indices.buffer] as ArrayBuffer[]) : [],
     );
   } catch (err) {
     post({ type: "error", seq: msg.seq, message: err instanceof MeshImportError ? err.message : err instanceof Error ? err.message : String(err) });

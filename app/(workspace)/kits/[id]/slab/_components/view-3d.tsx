@@ -4,7 +4,8 @@ import { Canvas, useThree } from "@react-three/fiber";
 import { useEffect, useMemo } from "react";
 import { BufferAttribute, BufferGeometry } from "three";
 import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
-import type { Body } from "./protocol";
+import type { PlacedPiece } from "@/lib/geometry/build-plate";
+import type { Body, DisplayPart } from "./protocol";
 
 function Controls({ top, center }: { top: boolean; center: [number, number, number] }) {
   const { camera, gl, invalidate } = useThree();
@@ -24,34 +25,59 @@ function Controls({ top, center }: { top: boolean; center: [number, number, numb
   return null;
 }
 
-function BodyMesh({ body, selected, flagged, onPick }: { body: Body; selected: boolean; flagged: boolean; onPick: (n?: number) => void }) {
+function useGeometry(positions: Float32Array, indices: Uint32Array, normals: boolean) {
   const geometry = useMemo(() => {
     const g = new BufferGeometry();
-    g.setAttribute("position", new BufferAttribute(body.positions, 3));
-    g.setIndex(new BufferAttribute(body.indices, 1));
-    g.computeVertexNormals();
+    g.setAttribute("position", new BufferAttribute(positions, 3));
+    g.setIndex(new BufferAttribute(indices, 1));
+    if (normals) g.computeVertexNormals();
+    g.computeBoundingSphere();
     return g;
-  }, [body]);
+  }, [positions, indices, normals]);
   useEffect(() => () => geometry.dispose(), [geometry]);
-  const colour = body.piece === undefined ? "#efe8dc" : selected ? "#6d4aff" : flagged ? "#b7791f" : "#4a4f57";
+  return geometry;
+}
+
+function SlabMesh({ slab, onPick }: { slab: Body; onPick: (n?: number) => void }) {
+  // Flat shading takes its normals from the screen-space derivatives: the slab needs none of its own.
+  const geometry = useGeometry(slab.positions, slab.indices, false);
   return (
-    <mesh geometry={geometry} onClick={(e) => (e.stopPropagation(), onPick(body.piece))}>
-      <meshStandardMaterial color={colour} flatShading={body.piece === undefined} />
+    <mesh geometry={geometry} onClick={(e) => (e.stopPropagation(), onPick(undefined))}>
+      <meshLambertMaterial color="#efe8dc" flatShading />
     </mesh>
   );
 }
 
-/** The slab and its pieces in 3D: orbit, pan and zoom; a top view; click a piece to select it. */
-export function View3D({ bodies, size, top, selected, flagged, onPick }: { bodies: Body[]; size: { width: number; depth: number }; top: boolean; selected?: number; flagged: Set<number>; onPick: (n?: number) => void }) {
+function PartGeometry({ part, children }: { part: DisplayPart; children: (g: BufferGeometry) => React.ReactNode }) {
+  const geometry = useGeometry(part.positions, part.indices, true);
+  return <>{children(geometry)}</>;
+}
+
+/**
+ * The slab and its pieces in 3D: orbit, pan and zoom; a top view; click a piece to select it. Each
+ * part's geometry is made once; an edit moves the pieces and swaps the slab's geometry only.
+ */
+export function View3D({ slab, parts, pieces, size, top, selected, flagged, onPick }: { slab: Body | null; parts: DisplayPart[]; pieces: PlacedPiece[]; size: { width: number; depth: number }; top: boolean; selected?: number; flagged: Set<number>; onPick: (n?: number) => void }) {
   const center = useMemo<[number, number, number]>(() => [size.width / 2, size.depth / 2, 0], [size.width, size.depth]);
   return (
-    <Canvas frameloop="demand" camera={{ fov: 35, near: 1, far: 5000 }} data-testid="view-3d" onPointerMissed={() => onPick(undefined)}>
+    <Canvas frameloop="demand" dpr={[1, 1.5]} gl={{ antialias: false, powerPreference: "high-performance" }} camera={{ fov: 35, near: 1, far: 5000 }} data-testid="view-3d" onPointerMissed={() => onPick(undefined)}>
       <ambientLight intensity={0.55} />
       <directionalLight position={[size.width, -size.depth, 300]} intensity={1.6} />
       <directionalLight position={[-100, 200, 150]} intensity={0.4} />
       <Controls top={top} center={center} />
-      {bodies.map((b, i) => (
-        <BodyMesh key={`${b.name}-${i}`} body={b} selected={b.piece !== undefined && b.piece === selected} flagged={b.piece !== undefined && flagged.has(b.piece)} onPick={onPick} />
+      {slab ? <SlabMesh slab={slab} onPick={onPick} /> : null}
+      {parts.map((part) => (
+        <PartGeometry key={part.id} part={part}>
+          {(g) =>
+            pieces
+              .filter((p) => p.partId === part.id)
+              .map((p) => (
+                <mesh key={p.slot} geometry={g} position={[p.x, p.y, p.z]} rotation={[0, 0, (p.rotation * Math.PI) / 180]} onClick={(e) => (e.stopPropagation(), onPick(p.number))}>
+                  <meshLambertMaterial color={p.number === selected ? "#6d4aff" : flagged.has(p.number) ? "#b7791f" : "#4a4f57"} />
+                </mesh>
+              ))
+          }
+        </PartGeometry>
       ))}
     </Canvas>
   );

@@ -1,0 +1,302 @@
+"use client";
+
+import { useId } from "react";
+import { get, useFieldArray, type FieldErrors, type Path, type Resolver, type UseFormReturn } from "react-hook-form";
+import { ENGRAVING_FONTS } from "@/lib/geometry/fonts";
+import { DEFAULT_OPTIONS, MATERIALS, slabOptionsSchema, type MarkPosition, type SlabOptionsInput } from "@/lib/geometry/options";
+
+/**
+ * The slab editor's options form: react-hook-form over values shaped for people (a bed picked by
+ * size, a position picked from a list), turned into the slab builder's canonical options and checked
+ * by the engine's own zod schema, whose messages are shown at their fields.
+ */
+
+export const BEDS = [[180, 180], [220, 220], [235, 235], [250, 210], [256, 256], [300, 300], [350, 350], [400, 400]] as const;
+type Where = "auto" | "top" | "bottom" | "at";
+type FontId = keyof typeof ENGRAVING_FONTS;
+type Relief = "engrave" | "emboss";
+export type LineForm = { value: string; size: number; font: FontId; relief: Relief; depth: number; where: Where; x: number; y: number };
+export type QrForm = { value: string; module: number; level: "L" | "M" | "Q" | "H"; relief: Relief; depth: number; where: Where; x: number; y: number };
+export type FormValues = {
+  slab: { shape: "rounded-rect" | "disc" | "contour"; thickness: number; gap: number; cornerRadius: number; margin: number };
+  bed: string;
+  bedWidth: number;
+  bedDepth: number;
+  spacing: number;
+  copies: number;
+  material: keyof typeof MATERIALS;
+  nozzle: number;
+  layerHeight: number;
+  pricePerKg: number;
+  text: LineForm[];
+  qr: QrForm;
+  numbers: boolean;
+  outlines: "ring" | "pocket" | "none";
+  /** Sample values for the {placeholders}, shown in the preview. */
+  samples: { order: string; customer: string };
+};
+
+type Placement = { piece: number; x: number; y: number; rotation: number };
+
+const D = DEFAULT_OPTIONS;
+const line = (value: string, size: number): LineForm => ({ value, size, font: "sans-bold", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0 });
+export const DEFAULT_VALUES: FormValues = {
+  slab: { ...D.slab },
+  bed: "220x220",
+  bedWidth: 220,
+  bedDepth: 220,
+  spacing: D.layout.spacing,
+  copies: 1,
+  material: D.material,
+  nozzle: D.nozzle,
+  layerHeight: D.layerHeight,
+  pricePerKg: D.pricePerKg,
+  text: [line("ORDER {order}", 5), line("Thank you, {customer}!", 4)],
+  qr: { value: "", module: 1.2, level: "M", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0 },
+  numbers: true,
+  outlines: "ring",
+  samples: { order: "10482", customer: "Sam" },
+};
+
+const position = (where: Where, x: number, y: number): MarkPosition => (where === "at" ? { x, y } : where);
+
+export function formToOptions(f: FormValues, placements?: Placement[]): SlabOptionsInput {
+  const [w, d] = f.bed === "custom" ? [f.bedWidth, f.bedDepth] : f.bed.split("x").map(Number);
+  return {
+    slab: { ...f.slab },
+    layout: { spacing: f.spacing, bed: { width: w!, depth: d! }, copies: f.copies, ...(placements ? { placements } : {}) },
+    marks: {
+      // An emptied line is left out rather than refused, so a line can be retyped without an error.
+      text: f.text.filter((t) => t.value.trim()).map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, position: position(t.where, t.x, t.y) })),
+      ...(f.qr.value.trim() ? { qr: { value: f.qr.value, module: f.qr.module, level: f.qr.level, relief: f.qr.relief, depth: f.qr.depth, position: position(f.qr.where, f.qr.x, f.qr.y) } } : {}),
+      numbers: f.numbers,
+      outlines: f.outlines,
+    },
+    material: f.material,
+    nozzle: f.nozzle,
+    layerHeight: f.layerHeight,
+    pricePerKg: f.pricePerKg,
+  };
+}
+
+/** The other way: canonical options (a template's, say) as form values. */
+export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samples"] = DEFAULT_VALUES.samples): FormValues {
+  const o = slabOptionsSchema.parse(input);
+  const preset = BEDS.find(([w, d]) => w === o.layout.bed.width && d === o.layout.bed.depth);
+  const where = (p: MarkPosition) => (typeof p === "object" ? { where: "at" as const, x: p.x, y: p.y } : { where: p, x: 0, y: 0 });
+  return {
+    slab: { ...o.slab },
+    bed: preset ? `${preset[0]}x${preset[1]}` : "custom",
+    bedWidth: o.layout.bed.width,
+    bedDepth: o.layout.bed.depth,
+    spacing: o.layout.spacing,
+    copies: o.layout.copies,
+    material: o.material,
+    nozzle: o.nozzle,
+    layerHeight: o.layerHeight,
+    pricePerKg: o.pricePerKg,
+    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, ...where(t.position) })),
+    qr: o.marks.qr ? { value: o.marks.qr.value, module: o.marks.qr.module, level: o.marks.qr.level, relief: o.marks.qr.relief, depth: o.marks.qr.depth, ...where(o.marks.qr.position) } : DEFAULT_VALUES.qr,
+    numbers: o.marks.numbers,
+    outlines: o.marks.outlines,
+    samples,
+  };
+}
+
+/** Where an option's message belongs in the form. */
+export function formPath(optionPath: (string | number | symbol)[]): string {
+  const p = optionPath.map(String);
+  if (p[0] === "layout" && p[1] === "bed") return p[2] === "depth" ? "bedDepth" : "bedWidth";
+  if (p[0] === "layout") return p[1]!;
+  if (p[0] === "marks" && p[1] === "text") {
+    const f = p[3] === "position" ? (p[4] ?? "x") : p[3];
+    // Text lines are sent without the emptied ones: the index is mapped back by the caller.
+    return `text.${p[2]}.${f}`;
+  }
+  if (p[0] === "marks" && p[1] === "qr") return p[2] === "position" ? `qr.${p[3] ?? "x"}` : `qr.${p[2]}`;
+  if (p[0] === "marks") return p[1]!;
+  return p.join(".");
+}
+
+const friendly = (message: string) => (/received nan|expected number/i.test(message) ? "Enter a number." : message);
+
+/** The engine's schema as the form's resolver: one check, one set of messages, at their fields. */
+export const slabResolver: Resolver<FormValues> = async (values) => {
+  const r = slabOptionsSchema.safeParse(formToOptions(values));
+  if (r.success) return { values, errors: {} };
+  const kept = values.text.map((t, i) => (t.value.trim() ? i : -1)).filter((i) => i >= 0);
+  const errors: Record<string, unknown> = {};
+  for (const issue of r.error.issues) {
+    let path = formPath(issue.path as (string | number)[]);
+    const m = /^text\.(\d+)\.(.*)$/.exec(path);
+    if (m) path = `text.${kept[Number(m[1])] ?? m[1]}.${m[2]}`;
+    if (get(errors, path)) continue;
+    let node = errors as Record<string, unknown>;
+    const keys = path.split(".");
+    keys.forEach((k, i) => {
+      if (i === keys.length - 1) node[k] = { type: issue.code, message: friendly(issue.message) };
+      else node = (node[k] ??= {}) as Record<string, unknown>;
+    });
+  }
+  return { values: {}, errors: errors as FieldErrors<FormValues> };
+};
+
+const input = "field-input mt-0.5 py-1 text-sm";
+
+function Num({ form, name, label, unit, step, testId }: { form: UseFormReturn<FormValues>; name: Path<FormValues>; label: string; unit?: string; step: number; testId?: string }) {
+  const id = `${useId()}-${name}`;
+  const error = (get(form.formState.errors, name) as { message?: string } | undefined)?.message;
+  return (
+    <div className="text-xs text-muted">
+      <label htmlFor={id}>
+        {label}
+        {unit ? <span className="ml-1">({unit})</span> : null}
+      </label>
+      <input id={id} type="number" inputMode="decimal" step={step} className={input} aria-invalid={Boolean(error)} aria-describedby={error ? `${id}-e` : undefined} data-testid={testId} {...form.register(name, { valueAsNumber: true })} />
+      {error ? (
+        <span id={`${id}-e`} className="mt-0.5 block text-finding-error">
+          {error}
+        </span>
+      ) : null}
+    </div>
+  );
+}
+
+function Pick({ form, name, label, options, aria }: { form: UseFormReturn<FormValues>; name: Path<FormValues>; label: string; options: [string, string][]; aria?: string }) {
+  const id = `${useId()}-${name}`;
+  return (
+    <div className="text-xs text-muted">
+      <label htmlFor={id}>{label}</label>
+      <select id={id} className={input} aria-label={aria} {...form.register(name)}>
+        {options.map(([v, l]) => (
+          <option key={v} value={v}>
+            {l}
+          </option>
+        ))}
+      </select>
+    </div>
+  );
+}
+
+function Text({ form, name, label, placeholder, aria }: { form: UseFormReturn<FormValues>; name: Path<FormValues>; label: string; placeholder?: string; aria?: string }) {
+  const id = `${useId()}-${name}`;
+  const error = (get(form.formState.errors, name) as { message?: string } | undefined)?.message;
+  return (
+    <div className="text-xs text-muted">
+      <label htmlFor={id}>{label}</label>
+      <input id={id} className={input} placeholder={placeholder} aria-label={aria} aria-invalid={Boolean(error)} {...form.register(name)} />
+      {error ? <span className="mt-0.5 block text-finding-error">{error}</span> : null}
+    </div>
+  );
+}
+
+const WHERE: [Where, string][] = [["auto", "auto"], ["top", "above"], ["bottom", "below"], ["at", "at x / y"]];
+const RELIEF: [Relief, string][] = [["engrave", "engraved"], ["emboss", "embossed"]];
+const FACES = Object.entries(ENGRAVING_FONTS).map(([id, f]) => [id, f.label] as [string, string]);
+
+export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
+  const lines = useFieldArray({ control: form.control, name: "text" });
+  const v = form.watch();
+  return (
+    <>
+      <fieldset className="space-y-2">
+        <legend className="font-bold">Slab</legend>
+        <Pick form={form} name="slab.shape" label="Outline" aria="Slab outline" options={[["rounded-rect", "rounded rectangle"], ["disc", "disc"], ["contour", "follows the pieces"]]} />
+        <div className="grid grid-cols-2 gap-2">
+          <Num form={form} name="slab.thickness" label="Thickness" unit="mm" step={0.1} />
+          <Num form={form} name="slab.gap" label="Air gap" unit="mm" step={0.05} testId="opt-gap" />
+          <Num form={form} name="slab.cornerRadius" label="Corner radius" unit="mm" step={0.5} />
+          <Num form={form} name="slab.margin" label="Margin" unit="mm" step={0.5} />
+          <Num form={form} name="spacing" label="Spacing" unit="mm" step={0.5} testId="opt-spacing" />
+          <Num form={form} name="copies" label="Copies of the kit" step={1} />
+        </div>
+        <Pick form={form} name="bed" label="Bed" aria="Bed" options={[...BEDS.map(([w, d]) => [`${w}x${d}`, `${w} × ${d} mm`] as [string, string]), ["custom", "custom size"]]} />
+        {v.bed === "custom" ? (
+          <div className="grid grid-cols-2 gap-2">
+            <Num form={form} name="bedWidth" label="Bed width" unit="mm" step={1} />
+            <Num form={form} name="bedDepth" label="Bed depth" unit="mm" step={1} />
+          </div>
+        ) : null}
+      </fieldset>
+      <fieldset className="space-y-2">
+        <legend className="font-bold">Print</legend>
+        <div className="grid grid-cols-2 gap-2">
+          <Pick form={form} name="material" label="Material" aria="Material" options={Object.keys(MATERIALS).map((m) => [m, m])} />
+          <Num form={form} name="nozzle" label="Nozzle" unit="mm" step={0.1} />
+          <Num form={form} name="layerHeight" label="Layer height" unit="mm" step={0.02} />
+          <Num form={form} name="pricePerKg" label="Filament price per kg" step={1} />
+        </div>
+      </fieldset>
+      <fieldset className="space-y-2">
+        <legend className="font-bold">Text</legend>
+        {lines.fields.length === 0 ? <p className="text-xs text-muted">No text on the slab. Add a line for an order number or a thank-you.</p> : null}
+        {lines.fields.map((f, i) => (
+          <div key={f.id} className="space-y-1.5 rounded-card border border-hairline p-2">
+            <div className="flex items-end gap-1">
+              <div className="grow">
+                <Text form={form} name={`text.${i}.value`} label={`Text line ${i + 1}`} />
+              </div>
+              <button type="button" className="btn-quiet px-2 py-1 text-xs" onClick={() => lines.remove(i)} aria-label={`Remove line ${i + 1}`} title="Remove this line">
+                ✕
+              </button>
+            </div>
+            <div className="grid grid-cols-2 gap-2">
+              <Num form={form} name={`text.${i}.size`} label="Cap height" unit="mm" step={0.5} />
+              <Pick form={form} name={`text.${i}.font`} label="Face" options={FACES} />
+              <Pick form={form} name={`text.${i}.relief`} label="Relief" options={RELIEF} />
+              <Num form={form} name={`text.${i}.depth`} label={v.text[i]?.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
+              <Pick form={form} name={`text.${i}.where`} label="Place" options={WHERE} />
+            </div>
+            {v.text[i]?.where === "at" ? (
+              <div className="grid grid-cols-2 gap-2">
+                <Num form={form} name={`text.${i}.x`} label="x" unit="mm" step={0.5} />
+                <Num form={form} name={`text.${i}.y`} label="y" unit="mm" step={0.5} />
+              </div>
+            ) : null}
+          </div>
+        ))}
+        <button type="button" className="btn-quiet px-2 py-1 text-xs" disabled={lines.fields.length >= 6} onClick={() => lines.append(line("", 4))}>
+          Add a text line
+        </button>
+      </fieldset>
+      <fieldset className="space-y-2">
+        <legend className="font-bold">QR code</legend>
+        <div className="text-xs text-muted">
+          <Text form={form} name="qr.value" label="QR code says (empty: none)" aria="QR value" placeholder="https://shop.example/o/{order}" />
+        </div>
+        {v.qr.value ? (
+          <div className="grid grid-cols-2 gap-2">
+            <Num form={form} name="qr.module" label="Module" unit="mm" step={0.1} />
+            <Pick form={form} name="qr.level" label="Error correction" options={[["L", "L (7 %)"], ["M", "M (15 %)"], ["Q", "Q (25 %)"], ["H", "H (30 %)"]]} />
+            <Pick form={form} name="qr.relief" label="Relief" options={RELIEF} />
+            <Num form={form} name="qr.depth" label={v.qr.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
+            <Pick form={form} name="qr.where" label="Place" options={WHERE} />
+            {v.qr.where === "at" ? (
+              <>
+                <Num form={form} name="qr.x" label="x" unit="mm" step={0.5} />
+                <Num form={form} name="qr.y" label="y" unit="mm" step={0.5} />
+              </>
+            ) : null}
+          </div>
+        ) : null}
+      </fieldset>
+      <fieldset className="space-y-2">
+        <legend className="font-bold">Piece marks</legend>
+        <div className="grid grid-cols-2 items-end gap-2">
+          <label className="flex items-center gap-2 pb-1.5 text-xs">
+            <input type="checkbox" {...form.register("numbers")} /> numbers beside pieces
+          </label>
+          <Pick form={form} name="outlines" label="Outlines" aria="Piece outlines" options={[["ring", "outline rings"], ["pocket", "pockets"], ["none", "no outlines"]]} />
+        </div>
+      </fieldset>
+      <fieldset className="space-y-2">
+        <legend className="font-bold">Sample values</legend>
+        <p className="text-xs text-muted">What the preview fills into {"{order}"} and {"{customer}"}; {"{date}"} is today and {"{kit}"} the kit&apos;s name.</p>
+        <div className="grid grid-cols-2 gap-2">
+          <Text form={form} name="samples.order" label="{order}" />
+          <Text form={form} name="samples.customer" label="{customer}" />
+        </div>
+      </fieldset>
+    </>
+  );
+}

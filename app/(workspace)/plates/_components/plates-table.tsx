@@ -1,0 +1,49 @@
+import Link from "next/link";
+import type { PlateRow } from "@/db/queries/library";
+import { when } from "@/lib/format";
+import { DataTable, EmptyState } from "../../_components/page-header";
+
+const sourceLabel = { editor: "slab editor", api: "API", reprint: "reprint" } as const;
+const stateLabel = { queued: "waiting for a worker", running: "building", done: "ready", failed: "failed" } as const;
+
+/** Plates as a table: when, what, who, how it went, and the files. Used for the workspace and per kit. */
+export function PlatesTable({ rows, label, showKit = true, empty }: { rows: PlateRow[]; label: string; showKit?: boolean; empty: string }) {
+  if (rows.length === 0) return <EmptyState message={empty} />;
+  return (
+    <DataTable label={label} head={["Made", ...(showKit ? ["Kit"] : []), "Pieces", "Mass", "From", "By", "Status", "Files"]}>
+      {rows.map((p) => {
+        const est = p.estimates as { totalMass?: number; material?: string } | null;
+        const warnings = (p.findings as { severity: string }[]).filter((f) => f.severity === "warning").length;
+        return (
+          <tr key={p.id} data-testid="plate-row">
+            <td className="px-3 py-2 text-muted">{when(p.createdAt)}</td>
+            {showKit ? (
+              <td className="px-3 py-2 font-bold">{p.kitId && p.kitName ? <Link href={`/kits/${p.kitId}/slab`} className="hover:underline">{p.kitName}</Link> : (p.title ?? "posted parts")}</td>
+            ) : null}
+            <td className="px-3 py-2 font-mono">{p.pieceCount}</td>
+            <td className="px-3 py-2 font-mono">{est?.totalMass !== undefined ? `${est.totalMass.toFixed(1)} g ${est.material ?? ""}` : "—"}</td>
+            <td className="px-3 py-2">{sourceLabel[p.source]}</td>
+            <td className="px-3 py-2 text-muted">{p.makerName ?? p.makerEmail ?? (p.source === "api" ? "API key" : "—")}</td>
+            <td className={`px-3 py-2 ${p.jobState === "failed" ? "text-finding-error" : ""}`}>
+              {stateLabel[p.jobState]}
+              {warnings ? <span className="ml-1 text-finding-warning">· ⚠ {warnings}</span> : null}
+            </td>
+            <td className="space-x-2 px-3 py-2">
+              {p.hasStl ? (
+                <a className="text-accent underline" href={`/api/plates/${p.id}/download?format=stl`}>
+                  STL
+                </a>
+              ) : null}
+              {p.has3mf ? (
+                <a className="text-accent underline" href={`/api/plates/${p.id}/download?format=3mf`}>
+                  3MF
+                </a>
+              ) : null}
+              {!p.hasStl && !p.has3mf ? <span className="text-muted">—</span> : null}
+            </td>
+          </tr>
+        );
+      })}
+    </DataTable>
+  );
+}
