@@ -287,11 +287,14 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     }
     arrangement = found;
     const baseY = m + (bottom.h ? bottom.h + spacing : 0);
+    // With no piece placed by hand, a block of pieces narrower than the text and QR bands is centred
+    // over them: the slab looks balanced and a disc round it comes out smaller.
+    const centre = manual.length === 0 ? Math.max(0, (bandsW - found.width) / 2) : 0;
     for (const p of found.packed) {
       const w = work[p.key - 1]!;
       if (p.choice === 1) w.angle = (w.angle + 90) % 360;
       const rb = rotatedBounds(w.fp.hull, w.angle);
-      w.rect = { ...p, x: p.x + m + manualMaxX, y: p.y + baseY };
+      w.rect = { ...p, x: p.x + m + manualMaxX + centre, y: p.y + baseY };
       w.x = w.rect.x + gutter + ext - rb.minX;
       w.y = w.rect.y + ext - rb.minY;
     }
