@@ -3,7 +3,7 @@
  * threads, one per core by default (SLAB_WORKER_THREADS). Run more of these on other machines with the
  * same DATABASE_URL (and the same blob storage) to share the work.
  *
- * Each thread slot runs its own fetch loop: it wakes at once on a NOTIFY from the app when a job is
+ * Each job slot (two per thread) runs its own fetch loop: it wakes at once on a NOTIFY from the app when a job is
  * queued, and otherwise polls once a second (a job handed out again after a crash has no NOTIFY).
  */
 import os from "node:os";
@@ -51,7 +51,10 @@ async function slot() {
     }
   }
 }
-const slots = Array.from({ length: threads }, () => slot());
+// Two jobs in hand per thread: while one job's files are stored and its row is written, the thread
+// already builds the next (piscina queues it), so a thread never idles on the database or the disk.
+const perThread = Math.max(1, Number(process.env.SLAB_JOBS_PER_THREAD ?? 2));
+const slots = Array.from({ length: threads * perThread }, () => slot());
 console.log(`worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}`);
 
 async function stop() {

@@ -237,7 +237,7 @@ export async function plateFile(plate: Plate, format: "stl" | "3mf"): Promise<Re
   // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.
   const stem = (plate.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
   const name = `${stem}-${plate.createdAt.toISOString().slice(0, 10)}-${plate.id.slice(0, 4)}.${format}`;
-  return new Response(new Uint8Array(bytes), {
+  return new Response(bytes as Uint8Array<ArrayBuffer>, {
     headers: {
       "Content-Type": format === "stl" ? "model/stl" : "model/3mf",
       "Content-Disposition": `attachment; filename="${name}"`,

@@ -15,9 +15,11 @@ import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
 import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { orientMesh } from "@/lib/geometry/orient";
+import { blobStore } from "@/lib/storage";
 
 export type BuildTask = {
-  parts: { name: string; blobKey: string; bytes: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number }[];
+  /** Parts by blob key; `bytes` may be left out, and the thread reads the blob itself unless it holds the part already. */
+  parts: { name: string; blobKey: string; bytes?: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number }[];
   options: SlabOptionsInput;
   variables: Record<string, string>;
   title: string;
@@ -57,17 +59,19 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
   fonts ??= loadFonts();
   const k = await kernel;
   try {
-    const parts = task.parts.map((p, i) => {
+    const parts = [];
+    for (const [i, p] of task.parts.entries()) {
       const cacheKey = `${p.blobKey}|${p.unit ?? ""}|${p.layFlat ? 1 : 0}|${p.turned ? 1 : 0}|${p.rotation ?? 0}`;
       let mesh = meshCache.get(cacheKey);
       if (!mesh) {
-        const imported = importMesh(p.bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
+        const bytes = p.bytes ?? (await blobStore().get(p.blobKey));
+        const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
         mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
         meshCache.set(cacheKey, mesh);
       }
-      return { id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity };
-    });
+      parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity });
+    }
     const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
     return { ok: true, result };
   } catch (err) {

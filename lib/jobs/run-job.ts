@@ -20,7 +20,8 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
   if (plate.jobState === "done" || plate.jobState === "failed") return; // finished by an earlier delivery of this job
   await db().update(plates).set({ jobState: "running", progress: 0.2, jobId }).where(eq(plates.id, plateId));
   const task: BuildTask = {
-    parts: await Promise.all(plate.input.parts.map(async (p) => ({ ...p, bytes: await blobStore().get(p.blobKey) }))),
+    // The thread reads a part's blob only when it does not hold that part already.
+    parts: plate.input.parts,
     options: plate.options,
     variables: plate.variables,
     title: plate.title ?? "Slabwright plate",
