@@ -13,6 +13,7 @@ import { DEMO_PAWN_SEGMENTS, hexTile, pawn } from "../lib/geometry/demo-shapes";
 import { loadKernel } from "../lib/geometry/kernel";
 import { orientMesh } from "../lib/geometry/orient";
 import { benchFonts } from "./kit";
+import { parallelCeiling } from "./parallel-floor";
 
 const base = process.env.SLAB_BENCH_URL ?? "http://localhost:3000";
 const creds = JSON.parse(readFileSync(".data/demo-credentials.json", "utf8")) as { apiKey: string };
@@ -105,3 +106,6 @@ console.log(`in-process builds/min ${f(inProcessPerMin)} (the faster of ${f(befo
 console.log(`API, 1 thread: ${f(one.perMin)} plates/min, p50 ${f(one.p50)} ms, p95 ${f(one.p95)} ms`);
 console.log(`API, 2 threads: ${f(two.perMin)} plates/min, p50 ${f(two.p50)} ms, p95 ${f(two.p95)} ms`);
 console.log(`pool efficiency ${(two.perMin / (2 * inProcessPerMin)).toFixed(2)} (target ≥ 0.8)`);
+// The most any pool could reach here: two threads building at once with no server, database or client.
+const ceiling = await parallelCeiling(N);
+console.log(`two threads in-process, nothing else running: ${ceiling.two.toFixed(0)} builds/min against ${ceiling.one.toFixed(0)} for one: ceiling ${ceiling.ceiling.toFixed(2)} on this machine`);
