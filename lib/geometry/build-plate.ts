@@ -9,6 +9,7 @@ import type { DeflateRaw } from "./io/zip-write";
 import type { Kernel, Scope } from "./kernel";
 import { arrange, areaScore, type PackItem, type Packed } from "./layout";
 import { qrShape, QUIET_ZONE_MODULES, type QrShape } from "./marks/qr";
+import { LOGO_LIMITS, logoContours, logoHeight } from "./marks/logo";
 import { layoutText, type Contour, type TextShape } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
 import { NUMBER_SIZE, parseOptions, RING, type SlabOptions, type SlabOptionsInput, type TextMark } from "./options";
@@ -70,7 +71,7 @@ export type PlateLayout = {
   slab: { shape: SlabShape; width: number; depth: number; outline: Contour[]; thickness: number };
   bed: { width: number; depth: number };
   utilisation: number;
-  marks: { kind: "text" | "qr"; value: string; bounds: { minX: number; minY: number; maxX: number; maxY: number } }[];
+  marks: { kind: "text" | "qr" | "logo"; value: string; bounds: { minX: number; minY: number; maxX: number; maxY: number } }[];
 };
 
 export type PlateResult = {
@@ -219,21 +220,57 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   });
   const qrMark = o.marks.qr;
   const qr = qrMark ? { mark: qrMark, value: fillPlaceholders(qrMark.value, vars), shape: qrShape(fillPlaceholders(qrMark.value, vars), qrMark.module, qrMark.level) } : null;
+  const logoMark = o.marks.logo;
+  const logo = logoMark ? { mark: logoMark, w: logoMark.width, h: logoHeight(logoMark, logoMark.width), parts: logoContours(logoMark, logoMark.width) } : null;
+
+  if (logo) {
+    const points = logo.parts.reduce((n, p) => n + p.contours.reduce((m, c) => m + c.length, 0), 0);
+    if (points > LOGO_LIMITS.points) {
+      findings.push({ severity: "error", code: "logo_too_complex", message: `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.w} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")} are engraved. Simplify its curves.` });
+      return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
+    }
+  }
+  // Room a template gives its filled values: too long is an error that says by how much.
+  for (const t of texts) {
+    const width = t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX);
+    if (t.mark.maxWidth !== undefined && width > t.mark.maxWidth + 1e-9) {
+      findings.push({ severity: "error", code: "text_too_long", message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.` });
+    }
+  }
+  if (qr && qr.mark.maxSize !== undefined && qr.shape.sizeWithQuietZone > qr.mark.maxSize + 1e-9) {
+    // The longest start of the value that still fits, found by halving.
+    let lo = 0, hi = qr.value.length;
+    while (lo < hi) {
+      const mid = Math.ceil((lo + hi) / 2);
+      if (qrShape(qr.value.slice(0, mid) || " ", qr.mark.module, qr.mark.level).sizeWithQuietZone <= qr.mark.maxSize) lo = mid;
+      else hi = mid - 1;
+    }
+    findings.push({
+      severity: "error",
+      code: "qr_too_large",
+      message: `The QR code for "${qr.value.length > 60 ? `${qr.value.slice(0, 57)}…` : qr.value}" needs ${qr.shape.modules} modules, ${qr.shape.sizeWithQuietZone.toFixed(1)} mm with its quiet zone; the template allows ${qr.mark.maxSize} mm: ${(qr.shape.sizeWithQuietZone - qr.mark.maxSize).toFixed(1)} mm too large. Shorten the value by ${qr.value.length - lo} characters (or use smaller modules or a lower error correction).`,
+    });
+  }
 
   const ext = o.marks.outlines === "ring" ? RING.clearance + RING.width : o.marks.outlines === "pocket" ? RING.clearance : 0;
   const numberFont = input.fonts["mono-bold"];
   const labelW = o.marks.numbers ? layoutText(numberFont, String(Math.max(1, work.length)), NUMBER_SIZE).advance : 0;
   const gutter = o.marks.numbers ? labelW + 0.8 : 0;
 
+  // A band above or below the pieces: the logo at the left, then the text lines, the QR at the right.
   const bandOf = (where: "top" | "bottom") => {
-    const lines = texts.filter((t) => t.mark.position === where || (where === "bottom" && t.mark.position === "auto"));
-    const q = qr && (qr.mark.position === where || (where === "bottom" && qr.mark.position === "auto")) ? qr : null;
+    const inBand = (p: SlabOptions["marks"]["text"][number]["position"]) => p === where || (where === "bottom" && p === "auto");
+    const lines = texts.filter((t) => inBand(t.mark.position));
+    const q = qr && inBand(qr.mark.position) ? qr : null;
+    const lg = logo && inBand(logo.mark.position) ? logo : null;
     const textH = lines.reduce((s, t, i) => s + t.mark.size * (i === 0 ? 1 : 1.6), 0) + (lines.length ? 0.4 * (lines[lines.length - 1]!.mark.size) : 0);
     const textW = Math.max(0, ...lines.map((t) => t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX)));
     const qrSide = q ? q.shape.sizeWithQuietZone : 0;
-    const h = Math.max(textH, qrSide);
-    const w = textW + (q && lines.length ? spacing : 0) + qrSide;
-    return { lines, q, h, w, textH };
+    const h = Math.max(textH, qrSide, lg?.h ?? 0);
+    const items = [lg?.w ?? 0, textW, qrSide].filter((x) => x > 0);
+    const w = items.reduce((a, b) => a + b, 0) + spacing * Math.max(0, items.length - 1);
+    const logoW = lg ? lg.w + spacing : 0;
+    return { lines, q, lg, h, w, textH, logoW };
   };
   const bottom = bandOf("bottom");
   const top = bandOf("top");
@@ -321,14 +358,20 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     band.lines.forEach((t, i) => {
       if (i > 0) y -= t.mark.size * 1.6;
       // On a disc the lines are centred (in the room the QR leaves), which keeps the disc small.
-      const room = innerW - (band.q ? band.q.shape.sizeWithQuietZone + spacing : 0);
+      const room = innerW - band.logoW - (band.q ? band.q.shape.sizeWithQuietZone + spacing : 0);
       const width = t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX);
       const indent = o.slab.shape === "disc" ? Math.max(0, (room - width) / 2) : 0;
-      blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: contentMinX + indent - Math.min(0, t.shape.bounds.minX), y });
+      blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: contentMinX + band.logoW + indent - Math.min(0, t.shape.bounds.minX), y });
     });
   };
   placeBand(bottom, bottomY);
   placeBand(top, topY);
+  let logoBlock: { x: number; y: number; w: number; h: number } | null = null;
+  if (logo) {
+    const pos = logo.mark.position;
+    const band = pos === "top" ? top : bottom;
+    logoBlock = typeof pos === "object" ? { x: pos.x, y: pos.y, w: logo.w, h: logo.h } : { x: contentMinX, y: (pos === "top" ? topY : bottomY) + (band.h - logo.h) / 2, w: logo.w, h: logo.h };
+  }
   for (const t of texts) {
     if (typeof t.mark.position === "object") blocks.push({ mark: t.mark, value: t.value, shape: t.shape, x: t.mark.position.x, y: t.mark.position.y });
   }
@@ -346,6 +389,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     ...piecesBox,
     ...blocks.map((b) => ({ minX: b.x + b.shape.bounds.minX, minY: b.y + b.shape.bounds.minY, maxX: b.x + b.shape.bounds.maxX, maxY: b.y + b.shape.bounds.maxY })),
     ...(qrBlock ? [{ minX: qrBlock.x, minY: qrBlock.y, maxX: qrBlock.x + qrBlock.shape.sizeWithQuietZone, maxY: qrBlock.y + qrBlock.shape.sizeWithQuietZone }] : []),
+    ...(logoBlock ? [{ minX: logoBlock.x, minY: logoBlock.y, maxX: logoBlock.x + logoBlock.w, maxY: logoBlock.y + logoBlock.h }] : []),
   ];
   const outline = slabOutline(kernel, scope, o, {
     boxes: contentBoxes,
@@ -367,6 +411,10 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   if (qrBlock) {
     qrBlock.x += dx;
     qrBlock.y += dy;
+  }
+  if (logoBlock) {
+    logoBlock.x += dx;
+    logoBlock.y += dy;
   }
   const slabW = ob.max[0] - ob.min[0];
   const slabD = ob.max[1] - ob.min[1];
@@ -395,7 +443,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     map.set(depth, list);
   };
   const textCs = (contours: Contour[], x: number, y: number) => scope.track(scope.track(new CrossSection(contours, "NonZero")).translate(x, y));
-  const markRegions: { kind: "text" | "qr" | "number"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[] = [];
+  const markRegions: { kind: "text" | "qr" | "number" | "logo"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[] = [];
   for (const b of blocks) {
     if (b.shape.contours.length === 0) continue;
     const cs = textCs(b.shape.contours, b.x, b.y);
@@ -406,6 +454,14 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     const inset = QUIET_ZONE_MODULES * qrBlock.mark.module;
     const cs = textCs(qrBlock.shape.contours, qrBlock.x + inset, qrBlock.y + inset);
     add(qrBlock.mark.relief, qrBlock.mark.depth, cs);
+  }
+  if (logo && logoBlock) {
+    const pieces = logo.parts.filter((p) => p.contours.length).map((p) => scope.track(new CrossSection(p.contours, p.fillRule === "evenodd" ? "EvenOdd" : "NonZero")));
+    if (pieces.length) {
+      const cs = scope.track(scope.track(CrossSection.union(pieces)).translate(logoBlock.x, logoBlock.y));
+      add(logo.mark.relief, logo.mark.depth, cs);
+      markRegions.push({ kind: "logo", label: logo.mark.name, cs, relief: logo.mark.relief });
+    }
   }
   const placed: PlacedPiece[] = [];
   const ringDepth = o.marks.text[0]?.depth ?? 0.4;
@@ -473,6 +529,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     marks: [
       ...blocks.map((b) => ({ kind: "text" as const, value: b.value, bounds: { minX: b.x + b.shape.bounds.minX, minY: b.y + b.shape.bounds.minY, maxX: b.x + b.shape.bounds.maxX, maxY: b.y + b.shape.bounds.maxY } })),
       ...(qrBlock ? [{ kind: "qr" as const, value: qrBlock.value, bounds: { minX: qrBlock.x, minY: qrBlock.y, maxX: qrBlock.x + qrBlock.shape.sizeWithQuietZone, maxY: qrBlock.y + qrBlock.shape.sizeWithQuietZone } }] : []),
+      ...(logoBlock && logo ? [{ kind: "logo" as const, value: logo.mark.name, bounds: { minX: logoBlock.x, minY: logoBlock.y, maxX: logoBlock.x + logoBlock.w, maxY: logoBlock.y + logoBlock.h } }] : []),
     ],
   };
   if (findings.some((f) => f.severity === "error")) {

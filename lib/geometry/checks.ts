@@ -13,7 +13,7 @@ export type CheckInput = {
   slab: CrossSection;
   slabSize: { width: number; depth: number };
   pieces: { number: number; shadow: CrossSection; name: string; height: number; contactArea: number; partId: string; bounds: Box; ringExt: number }[];
-  marks: { kind: "text" | "qr" | "number"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[];
+  marks: { kind: "text" | "qr" | "number" | "logo"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[];
   texts: { mark: { relief: "engrave" | "emboss"; size: number }; value: string }[];
   qr: { shape: QrShape; x: number; y: number; mark: { module: number } } | null;
   unfilled: string[];
@@ -109,7 +109,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     const keepOut = scope.track(CrossSection.union(c.pieces.map((p) => scope.track(p.shadow.offset(p.ringExt, "Round", 2, 24)))));
     for (const mk of c.marks) {
       if (area(scope.track(mk.cs.intersect(keepOut))) > AREA_EPS) {
-        out.push({ severity: "error", code: "mark_collides", message: `The ${mk.kind === "number" ? mk.label : `text ${mk.label}`} runs under a piece or its outline; move it.` });
+        out.push({ severity: "error", code: "mark_collides", message: `The ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} runs under a piece or its outline; move it.` });
       }
     }
     if (c.qr) {
@@ -138,7 +138,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
       out.push({
         severity: "warning",
         code: "stroke_too_thin",
-        message: `Strokes of the ${mk.kind === "number" ? mk.label : `text ${mk.label}`} are narrower than ${r2(stroke)} mm (${mk.relief === "engrave" ? "1" : "2"} × the nozzle, for ${mk.relief === "engrave" ? "engraved" : "embossed"} marks): ${Math.round(lost * 100)} % of it would not print. Make it larger or bolder.`,
+        message: `Strokes of the ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} are narrower than ${r2(stroke)} mm (${mk.relief === "engrave" ? "1" : "2"} × the nozzle, for ${mk.relief === "engrave" ? "engraved" : "embossed"} marks): ${Math.round(lost * 100)} % of it would not print. Make it larger or bolder.`,
       });
     }
   }

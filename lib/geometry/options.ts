@@ -39,6 +39,8 @@ export const textMarkSchema = z
     /** Engraving depth or embossing height in mm. */
     depth: mm(0.1, 2).default(0.4),
     position: markPositionSchema.default("auto"),
+    /** The longest the line may be once its {placeholders} are filled (a template's room for a name). */
+    maxWidth: mm(5, 2000).optional(),
   })
   .strict();
 export type TextMark = z.infer<typeof textMarkSchema>;
@@ -52,9 +54,28 @@ export const qrMarkSchema = z
     relief: reliefSchema.default("engrave"),
     depth: mm(0.1, 2).default(0.4),
     position: markPositionSchema.default("auto"),
+    /** The largest the code may be, quiet zone included, once its {placeholders} are filled. */
+    maxSize: mm(5, 500).optional(),
   })
   .strict();
 export type QrMark = z.infer<typeof qrMarkSchema>;
+
+/**
+ * A logo: outlines from an SVG drawing (see marks/logo.ts), kept as path data in the drawing's units
+ * (y up) with their bounding box, placed `width` mm wide; the height follows the drawing's proportions.
+ */
+export const logoMarkSchema = z
+  .object({
+    name: z.string().max(120).default("logo"),
+    paths: z.array(z.object({ d: z.string().min(1).max(1_500_000), fillRule: z.enum(["nonzero", "evenodd"]).default("nonzero") }).strict()).min(1).max(500),
+    box: z.object({ minX: z.number().finite(), minY: z.number().finite(), maxX: z.number().finite(), maxY: z.number().finite() }).strict().refine((b) => b.maxX > b.minX && b.maxY > b.minY, "The logo's box has no area."),
+    width: mm(3, 200).default(20),
+    relief: reliefSchema.default("engrave"),
+    depth: mm(0.1, 2).default(0.4),
+    position: markPositionSchema.default("auto"),
+  })
+  .strict();
+export type LogoMark = z.infer<typeof logoMarkSchema>;
 
 export const placementSchema = z
   .object({ piece: z.number().int().min(1), x: z.number().finite(), y: z.number().finite(), rotation: z.number().finite().default(0) })
@@ -86,6 +107,7 @@ export const slabOptionsSchema = z
       .object({
         text: z.array(textMarkSchema).max(6).default([]),
         qr: qrMarkSchema.optional(),
+        logo: logoMarkSchema.optional(),
         numbers: z.boolean().default(true),
         outlines: z
           .union([z.enum(["ring", "pocket", "none"]), z.boolean()])

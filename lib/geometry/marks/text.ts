@@ -56,7 +56,7 @@ export function layoutText(font: opentype.Font, text: string, capHeightMm: numbe
   const contours: Contour[] = [];
   let pen = 0;
   glyphs.forEach((g, i) => {
-    flattenPath(g.path.commands, pen, tol, contours, scale);
+    flattenPath(g.path.commands as PathCommand[], pen, tol, contours, scale);
     pen += g.advanceWidth ?? 0;
     const next = glyphs[i + 1];
     if (next) pen += kern(font, g, next);
@@ -74,9 +74,15 @@ export function layoutText(font: opentype.Font, text: string, capHeightMm: numbe
   return { contours, advance: pen * scale, bounds: { minX, minY, maxX, maxY }, emSize };
 }
 
-type Cmd = opentype.PathCommand;
+/** Outline commands as opentype.js gives them (and the logo reader makes from SVG paths). */
+export type PathCommand =
+  | { type: "M" | "L"; x: number; y: number }
+  | { type: "Q"; x1: number; y1: number; x: number; y: number }
+  | { type: "C"; x1: number; y1: number; x2: number; y2: number; x: number; y: number }
+  | { type: "Z" };
 
-function flattenPath(commands: Cmd[], dx: number, tol: number, out: Contour[], scale: number) {
+/** Flatten outline commands (in their own units, shifted by dx) to polylines within `tol` of those units, scaled to mm. */
+export function flattenPath(commands: PathCommand[], dx: number, tol: number, out: Contour[], scale: number) {
   let cur: Contour = [];
   let x = 0, y = 0, sx = 0, sy = 0;
   const push = (px: number, py: number) => cur.push([(px + dx) * scale, py * scale]);
