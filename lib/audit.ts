@@ -15,7 +15,14 @@ export type AuditAction =
   | "member_removed"
   | "workspace_created"
   | "api_key_created"
-  | "api_key_revoked";
+  | "api_key_revoked"
+  | "template_created"
+  | "template_version_saved"
+  | "template_version_restored"
+  | "template_duplicated"
+  | "template_archived"
+  | "template_unarchived"
+  | "template_renamed";
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 

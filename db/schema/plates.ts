@@ -12,6 +12,9 @@ export const templates = pgTable(
     /** null for the starter templates shipped with the product, shared by every workspace. */
     workspaceId: text("workspace_id").references(() => workspaces.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
+    description: text("description").notNull().default(""),
+    /** Starter templates shipped with the product carry a stable key (null for a workspace's own). */
+    starterKey: text("starter_key").unique(),
     currentVersion: integer("current_version").notNull().default(1),
     archivedAt: timestamp("archived_at", { withTimezone: true }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
@@ -21,7 +24,7 @@ export const templates = pgTable(
   (t) => [index("templates_workspace_updated_idx").on(t.workspaceId, t.updatedAt)],
 );
 
-export type TemplateVariable = { name: string; default: string; sample: string };
+export type TemplateVariable = { name: string; label?: string; default: string; sample: string };
 
 export const templateVersions = pgTable(
   "template_versions",
@@ -35,6 +38,13 @@ export const templateVersions = pgTable(
     options: jsonb("options").$type<Record<string, unknown>>().notNull(),
     variables: jsonb("variables").$type<TemplateVariable[]>().notNull().default(sql`'[]'::jsonb`),
     note: text("note"),
+    /** What changed against the version before, in words ("text line 1: …"). */
+    changes: jsonb("changes").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    /** Top view of the slab with the sample values, drawn by a worker: pending → done | failed. */
+    thumbnailState: text("thumbnail_state").$type<"pending" | "done" | "failed">().notNull().default("pending"),
+    thumbnailSvg: text("thumbnail_svg"),
+    /** What the checks said of the sample build. */
+    findings: jsonb("findings").$type<unknown[]>().notNull().default(sql`'[]'::jsonb`),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },

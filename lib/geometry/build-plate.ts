@@ -39,6 +39,8 @@ export type BuildInput = {
    * change of options re-measures nothing.
    */
   cache?: PartCache;
+  /** Return the marks' outlines in `layout.markOutlines` (for top views). */
+  markOutlines?: boolean;
   /** For benchmarks: sees the slab and its cutters just before the one n-ary difference. */
   hooks?: { beforeBooleans?: (slab: Manifold, cutters: Manifold[]) => void };
 };
@@ -70,6 +72,8 @@ export type PlacedPiece = {
 export type PlateLayout = {
   slab: { shape: SlabShape; width: number; depth: number; outline: Contour[]; thickness: number };
   bed: { width: number; depth: number };
+  /** With `markOutlines` asked for: every mark's outline on the slab (mm, y up). */
+  markOutlines?: Contour[];
   utilisation: number;
   marks: { kind: "text" | "qr" | "logo"; value: string; bounds: { minX: number; minY: number; maxX: number; maxY: number } }[];
 };
@@ -503,6 +507,12 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     });
   }
   placed.sort((a, b) => a.number - b.number);
+  // The marks' outlines seen from above (text, QR, logo, numbers, rings), for top views and sheets.
+  let markOutlines: Contour[] | undefined;
+  if (input.markOutlines) {
+    const all = [...engrave.values(), ...emboss.values()].flat();
+    markOutlines = all.length ? scope.track(CrossSection.union(all)).toPolygons() : [];
+  }
   lap("marks");
 
   // 6. Checks, before the expensive booleans: an error stops the build here.
@@ -525,6 +535,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   const layout: PlateLayout = {
     slab: { shape: o.slab.shape, width: slabW, depth: slabD, outline: slabCs.toPolygons(), thickness: o.slab.thickness },
     bed: o.layout.bed,
+    ...(markOutlines ? { markOutlines } : {}),
     utilisation: work.reduce((s, w) => s + w.fp.shadowArea, 0) / slabCs.area(),
     marks: [
       ...blocks.map((b) => ({ kind: "text" as const, value: b.value, bounds: { minX: b.x + b.shape.bounds.minX, minY: b.y + b.shape.bounds.minY, maxX: b.x + b.shape.bounds.maxX, maxY: b.y + b.shape.bounds.maxY } })),

@@ -1,3 +1,4 @@
+import type { PlacedPiece, PlateLayout } from "./build-plate";
 import type { Kernel } from "./kernel";
 import type { IndexedMesh } from "./mesh";
 import { signedArea } from "./footprint";
@@ -32,4 +33,23 @@ export function topViewSvg(kernel: Kernel, mesh: IndexedMesh, layerHeight = 0.2,
   } finally {
     scope.close();
   }
+}
+
+/**
+ * A top view of a whole slab as SVG, to scale: the slab, its marks (with `markOutlines` from the
+ * build) and each piece's outline, fitted into `width` × `height` pixels, y up.
+ */
+export function slabTopSvg(layout: PlateLayout, pieces: Pick<PlacedPiece, "outline">[], width = 240, height = 180): string {
+  const W = layout.slab.width, D = layout.slab.depth;
+  const pad = 6;
+  const s = Math.min((width - 2 * pad) / W, (height - 2 * pad) / D);
+  const ox = (width - W * s) / 2, oy = (height - D * s) / 2;
+  const path = (polys: [number, number][][]) => polys.map((c) => `M${c.map(([x, y]) => `${(ox + x * s).toFixed(1)} ${(height - oy - y * s).toFixed(1)}`).join("L")}Z`).join("");
+  return (
+    `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="Top view of a ${W.toFixed(0)} × ${D.toFixed(0)} mm slab">` +
+    `<path d="${path(layout.slab.outline)}" fill="#efe8dc" stroke="#c9bfae" stroke-width="1"/>` +
+    (layout.markOutlines?.length ? `<path d="${path(layout.markOutlines)}" fill="#8a7f6c" fill-rule="nonzero"/>` : "") +
+    (pieces.length ? `<path d="${path(pieces.flatMap((p) => p.outline))}" fill="#4a4f57" fill-opacity="0.85" fill-rule="nonzero"/>` : "") +
+    `</svg>`
+  );
 }
