@@ -5,7 +5,9 @@
 import { promises as fs } from "node:fs";
 import path from "node:path";
 import { and, eq } from "drizzle-orm";
-import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, users, workspaces, type Role } from "@/db/schema";
+import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, templates, templateVersions, users, workspaces, type Role } from "@/db/schema";
+import { templateBodySchema } from "@/lib/geometry/template";
+import { demoTemplate, STARTERS } from "@/lib/templates/starters";
 import { generateApiKey, hashApiKey } from "@/lib/auth/api-keys";
 import { hashPassword, verifyPassword } from "@/lib/auth/password";
 import { env } from "@/lib/env";
@@ -147,6 +149,22 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
           { kitId: k!.id, partId: partIds[0]!, quantity: 4, position: 0 },
           { kitId: k!.id, partId: partIds[1]!, quantity: 2, position: 1 },
         ]);
+      }
+
+      // Starter templates (shared by every workspace), then the demo shop's own branded template.
+      for (const st of STARTERS) {
+        const [found] = await tx.select({ id: templates.id }).from(templates).where(eq(templates.starterKey, st.key));
+        if (found) continue;
+        const body = templateBodySchema.parse({ options: st.options, variables: st.variables });
+        const [t] = await tx.insert(templates).values({ workspaceId: null, starterKey: st.key, name: st.name, description: st.description }).returning({ id: templates.id });
+        await tx.insert(templateVersions).values({ templateId: t!.id, version: 1, options: body.options as Record<string, unknown>, variables: body.variables, changes: ["first version"], note: "shipped with Slabwright" });
+      }
+      const demo = demoTemplate();
+      const [demoFound] = await tx.select({ id: templates.id }).from(templates).where(and(eq(templates.workspaceId, ws.id), eq(templates.name, demo.name)));
+      if (!demoFound) {
+        const body = templateBodySchema.parse({ options: demo.options, variables: demo.variables });
+        const [t] = await tx.insert(templates).values({ workspaceId: ws.id, name: demo.name, description: demo.description, createdBy: userIds.designer }).returning({ id: templates.id });
+        await tx.insert(templateVersions).values({ templateId: t!.id, version: 1, options: body.options as Record<string, unknown>, variables: body.variables, changes: ["first version"], createdBy: userIds.designer });
       }
 
       // Keep the saved demo key when this database still knows it; otherwise issue a new one.

@@ -10,8 +10,12 @@ import os from "node:os";
 import pg from "pg";
 import { Piscina } from "piscina";
 import { env } from "@/lib/env";
-import { BUILD_QUEUE, boss, JOB_CHANNEL } from "@/lib/jobs/queue";
+import { eq } from "drizzle-orm";
+import { db } from "@/db";
+import { templateVersions } from "@/db/schema";
+import { BUILD_QUEUE, boss, enqueueThumbnail, JOB_CHANNEL } from "@/lib/jobs/queue";
 import { runPlateJob } from "@/lib/jobs/run-job";
+import { runThumbnailJob } from "@/lib/jobs/run-thumbnail";
 
 const threads = Number(process.env.SLAB_WORKER_THREADS ?? Math.max(1, os.availableParallelism()));
 const pool = new Piscina({ filename: new URL("../lib/jobs/build-thread-entry.mjs", import.meta.url).href, minThreads: threads, maxThreads: threads, idleTimeout: 60_000 });
@@ -31,7 +35,7 @@ await listener.query(`listen ${JOB_CHANNEL}`);
 let stopping = false;
 async function slot() {
   while (!stopping) {
-    const [job] = await queue.fetch<{ plateId: string }>(BUILD_QUEUE, { batchSize: 1 }).catch((err: unknown) => {
+    const [job] = await queue.fetch<{ plateId?: string; templateVersionId?: string }>(BUILD_QUEUE, { batchSize: 1 }).catch((err: unknown) => {
       console.error("[worker] fetch failed", err);
       return [];
     });
@@ -43,7 +47,8 @@ async function slot() {
       continue;
     }
     try {
-      await runPlateJob(pool, job.data.plateId, job.id);
+      if (job.data.templateVersionId) await runThumbnailJob(pool, job.data.templateVersionId);
+      else await runPlateJob(pool, job.data.plateId!, job.id);
       await queue.complete(BUILD_QUEUE, job.id);
     } catch (err) {
       console.error(`[worker] job ${job.id} failed`, err);
@@ -55,6 +60,11 @@ async function slot() {
 // already builds the next (piscina queues it), so a thread never idles on the database or the disk.
 const perThread = Math.max(1, Number(process.env.SLAB_JOBS_PER_THREAD ?? 2));
 const slots = Array.from({ length: threads * perThread }, () => slot());
+// Template top views still to draw (seeded starters, or a queue that was down when one was saved).
+void (async () => {
+  const pending = await db().select({ id: templateVersions.id }).from(templateVersions).where(eq(templateVersions.thumbnailState, "pending"));
+  for (const v of pending) await enqueueThumbnail(v.id).catch((err: unknown) => console.error("[worker] thumbnail not queued", err));
+})();
 console.log(`worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}`);
 
 async function stop() {

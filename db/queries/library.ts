@@ -1,7 +1,7 @@
 import "server-only";
-import { and, asc, desc, eq, isNull, max, or, sql } from "drizzle-orm";
+import { and, asc, desc, eq, isNull, max, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, plates, templates, users } from "@/db/schema";
+import { kitParts, kits, plates, users } from "@/db/schema";
 import type { Caller } from "@/lib/auth/guards";
 
 // Every read is scoped to the caller's active workspace; there is no query here without that filter.
@@ -32,14 +32,6 @@ export async function listKits(caller: Caller) {
     .leftJoin(lastPlates, eq(lastPlates.kitId, kits.id))
     .where(and(eq(kits.workspaceId, caller.workspace.id), isNull(kits.archivedAt)))
     .orderBy(asc(kits.name));
-}
-
-export async function listTemplates(caller: Caller) {
-  return db()
-    .select({ id: templates.id, name: templates.name, version: templates.currentVersion, starter: sql<boolean>`${templates.workspaceId} is null`, updatedAt: templates.updatedAt })
-    .from(templates)
-    .where(and(or(eq(templates.workspaceId, caller.workspace.id), isNull(templates.workspaceId)), isNull(templates.archivedAt)))
-    .orderBy(asc(templates.name));
 }
 
 export async function listPlates(caller: Caller, filter: { kitId?: string; limit?: number } = {}) {

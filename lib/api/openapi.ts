@@ -1,4 +1,5 @@
 import { z } from "zod";
+import { templateVariableSchema } from "@/lib/geometry/template";
 import { apiKeyScopes } from "@/db/schema/workspaces";
 import { slabOptionsSchema } from "@/lib/geometry/options";
 import { APP_VERSION } from "@/lib/version";
@@ -40,7 +41,23 @@ const plateForm = z.object({
   variables: z.string().optional().describe(`JSON object filling {name} placeholders. Schema: ${JSON.stringify(z.toJSONSchema(variablesSchema))}`),
   format: formatSchema.optional(),
   callbackUrl: z.string().optional().describe("http(s) URL called with a signed plate.done / plate.failed event."),
-  template: z.string().optional().describe("A template id; options override it."),
+  template: z.string().optional().describe("A template id (see GET /api/v1/templates); options override its options, variables fill its {placeholders} (a variable the template lacks is a 422 unknown_variable, one without a value or default a 422 missing_variable)."),
+  templateVersion: z.string().optional().describe("A version number of the template, to make a plate with an earlier version; the newest by default."),
+});
+
+export const templateListSchema = z.object({
+  templates: z.array(
+    z.object({
+      id: z.string(),
+      name: z.string(),
+      description: z.string(),
+      starter: z.boolean().describe("Shipped with Slabwright (shared by every workspace; duplicate it to change it)."),
+      version: z.number().int(),
+      variables: z.array(templateVariableSchema),
+      placeholders: z.array(z.string()).describe("Every {placeholder} the template's text and QR use, built-ins ({date}, {kit}) included."),
+      updatedAt: z.string(),
+    }),
+  ),
 });
 
 function schema(s: z.ZodType, io: "input" | "output" = "output") {
@@ -65,7 +82,7 @@ export function openApiDocument() {
     security: [{ apiKey: [] }],
     components: {
       securitySchemes: { apiKey: { type: "http", scheme: "bearer", description: `An API key from Settings → API keys. Scopes: ${apiKeyScopes.join(", ")}.` } },
-      schemas: { SlabOptions: schema(slabOptionsSchema, "input"), Error: schema(errorSchema), Job: schema(jobSchema), Finding: schema(findingSchema), Plate: schema(plateSchema), KitList: schema(kitListSchema) },
+      schemas: { SlabOptions: schema(slabOptionsSchema, "input"), Error: schema(errorSchema), Job: schema(jobSchema), Finding: schema(findingSchema), Plate: schema(plateSchema), KitList: schema(kitListSchema), TemplateList: schema(templateListSchema) },
     },
     paths: {
       "/api/v1/plates": {
@@ -102,6 +119,9 @@ export function openApiDocument() {
           parameters: [idParam("id"), { name: "format", in: "query", required: false, schema: { type: "string", enum: ["stl", "3mf"] } }],
           responses: { "200": { description: "The file", content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } } } }, ...errors(400, 401, 403, 404, 409, 429) },
         },
+      },
+      "/api/v1/templates": {
+        get: { operationId: "listTemplates", summary: "The workspace's templates and the starters (scope templates:read)", responses: { "200": { description: "Templates", content: { "application/json": { schema: ref("TemplateList") } } }, ...errors(401, 403, 429) } },
       },
       "/api/v1/kits": {
         get: { operationId: "listKits", summary: "The workspace's kits (scope kits:read)", responses: { "200": { description: "Kits", content: { "application/json": { schema: ref("KitList") } } }, ...errors(401, 403, 429) } },

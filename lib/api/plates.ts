@@ -9,7 +9,9 @@ import type { ApiCaller } from "@/lib/auth/api-guard";
 import { ApiProblem } from "@/lib/api/respond";
 import { notFound } from "@/lib/auth/errors";
 import { sniffFormat } from "@/lib/geometry/import";
-import { slabOptionsSchema } from "@/lib/geometry/options";
+import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
+import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
+import { versionForPlate } from "@/lib/templates/service";
 import { env } from "@/lib/env";
 import { enqueueBuild, PLATE_CHANNEL } from "@/lib/jobs/queue";
 import { callbackProblem } from "@/lib/jobs/webhook";
@@ -34,7 +36,11 @@ function json<T>(raw: FormDataEntryValue | null, schema: z.ZodType<T>, field: st
 export type PlateRequest = {
   input: PlateInput;
   options: z.output<typeof slabOptionsSchema>;
+  /** The options as sent (for the Idempotency-Key's request hash). */
   rawOptions: unknown;
+  /** What the plate is built with: a template version's options with the sent ones over them. */
+  storedOptions: SlabOptionsInput;
+  template?: { id: string; version?: number; versionId: string };
   variables: Record<string, string>;
   format: z.infer<typeof formatSchema>;
   callbackUrl?: string;
@@ -49,9 +55,17 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
   if (files.length && kitId) throw new ApiProblem(400, "bad_request", "Send either part files or a kit, not both.");
   if (!files.length && !kitId) throw new ApiProblem(400, "bad_request", "Send one or more `part` files, or a `kit` id.");
   const rawOptions = json(form.get("options"), z.record(z.string(), z.unknown()), "options") ?? {};
-  const parsedOptions = slabOptionsSchema.safeParse(rawOptions);
-  if (!parsedOptions.success) throw new ApiProblem(422, "invalid_options", "options do not match the slab builder's options.", parsedOptions.error.issues);
-  const variables = json(form.get("variables"), variablesSchema, "variables") ?? {};
+  const templateRef = form.get("template");
+  const versionRaw = form.get("templateVersion");
+  if (templateRef !== null && typeof templateRef !== "string") throw new ApiProblem(400, "bad_request", "template must be a template id.");
+  const templateVersion = versionRaw === null || versionRaw === "" ? undefined : Number(versionRaw);
+  if (templateVersion !== undefined && !(Number.isInteger(templateVersion) && templateVersion >= 1)) throw new ApiProblem(400, "bad_request", "templateVersion must be a version number (1, 2, …).");
+  if (templateVersion !== undefined && !templateRef) throw new ApiProblem(400, "bad_request", "templateVersion needs a template.");
+  const version = templateRef ? await versionForPlate(caller.workspaceId, templateRef, templateVersion) : null;
+  const storedOptions = version ? mergeOptions(version.options as SlabOptionsInput, rawOptions as SlabOptionsInput) : (rawOptions as SlabOptionsInput);
+  const parsedOptions = slabOptionsSchema.safeParse(storedOptions);
+  if (!parsedOptions.success) throw new ApiProblem(422, "invalid_options", version ? "options over the template do not match the slab builder's options." : "options do not match the slab builder's options.", parsedOptions.error.issues);
+  const givenVariables = json(form.get("variables"), variablesSchema, "variables") ?? {};
   const fmt = formatSchema.safeParse((form.get("format") as string | null) ?? queryFormat ?? "3mf");
   if (!fmt.success) throw new ApiProblem(400, "bad_request", "format must be stl, 3mf or json.");
   const callbackUrl = (form.get("callbackUrl") as string | null) || undefined;
@@ -59,7 +73,6 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
     const problem = await callbackProblem(callbackUrl);
     if (problem) throw new ApiProblem(422, "invalid_callback", problem);
   }
-  if (form.get("template")) throw new ApiProblem(404, "not_found", "No such template.");
 
   const input: PlateInput = { parts: [] };
   let title = "Slabwright plate";
@@ -96,11 +109,37 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
       input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: put.key, quantity: quantity?.[i] ?? 1 });
     }
   }
-  return { input, options: parsedOptions.data, rawOptions, variables, format: fmt.data, callbackUrl, title, kitId: input.kitId };
+  // The plate keeps every value it is made with, {date} included, so it can be made again exactly.
+  const today = new Date().toISOString().slice(0, 10);
+  let variables: Record<string, string>;
+  if (version) {
+    try {
+      variables = resolveValues(version.variables as TemplateVariableDef[], givenVariables, { date: today, kit: kitId ? title : undefined });
+    } catch (err) {
+      if (err instanceof TemplateValueError) throw new ApiProblem(422, err.code, err.message, { variables: err.names });
+      throw err;
+    }
+    input.templateId = version.templateId;
+  } else {
+    variables = { date: today, ...(kitId ? { kit: title } : {}), ...givenVariables };
+  }
+  return {
+    input,
+    options: parsedOptions.data,
+    rawOptions: { options: rawOptions, template: templateRef ?? null, templateVersion: templateVersion ?? null, variables: givenVariables },
+    storedOptions,
+    template: version ? { id: version.templateId, version: version.version, versionId: version.id } : undefined,
+    variables,
+    format: fmt.data,
+    callbackUrl,
+    title,
+    kitId: input.kitId,
+  };
 }
 
 function requestHash(r: PlateRequest): string {
-  return createHash("sha256").update(JSON.stringify({ input: r.input, options: r.rawOptions, variables: r.variables, callbackUrl: r.callbackUrl ?? null })).digest("hex");
+  // The request as sent ({date} is left out: a retry the next morning is still the same request).
+  return createHash("sha256").update(JSON.stringify({ input: r.input, request: r.rawOptions, callbackUrl: r.callbackUrl ?? null })).digest("hex");
 }
 
 /**
@@ -114,7 +153,7 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
   const plate = await db().transaction(async (tx) => {
     const [row] = await tx
       .insert(plates)
-      .values({ workspaceId: caller.workspaceId, kitId: r.kitId ?? null, source: "api", status: "building", options: r.rawOptions as Record<string, unknown>, variables: r.variables, input: r.input, callbackUrl: r.callbackUrl ?? null, title: r.title, pieceCount: r.input.parts.reduce((s, p) => s + p.quantity, 0) * r.options.layout.copies })
+      .values({ workspaceId: caller.workspaceId, kitId: r.kitId ?? null, source: "api", status: "building", options: r.storedOptions as Record<string, unknown>, variables: r.variables, templateVersionId: r.template?.versionId ?? null, input: r.input, callbackUrl: r.callbackUrl ?? null, title: r.title, pieceCount: r.input.parts.reduce((s, p) => s + p.quantity, 0) * r.options.layout.copies })
       .returning();
     if (idempotencyKey) {
       const ins = await tx.insert(idempotencyKeys).values({ workspaceId: caller.workspaceId, key: idempotencyKey, requestHash: hash, plateId: row!.id }).onConflictDoNothing().returning();

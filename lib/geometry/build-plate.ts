@@ -301,7 +301,6 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     w.x = p.x;
     w.y = p.y;
   }
-  let arrangement = { packed: [] as Packed[], width: 0, height: 0 };
   if (auto.length) {
     // Hand-placed pieces keep their places; the rest are packed to their right.
     const manualMaxX = manual.length ? Math.max(...manual.map((w) => pieceBounds(w).maxX)) - m + spacing : 0;
@@ -326,7 +325,6 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
       lap("layout");
       return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
     }
-    arrangement = found;
     const baseY = m + (bottom.h ? bottom.h + spacing : 0);
     // With no piece placed by hand, a block of pieces narrower than the text and QR bands is centred
     // over them: the slab looks balanced and a disc round it comes out smaller.
@@ -614,7 +612,12 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   if (formats.includes("3mf")) {
     threeMf = write3mf(
       bodies.map((b) => ({ name: b.name, mesh: b.mesh, partNumber: b.piece ? String(b.piece) : "slab" })),
-      { title: input.title ?? "Slabwright plate", description: `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap` },
+      {
+        title: input.title ?? "Slabwright plate",
+        description: `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap`,
+        // The plate's own day ({date}), so the same inputs give the same bytes on any later day.
+        ...(/^\d{4}-\d{2}-\d{2}$/.test(vars.date ?? "") ? { creationDate: new Date(`${vars.date}T00:00:00Z`) } : {}),
+      },
       input.deflateRaw,
     );
     lap("3mf");

@@ -1,4 +1,4 @@
-import type { CrossSection, Manifold } from "manifold-3d";
+import type { CrossSection } from "manifold-3d";
 import type { Kernel, Scope } from "./kernel";
 import type { QrShape } from "./marks/qr";
 import { MATERIALS, type SlabOptions } from "./options";

@@ -7,6 +7,7 @@ import { readFileSync } from "node:fs";
 import path from "node:path";
 import { deflateRawSync } from "node:zlib";
 import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
+import { hexTile } from "@/lib/geometry/demo-shapes";
 import { MeshImportError } from "@/lib/geometry/errors";
 import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId } from "@/lib/geometry/fonts";
 import { importMesh } from "@/lib/geometry/import";
@@ -23,6 +24,8 @@ export type BuildTask = {
   options: SlabOptionsInput;
   variables: Record<string, string>;
   title: string;
+  /** A template's top view: stand-in pieces instead of `parts`, the marks' outlines, no files. */
+  sample?: boolean;
 };
 
 export type BuildOutcome =
@@ -49,6 +52,13 @@ function loadFonts() {
 }
 
 
+/** Stand-in pieces for a template's top view: four of the demo hex tiles (our own invented shape). */
+let sample: IndexedMesh | undefined;
+function samplePieces() {
+  sample ??= orientMesh(hexTile());
+  return [{ id: "sample", name: "Sample piece", mesh: sample, quantity: 4 }];
+}
+
 function retire() {
   // Let piscina deliver this answer first, then end the thread; piscina starts a fresh one.
   setTimeout(() => process.exit(0), 50);
@@ -59,6 +69,10 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
   fonts ??= loadFonts();
   const k = await kernel;
   try {
+    if (task.sample) {
+      const { bodies: _b, ...result } = buildPlate(k, { parts: samplePieces(), options: task.options, fonts, variables: task.variables, formats: [], cache: partCache, markOutlines: true });
+      return { ok: true, result };
+    }
     const parts = [];
     for (const [i, p] of task.parts.entries()) {
       const cacheKey = `${p.blobKey}|${p.unit ?? ""}|${p.layFlat ? 1 : 0}|${p.turned ? 1 : 0}|${p.rotation ?? 0}`;

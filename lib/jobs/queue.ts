@@ -37,3 +37,11 @@ export async function enqueueBuild(plateId: string): Promise<string> {
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;
 }
+
+/** A template version's top view is drawn by a worker too (the app never runs the kernel). */
+export async function enqueueThumbnail(templateVersionId: string): Promise<string> {
+  const id = await (await boss()).send(BUILD_QUEUE, { templateVersionId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
+  if (!id) throw new Error("the queue did not accept the thumbnail");
+  await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
+  return id;
+}

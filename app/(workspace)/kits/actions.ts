@@ -31,7 +31,7 @@ export const archiveKitAction = guardedAction(idSchema, "kits:write", "archiving
   return { ok: true, data: undefined, message: "Kit archived." };
 });
 
-const makePlateSchema = z.object({ kitId: z.string().min(1), options: z.record(z.string(), z.unknown()), variables: z.record(z.string(), z.string()) });
+const makePlateSchema = z.object({ kitId: z.string().min(1), options: z.record(z.string(), z.unknown()), variables: z.record(z.string(), z.string()), templateId: z.string().optional(), templateVersion: z.number().int().min(1).optional() });
 
 /** "Make the plate" in the slab editor: the same queue and worker as the API. */
 export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "making plates", async (input, caller) => {
@@ -39,6 +39,8 @@ export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "ma
   form.set("kit", input.kitId);
   form.set("options", JSON.stringify(input.options));
   form.set("variables", JSON.stringify(input.variables));
+  if (input.templateId) form.set("template", input.templateId);
+  if (input.templateVersion) form.set("templateVersion", String(input.templateVersion));
   try {
     const request = await readPlateRequest({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, form, null, maxUploadBytes());
     const { plate } = await createPlate({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, { ...request, title: request.title }, null);

@@ -1,9 +1,11 @@
 "use client";
 
-import { useId } from "react";
+import { useId, useState } from "react";
 import { get, useFieldArray, type FieldErrors, type Path, type Resolver, type UseFormReturn } from "react-hook-form";
 import { ENGRAVING_FONTS } from "@/lib/geometry/fonts";
-import { DEFAULT_OPTIONS, MATERIALS, slabOptionsSchema, type MarkPosition, type SlabOptionsInput } from "@/lib/geometry/options";
+import { importSvgLogo, LogoError } from "@/lib/geometry/marks/logo";
+import { DEFAULT_OPTIONS, MATERIALS, slabOptionsSchema, type LogoMark, type MarkPosition, type SlabOptionsInput } from "@/lib/geometry/options";
+import { BUILT_IN_VARIABLES, usedPlaceholders } from "@/lib/geometry/template";
 
 /**
  * The slab editor's options form: react-hook-form over values shaped for people (a bed picked by
@@ -15,8 +17,10 @@ export const BEDS = [[180, 180], [220, 220], [235, 235], [250, 210], [256, 256],
 type Where = "auto" | "top" | "bottom" | "at";
 type FontId = keyof typeof ENGRAVING_FONTS;
 type Relief = "engrave" | "emboss";
-export type LineForm = { value: string; size: number; font: FontId; relief: Relief; depth: number; where: Where; x: number; y: number };
-export type QrForm = { value: string; module: number; level: "L" | "M" | "Q" | "H"; relief: Relief; depth: number; where: Where; x: number; y: number };
+/** `maxWidth` and `maxSize` are NaN when not set (an empty number field). */
+export type LineForm = { value: string; size: number; font: FontId; relief: Relief; depth: number; where: Where; x: number; y: number; maxWidth: number };
+export type QrForm = { value: string; module: number; level: "L" | "M" | "Q" | "H"; relief: Relief; depth: number; where: Where; x: number; y: number; maxSize: number };
+export type LogoForm = { name: string; paths: LogoMark["paths"]; box: LogoMark["box"]; width: number; relief: Relief; depth: number; where: Where; x: number; y: number };
 export type FormValues = {
   slab: { shape: "rounded-rect" | "disc" | "contour"; thickness: number; gap: number; cornerRadius: number; margin: number };
   bed: string;
@@ -30,16 +34,17 @@ export type FormValues = {
   pricePerKg: number;
   text: LineForm[];
   qr: QrForm;
+  logo: LogoForm | null;
   numbers: boolean;
   outlines: "ring" | "pocket" | "none";
-  /** Sample values for the {placeholders}, shown in the preview. */
-  samples: { order: string; customer: string };
+  /** Values for the {placeholders}, shown in the preview and used for the plate. */
+  samples: Record<string, string>;
 };
 
 type Placement = { piece: number; x: number; y: number; rotation: number };
 
 const D = DEFAULT_OPTIONS;
-const line = (value: string, size: number): LineForm => ({ value, size, font: "sans-bold", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0 });
+const line = (value: string, size: number): LineForm => ({ value, size, font: "sans-bold", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0, maxWidth: NaN });
 export const DEFAULT_VALUES: FormValues = {
   slab: { ...D.slab },
   bed: "220x220",
@@ -52,13 +57,20 @@ export const DEFAULT_VALUES: FormValues = {
   layerHeight: D.layerHeight,
   pricePerKg: D.pricePerKg,
   text: [line("ORDER {order}", 5), line("Thank you, {customer}!", 4)],
-  qr: { value: "", module: 1.2, level: "M", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0 },
+  qr: { value: "", module: 1.2, level: "M", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0, maxSize: NaN },
+  logo: null,
   numbers: true,
   outlines: "ring",
   samples: { order: "10482", customer: "Sam" },
 };
 
 const position = (where: Where, x: number, y: number): MarkPosition => (where === "at" ? { x, y } : where);
+const optional = <K extends string>(k: K, v: number) => (Number.isFinite(v) ? ({ [k]: v } as Record<K, number>) : {});
+
+/** Placeholders used in the text and QR values that the person fills ({date} and {kit} fill themselves). */
+export function valuePlaceholders(f: Pick<FormValues, "text" | "qr">): string[] {
+  return usedPlaceholders({ marks: { text: f.text.filter((t) => t.value.trim()).map((t) => ({ value: t.value })), ...(f.qr.value.trim() ? { qr: { value: f.qr.value } } : {}) } }).filter((n) => !(BUILT_IN_VARIABLES as readonly string[]).includes(n));
+}
 
 export function formToOptions(f: FormValues, placements?: Placement[]): SlabOptionsInput {
   const [w, d] = f.bed === "custom" ? [f.bedWidth, f.bedDepth] : f.bed.split("x").map(Number);
@@ -67,8 +79,9 @@ export function formToOptions(f: FormValues, placements?: Placement[]): SlabOpti
     layout: { spacing: f.spacing, bed: { width: w!, depth: d! }, copies: f.copies, ...(placements ? { placements } : {}) },
     marks: {
       // An emptied line is left out rather than refused, so a line can be retyped without an error.
-      text: f.text.filter((t) => t.value.trim()).map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, position: position(t.where, t.x, t.y) })),
-      ...(f.qr.value.trim() ? { qr: { value: f.qr.value, module: f.qr.module, level: f.qr.level, relief: f.qr.relief, depth: f.qr.depth, position: position(f.qr.where, f.qr.x, f.qr.y) } } : {}),
+      text: f.text.filter((t) => t.value.trim()).map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, position: position(t.where, t.x, t.y), ...optional("maxWidth", t.maxWidth) })),
+      ...(f.qr.value.trim() ? { qr: { value: f.qr.value, module: f.qr.module, level: f.qr.level, relief: f.qr.relief, depth: f.qr.depth, position: position(f.qr.where, f.qr.x, f.qr.y), ...optional("maxSize", f.qr.maxSize) } } : {}),
+      ...(f.logo ? { logo: { name: f.logo.name, paths: f.logo.paths, box: f.logo.box, width: f.logo.width, relief: f.logo.relief, depth: f.logo.depth, position: position(f.logo.where, f.logo.x, f.logo.y) } } : {}),
       numbers: f.numbers,
       outlines: f.outlines,
     },
@@ -80,7 +93,7 @@ export function formToOptions(f: FormValues, placements?: Placement[]): SlabOpti
 }
 
 /** The other way: canonical options (a template's, say) as form values. */
-export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samples"] = DEFAULT_VALUES.samples): FormValues {
+export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samples"] = {}): FormValues {
   const o = slabOptionsSchema.parse(input);
   const preset = BEDS.find(([w, d]) => w === o.layout.bed.width && d === o.layout.bed.depth);
   const where = (p: MarkPosition) => (typeof p === "object" ? { where: "at" as const, x: p.x, y: p.y } : { where: p, x: 0, y: 0 });
@@ -95,8 +108,9 @@ export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samp
     nozzle: o.nozzle,
     layerHeight: o.layerHeight,
     pricePerKg: o.pricePerKg,
-    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, ...where(t.position) })),
-    qr: o.marks.qr ? { value: o.marks.qr.value, module: o.marks.qr.module, level: o.marks.qr.level, relief: o.marks.qr.relief, depth: o.marks.qr.depth, ...where(o.marks.qr.position) } : DEFAULT_VALUES.qr,
+    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, ...where(t.position), maxWidth: t.maxWidth ?? NaN })),
+    qr: o.marks.qr ? { value: o.marks.qr.value, module: o.marks.qr.module, level: o.marks.qr.level, relief: o.marks.qr.relief, depth: o.marks.qr.depth, ...where(o.marks.qr.position), maxSize: o.marks.qr.maxSize ?? NaN } : DEFAULT_VALUES.qr,
+    logo: o.marks.logo ? { name: o.marks.logo.name, paths: o.marks.logo.paths, box: o.marks.logo.box, width: o.marks.logo.width, relief: o.marks.logo.relief, depth: o.marks.logo.depth, ...where(o.marks.logo.position) } : null,
     numbers: o.marks.numbers,
     outlines: o.marks.outlines,
     samples,
@@ -114,6 +128,7 @@ export function formPath(optionPath: (string | number | symbol)[]): string {
     return `text.${p[2]}.${f}`;
   }
   if (p[0] === "marks" && p[1] === "qr") return p[2] === "position" ? `qr.${p[3] ?? "x"}` : `qr.${p[2]}`;
+  if (p[0] === "marks" && p[1] === "logo") return p[2] === "position" ? `logo.${p[3] ?? "x"}` : `logo.${p[2] ?? "width"}`;
   if (p[0] === "marks") return p[1]!;
   return p.join(".");
 }
@@ -190,6 +205,61 @@ function Text({ form, name, label, placeholder, aria }: { form: UseFormReturn<Fo
   );
 }
 
+function LogoFields({ form }: { form: UseFormReturn<FormValues> }) {
+  const logo = form.watch("logo");
+  const id = useId();
+  const [problem, setProblem] = useState<string | null>(null);
+  return (
+    <fieldset className="space-y-2">
+      <legend className="font-bold">Logo</legend>
+      <div className="text-xs text-muted">
+        <label htmlFor={`${id}-file`}>{logo ? `“${logo.name}” — replace with another SVG` : "SVG drawing (outlines only)"}</label>
+        <input
+          id={`${id}-file`}
+          type="file"
+          accept=".svg,image/svg+xml"
+          className="mt-0.5 block w-full text-xs"
+          aria-describedby={problem ? `${id}-e` : undefined}
+          onChange={async (e) => {
+            const file = e.target.files?.[0];
+            e.target.value = "";
+            if (!file) return;
+            try {
+              const parsed = importSvgLogo(new Uint8Array(await file.arrayBuffer()));
+              setProblem(null);
+              form.setValue("logo", { name: file.name.replace(/\.svg$/i, ""), paths: parsed.paths, box: parsed.box, width: logo?.width ?? 20, relief: logo?.relief ?? "engrave", depth: logo?.depth ?? 0.4, where: logo?.where ?? "auto", x: 0, y: 0 }, { shouldDirty: true, shouldValidate: true });
+            } catch (err) {
+              setProblem(err instanceof LogoError ? err.message : "The file could not be read as SVG.");
+            }
+          }}
+        />
+        {problem ? (
+          <span id={`${id}-e`} role="alert" className="mt-0.5 block text-finding-error" data-testid="logo-error">
+            {problem}
+          </span>
+        ) : null}
+      </div>
+      {logo ? (
+        <div className="grid grid-cols-2 gap-2">
+          <Num form={form} name="logo.width" label="Logo width" unit="mm" step={1} />
+          <Pick form={form} name="logo.relief" label="Relief" options={RELIEF} />
+          <Num form={form} name="logo.depth" label={logo.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
+          <Pick form={form} name="logo.where" label="Place" options={WHERE} />
+          {logo.where === "at" ? (
+            <>
+              <Num form={form} name="logo.x" label="x" unit="mm" step={0.5} />
+              <Num form={form} name="logo.y" label="y" unit="mm" step={0.5} />
+            </>
+          ) : null}
+          <button type="button" className="btn-quiet col-span-2 px-2 py-1 text-xs" onClick={() => form.setValue("logo", null, { shouldDirty: true })}>
+            Remove the logo
+          </button>
+        </div>
+      ) : null}
+    </fieldset>
+  );
+}
+
 const WHERE: [Where, string][] = [["auto", "auto"], ["top", "above"], ["bottom", "below"], ["at", "at x / y"]];
 const RELIEF: [Relief, string][] = [["engrave", "engraved"], ["emboss", "embossed"]];
 const FACES = Object.entries(ENGRAVING_FONTS).map(([id, f]) => [id, f.label] as [string, string]);
@@ -246,6 +316,7 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
               <Pick form={form} name={`text.${i}.relief`} label="Relief" options={RELIEF} />
               <Num form={form} name={`text.${i}.depth`} label={v.text[i]?.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
               <Pick form={form} name={`text.${i}.where`} label="Place" options={WHERE} />
+              <Num form={form} name={`text.${i}.maxWidth`} label="Longest (empty: any)" unit="mm" step={1} />
             </div>
             {v.text[i]?.where === "at" ? (
               <div className="grid grid-cols-2 gap-2">
@@ -271,6 +342,7 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
             <Pick form={form} name="qr.relief" label="Relief" options={RELIEF} />
             <Num form={form} name="qr.depth" label={v.qr.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
             <Pick form={form} name="qr.where" label="Place" options={WHERE} />
+            <Num form={form} name="qr.maxSize" label="Largest (empty: any)" unit="mm" step={1} />
             {v.qr.where === "at" ? (
               <>
                 <Num form={form} name="qr.x" label="x" unit="mm" step={0.5} />
@@ -280,6 +352,7 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
           </div>
         ) : null}
       </fieldset>
+      <LogoFields form={form} />
       <fieldset className="space-y-2">
         <legend className="font-bold">Piece marks</legend>
         <div className="grid grid-cols-2 items-end gap-2">
@@ -290,11 +363,13 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
         </div>
       </fieldset>
       <fieldset className="space-y-2">
-        <legend className="font-bold">Sample values</legend>
-        <p className="text-xs text-muted">What the preview fills into {"{order}"} and {"{customer}"}; {"{date}"} is today and {"{kit}"} the kit&apos;s name.</p>
+        <legend className="font-bold">Values</legend>
+        <p className="text-xs text-muted">What fills the {"{placeholders}"} in the preview and on the plate; {"{date}"} is today and {"{kit}"} the kit&apos;s name.</p>
+        {valuePlaceholders(v).length === 0 ? <p className="text-xs text-muted">No placeholders in the text or the QR code.</p> : null}
         <div className="grid grid-cols-2 gap-2">
-          <Text form={form} name="samples.order" label="{order}" />
-          <Text form={form} name="samples.customer" label="{customer}" />
+          {valuePlaceholders(v).map((n) => (
+            <Text key={n} form={form} name={`samples.${n}` as Path<FormValues>} label={`{${n}}`} />
+          ))}
         </div>
       </fieldset>
     </>

@@ -9,7 +9,10 @@ import { useRouter } from "next/navigation";
 import { useForm, useWatch } from "react-hook-form";
 import { useToast } from "@/app/_components/toasts";
 import { MATERIALS, slabOptionsSchema } from "@/lib/geometry/options";
-import { DEFAULT_VALUES, formToOptions, OptionsFields, slabResolver, type FormValues } from "./options-form";
+import type { SlabOptionsInput } from "@/lib/geometry/options";
+import type { TemplateVariableDef } from "@/lib/geometry/template";
+import { DEFAULT_VALUES, formToOptions, OptionsFields, optionsToForm, slabResolver, valuePlaceholders, type FormValues } from "./options-form";
+import { SaveTemplate } from "./save-template";
 import { makePlateAction } from "../../../actions";
 import { PlateMap } from "./plate-map";
 import type { Body, DisplayPart, EditorPart, FromWorker } from "./protocol";
@@ -19,7 +22,9 @@ const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: f
 const icon = { error: "✕", warning: "⚠", info: "ℹ" } as const;
 const tone = { error: "text-finding-error", warning: "text-finding-warning", info: "text-finding-info" } as const;
 
-export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean }) {
+export type EditorTemplate = { id: string; name: string; version: number; starter: boolean; options: SlabOptionsInput; variables: TemplateVariableDef[] };
+
+export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, templates, initialTemplateId }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean; canSaveTemplates: boolean; templates: EditorTemplate[]; initialTemplateId?: string }) {
   const toast = useToast();
   const router = useRouter();
   const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
@@ -71,7 +76,24 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
 
   const options = useMemo(() => formToOptions(values, placements), [values, placements]);
   const check = useMemo(() => slabOptionsSchema.safeParse(options), [options]);
-  const variables = useMemo(() => ({ order: values.samples.order, customer: values.samples.customer, kit: kitName }), [values.samples.order, values.samples.customer, kitName]);
+  const [applied, setApplied] = useState<EditorTemplate | null>(() => templates.find((t) => t.id === initialTemplateId) ?? null);
+  const wanted = useMemo(() => (applied ? applied.variables.map((v) => v.name) : valuePlaceholders(values)), [applied, values]);
+  const samplesKey = JSON.stringify(wanted.map((n) => values.samples?.[n] ?? ""));
+  // The values sent with a build: the template's variables (or the placeholders in use) and {kit}.
+  const variables = useMemo(() => ({ kit: kitName, ...Object.fromEntries(wanted.map((n) => [n, values.samples?.[n] ?? ""])) }), [wanted, samplesKey, kitName]);
+  const applyTemplate = useCallback(
+    (t: EditorTemplate | null) => {
+      setApplied(t);
+      if (!t) return;
+      form.reset(optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default]))));
+      setPlacementsNow(undefined);
+    },
+    [form],
+  );
+  useEffect(() => {
+    if (applied) applyTemplate(applied);
+    // Apply the template named in the address once, on opening.
+  }, []);
 
   useEffect(() => {
     const w = new Worker(new URL("./slab.worker.ts", import.meta.url), { type: "module" });
@@ -112,7 +134,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
 
   async function make() {
     setMaking({ progress: 0, status: "queued" });
-    const r = await makePlateAction({ kitId, options, variables });
+    const r = await makePlateAction({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) });
     if (!r.ok) {
       toast("problem", `The plate was not made: ${r.message}`);
       return setMaking({ progress: 0, status: "failed", message: r.message });
@@ -142,9 +164,35 @@ export function SlabEditor({ kitId, kitName, parts, canMake }: { kitId: string; 
 
   return (
     <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
-      <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
-        <OptionsFields form={form} />
-      </form>
+      <div className="space-y-3">
+        <section className="card space-y-2 p-3 text-sm" aria-label="Template">
+          <label className="block text-xs text-muted">
+            Template
+            <select
+              className="field-input mt-0.5 py-1 text-sm"
+              aria-label="Apply a template"
+              value={applied?.id ?? ""}
+              onChange={(e) => {
+                const t = templates.find((x) => x.id === e.target.value) ?? null;
+                applyTemplate(t);
+                if (t) toast("note", `“${t.name}” (version ${t.version}) applied: its options are in the form, its sample values below.`);
+              }}
+            >
+              <option value="">none — options of my own</option>
+              {templates.map((t) => (
+                <option key={t.id} value={t.id}>
+                  {t.name} · v{t.version}
+                  {t.starter ? " · starter" : ""}
+                </option>
+              ))}
+            </select>
+          </label>
+          {canSaveTemplates ? <SaveTemplate values={values} applied={applied} onSaved={(t) => setApplied(t)} /> : null}
+        </section>
+        <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
+          <OptionsFields form={form} />
+        </form>
+      </div>
 
       <div className="space-y-3">
         <div className="card relative h-[22rem] overflow-hidden bg-paper">

@@ -5,7 +5,7 @@ import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId, type FontBook } f
 import { importMesh } from "@/lib/geometry/import";
 import type { Unit } from "@/lib/geometry/io/raw";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
-import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
+import { combineMeshes } from "@/lib/geometry/mesh";
 import { orientMesh } from "@/lib/geometry/orient";
 import type { DisplayPart, FromWorker, ToWorker } from "./protocol";
 

@@ -1,0 +1,156 @@
+import "server-only";
+import { and, asc, desc, eq, ilike, isNull, or, sql } from "drizzle-orm";
+import { db } from "@/db";
+import { templates, templateVersions, users, type TemplateVersion } from "@/db/schema";
+import { audit } from "@/lib/audit";
+import { UserError } from "@/lib/auth/guards";
+import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
+import type { SlabOptionsInput } from "@/lib/geometry/options";
+import { describeChanges, templateBodySchema, type TemplateBody, type TemplateVariableDef } from "@/lib/geometry/template";
+import { enqueueThumbnail } from "@/lib/jobs/queue";
+
+/**
+ * Templates of a workspace, and the starters every workspace sees (workspace_id null). A template's
+ * options live in numbered versions: saving adds a version and never changes an old one, so a plate
+ * made from version n can be made again exactly.
+ */
+
+export type Actor = { workspaceId: string; userId: string | null; email?: string | null };
+
+/** Check a template's options and variables; the message says what to fix. */
+export function checkBody(input: unknown): TemplateBody {
+  const r = templateBodySchema.safeParse(input);
+  if (!r.success) {
+    const issue = r.error.issues[0]!;
+    throw new UserError("invalid_template", issue.message, issue.path.join("."));
+  }
+  const logo = r.data.options.marks.logo;
+  if (logo) {
+    const points = logoContours(logo, logo.width).reduce((n, p) => n + p.contours.reduce((m, c) => m + c.length, 0), 0);
+    if (points > LOGO_LIMITS.points) throw new UserError("invalid_template", `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.width} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")}.`, "options.marks.logo");
+  }
+  return r.data;
+}
+
+const visible = (workspaceId: string) => or(eq(templates.workspaceId, workspaceId), isNull(templates.workspaceId));
+
+export async function listTemplates(workspaceId: string, filter: { q?: string; archived?: boolean } = {}) {
+  const q = filter.q?.trim();
+  return db()
+    .select({
+      id: templates.id,
+      name: templates.name,
+      description: templates.description,
+      starter: sql<boolean>`${templates.workspaceId} is null`,
+      version: templates.currentVersion,
+      archivedAt: templates.archivedAt,
+      updatedAt: templates.updatedAt,
+      variables: templateVersions.variables,
+      thumbnailSvg: templateVersions.thumbnailSvg,
+      thumbnailState: templateVersions.thumbnailState,
+      findings: templateVersions.findings,
+      options: templateVersions.options,
+      updatedBy: users.name,
+    })
+    .from(templates)
+    .innerJoin(templateVersions, and(eq(templateVersions.templateId, templates.id), eq(templateVersions.version, templates.currentVersion)))
+    .leftJoin(users, eq(users.id, templateVersions.createdBy))
+    .where(and(visible(workspaceId), filter.archived ? sql`${templates.archivedAt} is not null` : isNull(templates.archivedAt), q ? or(ilike(templates.name, `%${q}%`), ilike(templates.description, `%${q}%`)) : undefined))
+    .orderBy(sql`${templates.workspaceId} is null`, desc(templates.updatedAt), asc(templates.name));
+}
+export type TemplateRow = Awaited<ReturnType<typeof listTemplates>>[number];
+
+export async function getTemplate(workspaceId: string, id: string) {
+  const [t] = await db().select().from(templates).where(and(eq(templates.id, id), visible(workspaceId)));
+  if (!t) throw new UserError("not_found", "No such template.");
+  const versions = await db()
+    .select({ v: templateVersions, by: users.name, byEmail: users.email })
+    .from(templateVersions)
+    .leftJoin(users, eq(users.id, templateVersions.createdBy))
+    .where(eq(templateVersions.templateId, t.id))
+    .orderBy(desc(templateVersions.version));
+  return { template: t, versions: versions.map((r) => ({ ...r.v, by: r.by ?? r.byEmail ?? (t.workspaceId ? "—" : "Slabwright") })), current: versions.find((r) => r.v.version === t.currentVersion)!.v };
+}
+
+/** A template version a plate will use: the current one, or the one asked for. */
+export async function versionForPlate(workspaceId: string, templateId: string, version?: number): Promise<TemplateVersion & { templateName: string }> {
+  const [t] = await db().select().from(templates).where(and(eq(templates.id, templateId), visible(workspaceId)));
+  if (!t) throw new UserError("not_found", "No such template.");
+  const [v] = await db()
+    .select()
+    .from(templateVersions)
+    .where(and(eq(templateVersions.templateId, t.id), eq(templateVersions.version, version ?? t.currentVersion)));
+  if (!v) throw new UserError("not_found", `The template has no version ${version}; its newest is ${t.currentVersion}.`);
+  return { ...v, templateName: t.name };
+}
+
+async function writable(tx: Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0], actor: Actor, id: string) {
+  const [t] = await tx.select().from(templates).where(and(eq(templates.id, id), visible(actor.workspaceId))).for("update");
+  if (!t) throw new UserError("not_found", "No such template.");
+  if (!t.workspaceId) throw new UserError("starter_read_only", "Starter templates cannot be changed: duplicate it, then edit the copy.");
+  return t;
+}
+
+export async function createTemplate(actor: Actor, input: { name: string; description?: string; body: unknown; note?: string }): Promise<{ id: string; versionId: string }> {
+  const body = checkBody(input.body);
+  const out = await db().transaction(async (tx) => {
+    const [t] = await tx.insert(templates).values({ workspaceId: actor.workspaceId, name: input.name.trim(), description: input.description?.trim() ?? "", createdBy: actor.userId }).returning();
+    const [v] = await tx
+      .insert(templateVersions)
+      .values({ templateId: t!.id, version: 1, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? null, changes: describeChanges(null, body), createdBy: actor.userId })
+      .returning();
+    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_created", target: t!.id, details: { name: t!.name } }, tx);
+    return { id: t!.id, versionId: v!.id };
+  });
+  await enqueueThumbnail(out.versionId);
+  return out;
+}
+
+export async function saveVersion(actor: Actor, id: string, input: { body: unknown; note?: string; restoredFrom?: number }): Promise<{ version: number; versionId: string }> {
+  const body = checkBody(input.body);
+  const out = await db().transaction(async (tx) => {
+    const t = await writable(tx, actor, id);
+    const [prev] = await tx.select().from(templateVersions).where(and(eq(templateVersions.templateId, id), eq(templateVersions.version, t.currentVersion)));
+    const version = t.currentVersion + 1;
+    const changes = describeChanges(prev ? { options: prev.options as SlabOptionsInput, variables: prev.variables as TemplateVariableDef[] } : null, body);
+    const [v] = await tx
+      .insert(templateVersions)
+      .values({ templateId: id, version, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? (input.restoredFrom ? `restored from version ${input.restoredFrom}` : null), changes, createdBy: actor.userId })
+      .returning();
+    await tx.update(templates).set({ currentVersion: version, updatedAt: new Date() }).where(eq(templates.id, id));
+    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: input.restoredFrom ? "template_version_restored" : "template_version_saved", target: id, details: { version, ...(input.restoredFrom ? { restoredFrom: input.restoredFrom } : {}) } }, tx);
+    return { version, versionId: v!.id };
+  });
+  await enqueueThumbnail(out.versionId);
+  return out;
+}
+
+export async function restoreVersion(actor: Actor, id: string, version: number) {
+  const { versions } = await getTemplate(actor.workspaceId, id);
+  const old = versions.find((v) => v.version === version);
+  if (!old) throw new UserError("not_found", `The template has no version ${version}.`);
+  return saveVersion(actor, id, { body: { options: old.options, variables: old.variables }, restoredFrom: version });
+}
+
+export async function duplicateTemplate(actor: Actor, id: string): Promise<{ id: string; versionId: string }> {
+  const { template, current } = await getTemplate(actor.workspaceId, id);
+  const out = await createTemplate(actor, { name: `${template.name} (copy)`, description: template.description, body: { options: current.options, variables: current.variables }, note: `copied from ${template.name}, version ${current.version}` });
+  await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_duplicated", target: out.id, details: { from: id } });
+  return out;
+}
+
+export async function setArchived(actor: Actor, id: string, archived: boolean) {
+  await db().transaction(async (tx) => {
+    await writable(tx, actor, id);
+    await tx.update(templates).set({ archivedAt: archived ? new Date() : null, updatedAt: new Date() }).where(eq(templates.id, id));
+    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: archived ? "template_archived" : "template_unarchived", target: id }, tx);
+  });
+}
+
+export async function renameTemplate(actor: Actor, id: string, name: string, description: string) {
+  await db().transaction(async (tx) => {
+    await writable(tx, actor, id);
+    await tx.update(templates).set({ name: name.trim(), description: description.trim(), updatedAt: new Date() }).where(eq(templates.id, id));
+    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_renamed", target: id, details: { name } }, tx);
+  });
+}
