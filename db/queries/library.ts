@@ -1,7 +1,7 @@
 import "server-only";
 import { and, asc, desc, eq, isNull, max, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, plates, users } from "@/db/schema";
+import { kitParts, kits, plates, templates, templateVersions, users } from "@/db/schema";
 import type { Caller } from "@/lib/auth/guards";
 
 // Every read is scoped to the caller's active workspace; there is no query here without that filter.
@@ -52,9 +52,15 @@ export async function listPlates(caller: Caller, filter: { kitId?: string; limit
       has3mf: sql<boolean>`${plates.threeMfBlobKey} is not null`,
       makerName: users.name,
       makerEmail: users.email,
+      templateId: templates.id,
+      templateName: templates.name,
+      templateVersion: templateVersions.version,
+      remakeable: sql<boolean>`${plates.input} is not null`,
     })
     .from(plates)
     .leftJoin(kits, eq(kits.id, plates.kitId))
+    .leftJoin(templateVersions, eq(templateVersions.id, plates.templateVersionId))
+    .leftJoin(templates, eq(templates.id, templateVersions.templateId))
     .leftJoin(users, eq(users.id, plates.createdBy))
     .where(and(eq(plates.workspaceId, caller.workspace.id), filter.kitId ? eq(plates.kitId, filter.kitId) : undefined))
     .orderBy(desc(plates.createdAt))

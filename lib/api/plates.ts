@@ -176,6 +176,28 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
   }
 }
 
+/**
+ * Make a plate again from exactly what it was made with (parts, options, values, template version):
+ * the new files are byte for byte the old ones, whatever the template has become since.
+ */
+export async function remakePlate(workspaceId: string, plateId: string, userId: string | null): Promise<Plate> {
+  const [old] = await db().select().from(plates).where(and(eq(plates.id, plateId), eq(plates.workspaceId, workspaceId)));
+  if (!old) throw notFound("plate");
+  if (!old.input) throw new ApiProblem(409, "not_remakeable", "This plate has no stored inputs to make it from.");
+  const [row] = await db()
+    .insert(plates)
+    .values({ workspaceId, kitId: old.kitId, templateVersionId: old.templateVersionId, source: old.source, status: "building", options: old.options, variables: old.variables, input: old.input, title: old.title, pieceCount: old.pieceCount, createdBy: userId })
+    .returning();
+  try {
+    const jobId = await enqueueBuild(row!.id);
+    const [withJob] = await db().update(plates).set({ jobId }).where(eq(plates.id, row!.id)).returning();
+    return withJob!;
+  } catch (err) {
+    await db().update(plates).set({ status: "failed", jobState: "failed", error: { code: "queue_unavailable", message: "The build queue is not available." } }).where(eq(plates.id, row!.id));
+    throw err;
+  }
+}
+
 async function priorPlate(caller: ApiCaller, key: string, hash: string): Promise<Plate | null> {
   const [row] = await db()
     .select({ k: idempotencyKeys, p: plates })

@@ -1,7 +1,7 @@
 import "server-only";
 import { ZodError } from "zod";
 import { AccessError } from "@/lib/auth/errors";
-import { UserError } from "@/lib/auth/guards";
+import { UserError } from "@/lib/auth/errors";
 
 /** Statuses for refusals a person can act on; anything else of that kind is a 422. */
 const USER_ERROR_STATUS: Record<string, number> = { not_found: 404, part_in_use: 409, conflict: 409 };

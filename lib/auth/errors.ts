@@ -17,3 +17,15 @@ export const forbidden = (what: string) => new AccessError(403, "forbidden", `Yo
 export const notFound = (what = "record") => new AccessError(404, "not_found", `No such ${what}.`);
 export const rateLimited = (seconds: number, what: string) =>
   new AccessError(429, "rate_limited", `Too many ${what}. Try again in ${seconds < 90 ? `${seconds} seconds` : `${Math.ceil(seconds / 60)} minutes`}.`, seconds);
+
+/** A refusal a person can act on (the last owner, an already-used link), optionally tied to a field. */
+export class UserError extends Error {
+  constructor(
+    readonly code: string,
+    message: string,
+    readonly field?: string,
+  ) {
+    super(message);
+    this.name = "UserError";
+  }
+}

@@ -7,7 +7,7 @@ import { db } from "@/db";
 import { memberships, users, workspaces, type Role } from "@/db/schema";
 import type { ActionResult } from "@/lib/validation/accounts";
 import { auth } from "./config";
-import { AccessError, forbidden, notSignedIn } from "./errors";
+import { AccessError, forbidden, notSignedIn, UserError } from "./errors";
 import { can, type Permission } from "./permissions";
 
 export const WORKSPACE_COOKIE = "sw_workspace";
@@ -121,14 +121,4 @@ export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Per
   };
 }
 
-/** A refusal a person can act on (the last owner, an already-used link), optionally tied to a field. */
-export class UserError extends Error {
-  constructor(
-    readonly code: string,
-    message: string,
-    readonly field?: string,
-  ) {
-    super(message);
-    this.name = "UserError";
-  }
-}
+export { UserError } from "./errors";

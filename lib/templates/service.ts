@@ -3,7 +3,7 @@ import { and, asc, desc, eq, ilike, isNull, or, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { templates, templateVersions, users, type TemplateVersion } from "@/db/schema";
 import { audit } from "@/lib/audit";
-import { UserError } from "@/lib/auth/guards";
+import { UserError } from "@/lib/auth/errors";
 import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { describeChanges, templateBodySchema, type TemplateBody, type TemplateVariableDef } from "@/lib/geometry/template";

@@ -5,7 +5,7 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { db } from "@/db";
 import { plates } from "@/db/schema";
-import { createPlate, readPlateRequest } from "@/lib/api/plates";
+import { createPlate, readPlateRequest, remakePlate } from "@/lib/api/plates";
 import { ApiProblem } from "@/lib/api/respond";
 import { maxUploadBytes } from "@/lib/parts/upload";
 import { archiveKit, duplicateKit, saveKit } from "@/db/queries/kits";
@@ -47,6 +47,18 @@ export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "ma
     await db().update(plates).set({ source: "editor", createdBy: caller.user.id }).where(eq(plates.id, plate.id));
     revalidatePath("/plates");
     return { ok: true, data: { plateId: plate.id } };
+  } catch (err) {
+    if (err instanceof ApiProblem) return { ok: false, code: err.code, message: err.message };
+    throw err;
+  }
+});
+
+/** "Make again": the same parts, options, values and template version; the same bytes. */
+export const remakePlateAction = guardedAction(z.object({ plateId: z.string().min(1) }), "plates:make", "making plates", async (input, caller) => {
+  try {
+    const plate = await remakePlate(caller.workspace.id, input.plateId, caller.user.id);
+    revalidatePath("/plates");
+    return { ok: true, data: { plateId: plate.id }, message: "Making the plate again: it appears in the list when it is built." };
   } catch (err) {
     if (err instanceof ApiProblem) return { ok: false, code: err.code, message: err.message };
     throw err;

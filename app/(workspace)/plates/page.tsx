@@ -1,6 +1,7 @@
 import type { Metadata } from "next";
 import { listPlates } from "@/db/queries/library";
 import { requireCaller } from "@/lib/auth/guards";
+import { can } from "@/lib/auth/permissions";
 import { PageHeader } from "../_components/page-header";
 import { PlatesTable } from "./_components/plates-table";
 
@@ -12,7 +13,7 @@ export default async function PlatesPage() {
   return (
     <>
       <PageHeader title="Plates" lead="Every print-ready file made in this workspace, newest first." />
-      <PlatesTable rows={rows} label="Plates" empty="No plates yet: open a kit in the slab editor and make its first plate." />
+      <PlatesTable canMake={can(caller.role, "plates:make")} rows={rows} label="Plates" empty="No plates yet: open a kit in the slab editor and make its first plate." />
     </>
   );
 }

@@ -2,15 +2,16 @@ import Link from "next/link";
 import type { PlateRow } from "@/db/queries/library";
 import { when } from "@/lib/format";
 import { DataTable, EmptyState } from "../../_components/page-header";
+import { RemakeButton } from "./remake-button";
 
 const sourceLabel = { editor: "slab editor", api: "API", reprint: "reprint" } as const;
 const stateLabel = { queued: "waiting for a worker", running: "building", done: "ready", failed: "failed" } as const;
 
 /** Plates as a table: when, what, who, how it went, and the files. Used for the workspace and per kit. */
-export function PlatesTable({ rows, label, showKit = true, empty }: { rows: PlateRow[]; label: string; showKit?: boolean; empty: string }) {
+export function PlatesTable({ rows, label, showKit = true, empty, canMake = false }: { rows: PlateRow[]; label: string; showKit?: boolean; empty: string; canMake?: boolean }) {
   if (rows.length === 0) return <EmptyState message={empty} />;
   return (
-    <DataTable label={label} head={["Made", ...(showKit ? ["Kit"] : []), "Pieces", "Mass", "From", "By", "Status", "Files"]}>
+    <DataTable label={label} head={["Made", ...(showKit ? ["Kit"] : []), "Template", "Pieces", "Mass", "From", "By", "Status", "Files"]}>
       {rows.map((p) => {
         const est = p.estimates as { totalMass?: number; material?: string } | null;
         const warnings = (p.findings as { severity: string }[]).filter((f) => f.severity === "warning").length;
@@ -20,6 +21,7 @@ export function PlatesTable({ rows, label, showKit = true, empty }: { rows: Plat
             {showKit ? (
               <td className="px-3 py-2 font-bold">{p.kitId && p.kitName ? <Link href={`/kits/${p.kitId}/slab`} className="hover:underline">{p.kitName}</Link> : (p.title ?? "posted parts")}</td>
             ) : null}
+            <td className="px-3 py-2">{p.templateId ? <Link href={`/templates/${p.templateId}`} className="hover:underline">{p.templateName} <span className="font-mono text-xs text-muted">v{p.templateVersion}</span></Link> : <span className="text-muted">—</span>}</td>
             <td className="px-3 py-2 font-mono">{p.pieceCount}</td>
             <td className="px-3 py-2 font-mono">{est?.totalMass !== undefined ? `${est.totalMass.toFixed(1)} g ${est.material ?? ""}` : "—"}</td>
             <td className="px-3 py-2">{sourceLabel[p.source]}</td>
@@ -40,6 +42,7 @@ export function PlatesTable({ rows, label, showKit = true, empty }: { rows: Plat
                 </a>
               ) : null}
               {!p.hasStl && !p.has3mf ? <span className="text-muted">—</span> : null}
+              {canMake && p.remakeable && p.jobState !== "queued" && p.jobState !== "running" ? <RemakeButton plateId={p.id} /> : null}
             </td>
           </tr>
         );

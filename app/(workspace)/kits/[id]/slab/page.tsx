@@ -29,7 +29,7 @@ export default async function SlabEditorPage({ params, searchParams }: { params:
         <h2 id="kit-plates" className="text-lg">
           Plates of this kit
         </h2>
-        <PlatesTable rows={plates} label="Plates of this kit" showKit={false} empty="No plate made from this kit yet: tune the slab above, then make the plate." />
+        <PlatesTable canMake={can(caller.role, "plates:make")} rows={plates} label="Plates of this kit" showKit={false} empty="No plate made from this kit yet: tune the slab above, then make the plate." />
       </section>
     </>
   );

@@ -316,7 +316,7 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
               <Pick form={form} name={`text.${i}.relief`} label="Relief" options={RELIEF} />
               <Num form={form} name={`text.${i}.depth`} label={v.text[i]?.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
               <Pick form={form} name={`text.${i}.where`} label="Place" options={WHERE} />
-              <Num form={form} name={`text.${i}.maxWidth`} label="Longest (empty: any)" unit="mm" step={1} />
+              <Num form={form} name={`text.${i}.maxWidth`} label="Max width" unit="mm" step={1} />
             </div>
             {v.text[i]?.where === "at" ? (
               <div className="grid grid-cols-2 gap-2">
@@ -342,7 +342,7 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
             <Pick form={form} name="qr.relief" label="Relief" options={RELIEF} />
             <Num form={form} name="qr.depth" label={v.qr.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
             <Pick form={form} name="qr.where" label="Place" options={WHERE} />
-            <Num form={form} name="qr.maxSize" label="Largest (empty: any)" unit="mm" step={1} />
+            <Num form={form} name="qr.maxSize" label="Max size" unit="mm" step={1} />
             {v.qr.where === "at" ? (
               <>
                 <Num form={form} name="qr.x" label="x" unit="mm" step={0.5} />
