@@ -55,9 +55,11 @@ export default async function TemplatesPage({ searchParams }: { searchParams: Pr
                   {vars.length ? vars.map((v) => <code key={v.name} className="mr-1 rounded bg-paper px-1 font-mono">{`{${v.name}}`}</code>) : <span className="text-muted">no variables</span>}
                 </p>
                 {problems ? <p className="text-xs text-finding-warning">⚠ {problems} finding{problems > 1 ? "s" : ""} with the sample values</p> : null}
-                <div className="mt-auto flex flex-wrap items-center gap-2 pt-1">
-                  <span className="text-xs text-muted">{t.starter ? "shipped with Slabwright" : `${when(t.updatedAt)}${t.updatedBy ? ` · ${t.updatedBy}` : ""}`}</span>
-                  <span className="ml-auto" />
+                <p className="mt-auto pt-1 text-xs text-muted">{t.starter ? "shipped with Slabwright" : `${when(t.updatedAt)}${t.updatedBy ? ` · ${t.updatedBy}` : ""}`}</p>
+                <div className="flex flex-wrap items-center gap-2">
+                  <Link href={`/templates/${t.id}`} className="btn-quiet px-2 py-1 text-xs" aria-label={`Open ${t.name}`}>
+                    Open
+                  </Link>
                   {mayEdit ? <DuplicateButton id={t.id} name={t.name} /> : null}
                   {mayEdit && !t.starter ? <ArchiveButton id={t.id} name={t.name} archived={Boolean(t.archivedAt)} /> : null}
                 </div>
