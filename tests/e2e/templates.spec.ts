@@ -49,7 +49,8 @@ test("a designer makes a branded template with a logo and two variables, sees it
 
   // Apply it to the kit with real values and make the plate.
   await tile.getByRole("link", { name, exact: true }).click();
-  await page.getByRole("link", { name: "Harbour Run token set in the slab editor →" }).click();
+  await page.getByLabel("Kit", { exact: true }).selectOption({ label: "Harbour Run token set" });
+  await page.getByRole("button", { name: "Open in the slab editor" }).click();
   await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   await expect(page.getByLabel("Apply a template")).toHaveValue(/.+/);
   await page.getByLabel("{order}", { exact: true }).fill("77001");

@@ -1,5 +1,4 @@
 import type { Metadata } from "next";
-import Link from "next/link";
 import { notFound } from "next/navigation";
 import { listKits } from "@/db/queries/library";
 import { requireCaller, UserError } from "@/lib/auth/guards";
@@ -10,6 +9,7 @@ import { getTemplate } from "@/lib/templates/service";
 import { DataTable, PageHeader } from "../../_components/page-header";
 import { ArchiveButton, DuplicateButton, RestoreButton } from "../_components/template-actions";
 import { TemplateThumb } from "../_components/thumb";
+import { UseInEditor } from "../_components/use-in-editor";
 
 export const metadata: Metadata = { title: "Template" };
 
@@ -60,19 +60,7 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
           </section>
           <section className="card space-y-2 p-4 text-sm">
             <h2 className="text-base">Use it</h2>
-            {kits.length ? (
-              <ul className="space-y-1">
-                {kits.slice(0, 8).map((k) => (
-                  <li key={k.id}>
-                    <Link className="text-accent underline" href={`/kits/${k.id}/slab?template=${template.id}`}>
-                      {k.name} in the slab editor →
-                    </Link>
-                  </li>
-                ))}
-              </ul>
-            ) : (
-              <p className="text-muted">Make a kit first, then open it in the slab editor with this template.</p>
-            )}
+            <UseInEditor templateId={template.id} kits={kits.map((k) => ({ id: k.id, name: k.name }))} />
             <p className="text-xs text-muted">
               From the API: <code className="font-mono">template={template.id}</code>
             </p>
