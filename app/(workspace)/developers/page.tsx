@@ -25,6 +25,12 @@ export default async function DevelopersPage() {
   -F 'options={"marks":{"text":[{"value":"ORDER {order}"}],"qr":{"value":"https://shop.example/o/{order}"}}}' \\
   -F 'variables={"order":"10482"}' \\
   -F format=3mf -o plate-10482.3mf -D -`;
+  const curlTemplate = `# A saved template (GET /api/v1/templates lists them, with their variables)
+curl -sS -X POST ${base}/api/v1/plates \
+  -H "Authorization: Bearer $SLAB_KEY" \
+  -F kit=$KIT_ID -F template=$TEMPLATE_ID \
+  -F 'variables={"order":"10482","customer":"Sam"}' \
+  -F format=stl -o plate-10482.stl`;
   const fetchJs = `const form = new FormData();
 form.append("kit", kitId);                       // or append("part", file, "tile.stl") per mesh
 form.append("variables", JSON.stringify({ order: "10482", customer: "Sam" }));
@@ -65,6 +71,10 @@ function verify(raw, header, secret) {
         <section className="space-y-2">
           <h2 className="text-lg">Make a plate with curl</h2>
           <Code>{curl}</Code>
+          <p className="text-sm text-muted">
+            With a template: its options apply (options you send override them), and variables fill its placeholders. A variable the template does not have, or one without a value or a default, is a 422 that names it; add <code className="font-mono">templateVersion</code> to use an earlier version.
+          </p>
+          <Code>{curlTemplate}</Code>
           <p className="text-muted">A build that takes longer than 20 s answers 202 with a job to poll; send <code className="font-mono">Prefer: respond-async</code> to get the 202 at once. Errors are JSON: <code className="font-mono">{'{ "error": { "code", "message", "details" } }'}</code>.</p>
         </section>
         <section className="space-y-2">
