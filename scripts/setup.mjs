@@ -54,11 +54,13 @@ export function ensureDependencies() {
 
 /**
  * Debian packages the tests use: chromium for the browser tests (never a browser download of the
- * test tool's own) and admesh, an independent STL checker. Installed in one apt-get run when missing.
+ * test tool's own), admesh, an independent STL checker, and poppler-utils (pdftoppm renders the
+ * plate map PDF to a picture whose QR code a test decodes). Installed in one apt-get run when missing.
  */
 const TEST_PACKAGES = [
   { pkg: "chromium", file: "/usr/bin/chromium" },
   { pkg: "admesh", file: "/usr/bin/admesh" },
+  { pkg: "poppler-utils", file: "/usr/bin/pdftoppm" },
 ];
 
 export function ensureTestPackages() {

@@ -3,3 +3,4 @@ export * from "./workspaces";
 export * from "./parts";
 export * from "./plates";
 export * from "./accounts";
+export * from "./floor";

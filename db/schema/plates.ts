@@ -85,6 +85,10 @@ export const plates = pgTable(
     input: jsonb("input").$type<PlateInput>(),
     callbackUrl: text("callback_url"),
     title: text("title"),
+    /** Where the plate is on the print floor (see floor.ts); set to to_print when its files are ready. */
+    floorState: text("floor_state").$type<"to_print" | "printing" | "print_failed" | "to_inspect" | "reprint_needed" | "done">(),
+    /** A reprint names the plate whose missing or defective pieces it holds. */
+    reprintOf: text("reprint_of"),
     finishedAt: timestamp("finished_at", { withTimezone: true }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),

@@ -86,7 +86,7 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       }
       parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity });
     }
-    const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
+    const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, markOutlines: true, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
     return { ok: true, result };
   } catch (err) {
     if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.message, details: err.details };

@@ -41,6 +41,7 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
   await finish(plate, {
     jobState: "done",
     status: "ready",
+    floorState: "to_print",
     stlBlobKey: stl.key,
     threeMfBlobKey: tmf.key,
     findings: r.findings,

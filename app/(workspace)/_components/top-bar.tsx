@@ -5,7 +5,7 @@ import { SectionNav } from "./section-nav";
 
 export function TopBar({ caller }: { caller: Caller }) {
   return (
-    <header className="border-b border-hairline bg-surface">
+    <header className="border-b border-hairline bg-surface print:hidden">
       <div className="mx-auto flex max-w-column flex-wrap items-center gap-x-4 gap-y-2 px-4 pt-3">
         <Brand href="/parts" />
         <form action={switchWorkspace} className="flex items-center gap-2 text-sm">

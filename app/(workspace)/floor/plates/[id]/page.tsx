@@ -1,0 +1,129 @@
+import type { Metadata } from "next";
+import Link from "next/link";
+import { notFound } from "next/navigation";
+import { requireCaller, UserError } from "@/lib/auth/guards";
+import { can } from "@/lib/auth/permissions";
+import type { PlateLayout } from "@/lib/geometry/build-plate";
+import { slabTopSvg } from "@/lib/geometry/thumbnail";
+import { nextMoves, piecesOf, plateFloor, STATE_LABEL } from "@/lib/floor/service";
+import { when } from "@/lib/format";
+import { InspectionForm, MoveButtons, ReprintButton } from "../../_components/floor-controls";
+
+export const metadata: Metadata = { title: "Plate on the floor" };
+
+export default async function FloorPlatePage({ params }: { params: Promise<{ id: string }> }) {
+  const caller = await requireCaller();
+  let f;
+  try {
+    f = await plateFloor(caller.workspace.id, (await params).id);
+  } catch (err) {
+    if (err instanceof UserError && err.code === "not_found") notFound();
+    throw err;
+  }
+  const { plate, events, inspections, reprints, original } = f;
+  const pieces = piecesOf(plate);
+  const layout = (plate.stats as { layout?: PlateLayout } | null)?.layout;
+  const state = plate.floorState;
+  const last = inspections[0]?.i;
+  const toReprint = last ? last.results.filter((r) => r.state !== "present") : [];
+  const mayInspect = can(caller.role, "inspections:record");
+  return (
+    <div className="mx-auto max-w-2xl space-y-4">
+      <header className="space-y-1">
+        <p className="text-sm">
+          <Link href="/floor" className="text-accent underline">
+            ← Floor
+          </Link>
+        </p>
+        <h1 className="text-2xl">
+          {plate.title ?? "Plate"} <span className="font-mono text-base text-muted">{plate.id.slice(0, 8)}</span>
+        </h1>
+        <p className="text-sm" data-testid="floor-state">
+          Status: <strong>{state ? STATE_LABEL[state] : plate.jobState === "done" ? "ready" : `files ${plate.jobState}`}</strong>
+          {original ? (
+            <>
+              {" "}
+              · reprint of{" "}
+              <Link className="text-accent underline" href={`/floor/plates/${original.id}`}>
+                {original.id.slice(0, 8)}
+              </Link>{" "}
+              ({original.floorState ? STATE_LABEL[original.floorState] : "—"})
+            </>
+          ) : null}
+        </p>
+        {state && mayInspect ? <MoveButtons id={plate.id} moves={nextMoves(state)} /> : null}
+      </header>
+      {layout ? (
+        <section className="card space-y-2 p-3">
+          <div className="flex justify-center [&>svg]:h-auto [&>svg]:max-h-72 [&>svg]:w-full" dangerouslySetInnerHTML={{ __html: slabTopSvg(layout, pieces, 480, 320) }} />
+          <p className="flex flex-wrap gap-3 text-sm">
+            <a className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=a4`}>
+              Plate map (PDF, A4)
+            </a>
+            <a className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=letter`}>
+              Plate map (PDF, Letter)
+            </a>
+            <Link className="text-accent underline" href={`/floor/plates/${plate.id}/sheet`}>
+              Printable page
+            </Link>
+          </p>
+        </section>
+      ) : (
+        <p className="card p-3 text-sm text-muted">The plate&apos;s files are still being made; its map and inspection appear when they are ready.</p>
+      )}
+      {state === "reprint_needed" && toReprint.length ? (
+        <section className="card space-y-2 border-l-4 border-l-finding-error p-3">
+          <h2 className="text-base">To reprint</h2>
+          <ul className="text-sm">
+            {toReprint.map((r) => (
+              <li key={r.number}>
+                Piece {r.number} · {pieces.find((p) => p.number === r.number)?.partName}: <strong>{r.state}</strong>
+                {r.note ? ` — ${r.note}` : ""}
+              </li>
+            ))}
+          </ul>
+          {can(caller.role, "plates:reprint") ? <ReprintButton id={plate.id} count={toReprint.length} /> : null}
+        </section>
+      ) : null}
+      {reprints.length ? (
+        <section className="card p-3 text-sm">
+          <h2 className="text-base">Reprints</h2>
+          <ul>
+            {reprints.map((r) => (
+              <li key={r.id} data-testid="reprint-row">
+                <Link className="text-accent underline" href={`/floor/plates/${r.id}`}>
+                  {r.id.slice(0, 8)}
+                </Link>{" "}
+                · {r.pieceCount} piece{r.pieceCount > 1 ? "s" : ""} · {r.floorState ? STATE_LABEL[r.floorState] : r.jobState === "done" ? "ready" : `files ${r.jobState}`}
+              </li>
+            ))}
+          </ul>
+        </section>
+      ) : null}
+      {layout && state && state !== "done" && state !== "reprint_needed" ? (
+        <section className="card space-y-2 p-3">
+          <h2 className="text-base">Inspect the slab</h2>
+          <InspectionForm id={plate.id} pieces={pieces.map((p) => ({ number: p.number, partName: p.partName, copy: p.copy }))} canInspect={mayInspect} />
+        </section>
+      ) : null}
+      <section className="card p-3 text-sm">
+        <h2 className="text-base">History</h2>
+        <ul className="space-y-1">
+          {inspections.map(({ i, by, byEmail }) => (
+            <li key={i.id}>
+              {when(i.at)} · inspected by {by ?? byEmail ?? "—"}: {i.missing || i.defective ? `${i.missing} missing, ${i.defective} defective` : "every piece present"}
+              {i.first ? <span className="text-muted"> (first inspection)</span> : null}
+            </li>
+          ))}
+          {events.map(({ e, by, byEmail }) => (
+            <li key={e.id} className="text-muted">
+              {when(e.at)} · {e.fromState ? STATE_LABEL[e.fromState] : "—"} → {STATE_LABEL[e.toState]} by {by ?? byEmail ?? "—"}
+              {e.note ? ` (${e.note})` : ""}
+            </li>
+          ))}
+          <li className="text-muted">{when(plate.createdAt)} · made</li>
+        </ul>
+      </section>
+    </div>
+  );
+}

@@ -1,0 +1,13 @@
+import { apiRoute } from "@/lib/api/respond";
+import { sessionPlate } from "@/lib/api/session-plates";
+import { authorize } from "@/lib/auth/guards";
+import { sheetResponse } from "@/lib/floor/sheet-response";
+
+export const runtime = "nodejs";
+export const dynamic = "force-dynamic";
+
+/** GET /api/plates/{id}/map.pdf?paper=a4|letter — the plate map sheet for signed-in members. */
+export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
+  const caller = await authorize("workspace:view", "viewing plate maps");
+  return sheetResponse(req, await sessionPlate(caller, (await ctx.params).id));
+});
