@@ -59,9 +59,10 @@ export async function callerFor(user: SessionUser, wantedWorkspace?: string): Pr
 }
 
 /** For pages: the caller, or off to sign in (or to set up a first workspace). */
-export async function requireCaller(): Promise<Caller> {
+/** The signed-in member, or off to sign in (and back to `next`, a path of ours, afterwards). */
+export async function requireCaller(next?: string): Promise<Caller> {
   const user = await loadSessionUser();
-  if (!user) redirect("/sign-in");
+  if (!user) redirect(next ? `/sign-in?next=${encodeURIComponent(next)}` : "/sign-in");
   const caller = await callerFor(user, (await cookies()).get(WORKSPACE_COOKIE)?.value);
   if (!caller) redirect("/welcome");
   return caller;

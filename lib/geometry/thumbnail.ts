@@ -37,9 +37,10 @@ export function topViewSvg(kernel: Kernel, mesh: IndexedMesh, layerHeight = 0.2,
 
 /**
  * A top view of a whole slab as SVG, to scale: the slab, its marks (with `markOutlines` from the
- * build) and each piece's outline, fitted into `width` × `height` pixels, y up.
+ * build) and each piece's outline, fitted into `width` × `height` pixels, y up. Pieces in `marked`
+ * (missing or defective) are drawn as dashed empty outlines, as they look on the slab.
  */
-export function slabTopSvg(layout: PlateLayout, pieces: Pick<PlacedPiece, "outline">[], width = 240, height = 180): string {
+export function slabTopSvg(layout: PlateLayout, pieces: Pick<PlacedPiece, "outline" | "number">[], width = 240, height = 180, marked: Set<number> = new Set()): string {
   const W = layout.slab.width, D = layout.slab.depth;
   const pad = 6;
   const s = Math.min((width - 2 * pad) / W, (height - 2 * pad) / D);
@@ -49,7 +50,8 @@ export function slabTopSvg(layout: PlateLayout, pieces: Pick<PlacedPiece, "outli
     `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 ${width} ${height}" width="${width}" height="${height}" role="img" aria-label="Top view of a ${W.toFixed(0)} × ${D.toFixed(0)} mm slab">` +
     `<path d="${path(layout.slab.outline)}" fill="#efe8dc" stroke="#c9bfae" stroke-width="1"/>` +
     (layout.markOutlines?.length ? `<path d="${path(layout.markOutlines)}" fill="#8a7f6c" fill-rule="nonzero"/>` : "") +
-    (pieces.length ? `<path d="${path(pieces.flatMap((p) => p.outline))}" fill="#4a4f57" fill-opacity="0.85" fill-rule="nonzero"/>` : "") +
+    (pieces.length ? `<path d="${path(pieces.filter((p) => !marked.has(p.number)).flatMap((p) => p.outline))}" fill="#4a4f57" fill-opacity="0.85" fill-rule="nonzero"/>` : "") +
+    (marked.size ? `<path d="${path(pieces.filter((p) => marked.has(p.number)).flatMap((p) => p.outline))}" fill="none" stroke="#c0392b" stroke-width="2" stroke-dasharray="4 2"/>` : "") +
     `</svg>`
   );
 }

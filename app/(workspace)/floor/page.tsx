@@ -44,7 +44,7 @@ export default async function FloorPage() {
                     {r.source === "reprint" ? <span className="rounded-card bg-paper px-1.5 text-xs">reprint</span> : null}
                     <span className="text-xs text-muted">{r.movedAt ? `moved ${when(r.movedAt)} by ${r.movedBy ?? r.movedByEmail ?? "—"}` : `made ${when(r.createdAt)}`}</span>
                     <span className="ml-auto" />
-                    {mayMove ? <MoveButtons id={r.id} moves={nextMoves(state)} /> : null}
+                    {mayMove ? <MoveButtons id={r.id} from={state} moves={nextMoves(state)} /> : null}
                   </li>
                 ))}
               </ul>

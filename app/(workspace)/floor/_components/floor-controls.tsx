@@ -22,13 +22,13 @@ function useRun() {
   return { run, pending };
 }
 
-export function MoveButtons({ id, moves }: { id: string; moves: FloorState[] }) {
+export function MoveButtons({ id, from, moves }: { id: string; from: FloorState; moves: FloorState[] }) {
   const { run, pending } = useRun();
   return (
     <span className="inline-flex flex-wrap gap-1">
       {moves.map((to) => (
         <button key={to} type="button" className="btn-quiet px-2 py-1 text-xs" disabled={pending} onClick={() => run(() => movePlateAction({ id, to }))}>
-          {LABEL[to]}
+          {to === "to_inspect" && (from === "reprint_needed" || from === "done") ? "Inspect again" : LABEL[to]}
         </button>
       ))}
     </span>

@@ -12,10 +12,12 @@ import { InspectionForm, MoveButtons, ReprintButton } from "../../_components/fl
 export const metadata: Metadata = { title: "Plate on the floor" };
 
 export default async function FloorPlatePage({ params }: { params: Promise<{ id: string }> }) {
-  const caller = await requireCaller();
+  const { id } = await params;
+  // A phone scanning the sheet's QR code comes back here after signing in.
+  const caller = await requireCaller(`/floor/plates/${id}`);
   let f;
   try {
-    f = await plateFloor(caller.workspace.id, (await params).id);
+    f = await plateFloor(caller.workspace.id, id);
   } catch (err) {
     if (err instanceof UserError && err.code === "not_found") notFound();
     throw err;
@@ -51,11 +53,11 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
             </>
           ) : null}
         </p>
-        {state && mayInspect ? <MoveButtons id={plate.id} moves={nextMoves(state)} /> : null}
+        {state && mayInspect ? <MoveButtons id={plate.id} from={state} moves={nextMoves(state)} /> : null}
       </header>
       {layout ? (
         <section className="card space-y-2 p-3">
-          <div className="flex justify-center [&>svg]:h-auto [&>svg]:max-h-72 [&>svg]:w-full" dangerouslySetInnerHTML={{ __html: slabTopSvg(layout, pieces, 480, 320) }} />
+          <div className="flex justify-center [&>svg]:h-auto [&>svg]:max-h-72 [&>svg]:w-full" dangerouslySetInnerHTML={{ __html: slabTopSvg(layout, pieces, 480, 320, new Set(state === "reprint_needed" ? toReprint.map((r) => r.number) : [])) }} />
           <p className="flex flex-wrap gap-3 text-sm">
             <a className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=a4`}>
               Plate map (PDF, A4)

@@ -1,0 +1,62 @@
+import { expect, test } from "@playwright/test";
+import { signInAs } from "./helpers";
+
+// The operator at the packing bench: floor queue → a plate → piece 3 missing → the reprint → both
+// plates' statuses; the plate's maker (the demo designer) has the e-mail in the demo outbox.
+test("an operator inspects a plate from the floor queue, marks piece 3 missing and makes the reprint", async ({ browser }) => {
+  test.setTimeout(120_000);
+  // The designer makes a fresh plate in the slab editor, so the plate has a maker to tell.
+  const designer = await browser.newPage({ viewport: { width: 1440, height: 1000 } });
+  await signInAs(designer, "designer");
+  await designer.goto("/kits");
+  await designer.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await expect(designer.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
+  await designer.getByRole("button", { name: "Make the plate" }).click();
+  await expect(designer.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
+  const plateId = /\/api\/plates\/([^/]+)\/download/.exec((await designer.getByRole("link", { name: "Download STL" }).getAttribute("href"))!)![1]!;
+  await designer.close();
+
+  // A phone that scans the sheet's QR code while signed out comes back to the plate after signing in.
+  const phone = await browser.newPage({ viewport: { width: 390, height: 844 } });
+  await phone.goto(`/floor/plates/${plateId}`);
+  await expect(phone).toHaveURL(/\/sign-in\?next=%2Ffloor%2Fplates%2F/);
+  await phone.close();
+
+  // The operator, on a tablet-sized screen.
+  const page = await browser.newPage({ viewport: { width: 820, height: 1180 } });
+  await signInAs(page, "operator");
+  await page.goto("/floor");
+  const row = page.getByRole("list", { name: "to print" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) });
+  await expect(row).toBeVisible();
+  await row.getByRole("button", { name: "Printing" }).click();
+  await expect(page.getByRole("list", { name: "printing" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) })).toBeVisible();
+  await page.getByRole("list", { name: "printing" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) }).getByRole("link").click();
+  await expect(page.getByTestId("floor-state")).toContainText("printing");
+  await expect(page.getByRole("link", { name: "Plate map (PDF, A4)" })).toBeVisible();
+
+  await page.getByTestId("inspect-piece-3").getByText("missing", { exact: true }).click();
+  await page.getByLabel("Note for piece 3").fill("not on the slab when it came off the bed");
+  await page.getByRole("button", { name: /Record the inspection \(1 to reprint\)/ }).click();
+  await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
+  await page.screenshot({ path: ".data/test-results/screenshots/floor-inspection.png", fullPage: true });
+  await page.getByRole("button", { name: "Make the reprint (1 piece)" }).click();
+
+  // The reprint's page: it names the original and its status; the original lists the reprint.
+  await expect(page.getByTestId("floor-state")).toContainText("reprint of", { timeout: 15_000 });
+  await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
+  await expect.poll(async () => { await page.reload(); return page.getByTestId("floor-state").textContent(); }, { timeout: 30_000 }).toMatch(/Status: to print/);
+  await page.getByRole("link", { name: plateId.slice(0, 8) }).click();
+  await expect(page.getByTestId("reprint-row")).toContainText("1 piece");
+  await expect(page.getByTestId("reprint-row")).toContainText("to print");
+  await page.goto("/floor");
+  await expect(page.getByRole("list", { name: "reprint needed" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) })).toBeVisible();
+  await page.close();
+
+  // The maker's e-mail, read by the owner in the demo outbox.
+  const owner = await browser.newPage();
+  await signInAs(owner, "owner");
+  await owner.goto("/settings/outbox");
+  const mail = owner.getByTestId("outbox-message").filter({ hasText: "dario@marrowby.example" }).filter({ hasText: "to reprint" }).first();
+  await expect(mail).toBeVisible();
+  await owner.close();
+});
