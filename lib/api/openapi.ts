@@ -120,6 +120,14 @@ export function openApiDocument() {
           responses: { "200": { description: "The file", content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } } } }, ...errors(400, 401, 403, 404, 409, 429) },
         },
       },
+      "/api/v1/plates/{id}/map.pdf": {
+        get: {
+          operationId: "getPlateMap",
+          summary: "The plate map sheet as PDF: top view to scale, piece table, QR code to the plate's inspection page (scope plates:read)",
+          parameters: [idParam("id"), { name: "paper", in: "query", required: false, schema: { type: "string", enum: ["a4", "letter"] } }],
+          responses: { "200": { description: "One page", content: { "application/pdf": { schema: { type: "string", contentMediaType: "application/pdf" } } } }, ...errors(400, 401, 403, 404, 409, 429) },
+        },
+      },
       "/api/v1/templates": {
         get: { operationId: "listTemplates", summary: "The workspace's templates and the starters (scope templates:read)", responses: { "200": { description: "Templates", content: { "application/json": { schema: ref("TemplateList") } } }, ...errors(401, 403, 429) } },
       },
