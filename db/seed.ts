@@ -4,8 +4,8 @@
  */
 import { promises as fs } from "node:fs";
 import path from "node:path";
-import { and, eq } from "drizzle-orm";
-import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, templates, templateVersions, users, workspaces, type Role } from "@/db/schema";
+import { and, eq, isNull } from "drizzle-orm";
+import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, templates, templateVersions, users, workspaceBilling, workspaces, type Role } from "@/db/schema";
 import { templateBodySchema } from "@/lib/geometry/template";
 import { demoTemplate, STARTERS } from "@/lib/templates/starters";
 import { generateApiKey, hashApiKey } from "@/lib/auth/api-keys";
@@ -150,6 +150,13 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
           { kitId: k!.id, partId: partIds[1]!, quantity: 2, position: 1 },
         ]);
       }
+
+      // The demo shop is on the Farm plan (the order API, logos, room for the benchmarks), given rather
+      // than bought: no subscription behind it.
+      await tx
+        .insert(workspaceBilling)
+        .values({ workspaceId: ws.id, plan: "farm", status: "active" })
+        .onConflictDoUpdate({ target: workspaceBilling.workspaceId, set: { plan: "farm", status: "active", graceUntil: null }, setWhere: isNull(workspaceBilling.subscriptionId) });
 
       // Starter templates (shared by every workspace), then the demo shop's own branded template.
       for (const st of STARTERS) {

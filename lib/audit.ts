@@ -22,7 +22,10 @@ export type AuditAction =
   | "template_duplicated"
   | "template_archived"
   | "template_unarchived"
-  | "template_renamed";
+  | "template_renamed"
+  | "checkout_started"
+  | "plan_changed"
+  | "billing_event";
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 

@@ -22,6 +22,14 @@ const schema = z.object({
   S3_BUCKET: z.string().optional(),
   S3_ACCESS_KEY_ID: z.string().optional(),
   S3_SECRET_ACCESS_KEY: z.string().optional(),
+  /** Payments (the stripe SDK). In development and tests STRIPE_API_BASE points it at our local fake. */
+  STRIPE_SECRET_KEY: z.string().default("sk_test_local_fake"),
+  STRIPE_WEBHOOK_SECRET: z.string().default("whsec_local_fake_secret"),
+  STRIPE_API_BASE: z.string().url().optional(),
+  STRIPE_PRICE_WORKSHOP: z.string().default("price_workshop_monthly"),
+  STRIPE_PRICE_FARM: z.string().default("price_farm_monthly"),
+  /** Days a workspace keeps its paid plan after a failed payment. */
+  SLAB_BILLING_GRACE_DAYS: z.coerce.number().min(0).default(7),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -11,5 +11,5 @@ if (!/\/slabwright_test(\?|$)/.test(url)) {
   process.exit(1);
 }
 const pool = createPool(url);
-await pool.query("truncate rate_limits, dev_outbox");
+await pool.query("truncate rate_limits, dev_outbox, plate_usage");
 await pool.end();

@@ -143,8 +143,13 @@ export function ensureBuild() {
   fs.writeFileSync(stamp, `${want}\n`);
 }
 
-export function appEnv({ port, dbName, smtpPort = 2525 }) {
+export function appEnv({ port, dbName, smtpPort = 2525, paymentsPort = 12111 }) {
+  // Payments go to our local fake unless real keys are configured.
+  const fakePayments = !process.env.STRIPE_SECRET_KEY;
   return {
+    ...(fakePayments
+      ? { STRIPE_API_BASE: `http://127.0.0.1:${paymentsPort}`, SLAB_PAYMENTS_PORT: String(paymentsPort), SLAB_FAKE_PAYMENTS: "1", SLAB_BILLING_WEBHOOK_URL: `http://localhost:${port}/api/billing/webhook` }
+      : {}),
     SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}`,
     SLAB_SMTP_PORT: String(smtpPort),
     // The fake SMTP server catches mail unless a real relay is configured.
@@ -215,6 +220,12 @@ export function startFakeSmtp(env) {
   if (process.env.SMTP_URL) return null;
   // Node itself with tsx's loader (not the tsx wrapper), so stopping the child stops the server.
   return spawn(process.execPath, ["--import", "tsx", "scripts/fake-smtp.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
+}
+
+/** Our fake payment provider on loopback (development and tests), unless real keys are configured. */
+export function startFakePayments(env) {
+  if (env.SLAB_FAKE_PAYMENTS !== "1") return null;
+  return spawn(process.execPath, ["--import", "tsx", "scripts/fake-payments.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
 }
 
 /** The build worker (queue consumer with its thread pool): `npm start` and `npm test` run one. */

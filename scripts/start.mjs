@@ -16,6 +16,7 @@ import {
   log,
   migrateAndSeed,
   spawnChild,
+  startFakePayments,
   startFakeSmtp,
   startWorker,
   startPostgres,
@@ -48,6 +49,7 @@ ensureDependencies();
 const startedPg = startPostgres();
 let child;
 let smtp = null;
+let payments = null;
 let worker = null;
 let stopping = false;
 
@@ -55,8 +57,8 @@ function shutdown(code) {
   if (stopping) return;
   stopping = true;
   log("stopping");
-  // Stop the app, the mail fake and the worker, wait for them (at most 8 s), then the database.
-  const children = [child, smtp, worker].filter((c) => c && c.exitCode === null && c.signalCode === null);
+  // Stop the app, the mail and payment fakes and the worker, wait for them (at most 8 s), then the database.
+  const children = [child, smtp, payments, worker].filter((c) => c && c.exitCode === null && c.signalCode === null);
   let left = children.length;
   const finish = () => {
     // npm start owns the database: stop it (also one left running by an earlier crash) unless a
@@ -90,6 +92,7 @@ try {
   migrateAndSeed(env);
   if (!dev) ensureBuild();
   smtp = startFakeSmtp(env);
+  payments = startFakePayments(env);
   worker = startWorker(env);
 
   child = spawnChild(bin("next"), [dev ? "dev" : "start", "-H", "127.0.0.1", "-p", String(port)], env);

@@ -15,6 +15,7 @@ import {
   migrateAndSeed,
   run,
   spawnChild,
+  startFakePayments,
   startFakeSmtp,
   startWorker,
   waitForHttp,
@@ -42,7 +43,7 @@ fs.mkdirSync(resultsDir, { recursive: true });
 const port = Number(process.env.SLAB_TEST_PORT ?? 3100);
 const dbName = "slabwright_test";
 const env = {
-  ...appEnv({ port, dbName, smtpPort: Number(process.env.SLAB_TEST_SMTP_PORT ?? 2526) }),
+  ...appEnv({ port, dbName, smtpPort: Number(process.env.SLAB_TEST_SMTP_PORT ?? 2526), paymentsPort: Number(process.env.SLAB_TEST_PAYMENTS_PORT ?? 12112) }),
   NODE_ENV: "test",
   SLAB_CREDENTIALS_FILE: path.join(DATA, "demo-credentials.test.json"),
   SLAB_TEST_PORT: String(port),
@@ -61,6 +62,7 @@ function readJson(file) {
 }
 
 let smtp = null;
+let payments = null;
 let worker = null;
 let stopApp = () => {};
 let cleaned = false;
@@ -70,6 +72,7 @@ function cleanUp() {
   cleaned = true;
   stopApp();
   smtp?.kill("SIGTERM");
+  payments?.kill("SIGTERM");
   worker?.kill("SIGTERM");
   // Workers a test started in place of one it killed.
   try {
@@ -92,6 +95,7 @@ try {
   migrateAndSeed(env);
   run(bin("tsx"), ["scripts/reset-test-state.ts"], { env });
   smtp = startFakeSmtp(env);
+  payments = startFakePayments(env);
   // The build worker for the plate API tests; webhooks may call the tests' receiver on loopback.
   Object.assign(env, { SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost", SLAB_JOB_EXPIRY_S: "6", SLAB_QUEUE_MAINTENANCE_S: "1", SLAB_THREAD_MAX_BUILDS: "5" });
   worker = startWorker(env);

@@ -4,3 +4,4 @@ export * from "./parts";
 export * from "./plates";
 export * from "./accounts";
 export * from "./floor";
+export * from "./billing";

@@ -11,6 +11,7 @@ import { notFound } from "@/lib/auth/errors";
 import { sniffFormat } from "@/lib/geometry/import";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
+import { meterPlate } from "@/lib/billing/service";
 import { versionForPlate } from "@/lib/templates/service";
 import { env } from "@/lib/env";
 import { enqueueBuild, PLATE_CHANNEL } from "@/lib/jobs/queue";
@@ -151,6 +152,8 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
   const found = idempotencyKey ? await priorPlate(caller, idempotencyKey, hash) : null;
   if (found) return { plate: found, replay: true };
   const plate = await db().transaction(async (tx) => {
+    // Counted against the plan in the same transaction as the plate: past the quota, nothing is stored.
+    await meterPlate(tx, caller.workspaceId);
     const [row] = await tx
       .insert(plates)
       .values({ workspaceId: caller.workspaceId, kitId: r.kitId ?? null, source: "api", status: "building", options: r.storedOptions as Record<string, unknown>, variables: r.variables, templateVersionId: r.template?.versionId ?? null, input: r.input, callbackUrl: r.callbackUrl ?? null, title: r.title, pieceCount: r.input.parts.reduce((s, p) => s + p.quantity, 0) * r.options.layout.copies })
@@ -184,10 +187,14 @@ export async function remakePlate(workspaceId: string, plateId: string, userId: 
   const [old] = await db().select().from(plates).where(and(eq(plates.id, plateId), eq(plates.workspaceId, workspaceId)));
   if (!old) throw notFound("plate");
   if (!old.input) throw new ApiProblem(409, "not_remakeable", "This plate has no stored inputs to make it from.");
-  const [row] = await db()
-    .insert(plates)
-    .values({ workspaceId, kitId: old.kitId, templateVersionId: old.templateVersionId, source: old.source, status: "building", options: old.options, variables: old.variables, input: old.input, title: old.title, pieceCount: old.pieceCount, createdBy: userId })
-    .returning();
+  const row = await db().transaction(async (tx) => {
+    await meterPlate(tx, workspaceId);
+    const [r] = await tx
+      .insert(plates)
+      .values({ workspaceId, kitId: old.kitId, templateVersionId: old.templateVersionId, source: old.source, status: "building", options: old.options, variables: old.variables, input: old.input, title: old.title, pieceCount: old.pieceCount, createdBy: userId })
+      .returning();
+    return r;
+  });
   try {
     const jobId = await enqueueBuild(row!.id);
     const [withJob] = await db().update(plates).set({ jobId }).where(eq(plates.id, row!.id)).returning();

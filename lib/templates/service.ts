@@ -7,6 +7,7 @@ import { UserError } from "@/lib/auth/errors";
 import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { describeChanges, templateBodySchema, type TemplateBody, type TemplateVariableDef } from "@/lib/geometry/template";
+import { billingOf } from "@/lib/billing/service";
 import { enqueueThumbnail } from "@/lib/jobs/queue";
 
 /**
@@ -91,8 +92,16 @@ async function writable(tx: Parameters<Parameters<ReturnType<typeof db>["transac
   return t;
 }
 
+/** Logos come with the paid plans. */
+async function checkPlan(actor: Actor, body: TemplateBody) {
+  if (!body.options.marks.logo) return;
+  const b = await billingOf(actor.workspaceId);
+  if (!b.effective.logos) throw new UserError("plan_limit", `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade under Settings → Billing.`, "options.marks.logo");
+}
+
 export async function createTemplate(actor: Actor, input: { name: string; description?: string; body: unknown; note?: string }): Promise<{ id: string; versionId: string }> {
   const body = checkBody(input.body);
+  await checkPlan(actor, body);
   const out = await db().transaction(async (tx) => {
     const [t] = await tx.insert(templates).values({ workspaceId: actor.workspaceId, name: input.name.trim(), description: input.description?.trim() ?? "", createdBy: actor.userId }).returning();
     const [v] = await tx
@@ -108,6 +117,7 @@ export async function createTemplate(actor: Actor, input: { name: string; descri
 
 export async function saveVersion(actor: Actor, id: string, input: { body: unknown; note?: string; restoredFrom?: number }): Promise<{ version: number; versionId: string }> {
   const body = checkBody(input.body);
+  await checkPlan(actor, body);
   const out = await db().transaction(async (tx) => {
     const t = await writable(tx, actor, id);
     const [prev] = await tx.select().from(templateVersions).where(and(eq(templateVersions.templateId, id), eq(templateVersions.version, t.currentVersion)));

@@ -9,7 +9,7 @@ export default async function SettingsLayout({ children }: { children: ReactNode
   const caller = await requireCaller();
   const owner = can(caller.role, "members:manage");
   const items = [{ href: "/settings", label: "People" }];
-  if (owner) items.push({ href: "/settings/api-keys", label: "API keys" }, { href: "/settings/audit", label: "Audit log" });
+  if (owner) items.push({ href: "/settings/billing", label: "Billing" }, { href: "/settings/api-keys", label: "API keys" }, { href: "/settings/audit", label: "Audit log" });
   if (owner && env().SLAB_FAKE_SMTP === "1") items.push({ href: "/settings/outbox", label: "Outbox (demo)" });
   return (
     <>

@@ -1,0 +1,196 @@
+import "server-only";
+import { and, desc, eq, sql } from "drizzle-orm";
+import Stripe from "stripe";
+import { db, type Db } from "@/db";
+import { billingEvents, invoices, plateUsage, workspaceBilling } from "@/db/schema";
+import { ApiProblem } from "@/lib/api/respond";
+import { audit } from "@/lib/audit";
+import { UserError } from "@/lib/auth/errors";
+import { env } from "@/lib/env";
+import { PLANS, type Plan, type PlanId } from "./plans";
+
+type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
+
+let client: Stripe | undefined;
+/** The payments SDK; STRIPE_API_BASE (development, tests) points it at our local fake server. */
+export function payments(): Stripe {
+  if (client) return client;
+  const e = env();
+  const base = e.STRIPE_API_BASE ? new URL(e.STRIPE_API_BASE) : null;
+  client = new Stripe(e.STRIPE_SECRET_KEY, base ? { host: base.hostname, port: Number(base.port || (base.protocol === "https:" ? 443 : 80)), protocol: base.protocol === "https:" ? "https" : "http", maxNetworkRetries: 1 } : { maxNetworkRetries: 2 });
+  return client;
+}
+
+export type Billing = typeof workspaceBilling.$inferSelect & { effective: Plan };
+
+const monthStart = (d = new Date()) => new Date(Date.UTC(d.getUTCFullYear(), d.getUTCMonth(), 1));
+
+/** A workspace's billing, with a grace period that has run out turned into the free plan. */
+export async function billingOf(workspaceId: string, tx: Tx | Db = db()): Promise<Billing> {
+  let [b] = await tx.select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, workspaceId));
+  if (!b) {
+    [b] = await tx.insert(workspaceBilling).values({ workspaceId }).onConflictDoNothing().returning();
+    b ??= (await tx.select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, workspaceId)))[0]!;
+  }
+  if (b.status === "grace" && b.graceUntil && b.graceUntil.getTime() < Date.now()) {
+    [b] = await tx.update(workspaceBilling).set({ plan: "bench", status: "canceled", graceUntil: null, updatedAt: new Date() }).where(eq(workspaceBilling.workspaceId, workspaceId)).returning();
+    await audit({ workspaceId, action: "plan_changed", details: { to: "bench", reason: "grace period ended after a failed payment" } }, tx as Tx);
+  }
+  return { ...b!, effective: PLANS[b!.plan] };
+}
+
+export function periodStart(b: Billing): Date {
+  return b.plan !== "bench" && b.periodStart ? b.periodStart : monthStart();
+}
+
+export async function usageOf(b: Billing, tx: Tx | Db = db()): Promise<number> {
+  const [u] = await tx.select().from(plateUsage).where(and(eq(plateUsage.workspaceId, b.workspaceId), eq(plateUsage.periodStart, periodStart(b))));
+  return u?.plates ?? 0;
+}
+
+/**
+ * Count one plate against the plan, inside the transaction that stores the plate: past the quota the
+ * whole transaction is undone and the caller gets 402 plan_limit.
+ */
+export async function meterPlate(tx: Tx, workspaceId: string, count = 1): Promise<void> {
+  // One writer at a time per workspace, so two requests cannot both take the last plate.
+  await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`usage:${workspaceId}`}))`);
+  const b = await billingOf(workspaceId, tx);
+  const start = periodStart(b);
+  const [row] = await tx
+    .insert(plateUsage)
+    .values({ workspaceId, periodStart: start, plates: count })
+    .onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: sql`${plateUsage.plates} + ${count}` } })
+    .returning();
+  if (row!.plates > b.effective.platesPerPeriod) {
+    throw new ApiProblem(402, "plan_limit", `This workspace has made its ${b.effective.platesPerPeriod} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: row!.plates - count });
+  }
+}
+
+function nextPeriod(b: Billing, start: Date): Date {
+  if (b.plan !== "bench" && b.periodEnd) return b.periodEnd;
+  return new Date(Date.UTC(start.getUTCFullYear(), start.getUTCMonth() + 1, 1));
+}
+
+export function buildPriority(plan: PlanId): number {
+  return PLANS[plan].buildPriority;
+}
+
+/** Checkout for a paid plan: the provider's hosted page, back to the billing page afterwards. */
+export async function startCheckout(actor: { workspaceId: string; userId: string; email: string }, plan: PlanId): Promise<string> {
+  const p = PLANS[plan];
+  if (!p.priceEnv) throw new UserError("invalid", "The Bench plan needs no checkout.");
+  const b = await billingOf(actor.workspaceId);
+  if (b.plan === plan && b.status !== "canceled") throw new UserError("invalid", `The workspace is on the ${p.name} plan already.`);
+  let customer = b.customerId;
+  if (!customer) {
+    const c = await payments().customers.create({ email: actor.email, metadata: { workspaceId: actor.workspaceId } });
+    customer = c.id;
+    await db().update(workspaceBilling).set({ customerId: customer, updatedAt: new Date() }).where(eq(workspaceBilling.workspaceId, actor.workspaceId));
+  }
+  const back = new URL("/settings/billing", env().AUTH_URL);
+  const session = await payments().checkout.sessions.create({
+    mode: "subscription",
+    customer,
+    line_items: [{ price: env()[p.priceEnv], quantity: 1 }],
+    success_url: `${back}?checkout=done`,
+    cancel_url: `${back}?checkout=cancelled`,
+    metadata: { workspaceId: actor.workspaceId, plan },
+    subscription_data: { metadata: { workspaceId: actor.workspaceId, plan } },
+  });
+  await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "checkout_started", details: { plan } });
+  if (!session.url) throw new Error("the payment provider gave no checkout page");
+  return session.url;
+}
+
+export async function billingPortal(workspaceId: string): Promise<string> {
+  const b = await billingOf(workspaceId);
+  if (!b.customerId) throw new UserError("invalid", "There is nothing to manage yet: choose a paid plan first.");
+  const s = await payments().billingPortal.sessions.create({ customer: b.customerId, return_url: new URL("/settings/billing", env().AUTH_URL).toString() });
+  return s.url;
+}
+
+const planOfPrice = (price: string | undefined): PlanId | null => (price === env().STRIPE_PRICE_WORKSHOP ? "workshop" : price === env().STRIPE_PRICE_FARM ? "farm" : null);
+const at = (s: number | null | undefined) => (s ? new Date(s * 1000) : null);
+
+type Obj = Record<string, unknown> & { customer?: string | null; metadata?: Record<string, string> | null };
+
+/**
+ * A signed event from the payment provider. Verified with the SDK; applied at most once (the event
+ * id is the key); applied in event-time order (an event older than the last one applied to the
+ * workspace is recorded and changes nothing). Returns what happened.
+ */
+export async function handleBillingEvent(raw: string, signature: string | null): Promise<"applied" | "duplicate" | "stale" | "ignored" | "unknown_customer"> {
+  let event: Stripe.Event;
+  try {
+    event = payments().webhooks.constructEvent(raw, signature ?? "", env().STRIPE_WEBHOOK_SECRET);
+  } catch (err) {
+    throw new ApiProblem(400, "bad_signature", `The event's signature does not verify: ${err instanceof Error ? err.message : String(err)}`);
+  }
+  const obj = event.data.object as unknown as Obj;
+  return db().transaction(async (tx) => {
+    const customer = typeof obj.customer === "string" ? obj.customer : null;
+    let workspaceId = obj.metadata?.workspaceId ?? null;
+    if (!workspaceId && customer) workspaceId = (await tx.select({ id: workspaceBilling.workspaceId }).from(workspaceBilling).where(eq(workspaceBilling.customerId, customer)))[0]?.id ?? null;
+    const created = new Date(event.created * 1000);
+    const inserted = await tx.insert(billingEvents).values({ id: event.id, type: event.type, workspaceId, createdAt: created, outcome: "pending" }).onConflictDoNothing().returning();
+    if (!inserted.length) return "duplicate";
+    const done = async (outcome: "applied" | "stale" | "ignored" | "unknown_customer") => {
+      await tx.update(billingEvents).set({ outcome }).where(eq(billingEvents.id, event.id));
+      return outcome;
+    };
+    if (!workspaceId) return done("unknown_customer");
+    await tx.execute(sql`select 1 from workspace_billing where workspace_id = ${workspaceId} for update`);
+    const b = await billingOf(workspaceId, tx);
+    if (b.lastEventAt && created.getTime() < b.lastEventAt.getTime()) return done("stale");
+    const set: Partial<typeof workspaceBilling.$inferInsert> = { lastEventAt: created, updatedAt: new Date() };
+    let to: PlanId | null = null;
+    switch (event.type) {
+      case "checkout.session.completed": {
+        to = (obj.metadata?.plan as PlanId | undefined) ?? null;
+        Object.assign(set, { customerId: customer, subscriptionId: typeof obj.subscription === "string" ? obj.subscription : null, status: "active", graceUntil: null, ...(to ? { plan: to } : {}) });
+        break;
+      }
+      case "customer.subscription.created":
+      case "customer.subscription.updated": {
+        const items = (obj.items as { data?: { price?: { id?: string }; current_period_start?: number; current_period_end?: number }[] } | undefined)?.data ?? [];
+        to = planOfPrice(items[0]?.price?.id) ?? ((obj.metadata?.plan as PlanId | undefined) ?? null);
+        const status = obj.status as string;
+        Object.assign(set, {
+          subscriptionId: obj.id as string,
+          ...(to ? { plan: to } : {}),
+          periodStart: at((obj.current_period_start as number | undefined) ?? items[0]?.current_period_start),
+          periodEnd: at((obj.current_period_end as number | undefined) ?? items[0]?.current_period_end),
+          ...(status === "active" ? { status: "active", graceUntil: null } : {}),
+        });
+        break;
+      }
+      case "customer.subscription.deleted":
+        to = "bench";
+        Object.assign(set, { plan: "bench", status: "canceled", subscriptionId: null, graceUntil: null, periodStart: null, periodEnd: null });
+        break;
+      case "invoice.paid":
+      case "invoice.payment_failed": {
+        const paid = event.type === "invoice.paid";
+        const line = (obj.lines as { data?: { period?: { start?: number; end?: number } }[] } | undefined)?.data?.[0]?.period;
+        await tx
+          .insert(invoices)
+          .values({ id: obj.id as string, workspaceId, amountCents: Number(paid ? obj.amount_paid : obj.amount_due) || 0, currency: String(obj.currency ?? "eur"), status: paid ? "paid" : "failed", periodStart: at(line?.start ?? (obj.period_start as number)), periodEnd: at(line?.end ?? (obj.period_end as number)), createdAt: created })
+          .onConflictDoUpdate({ target: invoices.id, set: { status: paid ? "paid" : "failed" } });
+        if (paid) Object.assign(set, { status: "active", graceUntil: null });
+        else Object.assign(set, { status: "grace", graceUntil: new Date(Date.now() + env().SLAB_BILLING_GRACE_DAYS * 86_400_000) });
+        break;
+      }
+      default:
+        await tx.update(workspaceBilling).set({ lastEventAt: b.lastEventAt }).where(eq(workspaceBilling.workspaceId, workspaceId));
+        return done("ignored");
+    }
+    await tx.update(workspaceBilling).set(set).where(eq(workspaceBilling.workspaceId, workspaceId));
+    await audit({ workspaceId, action: to && to !== b.plan ? "plan_changed" : "billing_event", details: { event: event.type, id: event.id, ...(to ? { from: b.plan, to } : {}), ...(set.status ? { status: set.status } : {}) } }, tx);
+    return done("applied");
+  });
+}
+
+export async function invoicesOf(workspaceId: string) {
+  return db().select().from(invoices).where(eq(invoices.workspaceId, workspaceId)).orderBy(desc(invoices.createdAt)).limit(50);
+}
