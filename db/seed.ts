@@ -151,12 +151,12 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
         ]);
       }
 
-      // The demo shop is on the Farm plan (the order API, logos, room for the benchmarks), given rather
-      // than bought: no subscription behind it.
+      // The demo shop is on the Workshop plan (the order API, logos), given rather than bought: no
+      // subscription behind it, so its owner can try an upgrade to Farm on the local payment page.
       await tx
         .insert(workspaceBilling)
-        .values({ workspaceId: ws.id, plan: "farm", status: "active" })
-        .onConflictDoUpdate({ target: workspaceBilling.workspaceId, set: { plan: "farm", status: "active", graceUntil: null }, setWhere: isNull(workspaceBilling.subscriptionId) });
+        .values({ workspaceId: ws.id, plan: "workshop", status: "active" })
+        .onConflictDoUpdate({ target: workspaceBilling.workspaceId, set: { plan: "workshop", status: "active", graceUntil: null }, setWhere: isNull(workspaceBilling.subscriptionId) });
 
       // Starter templates (shared by every workspace), then the demo shop's own branded template.
       for (const st of STARTERS) {

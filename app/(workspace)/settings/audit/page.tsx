@@ -21,6 +21,16 @@ const LABEL: Record<string, string> = {
   workspace_created: "created the workspace",
   api_key_created: "created the API key",
   api_key_revoked: "revoked the API key",
+  template_created: "created the template",
+  template_version_saved: "saved a new version of the template",
+  template_version_restored: "restored a version of the template",
+  template_duplicated: "duplicated a template as",
+  template_archived: "archived the template",
+  template_unarchived: "brought back the template",
+  template_renamed: "renamed the template",
+  checkout_started: "started a checkout",
+  plan_changed: "plan changed",
+  billing_event: "payment provider event",
 };
 
 export default async function AuditPage({ searchParams }: { searchParams: Promise<{ page?: string }> }) {

@@ -34,13 +34,14 @@ export default async function BillingPage({ searchParams }: { searchParams: Prom
           <dt className="text-muted">Period from</dt>
           <dd>{periodStart(b).toISOString().slice(0, 10)}</dd>
           <dt className="text-muted">API keys</dt>
-          <dd>{plan.apiKeys === 0 ? "none" : `up to ${plan.apiKeys}`}</dd>
+          <dd>{plan.apiKeys === 0 ? "none" : plan.apiKeys >= 1000 ? "as many as you need" : `up to ${plan.apiKeys}`}</dd>
           <dt className="text-muted">Logos on templates</dt>
           <dd>{plan.logos ? "yes" : "no"}</dd>
         </dl>
         <progress className="h-1.5 w-full max-w-md" max={plan.platesPerPeriod} value={Math.min(used, plan.platesPerPeriod)} aria-label="Plates used this period" />
         <div className="flex flex-wrap gap-2 pt-1">
-          {PLAN_ORDER.filter((id) => id !== "bench" && id !== b.plan).map((id) => (
+          {/* With a subscription running, plan changes and cancelling go through the provider's billing portal. */}
+          {b.subscriptionId ? null : PLAN_ORDER.filter((id) => id !== "bench" && id !== b.plan).map((id) => (
             <UpgradeButton key={id} plan={id as "workshop" | "farm"} label={`Move to ${PLANS[id].name} · ${money(PLANS[id].monthlyCents)}`} />
           ))}
           {b.customerId ? <PortalButton /> : null}
