@@ -24,3 +24,30 @@ test("the demo owner upgrades through the hosted payment page and sees the new p
   await page.goto("/settings/audit");
   await expect(page.getByText("plan changed").first()).toBeVisible();
 });
+
+test("at the plan's limit the slab editor says so, with the way to upgrade", async ({ page }) => {
+  test.setTimeout(90_000);
+  const pg = (await import("pg")).default;
+  const client = new pg.Client({ connectionString: process.env.DATABASE_URL });
+  await client.connect();
+  // The demo shop's counter for its current period set to far past any plan's quota.
+  const { rows } = await client.query(`select b.workspace_id, b.plan, b.period_start from workspace_billing b join workspaces w on w.id = b.workspace_id where w.slug = 'marrowby'`);
+  const b = rows[0] as { workspace_id: string; plan: string; period_start: Date | null };
+  const now = new Date();
+  const start = b.plan !== "bench" && b.period_start ? b.period_start : new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), 1));
+  const up = `insert into plate_usage (workspace_id, period_start, plates) values ($1, $2, $3) on conflict (workspace_id, period_start) do update set plates = excluded.plates`;
+  await client.query(up, [b.workspace_id, start, 1_000_000]);
+  try {
+    await signInAs(page, "designer");
+    await page.goto("/kits");
+    await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+    await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
+    await page.getByRole("button", { name: "Make the plate" }).click();
+    await expect(page.getByTestId("make-status")).toContainText("failed");
+    await expect(page.getByTestId("make-status")).toContainText(/made its [\d,]+ plates for this billing period/);
+    await expect(page.getByTestId("toasts")).toContainText("upgrade under Settings → Billing");
+  } finally {
+    await client.query(up, [b.workspace_id, start, 0]);
+    await client.end();
+  }
+});
