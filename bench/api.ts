@@ -6,14 +6,8 @@
  *   SLAB_BENCH_URL=http://localhost:3000 npx tsx bench/api.ts
  */
 import { spawn } from "node:child_process";
-import { deflateRawSync } from "node:zlib";
 import { readdirSync, readFileSync } from "node:fs";
-import { buildPlate, newPartCache } from "../lib/geometry/build-plate";
-import { DEMO_PAWN_SEGMENTS, hexTile, pawn } from "../lib/geometry/demo-shapes";
-import { loadKernel } from "../lib/geometry/kernel";
-import { orientMesh } from "../lib/geometry/orient";
-import { benchFonts } from "./kit";
-import { parallelCeiling } from "./parallel-floor";
+import { buildLoop, ORDER_OPTIONS, parallelCeiling } from "./parallel-floor";
 
 const base = process.env.SLAB_BENCH_URL ?? "http://localhost:3000";
 const creds = JSON.parse(readFileSync(".data/demo-credentials.json", "utf8")) as { apiKey: string };
@@ -21,9 +15,6 @@ const kits = (await (await fetch(`${base}/api/v1/kits`, { headers: { authorizati
 const kitId = kits.kits[0]!.id;
 const N = Number(process.env.SLAB_BENCH_PLATES ?? 30);
 
-// The same deflate as the build threads use for 3MF.
-const deflateRaw = (d: Uint8Array) => deflateRawSync(d, { level: 1 });
-const ORDER_OPTIONS = { marks: { text: [{ value: "ORDER {order}" }, { value: "Thank you!", size: 4 }] } };
 
 /** CPU seconds used so far by each kind of process on this machine (Linux /proc), to show where it goes. */
 function cpuByKind(workerPid?: number): Record<string, number> {
@@ -80,26 +71,13 @@ async function runApi(threads: number) {
   return { perMin: lat.length / minutes, p50: lat[Math.floor(lat.length * 0.5)]!, p95: lat[Math.floor(lat.length * 0.95)]! };
 }
 
-// In-process floor: the same kit built back to back in this process.
-const kernel = await loadKernel();
-const fonts = benchFonts();
-const parts = [
-  { id: "tile", name: "Harbour tile", mesh: orientMesh(hexTile()), quantity: 4 },
-  { id: "pawn", name: "Beacon pawn", mesh: orientMesh(pawn(DEMO_PAWN_SEGMENTS)), quantity: 2 },
-];
-const cache = newPartCache(); // as the worker threads keep one
-buildPlate(kernel, { parts, fonts, formats: ["stl", "3mf"], cache, options: ORDER_OPTIONS, variables: { order: "19999" }, deflateRaw });
 // In-process, before and after the API runs (the machine's speed drifts); the faster of the two counts.
-const inProcess = () => {
-  const t0 = performance.now();
-  for (let i = 0; i < N; i++) buildPlate(kernel, { parts, fonts, formats: ["stl", "3mf"], cache, options: ORDER_OPTIONS, variables: { order: String(10000 + i) }, deflateRaw });
-  return N / ((performance.now() - t0) / 60_000);
-};
-const before = inProcess();
+const inProcess = () => buildLoop(N);
+const before = await inProcess();
 
 const one = await runApi(1);
 const two = await runApi(2);
-const after = inProcess();
+const after = await inProcess();
 const inProcessPerMin = Math.max(before, after);
 const f = (n: number) => n.toFixed(0);
 console.log(`in-process builds/min ${f(inProcessPerMin)} (the faster of ${f(before)} before and ${f(after)} after the API runs)`);

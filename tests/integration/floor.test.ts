@@ -1,7 +1,6 @@
 import { execFileSync } from "node:child_process";
 import { createHmac } from "node:crypto";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import http from "node:http";
 import { tmpdir } from "node:os";
 import path from "node:path";
 import { and, desc, eq, sql } from "drizzle-orm";
@@ -11,7 +10,7 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { devOutbox, inspections, kits, plates, users, workspaces } from "@/db/schema";
 import { firstPassYield, makeReprint, piecesOf, recordInspection } from "@/lib/floor/service";
-import { baseUrl } from "../support/http";
+import { baseUrl, startReceiver, type Received } from "../support/http";
 
 // The print floor against the started app and worker: the plate map PDF read back by pdf.js and its
 // QR code decoded from a raster made by poppler's pdftoppm; an inspection with a missing piece; yield.
@@ -98,24 +97,16 @@ describe("the plate map sheet", () => {
 });
 
 describe("inspection", () => {
-  let server: http.Server;
-  const received: { headers: http.IncomingHttpHeaders; body: string }[] = [];
+  let receiver: Awaited<ReturnType<typeof startReceiver>>;
+  let received: Received[];
   beforeAll(async () => {
-    server = http.createServer((req, res) => {
-      let body = "";
-      req.on("data", (c) => (body += c));
-      req.on("end", () => {
-        received.push({ headers: req.headers, body });
-        res.writeHead(200).end("ok");
-      });
-    });
-    await new Promise<void>((r) => server.listen(0, "127.0.0.1", r));
+    receiver = await startReceiver(200);
+    received = receiver.received;
   });
-  afterAll(() => new Promise<void>((r) => server.close(() => r())));
+  afterAll(() => receiver.close());
 
   it("one missing piece: the status follows, the maker is e-mailed, the callback is signed, the reprint holds exactly that piece", async () => {
-    const port = (server.address() as { port: number }).port;
-    const id = await makePlate({ callbackUrl: `http://127.0.0.1:${port}/slab-events` });
+    const id = await makePlate({ callbackUrl: receiver.url("/slab-events") });
     await db().update(plates).set({ createdBy: designerId }).where(eq(plates.id, id)); // made by the demo designer
     const [p] = await db().select().from(plates).where(eq(plates.id, id));
     expect(p!.floorState).toBe("to_print");

@@ -1,5 +1,4 @@
 import { createHmac } from "node:crypto";
-import http from "node:http";
 import { readFileSync } from "node:fs";
 import path from "node:path";
 import { eq } from "drizzle-orm";
@@ -12,7 +11,7 @@ import { generateApiKey } from "@/lib/auth/api-keys";
 import { importMesh } from "@/lib/geometry/import";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
-import { baseUrl } from "../support/http";
+import { baseUrl, startReceiver, type Received } from "../support/http";
 import { box } from "../support/meshes";
 
 // The plate API over HTTP against the started app and build worker, with the demo API key.
@@ -175,24 +174,16 @@ describe("POST /api/v1/plates", () => {
 });
 
 describe("webhooks", () => {
-  let server: http.Server;
-  const received: { headers: http.IncomingHttpHeaders; body: string }[] = [];
+  let receiver: Awaited<ReturnType<typeof startReceiver>>;
+  let received: Received[];
   beforeAll(async () => {
-    server = http.createServer((req, res) => {
-      let body = "";
-      req.on("data", (c) => (body += c));
-      req.on("end", () => {
-        received.push({ headers: req.headers, body });
-        res.writeHead(204).end();
-      });
-    });
-    await new Promise<void>((r) => server.listen(0, "127.0.0.1", () => r()));
+    receiver = await startReceiver();
+    received = receiver.received;
   });
-  afterAll(() => new Promise<void>((r) => server.close(() => r())));
+  afterAll(() => receiver.close());
 
   it("reaches a local receiver with a valid signature when the job ends", async () => {
-    const port = (server.address() as { port: number }).port;
-    const r = await post(form({ kit: kitId, callbackUrl: `http://127.0.0.1:${port}/hook` }), { prefer: "respond-async" });
+    const r = await post(form({ kit: kitId, callbackUrl: receiver.url("/hook") }), { prefer: "respond-async" });
     expect(r.status).toBe(202);
     const plateId = r.headers.get("x-plate-id");
     for (let i = 0; i < 100 && received.length === 0; i++) await new Promise((res) => setTimeout(res, 100));

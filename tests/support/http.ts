@@ -41,3 +41,22 @@ export async function signInOverHttp(email: string, password: string): Promise<H
     fetch: (path, init = {}) => fetch(`${baseUrl()}${path}`, { ...init, headers: { ...(init.headers as Record<string, string>), cookie: cookie() } }),
   };
 }
+
+export type Received = { headers: import("node:http").IncomingHttpHeaders; body: string };
+
+/** A webhook receiver on loopback that keeps every request it gets; answers `status`. */
+export async function startReceiver(status = 204): Promise<{ url: (path?: string) => string; received: Received[]; close: () => Promise<void> }> {
+  const http = await import("node:http");
+  const received: Received[] = [];
+  const server = http.createServer((req, res) => {
+    let body = "";
+    req.on("data", (c) => (body += c));
+    req.on("end", () => {
+      received.push({ headers: req.headers, body });
+      res.writeHead(status).end();
+    });
+  });
+  await new Promise<void>((r) => server.listen(0, "127.0.0.1", () => r()));
+  const port = (server.address() as { port: number }).port;
+  return { url: (path = "/") => `http://127.0.0.1:${port}${path}`, received, close: () => new Promise<void>((r) => server.close(() => r())) };
+}

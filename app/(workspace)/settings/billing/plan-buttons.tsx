@@ -4,18 +4,18 @@ import { useTransition } from "react";
 import { useToast } from "@/app/_components/toasts";
 import { checkoutAction, portalAction } from "./actions";
 
-/** Off to the payment provider's hosted page (checkout or the billing portal). */
-export function UpgradeButton({ plan, label }: { plan: "workshop" | "farm"; label: string }) {
+/** Off to the payment provider's hosted page: checkout for a plan, or the billing portal. */
+function ProviderButton({ go, label, primary }: { go: () => Promise<{ ok: true; data: { url: string } } | { ok: false; message: string }>; label: string; primary?: boolean }) {
   const toast = useToast();
   const [pending, start] = useTransition();
   return (
     <button
       type="button"
-      className="btn-primary px-3 py-1.5 text-sm"
+      className={`${primary ? "btn-primary" : "btn-quiet"} px-3 py-1.5 text-sm`}
       disabled={pending}
       onClick={() =>
         start(async () => {
-          const r = await checkoutAction({ plan });
+          const r = await go();
           if (r.ok) window.location.assign(r.data.url);
           else toast("problem", r.message);
         })
@@ -26,23 +26,10 @@ export function UpgradeButton({ plan, label }: { plan: "workshop" | "farm"; labe
   );
 }
 
+export function UpgradeButton({ plan, label }: { plan: "workshop" | "farm"; label: string }) {
+  return <ProviderButton go={() => checkoutAction({ plan })} label={label} primary />;
+}
+
 export function PortalButton() {
-  const toast = useToast();
-  const [pending, start] = useTransition();
-  return (
-    <button
-      type="button"
-      className="btn-quiet px-3 py-1.5 text-sm"
-      disabled={pending}
-      onClick={() =>
-        start(async () => {
-          const r = await portalAction({});
-          if (r.ok) window.location.assign(r.data.url);
-          else toast("problem", r.message);
-        })
-      }
-    >
-      Manage billing
-    </button>
-  );
+  return <ProviderButton go={() => portalAction({})} label="Manage billing" />;
 }
