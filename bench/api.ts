@@ -10,6 +10,8 @@ import { readdirSync, readFileSync } from "node:fs";
 import { buildLoop, ORDER_OPTIONS, parallelCeiling } from "./parallel-floor";
 
 const base = process.env.SLAB_BENCH_URL ?? "http://localhost:3000";
+/** What each request asks for: the STL file (default), or json (the plate's record without the file). */
+const FORMAT = process.env.SLAB_BENCH_FORMAT ?? "stl";
 const creds = JSON.parse(readFileSync(".data/demo-credentials.json", "utf8")) as { apiKey: string };
 const kits = (await (await fetch(`${base}/api/v1/kits`, { headers: { authorization: `Bearer ${creds.apiKey}` } })).json()) as { kits: { id: string }[] };
 const kitId = kits.kits[0]!.id;
@@ -49,7 +51,7 @@ async function runApi(threads: number) {
         next++;
         const f = new FormData();
         f.append("kit", kitId);
-        f.append("format", "stl");
+        f.append("format", FORMAT);
         // Every order engraves its own number, as real orders do (so no two slabs are the same).
         f.append("options", JSON.stringify(ORDER_OPTIONS));
         f.append("variables", JSON.stringify({ order: String(20000 + threads * 1000 + next) }));
