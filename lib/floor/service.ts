@@ -1,7 +1,7 @@
 import "server-only";
-import { and, asc, desc, eq, isNotNull, sql } from "drizzle-orm";
+import { and, asc, desc, eq, ilike, isNotNull, like, or, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { floorEvents, inspections, kits, memberships, plates, users, type FloorState, type PieceCheck, type Plate } from "@/db/schema";
+import { FLOOR_STATES, floorEvents, inspections, kits, memberships, plates, users, type FloorState, type PieceCheck, type Plate } from "@/db/schema";
 import { UserError } from "@/lib/auth/errors";
 import { meterPlate } from "@/lib/billing/service";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
@@ -46,21 +46,42 @@ async function plateOf(workspaceId: string, id: string, lock = false, tx = db())
 
 export const piecesOf = (p: Plate) => ((p.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? []);
 
-export async function floorQueue(workspaceId: string) {
+/**
+ * The floor by state: how many plates are in each, and the first 50 of each — the oldest first where
+ * plates wait their turn (to print, printing, to inspect, reprint needed), the newest first otherwise.
+ */
+export async function floorQueue(workspaceId: string, q?: string) {
+  const term = q?.trim();
+  const match = term ? or(like(plates.id, `${term.toLowerCase()}%`), ilike(kits.name, `%${term}%`), ilike(plates.title, `%${term}%`)) : undefined;
   const last = db()
     .selectDistinctOn([floorEvents.plateId], { plateId: floorEvents.plateId, at: floorEvents.at, by: users.name, byEmail: users.email })
     .from(floorEvents)
     .leftJoin(users, eq(users.id, floorEvents.byUserId))
+    .where(eq(floorEvents.workspaceId, workspaceId))
     .orderBy(floorEvents.plateId, desc(floorEvents.at))
     .as("last");
-  return db()
-    .select({ id: plates.id, floorState: plates.floorState, title: plates.title, kitName: kits.name, pieceCount: plates.pieceCount, createdAt: plates.createdAt, reprintOf: plates.reprintOf, source: plates.source, movedAt: last.at, movedBy: last.by, movedByEmail: last.byEmail })
+  const counts = await db()
+    .select({ state: plates.floorState, n: sql<number>`count(*)::int` })
     .from(plates)
     .leftJoin(kits, eq(kits.id, plates.kitId))
-    .leftJoin(last, eq(last.plateId, plates.id))
-    .where(and(eq(plates.workspaceId, workspaceId), isNotNull(plates.floorState)))
-    .orderBy(desc(sql`coalesce(${last.at}, ${plates.createdAt})`))
-    .limit(300);
+    .where(and(eq(plates.workspaceId, workspaceId), isNotNull(plates.floorState), match))
+    .groupBy(plates.floorState);
+  const waiting = new Set<FloorState>(["to_print", "printing", "to_inspect", "reprint_needed"]);
+  const lists = await Promise.all(
+    FLOOR_STATES.map(async (state) => {
+      const since = sql`coalesce(${last.at}, ${plates.createdAt})`;
+      const rows = await db()
+        .select({ id: plates.id, floorState: plates.floorState, title: plates.title, kitName: kits.name, pieceCount: plates.pieceCount, createdAt: plates.createdAt, reprintOf: plates.reprintOf, source: plates.source, movedAt: last.at, movedBy: last.by, movedByEmail: last.byEmail })
+        .from(plates)
+        .leftJoin(kits, eq(kits.id, plates.kitId))
+        .leftJoin(last, eq(last.plateId, plates.id))
+        .where(and(eq(plates.workspaceId, workspaceId), eq(plates.floorState, state), match))
+        .orderBy(waiting.has(state) ? asc(since) : desc(since))
+        .limit(50);
+      return [state, rows] as const;
+    }),
+  );
+  return { counts: Object.fromEntries(counts.map((c) => [c.state!, c.n])) as Partial<Record<FloorState, number>>, lists: Object.fromEntries(lists) as Record<FloorState, (typeof lists)[number][1]> };
 }
 
 export async function plateFloor(workspaceId: string, id: string) {

@@ -25,7 +25,10 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   // The operator, on a tablet-sized screen.
   const page = await browser.newPage({ viewport: { width: 820, height: 1180 } });
   await signInAs(page, "operator");
+  // The floor may hold many plates: find this one by the first characters of its number.
   await page.goto("/floor");
+  await page.getByLabel("Find a plate").fill(plateId.slice(0, 8));
+  await page.getByRole("button", { name: "Find" }).click();
   const row = page.getByRole("list", { name: "to print" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) });
   await expect(row).toBeVisible();
   await row.getByRole("button", { name: "Printing" }).click();
@@ -48,7 +51,7 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   await page.getByRole("link", { name: plateId.slice(0, 8) }).click();
   await expect(page.getByTestId("reprint-row")).toContainText("1 piece");
   await expect(page.getByTestId("reprint-row")).toContainText("to print");
-  await page.goto("/floor");
+  await page.goto(`/floor?q=${plateId.slice(0, 8)}`);
   await expect(page.getByRole("list", { name: "reprint needed" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) })).toBeVisible();
   await page.close();
 

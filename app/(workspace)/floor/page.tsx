@@ -12,27 +12,44 @@ export const metadata: Metadata = { title: "Floor" };
 
 const ORDER: FloorState[] = ["to_print", "printing", "to_inspect", "reprint_needed", "print_failed", "done"];
 
-export default async function FloorPage() {
+export default async function FloorPage({ searchParams }: { searchParams: Promise<{ q?: string }> }) {
   const caller = await requireCaller();
-  const rows = await floorQueue(caller.workspace.id);
+  const { q = "" } = await searchParams;
+  const { counts, lists } = await floorQueue(caller.workspace.id, q);
+  const total = Object.values(counts).reduce((a, b) => a + (b ?? 0), 0);
   const mayMove = can(caller.role, "inspections:record");
   return (
     <>
       <PageHeader title="Floor" lead="Every ready plate from the printer to the packing bench. Scan a plate map's QR code to open its inspection. Let the bed cool before lifting a slab." />
-      <p className="mb-4 text-sm">
-        <Link href="/floor/history" className="text-accent underline">
+      <div className="mb-4 flex flex-wrap items-end gap-3">
+        <form role="search" action="/floor" className="flex items-end gap-2">
+          <label className="text-sm">
+            <span className="block text-xs text-muted">Find a plate</span>
+            <input name="q" defaultValue={q} className="field-input mt-0.5 w-64 py-1" placeholder="plate number (first characters) or kit" />
+          </label>
+          <button type="submit" className="btn-quiet px-3 py-1.5 text-sm">
+            Find
+          </button>
+          {q ? (
+            <Link href="/floor" className="text-sm text-accent underline">
+              show all
+            </Link>
+          ) : null}
+        </form>
+        <Link href="/floor/history" className="ml-auto text-sm text-accent underline">
           First-pass yield and inspection history →
         </Link>
-      </p>
-      {rows.length === 0 ? <EmptyState message="Nothing on the floor yet: plates appear here as soon as their files are made." /> : null}
+      </div>
+      {total === 0 ? <EmptyState message={q ? `No plate on the floor matches “${q}”.` : "Nothing on the floor yet: plates appear here as soon as their files are made."} /> : null}
       <div className="space-y-6">
         {ORDER.map((state) => {
-          const list = rows.filter((r) => r.floorState === state).slice(0, state === "done" ? 15 : 100);
+          const list = lists[state].slice(0, state === "done" ? 15 : 50);
+          const count = counts[state] ?? 0;
           if (!list.length) return null;
           return (
             <section key={state} aria-labelledby={`floor-${state}`}>
               <h2 id={`floor-${state}`} className="mb-2 text-lg">
-                {STATE_LABEL[state]} <span className="font-mono text-sm text-muted">{rows.filter((r) => r.floorState === state).length}</span>
+                {STATE_LABEL[state]} <span className="font-mono text-sm text-muted">{count}</span>
               </h2>
               <ul className="card divide-y divide-hairline" aria-label={STATE_LABEL[state]}>
                 {list.map((r) => (
@@ -48,6 +65,7 @@ export default async function FloorPage() {
                   </li>
                 ))}
               </ul>
+              {count > list.length ? <p className="mt-1 text-xs text-muted">{state === "done" ? `the newest ${list.length} of ${count}` : `the ${list.length} waiting longest of ${count}`}</p> : null}
             </section>
           );
         })}
