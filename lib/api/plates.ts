@@ -11,7 +11,7 @@ import { notFound } from "@/lib/auth/errors";
 import { sniffFormat } from "@/lib/geometry/import";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
-import { meterPlate } from "@/lib/billing/service";
+import { billingOf, buildPriority, meterPlate } from "@/lib/billing/service";
 import { versionForPlate } from "@/lib/templates/service";
 import { env } from "@/lib/env";
 import { enqueueBuild, PLATE_CHANNEL } from "@/lib/jobs/queue";
@@ -170,7 +170,7 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
     throw new ApiProblem(409, "idempotency_conflict", "This Idempotency-Key is being used by another request.");
   }
   try {
-    const jobId = await enqueueBuild(plate.id);
+    const jobId = await enqueueBuild(plate.id, buildPriority((await billingOf(caller.workspaceId)).plan));
     const [withJob] = await db().update(plates).set({ jobId }).where(eq(plates.id, plate.id)).returning();
     return { plate: withJob!, replay: false };
   } catch (err) {

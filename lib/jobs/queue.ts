@@ -31,8 +31,9 @@ export function boss(): Promise<PgBoss> {
   return g.__slabBoss;
 }
 
-export async function enqueueBuild(plateId: string): Promise<string> {
-  const id = await (await boss()).send(BUILD_QUEUE, { plateId }, { retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
+/** Queue a plate's build; a higher `priority` (the Farm plan's) is fetched first when workers are busy. */
+export async function enqueueBuild(plateId: string, priority = 0): Promise<string> {
+  const id = await (await boss()).send(BUILD_QUEUE, { plateId }, { retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds(), priority });
   if (!id) throw new Error("the queue did not accept the build");
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;

@@ -1,5 +1,5 @@
 import { createHmac } from "node:crypto";
-import { eq, like } from "drizzle-orm";
+import { eq, like, sql } from "drizzle-orm";
 import { beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { apiKeys, auditEvents, billingEvents, invoices, kits, memberships, plateUsage, users, workspaceBilling, workspaces } from "@/db/schema";
@@ -124,5 +124,20 @@ describe("quota and failed payments", () => {
     await db().update(workspaceBilling).set({ graceUntil: new Date(Date.now() - 1000) }).where(eq(workspaceBilling.workspaceId, ws.id));
     const down = await billingOf(ws.id);
     expect([down.plan, down.status, down.effective.apiKeys]).toEqual(["bench", "canceled", 0]);
+  });
+
+  it("a plate's build is queued with its plan's priority (Farm first when the workers are busy)", async () => {
+    const [demo] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
+    const [b] = await db().select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, demo!.id));
+    const creds = JSON.parse((await import("node:fs")).readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+    const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo!.id));
+    const f = new FormData();
+    f.append("kit", kit!.id);
+    f.append("format", "json");
+    const r = await fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", body: f, headers: { authorization: `Bearer ${creds.apiKey}` } });
+    expect(r.status).toBe(200);
+    const plateId = ((await r.json()) as { plate: { id: string } }).plate.id;
+    const job = await db().execute(sql`select j.priority from pgboss.job j join plates p on p.job_id = j.id::text where p.id = ${plateId}`);
+    expect(Number((job.rows[0] as { priority: number }).priority)).toBe(PLANS[b!.plan].buildPriority);
   });
 });
