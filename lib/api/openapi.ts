@@ -69,7 +69,7 @@ const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
 const errors = (...codes: number[]) =>
   Object.fromEntries(codes.map((c) => [String(c), { description: STATUS[c]!, content: { "application/json": { schema: ref("Error") } } }]));
 const STATUS: Record<number, string> = {
-  400: "Malformed request", 401: "Missing, unknown or revoked API key", 403: "The key lacks the scope", 404: "Not found (or another workspace's)", 409: "Conflict (Idempotency-Key reused with another request, or the plate is not ready)", 413: "Too large", 415: "Not multipart, or a part that is not a mesh", 422: "Invalid options or parts, or findings of severity error", 429: "Rate limited (see Retry-After)",
+  400: "Malformed request", 402: "Plan limit: the plan's plates for this period are made, or the plan has no order API (code plan_limit)", 401: "Missing, unknown or revoked API key", 403: "The key lacks the scope", 404: "Not found (or another workspace's)", 409: "Conflict (Idempotency-Key reused with another request, or the plate is not ready)", 413: "Too large", 415: "Not multipart, or a part that is not a mesh", 422: "Invalid options or parts, or findings of severity error", 429: "Rate limited (see Retry-After)",
 };
 
 /** OpenAPI 3.1, generated from the same zod schemas the routes validate with. */
@@ -102,7 +102,7 @@ export function openApiDocument() {
               content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } }, "application/json": { schema: ref("Plate") } },
             },
             "202": { description: "Still building: poll the job.", content: { "application/json": { schema: { type: "object", properties: { job: ref("Job") }, required: ["job"] } } } },
-            ...errors(400, 401, 403, 404, 409, 413, 415, 422, 429),
+            ...errors(400, 401, 402, 403, 404, 409, 413, 415, 422, 429),
           },
         },
       },

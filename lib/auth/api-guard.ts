@@ -3,6 +3,8 @@ import { and, eq, isNull, lt, or } from "drizzle-orm";
 import { db } from "@/db";
 import { apiKeys, type ApiKeyScope } from "@/db/schema";
 import { hashApiKey, parseApiKeyPrefix } from "./api-keys";
+import { ApiProblem } from "@/lib/api/respond";
+import { billingOf } from "@/lib/billing/service";
 import { AccessError, rateLimited } from "./errors";
 import { hit, LIMITS } from "./rate-limit";
 
@@ -27,6 +29,9 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
   const limit = await hit(`api:${row.id}`, LIMITS.apiPerKey);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "requests with this key");
   if (!row.scopes.includes(scope)) throw new AccessError(403, "forbidden", `This key lacks the ${scope} scope.`);
+  // The order API comes with the paid plans: a workspace moved to Bench keeps its keys, refused here.
+  const plan = (await billingOf(row.workspaceId)).effective;
+  if (plan.apiKeys === 0) throw new ApiProblem(402, "plan_limit", `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`, { plan: plan.id });
   // Last-used time, at most once a minute per key (no write on every request).
   const minuteAgo = new Date(Date.now() - 60_000);
   await db()

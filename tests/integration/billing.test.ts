@@ -124,6 +124,14 @@ describe("quota and failed payments", () => {
     await db().update(workspaceBilling).set({ graceUntil: new Date(Date.now() - 1000) }).where(eq(workspaceBilling.workspaceId, ws.id));
     const down = await billingOf(ws.id);
     expect([down.plan, down.status, down.effective.apiKeys]).toEqual(["bench", "canceled", 0]);
+    // The shop's key, made on Workshop, now meets the Bench plan's refusal.
+    const [key] = await db().select().from(apiKeys).where(eq(apiKeys.workspaceId, ws.id));
+    expect(key).toBeDefined();
+    const k = generateApiKey();
+    await db().insert(apiKeys).values({ workspaceId: ws.id, name: "after downgrade", prefix: k.prefix, keyHash: k.hash, scopes: ["plates:read"] });
+    const r2 = await fetch(`${baseUrl()}/api/v1/plates/${"0".repeat(8)}-0000-0000-0000-000000000000`, { headers: { authorization: `Bearer ${k.key}` } });
+    expect(r2.status).toBe(402);
+    expect(((await r2.json()) as { error: { code: string } }).error.code).toBe("plan_limit");
   });
 
   it("a plate's build is queued with its plan's priority (Farm first when the workers are busy)", async () => {
