@@ -45,8 +45,9 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
     >
       <g transform={`translate(0 ${D}) scale(1 -1)`}>
         <path d={path(layout.slab.outline)} fill="#efe8dc" stroke="#c9bfae" strokeWidth={0.4} />
+        {layout.markOutlines ? <path d={path(layout.markOutlines)} fill="#a99c86" /> : null}
         {layout.marks.map((m, i) => (
-          <rect key={i} x={m.bounds.minX} y={m.bounds.minY} width={m.bounds.maxX - m.bounds.minX} height={m.bounds.maxY - m.bounds.minY} fill="none" stroke="#a99c86" strokeDasharray="1 1" strokeWidth={0.3} />
+          <rect key={i} x={m.bounds.minX} y={m.bounds.minY} width={m.bounds.maxX - m.bounds.minX} height={m.bounds.maxY - m.bounds.minY} fill="none" stroke="#c9bfae" strokeDasharray="1 1" strokeWidth={0.2} />
         ))}
         {pieces.map((p) => {
           const moving = drag?.piece.number === p.number;
@@ -86,11 +87,15 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
           );
         })}
       </g>
-      {pieces.map((p) => (
-        <text key={p.number} x={p.bounds.minX - 0.5 + (drag?.piece.number === p.number ? drag.dx : 0)} y={D - p.bounds.maxY - 0.5 - (drag?.piece.number === p.number ? drag.dy : 0)} fontSize={4} fontFamily="var(--font-mono)" fill="#5c6370" textAnchor="end">
-          {p.number}
-        </text>
-      ))}
+      {pieces.map((p) => {
+        const moving = drag?.piece.number === p.number;
+        const size = Math.max(2.5, Math.min(6, (p.bounds.maxX - p.bounds.minX) / 2.5));
+        return (
+          <text key={p.number} x={(p.bounds.minX + p.bounds.maxX) / 2 + (moving ? drag.dx : 0)} y={D - (p.bounds.minY + p.bounds.maxY) / 2 - (moving ? drag.dy : 0)} fontSize={size} fontFamily="var(--font-mono)" fontWeight="bold" fill="#fff" textAnchor="middle" dominantBaseline="central" pointerEvents="none">
+            {p.number}
+          </text>
+        );
+      })}
     </svg>
   );
 }

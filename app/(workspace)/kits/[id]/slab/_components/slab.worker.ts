@@ -72,7 +72,7 @@ function pump() {
   busy = true;
   try {
     const t0 = performance.now();
-    const r = buildPlate(kernel, { parts, options: msg.options, fonts, variables: msg.variables, formats: [], cache });
+    const r = buildPlate(kernel, { parts, options: msg.options, fonts, variables: msg.variables, formats: [], cache, markOutlines: true });
     // Only the slab is sent: the view already holds the parts and places them from `pieces`.
     const s = r.bodies?.find((b) => b.piece === undefined);
     const slab = s ? { name: s.name, positions: s.mesh.vertProperties, indices: s.mesh.triVerts } : null;
