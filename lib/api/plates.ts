@@ -11,7 +11,8 @@ import { notFound } from "@/lib/auth/errors";
 import { sniffFormat } from "@/lib/geometry/import";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
-import { billingOf, buildPriority, meterPlate } from "@/lib/billing/service";
+import type { PlanId } from "@/lib/billing/plans";
+import { buildPriority, meterPlate } from "@/lib/billing/service";
 import { versionForPlate } from "@/lib/templates/service";
 import { env } from "@/lib/env";
 import { enqueueBuild, PLATE_CHANNEL } from "@/lib/jobs/queue";
@@ -151,9 +152,10 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
   const hash = requestHash(r);
   const found = idempotencyKey ? await priorPlate(caller, idempotencyKey, hash) : null;
   if (found) return { plate: found, replay: true };
+  let plan: PlanId = "bench";
   const plate = await db().transaction(async (tx) => {
     // Counted against the plan in the same transaction as the plate: past the quota, nothing is stored.
-    await meterPlate(tx, caller.workspaceId);
+    plan = (await meterPlate(tx, caller.workspaceId)).plan;
     const [row] = await tx
       .insert(plates)
       .values({ workspaceId: caller.workspaceId, kitId: r.kitId ?? null, source: "api", status: "building", options: r.storedOptions as Record<string, unknown>, variables: r.variables, templateVersionId: r.template?.versionId ?? null, input: r.input, callbackUrl: r.callbackUrl ?? null, title: r.title, pieceCount: r.input.parts.reduce((s, p) => s + p.quantity, 0) * r.options.layout.copies })
@@ -170,7 +172,7 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
     throw new ApiProblem(409, "idempotency_conflict", "This Idempotency-Key is being used by another request.");
   }
   try {
-    const jobId = await enqueueBuild(plate.id, buildPriority((await billingOf(caller.workspaceId)).plan));
+    const jobId = await enqueueBuild(plate.id, buildPriority(plan));
     const [withJob] = await db().update(plates).set({ jobId }).where(eq(plates.id, plate.id)).returning();
     return { plate: withJob!, replay: false };
   } catch (err) {
@@ -187,8 +189,9 @@ export async function remakePlate(workspaceId: string, plateId: string, userId: 
   const [old] = await db().select().from(plates).where(and(eq(plates.id, plateId), eq(plates.workspaceId, workspaceId)));
   if (!old) throw notFound("plate");
   if (!old.input) throw new ApiProblem(409, "not_remakeable", "This plate has no stored inputs to make it from.");
+  let plan: PlanId = "bench";
   const row = await db().transaction(async (tx) => {
-    await meterPlate(tx, workspaceId);
+    plan = (await meterPlate(tx, workspaceId)).plan;
     const [r] = await tx
       .insert(plates)
       .values({ workspaceId, kitId: old.kitId, templateVersionId: old.templateVersionId, source: old.source, status: "building", options: old.options, variables: old.variables, input: old.input, title: old.title, pieceCount: old.pieceCount, createdBy: userId })
@@ -196,7 +199,7 @@ export async function remakePlate(workspaceId: string, plateId: string, userId: 
     return r;
   });
   try {
-    const jobId = await enqueueBuild(row!.id);
+    const jobId = await enqueueBuild(row!.id, buildPriority(plan));
     const [withJob] = await db().update(plates).set({ jobId }).where(eq(plates.id, row!.id)).returning();
     return withJob!;
   } catch (err) {

@@ -52,7 +52,7 @@ export async function usageOf(b: Billing, tx: Tx | Db = db()): Promise<number> {
  * Count one plate against the plan, inside the transaction that stores the plate: past the quota the
  * whole transaction is undone and the caller gets 402 plan_limit.
  */
-export async function meterPlate(tx: Tx, workspaceId: string, count = 1): Promise<void> {
+export async function meterPlate(tx: Tx, workspaceId: string, count = 1): Promise<Billing> {
   // One writer at a time per workspace, so two requests cannot both take the last plate.
   await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`usage:${workspaceId}`}))`);
   const b = await billingOf(workspaceId, tx);
@@ -63,8 +63,9 @@ export async function meterPlate(tx: Tx, workspaceId: string, count = 1): Promis
     .onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: sql`${plateUsage.plates} + ${count}` } })
     .returning();
   if (row!.plates > b.effective.platesPerPeriod) {
-    throw new ApiProblem(402, "plan_limit", `This workspace has made its ${b.effective.platesPerPeriod} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: row!.plates - count });
+    throw new ApiProblem(402, "plan_limit", `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: row!.plates - count });
   }
+  return b;
 }
 
 function nextPeriod(b: Billing, start: Date): Date {

@@ -3,7 +3,8 @@ import { and, asc, desc, eq, ilike, isNotNull, like, or, sql } from "drizzle-orm
 import { db } from "@/db";
 import { FLOOR_STATES, floorEvents, inspections, kits, memberships, plates, users, type FloorState, type PieceCheck, type Plate } from "@/db/schema";
 import { UserError } from "@/lib/auth/errors";
-import { meterPlate } from "@/lib/billing/service";
+import type { PlanId } from "@/lib/billing/plans";
+import { buildPriority, meterPlate } from "@/lib/billing/service";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
 import { enqueueBuild } from "@/lib/jobs/queue";
 import { deliver } from "@/lib/jobs/webhook";
@@ -174,8 +175,9 @@ export async function makeReprint(actor: FloorActor, id: string): Promise<Plate>
   const parts = p.input.parts.map((x, i) => ({ ...x, quantity: counts[i]! })).filter((x) => x.quantity > 0);
   const opts = p.options as { layout?: Record<string, unknown> };
   const { placements: _drop, ...layout } = (opts.layout ?? {}) as Record<string, unknown>;
+  let plan: PlanId = "bench";
   const [row] = await db().transaction(async (tx) => {
-    await meterPlate(tx, actor.workspaceId);
+    plan = (await meterPlate(tx, actor.workspaceId)).plan;
     return tx
     .insert(plates)
     .values({
@@ -195,7 +197,7 @@ export async function makeReprint(actor: FloorActor, id: string): Promise<Plate>
     })
     .returning();
   });
-  const jobId = await enqueueBuild(row!.id);
+  const jobId = await enqueueBuild(row!.id, buildPriority(plan));
   await db().update(plates).set({ jobId }).where(eq(plates.id, row!.id));
   await db().insert(floorEvents).values({ workspaceId: actor.workspaceId, plateId: p.id, fromState: p.floorState, toState: p.floorState ?? "reprint_needed", note: `reprint ${row!.id.slice(0, 8)} made (${wanted.length} piece${wanted.length > 1 ? "s" : ""})`, byUserId: actor.userId });
   return { ...row!, jobId };

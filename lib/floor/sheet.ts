@@ -2,9 +2,9 @@ import { readFileSync } from "node:fs";
 import path from "node:path";
 import fontkit from "@pdf-lib/fontkit";
 import { PDFDocument, rgb, type PDFFont, type PDFPage } from "pdf-lib";
-import QRCode from "qrcode";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 import type { Estimates } from "@/lib/geometry/estimates";
+import { qrRuns, QUIET_ZONE_MODULES } from "@/lib/geometry/marks/qr";
 import { MATERIALS, parseOptions } from "@/lib/geometry/options";
 
 /**
@@ -169,22 +169,11 @@ export async function plateMapPdf(plate: SheetPlate, url: string, paper: Paper =
 }
 
 function drawQr(page: PDFPage, value: string, x: number, y: number, side: number) {
-  const qr = QRCode.create(value, { errorCorrectionLevel: "M" });
-  const n = qr.modules.size;
-  const quiet = 4;
-  const mod = side / (n + 2 * quiet);
+  const { modules: n, runs } = qrRuns(value, "M");
+  const mod = side / (n + 2 * QUIET_ZONE_MODULES);
   page.drawRectangle({ x: x * PT, y: y * PT, width: side * PT, height: side * PT, color: rgb(1, 1, 1) });
-  for (let r = 0; r < n; r++) {
-    let c = 0;
-    while (c < n) {
-      if (!qr.modules.get(r, c)) {
-        c++;
-        continue;
-      }
-      const start = c;
-      while (c < n && qr.modules.get(r, c)) c++;
-      page.drawRectangle({ x: (x + (quiet + start) * mod) * PT, y: (y + side - (quiet + r + 1) * mod) * PT, width: (c - start) * mod * PT + 0.01, height: mod * PT + 0.01, color: rgb(0, 0, 0) });
-    }
+  for (const { row, start, end } of runs) {
+    page.drawRectangle({ x: (x + (QUIET_ZONE_MODULES + start) * mod) * PT, y: (y + side - (QUIET_ZONE_MODULES + row + 1) * mod) * PT, width: (end - start) * mod * PT + 0.01, height: mod * PT + 0.01, color: rgb(0, 0, 0) });
   }
 }
 

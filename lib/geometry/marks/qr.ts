@@ -22,10 +22,11 @@ export const QUIET_ZONE_MODULES = 4;
  */
 const GROW = 0.005;
 
-export function qrShape(value: string, moduleMm: number, level: "L" | "M" | "Q" | "H"): QrShape {
+/** The symbol's dark modules as horizontal runs (row 0 at the top), with its size in modules and version. */
+export function qrRuns(value: string, level: "L" | "M" | "Q" | "H"): { modules: number; version: number; runs: { row: number; start: number; end: number }[] } {
   const qr = QRCode.create(value, { errorCorrectionLevel: level });
   const n = qr.modules.size;
-  const contours: Contour[] = [];
+  const runs: { row: number; start: number; end: number }[] = [];
   for (let row = 0; row < n; row++) {
     let col = 0;
     while (col < n) {
@@ -35,12 +36,20 @@ export function qrShape(value: string, moduleMm: number, level: "L" | "M" | "Q" 
       }
       const start = col;
       while (col < n && qr.modules.get(row, col)) col++;
-      // Row 0 is the top of the symbol; y runs up on the slab.
-      const x0 = start * moduleMm - GROW, x1 = col * moduleMm + GROW;
-      const y1 = (n - row) * moduleMm + GROW, y0 = (n - row - 1) * moduleMm - GROW;
-      contours.push([[x0, y0], [x1, y0], [x1, y1], [x0, y1]]);
+      runs.push({ row, start, end: col });
     }
   }
+  return { modules: n, version: qr.version, runs };
+}
+
+export function qrShape(value: string, moduleMm: number, level: "L" | "M" | "Q" | "H"): QrShape {
+  const { modules: n, version, runs } = qrRuns(value, level);
+  // Row 0 is the top of the symbol; y runs up on the slab.
+  const contours: Contour[] = runs.map(({ row, start, end }) => {
+    const x0 = start * moduleMm - GROW, x1 = end * moduleMm + GROW;
+    const y1 = (n - row) * moduleMm + GROW, y0 = (n - row - 1) * moduleMm - GROW;
+    return [[x0, y0], [x1, y0], [x1, y1], [x0, y1]];
+  });
   const size = n * moduleMm;
-  return { contours, modules: n, version: qr.version, size, sizeWithQuietZone: size + 2 * QUIET_ZONE_MODULES * moduleMm };
+  return { contours, modules: n, version, size, sizeWithQuietZone: size + 2 * QUIET_ZONE_MODULES * moduleMm };
 }
