@@ -139,7 +139,7 @@ const server = http.createServer(async (req, res) => {
       const price = PRICES[((s.line_items as Rec)["0"] as Rec).price as string]!;
       if (req.method === "GET") {
         return html(page(`Pay · ${price.name}`, `<h1>${esc(price.name)} plan</h1><p>€${(price.amount / 100).toFixed(2)} a month</p>
-<form method="post"><label for="card">Card number (test page: any digits)</label><input id="card" name="card" value="4242 4242 4242 4242" inputmode="numeric">
+<form method="post"><label for="card">Card number (on this test page any 16 digits do)</label><input id="card" name="card" value="1020 3040 5060 7080" inputmode="numeric">
 <p><button type="submit" name="do" value="pay">Pay €${(price.amount / 100).toFixed(2)}</button><button class="quiet" type="submit" name="do" value="cancel">Cancel</button></p></form>
 <p class="note">A local test payment page: no money moves.</p>`));
       }
