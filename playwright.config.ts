@@ -7,6 +7,8 @@ const baseURL = `http://localhost:${port}`;
 export default defineConfig({
   testDir: "tests/e2e",
   timeout: 30_000,
+  // Sign-in waits on bcrypt (≈0.2 s a check); on a busy two-core machine a page can take seconds.
+  expect: { timeout: 10_000 },
   fullyParallel: false,
   workers: 1,
   retries: 0,
@@ -27,7 +29,7 @@ export default defineConfig({
   ],
   // npm test starts the app itself (shared with the HTTP integration tests); run alone, Playwright does.
   webServer: process.env.SLAB_TEST_SERVER === "1" ? undefined : {
-    command: `node_modules/.bin/next start -H 127.0.0.1 -p ${port}`,
+    command: `node scripts/serve.mjs -H 127.0.0.1 -p ${port}`,
     url: `${baseURL}/api/health`,
     reuseExistingServer: false,
     timeout: 120_000,

@@ -29,7 +29,7 @@ function cpuByKind(workerPid?: number): Record<string, number> {
       const cmd = readFileSync(`/proc/${d}/cmdline`, "utf8").replace(/\0/g, " ");
       const f = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
       const secs = (Number(f[11]) + Number(f[12])) / tick;
-      const kind = Number(d) === workerPid ? "worker (threads included)" : Number(d) === process.pid ? "benchmark client" : /next-server|next start|next\/dist/.test(cmd) || stat.includes("(next-server") ? "Next server" : /postgres/.test(cmd) ? "PostgreSQL" : null;
+      const kind = Number(d) === workerPid ? "worker (threads included)" : Number(d) === process.pid ? "benchmark client" : /next-server|next start|next\/dist|scripts\/serve\.mjs/.test(cmd) || stat.includes("(next-server") ? "Next server" : /postgres/.test(cmd) ? "PostgreSQL" : null;
       if (kind) out[kind] = (out[kind] ?? 0) + secs;
     } catch {
       // the process ended while being read

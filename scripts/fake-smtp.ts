@@ -7,6 +7,7 @@ import { simpleParser } from "mailparser";
 import { SMTPServer } from "smtp-server";
 import { createPool } from "@/db/index";
 import { env } from "@/lib/env";
+import { WORKSPACE_HEADER } from "@/lib/mail/headers";
 
 const port = Number(process.env.SLAB_SMTP_PORT ?? 2525);
 const pool = createPool(env().DATABASE_URL);
@@ -19,14 +20,20 @@ const server = new SMTPServer({
   onData(stream, _session, callback) {
     simpleParser(stream)
       .then(async (mail) => {
-        const to = (Array.isArray(mail.to) ? mail.to : mail.to ? [mail.to] : []).map((a) => a.text).join(", ");
-        await pool.query("insert into dev_outbox (id, from_address, to_addresses, subject, text, html) values ($1, $2, $3, $4, $5, $6)", [
+        // Bare addresses, lower case: the outbox matches them exactly against the viewer's own.
+        const to = (Array.isArray(mail.to) ? mail.to : mail.to ? [mail.to] : [])
+          .flatMap((a) => a.value.map((v) => (v.address ?? "").toLowerCase()))
+          .filter(Boolean)
+          .join(", ");
+        const workspace = mail.headers.get(WORKSPACE_HEADER.toLowerCase());
+        await pool.query("insert into dev_outbox (id, from_address, to_addresses, subject, text, html, workspace_id) values ($1, $2, $3, $4, $5, $6, $7)", [
           crypto.randomUUID(),
           mail.from?.text ?? null,
           to,
           mail.subject ?? null,
           mail.text ?? null,
           typeof mail.html === "string" ? mail.html : null,
+          typeof workspace === "string" ? workspace : null,
         ]);
         callback();
       })

@@ -11,7 +11,7 @@ if (!/\/slabwright_test(\?|$)/.test(url)) {
   process.exit(1);
 }
 const pool = createPool(url);
-await pool.query("truncate rate_limits, dev_outbox, plate_usage");
+await pool.query("truncate abuse_counters, dev_outbox, plate_usage");
 // The demo shop back on its given plan, without the keys earlier test runs made (plans limit keys).
 await pool.query(`update workspace_billing set plan = 'workshop', status = 'active', customer_id = null, subscription_id = null, grace_until = null, period_start = null, period_end = null, last_event_at = null
   where workspace_id in (select id from workspaces where slug = 'marrowby')`);

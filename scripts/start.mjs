@@ -95,7 +95,7 @@ try {
   payments = startFakePayments(env);
   worker = startWorker(env);
 
-  child = spawnChild(bin("next"), [dev ? "dev" : "start", "-H", "127.0.0.1", "-p", String(port)], env);
+  child = spawnChild(process.execPath, ["scripts/serve.mjs", ...(dev ? ["--dev"] : []), "-H", "127.0.0.1", "-p", String(port)], env);
   child.on("exit", (code) => {
     if (!stopping) {
       log(`the app exited (${code})`);
@@ -115,7 +115,7 @@ try {
       "Demo sign-ins (Marrowby Tabletop Co.):",
       ...creds.users.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(26)} ${u.password}`),
       `Demo API key (every scope): ${creds.apiKey}`,
-      env.SLAB_FAKE_SMTP === "1" ? `Mail is caught by a local fake server: owners read it at ${url}/settings/outbox` : "",
+      env.SLAB_FAKE_SMTP === "1" ? `Mail is caught by a local fake server: each person reads their own at ${url}/settings/outbox; all of it with: npm run outbox` : "",
       "",
       "Ctrl-C stops the app and the database.",
       "",

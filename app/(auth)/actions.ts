@@ -2,13 +2,16 @@
 
 import { AuthError, CredentialsSignin } from "next-auth";
 import { z } from "zod";
-import { acceptInvitation, createWorkspace, requestPasswordReset, resetPassword, signUpUser } from "@/db/queries/accounts";
+import { redirect } from "next/navigation";
+import { acceptInvitation, createWorkspace, pendingSignUpByToken, requestPasswordReset, requestSignUp, resetPassword, SIGN_UP_LINK_MESSAGES } from "@/db/queries/accounts";
 import { signIn } from "@/lib/auth/config";
+import { hit } from "@/lib/auth/rate-limit";
 import { loadSessionUser, setActiveWorkspace, UserError } from "@/lib/auth/guards";
 import { clientIp } from "@/lib/auth/request";
 import { magicLinkSchema, resetConfirmSchema, resetRequestSchema, signInSchema, signUpSchema, workspaceSchema, type ActionResult } from "@/lib/validation/accounts";
 
 const invalid = (error: z.ZodError): ActionResult<never> => ({ ok: false, message: "Check the marked fields.", fieldErrors: z.flattenError(error).fieldErrors as Record<string, string[]> });
+const wait = (seconds: number) => (seconds < 90 ? `${seconds} ${seconds === 1 ? "second" : "seconds"}` : `${Math.ceil(seconds / 60)} minutes`);
 const safeNext = (next: unknown) => (typeof next === "string" && /^\/(?!\/)[\w\-/?=&%.]*$/.test(next) ? next : "/parts");
 
 export async function signInWithPassword(input: z.input<typeof signInSchema> & { next?: string }): Promise<ActionResult> {
@@ -19,8 +22,8 @@ export async function signInWithPassword(input: z.input<typeof signInSchema> & {
     await signIn("credentials", { ...parsed.data, redirectTo: safeNext(input.next) });
   } catch (err) {
     if (err instanceof CredentialsSignin && err.code?.startsWith("rate_limited:")) {
-      const minutes = Math.ceil(Number(err.code.split(":")[1]) / 60);
-      return { ok: false, code: "rate_limited", message: `Too many attempts. Try again in ${minutes} ${minutes === 1 ? "minute" : "minutes"}.` };
+      const seconds = Number(err.code.split(":")[1]);
+      return { ok: false, code: "rate_limited", message: `Too many wrong passwords. Try again in ${wait(seconds)}, or sign in by e-mailed link, which always works.` };
     }
     if (err instanceof AuthError) return { ok: false, code: "bad_credentials", message: "That e-mail and password do not match an account." };
     throw err;
@@ -28,9 +31,21 @@ export async function signInWithPassword(input: z.input<typeof signInSchema> & {
   return { ok: true, data: undefined };
 }
 
+/** Mail sent on a form's say-so is limited per client and per address, so nobody's inbox is flooded. */
+async function mailAllowed(email: string): Promise<ActionResult | null> {
+  const byIp = await hit("mailsPerIp", await clientIp());
+  if (!byIp.ok) return { ok: false, code: "rate_limited", message: `Too many e-mails asked for from your network. Try again in ${wait(byIp.retryAfter)}.` };
+  const byAddress = await hit("mailsPerAddress", email);
+  if (!byAddress.ok) return { ok: false, code: "rate_limited", message: `We sent mail to this address a moment ago. Check your inbox (and spam folder), or try again in ${wait(byAddress.retryAfter)}.` };
+  return null;
+}
+
 export async function sendSignInLink(input: z.input<typeof magicLinkSchema> & { next?: string }): Promise<ActionResult> {
   const parsed = magicLinkSchema.safeParse(input);
   if (!parsed.success) return invalid(parsed.error);
+  // A link is sent whether or not the address has an account, so saying "wait" tells nobody anything.
+  const refused = await mailAllowed(parsed.data.email);
+  if (refused) return refused;
   try {
     await signIn("nodemailer", { email: parsed.data.email, redirectTo: safeNext(input.next) });
   } catch (err) {
@@ -43,24 +58,42 @@ export async function sendSignInLink(input: z.input<typeof magicLinkSchema> & { 
   return { ok: true, data: undefined };
 }
 
+/**
+ * Sign-up answers "check your e-mail" whatever the address: a new one gets a link that finishes the
+ * account, one that has an account gets a note on how to sign in. Nobody is signed in here.
+ */
 export async function signUp(input: z.input<typeof signUpSchema> & { next?: string }): Promise<ActionResult> {
   const parsed = signUpSchema.safeParse(input);
   if (!parsed.success) return invalid(parsed.error);
-  const invited = typeof input.next === "string" && input.next.startsWith("/invite/");
+  const ip = await clientIp();
+  const byIp = await hit("signUpsPerIp", ip);
+  if (!byIp.ok) return { ok: false, code: "rate_limited", message: `Too many sign-ups from your network. Try again in ${wait(byIp.retryAfter)}.` };
+  const next = safeNext(input.next);
+  const invited = next.startsWith("/invite/");
+  // Someone arriving from an invitation joins that workspace; anyone else gets a workshop of their own.
+  await requestSignUp({ ...parsed.data, workshop: invited ? undefined : parsed.data.workshop || `${parsed.data.name}'s workshop`, next }, ip);
+  redirect("/check-email?for=sign-up");
+}
+
+/** The button on the page a sign-up link opens: makes the account and signs its owner in. */
+export async function finishSignUpFromLink(input: { token: string }): Promise<ActionResult> {
+  const token = typeof input?.token === "string" ? input.token : "";
+  const pending = await pendingSignUpByToken(token);
+  if (pending.state !== "valid") return { ok: false, code: `sign_up_${pending.state}`, message: SIGN_UP_LINK_MESSAGES[pending.state] };
   try {
-    // Someone arriving from an invitation joins that workspace; anyone else gets a workshop of their own.
-    await signUpUser({ ...parsed.data, workshop: invited ? undefined : parsed.data.workshop || `${parsed.data.name}'s workshop` }, await clientIp());
+    await signIn("sign-up-link", { token, redirectTo: safeNext(pending.next) });
   } catch (err) {
-    if (err instanceof UserError) return { ok: false, code: err.code, message: err.message, fieldErrors: err.field ? { [err.field]: [err.message] } : undefined };
+    if (err instanceof AuthError) return { ok: false, code: "sign_up_failed", message: "This link could not be used. It may have been used a moment ago; try signing in." };
     throw err;
   }
-  await signIn("credentials", { email: parsed.data.email, password: parsed.data.password, redirectTo: safeNext(input.next) });
   return { ok: true, data: undefined };
 }
 
 export async function askPasswordReset(input: z.input<typeof resetRequestSchema>): Promise<ActionResult> {
   const parsed = resetRequestSchema.safeParse(input);
   if (!parsed.success) return invalid(parsed.error);
+  const byIp = await hit("mailsPerIp", await clientIp());
+  if (!byIp.ok) return { ok: false, code: "rate_limited", message: `Too many e-mails asked for from your network. Try again in ${wait(byIp.retryAfter)}.` };
   try {
     await requestPasswordReset(parsed.data.email, await clientIp());
   } catch (err) {

@@ -1,38 +1,126 @@
 import "server-only";
-import { and, asc, count, desc, eq, gt, inArray, isNull, or, sql } from "drizzle-orm";
+import { and, asc, count, desc, eq, gt, inArray, isNull, lt, or, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { apiKeys, auditEvents, devOutbox, invitations, memberships, passwordResets, users, workspaces, type ApiKeyScope, type Role } from "@/db/schema";
+import { apiKeys, auditEvents, devOutbox, invitations, memberships, passwordResets, pendingSignUps, revokedSessions, users, workspaces, type ApiKeyScope, type Role } from "@/db/schema";
 import { generateApiKey } from "@/lib/auth/api-keys";
 import { rateLimited } from "@/lib/auth/errors";
+import { can } from "@/lib/auth/permissions";
 import { UserError, type Caller, type SessionUser } from "@/lib/auth/guards";
-import { hashPassword } from "@/lib/auth/password";
-import { hit, LIMITS } from "@/lib/auth/rate-limit";
+import { hashPassword, verifyPassword } from "@/lib/auth/password";
+import { hit } from "@/lib/auth/rate-limit";
 import { hashToken, newToken } from "@/lib/auth/tokens";
 import { audit } from "@/lib/audit";
-import { appUrl, linkMessage, sendMail } from "@/lib/mail";
+import { appUrl, linkMessage, linksMessage, sendMail } from "@/lib/mail";
 
 export const INVITATION_DAYS = 7;
 export const RESET_MINUTES = 30;
 
 // ---------------------------------------------------------------- people and workspaces
 
-export async function signUpUser(input: { name: string; email: string; password: string; workshop?: string }, ip: string): Promise<{ userId: string }> {
+/** Sign-up links work for a day, once. */
+export const SIGN_UP_HOURS = 24;
+
+export type SignUpRequest = { name: string; email: string; password: string; workshop?: string; next?: string };
+
+/**
+ * Sign-up never creates or changes an account by itself: for a new address it keeps the request and
+ * mails a link that finishes it; for an address that already has an account it mails that address
+ * how to sign in or reset, and changes nothing. Both paths hash the password and send one mail, so
+ * the answer and its timing say nothing about who has an account.
+ */
+export async function requestSignUp(input: SignUpRequest, ip: string): Promise<void> {
   const passwordHash = await hashPassword(input.password);
+  const perAddress = await hit("mailsPerAddress", input.email);
+  const [existing] = await db().select({ id: users.id }).from(users).where(eq(users.email, input.email));
+  if (!perAddress.ok) return; // the same answer; the address has had enough mail for now
+  if (existing) {
+    await audit({ action: "sign_up_existing_address", actorUserId: existing.id, actorEmail: input.email, ip });
+    await sendMail(
+      linksMessage(
+        input.email,
+        "Someone tried to create a Slabwright account with your address",
+        "Someone (perhaps you) tried to create a new Slabwright account with this e-mail address, which already has one. Nothing was changed and nobody was signed in.",
+        [
+          { action: "Sign in", url: appUrl("/sign-in") },
+          { action: "Choose a password (forgotten, or never set one)", url: appUrl("/reset-password") },
+        ],
+        "If it was not you, you need do nothing: your account stays as it is.",
+      ),
+    );
+    return;
+  }
+  const { token, hash } = newToken();
+  await db().transaction(async (tx) => {
+    // A newer request for the same address replaces the older one.
+    await tx.update(pendingSignUps).set({ usedAt: new Date() }).where(and(eq(pendingSignUps.email, input.email), isNull(pendingSignUps.usedAt)));
+    await tx.insert(pendingSignUps).values({
+      email: input.email,
+      name: input.name,
+      passwordHash,
+      workshop: input.workshop ?? null,
+      next: input.next ?? null,
+      tokenHash: hash,
+      expiresAt: new Date(Date.now() + SIGN_UP_HOURS * 3600_000),
+    });
+    await audit({ action: "sign_up_requested", actorEmail: input.email, ip }, tx);
+  });
+  await sendMail(
+    linkMessage(
+      input.email,
+      "Finish creating your Slabwright account",
+      `Someone (we hope you) asked to create a Slabwright account for this address, as ${input.name}.`,
+      "Finish creating the account",
+      appUrl(`/sign-up/confirm/${token}`),
+      `The link works once, for ${SIGN_UP_HOURS} hours. If you did not ask for it, ignore this message and no account is made.`,
+    ),
+  );
+}
+
+export type SignUpLinkState = "valid" | "expired" | "used" | "unknown";
+
+export const SIGN_UP_LINK_MESSAGES: Record<Exclude<SignUpLinkState, "valid">, string> = {
+  unknown: "This link is not valid. Check that you opened the whole link from the e-mail.",
+  expired: "This link has expired. Sign up again to get a new one.",
+  used: "This link has already been used. Sign in with your e-mail and password.",
+};
+
+/** What a sign-up link stands for, without using it. */
+export async function pendingSignUpByToken(token: string): Promise<{ state: SignUpLinkState; email: string | null; next: string | null }> {
+  const [row] = await db().select().from(pendingSignUps).where(eq(pendingSignUps.tokenHash, hashToken(token)));
+  if (!row) return { state: "unknown", email: null, next: null };
+  const state: SignUpLinkState = row.usedAt ? "used" : row.expiresAt.getTime() < Date.now() ? "expired" : "valid";
+  return { state, email: row.email, next: row.next };
+}
+
+/**
+ * Use a sign-up link: the account is made now, with the name, password and workshop given at
+ * sign-up, its address proven by the link. If someone made an account for the address meanwhile
+ * (by an e-mailed sign-in link), the link may give it its first password, never replace one.
+ */
+export async function finishSignUp(token: string, ip: string): Promise<SessionUser & { sessionVersion: number }> {
   return db().transaction(async (tx) => {
-    const [existing] = await tx.select({ id: users.id, passwordHash: users.passwordHash }).from(users).where(eq(users.email, input.email));
-    let userId: string;
-    if (existing?.passwordHash) throw new UserError("email_taken", "An account with this e-mail already exists. Sign in, or reset your password.", "email");
+    const res = await tx.execute<{ id: string; email: string; name: string; password_hash: string; workshop: string | null; expires_at: Date; used_at: Date | null }>(
+      sql`select id, email, name, password_hash, workshop, expires_at, used_at from pending_sign_ups where token_hash = ${hashToken(token)} for update`,
+    );
+    const p = res.rows[0];
+    if (!p) throw new UserError("sign_up_unknown", SIGN_UP_LINK_MESSAGES.unknown);
+    if (p.used_at) throw new UserError("sign_up_used", SIGN_UP_LINK_MESSAGES.used);
+    if (new Date(p.expires_at).getTime() < Date.now()) throw new UserError("sign_up_expired", SIGN_UP_LINK_MESSAGES.expired);
+    await tx.update(pendingSignUps).set({ usedAt: new Date() }).where(eq(pendingSignUps.id, p.id));
+    const [existing] = await tx.select().from(users).where(eq(users.email, p.email)).for("update");
+    let user: typeof users.$inferSelect;
     if (existing) {
-      // Someone who signed in by e-mailed link before sets a password now.
-      await tx.update(users).set({ passwordHash, name: input.name, updatedAt: new Date() }).where(eq(users.id, existing.id));
-      userId = existing.id;
+      [user] = await tx
+        .update(users)
+        .set({ passwordHash: existing.passwordHash ?? p.password_hash, name: existing.name ?? p.name, emailVerified: existing.emailVerified ?? new Date(), updatedAt: new Date() })
+        .where(eq(users.id, existing.id))
+        .returning() as [typeof users.$inferSelect];
     } else {
-      const [row] = await tx.insert(users).values({ email: input.email, name: input.name, passwordHash }).returning({ id: users.id });
-      userId = row!.id;
+      [user] = (await tx.insert(users).values({ email: p.email, name: p.name, passwordHash: p.password_hash, emailVerified: new Date() }).returning()) as [typeof users.$inferSelect];
     }
-    await audit({ action: "sign_up", actorUserId: userId, actorEmail: input.email, ip }, tx);
-    if (input.workshop) await createWorkspaceIn(tx, userId, input.workshop);
-    return { userId };
+    await audit({ action: "sign_up", actorUserId: user.id, actorEmail: p.email, ip }, tx);
+    if (p.workshop && !existing) await createWorkspaceIn(tx, user.id, p.workshop);
+    return { id: user.id, email: user.email, name: user.name, sessionVersion: user.sessionVersion };
   });
 }
 
@@ -99,7 +187,7 @@ export async function removeMember(caller: Caller, userId: string): Promise<void
 // ---------------------------------------------------------------- invitations
 
 export async function inviteMember(caller: Caller, email: string, role: Role): Promise<{ id: string }> {
-  const limit = await hit(`invite:${caller.workspace.id}`, LIMITS.invitationsPerWorkspace);
+  const limit = await hit("invitationsPerWorkspace", caller.workspace.id);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "invitations from this workspace");
   const { token, hash } = newToken();
   const id = await db().transaction(async (tx) => {
@@ -122,8 +210,9 @@ export async function inviteMember(caller: Caller, email: string, role: Role): P
     return row!.id;
   });
   try {
-    await sendMail(
-      linkMessage(
+    await sendMail({
+      workspaceId: caller.workspace.id,
+      ...linkMessage(
         email,
         `${caller.user.name ?? caller.user.email} invited you to ${caller.workspace.name} on Slabwright`,
         `${caller.user.name ?? caller.user.email} invited you to join ${caller.workspace.name} on Slabwright as ${role === "owner" ? "an owner" : `a ${role}`}.`,
@@ -131,7 +220,7 @@ export async function inviteMember(caller: Caller, email: string, role: Role): P
         appUrl(`/invite/${token}`),
         `The link works once and expires in ${INVITATION_DAYS} days.`,
       ),
-    );
+    });
   } catch (err) {
     // Without the message the invitation is useless: take it back rather than leave it half-done.
     await db().update(invitations).set({ revokedAt: new Date() }).where(eq(invitations.id, id));
@@ -206,10 +295,16 @@ export async function acceptInvitation(user: SessionUser, token: string): Promis
 
 /** Always the same answer whether or not the account exists, so the form tells nobody who has one. */
 export async function requestPasswordReset(email: string, ip: string): Promise<void> {
-  const limit = await hit(`reset:${email}`, LIMITS.passwordResetsPerAccount);
+  const limit = await hit("passwordResetsPerAccount", email);
   if (!limit.ok) return;
   const [user] = await db().select({ id: users.id }).from(users).where(eq(users.email, email));
-  if (!user) return;
+  if (!user) {
+    // One mail either way, so the time the form takes says nothing about who has an account.
+    await sendMail(
+      linkMessage(email, "About your Slabwright password", "Someone (we hope you) asked to reset the Slabwright password for this address, but no account uses it. Perhaps you signed up with another address?", "Create an account", appUrl("/sign-up"), "If you did not ask, ignore this message."),
+    );
+    return;
+  }
   const { token, hash } = newToken();
   await db().transaction(async (tx) => {
     await tx.insert(passwordResets).values({ userId: user.id, tokenHash: hash, expiresAt: new Date(Date.now() + RESET_MINUTES * 60_000) });
@@ -230,7 +325,8 @@ export async function resetPassword(token: string, email: string, password: stri
     if (!row || row.email.toLowerCase() !== email.toLowerCase()) throw new UserError("reset_invalid", "This reset link is not valid for that address. Ask for a new one.");
     if (row.used_at) throw new UserError("reset_used", "This reset link has already been used. Ask for a new one.");
     if (new Date(row.expires_at).getTime() < Date.now()) throw new UserError("reset_expired", "This reset link has expired. Ask for a new one.");
-    await tx.update(users).set({ passwordHash, updatedAt: new Date() }).where(eq(users.id, row.user_id));
+    // A new password ends every session the account had (whoever held them).
+    await tx.update(users).set({ passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, emailVerified: sql`coalesce(${users.emailVerified}, now())`, updatedAt: new Date() }).where(eq(users.id, row.user_id));
     await tx.update(passwordResets).set({ usedAt: new Date() }).where(eq(passwordResets.userId, row.user_id));
     await audit({ action: "password_reset", actorUserId: row.user_id, actorEmail: row.email, ip }, tx);
   });
@@ -292,6 +388,60 @@ export async function listAudit(caller: Caller, page: number) {
   return { rows, total: total?.n ?? 0, pages: Math.max(1, Math.ceil((total?.n ?? 0) / AUDIT_PAGE_SIZE)) };
 }
 
-export async function listOutbox(limit = 50) {
-  return db().select().from(devOutbox).orderBy(desc(devOutbox.receivedAt)).limit(limit);
+/**
+ * The demo outbox, as one member may see it: mail addressed to the viewer, and mail sent for the
+ * viewer's workspace (its invitations, notes to its plates' makers). Another person's sign-in, reset
+ * or sign-up links are never shown, not even a count — not even a fellow member's, since a member of
+ * two workspaces would otherwise hand their account to the other workspace's owners.
+ */
+export async function listOutbox(caller: Caller, limit = 50) {
+  const mine = sql`${caller.user.email.toLowerCase()} = any(string_to_array(${devOutbox.toAddresses}, ', '))`;
+  // The workspace's own mail is for the people who manage it.
+  const where = can(caller.role, "members:manage") ? or(eq(devOutbox.workspaceId, caller.workspace.id), mine) : mine;
+  return db()
+    .select()
+    .from(devOutbox)
+    .where(where)
+    .orderBy(desc(devOutbox.receivedAt))
+    .limit(limit);
+}
+
+// ---------------------------------------------------------------- sessions
+
+/** End every session of a person (sign out everywhere): tokens issued before now stop working. */
+export async function endAllSessions(userId: string, ip: string): Promise<void> {
+  await db().transaction(async (tx) => {
+    await tx.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() }).where(eq(users.id, userId));
+    await audit({ action: "signed_out_everywhere", actorUserId: userId, ip }, tx);
+  });
+}
+
+/**
+ * Change a password, knowing the present one. Every other session ends; the caller signs in again
+ * with the new password to keep this one.
+ */
+export async function changePassword(user: SessionUser, current: string, password: string, ip: string): Promise<void> {
+  if (password.trim().toLowerCase() === user.email.toLowerCase()) throw new UserError("invalid", "Your password must not be your e-mail address.", "password");
+  const [row] = await db().select({ hash: users.passwordHash }).from(users).where(eq(users.id, user.id));
+  if (!row?.hash) throw new UserError("no_password", "This account signs in by e-mailed link and has no password yet: choose one through “Forgot your password?” on the sign-in page.", "current");
+  if (!(await verifyPassword(current, row.hash))) throw new UserError("wrong_password", "That is not your present password.", "current");
+  const passwordHash = await hashPassword(password);
+  await db().transaction(async (tx) => {
+    await tx.update(users).set({ passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() }).where(eq(users.id, user.id));
+    await audit({ action: "password_changed", actorUserId: user.id, actorEmail: user.email, ip }, tx);
+  });
+}
+
+/** End one session (signing out): kept until the token would have expired on its own. */
+export async function revokeSession(sid: string, userId: string | null, expiresAt: Date): Promise<void> {
+  await db().insert(revokedSessions).values({ sid, userId, expiresAt }).onConflictDoNothing();
+  await db().delete(revokedSessions).where(lt(revokedSessions.expiresAt, new Date()));
+}
+
+/** Whether a session token is still good: its person exists, its version is current and it was not signed out. */
+export async function sessionStillValid(userId: string, version: number, sid: string): Promise<boolean> {
+  const res = await db().execute<{ ok: boolean }>(
+    sql`select (u.session_version = ${version} and not exists (select 1 from revoked_sessions r where r.sid = ${sid})) as ok from users u where u.id = ${userId}`,
+  );
+  return res.rows[0]?.ok === true;
 }

@@ -1,4 +1,4 @@
-import { index, integer, jsonb, pgTable, primaryKey, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
+import { index, jsonb, pgTable, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
 import { users } from "./auth";
 import { apiKeys, roleEnum, workspaces } from "./workspaces";
 
@@ -39,17 +39,6 @@ export const passwordResets = pgTable(
   (t) => [uniqueIndex("password_resets_token_key").on(t.tokenHash)],
 );
 
-/** Fixed-window counters for abuse limits (sign-in attempts, invitations, API requests). */
-export const rateLimits = pgTable(
-  "rate_limits",
-  {
-    key: text("key").notNull(),
-    windowStart: timestamp("window_start", { withTimezone: true }).notNull(),
-    count: integer("count").notNull().default(0),
-  },
-  (t) => [primaryKey({ columns: [t.key, t.windowStart] }), index("rate_limits_window_idx").on(t.windowStart)],
-);
-
 /** Who did what, when, in which workspace. Never holds a password, key or token. */
 export const auditEvents = pgTable(
   "audit_events",
@@ -78,7 +67,10 @@ export const devOutbox = pgTable(
   {
     id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
     fromAddress: text("from_address"),
+    /** The recipients' bare addresses, lower case, joined by ", ". */
     toAddresses: text("to_addresses").notNull(),
+    /** The workspace a message was sent for (its invitations), so that workspace's owners may read it. */
+    workspaceId: text("workspace_id"),
     subject: text("subject"),
     text: text("text"),
     html: text("html"),

@@ -1,4 +1,4 @@
-import { integer, pgTable, primaryKey, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
+import { bigint, index, integer, pgTable, primaryKey, text, timestamp, uniqueIndex, varchar } from "drizzle-orm/pg-core";
 
 /** People who sign in. Field names follow what the Auth.js Drizzle adapter reads; columns are snake_case. */
 export const users = pgTable(
@@ -11,6 +11,11 @@ export const users = pgTable(
     image: text("image"),
     /** bcrypt hash; null for people who only sign in by e-mailed link. */
     passwordHash: text("password_hash"),
+    /**
+     * Bumped by "sign out everywhere", a password change and a password reset: every session token
+     * carries the version it was issued under and is refused once the two differ.
+     */
+    sessionVersion: integer("session_version").notNull().default(1),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
   },
@@ -55,5 +60,45 @@ export const verificationTokens = pgTable(
   },
   (t) => [primaryKey({ columns: [t.identifier, t.token] })],
 );
+
+/** Sessions ended by signing out, kept until the token would have expired anyway. */
+export const revokedSessions = pgTable(
+  "revoked_sessions",
+  {
+    sid: text("sid").primaryKey(),
+    userId: text("user_id").references(() => users.id, { onDelete: "cascade" }),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+  },
+  (t) => [index("revoked_sessions_expires_idx").on(t.expiresAt)],
+);
+
+/**
+ * A sign-up waiting for its address to be proven: nothing is created (no user, no password) until the
+ * link mailed to that address is used. Only a SHA-256 of the token is kept.
+ */
+export const pendingSignUps = pgTable(
+  "pending_sign_ups",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    email: text("email").notNull(),
+    name: text("name").notNull(),
+    passwordHash: text("password_hash").notNull(),
+    workshop: text("workshop"),
+    /** Where to go once the account exists (an invitation page, say); a path of ours. */
+    next: text("next"),
+    tokenHash: text("token_hash").notNull(),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    expiresAt: timestamp("expires_at", { withTimezone: true }).notNull(),
+    usedAt: timestamp("used_at", { withTimezone: true }),
+  },
+  (t) => [uniqueIndex("pending_sign_ups_token_key").on(t.tokenHash), index("pending_sign_ups_email_idx").on(t.email)],
+);
+
+/** Counters of rate-limiter-flexible (its own layout: key, points, expiry in ms since the epoch). */
+export const abuseCounters = pgTable("abuse_counters", {
+  key: varchar("key", { length: 255 }).primaryKey(),
+  points: integer("points").notNull().default(0),
+  expire: bigint("expire", { mode: "number" }),
+});
 
 export type User = typeof users.$inferSelect;

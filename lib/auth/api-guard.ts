@@ -6,7 +6,7 @@ import { hashApiKey, parseApiKeyPrefix } from "./api-keys";
 import { ApiProblem } from "@/lib/api/respond";
 import { billingOf } from "@/lib/billing/service";
 import { AccessError, rateLimited } from "./errors";
-import { hit, LIMITS } from "./rate-limit";
+import { hit } from "./rate-limit";
 
 export type ApiCaller = { keyId: string; workspaceId: string; scopes: ApiKeyScope[] };
 
@@ -26,7 +26,7 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
     .where(and(eq(apiKeys.keyHash, hashApiKey(key)), isNull(apiKeys.revokedAt)))
     .limit(1);
   if (!row) throw new AccessError(401, "unauthorized", "This API key is unknown or has been revoked.");
-  const limit = await hit(`api:${row.id}`, LIMITS.apiPerKey);
+  const limit = await hit("apiPerKey", row.id);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "requests with this key");
   if (!row.scopes.includes(scope)) throw new AccessError(403, "forbidden", `This key lacks the ${scope} scope.`);
   // The order API comes with the paid plans: a workspace moved to Bench keeps its keys, refused here.

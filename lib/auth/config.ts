@@ -1,4 +1,5 @@
 import { DrizzleAdapter } from "@auth/drizzle-adapter";
+import { randomUUID } from "node:crypto";
 import { eq } from "drizzle-orm";
 import NextAuth, { CredentialsSignin } from "next-auth";
 import Credentials from "next-auth/providers/credentials";
@@ -9,8 +10,10 @@ import { accounts, sessions, users, verificationTokens } from "@/db/schema";
 import { audit } from "@/lib/audit";
 import { env } from "@/lib/env";
 import { linkMessage, sendMail } from "@/lib/mail";
-import { verifyPassword } from "./password";
-import { hit, isBlocked, LIMITS } from "./rate-limit";
+import { finishSignUp, revokeSession, sessionStillValid } from "@/db/queries/accounts";
+import { UserError } from "./errors";
+import { checkPassword } from "./password";
+import { isBlocked, signInFailed, signInSucceeded, signInWait } from "./rate-limit";
 import { clientIp } from "./request";
 
 const credentialsSchema = z.object({
@@ -62,19 +65,39 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
         if (!parsed.success) throw new BadCredentials();
         const { email, password } = parsed.data;
         const ip = await clientIp(request.headers);
-        const byAccount = await isBlocked(`signin:acct:${email}`, LIMITS.signInPerAccount);
-        const byIp = await isBlocked(`signin:ip:${ip}`, LIMITS.signInPerIp);
-        if (byAccount.blocked || byIp.blocked) throw new TooManyAttempts(Math.max(byAccount.blocked ? byAccount.retryAfter : 0, byIp.blocked ? byIp.retryAfter : 0));
+        // The client's address is stopped outright past its limit; an account is only slowed (each
+        // wrong password past the free ones makes it wait longer), so a stranger cannot lock its
+        // owner out — and a sign-in by e-mailed link is never held back by either.
+        const [byIp, wait] = await Promise.all([isBlocked("signInFailuresPerIp", ip), signInWait(email)]);
+        if (byIp.blocked || wait > 0) throw new TooManyAttempts(Math.max(byIp.blocked ? byIp.retryAfter : 0, wait));
         const [user] = await db().select().from(users).where(eq(users.email, email)).limit(1);
-        const ok = await verifyPassword(password, user?.passwordHash);
+        // Checked against a stand-in hash when there is no password, so both take the same time.
+        const ok = await checkPassword(password, user?.passwordHash);
         if (!user || !ok) {
-          await hit(`signin:acct:${email}`, LIMITS.signInPerAccount);
-          await hit(`signin:ip:${ip}`, LIMITS.signInPerIp);
+          await signInFailed(email, ip);
           await audit({ action: "sign_in_failed", actorUserId: user?.id ?? null, actorEmail: email, ip });
           throw new BadCredentials();
         }
+        await signInSucceeded(email);
         await audit({ action: "sign_in", actorUserId: user.id, actorEmail: email, ip, details: { method: "password" } });
         return { id: user.id, email: user.email, name: user.name };
+      },
+    }),
+    // The link mailed at sign-up: using it makes the account (lib: db/queries/accounts finishSignUp).
+    Credentials({
+      id: "sign-up-link",
+      name: "Sign-up link",
+      credentials: { token: { label: "Token" } },
+      async authorize(raw, request) {
+        const token = typeof raw?.token === "string" ? raw.token : "";
+        if (token.length < 20 || token.length > 200) throw new BadCredentials();
+        try {
+          const user = await finishSignUp(token, await clientIp(request.headers));
+          return { id: user.id, email: user.email, name: user.name };
+        } catch (err) {
+          if (err instanceof UserError) throw new BadCredentials();
+          throw err;
+        }
       },
     }),
     Nodemailer({
@@ -89,8 +112,20 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
     }),
   ],
   callbacks: {
-    jwt({ token, user }) {
-      if (user?.id) token.sub = user.id;
+    /**
+     * Every token names its session (sid) and the person's session version at sign-in. On every
+     * request the two are checked against the database: after "sign out everywhere", a password
+     * change or reset the version has moved on, and a signed-out session is on the revoked list, so a
+     * replayed cookie no longer works (null ends the session and clears the cookie).
+     */
+    async jwt({ token, user }) {
+      if (user?.id) {
+        const [row] = await db().select({ v: users.sessionVersion }).from(users).where(eq(users.id, user.id));
+        if (!row) return null;
+        return { ...token, sub: user.id, sid: randomUUID(), sv: row.v };
+      }
+      if (!token.sub || typeof token.sid !== "string" || typeof token.sv !== "number") return null;
+      if (!(await sessionStillValid(token.sub, token.sv, token.sid))) return null;
       return token;
     },
     session({ session, token }) {
@@ -99,6 +134,12 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
     },
   },
   events: {
+    async signOut(message) {
+      const token = "token" in message ? message.token : null;
+      if (token && typeof token.sid === "string") {
+        await revokeSession(token.sid, token.sub ?? null, new Date((typeof token.exp === "number" ? token.exp : Date.now() / 1000 + SESSION_MAX_AGE_S) * 1000));
+      }
+    },
     async signIn({ user, account }) {
       if (account?.provider === "nodemailer" && user.id) {
         await audit({ action: "sign_in", actorUserId: user.id, actorEmail: user.email ?? null, details: { method: "email link" } });

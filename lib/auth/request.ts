@@ -1,9 +1,12 @@
 import "server-only";
 import { headers } from "next/headers";
+import { CLIENT_HEADER } from "@/scripts/client-address.mjs";
 
-/** The client's address as the nearest proxy reports it, for abuse limits and the audit log. */
+/**
+ * The client's address for abuse limits and the audit log, as our server (scripts/serve.mjs) worked
+ * it out from the socket and SLAB_TRUSTED_PROXIES; never a header the client wrote itself.
+ */
 export async function clientIp(from?: Headers): Promise<string> {
   const h = from ?? (await headers());
-  const forwarded = h.get("x-forwarded-for")?.split(",")[0]?.trim();
-  return forwarded || h.get("x-real-ip") || "local";
+  return h.get(CLIENT_HEADER) || "unknown";
 }

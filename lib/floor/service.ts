@@ -152,6 +152,7 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
   for (const { email } of to) {
     await sendMail({
       to: email,
+      workspaceId: p.workspaceId,
       subject: `Plate ${p.title ?? p.id.slice(0, 8)}: ${bad.length} piece${bad.length > 1 ? "s" : ""} to reprint`,
       text: `The inspection of plate ${p.title ?? ""} (${p.id.slice(0, 8)}) found:\n\n${list.map((l) => `• ${l}`).join("\n")}\n\nMake the reprint from the plate's page: ${url}\n\n— Slabwright`,
     });

@@ -30,6 +30,8 @@ export const resetConfirmSchema = z
   .object({ token: z.string().min(20).max(200), email: emailField, password: passwordField })
   .refine(notTheEmail, { path: ["password"], message: "Your password must not be your e-mail address." });
 
+export const changePasswordSchema = z.object({ current: z.string().min(1, "Enter your present password.").max(200), password: passwordField });
+
 export const roleField = z.enum(["owner", "designer", "operator", "viewer"]);
 export const inviteSchema = z.object({ email: emailField, role: roleField });
 export const changeRoleSchema = z.object({ userId: z.string().min(1), role: roleField });

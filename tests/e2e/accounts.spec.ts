@@ -1,5 +1,6 @@
 import { readFileSync } from "node:fs";
 import { expect, test, type Page } from "@playwright/test";
+import { mailTo } from "../support/mail";
 
 type Creds = { users: { email: string; password: string; role: string }[] };
 const creds = (): Creds => JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"));
@@ -15,6 +16,7 @@ async function signIn(page: Page, email: string, password: string) {
 }
 
 test("an invited person signs up from the e-mailed link, joins the demo workspace and sees what an operator may do", async ({ page, browser }) => {
+  test.setTimeout(90_000); // a sign-up now goes through its mailed link
   const owner = user("owner");
   const email = `new-operator-${Date.now()}@example.com`;
   await signIn(page, owner.email, owner.password);
@@ -48,8 +50,14 @@ test("an invited person signs up from the e-mailed link, joins the demo workspac
   await form.getByLabel("Password").fill(email);
   await form.getByRole("button", { name: "Create account" }).click();
   await expect(form.getByTestId("password-error")).toContainText("must not be your e-mail");
+  const since = new Date();
   await form.getByLabel("Password").fill("printing-all-night");
   await form.getByRole("button", { name: "Create account" }).click();
+  // The address is proven by the link mailed to it before any account exists.
+  await expect(p).toHaveURL(/\/check-email\?for=sign-up$/);
+  const confirm = (await mailTo(email, { since, subject: /Finish creating/ })).links[0]!;
+  await p.goto(confirm);
+  await p.getByRole("button", { name: "Create my account" }).click();
   await expect(p).toHaveURL(/\/invite\//);
   await p.getByRole("button", { name: /Join Marrowby/ }).click();
   await expect(p).toHaveURL(/\/parts$/);

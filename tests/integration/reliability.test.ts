@@ -18,7 +18,7 @@ beforeAll(async () => {
   const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id));
   kitId = k!.id;
   // The per-key limit is 120 a minute; the earlier files used some of it.
-  await db().execute(sql`delete from rate_limits where key like 'api:%'`);
+  await db().execute(sql`delete from abuse_counters where key like 'apiPerKey:%'`);
 });
 
 afterAll(() => {
