@@ -25,7 +25,10 @@ import {
 } from "./setup.mjs";
 
 const started = Date.now();
-const only = process.argv.slice(2); // e.g. `npm test -- unit` runs one stage
+// `npm test -- unit` runs one stage; a path narrows it (`npm test -- integration tests/integration/attacks`).
+const args = process.argv.slice(2);
+const filters = args.filter((a) => a.includes("/") || a.endsWith(".ts"));
+const only = args.filter((a) => !filters.includes(a));
 const want = (stage) => only.length === 0 || only.includes(stage);
 
 const lock = takeLock("test");
@@ -115,7 +118,7 @@ try {
   if (want("unit") || want("integration")) {
     const projects = ["unit", "integration"].filter(want).flatMap((p) => ["--project", p]);
     const out = path.join(resultsDir, "vitest.json");
-    const res = run(bin("vitest"), ["run", ...projects, "--reporter=default", "--reporter=json", `--outputFile=${out}`], { env, allowFail: true });
+    const res = run(bin("vitest"), ["run", ...projects, ...filters, "--reporter=default", "--reporter=json", `--outputFile=${out}`], { env, allowFail: true });
     const json = readJson(out);
     if (json) {
       totals.passed += json.numPassedTests ?? 0;

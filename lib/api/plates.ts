@@ -155,7 +155,7 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
   let plan: PlanId = "bench";
   const plate = await db().transaction(async (tx) => {
     // Counted against the plan in the same transaction as the plate: past the quota, nothing is stored.
-    plan = (await meterPlate(tx, caller.workspaceId)).plan;
+    plan = (await meterPlate(tx, caller.workspaceId, 1, r.storedOptions)).plan;
     const [row] = await tx
       .insert(plates)
       .values({ workspaceId: caller.workspaceId, kitId: r.kitId ?? null, source: "api", status: "building", options: r.storedOptions as Record<string, unknown>, variables: r.variables, templateVersionId: r.template?.versionId ?? null, input: r.input, callbackUrl: r.callbackUrl ?? null, title: r.title, pieceCount: r.input.parts.reduce((s, p) => s + p.quantity, 0) * r.options.layout.copies })
@@ -191,7 +191,7 @@ export async function remakePlate(workspaceId: string, plateId: string, userId: 
   if (!old.input) throw new ApiProblem(409, "not_remakeable", "This plate has no stored inputs to make it from.");
   let plan: PlanId = "bench";
   const row = await db().transaction(async (tx) => {
-    plan = (await meterPlate(tx, workspaceId)).plan;
+    plan = (await meterPlate(tx, workspaceId, 1, old.options)).plan;
     const [r] = await tx
       .insert(plates)
       .values({ workspaceId, kitId: old.kitId, templateVersionId: old.templateVersionId, source: old.source, status: "building", options: old.options, variables: old.variables, input: old.input, title: old.title, pieceCount: old.pieceCount, createdBy: userId })

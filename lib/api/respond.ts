@@ -2,6 +2,15 @@ import "server-only";
 import { ZodError } from "zod";
 import { AccessError } from "@/lib/auth/errors";
 import { UserError } from "@/lib/auth/errors";
+import { hasNul, isBadInputDbError } from "@/lib/db-errors";
+
+function safeDecode(url: string): string {
+  try {
+    return decodeURIComponent(url);
+  } catch {
+    return url;
+  }
+}
 
 /** Statuses for refusals a person can act on; anything else of that kind is a 422. */
 const USER_ERROR_STATUS: Record<string, number> = { not_found: 404, part_in_use: 409, conflict: 409 };
@@ -57,6 +66,7 @@ export function apiRoute<C>(handler: (req: Request, ctx: C) => Promise<Response>
   return async (req: Request, ctx: C): Promise<Response> => {
     const crossSite = crossSiteProblem(req);
     if (crossSite) return crossSite;
+    if (hasNul(safeDecode(req.url))) return apiError(400, "bad_request", "The address holds a NUL character, which no name, id or search can contain.");
     try {
       return await handler(req, ctx);
     } catch (err) {
@@ -66,6 +76,9 @@ export function apiRoute<C>(handler: (req: Request, ctx: C) => Promise<Response>
       if (err instanceof ApiProblem) return apiError(err.status, err.code, err.message, err.details);
       if (err instanceof UserError) return apiError(USER_ERROR_STATUS[err.code] ?? 422, err.code, err.message);
       if (err instanceof ZodError) return apiError(422, "invalid", "The request does not match the API's schema.", err.issues);
+      // req.json() on a body that is not JSON.
+      if (err instanceof SyntaxError) return apiError(400, "bad_json", "The request body is not valid JSON.");
+      if (isBadInputDbError(err)) return apiError(400, "bad_request", "The request holds a value that cannot be stored (a NUL character, or a number or text out of range).");
       console.error(`[api] ${req.method} ${new URL(req.url).pathname} failed`, err);
       return apiError(500, "internal", "Something went wrong on our side; nothing was changed.");
     }

@@ -7,6 +7,7 @@ import { db } from "@/db";
 import { memberships, users, workspaces, type Role } from "@/db/schema";
 import type { ActionResult } from "@/lib/validation/accounts";
 import { auth } from "./config";
+import { isBadInputDbError } from "@/lib/db-errors";
 import { AccessError, forbidden, notSignedIn, UserError } from "./errors";
 import { can, type Permission } from "./permissions";
 
@@ -116,6 +117,7 @@ export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Per
     } catch (err) {
       if (err instanceof AccessError) return { ok: false, code: err.code, message: err.message };
       if (err instanceof UserError) return { ok: false, code: err.code, message: err.message, fieldErrors: err.field ? { [err.field]: [err.message] } : undefined };
+      if (isBadInputDbError(err)) return { ok: false, code: "bad_request", message: "Something you entered cannot be stored (a NUL character, or a number or text out of range). Nothing was changed." };
       console.error(`[action] ${what} failed`, err);
       return { ok: false, code: "internal", message: "Something went wrong and nothing was changed. Try again." };
     }

@@ -48,14 +48,25 @@ export async function usageOf(b: Billing, tx: Tx | Db = db()): Promise<number> {
   return u?.plates ?? 0;
 }
 
+/** Whether a plate's stored options (template and overrides merged) engrave a logo. */
+export function engravesLogo(options: unknown): boolean {
+  const marks = (options as { marks?: { logo?: unknown } } | null | undefined)?.marks;
+  return Boolean(marks?.logo);
+}
+
 /**
  * Count one plate against the plan, inside the transaction that stores the plate: past the quota the
- * whole transaction is undone and the caller gets 402 plan_limit.
+ * whole transaction is undone and the caller gets 402 plan_limit. Every path that makes a plate (the
+ * API, the editor, a remake, a reprint) comes through here with the plate's options, so the plan's
+ * other limits (logos) are checked here too, once.
  */
-export async function meterPlate(tx: Tx, workspaceId: string, count = 1): Promise<Billing> {
+export async function meterPlate(tx: Tx, workspaceId: string, count = 1, options?: unknown): Promise<Billing> {
   // One writer at a time per workspace, so two requests cannot both take the last plate.
   await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`usage:${workspaceId}`}))`);
   const b = await billingOf(workspaceId, tx);
+  if (engravesLogo(options) && !b.effective.logos) {
+    throw new ApiProblem(402, "plan_limit", `Logos come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. Remove the logo, or an owner can upgrade under Settings → Billing.`, { plan: b.plan, limit: "logos" });
+  }
   const start = periodStart(b);
   const [row] = await tx
     .insert(plateUsage)

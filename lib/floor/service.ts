@@ -178,7 +178,7 @@ export async function makeReprint(actor: FloorActor, id: string): Promise<Plate>
   const { placements: _drop, ...layout } = (opts.layout ?? {}) as Record<string, unknown>;
   let plan: PlanId = "bench";
   const [row] = await db().transaction(async (tx) => {
-    plan = (await meterPlate(tx, actor.workspaceId)).plan;
+    plan = (await meterPlate(tx, actor.workspaceId, 1, p.options)).plan;
     return tx
     .insert(plates)
     .values({

@@ -18,7 +18,8 @@ export const kitSchema = z.object({
   id: z.string().optional(),
   name: z.string().trim().min(1, "Name the kit.").max(120),
   description: z.string().trim().max(500).optional(),
-  lines: z.array(kitLineSchema).min(1, "Add at least one part."),
+  // A kit is what one order holds; hundreds of lines is already a catalogue.
+  lines: z.array(kitLineSchema).min(1, "Add at least one part.").max(300, "A kit holds at most 300 lines; split it into several kits."),
 });
 
 export type KitInput = z.input<typeof kitSchema>;
