@@ -46,15 +46,3 @@ export async function deliverOnce(job: CallbackJob, opts: { timeoutMs: number; r
   const out: PostOutcome = await postToTarget(r.target, { "content-type": "application/json", [SIGNATURE_HEADER]: sign(secret, job.body) }, job.body, opts.timeoutMs);
   return out.ok ? { delivered: true, status: out.status } : { delivered: false, error: out.error, status: out.status };
 }
-
-/** Deliver an event, retrying with backoff (0.5 s, 2 s, 8 s) on failure or a non-2xx answer; each attempt checked and pinned. */
-export async function deliver(workspaceId: string, url: string, event: Record<string, unknown>, delays = [500, 2000, 8000]): Promise<boolean> {
-  const job = { workspaceId, url, body: JSON.stringify(event) };
-  for (let attempt = 0; attempt <= delays.length; attempt++) {
-    const out = await deliverOnce(job, { timeoutMs: 10_000 });
-    if (out.delivered) return true;
-    if ("refused" in out) return false;
-    if (attempt < delays.length) await new Promise((r) => setTimeout(r, delays[attempt]));
-  }
-  return false;
-}
