@@ -101,6 +101,8 @@ try {
   payments = startFakePayments(env);
   // The build worker for the plate API tests; webhooks may call the tests' receiver on loopback.
   Object.assign(env, { SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost", SLAB_JOB_EXPIRY_S: "6", SLAB_QUEUE_MAINTENANCE_S: "1", SLAB_THREAD_MAX_BUILDS: "5" });
+  // Webhook deliveries on a short schedule, so the tests see a retry within seconds (defaults: 10 s, 5 s).
+  Object.assign(env, { SLAB_CALLBACK_TIMEOUT_MS: "2000", SLAB_CALLBACK_RETRY_DELAY_S: "1" });
   worker = startWorker(env);
   env.SLAB_TEST_WORKER_PID = String(worker.pid);
 

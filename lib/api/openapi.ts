@@ -40,7 +40,7 @@ const plateForm = z.object({
   options: z.string().optional().describe("JSON object with the slab builder's options (see the SlabOptions schema)."),
   variables: z.string().optional().describe(`JSON object filling {name} placeholders. Schema: ${JSON.stringify(z.toJSONSchema(variablesSchema))}`),
   format: formatSchema.optional(),
-  callbackUrl: z.string().optional().describe("http(s) URL called with a signed plate.done / plate.failed event."),
+  callbackUrl: z.string().optional().describe("http(s) URL at a public address, called with a signed plate.done / plate.failed event (retried with backoff). Private, loopback, link-local and other special addresses are refused with 422 invalid_callback."),
   template: z.string().optional().describe("A template id (see GET /api/v1/templates); options override its options, variables fill its {placeholders} (a variable the template lacks is a 422 unknown_variable, one without a value or default a 422 missing_variable)."),
   templateVersion: z.string().optional().describe("A version number of the template, to make a plate with an earlier version; the newest by default."),
 });

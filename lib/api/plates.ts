@@ -73,7 +73,7 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
   const callbackUrl = (form.get("callbackUrl") as string | null) || undefined;
   if (callbackUrl) {
     const problem = await callbackProblem(callbackUrl);
-    if (problem) throw new ApiProblem(422, "invalid_callback", problem);
+    if (problem) throw new ApiProblem(422, problem.code, problem.message, { reason: problem.reason, ...(problem.address ? { address: problem.address } : {}) });
   }
 
   const input: PlateInput = { parts: [] };

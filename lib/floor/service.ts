@@ -6,8 +6,7 @@ import { UserError } from "@/lib/auth/errors";
 import type { PlanId } from "@/lib/billing/plans";
 import { buildPriority, meterPlate } from "@/lib/billing/service";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
-import { enqueueBuild } from "@/lib/jobs/queue";
-import { deliver } from "@/lib/jobs/webhook";
+import { enqueueBuild, enqueueCallback } from "@/lib/jobs/queue";
 import { appUrl, sendMail } from "@/lib/mail";
 
 /**
@@ -148,6 +147,10 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
   const to = p.createdBy
     ? await db().select({ email: users.email }).from(users).where(eq(users.id, p.createdBy))
     : await db().select({ email: users.email }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(and(eq(memberships.workspaceId, p.workspaceId), eq(memberships.role, "owner")));
+  // Queued first: the worker delivers it (with its retries) whatever happens to the mail.
+  if (p.callbackUrl) {
+    await enqueueCallback(p.workspaceId, p.callbackUrl, { event: "inspection", plate: { id: p.id, floorState: "reprint_needed" }, pieces: bad, at: new Date().toISOString() });
+  }
   const url = appUrl(`/floor/plates/${p.id}`);
   for (const { email } of to) {
     await sendMail({
@@ -156,9 +159,6 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
       subject: `Plate ${p.title ?? p.id.slice(0, 8)}: ${bad.length} piece${bad.length > 1 ? "s" : ""} to reprint`,
       text: `The inspection of plate ${p.title ?? ""} (${p.id.slice(0, 8)}) found:\n\n${list.map((l) => `• ${l}`).join("\n")}\n\nMake the reprint from the plate's page: ${url}\n\n— Slabwright`,
     });
-  }
-  if (p.callbackUrl) {
-    await deliver(p.workspaceId, p.callbackUrl, { event: "inspection", plate: { id: p.id, floorState: "reprint_needed" }, pieces: bad, at: new Date().toISOString() });
   }
 }
 

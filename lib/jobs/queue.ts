@@ -6,6 +6,8 @@ import { env } from "@/lib/env";
 export const BUILD_QUEUE = "plate-build";
 /** NOTIFY channel that wakes idle workers when a job is queued. */
 export const JOB_CHANNEL = "slab_jobs";
+/** Webhook deliveries: their own queue, so a slow receiver holds a delivery slot, never a build. */
+export const CALLBACK_QUEUE = "plate-callback";
 /** NOTIFY channel on which a worker says a plate's build ended (payload: the plate id). */
 export const PLATE_CHANNEL = "slab_plates";
 
@@ -26,6 +28,7 @@ export function boss(): Promise<PgBoss> {
     b.on("error", (err) => console.error("[queue]", err));
     await b.start();
     await b.createQueue(BUILD_QUEUE, { name: BUILD_QUEUE, retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
+    await b.createQueue(CALLBACK_QUEUE, { name: CALLBACK_QUEUE, ...callbackRetry() });
     return b;
   })();
   return g.__slabBoss;
@@ -43,6 +46,31 @@ export async function enqueueBuild(plateId: string, priority = 0): Promise<strin
 export async function enqueueThumbnail(templateVersionId: string): Promise<string> {
   const id = await (await boss()).send(BUILD_QUEUE, { templateVersionId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
   if (!id) throw new Error("the queue did not accept the thumbnail");
+  await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
+  return id;
+}
+
+const num = (v: string | undefined, fallback: number) => (v !== undefined && v !== "" && Number.isFinite(Number(v)) ? Number(v) : fallback);
+
+/**
+ * A delivery's schedule: 1 + `retryLimit` attempts, each given `timeoutMs`; pg-boss's backoff waits
+ * retryDelay·2^n·(1..2) seconds before retry n+1 (5–10 s, 10–20 s, … about 2.5–5 min in all). A job
+ * longer than expireInSeconds is taken as lost with its worker and handed out again.
+ */
+export function callbackRetry(): { retryLimit: number; retryDelay: number; retryBackoff: true; expireInSeconds: number } {
+  const timeoutS = Math.ceil(callbackTimeoutMs() / 1000);
+  return { retryLimit: num(process.env.SLAB_CALLBACK_RETRY_LIMIT, 5), retryDelay: num(process.env.SLAB_CALLBACK_RETRY_DELAY_S, 5), retryBackoff: true, expireInSeconds: Math.max(30, 3 * timeoutS) };
+}
+
+/** How long one delivery attempt may take (connect, send, status line) before it counts as failed. */
+export function callbackTimeoutMs(): number {
+  return num(process.env.SLAB_CALLBACK_TIMEOUT_MS, 10_000);
+}
+
+/** Queue a signed webhook event; the worker delivers it (and retries it) from CALLBACK_QUEUE. */
+export async function enqueueCallback(workspaceId: string, url: string, event: Record<string, unknown>): Promise<string> {
+  const id = await (await boss()).send(CALLBACK_QUEUE, { workspaceId, url, body: JSON.stringify(event) }, callbackRetry());
+  if (!id) throw new Error("the queue did not accept the callback");
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;
 }

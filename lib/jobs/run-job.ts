@@ -4,14 +4,14 @@ import { db } from "@/db";
 import { plates, type Plate } from "@/db/schema";
 import { blobStore } from "@/lib/storage";
 import type { BuildOutcome, BuildTask } from "./build-thread";
-import { PLATE_CHANNEL } from "./queue";
-import { deliver } from "./webhook";
+import { enqueueCallback, PLATE_CHANNEL } from "./queue";
 
 const errorFindings = (findings: unknown[]) => (findings as { severity: string }[]).filter((f) => f.severity === "error");
 
 /**
  * Run one plate's build: read its inputs, build in a pool thread, store both files, record the
- * outcome on the plate, then call its webhook. A bad input (a mesh that does not import, options that
+ * outcome on the plate, then queue its webhook (delivered from its own queue, so a slow receiver never
+ * holds a build slot). A bad input (a mesh that does not import, options that
  * cannot fit) fails the plate for good; anything unexpected is thrown so the queue retries the job.
  */
 export async function runPlateJob(pool: Piscina, plateId: string, jobId: string): Promise<void> {
@@ -56,11 +56,13 @@ async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>) {
   await db().update(plates).set({ ...set, progress: 1, finishedAt }).where(eq(plates.id, plate.id));
   await db().execute(sql`select pg_notify(${PLATE_CHANNEL}, ${plate.id})`);
   if (plate.callbackUrl) {
-    await deliver(plate.workspaceId, plate.callbackUrl, {
+    const event = {
       event: set.jobState === "done" ? "plate.done" : "plate.failed",
       plate: { id: plate.id, status: set.status, error: set.error ?? null },
       job: { id: plate.jobId, status: set.jobState },
       at: finishedAt.toISOString(),
-    });
+    };
+    // The plate is stored and final: a queue hiccup loses the event (logged), not the build.
+    await enqueueCallback(plate.workspaceId, plate.callbackUrl, event).catch((err: unknown) => console.error(`[worker] callback for plate ${plate.id} not queued`, err));
   }
 }

@@ -1,15 +1,15 @@
 import { createHmac, randomBytes } from "node:crypto";
-import { lookup } from "node:dns/promises";
-import { isIP } from "node:net";
 import { eq } from "drizzle-orm";
 import { db } from "@/db";
 import { workspaces } from "@/db/schema";
+import { allowedHosts, postToTarget, resolveCallback, type CallbackRefusal, type PostOutcome, type Resolver } from "./callback-target";
 
 /**
  * Webhooks of the plate API: POST of a JSON event, signed `Slabwright-Signature: t=<unix>,v1=<hex>`
  * where v1 = HMAC-SHA256(secret, "<t>.<body>") — the timestamp inside the signature lets a receiver
- * refuse replays. Only http(s); private, loopback and link-local addresses are refused unless their
- * host is listed in SLAB_WEBHOOK_ALLOW_HOSTS (the tests list 127.0.0.1).
+ * refuse replays. Only http(s) to global unicast addresses (lib/jobs/callback-target.ts); a host listed
+ * in SLAB_WEBHOOK_ALLOW_HOSTS is called whatever its address (the tests list 127.0.0.1 and localhost).
+ * Deliveries run from their own queue (lib/jobs/queue.ts `enqueueCallback`), never inside a build.
  */
 export const SIGNATURE_HEADER = "Slabwright-Signature";
 
@@ -25,49 +25,24 @@ export async function webhookSecret(workspaceId: string): Promise<string> {
   return secret;
 }
 
-function allowedHosts(): string[] {
-  return (process.env.SLAB_WEBHOOK_ALLOW_HOSTS ?? "").split(",").map((h) => h.trim().toLowerCase()).filter(Boolean);
+/** Why a callback URL is refused (code, reason, message), or null when it may be called. */
+export async function callbackProblem(raw: string, resolver?: Resolver): Promise<CallbackRefusal | null> {
+  const r = await resolveCallback(raw, { resolver, allowHosts: allowedHosts() });
+  return r.ok ? null : r.refusal;
 }
 
-function isPrivate(ip: string): boolean {
-  if (ip === "::1" || ip.startsWith("fe80:") || ip.startsWith("fc") || ip.startsWith("fd")) return true;
-  const v4 = ip.startsWith("::ffff:") ? ip.slice(7) : ip;
-  const p = v4.split(".").map(Number);
-  if (p.length !== 4) return false;
-  const [a, b] = p as [number, number, number, number];
-  return a === 10 || a === 127 || a === 0 || (a === 169 && b === 254) || (a === 172 && b >= 16 && b <= 31) || (a === 192 && b === 168) || (a === 100 && b >= 64 && b <= 127);
-}
+export type CallbackJob = { workspaceId: string; url: string; body: string };
 
-/** Why a callback URL is refused, or null when it may be called. */
-export async function callbackProblem(raw: string): Promise<string | null> {
-  let url: URL;
-  try {
-    url = new URL(raw);
-  } catch {
-    return "callbackUrl is not a URL";
-  }
-  if (url.protocol !== "http:" && url.protocol !== "https:") return "callbackUrl must be http or https";
-  const host = url.hostname.replace(/^\[|\]$/g, "").toLowerCase();
-  if (allowedHosts().includes(host)) return null;
-  const addresses = isIP(host) ? [host] : (await lookup(host, { all: true }).catch(() => [])).map((a) => a.address);
-  if (addresses.length === 0) return "callbackUrl's host does not resolve";
-  if (addresses.some(isPrivate)) return "callbackUrl points at a private or loopback address, which is not allowed";
-  return null;
-}
+export type DeliveryOutcome = { delivered: true; status: number } | { delivered: false; refused: CallbackRefusal } | { delivered: false; error: string; status?: number };
 
-/** Deliver an event, retrying with backoff (0.5 s, 2 s, 8 s) on failure or a non-2xx answer. */
-export async function deliver(workspaceId: string, url: string, event: Record<string, unknown>, delays = [500, 2000, 8000]): Promise<boolean> {
-  if (await callbackProblem(url)) return false;
-  const secret = await webhookSecret(workspaceId);
-  const body = JSON.stringify(event);
-  for (let attempt = 0; attempt <= delays.length; attempt++) {
-    try {
-      const res = await fetch(url, { method: "POST", headers: { "content-type": "application/json", [SIGNATURE_HEADER]: sign(secret, body) }, body, signal: AbortSignal.timeout(10_000), redirect: "manual" });
-      if (res.ok) return true;
-    } catch {
-      // try again after the pause
-    }
-    if (attempt < delays.length) await new Promise((r) => setTimeout(r, delays[attempt]));
-  }
-  return false;
+/**
+ * One delivery attempt: resolve the host once, check every address, connect to the checked one, sign
+ * now (a fresh timestamp for each attempt, as before). The queue retries a failed attempt.
+ */
+export async function deliverOnce(job: CallbackJob, opts: { timeoutMs: number; resolver?: Resolver }): Promise<DeliveryOutcome> {
+  const r = await resolveCallback(job.url, { resolver: opts.resolver, allowHosts: allowedHosts() });
+  if (!r.ok) return { delivered: false, refused: r.refusal };
+  const secret = await webhookSecret(job.workspaceId);
+  const out: PostOutcome = await postToTarget(r.target, { "content-type": "application/json", [SIGNATURE_HEADER]: sign(secret, job.body) }, job.body, opts.timeoutMs);
+  return out.ok ? { delivered: true, status: out.status } : { delivered: false, error: out.error, status: out.status };
 }

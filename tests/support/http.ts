@@ -60,3 +60,30 @@ export async function startReceiver(status = 204): Promise<{ url: (path?: string
   const port = (server.address() as { port: number }).port;
   return { url: (path = "/") => `http://127.0.0.1:${port}${path}`, received, close: () => new Promise<void>((r) => server.close(() => r())) };
 }
+
+export type Held = { path: string; at: number };
+
+/**
+ * A webhook receiver on loopback that takes every request and never answers (a slow or hostile
+ * callback host). `close()` cuts the held connections.
+ */
+export async function startHoldingReceiver(): Promise<{ url: (path?: string) => string; held: Held[]; close: () => Promise<void> }> {
+  const http = await import("node:http");
+  const held: Held[] = [];
+  const server = http.createServer((req) => {
+    held.push({ path: req.url ?? "", at: Date.now() });
+    req.resume();
+  });
+  server.requestTimeout = 0;
+  await new Promise<void>((r) => server.listen(0, "127.0.0.1", () => r()));
+  const port = (server.address() as { port: number }).port;
+  return {
+    url: (path = "/") => `http://127.0.0.1:${port}${path}`,
+    held,
+    close: () =>
+      new Promise<void>((r) => {
+        server.closeAllConnections();
+        server.close(() => r());
+      }),
+  };
+}

@@ -83,7 +83,7 @@ function verify(raw, header, secret) {
         </section>
         <section className="space-y-2">
           <h2 className="text-lg">Webhooks</h2>
-          <p className="text-muted">Send <code className="font-mono">callbackUrl</code> with the request; when the build ends we post a signed event, retrying three times with growing pauses.</p>
+          <p className="text-muted">Send <code className="font-mono">callbackUrl</code> with the request; when the build ends we post a signed event, retrying five times with growing pauses (about five minutes in all). It must be a public address: private, loopback, link-local and other special addresses are refused.</p>
           <Code>{verify}</Code>
           {secret ? (
             <p>
