@@ -134,7 +134,7 @@ export const fakePaymentsSecrets = () => ({
   STRIPE_WEBHOOK_SECRET: localSecret("STRIPE_WEBHOOK_SECRET", "payments-webhook-secret", () => `whsec_${randomBytes(32).toString("base64url")}`),
 });
 
-const BUILD_INPUTS = ["app", "lib", "db/schema", "db/queries", "db/index.ts", "fonts", "public", "types", "next.config.mjs", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
+const BUILD_INPUTS = ["app", "lib", "proxy.ts", "instrumentation.ts", "db/schema", "db/queries", "db/index.ts", "fonts", "public", "types", "next.config.mjs", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
 
 function sourceHash() {
   const h = createHash("sha256");
