@@ -1,26 +1,12 @@
-const dev = process.env.NODE_ENV !== "production";
-
 /**
- * Security headers on every response. The policy still lets the geometry kernel (WebAssembly), its
- * Web Worker (same origin or blob:) and the 3D view (canvas, blob: textures) run. Next's own inline
- * bootstrap scripts need 'unsafe-inline' without a nonce set-up; development also needs 'unsafe-eval'.
+ * Security headers on every response. The Content-Security-Policy is not among them:
+ * - pages get theirs from proxy.ts, with a fresh nonce for every request (no 'unsafe-inline' for
+ *   scripts);
+ * - API answers get a deny-all policy below (nothing in a JSON body, a download or a PDF should run),
+ *   except the part thumbnail, which sets its own sandboxed policy and must keep it alone;
+ * - Next's static files (scripts, the kernel's Web Worker and its WASM) get none.
  */
-const csp = [
-  "default-src 'self'",
-  `script-src 'self' 'unsafe-inline' 'wasm-unsafe-eval'${dev ? " 'unsafe-eval'" : ""}`,
-  "style-src 'self' 'unsafe-inline'",
-  "img-src 'self' data: blob:",
-  "font-src 'self'",
-  `connect-src 'self'${dev ? " ws: wss:" : ""}`,
-  "worker-src 'self' blob:",
-  "object-src 'none'",
-  "base-uri 'self'",
-  "form-action 'self'",
-  "frame-ancestors 'none'",
-].join("; ");
-
 const securityHeaders = [
-  { key: "Content-Security-Policy", value: csp },
   { key: "X-Content-Type-Options", value: "nosniff" },
   { key: "Referrer-Policy", value: "strict-origin-when-cross-origin" },
   { key: "X-Frame-Options", value: "DENY" },
@@ -35,7 +21,11 @@ const nextConfig = {
   poweredByHeader: false,
   reactStrictMode: true,
   async headers() {
-    return [{ source: "/:path*", headers: securityHeaders }];
+    return [
+      { source: "/:path*", headers: securityHeaders },
+      // Every API path but /api/parts/{id}/thumbnail (its route sends its own policy).
+      { source: "/api/:path((?!parts/[^/]+/thumbnail$).*)", headers: [{ key: "Content-Security-Policy", value: "default-src 'none'; frame-ancestors 'none'" }] },
+    ];
   },
 };
 

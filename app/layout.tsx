@@ -1,4 +1,5 @@
 import type { Metadata, Viewport } from "next";
+import { connection } from "next/server";
 import type { ReactNode } from "react";
 import { monoFont, uiFont } from "./fonts";
 import "./globals.css";
@@ -11,7 +12,10 @@ export const metadata: Metadata = {
 
 export const viewport: Viewport = { width: "device-width", initialScale: 1 };
 
-export default function RootLayout({ children }: { children: ReactNode }) {
+export default async function RootLayout({ children }: { children: ReactNode }) {
+  // Every page is rendered for its request, so Next.js can put that request's CSP nonce (proxy.ts)
+  // on its scripts; a page prerendered at build time would carry none and be blocked.
+  await connection();
   return (
     <html lang="en" className={`${uiFont.variable} ${monoFont.variable}`}>
       <body className="min-h-screen">{children}</body>

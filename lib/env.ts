@@ -4,10 +4,32 @@ import { databaseUrl } from "@/scripts/db-url.mjs";
 /**
  * The environment, parsed once. Defaults make a plain checkout work: our own PostgreSQL on loopback
  * (scripts/pg.sh) and blobs on local disk under .data/.
+ *
+ * No secret has a default here (AUTH_SECRET, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, the database
+ * password): `npm start` and `npm test` make random ones once per installation under .data/
+ * (scripts/setup.mjs, scripts/pg.sh) and pass them in; a deployment sets its own. Production refuses
+ * to start without the two the app cannot run safely without (requireStartupSecrets, instrumentation.ts).
  */
+
+/** Values that were once written in this repository's source: known to anyone, so never accepted. */
+const PUBLISHED = new Set(["whsec_local_fake_secret", "sk_test_local_fake"]);
+
+/** An optional secret: an empty value counts as unset; a value once published in the source is refused. */
+const secret = (name: string, min = 1) =>
+  z.preprocess(
+    (v) => (v === "" ? undefined : v),
+    z
+      .string()
+      .min(min, `${name} must be at least ${min} characters`)
+      .refine((v) => !PUBLISHED.has(v), `${name} is a value that was once published in the source code: make a new one`)
+      .optional(),
+  );
+
 const schema = z.object({
   NODE_ENV: z.enum(["development", "production", "test"]).default("development"),
   DATABASE_URL: z.string().url().default(databaseUrl()),
+  /** Signs session tokens (Auth.js reads it itself); checked here so production cannot start without it. */
+  AUTH_SECRET: secret("AUTH_SECRET", 32),
   /** Where links in e-mails point. */
   AUTH_URL: z.string().url().default("http://localhost:3000"),
   /** Outgoing mail. In development and tests this is our fake SMTP server on loopback. */
@@ -23,8 +45,9 @@ const schema = z.object({
   S3_ACCESS_KEY_ID: z.string().optional(),
   S3_SECRET_ACCESS_KEY: z.string().optional(),
   /** Payments (the stripe SDK). In development and tests STRIPE_API_BASE points it at our local fake. */
-  STRIPE_SECRET_KEY: z.string().default("sk_test_local_fake"),
-  STRIPE_WEBHOOK_SECRET: z.string().default("whsec_local_fake_secret"),
+  STRIPE_SECRET_KEY: secret("STRIPE_SECRET_KEY"),
+  /** Verifies the payment provider's webhook events. */
+  STRIPE_WEBHOOK_SECRET: secret("STRIPE_WEBHOOK_SECRET"),
   STRIPE_API_BASE: z.string().url().optional(),
   STRIPE_PRICE_WORKSHOP: z.string().default("price_workshop_monthly"),
   STRIPE_PRICE_FARM: z.string().default("price_farm_monthly"),
@@ -33,17 +56,42 @@ const schema = z.object({
 });
 
 export type Env = z.infer<typeof schema>;
+type SecretName = "AUTH_SECRET" | "STRIPE_SECRET_KEY" | "STRIPE_WEBHOOK_SECRET";
+
+/** Parse an environment (process.env, or a test's own); throws one message listing every problem. */
+export function parseEnv(source: Record<string, string | undefined>): Env {
+  const parsed = schema.safeParse(source);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n");
+    throw new Error(`Invalid environment:\n${lines}`);
+  }
+  return parsed.data;
+}
+
+/** The secrets production cannot run without: checked once when the server starts. */
+const STARTUP_SECRETS: SecretName[] = ["AUTH_SECRET", "STRIPE_WEBHOOK_SECRET"];
+
+export function requireStartupSecrets(e: Env): void {
+  if (e.NODE_ENV !== "production") return;
+  const missing = STARTUP_SECRETS.filter((n) => !e[n]);
+  if (missing.length === 0) return;
+  throw new Error(
+    `Slabwright will not start in production without ${missing.join(" and ")}. Set ${missing.length > 1 ? "them" : "it"} in the environment ` +
+      "(AUTH_SECRET: 32 or more random characters; STRIPE_WEBHOOK_SECRET: the signing secret of the payment provider's webhook endpoint). " +
+      "npm start and npm test make local ones under .data/ by themselves.",
+  );
+}
+
+/** A secret a feature needs right now: its value, or an error that names it. */
+export function requireSecret(name: SecretName): string {
+  const v = env()[name];
+  if (!v) throw new Error(`${name} is not set: npm start and npm test make it under .data/; a deployment must set it`);
+  return v;
+}
 
 let cached: Env | undefined;
 
 export function env(): Env {
-  if (!cached) {
-    const parsed = schema.safeParse(process.env);
-    if (!parsed.success) {
-      const lines = parsed.error.issues.map((i) => `  ${i.path.join(".")}: ${i.message}`).join("\n");
-      throw new Error(`Invalid environment:\n${lines}`);
-    }
-    cached = parsed.data;
-  }
+  cached ??= parseEnv(process.env);
   return cached;
 }

@@ -1,5 +1,10 @@
 // The one rule for where the database is, shared by the shell scripts' callers, drizzle-kit and the app.
-// DATABASE_URL wins; otherwise our own cluster on loopback (scripts/pg.sh) with SLAB_PG_PORT.
+// DATABASE_URL wins; otherwise our own cluster on loopback (scripts/pg.sh) with SLAB_PG_PORT, as the
+// superuser with the password scripts/pg.sh made for this installation (SLAB_PG_PASSWORD_FILE,
+// default .data/pg-password). Plain Node: this file runs before node_modules exists.
+import fs from "node:fs";
+import path from "node:path";
+
 export const DEFAULT_PG_PORT = 54329;
 
 export function pgPort() {
@@ -10,7 +15,22 @@ export function databaseName() {
   return process.env.SLAB_DB_NAME ?? "slabwright";
 }
 
+export function pgPasswordFile() {
+  return process.env.SLAB_PG_PASSWORD_FILE ?? path.resolve(".data", "pg-password");
+}
+
+/** The local cluster's password, or null before scripts/pg.sh has made one. */
+export function pgPassword() {
+  try {
+    return fs.readFileSync(pgPasswordFile(), "utf8").trim() || null;
+  } catch {
+    return null;
+  }
+}
+
 export function databaseUrl() {
   if (process.env.DATABASE_URL) return process.env.DATABASE_URL;
-  return `postgres://postgres@127.0.0.1:${pgPort()}/${databaseName()}`;
+  const password = pgPassword();
+  const user = password ? `postgres:${encodeURIComponent(password)}` : "postgres";
+  return `postgres://${user}@127.0.0.1:${pgPort()}/${databaseName()}`;
 }

@@ -4,13 +4,28 @@
  * subscriptions), a hosted "pay" page for the demo, and signed webhook events sent the way the real
  * service sends them: a `Stripe-Signature: t=<unix time>,v1=<HMAC-SHA256 of "t.body">` header.
  * Test controls under /_control make a payment fail, resend an event, or send one late.
+ *
+ * Its API key and webhook signing key come from the environment (npm start / npm test make them once
+ * per installation under .data/ and give the same ones to the app): none is written here, and the
+ * API answers 401 to a request without the key, as the real service does.
  */
-import { createHmac, randomBytes } from "node:crypto";
+import { createHmac, randomBytes, timingSafeEqual } from "node:crypto";
 import http from "node:http";
 
 const port = Number(process.env.SLAB_PAYMENTS_PORT ?? 12111);
 const webhookUrl = process.env.SLAB_BILLING_WEBHOOK_URL ?? "http://localhost:3000/api/billing/webhook";
-const secret = process.env.STRIPE_WEBHOOK_SECRET ?? "whsec_local_fake_secret";
+const secret = process.env.STRIPE_WEBHOOK_SECRET ?? "";
+const apiKey = process.env.STRIPE_SECRET_KEY ?? "";
+if (!secret || !apiKey) {
+  console.error("fake payments: STRIPE_WEBHOOK_SECRET and STRIPE_SECRET_KEY must be set (npm start and npm test make them under .data/)");
+  process.exit(1);
+}
+/** The SDK's `Authorization: Bearer <key>`, compared in constant time. */
+function authorized(header: string | undefined): boolean {
+  const given = Buffer.from(/^Bearer (.+)$/.exec(header ?? "")?.[1] ?? "");
+  const want = Buffer.from(apiKey);
+  return given.length === want.length && timingSafeEqual(given, want);
+}
 const PRICES: Record<string, { plan: string; amount: number; name: string }> = {
   [process.env.STRIPE_PRICE_WORKSHOP ?? "price_workshop_monthly"]: { plan: "workshop", amount: 1900, name: "Workshop" },
   [process.env.STRIPE_PRICE_FARM ?? "price_farm_monthly"]: { plan: "farm", amount: 7900, name: "Farm" },
@@ -108,6 +123,9 @@ const server = http.createServer(async (req, res) => {
     res.end(s);
   };
   const m = (re: RegExp) => re.exec(url.pathname);
+  if (url.pathname.startsWith("/v1/") && !authorized(req.headers.authorization)) {
+    return json(401, { error: { type: "invalid_request_error", message: "Invalid API Key provided" } });
+  }
   try {
     if (req.method === "POST" && url.pathname === "/v1/customers") {
       const f = parseForm(body);
@@ -119,7 +137,7 @@ const server = http.createServer(async (req, res) => {
       const f = parseForm(body);
       const price = ((f.line_items as Rec | undefined)?.["0"] as Rec | undefined)?.price as string | undefined;
       if (!price || !PRICES[price]) return json(400, { error: { type: "invalid_request_error", message: `No such price: ${price}` } });
-      const s = { id: id("cs"), object: "checkout.session", mode: f.mode, customer: f.customer, status: "open", metadata: f.metadata ?? {}, subscription_data: f.subscription_data, line_items: f.line_items, success_url: f.success_url, cancel_url: f.cancel_url, url: "" };
+      const s = { id: id("cs"), object: "checkout.session", mode: f.mode, customer: f.customer, status: "open", payment_status: "unpaid", metadata: f.metadata ?? {}, subscription_data: f.subscription_data, line_items: f.line_items, success_url: f.success_url, cancel_url: f.cancel_url, url: "" };
       s.url = `http://${req.headers.host}/pay/${s.id}`;
       sessions.set(s.id, s);
       return json(200, s);
@@ -128,7 +146,9 @@ const server = http.createServer(async (req, res) => {
       const f = parseForm(body);
       return json(200, { id: id("bps"), object: "billing_portal.session", customer: f.customer, return_url: f.return_url, url: `http://${req.headers.host}/portal/${f.customer}?return=${encodeURIComponent(String(f.return_url))}` });
     }
-    let r = m(/^\/v1\/subscriptions\/([\w]+)$/);
+    let r = m(/^\/v1\/checkout\/sessions\/([\w]+)$/);
+    if (req.method === "GET" && r) return sessions.has(r[1]!) ? json(200, sessions.get(r[1]!)) : json(404, { error: { type: "invalid_request_error", message: `No such checkout.session: ${r[1]}` } });
+    r = m(/^\/v1\/subscriptions\/([\w]+)$/);
     if (req.method === "GET" && r) return subscriptions.has(r[1]!) ? json(200, subscriptions.get(r[1]!)) : json(404, { error: { type: "invalid_request_error", message: "No such subscription" } });
 
     // The hosted pay page.
@@ -149,7 +169,7 @@ const server = http.createServer(async (req, res) => {
         return;
       }
       const sub = subscriptionFor(s);
-      Object.assign(s, { status: "complete", subscription: sub.id });
+      Object.assign(s, { status: "complete", payment_status: "paid", subscription: sub.id });
       await send("checkout.session.completed", { ...s });
       await send("customer.subscription.created", { ...sub });
       await send("invoice.paid", invoice(sub, true));

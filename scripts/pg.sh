@@ -9,13 +9,24 @@
 #
 # Environment: SLAB_PG_PORT (default 54329), SLAB_PG_DIR (cluster directory; default .data/pg, or a
 # per-project folder under /tmp when the postgres user cannot reach .data), SLAB_PG_FAST=1 (no fsync,
-# for tests). Safe to re-run; a stale postmaster.pid left by a crash is removed.
+# for tests), SLAB_PG_PASSWORD_FILE (default .data/pg-password). Safe to re-run; a stale
+# postmaster.pid left by a crash is removed.
+#
+# Authentication: the superuser `postgres` has a random password, made once per installation and
+# kept in the password file (mode 0600); TCP connections (the app, on 127.0.0.1) must give it
+# (scram-sha-256). Over the Unix socket only the cluster's own OS user gets in (peer), which is how
+# this script sets the password. A trust-auth cluster made by an earlier checkout is upgraded in
+# place on `start`, running or not.
 set -euo pipefail
 
 ROOT=$(cd "$(dirname "${BASH_SOURCE[0]}")/.." && pwd)
 PORT=${SLAB_PG_PORT:-54329}
+PWFILE=${SLAB_PG_PASSWORD_FILE:-$ROOT/.data/pg-password}
 IS_ROOT=0
 [ "$(id -u)" = 0 ] && IS_ROOT=1
+# The OS user that owns the cluster: initdb and postgres refuse to run as root.
+OWNER=$(id -un)
+[ "$IS_ROOT" = 1 ] && OWNER=postgres
 
 say() { printf 'pg: %s\n' "$*" >&2; }
 die() { say "$*"; exit 1; }
@@ -68,10 +79,50 @@ pick_dir() {
 socket_dir() { echo "/tmp/slabwright-pg-$PORT"; }
 log_file() { echo "$(dirname "$PGDIR")/postgres-$PORT.log"; }
 
+# The cluster's password: made once (24 random bytes, hex) and kept, mode 0600.
+ensure_password() {
+  if [ ! -s "$PWFILE" ]; then
+    mkdir -p "$(dirname "$PWFILE")"
+    (umask 077 && od -An -tx1 -N24 /dev/urandom | tr -d ' \n' > "$PWFILE.$$" && mv "$PWFILE.$$" "$PWFILE")
+    say "made a password for the database superuser in $PWFILE"
+  fi
+  chmod 600 "$PWFILE"
+  PASSWORD=$(tr -d ' \r\n' < "$PWFILE")
+  [[ "$PASSWORD" =~ ^[A-Za-z0-9_-]{16,}$ ]] || die "$PWFILE must hold one password of at least 16 letters, digits, - or _"
+}
+
+HBA_MARK="# Slabwright (scripts/pg.sh): a password over TCP, only the cluster's owner over the socket"
+
+auth_files_current() {
+  grep -qxF "$HBA_MARK" "$PGDIR/pg_hba.conf" 2>/dev/null && grep -q "^slab_owner[[:space:]]" "$PGDIR/pg_ident.conf" 2>/dev/null
+}
+
+# pg_hba.conf and pg_ident.conf as we want them (written in place, so they keep their owner).
+write_auth_files() {
+  printf '%s\n%s\n%s\n%s\n' "$HBA_MARK" \
+    "local   all   all                  peer map=slab_owner" \
+    "host    all   all   127.0.0.1/32   scram-sha-256" \
+    "host    all   all   ::1/128        scram-sha-256" > "$PGDIR/pg_hba.conf"
+  printf '# MAPNAME     SYSTEM-USERNAME   PG-USERNAME\nslab_owner    %s    postgres\n' "$OWNER" > "$PGDIR/pg_ident.conf"
+  if [ "$IS_ROOT" = 1 ]; then chown postgres:postgres "$PGDIR/pg_hba.conf" "$PGDIR/pg_ident.conf"; fi
+  chmod 600 "$PGDIR/pg_hba.conf" "$PGDIR/pg_ident.conf"
+}
+
+# psql as the cluster's owner over the Unix socket (peer authentication, no password).
+owner_psql() {
+  as_owner "$BINDIR/psql" -X -q -v ON_ERROR_STOP=1 -h "$(socket_dir)" -p "$PORT" -U postgres -d postgres "$@"
+}
+
+# Give the superuser the password in $PWFILE (sent on stdin, so it never shows in a process list).
+set_password() {
+  printf "alter role postgres with password '%s';\n" "$PASSWORD" | owner_psql >/dev/null \
+    || die "could not set the database password"
+}
+
 ensure_cluster() {
   [ -f "$PGDIR/PG_VERSION" ] && return 0
   say "creating a new cluster in $PGDIR"
-  local parent
+  local parent pwcopy
   parent=$(dirname "$PGDIR")
   mkdir -p "$parent"
   if [ "$IS_ROOT" = 1 ]; then
@@ -79,8 +130,16 @@ ensure_cluster() {
     mkdir -p "$PGDIR" && chown postgres:postgres "$PGDIR" && chmod 700 "$PGDIR"
     touch "$(log_file)" && chown postgres:postgres "$(log_file)"
   fi
-  as_owner "$BINDIR/initdb" -D "$PGDIR" --auth=trust -E UTF8 --locale=C.UTF-8 -U postgres >/dev/null \
-    || die "initdb failed for $PGDIR"
+  # initdb reads the password from a file its (postgres) user can read: a private copy, removed after.
+  pwcopy=$(mktemp "$parent/.pwfile.XXXXXX")
+  printf '%s\n' "$PASSWORD" > "$pwcopy"
+  [ "$IS_ROOT" = 1 ] && chown postgres:postgres "$pwcopy"
+  if ! as_owner "$BINDIR/initdb" -D "$PGDIR" --auth-local=peer --auth-host=scram-sha-256 --pwfile="$pwcopy" -E UTF8 --locale=C.UTF-8 -U postgres >/dev/null; then
+    rm -f "$pwcopy"
+    die "initdb failed for $PGDIR"
+  fi
+  rm -f "$pwcopy"
+  write_auth_files
 }
 
 # A live postgres process (a killed postmaster may linger as a zombie where nothing reaps it).
@@ -121,11 +180,26 @@ wait_ready() {
 cmd_start() {
   ensure_installed
   pick_dir
+  ensure_password
   ensure_cluster
   if is_running; then
     wait_ready || die "a server is running in $PGDIR but does not answer on 127.0.0.1:$PORT"
+    if ! auth_files_current; then
+      # Made by an earlier checkout with trust authentication: password first (trust still lets us
+      # in), then the new rules, then reload.
+      say "upgrading the running cluster from trust to password authentication"
+      set_password
+      write_auth_files
+      as_owner "$BINDIR/pg_ctl" -D "$PGDIR" reload >/dev/null
+    else
+      set_password # in step with the password file, should it have been made again
+    fi
     say "already running on 127.0.0.1:$PORT ($PGDIR)"
     return 0
+  fi
+  if ! auth_files_current; then
+    say "upgrading the cluster from trust to password authentication"
+    write_auth_files
   fi
   if [ -f "$PGDIR/postmaster.pid" ]; then
     say "removing a stale postmaster.pid left by an earlier crash"
@@ -147,6 +221,7 @@ cmd_start() {
     exit 1
   fi
   wait_ready || die "PostgreSQL started but does not accept connections on 127.0.0.1:$PORT"
+  set_password
   say "started on 127.0.0.1:$PORT ($PGDIR)"
 }
 
@@ -170,9 +245,9 @@ cmd_ensure_db() {
   [[ "$name" =~ ^[a-z_][a-z0-9_]*$ ]] || die "bad database name: $name"
   BINDIR=$(find_bindir) || die "PostgreSQL is not installed"
   local exists
-  exists=$("$BINDIR/psql" -h 127.0.0.1 -p "$PORT" -U postgres -d postgres -tAc "select 1 from pg_database where datname = '$name'")
+  exists=$(owner_psql -tAc "select 1 from pg_database where datname = '$name'")
   if [ "$exists" != 1 ]; then
-    "$BINDIR/psql" -h 127.0.0.1 -p "$PORT" -U postgres -d postgres -qc "create database $name" >/dev/null
+    owner_psql -c "create database $name" >/dev/null
     say "created database $name"
   fi
 }

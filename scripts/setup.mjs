@@ -102,18 +102,39 @@ export function migrateAndSeed(env) {
   run(bin("tsx"), ["db/seed.ts"], { env });
 }
 
-/** A secret for signing session tokens, made once per checkout and kept in .data/. */
-export function authSecret() {
-  if (process.env.AUTH_SECRET) return process.env.AUTH_SECRET;
-  const file = path.join(DATA, "auth-secret");
-  if (!fs.existsSync(file)) {
-    fs.mkdirSync(DATA, { recursive: true });
-    fs.writeFileSync(file, randomBytes(32).toString("base64url"), { mode: 0o600 });
+/**
+ * A random secret made once per installation and kept in .data/ (mode 0600, never in the source or
+ * the repository). The environment wins: a deployment sets its own.
+ */
+export function localSecret(envName, file, make) {
+  const fromEnv = envName ? process.env[envName] : undefined;
+  if (fromEnv) return fromEnv;
+  const full = path.join(DATA, file);
+  fs.mkdirSync(DATA, { recursive: true });
+  try {
+    fs.writeFileSync(full, make(), { mode: 0o600, flag: "wx" }); // "wx": never overwrite a kept one
+  } catch (err) {
+    if (err?.code !== "EEXIST") throw err;
   }
-  return fs.readFileSync(file, "utf8").trim();
+  fs.chmodSync(full, 0o600);
+  const value = fs.readFileSync(full, "utf8").trim();
+  if (!value) fail(`${full} is empty: delete it to make a new secret`);
+  return value;
 }
 
-const BUILD_INPUTS = ["app", "lib", "db/schema", "db/queries", "db/index.ts", "fonts", "public", "types", "next.config.mjs", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
+/** Signs session tokens (Auth.js). */
+export const authSecret = () => localSecret("AUTH_SECRET", "auth-secret", () => randomBytes(32).toString("base64url"));
+
+/**
+ * The local fake payment provider's two secrets, shared by the app and scripts/fake-payments.ts: the
+ * API key the SDK authenticates with and the key webhook events are signed with.
+ */
+export const fakePaymentsSecrets = () => ({
+  STRIPE_SECRET_KEY: localSecret(null, "payments-api-key", () => `sk_test_${randomBytes(24).toString("base64url")}`),
+  STRIPE_WEBHOOK_SECRET: localSecret("STRIPE_WEBHOOK_SECRET", "payments-webhook-secret", () => `whsec_${randomBytes(32).toString("base64url")}`),
+});
+
+const BUILD_INPUTS = ["app", "lib", "proxy.ts", "instrumentation.ts", "db/schema", "db/queries", "db/index.ts", "fonts", "public", "types", "next.config.mjs", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
 
 function sourceHash() {
   const h = createHash("sha256");
@@ -148,7 +169,7 @@ export function appEnv({ port, dbName, smtpPort = 2525, paymentsPort = 12111 }) 
   const fakePayments = !process.env.STRIPE_SECRET_KEY;
   return {
     ...(fakePayments
-      ? { STRIPE_API_BASE: `http://127.0.0.1:${paymentsPort}`, SLAB_PAYMENTS_PORT: String(paymentsPort), SLAB_FAKE_PAYMENTS: "1", SLAB_BILLING_WEBHOOK_URL: `http://localhost:${port}/api/billing/webhook` }
+      ? { STRIPE_API_BASE: `http://127.0.0.1:${paymentsPort}`, SLAB_PAYMENTS_PORT: String(paymentsPort), SLAB_FAKE_PAYMENTS: "1", SLAB_BILLING_WEBHOOK_URL: `http://localhost:${port}/api/billing/webhook`, ...fakePaymentsSecrets() }
       : {}),
     SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}`,
     SLAB_SMTP_PORT: String(smtpPort),

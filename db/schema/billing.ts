@@ -3,7 +3,8 @@ import { workspaces } from "./workspaces";
 
 /**
  * Billing: each workspace's plan and subscription as the payment provider's events left it, the
- * events themselves (each applied once), invoices, and plates made per billing period.
+ * checkout sessions we created, the events themselves (each applied once), invoices, and plates made
+ * per billing period.
  */
 export const workspaceBilling = pgTable("workspace_billing", {
   workspaceId: text("workspace_id").primaryKey().references(() => workspaces.id, { onDelete: "cascade" }),
@@ -20,13 +21,34 @@ export const workspaceBilling = pgTable("workspace_billing", {
   updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
 });
 
+/**
+ * Every checkout session the app created, with the workspace and plan it was made for: a completed
+ * checkout is applied only to the workspace in this record, never to one named by the event.
+ */
+export const checkoutSessions = pgTable(
+  "checkout_sessions",
+  {
+    id: text("id").primaryKey(),
+    workspaceId: text("workspace_id").notNull().references(() => workspaces.id, { onDelete: "cascade" }),
+    plan: text("plan").$type<"workshop" | "farm">().notNull(),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    /** When its completion was applied (once). */
+    completedAt: timestamp("completed_at", { withTimezone: true }),
+  },
+  (t) => [index("checkout_sessions_workspace_idx").on(t.workspaceId, t.createdAt)],
+);
+
 export const billingEvents = pgTable("billing_events", {
   id: text("id").primaryKey(),
   type: text("type").notNull(),
   workspaceId: text("workspace_id").references(() => workspaces.id, { onDelete: "cascade" }),
   createdAt: timestamp("created_at", { withTimezone: true }).notNull(),
   receivedAt: timestamp("received_at", { withTimezone: true }).notNull().defaultNow(),
-  /** applied, or why not: stale (older than what was applied), unknown_customer, ignored. */
+  /**
+   * applied, or why not: stale (older than what was applied), unknown_customer, ignored,
+   * unknown_session (a checkout we never created), session_not_complete (the provider says it is not
+   * paid), session_mismatch (the provider's session belongs to another customer).
+   */
   outcome: text("outcome").notNull(),
 });
 

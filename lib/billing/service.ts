@@ -1,12 +1,12 @@
 import "server-only";
-import { and, desc, eq, sql } from "drizzle-orm";
+import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import Stripe from "stripe";
 import { db, type Db } from "@/db";
-import { billingEvents, invoices, plateUsage, workspaceBilling } from "@/db/schema";
+import { billingEvents, checkoutSessions, invoices, plateUsage, workspaceBilling } from "@/db/schema";
 import { ApiProblem } from "@/lib/api/respond";
 import { audit } from "@/lib/audit";
 import { UserError } from "@/lib/auth/errors";
-import { env } from "@/lib/env";
+import { env, requireSecret } from "@/lib/env";
 import { PLANS, type Plan, type PlanId } from "./plans";
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
@@ -17,7 +17,7 @@ export function payments(): Stripe {
   if (client) return client;
   const e = env();
   const base = e.STRIPE_API_BASE ? new URL(e.STRIPE_API_BASE) : null;
-  client = new Stripe(e.STRIPE_SECRET_KEY, base ? { host: base.hostname, port: Number(base.port || (base.protocol === "https:" ? 443 : 80)), protocol: base.protocol === "https:" ? "https" : "http", maxNetworkRetries: 1 } : { maxNetworkRetries: 2 });
+  client = new Stripe(requireSecret("STRIPE_SECRET_KEY"), base ? { host: base.hostname, port: Number(base.port || (base.protocol === "https:" ? 443 : 80)), protocol: base.protocol === "https:" ? "https" : "http", maxNetworkRetries: 1 } : { maxNetworkRetries: 2 });
   return client;
 }
 
@@ -91,7 +91,7 @@ export function buildPriority(plan: PlanId): number {
 /** Checkout for a paid plan: the provider's hosted page, back to the billing page afterwards. */
 export async function startCheckout(actor: { workspaceId: string; userId: string; email: string }, plan: PlanId): Promise<string> {
   const p = PLANS[plan];
-  if (!p.priceEnv) throw new UserError("invalid", "The Bench plan needs no checkout.");
+  if (plan === "bench" || !p.priceEnv) throw new UserError("invalid", "The Bench plan needs no checkout.");
   const b = await billingOf(actor.workspaceId);
   if (b.plan === plan && b.status !== "canceled") throw new UserError("invalid", `The workspace is on the ${p.name} plan already.`);
   let customer = b.customerId;
@@ -110,6 +110,8 @@ export async function startCheckout(actor: { workspaceId: string; userId: string
     metadata: { workspaceId: actor.workspaceId, plan },
     subscription_data: { metadata: { workspaceId: actor.workspaceId, plan } },
   });
+  // Our own record of the session: the webhook applies a completed checkout only through it.
+  await db().insert(checkoutSessions).values({ id: session.id, workspaceId: actor.workspaceId, plan });
   await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "checkout_started", details: { plan } });
   if (!session.url) throw new Error("the payment provider gave no checkout page");
   return session.url;
@@ -125,32 +127,62 @@ export async function billingPortal(workspaceId: string): Promise<string> {
 const planOfPrice = (price: string | undefined): PlanId | null => (price === env().STRIPE_PRICE_WORKSHOP ? "workshop" : price === env().STRIPE_PRICE_FARM ? "farm" : null);
 const at = (s: number | null | undefined) => (s ? new Date(s * 1000) : null);
 
-type Obj = Record<string, unknown> & { customer?: string | null; metadata?: Record<string, string> | null };
+type Obj = Record<string, unknown> & { id?: string; customer?: string | null };
+type Outcome = "applied" | "duplicate" | "stale" | "ignored" | "unknown_customer" | "unknown_session" | "session_not_complete" | "session_mismatch";
+
+const idOf = (v: string | { id: string } | null | undefined): string | null => (typeof v === "string" ? v : (v?.id ?? null));
+
+/**
+ * A completed checkout, checked against our record of the sessions we created and against the
+ * provider itself (the session fetched by id with our API key): the workspace and plan come from our
+ * record, the customer and subscription from the provider. Nothing is taken from the event's metadata.
+ */
+async function checkedCheckout(sessionId: string | undefined) {
+  if (!sessionId) return { outcome: "unknown_session" as const };
+  const [record] = await db().select().from(checkoutSessions).where(eq(checkoutSessions.id, sessionId));
+  if (!record) return { outcome: "unknown_session" as const };
+  const s = await payments().checkout.sessions.retrieve(sessionId);
+  // Fulfil only a complete session that is paid (or needs no payment) — from memory of the provider's
+  // fulfilment guidance: a completed session can still be "unpaid" with a delayed payment method.
+  if (s.status !== "complete" || s.payment_status === "unpaid") return { outcome: "session_not_complete" as const, record };
+  return { outcome: "ok" as const, record, customer: idOf(s.customer), subscription: idOf(s.subscription) };
+}
 
 /**
  * A signed event from the payment provider. Verified with the SDK; applied at most once (the event
  * id is the key); applied in event-time order (an event older than the last one applied to the
- * workspace is recorded and changes nothing). Returns what happened.
+ * workspace is recorded and changes nothing). The workspace is found through what we stored: the
+ * checkout session we created (checkout.session.completed) or the customer id (everything else).
+ *
+ * Events that verify but must not change anything (a checkout we never created, one not paid, an
+ * unknown customer) are recorded with their outcome and answered 200: the provider redelivers any
+ * other answer for days, and a redelivery cannot change the outcome.
  */
-export async function handleBillingEvent(raw: string, signature: string | null): Promise<"applied" | "duplicate" | "stale" | "ignored" | "unknown_customer"> {
+export async function handleBillingEvent(raw: string, signature: string | null): Promise<Outcome> {
+  const webhookSecret = env().STRIPE_WEBHOOK_SECRET;
+  if (!webhookSecret) throw new ApiProblem(503, "billing_not_configured", "This server has no STRIPE_WEBHOOK_SECRET: it cannot verify payment events.");
   let event: Stripe.Event;
   try {
-    event = payments().webhooks.constructEvent(raw, signature ?? "", env().STRIPE_WEBHOOK_SECRET);
+    event = payments().webhooks.constructEvent(raw, signature ?? "", webhookSecret);
   } catch (err) {
     throw new ApiProblem(400, "bad_signature", `The event's signature does not verify: ${err instanceof Error ? err.message : String(err)}`);
   }
   const obj = event.data.object as unknown as Obj;
+  const checkout = event.type === "checkout.session.completed" ? await checkedCheckout(obj.id) : null;
   return db().transaction(async (tx) => {
     const customer = typeof obj.customer === "string" ? obj.customer : null;
-    let workspaceId = obj.metadata?.workspaceId ?? null;
-    if (!workspaceId && customer) workspaceId = (await tx.select({ id: workspaceBilling.workspaceId }).from(workspaceBilling).where(eq(workspaceBilling.customerId, customer)))[0]?.id ?? null;
+    let workspaceId: string | null = null;
+    if (checkout) workspaceId = checkout.record?.workspaceId ?? null;
+    else if (customer) workspaceId = (await tx.select({ id: workspaceBilling.workspaceId }).from(workspaceBilling).where(eq(workspaceBilling.customerId, customer)))[0]?.id ?? null;
     const created = new Date(event.created * 1000);
     const inserted = await tx.insert(billingEvents).values({ id: event.id, type: event.type, workspaceId, createdAt: created, outcome: "pending" }).onConflictDoNothing().returning();
     if (!inserted.length) return "duplicate";
-    const done = async (outcome: "applied" | "stale" | "ignored" | "unknown_customer") => {
+    const done = async (outcome: Exclude<Outcome, "duplicate">) => {
       await tx.update(billingEvents).set({ outcome }).where(eq(billingEvents.id, event.id));
+      if (outcome.startsWith("session_") || outcome === "unknown_session") console.warn(`billing: event ${event.id} (${event.type}) not applied: ${outcome}`);
       return outcome;
     };
+    if (checkout && checkout.outcome !== "ok") return done(checkout.outcome);
     if (!workspaceId) return done("unknown_customer");
     await tx.execute(sql`select 1 from workspace_billing where workspace_id = ${workspaceId} for update`);
     const b = await billingOf(workspaceId, tx);
@@ -159,14 +191,19 @@ export async function handleBillingEvent(raw: string, signature: string | null):
     let to: PlanId | null = null;
     switch (event.type) {
       case "checkout.session.completed": {
-        to = (obj.metadata?.plan as PlanId | undefined) ?? null;
-        Object.assign(set, { customerId: customer, subscriptionId: typeof obj.subscription === "string" ? obj.subscription : null, status: "active", graceUntil: null, ...(to ? { plan: to } : {}) });
+        if (checkout?.outcome !== "ok") return done("unknown_session");
+        // The provider's session must belong to the customer we made for this workspace.
+        if (b.customerId && checkout.customer !== b.customerId) return done("session_mismatch");
+        const [first] = await tx.update(checkoutSessions).set({ completedAt: new Date() }).where(and(eq(checkoutSessions.id, checkout.record.id), isNull(checkoutSessions.completedAt))).returning();
+        if (!first) return done("ignored"); // this checkout was applied once already (another event id)
+        to = checkout.record.plan;
+        Object.assign(set, { customerId: checkout.customer, subscriptionId: checkout.subscription, status: "active", graceUntil: null, plan: to });
         break;
       }
       case "customer.subscription.created":
       case "customer.subscription.updated": {
         const items = (obj.items as { data?: { price?: { id?: string }; current_period_start?: number; current_period_end?: number }[] } | undefined)?.data ?? [];
-        to = planOfPrice(items[0]?.price?.id) ?? ((obj.metadata?.plan as PlanId | undefined) ?? null);
+        to = planOfPrice(items[0]?.price?.id);
         const status = obj.status as string;
         Object.assign(set, {
           subscriptionId: obj.id as string,

@@ -11,7 +11,11 @@ import { baseUrl } from "../support/http";
 // Billing against the started app and our fake payment provider: checkout on its hosted page,
 // signed webhook events verified by the SDK, duplicates and late events, quota 402, failed payments.
 const fake = process.env.STRIPE_API_BASE!;
-const secret = process.env.STRIPE_WEBHOOK_SECRET ?? "whsec_local_fake_secret";
+// The secret npm test made for this installation and gave to the app and the fake provider.
+const secret = process.env.STRIPE_WEBHOOK_SECRET ?? "";
+if (!secret) throw new Error("STRIPE_WEBHOOK_SECRET is not set: run the integration tests through npm test");
+/** The value lib/env.ts used to fall back to: it must verify nothing any more. */
+const LEGACY_SECRET = "whsec_local_fake_secret";
 
 let ws: { id: string };
 let ownerId: string;
@@ -87,6 +91,60 @@ describe("checkout", () => {
     expect((await hook(body, "")).status).toBe(400);
     expect(await db().select().from(billingEvents).where(eq(billingEvents.id, "evt_forged"))).toEqual([]);
     expect((await billingOf(ws.id)).plan).toBe("workshop");
+  });
+});
+
+describe("forged and foreign checkout events", () => {
+  // ASVS 4.0 V2.10.4 / V6.4.1 (no secret in source code): the value that used to be the in-code
+  // default must not verify anything now.
+  it("a checkout.session.completed signed with the old in-source secret is refused (400) and changes nothing", async () => {
+    const before = await billingOf(ws.id);
+    const id = `evt_legacy_${Date.now()}`;
+    const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: "cs_forged_legacy", object: "checkout.session", customer: before.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: ws.id, plan: "farm" } } } });
+    const r = await hook(body, sign(body, undefined, LEGACY_SECRET));
+    expect(r.status).toBe(400);
+    expect(((await r.json()) as { error: { code: string } }).error.code).toBe("bad_signature");
+    expect(await db().select().from(billingEvents).where(eq(billingEvents.id, id))).toEqual([]);
+    expect((await billingOf(ws.id)).plan).toBe(before.plan);
+  });
+
+  // ASVS 4.0 V13.2.x / V1.5.x (webhook authenticity beyond the signature; untrusted input): only a checkout session the
+  // app created is applied. A signed event for any other session id is answered 200 (outcome
+  // unknown_session) and recorded, so the provider stops redelivering it, but it changes no plan.
+  it("a correctly signed event for a checkout session we never created is recorded and not applied", async () => {
+    const before = await billingOf(ws.id);
+    const id = `evt_unknown_session_${Date.now()}`;
+    const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: `cs_never_made_${Date.now()}`, object: "checkout.session", customer: before.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: ws.id, plan: "farm" } } } });
+    const r = await hook(body, sign(body));
+    expect(r.status).toBe(200);
+    expect(((await r.json()) as { outcome: string }).outcome).toBe("unknown_session");
+    const [row] = await db().select().from(billingEvents).where(eq(billingEvents.id, id));
+    expect(row?.outcome).toBe("unknown_session");
+    const after = await billingOf(ws.id);
+    expect([after.plan, after.subscriptionId]).toEqual([before.plan, before.subscriptionId]);
+  });
+
+  // ASVS 4.0 V4.2.1 (no access to another tenant's records by changing an identifier) and V13.2.x:
+  // the workspace and plan come from our record of the session, never from the event's metadata.
+  it("a checkout session created for workspace A cannot upgrade workspace B through its metadata", async () => {
+    await db().delete(workspaces).where(like(workspaces.name, "Billing other shop%"));
+    const [other] = await db().insert(workspaces).values({ name: "Billing other shop", slug: `billing-other-${Date.now()}` }).returning();
+    const otherId = other?.id ?? "";
+    expect((await billingOf(otherId)).plan).toBe("bench");
+    const aBefore = await billingOf(ws.id);
+    const url = await startCheckout(actor(), "farm"); // a real session, for workspace A, never paid
+    const sessionId = new URL(url).pathname.split("/").at(-1) ?? "";
+    expect(sessionId).toMatch(/^cs_/);
+    const id = `evt_cross_${Date.now()}`;
+    const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: sessionId, object: "checkout.session", customer: aBefore.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: otherId, plan: "farm" } } } });
+    const r = await hook(body, sign(body));
+    expect(r.status).toBe(200);
+    expect((await billingOf(otherId)).plan).toBe("bench");
+    // Nor is A upgraded: the provider says that session was never paid.
+    const aAfter = await billingOf(ws.id);
+    expect([aAfter.plan, aAfter.subscriptionId]).toEqual([aBefore.plan, aBefore.subscriptionId]);
+    const [row] = await db().select().from(billingEvents).where(eq(billingEvents.id, id));
+    expect(row?.workspaceId).not.toBe(otherId);
   });
 });
 
