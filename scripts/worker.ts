@@ -14,6 +14,7 @@ import { eq } from "drizzle-orm";
 import { db } from "@/db";
 import { templateVersions } from "@/db/schema";
 import { BUILD_QUEUE, boss, enqueueThumbnail, JOB_CHANNEL } from "@/lib/jobs/queue";
+import { runPartUploadJob } from "@/lib/jobs/run-part-upload";
 import { runPlateJob } from "@/lib/jobs/run-job";
 import { runThumbnailJob } from "@/lib/jobs/run-thumbnail";
 
@@ -35,7 +36,7 @@ await listener.query(`listen ${JOB_CHANNEL}`);
 let stopping = false;
 async function slot() {
   while (!stopping) {
-    const [job] = await queue.fetch<{ plateId?: string; templateVersionId?: string }>(BUILD_QUEUE, { batchSize: 1 }).catch((err: unknown) => {
+    const [job] = await queue.fetch<{ plateId?: string; templateVersionId?: string; partUploadId?: string }>(BUILD_QUEUE, { batchSize: 1 }).catch((err: unknown) => {
       console.error("[worker] fetch failed", err);
       return [];
     });
@@ -47,7 +48,8 @@ async function slot() {
       continue;
     }
     try {
-      if (job.data.templateVersionId) await runThumbnailJob(pool, job.data.templateVersionId);
+      if (job.data.partUploadId) await runPartUploadJob(pool, job.data.partUploadId);
+      else if (job.data.templateVersionId) await runThumbnailJob(pool, job.data.templateVersionId);
       else await runPlateJob(pool, job.data.plateId!, job.id);
       await queue.complete(BUILD_QUEUE, job.id);
     } catch (err) {

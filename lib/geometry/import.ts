@@ -92,6 +92,20 @@ export function sniffFormat(bytes: Uint8Array): MeshFormat | null {
   return null;
 }
 
+/**
+ * The format from a file's first bytes and its total size alone (for a stream stored before it is
+ * read whole): a binary STL is recognised by its triangle count at byte 80 and the size 84 + 50·n.
+ * `head` should hold at least the first 4 kB (all of a smaller file).
+ */
+export function sniffHead(head: Uint8Array, size: number): MeshFormat | null {
+  if (head.byteLength >= 4 && head[0] === 0x50 && head[1] === 0x4b && head[2] === 0x03 && head[3] === 0x04) return "3mf";
+  if (head.byteLength >= 84 && size === 84 + 50 * new DataView(head.buffer, head.byteOffset, head.byteLength).getUint32(80, true)) return "stl";
+  if (looksLikeAsciiStl(head)) return "stl";
+  const text = new TextDecoder("latin1").decode(head.subarray(0, Math.min(head.byteLength, 4096)));
+  if (/^\s*v\s/m.test(text)) return "obj";
+  return null;
+}
+
 /** The format by content; a file named .stl that matches nothing goes to the STL reader, which says what is wrong. */
 export function detectFormat(bytes: Uint8Array, fileName: string): MeshFormat {
   const sniffed = sniffFormat(bytes);
