@@ -113,6 +113,7 @@ try {
     app = spawnChild(process.execPath, ["scripts/serve.mjs", "-H", "127.0.0.1", "-p", String(port)], { ...env, SLAB_MAX_UPLOAD_BYTES: String(20 * 1024 * 1024) });
     if (!(await waitForHttp(`http://localhost:${port}/api/health`, 120_000))) throw new Error("the test app did not start");
     env.SLAB_TEST_BASE_URL = `http://localhost:${port}`;
+    env.SLAB_TEST_APP_PID = String(app.pid); // the upload tests read the app's memory from /proc
     env.SLAB_TEST_SERVER = "1";
     stopApp = () => app?.kill("SIGTERM");
   }

@@ -18,6 +18,7 @@ import { eq } from "drizzle-orm";
 import { db } from "@/db";
 import { templateVersions } from "@/db/schema";
 import { BUILD_QUEUE, boss, CALLBACK_QUEUE, callbackTimeoutMs, enqueueThumbnail, JOB_CHANNEL } from "@/lib/jobs/queue";
+import { runPartUploadJob } from "@/lib/jobs/run-part-upload";
 import { runPlateJob } from "@/lib/jobs/run-job";
 import { runThumbnailJob } from "@/lib/jobs/run-thumbnail";
 import { deliverOnce, type CallbackJob } from "@/lib/jobs/webhook";
@@ -63,8 +64,9 @@ async function loop<T extends object>(name: string, run: (job: { id: string; dat
 }
 
 const slot = () =>
-  loop<{ plateId?: string; templateVersionId?: string }>(BUILD_QUEUE, async (job) => {
-    if (job.data.templateVersionId) await runThumbnailJob(pool, job.data.templateVersionId);
+  loop<{ plateId?: string; templateVersionId?: string; partUploadId?: string }>(BUILD_QUEUE, async (job) => {
+    if (job.data.partUploadId) await runPartUploadJob(pool, job.data.partUploadId);
+    else if (job.data.templateVersionId) await runThumbnailJob(pool, job.data.templateVersionId);
     else if (job.data.plateId) await runPlateJob(pool, job.data.plateId, job.id);
     else throw new Error("a build job without a plate or a template version");
   });

@@ -60,6 +60,36 @@ export const parts = pgTable(
   ],
 );
 
+export const partUploadStateEnum = pgEnum("part_upload_state", ["checking", "ready", "refused"]);
+
+/**
+ * One uploaded file on its way into the library. The web process only stores the bytes and this row
+ * (`checking`); a worker imports the file and either adds its part(s) (`ready`, with their ids) or
+ * records the importer's refusal (`refused`, with its code and message).
+ */
+export const partUploads = pgTable(
+  "part_uploads",
+  {
+    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    /** The file's name as sent (shown, and the part's name; never a path). */
+    fileName: text("file_name").notNull(),
+    blobKey: text("blob_key").notNull(),
+    byteSize: integer("byte_size").notNull(),
+    /** How to read it: split bodies into parts, the unit, lay flat. */
+    options: jsonb("options").$type<{ split?: boolean; unit?: string; layFlat?: boolean }>().notNull().default(sql`'{}'::jsonb`),
+    state: partUploadStateEnum("state").notNull().default("checking"),
+    partIds: jsonb("part_ids").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    error: jsonb("error").$type<{ code: string; message: string; details?: Record<string, unknown> }>(),
+    uploadedBy: text("uploaded_by").references(() => users.id, { onDelete: "set null" }),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    finishedAt: timestamp("finished_at", { withTimezone: true }),
+  },
+  (t) => [index("part_uploads_workspace_created_idx").on(t.workspaceId, t.createdAt), index("part_uploads_blob_idx").on(t.blobKey)],
+);
+
 export const orientationEnum = pgEnum("piece_orientation", ["as-imported", "lay-flat", "turned"]);
 
 /** A named set of parts with quantities. */
@@ -105,5 +135,6 @@ export const kitParts = pgTable(
 );
 
 export type Part = typeof parts.$inferSelect;
+export type PartUpload = typeof partUploads.$inferSelect;
 export type Kit = typeof kits.$inferSelect;
 export type KitPart = typeof kitParts.$inferSelect;

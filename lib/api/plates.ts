@@ -8,7 +8,8 @@ import { idempotencyKeys, kitParts, kits, parts, plates, type Plate, type PlateI
 import type { ApiCaller } from "@/lib/auth/api-guard";
 import { ApiProblem } from "@/lib/api/respond";
 import { notFound } from "@/lib/auth/errors";
-import { sniffFormat } from "@/lib/geometry/import";
+import { sniffHead } from "@/lib/geometry/import";
+import type { StreamedForm } from "@/lib/api/multipart";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
 import type { PlanId } from "@/lib/billing/plans";
@@ -21,9 +22,10 @@ import { blobStore } from "@/lib/storage";
 import { formatSchema, quantitySchema, variablesSchema } from "@/lib/validation/plates";
 
 
-function json<T>(raw: FormDataEntryValue | null, schema: z.ZodType<T>, field: string): T | undefined {
+function json<T>(form: StreamedForm, schema: z.ZodType<T>, field: string): T | undefined {
+  if (form.fileFields.has(field)) throw new ApiProblem(400, "bad_request", `${field} must be a text field holding JSON.`);
+  const raw = form.get(field);
   if (raw === null || raw === "") return undefined;
-  if (typeof raw !== "string") throw new ApiProblem(400, "bad_request", `${field} must be a text field holding JSON.`);
   let value: unknown;
   try {
     value = JSON.parse(raw);
@@ -50,16 +52,22 @@ export type PlateRequest = {
   kitId?: string;
 };
 
-/** Turn the multipart form into a build request: files stored (content-addressed), kit and options checked. */
-export async function readPlateRequest(caller: ApiCaller, form: FormData, queryFormat: string | null, maxPartBytes: number): Promise<PlateRequest> {
-  const files = form.getAll("part");
+/**
+ * Turn the multipart form into a build request: kit and options checked, and the part files (already
+ * streamed into the blob store, content-addressed) refused here when plainly not meshes. The meshes
+ * themselves are imported by the build worker, never in the web process.
+ */
+export async function readPlateRequest(caller: ApiCaller, form: StreamedForm, queryFormat: string | null): Promise<PlateRequest> {
+  const files = form.files;
   const kitId = form.get("kit");
+  if (form.fileFields.has("part")) throw new ApiProblem(400, "bad_request", "Each part must be a file.");
+  if (form.fileFields.has("kit")) throw new ApiProblem(400, "bad_request", "kit must be an id.");
   if (files.length && kitId) throw new ApiProblem(400, "bad_request", "Send either part files or a kit, not both.");
   if (!files.length && !kitId) throw new ApiProblem(400, "bad_request", "Send one or more `part` files, or a `kit` id.");
-  const rawOptions = json(form.get("options"), z.record(z.string(), z.unknown()), "options") ?? {};
+  const rawOptions = json(form, z.record(z.string(), z.unknown()), "options") ?? {};
   const templateRef = form.get("template");
   const versionRaw = form.get("templateVersion");
-  if (templateRef !== null && typeof templateRef !== "string") throw new ApiProblem(400, "bad_request", "template must be a template id.");
+  if (form.fileFields.has("template")) throw new ApiProblem(400, "bad_request", "template must be a template id.");
   const templateVersion = versionRaw === null || versionRaw === "" ? undefined : Number(versionRaw);
   if (templateVersion !== undefined && !(Number.isInteger(templateVersion) && templateVersion >= 1)) throw new ApiProblem(400, "bad_request", "templateVersion must be a version number (1, 2, …).");
   if (templateVersion !== undefined && !templateRef) throw new ApiProblem(400, "bad_request", "templateVersion needs a template.");
@@ -67,10 +75,10 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
   const storedOptions = version ? mergeOptions(version.options as SlabOptionsInput, rawOptions as SlabOptionsInput) : (rawOptions as SlabOptionsInput);
   const parsedOptions = slabOptionsSchema.safeParse(storedOptions);
   if (!parsedOptions.success) throw new ApiProblem(422, "invalid_options", version ? "options over the template do not match the slab builder's options." : "options do not match the slab builder's options.", parsedOptions.error.issues);
-  const givenVariables = json(form.get("variables"), variablesSchema, "variables") ?? {};
-  const fmt = formatSchema.safeParse((form.get("format") as string | null) ?? queryFormat ?? "3mf");
+  const givenVariables = json(form, variablesSchema, "variables") ?? {};
+  const fmt = formatSchema.safeParse(form.get("format") ?? queryFormat ?? "3mf");
   if (!fmt.success) throw new ApiProblem(400, "bad_request", "format must be stl, 3mf or json.");
-  const callbackUrl = (form.get("callbackUrl") as string | null) || undefined;
+  const callbackUrl = form.get("callbackUrl") || undefined;
   if (callbackUrl) {
     const problem = await callbackProblem(callbackUrl);
     if (problem) throw new ApiProblem(422, problem.code, problem.message, { reason: problem.reason, ...(problem.address ? { address: problem.address } : {}) });
@@ -79,7 +87,6 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
   const input: PlateInput = { parts: [] };
   let title = "Slabwright plate";
   if (kitId) {
-    if (typeof kitId !== "string") throw new ApiProblem(400, "bad_request", "kit must be an id.");
     const [kit] = await db().select().from(kits).where(and(eq(kits.id, kitId), eq(kits.workspaceId, caller.workspaceId)));
     if (!kit) throw new ApiProblem(404, "not_found", "No such kit.");
     const lines = await db().select({ kp: kitParts, part: parts }).from(kitParts).innerJoin(parts, eq(parts.id, kitParts.partId)).where(eq(kitParts.kitId, kit.id)).orderBy(kitParts.position);
@@ -96,19 +103,15 @@ export async function readPlateRequest(caller: ApiCaller, form: FormData, queryF
       partId: part.id,
     }));
   } else {
-    const quantity = json(form.get("quantity"), quantitySchema, "quantity");
+    const quantity = json(form, quantitySchema, "quantity");
     if (quantity && quantity.length !== files.length) throw new ApiProblem(422, "invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
     for (const [i, f] of files.entries()) {
-      if (typeof f === "string") throw new ApiProblem(400, "bad_request", "Each part must be a file.");
-      if (f.size > maxPartBytes) throw new ApiProblem(413, "file_too_large", `${f.name} is larger than the ${(maxPartBytes / 1024 / 1024).toFixed(0)} MB limit.`);
-      const bytes = new Uint8Array(await f.arrayBuffer());
-      // Refuse what is plainly not a mesh here; the worker's import says what is wrong with the rest.
-      if (bytes.byteLength === 0) throw new ApiProblem(422, "empty", `${f.name}: the file is empty.`);
-      if (!sniffFormat(bytes) && !(bytes.byteLength >= 84 && /\.stl$/i.test(f.name))) {
+      // Refuse what is plainly not a mesh here, from its first bytes; the worker's import says what is wrong with the rest.
+      if (f.size === 0) throw new ApiProblem(422, "empty", `${f.name}: the file is empty.`);
+      if (!sniffHead(f.head, f.size) && !(f.size >= 84 && /\.stl$/i.test(f.name))) {
         throw new ApiProblem(415, "not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads STL (binary or ASCII), 3MF and OBJ.`);
       }
-      const put = await blobStore().put(bytes);
-      input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: put.key, quantity: quantity?.[i] ?? 1 });
+      input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: f.key, quantity: quantity?.[i] ?? 1 });
     }
   }
   // The plate keeps every value it is made with, {date} included, so it can be made again exactly.

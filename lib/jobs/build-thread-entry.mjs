@@ -5,3 +5,5 @@ import { register } from "tsx/esm/api";
 register();
 const mod = await import("./build-thread.ts");
 export default mod.default;
+// Named tasks (piscina's `run(task, { name })`).
+export const importPart = mod.importPart;

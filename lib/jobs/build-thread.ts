@@ -16,6 +16,7 @@ import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
 import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { orientMesh } from "@/lib/geometry/orient";
+import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
 import { blobStore } from "@/lib/storage";
 
 export type BuildTask = {
@@ -62,6 +63,32 @@ function samplePieces() {
 function retire() {
   // Let piscina deliver this answer first, then end the thread; piscina starts a fresh one.
   setTimeout(() => process.exit(0), 50);
+}
+
+export type PartUploadOutcome =
+  | { ok: true; drafts: PartDraft[]; blobs: string[] }
+  | { ok: false; code: string; message: string; details?: Record<string, unknown> };
+
+/**
+ * An uploaded file read into library parts (piscina's `importPart` task): the import runs here,
+ * never in the web process, with the same kernel and the same thread recycling as builds.
+ */
+export async function importPart(task: PartUploadTask): Promise<PartUploadOutcome> {
+  kernel ??= loadKernel();
+  const k = await kernel;
+  try {
+    const bytes = await blobStore().get(task.blobKey);
+    return { ok: true, ...(await draftParts(k, bytes, task, (b) => blobStore().put(b))) };
+  } catch (err) {
+    if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.plain, details: err.details };
+    if (err instanceof WebAssembly.RuntimeError || (err instanceof RangeError && /memory/i.test(err.message))) {
+      retire();
+      return { ok: false, code: "out_of_memory", message: "The file is too large to check in one go (the geometry kernel ran out of memory); simplify the mesh first." };
+    }
+    throw err;
+  } finally {
+    if (++builds >= MAX_BUILDS) retire();
+  }
 }
 
 export default async function build(task: BuildTask): Promise<BuildOutcome> {

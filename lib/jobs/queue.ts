@@ -74,3 +74,11 @@ export async function enqueueCallback(workspaceId: string, url: string, event: R
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;
 }
+
+/** An uploaded part file is imported by a worker too (the web process never parses a mesh). */
+export async function enqueuePartUpload(partUploadId: string): Promise<string> {
+  const id = await (await boss()).send(BUILD_QUEUE, { partUploadId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
+  if (!id) throw new Error("the queue did not accept the upload");
+  await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
+  return id;
+}

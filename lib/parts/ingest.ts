@@ -1,98 +1,68 @@
 import "server-only";
-import { and, eq, inArray, sql } from "drizzle-orm";
+import { and, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, parts, type Part } from "@/db/schema";
+import { kitParts, kits, partUploads, parts, type Part, type PartUpload } from "@/db/schema";
 import { UserError, type Caller } from "@/lib/auth/guards";
-import { MeshImportError } from "@/lib/geometry/errors";
-import { importMesh, type ImportResult } from "@/lib/geometry/import";
-import { stem } from "@/lib/geometry/io/stl-read";
+import { importMesh } from "@/lib/geometry/import";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { UNIT_MM, type Unit } from "@/lib/geometry/io/raw";
-import { bounds, combineMeshes, signedVolume, type IndexedMesh } from "@/lib/geometry/mesh";
+import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import { orientMesh } from "@/lib/geometry/orient";
-import { topViewSvg } from "@/lib/geometry/thumbnail";
+import { enqueuePartUpload } from "@/lib/jobs/queue";
 import { serverKernel } from "@/lib/kernel-server";
-import { blobStore } from "@/lib/storage";
+import { blobStore, type StoredBlob } from "@/lib/storage";
+import { measure as measureWith } from "./measure";
+import { dropOrphans } from "./orphans";
 
 export type StoredPart = { id: string; name: string; triangles: number; bodies: number; warnings: Part["warnings"]; repairs: string[] };
-export type IngestOutcome =
-  | { ok: true; file: string; parts: StoredPart[] }
-  | { ok: false; file: string; code: string; message: string; details?: Record<string, unknown> };
 
+const measure = async (mesh: IndexedMesh, layFlat: boolean) => measureWith(await serverKernel(), mesh, layFlat);
 
-/** Everything the library shows about a part, measured on the mesh as it will stand on the slab. */
-async function measure(mesh: IndexedMesh, layFlat: boolean) {
-  const oriented = orientMesh(mesh, { layFlat });
-  const b = bounds(oriented);
-  const thumb = topViewSvg(await serverKernel(), oriented);
-  return {
-    triangles: oriented.triVerts.length / 3,
-    sizeX: b.max[0] - b.min[0],
-    sizeY: b.max[1] - b.min[1],
-    sizeZ: b.max[2] - b.min[2],
-    volume: signedVolume(oriented),
-    contactArea: thumb.contactArea,
-    thumbnailSvg: thumb.svg,
-  };
-}
+export type UploadView = {
+  id: string;
+  file: string;
+  state: PartUpload["state"];
+  url: string;
+  parts?: StoredPart[];
+  error?: { code: string; message: string; details?: Record<string, unknown> };
+};
 
-function refusal(file: string, err: unknown): IngestOutcome {
-  if (err instanceof MeshImportError) return { ok: false, file, code: err.code, message: err.plain, details: err.details };
-  throw err;
-}
+const storedPart = (p: Part): StoredPart => ({ id: p.id, name: p.name, triangles: p.triangles, bodies: p.bodies, warnings: p.warnings, repairs: p.repairs });
 
-/** Remove blobs this request stored if nothing refers to them (the rows did not land). */
-async function dropOrphans(keys: string[]) {
-  for (const key of keys) {
-    const [used] = await db().execute<{ n: number }>(sql`select (select count(*) from parts where blob_key = ${key}) + (select count(*) from plates where stl_blob_key = ${key} or three_mf_blob_key = ${key}) as n`).then((r) => r.rows);
-    if (Number(used?.n ?? 0) === 0) await blobStore().delete(key);
+/** What the library (and its upload list) is told about an upload: its state, then its parts or the refusal. */
+export async function uploadView(u: PartUpload): Promise<UploadView> {
+  const base = { id: u.id, file: u.fileName, state: u.state, url: `/api/parts/uploads/${u.id}` };
+  if (u.state === "ready") {
+    const rows = u.partIds.length ? await db().select().from(parts).where(and(inArray(parts.id, u.partIds), eq(parts.workspaceId, u.workspaceId))) : [];
+    const order = new Map(u.partIds.map((id, i) => [id, i]));
+    return { ...base, parts: rows.sort((a, b) => (order.get(a.id) ?? 0) - (order.get(b.id) ?? 0)).map(storedPart) };
   }
+  if (u.state === "refused" && u.error) return { ...base, error: u.error };
+  return base;
 }
 
 /**
- * Import one uploaded file and store it as one part (all its bodies together) or, with `split`, one
- * part per body. The bytes go to the blob store first (content-addressed, so a retry reuses them),
- * then every row in one transaction; if the rows fail, blobs this call created are removed again.
+ * Accept a stored upload: record it as `checking` and queue its import for a build worker. The bytes
+ * are already in the blob store (content-addressed, so a retry reuses them).
  */
-export async function ingestFile(caller: Caller, bytes: Uint8Array, fileName: string, opts: { split?: boolean; unit?: Unit; layFlat?: boolean } = {}): Promise<IngestOutcome> {
-  const kernel = await serverKernel();
-  let result: ImportResult;
+export async function queueUpload(caller: Caller, stored: StoredBlob, fileName: string, opts: { split?: boolean; unit?: Unit; layFlat?: boolean } = {}): Promise<PartUpload> {
+  const [row] = await db()
+    .insert(partUploads)
+    .values({ workspaceId: caller.workspace.id, fileName: fileName.slice(0, 200), blobKey: stored.key, byteSize: stored.size, options: { split: Boolean(opts.split), unit: opts.unit, layFlat: Boolean(opts.layFlat) }, uploadedBy: caller.user.id })
+    .returning();
   try {
-    result = importMesh(bytes, kernel, { fileName, unit: opts.unit });
+    await enqueuePartUpload(row!.id);
   } catch (err) {
-    return refusal(fileName, err);
-  }
-  const created: string[] = [];
-  try {
-    const groups = opts.split && result.bodies.length > 1 ? result.bodies.map((b) => ({ name: b.name, meshes: [b.mesh], own: true })) : [{ name: stem(fileName) || "part", meshes: result.bodies.map((b) => b.mesh), own: false }];
-    const rows: (typeof parts.$inferInsert)[] = [];
-    for (const g of groups) {
-      const mesh = combineMeshes(g.meshes);
-      // A split body is stored as its own STL (already in millimetres); a whole file as uploaded.
-      const data = g.own ? writeBinaryStl([mesh]) : bytes;
-      const put = await blobStore().put(data);
-      if (put.created) created.push(put.key);
-      rows.push({
-        workspaceId: caller.workspace.id,
-        name: g.name.slice(0, 120),
-        format: g.own ? ("stl" as const) : result.format,
-        blobKey: put.key,
-        byteSize: data.byteLength,
-        unit: g.own ? "millimeter" : result.unit,
-        layFlat: Boolean(opts.layFlat),
-        bodies: g.meshes.length,
-        repairs: result.repairs.map((r) => r.message),
-        warnings: result.warnings,
-        uploadedBy: caller.user.id,
-        ...(await measure(mesh, Boolean(opts.layFlat))),
-      });
-    }
-    const stored = await db().transaction(async (tx) => tx.insert(parts).values(rows).returning());
-    return { ok: true, file: fileName, parts: stored.map((p) => ({ id: p.id, name: p.name, triangles: p.triangles, bodies: p.bodies, warnings: p.warnings, repairs: p.repairs })) };
-  } catch (err) {
-    await dropOrphans(created);
+    await db().update(partUploads).set({ state: "refused", finishedAt: new Date(), error: { code: "queue_unavailable", message: "The import queue is not available; try again in a moment." } }).where(eq(partUploads.id, row!.id));
+    await dropOrphans([stored.key]);
     throw err;
   }
+  return row!;
+}
+
+export async function getUpload(caller: Caller, id: string): Promise<PartUpload | null> {
+  const [u] = await db().select().from(partUploads).where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, caller.workspace.id)));
+  return u ?? null;
 }
 
 export async function getPart(caller: Caller, id: string): Promise<Part | null> {

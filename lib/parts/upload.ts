@@ -1,6 +1,8 @@
 import "server-only";
 import { apiError } from "@/lib/api/respond";
-import { IMPORT_LIMITS } from "@/lib/geometry/import";
+import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/import";
+import { ACCEPTED_FORMATS } from "@/lib/geometry/errors";
+import { blobStore, BlobTooLargeError, type StoredBlob } from "@/lib/storage";
 
 /** Largest mesh upload accepted, bytes (SLAB_MAX_UPLOAD_BYTES overrides the engine's 200 MB default). */
 export function maxUploadBytes(): number {
@@ -8,33 +10,77 @@ export function maxUploadBytes(): number {
   return Number.isFinite(v) && v > 0 ? v : IMPORT_LIMITS.maxBytes;
 }
 
-/**
- * Read a request body up to `max` bytes. A declared Content-Length over the limit is refused before
- * any of the body is read; a body that turns out longer is cut off the moment it passes the limit.
- */
-export async function readLimited(req: Request, max: number): Promise<Uint8Array | Response> {
-  const tooLarge = () => apiError(413, "file_too_large", `The file is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });
-  const declared = Number(req.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > max) return tooLarge();
-  if (!req.body) return new Uint8Array(0);
-  const reader = req.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    total += value.byteLength;
-    if (total > max) {
-      await reader.cancel();
-      return tooLarge();
+export const tooLarge = (max: number, what = "The file") => apiError(413, "file_too_large", `${what} is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });
+
+/** How many of a stream's first bytes are kept to tell its format (sniffHead). */
+export const HEAD_BYTES = 4096;
+
+/** Pass a stream through unchanged, keeping a copy of its first HEAD_BYTES bytes. */
+export function keepHead(source: AsyncIterable<Uint8Array>): { stream: AsyncIterable<Uint8Array>; head: () => Uint8Array } {
+  const head = new Uint8Array(HEAD_BYTES);
+  let held = 0;
+  return {
+    head: () => head.slice(0, held),
+    stream: (async function* () {
+      for await (const chunk of source) {
+        if (held < HEAD_BYTES) {
+          const n = Math.min(HEAD_BYTES - held, chunk.byteLength);
+          head.set(chunk.subarray(0, n), held);
+          held += n;
+        }
+        yield chunk;
+      }
+    })(),
+  };
+}
+
+/** A web stream as an async iterable; leaving the loop early cancels the stream (the client's upload stops being read). */
+export async function* chunksOf(body: ReadableStream<Uint8Array> | null): AsyncGenerator<Uint8Array> {
+  if (!body) return;
+  const reader = body.getReader();
+  let done = false;
+  try {
+    for (;;) {
+      const r = await reader.read();
+      if (r.done) {
+        done = true;
+        return;
+      }
+      yield r.value;
     }
-    chunks.push(value);
+  } finally {
+    if (!done) await reader.cancel().catch(() => undefined);
   }
-  const out = new Uint8Array(total);
-  let o = 0;
-  for (const c of chunks) {
-    out.set(c, o);
-    o += c.byteLength;
+}
+
+export type StoredUpload = StoredBlob & { head: Uint8Array };
+
+/**
+ * Stream a request body straight into the blob store (hashed as it arrives, one chunk in memory), up
+ * to `max` bytes. A declared Content-Length over the limit is refused before any of the body is read;
+ * a body that turns out longer (chunked, or lying) is cut off the moment it passes the limit.
+ */
+export async function storeBody(req: Request, max: number): Promise<StoredUpload | Response> {
+  const declared = Number(req.headers.get("content-length"));
+  if (Number.isFinite(declared) && declared > max) return tooLarge(max);
+  const { stream, head } = keepHead(chunksOf(req.body));
+  try {
+    const stored = await blobStore().putStream(stream, { maxBytes: max });
+    return { ...stored, head: head() };
+  } catch (err) {
+    if (err instanceof BlobTooLargeError) return tooLarge(max);
+    throw err;
   }
-  return out;
+}
+
+/**
+ * Refuse at once what is plainly not a mesh, from its first bytes (cheap; the worker's import says
+ * what is wrong with the rest). A file named .stl that matches nothing still goes to the STL reader,
+ * which names the problem, as long as it is long enough to be one.
+ */
+export function plainRefusal(upload: StoredUpload, fileName: string): { status: number; code: string; message: string } | null {
+  if (upload.size === 0) return { status: 422, code: "empty", message: "the file is empty" };
+  if (sniffHead(upload.head, upload.size)) return null;
+  if (upload.size >= 84 && /\.stl$/i.test(fileName)) return null;
+  return { status: 415, code: "not_a_mesh", message: `this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.` };
 }

@@ -2,6 +2,7 @@ import { randomBytes } from "node:crypto";
 import { promises as fs } from "node:fs";
 import path from "node:path";
 import { sha256Hex } from "./hash";
+import { spool } from "./spool";
 import { assertKey, BlobNotFoundError, type BlobStore, type StoredBlob } from "./types";
 
 /**
@@ -39,6 +40,23 @@ export class DiskBlobStore implements BlobStore {
       throw err;
     }
     return { key, size: bytes.byteLength, created: true };
+  }
+
+  async putStream(source: AsyncIterable<Uint8Array>, opts: { maxBytes?: number } = {}): Promise<StoredBlob> {
+    const tmp = await spool(source, path.join(this.root, ".tmp"), opts.maxBytes);
+    const final = this.pathFor(tmp.key);
+    try {
+      if (await exists(final)) {
+        await fs.rm(tmp.file, { force: true });
+        return { key: tmp.key, size: tmp.size, created: false };
+      }
+      await fs.mkdir(path.dirname(final), { recursive: true });
+      await fs.rename(tmp.file, final);
+    } catch (err) {
+      await fs.rm(tmp.file, { force: true });
+      throw err;
+    }
+    return { key: tmp.key, size: tmp.size, created: true };
   }
 
   async get(key: string): Promise<Uint8Array> {

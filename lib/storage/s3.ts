@@ -6,7 +6,11 @@ import {
   S3Client,
   S3ServiceException,
 } from "@aws-sdk/client-s3";
+import { createReadStream, promises as fs } from "node:fs";
+import { tmpdir } from "node:os";
+import path from "node:path";
 import { sha256Hex } from "./hash";
+import { spool } from "./spool";
 import { assertKey, BlobNotFoundError, type BlobStore, type StoredBlob } from "./types";
 
 export type S3StoreConfig = {
@@ -55,6 +59,30 @@ export class S3BlobStore implements BlobStore {
       }),
     );
     return { key, size: bytes.byteLength, created: true };
+  }
+
+  /**
+   * The key is the content's digest, known only at the end, so the stream is spooled to a local
+   * temporary file while it is hashed, then that file is sent as the PutObject body (a stream with
+   * its length): memory holds one chunk at a time either way.
+   */
+  async putStream(source: AsyncIterable<Uint8Array>, opts: { maxBytes?: number } = {}): Promise<StoredBlob> {
+    const tmp = await spool(source, path.join(tmpdir(), "slabwright-spool"), opts.maxBytes);
+    try {
+      if (await this.has(tmp.key)) return { key: tmp.key, size: tmp.size, created: false };
+      await this.client.send(
+        new PutObjectCommand({
+          Bucket: this.config.bucket,
+          Key: this.objectKey(tmp.key),
+          Body: createReadStream(tmp.file),
+          ContentLength: tmp.size,
+          ContentType: "application/octet-stream",
+        }),
+      );
+      return { key: tmp.key, size: tmp.size, created: true };
+    } finally {
+      await fs.rm(tmp.file, { force: true });
+    }
   }
 
   async get(key: string): Promise<Uint8Array> {

@@ -3,6 +3,12 @@ export interface BlobStore {
   readonly kind: "disk" | "s3";
   /** Store bytes; storing the same content twice is a no-op that returns the same key. */
   put(bytes: Uint8Array): Promise<StoredBlob>;
+  /**
+   * Store a stream's bytes, hashing them as they arrive and never holding them all in memory (disk:
+   * a temporary file renamed into place; S3: the spooled file uploaded as a stream). Past `maxBytes`
+   * it stops reading and throws BlobTooLargeError; nothing is stored then.
+   */
+  putStream(source: AsyncIterable<Uint8Array>, opts?: { maxBytes?: number }): Promise<StoredBlob>;
   get(key: string): Promise<Uint8Array>;
   has(key: string): Promise<boolean>;
   /** Remove a blob; removing a missing one is not an error. */
@@ -16,6 +22,14 @@ export class BlobNotFoundError extends Error {
   constructor(readonly key: string) {
     super(`No stored file with key ${key}`);
     this.name = "BlobNotFoundError";
+  }
+}
+
+export class BlobTooLargeError extends Error {
+  readonly code = "blob_too_large";
+  constructor(readonly limit: number) {
+    super(`The content is larger than the ${limit}-byte limit`);
+    this.name = "BlobTooLargeError";
   }
 }
 

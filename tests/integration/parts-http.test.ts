@@ -9,6 +9,7 @@ import { parts } from "@/db/schema";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { box } from "../support/meshes";
 import { baseUrl, demoUser, signInOverHttp, type HttpSession } from "../support/http";
+import { settled, uploadPart } from "../support/uploads";
 
 // Over HTTP against the app npm test started (built, on the test port, test database).
 let designer: HttpSession;
@@ -41,18 +42,20 @@ describe("uploading parts", () => {
     const broken = new TextEncoder().encode(readFileSync(path.join(MODELS, "broken/missingFace.ascii.stl"), "utf8").replace("solid tetrahedron", `solid tetrahedron-${tag}`));
     const blocks = writeBinaryStl([box(10, 10, 10), box(8, 8, 5, [20, 0, 0]), box(6, 12, 4, [0, 20, 0])]);
 
-    const a = await upload(designer, `gear-${tag}.stl`, gear);
-    expect(a.status).toBe(201);
-    const b = await upload(designer, `broken-${tag}.stl`, broken);
-    expect(b.status).toBe(422);
-    const err = (await b.json()) as { error: { code: string; message: string; details: { file: string; openEdges: number } } };
-    expect(err.error).toMatchObject({ code: "open_mesh", details: { file: `broken-${tag}.stl`, openEdges: 3 } });
-    expect(err.error.message).toContain("3 open edges");
-    const c = await upload(designer, `blocks-${tag}.stl`, blocks);
-    expect(c.status).toBe(201);
-    const stored = (await c.json()) as { parts: { id: string; bodies: number }[] };
-    expect(stored.parts).toEqual([expect.objectContaining({ bodies: 3 })]);
-    made.push(...((await a.json()) as { parts: { id: string }[] }).parts.map((p) => p.id), stored.parts[0]!.id);
+    // Each upload is answered at once (202, checking); a build worker imports it, never the web process.
+    const sent = await upload(designer, `gear-${tag}.stl`, gear);
+    expect(sent.status).toBe(202);
+    expect(sent.headers.get("location")).toMatch(/^\/api\/parts\/uploads\//);
+    const a = await settled(designer, sent);
+    expect(a.state).toBe("ready");
+    const b = await uploadPart(designer, `broken-${tag}.stl`, broken);
+    expect(b.state).toBe("refused");
+    expect(b.error).toMatchObject({ code: "open_mesh", details: { file: `broken-${tag}.stl`, openEdges: 3 } });
+    expect(b.error!.message).toContain("3 open edges");
+    const c = await uploadPart(designer, `blocks-${tag}.stl`, blocks);
+    expect(c.state).toBe("ready");
+    expect(c.parts).toEqual([expect.objectContaining({ bodies: 3 })]);
+    made.push(...a.parts!.map((p) => p.id), c.parts![0]!.id);
 
     // The refused file left no row and no stored bytes.
     const rows = await db().select().from(parts).where(eq(parts.name, `broken-${tag}`));
@@ -72,8 +75,8 @@ describe("uploading parts", () => {
 
   it("splits a 3-body STL into three parts, replacing the original", async () => {
     const blocks = writeBinaryStl([box(10, 10, 10, [0, 0, 0]), box(9, 9, 5, [20, 0, 0]), box(6, 12, 4, [0, 20, 0])]);
-    const up = (await (await upload(designer, `trio-${tag}.stl`, blocks)).json()) as { parts: { id: string }[] };
-    const id = up.parts[0]!.id;
+    const up = await uploadPart(designer, `trio-${tag}.stl`, blocks);
+    const id = up.parts![0]!.id;
     const res = await designer.fetch(`/api/parts/${id}/split`, { method: "POST" });
     expect(res.status).toBe(201);
     const split = (await res.json()) as { parts: { id: string; name: string; bodies: number; triangles: number }[] };
@@ -119,15 +122,15 @@ describe("uploading parts", () => {
     const res = await upload(designer, `notes-${tag}.stl`, new TextEncoder().encode("these are my notes about the kit\n"));
     expect([415, 422]).toContain(res.status);
     const obj = new TextEncoder().encode("v 0 0 0\nv 9 0 0\nv 0 9 0\nv 0 0 9\nf 1 3 2\nf 1 2 4\nf 2 3 4\nf 1 4 3\n");
-    const ok = await upload(designer, `tetra-${tag}`, obj);
-    expect(ok.status).toBe(201);
-    made.push(...((await ok.json()) as { parts: { id: string }[] }).parts.map((p) => p.id));
+    const ok = await uploadPart(designer, `tetra-${tag}`, obj);
+    expect(ok.state).toBe("ready");
+    made.push(...ok.parts!.map((p) => p.id));
   });
 
   it("offers the unit fix: a part measured in inches becomes millimetres in one request", async () => {
     const tiny = writeBinaryStl([box(0.5, 0.5, 0.25)]);
-    const up = (await (await upload(designer, `inchy-${tag}.stl`, tiny)).json()) as { parts: { id: string; warnings: { code: string; suggestion: { unit: string } }[] }[] };
-    const p = up.parts[0]!;
+    const up = await uploadPart(designer, `inchy-${tag}.stl`, tiny);
+    const p = up.parts![0]!;
     made.push(p.id);
     expect(p.warnings[0]).toMatchObject({ code: "units_suspect", suggestion: { unit: "inch" } });
     const fixed = (await (await designer.fetch(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ unit: "inch" }), headers: { "content-type": "application/json" } })).json()) as { part: { sizeX: number; sizeZ: number; warnings: unknown[] } };
@@ -157,8 +160,8 @@ describe("deleting parts", () => {
   });
 
   it("removes an unused part, and another workspace's part is not found", async () => {
-    const up = (await (await upload(designer, `gone-${tag}.stl`, writeBinaryStl([box(7, 7, 7)]))).json()) as { parts: { id: string }[] };
-    const id = up.parts[0]!.id;
+    const up = await uploadPart(designer, `gone-${tag}.stl`, writeBinaryStl([box(7, 7, 7)]));
+    const id = up.parts![0]!.id;
     expect((await viewer.fetch(`/api/parts/${id}`, { method: "DELETE" })).status).toBe(403);
     expect((await designer.fetch(`/api/parts/${id}`, { method: "DELETE" })).status).toBe(204);
     expect((await designer.fetch(`/api/parts/${id}`)).status).toBe(404);

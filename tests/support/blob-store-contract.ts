@@ -1,6 +1,18 @@
 import { createHash } from "node:crypto";
 import { expect, it } from "vitest";
-import { BadBlobKeyError, BlobNotFoundError, type BlobStore } from "@/lib/storage/types";
+import { BadBlobKeyError, BlobNotFoundError, BlobTooLargeError, type BlobStore } from "@/lib/storage/types";
+
+async function* chunks(total: number, size: number, onPull?: (n: number) => void) {
+  let sent = 0;
+  while (sent < total) {
+    const n = Math.min(size, total - sent);
+    const c = new Uint8Array(n);
+    for (let i = 0; i < n; i++) c[i] = ((sent + i) * 2654435761) >>> 24;
+    sent += n;
+    onPull?.(sent);
+    yield c;
+  }
+}
 
 /** What every blob store must do, run against each adapter (disk, S3). */
 export function blobStoreContract(getStore: () => BlobStore) {
@@ -23,6 +35,36 @@ export function blobStoreContract(getStore: () => BlobStore) {
     const back = await store.get(key);
     expect(back.byteLength).toBe(bytes.byteLength);
     expect(createHash("sha256").update(back).digest("hex")).toBe(key);
+  });
+
+  it("stores a stream under the same key as the same bytes put whole", async () => {
+    const store = getStore();
+    const whole = new Uint8Array(2_500_000);
+    let o = 0;
+    for await (const c of chunks(whole.length, 65_536)) {
+      whole.set(c, o);
+      o += c.length;
+    }
+    const streamed = await store.putStream(chunks(whole.length, 65_536));
+    expect(streamed).toMatchObject({ key: createHash("sha256").update(whole).digest("hex"), size: whole.length });
+    expect(await store.put(whole)).toEqual({ key: streamed.key, size: whole.length, created: false });
+    expect((await store.putStream(chunks(whole.length, 10_000))).created).toBe(false);
+    expect(createHash("sha256").update(await store.get(streamed.key)).digest("hex")).toBe(streamed.key);
+  });
+
+  it("stops a stream past its limit, reading no further and storing nothing", async () => {
+    // ASVS 4.0 V12.1.1: the size limit holds for a body of unknown length too.
+    const store = getStore();
+    let pulled = 0;
+    await expect(store.putStream(chunks(10_000_000, 100_000, (n) => (pulled = n)), { maxBytes: 1_000_000 })).rejects.toBeInstanceOf(BlobTooLargeError);
+    expect(pulled).toBeLessThanOrEqual(1_100_000);
+    const firstMb = new Uint8Array(1_000_000);
+    let o = 0;
+    for await (const c of chunks(1_000_000, 100_000)) {
+      firstMb.set(c, o);
+      o += c.length;
+    }
+    expect(await store.has(createHash("sha256").update(firstMb).digest("hex"))).toBe(false);
   });
 
   it("deletes, and a missing key is a typed error", async () => {

@@ -7,7 +7,7 @@ import { db } from "@/db";
 import { plates } from "@/db/schema";
 import { createPlate, readPlateRequest, remakePlate } from "@/lib/api/plates";
 import { ApiProblem } from "@/lib/api/respond";
-import { maxUploadBytes } from "@/lib/parts/upload";
+import { textForm } from "@/lib/api/multipart";
 import { archiveKit, duplicateKit, saveKit } from "@/db/queries/kits";
 import { guardedAction } from "@/lib/auth/guards";
 import { idSchema } from "@/lib/validation/accounts";
@@ -35,14 +35,9 @@ const makePlateSchema = z.object({ kitId: z.string().min(1), options: z.record(z
 
 /** "Make the plate" in the slab editor: the same queue and worker as the API. */
 export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "making plates", async (input, caller) => {
-  const form = new FormData();
-  form.set("kit", input.kitId);
-  form.set("options", JSON.stringify(input.options));
-  form.set("variables", JSON.stringify(input.variables));
-  if (input.templateId) form.set("template", input.templateId);
-  if (input.templateVersion) form.set("templateVersion", String(input.templateVersion));
+  const form = textForm({ kit: input.kitId, options: JSON.stringify(input.options), variables: JSON.stringify(input.variables), template: input.templateId, templateVersion: input.templateVersion ? String(input.templateVersion) : undefined });
   try {
-    const request = await readPlateRequest({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, form, null, maxUploadBytes());
+    const request = await readPlateRequest({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, form, null);
     const { plate } = await createPlate({ workspaceId: caller.workspace.id, keyId: "", scopes: [] }, { ...request, title: request.title }, null);
     await db().update(plates).set({ source: "editor", createdBy: caller.user.id }).where(eq(plates.id, plate.id));
     revalidatePath("/plates");

@@ -3,8 +3,9 @@ import { PART_SORTS, searchParts } from "@/db/queries/parts";
 import { apiError, apiRoute } from "@/lib/api/respond";
 import { authorize } from "@/lib/auth/guards";
 import { UNIT_MM } from "@/lib/geometry/io/raw";
-import { ingestFile } from "@/lib/parts/ingest";
-import { maxUploadBytes, readLimited } from "@/lib/parts/upload";
+import { queueUpload, uploadView } from "@/lib/parts/ingest";
+import { dropOrphans } from "@/lib/parts/orphans";
+import { maxUploadBytes, plainRefusal, storeBody } from "@/lib/parts/upload";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -34,19 +35,24 @@ const uploadQuery = z.object({
 
 /**
  * POST /api/parts?name=<file name> — one mesh file as the raw request body (streamed, so the page
- * can show progress; sent file by file). The content decides the format, not the name.
+ * can show progress; sent file by file). The body goes straight to the blob store; the file is
+ * imported by a build worker, never here. Answers 202 with the upload `checking` and its URL, which
+ * later says `ready` (with the parts) or `refused` (with the importer's code and message). What is
+ * plainly not a mesh (by its first bytes) is refused at once: 415, or 422 when empty.
  */
 export const POST = apiRoute(async (req: Request) => {
   const caller = await authorize("parts:write", "uploading parts");
   const parsed = uploadQuery.safeParse(Object.fromEntries(new URL(req.url).searchParams));
   if (!parsed.success) return apiError(400, "bad_request", "Say the file's name as ?name=…", parsed.error.issues);
-  const body = await readLimited(req, maxUploadBytes());
-  if (body instanceof Response) return body;
   const q = parsed.data;
-  const outcome = await ingestFile(caller, body, q.name, { split: q.split === "1", unit: q.unit, layFlat: q.layFlat === "1" });
-  if (!outcome.ok) {
-    const status = outcome.code === "not_a_mesh" ? 415 : outcome.code === "file_too_large" ? 413 : 422;
-    return apiError(status, outcome.code, outcome.message, { file: outcome.file, ...outcome.details });
+  const stored = await storeBody(req, maxUploadBytes());
+  if (stored instanceof Response) return stored;
+  const refusal = plainRefusal(stored, q.name);
+  if (refusal) {
+    if (stored.created) await dropOrphans([stored.key]);
+    return apiError(refusal.status, refusal.code, refusal.message, { file: q.name });
   }
-  return Response.json(outcome, { status: 201 });
+  const upload = await queueUpload(caller, stored, q.name, { split: q.split === "1", unit: q.unit, layFlat: q.layFlat === "1" });
+  const view = await uploadView(upload);
+  return Response.json({ upload: view }, { status: 202, headers: { Location: view.url } });
 });

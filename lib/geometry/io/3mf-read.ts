@@ -2,7 +2,7 @@ import { SaxesParser, type SaxesTagNS } from "saxes";
 import { MeshImportError } from "../errors";
 import { UNIT_MM, type RawModel, type RawObject, type Unit } from "./raw";
 import { stem, tooMany } from "./stl-read";
-import { inflateEntry, readZipDirectory } from "./zip-read";
+import { inflateEntry, inflateEntryTo, readZipDirectory } from "./zip-read";
 
 /**
  * 3MF Core Specification 1.4.0 (3MF Consortium): an OPC/ZIP package whose start part (found through
@@ -26,27 +26,28 @@ type MeshObj = { kind: "mesh"; id: string; name: string; type: string; positions
 type CompObj = { kind: "components"; id: string; name: string; type: string; components: { objectId: string; transform: Mat }[] };
 type Obj = MeshObj | CompObj;
 
-export type ThreeMfLimits = { maxInflatedBytes: number; maxTriangles: number };
+export type ThreeMfLimits = { maxInflatedBytes: number; maxTriangles: number; maxVertices: number; maxBodies: number; maxComponents: number };
 
 export function read3mf(bytes: Uint8Array, file: string, limits: ThreeMfLimits): RawModel {
   const entries = readZipDirectory(bytes, file, { maxInflatedBytes: limits.maxInflatedBytes });
   let budget = limits.maxInflatedBytes;
-  const take = (key: string) => {
-    const entry = entries.get(key);
-    if (!entry) return null;
-    const out = inflateEntry(bytes, entry, file, budget);
-    budget -= out.byteLength;
-    return out;
-  };
-  const rels = take("_rels/.rels");
+  const rels = entries.get("_rels/.rels");
   let modelPath = "3d/3dmodel.model";
   if (rels) {
-    const target = startPartTarget(new TextDecoder().decode(rels), file);
+    const out = inflateEntry(bytes, rels, file, budget, limits.maxInflatedBytes);
+    budget -= out.byteLength;
+    const target = startPartTarget(new TextDecoder().decode(out), file);
     if (target) modelPath = target.replace(/^\//, "").toLowerCase();
   }
-  const model = take(modelPath);
+  const model = entries.get(modelPath);
   if (!model) throw new MeshImportError("malformed", file, `the 3MF package has no model part (${modelPath})`);
-  return parseModel(new TextDecoder("utf-8").decode(model), file, limits.maxTriangles);
+  // The model is inflated, decoded and parsed chunk by chunk: its XML is never held whole, and a
+  // limit that trips stops the inflating too.
+  const parser = modelParser(file, limits);
+  const text = new TextDecoder("utf-8");
+  inflateEntryTo(bytes, model, file, budget, (chunk) => parser.write(text.decode(chunk, { stream: true })), limits.maxInflatedBytes);
+  parser.write(text.decode());
+  return parser.close();
 }
 
 function startPartTarget(xml: string, file: string): string | null {
@@ -67,12 +68,27 @@ function startPartTarget(xml: string, file: string): string | null {
   return target;
 }
 
-export function parseModel(xml: string, file: string, maxTriangles: number): RawModel {
+/** Parse a whole model part's XML (the package reader streams it through `modelParser` instead). */
+export function parseModel(xml: string, file: string, limits: Pick<ThreeMfLimits, "maxTriangles"> & Partial<ThreeMfLimits>): RawModel {
+  const p = modelParser(file, { maxVertices: Infinity, maxBodies: Infinity, maxComponents: Infinity, ...limits });
+  p.write(xml);
+  return p.close();
+}
+
+/**
+ * A streaming reader of the model part. Every count an attacker could inflate is checked as it grows:
+ * triangles and vertices as they are read (an object may not list more vertices than its triangles
+ * can use), then bodies, placed triangles and component references of the build are counted over the
+ * component graph before a single mesh is placed.
+ */
+export function modelParser(file: string, limits: Omit<ThreeMfLimits, "maxInflatedBytes">): { write(text: string): void; close(): RawModel } {
+  const { maxTriangles, maxVertices } = limits;
   const objects = new Map<string, Obj>();
   const items: { objectId: string; transform: Mat }[] = [];
   let unit: Unit = "millimeter";
   let current: Obj | null = null;
   let triangles = 0;
+  let vertices = 0;
   const p = new SaxesParser({ xmlns: true, position: true });
 
   const fail = (code: "malformed" | "index_out_of_range" | "unsupported_extension" | "non_finite", msg: string) => {
@@ -126,6 +142,7 @@ export function parseModel(xml: string, file: string, maxTriangles: number): Raw
         const m = current as MeshObj;
         const x = num(tag, "x"), y = num(tag, "y"), z = num(tag, "z");
         if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) fail("non_finite", "a vertex coordinate is not finite");
+        if (++vertices > maxVertices) throw tooManyVertices(file, vertices, maxVertices, `more than the limit of ${maxVertices.toLocaleString("en-US")} per file`);
         m.positions.push(x, y, z);
         break;
       }
@@ -164,28 +181,101 @@ export function parseModel(xml: string, file: string, maxTriangles: number): Raw
   });
   p.on("closetag", (tag) => {
     if (tag.uri === NS_CORE && tag.local === "object" && current) {
+      if (current.kind === "mesh") unusedVertices(current, file);
       objects.set(current.id, current);
       current = null;
     }
   });
-  p.write(xml).close();
 
-  // Flatten build items through components into placed meshes.
-  const out: RawObject[] = [];
-  const expand = (id: string, m: Mat, inherited: string, path: string[]) => {
+  return {
+    write(text: string) {
+      p.write(text);
+    },
+    close(): RawModel {
+      p.close();
+      return flatten(objects, items, unit, file, limits);
+    },
+  };
+}
+
+/**
+ * Each vertex of a triangle mesh serves at least one triangle, so an object can use at most three per
+ * triangle; the floor lets small stubs (an object with a few stray points) through.
+ */
+function unusedVertices(m: MeshObj, file: string) {
+  const nv = m.positions.length / 3;
+  const nt = m.triangles.length / 3;
+  if (nv > Math.max(3 * nt, 65_536)) {
+    throw tooManyVertices(file, nv, Math.max(3 * nt, 65_536), `for ${nt.toLocaleString("en-US")} triangles in object ${m.id}: no triangle uses most of them`, nt);
+  }
+}
+
+function tooManyVertices(file: string, n: number, limit: number, why: string, triangles?: number) {
+  return new MeshImportError("too_many_vertices", file, `${n.toLocaleString("en-US")} vertices is ${why}`, triangles === undefined ? { vertices: n, limit } : { vertices: n, limit, triangles });
+}
+
+type Tally = { bodies: number; triangles: number; components: number };
+
+/**
+ * Flatten build items through components into placed meshes. The component graph is counted first,
+ * once per object (memoised), so a package of nested references that would expand to millions of
+ * bodies is refused from a few hundred objects' worth of arithmetic, before any mesh is placed.
+ */
+function flatten(objects: Map<string, Obj>, items: { objectId: string; transform: Mat }[], unit: Unit, file: string, limits: Omit<ThreeMfLimits, "maxInflatedBytes">): RawModel {
+  const tallies = new Map<string, Tally>();
+  const onPath = new Set<string>();
+  const tally = (id: string): Tally => {
     const obj = objects.get(id);
     if (!obj) throw new MeshImportError("malformed", file, `a build item or component refers to object ${id}, which is not defined`);
-    if (path.includes(id)) throw new MeshImportError("malformed", file, `object ${id} contains itself through its components`);
+    if (onPath.has(id)) throw new MeshImportError("malformed", file, `object ${id} contains itself through its components`);
+    const known = tallies.get(id);
+    if (known) return known;
+    let t: Tally = { bodies: 0, triangles: 0, components: 0 };
+    if (obj.type === "model" || obj.type === "solidsupport") {
+      if (obj.kind === "mesh") t = obj.triangles.length ? { bodies: 1, triangles: obj.triangles.length / 3, components: 0 } : t;
+      else {
+        onPath.add(id);
+        for (const c of obj.components) {
+          const sub = tally(c.objectId);
+          t.bodies += sub.bodies;
+          t.triangles += sub.triangles;
+          t.components += sub.components + 1;
+        }
+        onPath.delete(id);
+      }
+    }
+    tallies.set(id, t);
+    return t;
+  };
+  const total: Tally = { bodies: 0, triangles: 0, components: 0 };
+  for (const item of items) {
+    const t = tally(item.objectId);
+    total.bodies += t.bodies;
+    total.triangles += t.triangles;
+    total.components += t.components;
+  }
+  const n = (v: number) => (Number.isSafeInteger(v) ? v.toLocaleString("en-US") : "astronomically many");
+  if (total.bodies > limits.maxBodies) {
+    throw new MeshImportError("too_many_bodies", file, `the build places ${n(total.bodies)} bodies (components nested inside components), more than the limit of ${limits.maxBodies.toLocaleString("en-US")} per file`, { bodies: total.bodies, limit: limits.maxBodies });
+  }
+  if (total.components > limits.maxComponents) {
+    throw new MeshImportError("too_many_components", file, `the build expands through ${n(total.components)} component references, more than the limit of ${limits.maxComponents.toLocaleString("en-US")}`, { components: total.components, limit: limits.maxComponents });
+  }
+  if (total.triangles > limits.maxTriangles) throw tooMany(file, total.triangles, limits.maxTriangles);
+
+  const out: RawObject[] = [];
+  const expand = (id: string, m: Mat, inherited: string) => {
+    const obj = objects.get(id)!; // every reference was resolved by the tally above
     if (obj.type !== "model" && obj.type !== "solidsupport") return; // support, surface and other objects are not parts
     const name = obj.name || inherited;
     if (obj.kind === "components") {
-      for (const c of obj.components) expand(c.objectId, multiply(c.transform, m), name, [...path, id]);
+      for (const c of obj.components) expand(c.objectId, multiply(c.transform, m), name);
       return;
     }
     if (obj.triangles.length === 0) return;
     out.push(placeMesh(obj, m, name || `${stem(file)} ${id}`));
   };
-  for (const item of items) expand(item.objectId, item.transform, "", []);
+  for (const item of items) expand(item.objectId, item.transform, "");
   if (items.length === 0 && objects.size > 0) {
     throw new MeshImportError("empty", file, "the model has objects but no build items, so nothing is to be printed");
   }

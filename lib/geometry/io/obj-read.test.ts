@@ -66,7 +66,7 @@ describe("OBJ import", () => {
 
   it("keeps o/g groups as separate objects", () => {
     const two = `${cubeObj}\n${cubeObj.replace("o Die", "o Die two").replace(/^v (\d+) (\d+) (\d+)$/gm, (_, x, y, z) => `v ${Number(x) + 30} ${y} ${z}`).replace(/f (\S+) (\S+) (\S+) (\S+)/g, (_m, ...refs: string[]) => `f ${refs.slice(0, 4).map((s) => String(Number(s.split("/")[0]) + 8)).join(" ")}`)}`;
-    const raw = readObj(bytes(two), "two.obj", 1000);
+    const raw = readObj(bytes(two), "two.obj", { maxTriangles: 1000, maxVertices: 1000 });
     expect(raw.objects.map((o) => o.name)).toEqual(["Die", "Die two"]);
     const r = importMesh(bytes(two), kernel, { fileName: "two.obj" });
     expect(r.bodies.map((b) => b.name)).toEqual(["Die", "Die two"]);

@@ -9,7 +9,8 @@ import { stem, tooMany } from "./stl-read";
  * triangulated with earcut in their own plane (Newell normal), so concave faces come out right where a
  * fan would fold over.
  */
-export function readObj(bytes: Uint8Array, file: string, maxTriangles: number): RawModel {
+export function readObj(bytes: Uint8Array, file: string, limits: { maxTriangles: number; maxVertices: number }): RawModel {
+  const { maxTriangles, maxVertices } = limits;
   const text = new TextDecoder("utf-8").decode(bytes);
   const verts: number[] = [];
   type Group = { name: string; tris: number[] };
@@ -45,6 +46,7 @@ export function readObj(bytes: Uint8Array, file: string, maxTriangles: number): 
     const kw = parts[0]!;
     if (kw === "v") {
       if (parts.length < 4) throw malformed(file, lineNo, "a vertex needs x, y and z");
+      if (verts.length / 3 >= maxVertices) throw tooManyVertices(file, verts.length / 3 + 1, maxVertices, `more than the limit of ${maxVertices.toLocaleString("en-US")} per file`);
       for (let a = 1; a <= 3; a++) {
         const v = Number(parts[a]);
         if (Number.isNaN(v) && !/^[+-]?(nan|inf)/i.test(parts[a]!)) throw malformed(file, lineNo, `"${parts[a]!.slice(0, 20)}" is not a number`);
@@ -75,6 +77,10 @@ export function readObj(bytes: Uint8Array, file: string, maxTriangles: number): 
   }
   if (current.tris.length > 0) groups.push(current);
   if (groups.length === 0) throw new MeshImportError("empty", file, verts.length ? "the file has vertices but no faces" : "the file holds no faces");
+  // Each vertex serves at least one triangle, so at most three per triangle can be used (the floor
+  // lets a few stray points through).
+  const nv = verts.length / 3;
+  if (nv > Math.max(3 * triangles, 65_536)) throw tooManyVertices(file, nv, Math.max(3 * triangles, 65_536), `for ${triangles.toLocaleString("en-US")} triangles: no face uses most of them`);
   const positions = Float32Array.from(verts);
   // Each object shares the file's vertex list; the weld step drops the ones it does not use.
   const objects: RawObject[] = groups.map((g) => ({ name: g.name, positions, triangles: Uint32Array.from(g.tris) }));
@@ -107,6 +113,10 @@ function triangulatePolygon(verts: number[], idx: number[], out: number[]): void
     if (cross >= 0) out.push(idx[a]!, idx[b]!, idx[c]!);
     else out.push(idx[a]!, idx[c]!, idx[b]!);
   }
+}
+
+function tooManyVertices(file: string, n: number, limit: number, why: string) {
+  return new MeshImportError("too_many_vertices", file, `${n.toLocaleString("en-US")} vertices is ${why}`, { vertices: n, limit });
 }
 
 function malformed(file: string, line: number, what: string) {

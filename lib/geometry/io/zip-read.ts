@@ -56,30 +56,10 @@ export function readZipDirectory(bytes: Uint8Array, file: string, limits: ZipLim
 }
 
 /** Inflate one entry, refusing it the moment its output passes `budget` bytes. */
-export function inflateEntry(bytes: Uint8Array, entry: ZipEntry, file: string, budget: number): Uint8Array {
-  const data = bytes.subarray(entry.dataStart, entry.dataStart + entry.compressedSize);
-  if (entry.method === 0) {
-    if (data.byteLength > budget) throw archiveTooLarge(file, budget, "an entry holds");
-    return data;
-  }
-  if (entry.method !== 8) throw new MeshImportError("unsupported_archive", file, `the entry ${entry.name} uses ZIP compression method ${entry.method}; only stored and deflated entries are read`);
+export function inflateEntry(bytes: Uint8Array, entry: ZipEntry, file: string, budget: number, packageLimit = budget): Uint8Array {
   const chunks: Uint8Array[] = [];
-  let produced = 0;
-  let over = false;
-  const inflater = new Inflate((chunk) => {
-    produced += chunk.byteLength;
-    if (produced > budget) over = true;
-    else chunks.push(chunk);
-  });
-  const step = 1 << 16;
-  try {
-    for (let i = 0; i < data.byteLength && !over; i += step) {
-      inflater.push(data.subarray(i, Math.min(i + step, data.byteLength)), i + step >= data.byteLength);
-    }
-  } catch {
-    throw new MeshImportError("malformed", file, `the entry ${entry.name} is not valid deflate data`);
-  }
-  if (over) throw archiveTooLarge(file, budget, "it would inflate to");
+  const produced = inflateEntryTo(bytes, entry, file, budget, (c) => chunks.push(c), packageLimit);
+  if (chunks.length === 1) return chunks[0]!;
   const out = new Uint8Array(produced);
   let o = 0;
   for (const c of chunks) {
@@ -87,6 +67,42 @@ export function inflateEntry(bytes: Uint8Array, entry: ZipEntry, file: string, b
     o += c.byteLength;
   }
   return out;
+}
+
+/**
+ * Inflate one entry into `sink` chunk by chunk (16 kB of input at a time, so one step yields at most
+ * ~16 MB even at deflate's best ratio of about 1 032 : 1), refusing it the moment its
+ * output passes `budget` bytes; what the sink throws (a parser's refusal) stops the inflating too.
+ * Returns the bytes produced. `packageLimit` is the limit named in the refusal (the budget is what is
+ * left of it after the entries read before).
+ */
+export function inflateEntryTo(bytes: Uint8Array, entry: ZipEntry, file: string, budget: number, sink: (chunk: Uint8Array) => void, packageLimit = budget): number {
+  const data = bytes.subarray(entry.dataStart, entry.dataStart + entry.compressedSize);
+  if (entry.method === 0) {
+    if (data.byteLength > budget) throw archiveTooLarge(file, packageLimit, "the package holds");
+    sink(data);
+    return data.byteLength;
+  }
+  if (entry.method !== 8) throw new MeshImportError("unsupported_archive", file, `the entry ${entry.name} uses ZIP compression method ${entry.method}; only stored and deflated entries are read`);
+  let produced = 0;
+  let over = false;
+  const inflater = new Inflate((chunk) => {
+    if (over) return;
+    produced += chunk.byteLength;
+    if (produced > budget) over = true;
+    else sink(chunk);
+  });
+  const step = 1 << 14;
+  try {
+    for (let i = 0; i < data.byteLength && !over; i += step) {
+      inflater.push(data.subarray(i, Math.min(i + step, data.byteLength)), i + step >= data.byteLength);
+    }
+  } catch (err) {
+    if (err instanceof MeshImportError) throw err;
+    throw new MeshImportError("malformed", file, `the entry ${entry.name} is not valid deflate data`);
+  }
+  if (over) throw archiveTooLarge(file, packageLimit, "it would inflate to");
+  return produced;
 }
 
 function archiveTooLarge(file: string, limit: number, how: string) {

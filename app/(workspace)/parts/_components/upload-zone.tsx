@@ -37,6 +37,30 @@ function send(file: File, onProgress: (sent: number) => void, onSent: () => void
   });
 }
 
+type UploadBody = { upload?: { id: string; state: "checking" | "ready" | "refused"; url: string; parts?: Item["parts"]; error?: { code: string; message: string } }; error?: { code: string; message: string } } | null;
+
+const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
+
+/**
+ * Follow an upload until a build worker has checked it: ready (its parts) or refused (the reason).
+ * Polls quickly at first, then every two seconds; gives up after ten minutes.
+ */
+async function follow(url: string): Promise<UploadBody> {
+  const until = Date.now() + 10 * 60_000;
+  for (let i = 0; Date.now() < until; i++) {
+    await sleep(i < 10 ? 400 : 2000);
+    try {
+      const res = await fetch(url, { cache: "no-store" });
+      const body = (await res.json()) as UploadBody;
+      if (!res.ok) return body;
+      if (body?.upload && body.upload.state !== "checking") return body;
+    } catch {
+      // a dropped poll: try again
+    }
+  }
+  return { error: { code: "timeout", message: "The file is still being checked; look for it in the library later." } };
+}
+
 export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; onAction: (url: string, init: RequestInit) => Promise<void> }) {
   const [items, setItems] = useState<Item[]>([]);
   const [over, setOver] = useState(false);
@@ -47,15 +71,25 @@ export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; o
     async (files: FileList | File[]) => {
       const fresh: Item[] = [...files].map((f, i) => ({ key: `${Date.now()}-${i}-${f.name}`, name: f.name, size: f.size, state: "waiting", sent: 0 }));
       setItems((list) => [...fresh, ...list]);
-      // One at a time: the server checks each file with the geometry kernel, and order stays readable.
+      // Sent one at a time, so order stays readable; each is then checked by a build worker while the
+      // next one is sent, and its row follows the check until it is added or refused.
       for (const [i, f] of [...files].entries()) {
         const key = fresh[i]!.key;
         update(key, { state: "sending" });
         const res = await send(f, (sent) => update(key, { sent }), () => update(key, { state: "checking", sent: f.size }));
-        const body = res.body as { parts?: Item["parts"]; error?: { code: string; message: string } } | null;
-        if (res.status === 201 && body?.parts) update(key, { state: "done", parts: body.parts });
-        else update(key, { state: "failed", code: body?.error?.code ?? `http_${res.status}`, message: body?.error?.message ?? "The upload failed." });
-        onUploaded();
+        const body = res.body as UploadBody;
+        const settle = (b: UploadBody) => {
+          if (b?.upload?.state === "ready") update(key, { state: "done", parts: b.upload.parts ?? [] });
+          else {
+            const e = b?.upload?.error ?? b?.error;
+            update(key, { state: "failed", code: e?.code ?? `http_${res.status}`, message: e?.message ?? "The upload failed." });
+          }
+          onUploaded();
+        };
+        if (res.status === 202 && body?.upload) {
+          update(key, { state: "checking", sent: f.size });
+          void follow(body.upload.url).then(settle);
+        } else settle(body);
       }
     },
     [onUploaded],

@@ -1,6 +1,8 @@
 import { apiError, apiRoute, ApiProblem } from "@/lib/api/respond";
 import { createPlate, jobView, plateFile, plateView, readPlateRequest, waitForPlate } from "@/lib/api/plates";
 import { requireApiKey } from "@/lib/auth/api-guard";
+import { readMultipart } from "@/lib/api/multipart";
+import { dropOrphans } from "@/lib/parts/orphans";
 import { maxUploadBytes } from "@/lib/parts/upload";
 
 export const runtime = "nodejs";
@@ -11,7 +13,8 @@ const syncWaitMs = () => Number(process.env.SLAB_SYNC_WAIT_MS ?? 20_000);
 
 /**
  * POST /api/v1/plates — multipart: `part` files (or `kit`), `quantity`, `options`, `variables`,
- * `format`, `callbackUrl`. Answers the file (200) when the build ends within the wait, else 202 with
+ * `format`, `callbackUrl`. The body is read as a stream and cut off with 413 the moment it passes the
+ * upload limit, whether or not it declared a length. Answers the file (200) when the build ends within the wait, else 202 with
  * the job. `Prefer: respond-async` (RFC 7240) asks for the 202 at once.
  */
 export const POST = apiRoute(async (req: Request) => {
@@ -21,13 +24,16 @@ export const POST = apiRoute(async (req: Request) => {
   const limit = maxUploadBytes();
   const declared = Number(req.headers.get("content-length"));
   if (Number.isFinite(declared) && declared > limit) return apiError(413, "file_too_large", `The request is larger than the ${(limit / 1024 / 1024).toFixed(0)} MB limit.`);
-  let form: FormData;
+  // Streamed: counted as it arrives (a chunked body declares no length), each part file stored on the way.
+  const form = await readMultipart(req, { maxBytes: limit });
+  let request;
   try {
-    form = await req.formData();
-  } catch {
-    throw new ApiProblem(400, "bad_request", "The multipart body could not be read.");
+    request = await readPlateRequest(caller, form, new URL(req.url).searchParams.get("format"));
+  } catch (err) {
+    // A refused request keeps none of the files it brought.
+    await dropOrphans(form.files.filter((f) => f.created).map((f) => f.key));
+    throw err;
   }
-  const request = await readPlateRequest(caller, form, new URL(req.url).searchParams.get("format"), limit);
   const idem = req.headers.get("idempotency-key");
   if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem)) throw new ApiProblem(400, "bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
   const { plate } = await createPlate(caller, request, idem);
