@@ -11,7 +11,8 @@ export default defineConfig({
     projects: [
       {
         extends: true,
-        test: { name: "unit", include: ["lib/**/*.test.ts", "scripts/**/*.test.ts"], environment: "node" },
+        // Kernel tests take seconds on a busy two-core machine; the default 5 s is too tight there.
+        test: { name: "unit", include: ["lib/**/*.test.ts", "scripts/**/*.test.ts"], environment: "node", testTimeout: 30_000 },
       },
       {
         extends: true,

@@ -75,7 +75,10 @@ describe("our PostgreSQL lifecycle (scripts/pg.sh) and the health check", () => 
 
 /** Connect once and run `select 1`: "ok", or the server's refusal. */
 async function tryConnect(connectionString: string, password?: string): Promise<string> {
-  const c = new pg.Client({ connectionString, password, connectionTimeoutMillis: 3000 });
+  // The password goes into the URL: pg lets the URL's (absent) password override a separate option.
+  const u = new URL(connectionString);
+  if (password !== undefined) u.password = encodeURIComponent(password);
+  const c = new pg.Client({ connectionString: u.toString(), connectionTimeoutMillis: 3000 });
   try {
     await c.connect();
     await c.query("select 1");

@@ -1,7 +1,7 @@
 import { and, count, eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
-import { kits, plates, workspaceBilling, workspaces } from "@/db/schema";
+import { kits, plates, plateUsage, workspaceBilling, workspaces } from "@/db/schema";
 import { callAction } from "../../support/actions";
 import { demoUser, signInOverHttp } from "../../support/http";
 
@@ -19,6 +19,8 @@ beforeAll(async () => {
   const [b] = await db().select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, demo));
   plan = b?.plan ?? "workshop";
   await db().update(workspaceBilling).set({ plan: "bench" }).where(eq(workspaceBilling.workspaceId, demo));
+  // Room in the Bench quota, so the only refusal left to meet is the logo's.
+  await db().delete(plateUsage).where(eq(plateUsage.workspaceId, demo));
 });
 afterAll(async () => {
   await db().update(workspaceBilling).set({ plan: plan as "bench" }).where(eq(workspaceBilling.workspaceId, demo));
