@@ -95,3 +95,13 @@ export function env(): Env {
   cached ??= parseEnv(process.env);
   return cached;
 }
+
+/** At server start (instrumentation.ts): print why and exit when production lacks its secrets. */
+export function exitWithoutStartupSecrets(): void {
+  try {
+    requireStartupSecrets(env());
+  } catch (err) {
+    console.error(`✕ ${err instanceof Error ? err.message : String(err)}`);
+    process.exit(1);
+  }
+}

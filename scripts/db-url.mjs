@@ -22,7 +22,8 @@ export function pgPasswordFile() {
 /** The local cluster's password, or null before scripts/pg.sh has made one. */
 export function pgPassword() {
   try {
-    return fs.readFileSync(pgPasswordFile(), "utf8").trim() || null;
+    // The ignore comment: a file chosen at run time, not one for the build to trace.
+    return fs.readFileSync(/* turbopackIgnore: true */ pgPasswordFile(), "utf8").trim() || null;
   } catch {
     return null;
   }
