@@ -131,6 +131,10 @@ const server = http.createServer(async (req, res) => {
   }
   handle(req, res);
 });
+// Keep idle connections longer than clients do (undici: 4 s by default), so a client never writes
+// into a socket the server has just closed (EPIPE).
+server.keepAliveTimeout = 65_000;
+server.headersTimeout = 66_000;
 if (upgrade) server.on("upgrade", (req, socket, head) => upgrade(req, socket, head));
 server.listen(port, hostname, () => console.log(`Slabwright listening on http://${hostname}:${port}${dev ? " (dev)" : ""}`));
 const stop = () => {
