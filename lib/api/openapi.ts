@@ -69,7 +69,7 @@ const ref = (name: string) => ({ $ref: `#/components/schemas/${name}` });
 const errors = (...codes: number[]) =>
   Object.fromEntries(codes.map((c) => [String(c), { description: STATUS[c]!, content: { "application/json": { schema: ref("Error") } } }]));
 const STATUS: Record<number, string> = {
-  400: "Malformed request", 402: "Plan limit: the plan's plates for this period are made, or the plan has no order API (code plan_limit)", 401: "Missing, unknown or revoked API key", 403: "The key lacks the scope", 404: "Not found (or another workspace's)", 409: "Conflict (Idempotency-Key reused with another request, or the plate is not ready)", 413: "Too large", 415: "Not multipart, or a part that is not a mesh", 422: "Invalid options or parts, or findings of severity error", 429: "Rate limited (see Retry-After)",
+  400: "Malformed request", 402: "Plan limit: the plan's plates for this period are made, or the plan has no order API (code plan_limit)", 401: "Missing, unknown or revoked API key", 403: "The key lacks the scope", 404: "Not found (or another workspace's)", 409: "Conflict (Idempotency-Key reused with another request, or the plate is not ready)", 413: "Too large (code file_too_large: the request passed the upload limit, counted as it arrives, chunked or not; too_many_files, field_too_large)", 415: "Not multipart, or a part that is not a mesh", 422: "Invalid options or parts, or findings of severity error", 429: "Rate limited (see Retry-After)",
 };
 
 /** OpenAPI 3.1, generated from the same zod schemas the routes validate with. */
@@ -89,6 +89,8 @@ export function openApiDocument() {
         post: {
           operationId: "createPlate",
           summary: "Make a plate (scope plates:write)",
+          description:
+            "The multipart body is read as a stream: its bytes are counted as they arrive, whether or not it declares a Content-Length, and reading stops with 413 the moment they pass the upload limit. Part files go straight to storage; one that is plainly not a mesh (by its first bytes) is refused at once (415, or 422 `empty`). The meshes are imported by the build worker, not while the request is read: an import refusal (e.g. `open_mesh`, `too_many_triangles`, `too_many_vertices`, `too_many_bodies`, `archive_too_large`) comes back as the build's 422 within the wait, or as the job's `error` when the answer is 202.",
           parameters: [
             { name: "Idempotency-Key", in: "header", required: false, schema: { type: "string", maxLength: 200 }, description: "Same key and request within 24 h → the same plate." },
             { name: "Prefer", in: "header", required: false, schema: { type: "string", enum: ["respond-async"] }, description: "Answer 202 with the job at once." },

@@ -4,6 +4,7 @@
  * that hit the WASM memory limit, so its memory (which WebAssembly never gives back) is renewed.
  */
 import { readFileSync } from "node:fs";
+import os from "node:os";
 import path from "node:path";
 import { deflateRawSync } from "node:zlib";
 import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
@@ -32,6 +33,15 @@ export type BuildTask = {
 export type BuildOutcome =
   | { ok: true; result: Omit<PlateResult, "bodies"> }
   | { ok: false; code: string; message: string; details?: unknown };
+
+// Builds and imports are batch work: on Linux a thread's nice value is its own, so each pool thread
+// lowers its own priority and the web process (and the worker's queue loop) keep the CPU they need
+// when they share a machine with it (common practice for batch workers). SLAB_THREAD_NICE=0 turns it off.
+try {
+  os.setPriority(Number(process.env.SLAB_THREAD_NICE ?? 10));
+} catch {
+  // not permitted here: run at normal priority
+}
 
 const MAX_BUILDS = Number(process.env.SLAB_THREAD_MAX_BUILDS ?? 100);
 let builds = 0;
