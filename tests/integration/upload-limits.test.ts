@@ -91,16 +91,17 @@ describe("chunked bodies cannot dodge the size limit", () => {
     expect((JSON.parse(r.body) as { error: { code: string } }).error.code).toBe("file_too_large");
     // Cut near the 20 MB limit: what was sent by the answer is the limit plus what sat in socket buffers.
     expect(r.sent).toBeLessThan(120 * 1024 * 1024);
-    // The server held less than the 20 MB it read (streamed to disk), let alone the 210 MB offered
-    // (buffered whole, as before, a body like it was reported to grow the server from 261 to 949 MB).
-    if (r.rssGrowthKb !== null) expect(r.rssGrowthKb).toBeLessThan(20 * 1024);
+    // Streamed to disk, the app's memory grows by the chunks in flight plus garbage not yet collected
+    // (measured 15–33 MB for the 20 MB it read), far from the 210 MB offered: buffered whole, as
+    // before, a body like it was reported to grow the server from 261 to 949 MB.
+    if (r.rssGrowthKb !== null) expect(r.rssGrowthKb).toBeLessThan(64 * 1024);
   });
 
   it("POST /api/parts: a chunked raw body past the limit is cut off the same way, without the app holding it", async () => {
     const r = await sendChunked("/api/parts?name=endless.stl", { cookie: designer.cookie(), "content-type": "application/octet-stream" }, new Uint8Array(1024 * 1024), 210 * 1024 * 1024);
     expect(r.status).toBe(413);
     expect(r.sent).toBeLessThan(120 * 1024 * 1024);
-    if (r.rssGrowthKb !== null) expect(r.rssGrowthKb).toBeLessThan(20 * 1024);
+    if (r.rssGrowthKb !== null) expect(r.rssGrowthKb).toBeLessThan(64 * 1024);
   });
 
   it("a plate request under the limit still streams its parts through and builds", async () => {
