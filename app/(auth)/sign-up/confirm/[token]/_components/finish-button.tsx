@@ -1,29 +1,9 @@
 "use client";
 
-import { useState, useTransition } from "react";
-import { FormMessage } from "@/app/_components/form";
+import { ActionButton } from "@/app/_components/action-button";
 import { finishSignUpFromLink } from "@/app/(auth)/actions";
 
+/** On success the action redirects (to the workshop, or back to an invitation). */
 export function FinishButton({ token }: { token: string }) {
-  const [pending, start] = useTransition();
-  const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
-  return (
-    <div className="space-y-3">
-      <FormMessage message={message} />
-      <button
-        type="button"
-        className="btn-primary"
-        disabled={pending}
-        onClick={() =>
-          start(async () => {
-            // On success the action redirects (to the workshop, or back to an invitation).
-            const res = await finishSignUpFromLink({ token });
-            if (!res.ok) setMessage({ ok: false, text: res.message });
-          })
-        }
-      >
-        {pending ? "Creating your account…" : "Create my account"}
-      </button>
-    </div>
-  );
+  return <ActionButton label="Create my account" pendingLabel="Creating your account…" run={() => finishSignUpFromLink({ token })} />;
 }
