@@ -4,8 +4,8 @@ import { db } from "@/db";
 import { apiKeys, kits, plates, workspaces } from "@/db/schema";
 import { generateApiKey } from "@/lib/auth/api-keys";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
-import { baseUrl, startHoldingReceiver, startReceiver } from "../support/http";
-import { box } from "../support/meshes";
+import { baseUrl, startHoldingReceiver, startReceiver } from "../../support/http";
+import { box } from "../../support/meshes";
 
 // Webhook callbacks over HTTP against the started app and build worker: the address guard at the API,
 // and deliveries that run beside the builds, not inside them.

@@ -5,10 +5,10 @@ import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { parts } from "@/db/schema";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
-import { componentBomb, inflateBomb, millionVertexFile } from "../support/bombs";
-import { baseUrl, demoUser, signInOverHttp, type HttpSession } from "../support/http";
-import { box } from "../support/meshes";
-import { sendPart, settled, uploadPart } from "../support/uploads";
+import { componentBomb, inflateBomb, millionVertexFile } from "../../support/bombs";
+import { baseUrl, demoUser, signInOverHttp, type HttpSession } from "../../support/http";
+import { box } from "../../support/meshes";
+import { sendPart, settled, uploadPart } from "../../support/uploads";
 
 // Hostile uploads over HTTP against the app npm test started (upload limit 20 MB) and its build worker.
 const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
