@@ -78,8 +78,8 @@ export const partUploads = pgTable(
     fileName: text("file_name").notNull(),
     blobKey: text("blob_key").notNull(),
     byteSize: integer("byte_size").notNull(),
-    /** How to read it: split bodies into parts, the unit, lay flat. */
-    options: jsonb("options").$type<{ split?: boolean; unit?: string; layFlat?: boolean }>().notNull().default(sql`'{}'::jsonb`),
+    /** How to read it: split bodies into parts, the unit, lay flat; `replaces`: a stored part read again (its new unit or lying, or split). */
+    options: jsonb("options").$type<{ split?: boolean; unit?: string; layFlat?: boolean; replaces?: string }>().notNull().default(sql`'{}'::jsonb`),
     state: partUploadStateEnum("state").notNull().default("checking"),
     partIds: jsonb("part_ids").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
     error: jsonb("error").$type<{ code: string; message: string; details?: Record<string, unknown> }>(),

@@ -8,7 +8,7 @@ import { idempotencyKeys, kitParts, kits, parts, plates, type Plate, type PlateI
 import type { ApiCaller } from "@/lib/auth/api-guard";
 import { ApiProblem } from "@/lib/api/respond";
 import { notFound } from "@/lib/auth/errors";
-import { sniffHead } from "@/lib/geometry/import";
+import { sniffHead } from "@/lib/geometry/io/sniff";
 import type { StreamedForm } from "@/lib/api/multipart";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";

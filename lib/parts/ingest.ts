@@ -1,22 +1,15 @@
 import "server-only";
 import { and, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, partUploads, parts, type Part, type PartUpload } from "@/db/schema";
+import { partUploads, parts, type Part, type PartUpload } from "@/db/schema";
 import { UserError, type Caller } from "@/lib/auth/guards";
-import { importMesh } from "@/lib/geometry/import";
-import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import { UNIT_MM, type Unit } from "@/lib/geometry/io/raw";
-import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
-import { orientMesh } from "@/lib/geometry/orient";
 import { enqueuePartUpload } from "@/lib/jobs/queue";
-import { serverKernel } from "@/lib/kernel-server";
-import { blobStore, type StoredBlob } from "@/lib/storage";
-import { measure as measureWith } from "./measure";
+import type { StoredBlob } from "@/lib/storage";
+import { inKitsRefusal } from "./in-kits";
 import { dropOrphans } from "./orphans";
 
 export type StoredPart = { id: string; name: string; triangles: number; bodies: number; warnings: Part["warnings"]; repairs: string[] };
-
-const measure = async (mesh: IndexedMesh, layFlat: boolean) => measureWith(await serverKernel(), mesh, layFlat);
 
 export type UploadView = {
   id: string;
@@ -72,81 +65,51 @@ export async function getPart(caller: Caller, id: string): Promise<Part | null> 
 
 const EXT: Record<Part["format"], string> = { stl: "stl", "3mf": "3mf", obj: "obj" };
 
-/** A stored part's mesh as it stands on the slab: re-read from its bytes in its unit, then oriented. */
-export async function loadPartMesh(part: Part): Promise<IndexedMesh> {
-  const bytes = await blobStore().get(part.blobKey);
-  const r = importMesh(bytes, await serverKernel(), { fileName: `${part.name}.${EXT[part.format]}`, unit: part.unit as Unit });
-  return orientMesh(combineMeshes(r.bodies.map((b) => b.mesh)), { layFlat: part.layFlat });
-}
-
-/** Rename, change the unit it is read in, or lay it flat; measurements follow. */
-export async function updatePart(caller: Caller, id: string, change: { name?: string; unit?: Unit; layFlat?: boolean }): Promise<Part> {
-  const part = await getPart(caller, id);
-  if (!part) throw new UserError("not_found", "No such part.");
-  const next = { ...part, ...change };
-  let measured = {};
-  if ((change.unit && change.unit !== part.unit) || (change.layFlat !== undefined && change.layFlat !== part.layFlat)) {
-    const bytes = await blobStore().get(part.blobKey);
-    const r = importMesh(bytes, await serverKernel(), { fileName: `${part.name}.${EXT[part.format]}`, unit: next.unit as Unit });
-    measured = { ...(await measure(combineMeshes(r.bodies.map((b) => b.mesh)), next.layFlat)), warnings: r.warnings };
-  }
+/** Queue a stored part to be read again by a build worker: in another unit, laid flat, or split into its bodies. */
+async function queueRework(caller: Caller, part: Part, options: { split?: boolean; unit?: Unit; layFlat?: boolean }): Promise<PartUpload> {
   const [row] = await db()
-    .update(parts)
-    .set({ name: next.name, unit: next.unit, layFlat: next.layFlat, ...measured, updatedAt: new Date() })
-    .where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id)))
+    .insert(partUploads)
+    .values({ workspaceId: caller.workspace.id, fileName: `${part.name}.${EXT[part.format]}`, blobKey: part.blobKey, byteSize: part.byteSize, options: { ...options, replaces: part.id }, uploadedBy: caller.user.id })
     .returning();
+  try {
+    await enqueuePartUpload(row!.id);
+  } catch (err) {
+    await db().update(partUploads).set({ state: "refused", finishedAt: new Date(), error: { code: "queue_unavailable", message: "The import queue is not available; try again in a moment." } }).where(eq(partUploads.id, row!.id));
+    throw err;
+  }
   return row!;
 }
 
-/** Split a stored multi-body part into one part per body, replacing it, in one transaction. */
-export async function splitPart(caller: Caller, id: string): Promise<StoredPart[]> {
+/**
+ * Rename (at once), or read in another unit (inch → mm) or lay flat: those re-read the mesh, which
+ * the web process never does, so they are queued for a build worker and `upload` follows them.
+ */
+export async function updatePart(caller: Caller, id: string, change: { name?: string; unit?: Unit; layFlat?: boolean }): Promise<{ part: Part; upload?: PartUpload }> {
+  let part = await getPart(caller, id);
+  if (!part) throw new UserError("not_found", "No such part.");
+  if (change.name !== undefined && change.name !== part.name) {
+    const [row] = await db().update(parts).set({ name: change.name, updatedAt: new Date() }).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id))).returning();
+    if (!row) throw new UserError("not_found", "No such part.");
+    part = row;
+  }
+  const unit = change.unit ?? (part.unit as Unit);
+  const layFlat = change.layFlat ?? part.layFlat;
+  if (unit === part.unit && layFlat === part.layFlat) return { part };
+  return { part, upload: await queueRework(caller, part, { unit, layFlat }) };
+}
+
+/** Split a stored multi-body part into one part per body, replacing it: queued for a build worker. */
+export async function splitPart(caller: Caller, id: string): Promise<PartUpload> {
   const part = await getPart(caller, id);
   if (!part) throw new UserError("not_found", "No such part.");
   if (part.bodies < 2) throw new UserError("single_body", "This part has one body; there is nothing to split.");
   await refuseIfInKits(caller, [id], "split");
-  const bytes = await blobStore().get(part.blobKey);
-  const r = importMesh(bytes, await serverKernel(), { fileName: `${part.name}.${EXT[part.format]}`, unit: part.unit as Unit });
-  const created: string[] = [];
-  try {
-    const rows: (typeof parts.$inferInsert)[] = [];
-    for (const [i, body] of r.bodies.entries()) {
-      const data = writeBinaryStl([body.mesh]);
-      const put = await blobStore().put(data);
-      if (put.created) created.push(put.key);
-      rows.push({
-        workspaceId: caller.workspace.id,
-        name: `${part.name} ${i + 1}`,
-        format: "stl" as const,
-        blobKey: put.key,
-        byteSize: data.byteLength,
-        layFlat: part.layFlat,
-        repairs: part.repairs,
-        uploadedBy: caller.user.id,
-        ...(await measure(body.mesh, part.layFlat)),
-      });
-    }
-    const stored = await db().transaction(async (tx) => {
-      await tx.delete(parts).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id)));
-      return tx.insert(parts).values(rows).returning();
-    });
-    await dropOrphans([part.blobKey]);
-    return stored.map((p) => ({ id: p.id, name: p.name, triangles: p.triangles, bodies: p.bodies, warnings: p.warnings, repairs: p.repairs }));
-  } catch (err) {
-    await dropOrphans(created);
-    throw err;
-  }
+  return queueRework(caller, part, { split: true, unit: part.unit as Unit, layFlat: part.layFlat });
 }
 
 async function refuseIfInKits(caller: Caller, ids: string[], verb: string) {
-  const using = await db()
-    .selectDistinct({ name: kits.name })
-    .from(kitParts)
-    .innerJoin(kits, eq(kits.id, kitParts.kitId))
-    .where(and(inArray(kitParts.partId, ids), eq(kits.workspaceId, caller.workspace.id)));
-  if (using.length) {
-    const names = using.map((k) => `“${k.name}”`).join(", ");
-    throw new UserError("part_in_use", `This part is used by ${using.length === 1 ? "the kit" : "the kits"} ${names}; take it out of ${using.length === 1 ? "that kit" : "those kits"} before you ${verb} it.`);
-  }
+  const refusal = await inKitsRefusal(db(), caller.workspace.id, ids, verb);
+  if (refusal) throw new UserError("part_in_use", refusal);
 }
 
 export async function deletePart(caller: Caller, id: string): Promise<void> {

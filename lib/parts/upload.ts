@@ -1,6 +1,6 @@
 import "server-only";
 import { apiError } from "@/lib/api/respond";
-import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/import";
+import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/io/sniff";
 import { ACCEPTED_FORMATS } from "@/lib/geometry/errors";
 import { blobStore, BlobTooLargeError, type StoredBlob } from "@/lib/storage";
 

@@ -77,9 +77,12 @@ describe("uploading parts", () => {
     const blocks = writeBinaryStl([box(10, 10, 10, [0, 0, 0]), box(9, 9, 5, [20, 0, 0]), box(6, 12, 4, [0, 20, 0])]);
     const up = await uploadPart(designer, `trio-${tag}.stl`, blocks);
     const id = up.parts![0]!.id;
+    // The web process never reads a mesh (ASVS 4.0 V12.1.1 resource limits): the split is a worker's job.
     const res = await designer.fetch(`/api/parts/${id}/split`, { method: "POST" });
-    expect(res.status).toBe(201);
-    const split = (await res.json()) as { parts: { id: string; name: string; bodies: number; triangles: number }[] };
+    expect(res.status).toBe(202);
+    const done = await settled(designer, res);
+    expect(done.state).toBe("ready");
+    const split = { parts: done.parts! };
     expect(split.parts.map((p) => p.name)).toEqual([`trio-${tag} 1`, `trio-${tag} 2`, `trio-${tag} 3`]);
     expect(split.parts.every((p) => p.bodies === 1 && p.triangles === 12)).toBe(true);
     made.push(...split.parts.map((p) => p.id));
@@ -133,13 +136,24 @@ describe("uploading parts", () => {
     const p = up.parts![0]!;
     made.push(p.id);
     expect(p.warnings[0]).toMatchObject({ code: "units_suspect", suggestion: { unit: "inch" } });
-    const fixed = (await (await designer.fetch(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ unit: "inch" }), headers: { "content-type": "application/json" } })).json()) as { part: { sizeX: number; sizeZ: number; warnings: unknown[] } };
-    expect(fixed.part.sizeX).toBeCloseTo(12.7, 3); // 1 in = 25.4 mm
-    expect(fixed.part.sizeZ).toBeCloseTo(6.35, 3);
-    expect(fixed.part.warnings).toEqual([]);
-    const flat = (await (await designer.fetch(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ layFlat: true }), headers: { "content-type": "application/json" } })).json()) as { part: { layFlat: boolean; sizeZ: number } };
-    expect(flat.part.layFlat).toBe(true);
-    expect(flat.part.sizeZ).toBeCloseTo(6.35, 3); // already lying on its largest face
+    const patch = (body: unknown) => designer.fetch(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify(body), headers: { "content-type": "application/json" } });
+    const part = async () => ((await (await designer.fetch(`/api/parts/${p.id}`)).json()) as { part: { sizeX: number; sizeZ: number; layFlat: boolean; unit: string; warnings: unknown[] } }).part;
+    // Reading in another unit re-reads the mesh: queued for a worker (202), the same part id afterwards.
+    const fixing = await patch({ unit: "inch" });
+    expect(fixing.status).toBe(202);
+    expect((await settled(designer, fixing)).parts!.map((x) => x.id)).toEqual([p.id]);
+    const fixed = await part();
+    expect(fixed.sizeX).toBeCloseTo(12.7, 3); // 1 in = 25.4 mm
+    expect(fixed.sizeZ).toBeCloseTo(6.35, 3);
+    expect(fixed.warnings).toEqual([]);
+    expect((await settled(designer, await patch({ layFlat: true }))).state).toBe("ready");
+    const flat = await part();
+    expect(flat.layFlat).toBe(true);
+    expect(flat.sizeZ).toBeCloseTo(6.35, 3); // already lying on its largest face
+    // A rename alone needs no worker: answered at once.
+    const renamed = await patch({ name: `inchy-renamed-${tag}` });
+    expect(renamed.status).toBe(200);
+    expect(((await renamed.json()) as { part: { name: string; unit: string } }).part).toMatchObject({ name: `inchy-renamed-${tag}`, unit: "inch" });
   });
 
   it("refuses a viewer's upload (403) and a signed-out one (401)", async () => {

@@ -1,6 +1,7 @@
 "use client";
 
 import { useState } from "react";
+import { follow, type UploadBody } from "./follow-upload";
 import useSWR from "swr";
 import { UploadZone } from "./upload-zone";
 
@@ -45,9 +46,16 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
 
   const act = async (url: string, init: RequestInit, done?: string) => {
     const r = await fetch(url, { ...init, headers: { "Content-Type": "application/json" } });
+    const body = (await r.json().catch(() => null)) as (UploadBody & { error?: { message?: string } }) | null;
     if (!r.ok) {
-      const body = (await r.json().catch(() => null)) as { error?: { message?: string } } | null;
       setNotice({ ok: false, text: body?.error?.message ?? `That did not work (HTTP ${r.status}).` });
+    } else if (r.status === 202 && body?.upload) {
+      // Read again by a build worker (a new unit, lying flat, a split): follow it to the end.
+      setNotice({ ok: true, text: "Reading the part again…" });
+      await mutate();
+      const end = await follow(body.upload.url);
+      if (end?.upload?.state === "ready") setNotice({ ok: true, text: done ?? "Done." });
+      else setNotice({ ok: false, text: end?.upload?.error?.message ?? end?.error?.message ?? "That did not work." });
     } else if (done) setNotice({ ok: true, text: done });
     await mutate();
   };

@@ -3,7 +3,7 @@ import { apiRoute } from "@/lib/api/respond";
 import { notFound } from "@/lib/auth/errors";
 import { authorize } from "@/lib/auth/guards";
 import { UNIT_MM } from "@/lib/geometry/io/raw";
-import { deletePart, getPart, updatePart } from "@/lib/parts/ingest";
+import { deletePart, getPart, updatePart, uploadView } from "@/lib/parts/ingest";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -26,13 +26,17 @@ const patchSchema = z
   })
   .strict();
 
-/** PATCH /api/parts/{id} — rename, read in another unit (inch → mm), or lay flat. */
+/**
+ * PATCH /api/parts/{id} — rename (200), or read in another unit (inch → mm) or lay flat: those are
+ * measured again by a build worker, so the answer is 202 with `upload` to follow (as for an upload).
+ */
 export const PATCH = apiRoute(async (req: Request, ctx: Ctx) => {
   const caller = await authorize("parts:write", "changing parts");
   const change = patchSchema.parse(await req.json());
-  const part = await updatePart(caller, (await ctx.params).id, change);
+  const { part, upload } = await updatePart(caller, (await ctx.params).id, change);
   const { thumbnailSvg: _svg, ...rest } = part;
-  return Response.json({ part: rest });
+  if (!upload) return Response.json({ part: rest });
+  return Response.json({ part: rest, upload: await uploadView(upload) }, { status: 202, headers: { Location: `/api/parts/uploads/${upload.id}` } });
 });
 
 /** DELETE /api/parts/{id} — refused (409) while a kit uses the part, naming the kits. */
