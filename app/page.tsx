@@ -4,7 +4,7 @@ import { SlabIllustration } from "./_components/slab-illustration";
 
 const steps = [
   { title: "Bring the parts", body: "STL, 3MF or OBJ. Each file is checked, welded where safe, and refused with a plain reason when it is not printable." },
-  { title: "Lay out the slab", body: "Pieces are packed to fit your bed with even spacing, on a 1 mm slab with rounded corners and a 0.25 mm air gap." },
+  { title: "Lay out the slab", body: "Pieces are packed to fit your bed with even spacing, on a 1 mm slab with rounded corners and a 0.2 mm air gap (one layer, so the slicer keeps it)." },
   { title: "Mark it", body: "An order number, a thank-you line, a QR code, a number beside every piece and an outline under each one." },
   { title: "Print and pack", body: "One watertight STL or 3MF, and a plate map the packing bench checks against: an empty outline is a missing piece." },
 ];

@@ -19,7 +19,14 @@ export const jobSchema = z
   })
   ;
 export const findingSchema = z
-  .object({ severity: z.enum(["error", "warning", "info"]), code: z.string(), message: z.string(), piece: z.number().int().optional(), pieces: z.array(z.number().int()).optional() })
+  .object({
+    severity: z.enum(["error", "warning", "info"]),
+    code: z.string(),
+    message: z.string(),
+    piece: z.number().int().optional(),
+    pieces: z.array(z.number().int()).optional(),
+    field: z.array(z.union([z.string(), z.number().int()])).optional().describe("Where an option is the cause: its path in the options, e.g. [\"marks\", \"text\", 0, \"depth\"]."),
+  })
   ;
 export const plateSchema = z
   .object({

@@ -172,10 +172,12 @@ export async function makeReprint(actor: FloorActor, id: string): Promise<Plate>
   if (!p.input) throw new UserError("not_remakeable", "This plate has no stored inputs to reprint from.");
   const pieces = piecesOf(p);
   // Pieces name their part as the build thread does: part-1, part-2, … in the input's order.
-  const counts = p.input.parts.map((_, i) => wanted.filter((n) => pieces.find((x) => x.number === n)?.partId === `part-${i + 1}`).length);
-  const parts = p.input.parts.map((x, i) => ({ ...x, quantity: counts[i]! })).filter((x) => x.quantity > 0);
+  const byPart = p.input.parts.map((_, i) => wanted.filter((n) => pieces.find((x) => x.number === n)?.partId === `part-${i + 1}`).sort((a, b) => a - b));
+  const parts = p.input.parts.map((x, i) => ({ ...x, quantity: byPart[i]!.length })).filter((x) => x.quantity > 0);
   const opts = p.options as { layout?: Record<string, unknown> };
-  const { placements: _drop, ...layout } = (opts.layout ?? {}) as Record<string, unknown>;
+  const { placements: _drop, pieceNumbers: _old, ...layout } = (opts.layout ?? {}) as Record<string, unknown>;
+  // Each reprinted piece keeps its number from this plate (the build gives them out in kit order).
+  const pieceNumbers = byPart.flat();
   let plan: PlanId = "bench";
   const [row] = await db().transaction(async (tx) => {
     plan = (await meterPlate(tx, actor.workspaceId, 1, p.options)).plan;
@@ -187,7 +189,7 @@ export async function makeReprint(actor: FloorActor, id: string): Promise<Plate>
       templateVersionId: p.templateVersionId,
       source: "reprint",
       status: "building",
-      options: { ...p.options, layout: { ...layout, copies: 1 } },
+      options: { ...p.options, layout: { ...layout, copies: 1, pieceNumbers } },
       variables: p.variables,
       input: { ...p.input, parts },
       title: p.title,

@@ -1,5 +1,5 @@
 import type { CrossSection, Manifold } from "manifold-3d";
-import { runChecks, type Finding } from "./checks";
+import { runChecks, type CheckInput, type Finding } from "./checks";
 import { estimate, type Estimates } from "./estimates";
 import { bestPackingAngle, measureFootprint, rotatedBounds, type PartFootprint } from "./footprint";
 import type { FontBook } from "./fonts";
@@ -12,8 +12,8 @@ import { qrShape, QUIET_ZONE_MODULES, type QrShape } from "./marks/qr";
 import { LOGO_LIMITS, logoContours, logoHeight } from "./marks/logo";
 import { layoutText, type Contour, type TextShape } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
-import { NUMBER_SIZE, parseOptions, RING, type SlabOptions, type SlabOptionsInput, type TextMark } from "./options";
-import { slabOutline, type SlabShape } from "./slab";
+import { deepestEngraving, floorUnderMarks, parseOptions, slicedGap, type Depth, type SlabOptions, type SlabOptionsInput, type TextMark } from "./options";
+import { slabOutline, type ContentPoint, type SlabShape } from "./slab";
 import { fillPlaceholders } from "./variables";
 
 export type PlatePart = {
@@ -86,11 +86,14 @@ export type PlateResult = {
   findings: Finding[];
   estimates: Estimates | null;
   stats: { triangles: number; bodies: number; timings: Record<string, number> };
+  /**
+   * What a slicer will make of the slab and the gap at the chosen layer heights, and the floor left
+   * under the deepest engraving (mm).
+   */
+  slicing?: { slabTop: number; pieceBase: number; gap: number; gapLayers: number; minFloor: number };
   /** Kernel-free meshes of every body, for a preview. */
   bodies?: { name: string; mesh: IndexedMesh; piece?: number }[];
 };
-
-export const POCKET_DEPTH = 0.4;
 
 /** What a build needs to know of a part, measured once per mesh and layer height; kernel-free. */
 export type PartMeasure = {
@@ -256,9 +259,12 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     });
   }
 
-  const ext = o.marks.outlines === "ring" ? RING.clearance + RING.width : o.marks.outlines === "pocket" ? RING.clearance : 0;
-  const numberFont = input.fonts["mono-bold"];
-  const labelW = o.marks.numbers ? layoutText(numberFont, String(Math.max(1, work.length)), NUMBER_SIZE).advance : 0;
+  const ring = o.marks.ringStyle;
+  const ext = o.marks.outlines === "ring" ? ring.clearance + ring.width : o.marks.outlines === "pocket" ? ring.clearance : 0;
+  const numberFont = input.fonts[o.marks.numberStyle.font];
+  const numberSize = o.marks.numberStyle.size;
+  const highest = Math.max(1, work.length, ...(o.layout.pieceNumbers ?? []));
+  const labelW = o.marks.numbers ? layoutText(numberFont, String(highest), numberSize).advance : 0;
   const gutter = o.marks.numbers ? labelW + 0.8 : 0;
 
   // A band above or below the pieces: the logo at the left, then the text lines, the QR at the right.
@@ -290,7 +296,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   // take it turned a quarter (the gutter stays on the left, so that is a different size, not a swap).
   const sizeAt = (w: Work, angle: number): [number, number] => {
     const rb = rotatedBounds(w.fp.hull, angle);
-    return [rb.w + 2 * ext + gutter, Math.max(rb.h + 2 * ext, o.marks.numbers ? NUMBER_SIZE + 0.6 : 0)];
+    return [rb.w + 2 * ext + gutter, Math.max(rb.h + 2 * ext, o.marks.numbers ? numberSize + 0.6 : 0)];
   };
   const itemOf = (w: Work): PackItem => ({ key: w.slot, sizes: [sizeAt(w, w.angle), sizeAt(w, w.angle + 90)] });
   const auto = work.filter((w) => !fixed.has(w.slot));
@@ -340,11 +346,33 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   }
   lap("layout");
 
+  // Numbers: reading order of the pieces' centres (or the numbers asked for, in kit order).
+  const numbering = numberPieces(work.map((w) => ({ slot: w.slot, box: pieceBounds(w) })), o.layout.pieceNumbers);
+  if ("error" in numbering) {
+    findings.push(numbering.error);
+    return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
+  }
+  const numberOf = numbering.numbers;
+  // Each number's glyphs, at the top left of its piece's ring box and never below its bottom: they
+  // are content the slab is built around, like the pieces and the bands.
+  const numberGlyphs = new Map<number, { shape: TextShape; x: number; y: number; box: { minX: number; minY: number; maxX: number; maxY: number } }>();
+  if (o.marks.numbers) {
+    for (const w of work) {
+      const b = pieceBounds(w);
+      const shape = layoutText(numberFont, String(numberOf.get(w.slot)!), numberSize);
+      const x = b.minX - ext - gutter - Math.min(0, shape.bounds.minX);
+      const y = Math.max(b.maxY + ext, b.minY - ext + numberSize + 0.6) - numberSize - 0.3;
+      numberGlyphs.set(w.slot, { shape, x, y, box: { minX: x + shape.bounds.minX, minY: y + shape.bounds.minY, maxX: x + shape.bounds.maxX, maxY: y + shape.bounds.maxY } });
+    }
+  }
+
   // Content extent: pieces (with their rings and numbers) and the bands.
   const contentMinX = m;
   const piecesBox = work.map((w) => {
     const b = pieceBounds(w);
-    return { minX: b.minX - ext - gutter, minY: b.minY - ext, maxX: b.maxX + ext, maxY: b.maxY + ext };
+    const box = { minX: b.minX - ext - gutter, minY: b.minY - ext, maxX: b.maxX + ext, maxY: b.maxY + ext };
+    const g = numberGlyphs.get(w.slot)?.box;
+    return g ? { minX: Math.min(box.minX, g.minX), minY: Math.min(box.minY, g.minY), maxX: Math.max(box.maxX, g.maxX), maxY: Math.max(box.maxY, g.maxY) } : box;
   });
   const piecesMaxX = Math.max(m, ...piecesBox.map((b) => b.maxX));
   const piecesMinY = Math.min(...piecesBox.map((b) => b.minY), m + (bottom.h ? bottom.h + spacing : 0));
@@ -393,11 +421,19 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     ...(qrBlock ? [{ minX: qrBlock.x, minY: qrBlock.y, maxX: qrBlock.x + qrBlock.shape.sizeWithQuietZone, maxY: qrBlock.y + qrBlock.shape.sizeWithQuietZone }] : []),
     ...(logoBlock ? [{ minX: logoBlock.x, minY: logoBlock.y, maxX: logoBlock.x + logoBlock.w, maxY: logoBlock.y + logoBlock.h }] : []),
   ];
-  const outline = slabOutline(kernel, scope, o, {
+  // What the slab must hold with its margin: each piece's hull grown by its ring, every box's corners.
+  const points: ContentPoint[] = [
+    ...work.flatMap((w) => hullAt(w).map(([x, y]) => ({ x, y, clearance: ext }))),
+    ...contentBoxes.flatMap((b) => [[b.minX, b.minY], [b.maxX, b.minY], [b.minX, b.maxY], [b.maxX, b.maxY]].map(([x, y]) => ({ x: x!, y: y!, clearance: 0 }))),
+  ];
+  const shaped = slabOutline(kernel, scope, o, {
     boxes: contentBoxes,
+    points,
     pieceShadows: work.map((w) => placedShadow(scope, w)),
     ext,
   });
+  const outline = shaped.outline;
+  if (shaped.note) findings.push(shaped.note);
   // Shift everything so the slab sits in the positive quadrant from (0, 0).
   const ob = outline.bounds();
   const dx = -ob.min[0], dy = -ob.min[1];
@@ -418,24 +454,53 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     logoBlock.x += dx;
     logoBlock.y += dy;
   }
+  for (const g of numberGlyphs.values()) {
+    g.x += dx;
+    g.y += dy;
+    g.box = { minX: g.box.minX + dx, minY: g.box.minY + dy, maxX: g.box.maxX + dx, maxY: g.box.maxY + dy };
+  }
   const slabW = ob.max[0] - ob.min[0];
   const slabD = ob.max[1] - ob.min[1];
   lap("slab outline");
 
-  // Numbers: row by row from the top left.
-  const order = [...work].sort((a, b) => pieceBounds(b).maxY - pieceBounds(a).maxY);
-  const rowTol = Math.max(2, Math.min(...work.map((w) => pieceBounds(w).maxY - pieceBounds(w).minY)) / 2);
-  const rows: Work[][] = [];
-  for (const w of order) {
-    const row = rows.find((r) => Math.abs(pieceBounds(r[0]!).maxY - pieceBounds(w).maxY) <= rowTol);
-    if (row) row.push(w);
-    else rows.push([w]);
-  }
-  const numbered = rows.flatMap((r) => r.sort((a, b) => pieceBounds(a).minX - pieceBounds(b).minX || a.slot - b.slot));
-  const numberOf = new Map(numbered.map((w, i) => [w.slot, i + 1]));
-
   // 5. Marks as cutters (engraved) or additions (embossed), grouped by depth.
-  const lift = o.slab.thickness + o.slab.gap - (o.marks.outlines === "pocket" ? POCKET_DEPTH : 0);
+  // Every engraving leaves its floor: too deep is refused at its field, "max" is as deep as allowed.
+  const deepest = deepestEngraving(o);
+  const floor = floorUnderMarks(o);
+  const depthOf = (relief: "engrave" | "emboss", depth: Depth, field: (string | number)[], what: string): number => {
+    if (relief === "emboss") {
+      if (depth === "max") {
+        findings.push({ severity: "error", code: "emboss_needs_height", field, message: `The ${what} is embossed: give it a height in mm ("as deep as allowed" is for engraving).` });
+        return 0.4;
+      }
+      return depth;
+    }
+    if (deepest < 0.1 - 1e-9) {
+      findings.push({
+        severity: "error",
+        code: "slab_too_thin_to_engrave",
+        field,
+        message: `The ${what} cannot be engraved in a ${o.slab.thickness} mm slab: every engraving must leave ${floor.toFixed(2)} mm under it (two ${o.layerHeight} mm layers, and never under 0.4 mm). Make the slab at least ${(floor + 0.2).toFixed(1)} mm thick, or emboss the mark.`,
+      });
+      return 0.1;
+    }
+    if (depth === "max") return deepest;
+    if (depth > deepest + 1e-9) {
+      findings.push({
+        severity: "error",
+        code: "mark_too_deep",
+        field,
+        message: `The ${what} is engraved ${depth} mm deep in a ${o.slab.thickness} mm slab, leaving ${Math.max(0, o.slab.thickness - depth).toFixed(2)} mm under it; every engraving must leave ${floor.toFixed(2)} mm (two ${o.layerHeight} mm layers, and never under 0.4 mm). Make it at most ${deepest.toFixed(2)} mm deep (${(depth - deepest).toFixed(2)} mm less), thicken the slab to ${(depth + floor).toFixed(1)} mm, or choose "as deep as allowed".`,
+      });
+    }
+    return depth;
+  };
+  // Rings, pockets and numbers left to their default are engraved two layers' worth (0.4 mm, common
+  // practice) or as deep as a thinner slab allows.
+  const ownDepth = (d: Depth | undefined): Depth => d ?? (deepest >= 0.1 ? Math.min(0.4, Math.round(deepest * 1e6) / 1e6) : 0.4);
+  const ringDepth = o.marks.outlines === "none" ? 0 : depthOf("engrave", ownDepth(ring.depth), ["marks", "ringStyle", "depth"], o.marks.outlines === "pocket" ? "pocket under each piece" : "outline ring under each piece");
+  const numberDepth = o.marks.numbers ? depthOf("engrave", ownDepth(o.marks.numberStyle.depth), ["marks", "numberStyle", "depth"], "piece numbers") : 0;
+  const lift = o.slab.thickness + o.slab.gap - (o.marks.outlines === "pocket" ? ringDepth : 0);
   const engrave = new Map<number, CrossSection[]>();
   const emboss = new Map<number, CrossSection[]>();
   const add = (relief: "engrave" | "emboss", depth: number, cs: CrossSection) => {
@@ -445,46 +510,49 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     map.set(depth, list);
   };
   const textCs = (contours: Contour[], x: number, y: number) => scope.track(scope.track(new CrossSection(contours, "NonZero")).translate(x, y));
-  const markRegions: { kind: "text" | "qr" | "number" | "logo"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[] = [];
+  const markRegions: CheckInput["marks"] = [];
   for (const b of blocks) {
     if (b.shape.contours.length === 0) continue;
     const cs = textCs(b.shape.contours, b.x, b.y);
-    add(b.mark.relief, b.mark.depth, cs);
-    markRegions.push({ kind: "text", label: `"${b.value}"`, cs, relief: b.mark.relief });
+    const line = o.marks.text.indexOf(b.mark);
+    add(b.mark.relief, depthOf(b.mark.relief, b.mark.depth, ["marks", "text", line, "depth"], `text line ${line + 1} ("${b.value}")`), cs);
+    markRegions.push({ kind: "text", label: `"${b.value}"`, cs, relief: b.mark.relief, field: ["marks", "text", line, "size"] });
   }
   if (qrBlock) {
     const inset = QUIET_ZONE_MODULES * qrBlock.mark.module;
     const cs = textCs(qrBlock.shape.contours, qrBlock.x + inset, qrBlock.y + inset);
-    add(qrBlock.mark.relief, qrBlock.mark.depth, cs);
+    add(qrBlock.mark.relief, depthOf(qrBlock.mark.relief, qrBlock.mark.depth, ["marks", "qr", "depth"], "QR code"), cs);
   }
   if (logo && logoBlock) {
     const pieces = logo.parts.filter((p) => p.contours.length).map((p) => scope.track(new CrossSection(p.contours, p.fillRule === "evenodd" ? "EvenOdd" : "NonZero")));
     if (pieces.length) {
       const cs = scope.track(scope.track(CrossSection.union(pieces)).translate(logoBlock.x, logoBlock.y));
-      add(logo.mark.relief, logo.mark.depth, cs);
-      markRegions.push({ kind: "logo", label: logo.mark.name, cs, relief: logo.mark.relief });
+      add(logo.mark.relief, depthOf(logo.mark.relief, logo.mark.depth, ["marks", "logo", "depth"], `logo ${logo.mark.name}`), cs);
+      markRegions.push({ kind: "logo", label: logo.mark.name, cs, relief: logo.mark.relief, field: ["marks", "logo", "width"] });
     }
   }
   const placed: PlacedPiece[] = [];
-  const ringDepth = o.marks.text[0]?.depth ?? 0.4;
+  const rings: CrossSection[] = [];
   for (const w of work) {
     const shadow = placedShadow(scope, w);
     const n = numberOf.get(w.slot)!;
     const b = pieceBounds(w);
     let numberAt: { x: number; y: number } | undefined;
-    if (o.marks.numbers) {
-      const shape = layoutText(numberFont, String(n), NUMBER_SIZE);
-      numberAt = { x: b.minX - ext - gutter, y: b.maxY + ext - NUMBER_SIZE - 0.3 };
-      const cs = textCs(shape.contours, numberAt.x - Math.min(0, shape.bounds.minX), numberAt.y);
-      add("engrave", 0.4, cs);
-      markRegions.push({ kind: "number", label: `number ${n}`, cs, relief: "engrave" });
+    const glyphs = numberGlyphs.get(w.slot);
+    if (glyphs) {
+      numberAt = { x: glyphs.box.minX, y: glyphs.y };
+      const cs = textCs(glyphs.shape.contours, glyphs.x, glyphs.y);
+      add("engrave", numberDepth, cs);
+      markRegions.push({ kind: "number", label: `number ${n}`, cs, relief: "engrave", field: ["marks", "numberStyle", "size"] });
     }
     if (o.marks.outlines === "ring") {
-      const outer = scope.track(shadow.offset(RING.clearance + RING.width, "Round", 2, 48));
-      const inner = scope.track(shadow.offset(RING.clearance, "Round", 2, 48));
-      add("engrave", ringDepth, scope.track(scope.track(outer.subtract(inner)).simplify(0.005)));
+      const outer = scope.track(shadow.offset(ring.clearance + ring.width, "Round", 2, 48));
+      const inner = scope.track(shadow.offset(ring.clearance, "Round", 2, 48));
+      const cs = scope.track(scope.track(outer.subtract(inner)).simplify(0.005));
+      add("engrave", ringDepth, cs);
+      rings.push(cs);
     } else if (o.marks.outlines === "pocket") {
-      add("engrave", POCKET_DEPTH, scope.track(scope.track(shadow.offset(RING.clearance, "Round", 2, 48)).simplify(0.005)));
+      add("engrave", ringDepth, scope.track(scope.track(shadow.offset(ring.clearance, "Round", 2, 48)).simplify(0.005)));
     }
     placed.push({
       number: n,
@@ -522,6 +590,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
       slabSize: { width: slabW, depth: slabD },
       pieces: pieceShadows.map((p) => ({ number: p.number, shadow: p.cs, name: p.w.part.name, height: p.w.fp.height, contactArea: p.w.fp.contactArea, partId: p.w.part.id, bounds: pieceBounds(p.w), ringExt: ext })),
       marks: markRegions,
+      allMarks: [...engrave.values(), ...emboss.values()].flat(),
       texts: blocks,
       qr: qrBlock,
       unfilled: [...o.marks.text.map((t) => fillPlaceholders(t.value, vars)), qr?.value ?? ""].flatMap((v) => [...v.matchAll(/\{([a-z][a-z0-9_]*)\}/gi)].map((x) => x[0])),
@@ -529,6 +598,8 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     }),
   );
   lap("checks");
+  const sliced = slicedGap(o);
+  const slicing = { slabTop: sliced.slabTop, pieceBase: sliced.pieceBase, gap: sliced.gap, gapLayers: sliced.layers, minFloor: o.slab.thickness - Math.max(0, ...engrave.keys()) };
 
   const layout: PlateLayout = {
     slab: { shape: o.slab.shape, width: slabW, depth: slabD, outline: slabCs.toPolygons(), thickness: o.slab.thickness },
@@ -542,7 +613,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     ],
   };
   if (findings.some((f) => f.severity === "error")) {
-    return { pieces: placed, layout, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
+    return { pieces: placed, layout, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings }, slicing };
   }
 
   // 7. The slab solid: one n-ary difference with every cutter, then embossed marks joined on.
@@ -624,7 +695,12 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   }
   const estimates = estimate(o, slabVolume, placed.map((p) => ({ number: p.number, volume: measures[input.parts.findIndex((x) => x.id === p.partId)]!.volume })));
   const triangles = bodies.reduce((s, b) => s + b.mesh.triVerts.length / 3, 0);
-  return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings }, bodies };
+  return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings }, slicing, bodies };
+
+  function hullAt(w: Work): [number, number][] {
+    const r = (w.angle * Math.PI) / 180, c = Math.cos(r), sn = Math.sin(r);
+    return w.fp.hull.map(([x, y]) => [c * x - sn * y + w.x, sn * x + c * y + w.y]);
+  }
 
   function pieceBounds(w: Work) {
     const rb = rotatedBounds(w.fp.hull, w.angle);
@@ -656,4 +732,40 @@ export function placeMesh(mesh: IndexedMesh, deg: number, x: number, y: number, 
     out[i + 2] = p[i + 2]! + z;
   }
   return { vertProperties: out, triVerts: mesh.triVerts };
+}
+
+type Box2 = { minX: number; minY: number; maxX: number; maxY: number };
+
+/**
+ * Piece numbers in reading order: rows from the top down, each left to right by the pieces' centres.
+ * A piece is in a row when its centre lies within the height of the row's first piece, or that
+ * piece's centre within its own height (so a short piece beside a tall one reads in its row). The
+ * numbers depend only on where the pieces are, so any change that leaves them in place keeps them.
+ * `given` (in kit order) replaces them, as a reprint keeps its pieces' numbers.
+ */
+export function numberPieces(items: { slot: number; box: Box2 }[], given?: number[]): { numbers: Map<number, number> } | { error: Finding } {
+  if (given) {
+    const dup = given.find((n, i) => given.indexOf(n) !== i);
+    if (given.length !== items.length || dup !== undefined) {
+      return {
+        error: {
+          severity: "error",
+          code: "piece_numbers_mismatch",
+          field: ["layout", "pieceNumbers"],
+          message: dup !== undefined ? `Piece number ${dup} is given twice in layout.pieceNumbers; each piece needs its own.` : `layout.pieceNumbers lists ${given.length} numbers for ${items.length} pieces; give exactly one per piece, in kit order.`,
+        },
+      };
+    }
+    return { numbers: new Map(items.map((it, i) => [it.slot, given[i]!])) };
+  }
+  const cy = (b: Box2) => (b.minY + b.maxY) / 2, cx = (b: Box2) => (b.minX + b.maxX) / 2;
+  const order = [...items].sort((a, b) => cy(b.box) - cy(a.box) || cx(a.box) - cx(b.box) || a.slot - b.slot);
+  const rows: { anchor: Box2; members: typeof items }[] = [];
+  for (const it of order) {
+    const row = rows.find((r) => (cy(it.box) >= r.anchor.minY && cy(it.box) <= r.anchor.maxY) || (cy(r.anchor) >= it.box.minY && cy(r.anchor) <= it.box.maxY));
+    if (row) row.members.push(it);
+    else rows.push({ anchor: it.box, members: [it] });
+  }
+  const read = rows.flatMap((r) => r.members.sort((a, b) => cx(a.box) - cx(b.box) || a.slot - b.slot));
+  return { numbers: new Map(read.map((it, i) => [it.slot, i + 1])) };
 }

@@ -1,10 +1,14 @@
 import type { CrossSection } from "manifold-3d";
 import type { Kernel, Scope } from "./kernel";
 import type { QrShape } from "./marks/qr";
-import { MATERIALS, type SlabOptions } from "./options";
+import { MATERIALS, slicedGap, type SlabOptions } from "./options";
 
 export type Severity = "error" | "warning" | "info";
-export type Finding = { severity: Severity; code: string; message: string; piece?: number; pieces?: number[] };
+/**
+ * One thing the checks found. `field`, where an option is the cause, is its path in the options
+ * (as zod reports a path: ["marks", "text", 0, "depth"]), so a form shows the finding at that field.
+ */
+export type Finding = { severity: Severity; code: string; message: string; piece?: number; pieces?: number[]; field?: (string | number)[] };
 
 type Box = { minX: number; minY: number; maxX: number; maxY: number };
 
@@ -13,7 +17,9 @@ export type CheckInput = {
   slab: CrossSection;
   slabSize: { width: number; depth: number };
   pieces: { number: number; shadow: CrossSection; name: string; height: number; contactArea: number; partId: string; bounds: Box; ringExt: number }[];
-  marks: { kind: "text" | "qr" | "number" | "logo"; label: string; cs: CrossSection; relief: "engrave" | "emboss" }[];
+  marks: { kind: "text" | "qr" | "number" | "logo"; label: string; cs: CrossSection; relief: "engrave" | "emboss"; field?: (string | number)[] }[];
+  /** Every engraved or embossed region (rings, pockets and the QR code too), to hold them to the slab. */
+  allMarks?: CrossSection[];
   texts: { mark: { relief: "engrave" | "emboss"; size: number }; value: string }[];
   qr: { shape: QrShape; x: number; y: number; mark: { module: number } } | null;
   unfilled: string[];
@@ -89,6 +95,24 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     }
   }
 
+  // The slab is built around everything; this holds it to that: nothing may stand or be cut off it.
+  {
+    const content = [...c.pieces.map((p) => scope.track(p.shadow.offset(p.ringExt, "Round", 2, 24))), ...(c.allMarks ?? [])];
+    if (content.length) {
+      const off = scope.track(scope.track(CrossSection.union(content)).subtract(c.slab));
+      const a = area(off);
+      if (a > AREA_EPS) {
+        const hanging = c.pieces.filter((p) => area(scope.track(p.shadow.subtract(c.slab))) > AREA_EPS).map((p) => p.number);
+        out.push({
+          severity: "error",
+          code: "off_slab",
+          ...(hanging.length ? { pieces: hanging, piece: hanging[0] } : {}),
+          message: `${r1(a)} mm² of ${hanging.length ? `piece${hanging.length > 1 ? "s" : ""} ${hanging.join(", ")} and their` : "the"} outlines and marks lie off the slab. Make the margin or the slab larger.`,
+        });
+      }
+    }
+  }
+
   // Standing steady on the gap.
   for (const p of c.pieces) {
     const d = 2 * Math.sqrt(p.contactArea / Math.PI);
@@ -109,7 +133,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     const keepOut = scope.track(CrossSection.union(c.pieces.map((p) => scope.track(p.shadow.offset(p.ringExt, "Round", 2, 24)))));
     for (const mk of c.marks) {
       if (area(scope.track(mk.cs.intersect(keepOut))) > AREA_EPS) {
-        out.push({ severity: "error", code: "mark_collides", message: `The ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} runs under a piece or its outline; move it.` });
+        out.push({ severity: "error", code: "mark_collides", ...(mk.field ? { field: mk.field } : {}), message: `The ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} runs under a piece or its outline; move it.` });
       }
     }
     if (c.qr) {
@@ -127,6 +151,15 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
   if (c.qr && c.qr.mark.module < 2.5 * nozzle - 1e-9) {
     out.push({ severity: "warning", code: "qr_module_too_small", message: `QR modules of ${r2(c.qr.mark.module)} mm are under 2.5 × the ${nozzle} mm nozzle (${r2(2.5 * nozzle)} mm); the code may not scan. Use bigger modules or a shorter value.` });
   }
+  // A ring is exactly its width: under one line width it is not printed at all.
+  if (o.marks.outlines === "ring" && o.marks.ringStyle.width < nozzle - 1e-9) {
+    out.push({
+      severity: "error",
+      code: "ring_too_narrow",
+      field: ["marks", "ringStyle", "width"],
+      message: `Outline rings ${r2(o.marks.ringStyle.width)} mm wide are narrower than one line of the ${nozzle} mm nozzle: the slicer leaves them out. Make them at least ${r2(nozzle)} mm wide (${r2(nozzle - o.marks.ringStyle.width)} mm more), or use pockets.`,
+    });
+  }
   for (const mk of c.marks) {
     if (mk.kind === "qr") continue;
     const stroke = mk.relief === "engrave" ? nozzle : 2 * nozzle;
@@ -138,6 +171,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
       out.push({
         severity: "warning",
         code: "stroke_too_thin",
+        ...(mk.field ? { field: mk.field } : {}),
         message: `Strokes of the ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} are narrower than ${r2(stroke)} mm (${mk.relief === "engrave" ? "1" : "2"} × the nozzle, for ${mk.relief === "engrave" ? "engraved" : "embossed"} marks): ${Math.round(lost * 100)} % of it would not print. Make it larger or bolder.`,
       });
     }
@@ -150,15 +184,33 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
   if (o.slab.gap < 0.2 - 1e-9 || o.slab.gap > 0.3 + 1e-9) {
     out.push({ severity: "warning", code: "gap_out_of_range", message: `A ${r2(o.slab.gap)} mm gap is outside the usual 0.20–0.30 mm: ${o.slab.gap < 0.2 ? "pieces may fuse to the slab" : "pieces may come loose while printing"}.` });
   }
-  if (o.slab.gap < o.layerHeight - 1e-9) {
-    out.push({ severity: "warning", code: "gap_below_layer", message: `The ${r2(o.slab.gap)} mm gap is thinner than one ${r2(o.layerHeight)} mm layer and will likely be lost when sliced.` });
+  // The gap as a slicer makes it: whole layers between the slab's last and the pieces' first.
+  const sliced = slicedGap(o);
+  const at = `${r2(o.layerHeight)} mm layers${o.firstLayerHeight !== o.layerHeight ? ` (first layer ${r2(o.firstLayerHeight)} mm)` : ""}`;
+  if (sliced.gap <= 1e-9) {
+    out.push({
+      severity: "error",
+      code: "gap_sliced_away",
+      field: ["slab", "gap"],
+      message: `At ${at} the slicer rounds the ${r2(o.slab.gap)} mm gap to nothing: the pieces' first layer lands on the slab and they fuse to it. Use a gap of ${r2(o.layerHeight)} mm (one layer) or more.`,
+    });
+  } else if (o.slab.gap < o.layerHeight - 1e-9) {
+    out.push({
+      severity: "error",
+      code: "gap_below_layer",
+      field: ["slab", "gap"],
+      message: `The ${r2(o.slab.gap)} mm gap is thinner than one ${r2(o.layerHeight)} mm layer: a slicer cannot print it as asked (it would make it ${r2(sliced.gap)} mm, or lose it). Use ${r2(o.layerHeight)} mm (one layer), or thinner layers.`,
+    });
+  } else if (Math.abs(sliced.gap - o.slab.gap) > 1e-6) {
+    out.push({
+      severity: "info",
+      code: "gap_sliced",
+      field: ["slab", "gap"],
+      message: `At ${at} a slicer makes the ${r2(o.slab.gap)} mm gap ${r2(sliced.gap)} mm (${sliced.layers} layer${sliced.layers === 1 ? "" : "s"}). Set the gap to ${r2(sliced.gap)} mm to get what you see, or keep it in the slicer's own gap setting.`,
+    });
   }
-  const layers = (v: number) => Math.abs(v / o.layerHeight - Math.round(v / o.layerHeight)) > 1e-6;
-  if (layers(o.slab.thickness)) {
-    out.push({ severity: "info", code: "thickness_not_layers", message: `The ${r2(o.slab.thickness)} mm slab is not a whole number of ${r2(o.layerHeight)} mm layers; the slicer will round it.` });
-  }
-  if (layers(o.slab.gap)) {
-    out.push({ severity: "info", code: "gap_not_layers", message: `The ${r2(o.slab.gap)} mm gap is not a whole number of ${r2(o.layerHeight)} mm layers; keep it in the slicer (support gap settings) rather than letting it round away.` });
+  if (Math.abs(sliced.slabTop - o.slab.thickness) > 1e-6) {
+    out.push({ severity: "info", code: "thickness_sliced", field: ["slab", "thickness"], message: `At ${at} a slicer makes the ${r2(o.slab.thickness)} mm slab ${r2(sliced.slabTop)} mm thick.` });
   }
 
   // Small parts (informational: only matters for kits that may reach children). One finding for the plate.

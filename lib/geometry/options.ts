@@ -4,7 +4,7 @@ import { ENGRAVING_FONTS } from "./fonts";
 /**
  * The slab builder's options: the one canonical table. The slab editor's form, the plate API and
  * templates all use these names, units (millimetres) and defaults. Defaults follow common practice in
- * print-farm production (see the trade facts): a 1.0 mm slab, a 0.25 mm air gap, rounded corners.
+ * print-farm production (see the trade facts): a 1.0 mm slab, a 0.2 mm air gap (one 0.2 mm layer), rounded corners.
  */
 
 export const MATERIALS = {
@@ -29,6 +29,13 @@ export type MarkPosition = z.infer<typeof markPositionSchema>;
 
 export const reliefSchema = z.enum(["engrave", "emboss"]);
 
+/**
+ * An engraving's depth (or an embossed mark's height) in mm, or "max": as deep as the slab allows,
+ * leaving the floor every engraving must keep under it (see `floorUnderMarks`).
+ */
+export const depthSchema = z.union([mm(0.1, 2), z.literal("max")]);
+export type Depth = z.infer<typeof depthSchema>;
+
 export const textMarkSchema = z
   .object({
     value: z.string().trim().min(1, "Enter the text to engrave.").max(120),
@@ -36,8 +43,8 @@ export const textMarkSchema = z
     size: mm(1, 40).default(5),
     font: z.enum(fontIds).default("sans-bold"),
     relief: reliefSchema.default("engrave"),
-    /** Engraving depth or embossing height in mm. */
-    depth: mm(0.1, 2).default(0.4),
+    /** Engraving depth or embossing height in mm ("max": as deep as the slab allows). */
+    depth: depthSchema.default(0.4),
     position: markPositionSchema.default("auto"),
     /** The longest the line may be once its {placeholders} are filled (a template's room for a name). */
     maxWidth: mm(5, 2000).optional(),
@@ -52,7 +59,7 @@ export const qrMarkSchema = z
     module: mm(0.3, 5).default(1.2),
     level: z.enum(["L", "M", "Q", "H"]).default("M"),
     relief: reliefSchema.default("engrave"),
-    depth: mm(0.1, 2).default(0.4),
+    depth: depthSchema.default(0.4),
     position: markPositionSchema.default("auto"),
     /** The largest the code may be, quiet zone included, once its {placeholders} are filled. */
     maxSize: mm(5, 500).optional(),
@@ -71,7 +78,7 @@ export const logoMarkSchema = z
     box: z.object({ minX: z.number().finite(), minY: z.number().finite(), maxX: z.number().finite(), maxY: z.number().finite() }).strict().refine((b) => b.maxX > b.minX && b.maxY > b.minY, "The logo's box has no area."),
     width: mm(3, 200).default(20),
     relief: reliefSchema.default("engrave"),
-    depth: mm(0.1, 2).default(0.4),
+    depth: depthSchema.default(0.4),
     position: markPositionSchema.default("auto"),
   })
   .strict();
@@ -80,6 +87,35 @@ export type LogoMark = z.infer<typeof logoMarkSchema>;
 export const placementSchema = z
   .object({ piece: z.number().int().min(1), x: z.number().finite(), y: z.number().finite(), rotation: z.number().finite().default(0) })
   .strict();
+
+/**
+ * The numbers engraved beside the pieces: cap height, face and depth. 4 mm bold mono engraved 0.4 mm
+ * (two 0.2 mm layers) reads at arm's length and prints with a 0.4 mm nozzle (common practice).
+ */
+export const numberStyleSchema = z
+  .object({
+    size: mm(2, 20).default(4),
+    font: z.enum(fontIds).default("mono-bold"),
+    /** Left out: 0.4 mm, or as deep as a thinner slab allows. */
+    depth: depthSchema.optional(),
+  })
+  .strict()
+  .prefault({});
+
+/**
+ * The outline under each piece: a ring `width` wide starting `clearance` outside the piece's shadow,
+ * or (outlines "pocket") a pocket that far out, `depth` deep. 0.8 mm (two 0.4 mm lines) wide, 0.8 mm
+ * clear, 0.4 mm deep: common practice.
+ */
+export const ringStyleSchema = z
+  .object({
+    width: mm(0.2, 5).default(0.8),
+    clearance: mm(0, 10).default(0.8),
+    /** Left out: 0.4 mm, or as deep as a thinner slab allows. */
+    depth: depthSchema.optional(),
+  })
+  .strict()
+  .prefault({});
 export type Placement = z.infer<typeof placementSchema>;
 
 export const slabOptionsSchema = z
@@ -88,7 +124,8 @@ export const slabOptionsSchema = z
       .object({
         shape: z.enum(["disc", "rounded-rect", "contour"]).default("rounded-rect"),
         thickness: mm(0.6, 3).default(1.0),
-        gap: mm(0.1, 0.5).default(0.25),
+        /** Air gap between the slab's top and the pieces: one 0.2 mm layer by default (see `slicedGap`). */
+        gap: mm(0.1, 0.5).default(0.2),
         cornerRadius: mm(0, 100).default(5),
         margin: mm(0, 50).default(4),
       })
@@ -100,6 +137,11 @@ export const slabOptionsSchema = z
         bed: z.object({ width: mm(20, 2000), depth: mm(20, 2000) }).strict().default({ width: 220, depth: 220 }),
         copies: z.number().int().min(1).max(100).default(1),
         placements: z.array(placementSchema).max(2000).optional(),
+        /**
+         * Numbers to give the pieces, in kit order, instead of numbering them in reading order: a
+         * reprint keeps each piece's number from the plate it replaces.
+         */
+        pieceNumbers: z.array(z.number().int().min(1).max(100_000)).max(2000).optional(),
       })
       .strict()
       .prefault({}),
@@ -109,6 +151,8 @@ export const slabOptionsSchema = z
         qr: qrMarkSchema.optional(),
         logo: logoMarkSchema.optional(),
         numbers: z.boolean().default(true),
+        numberStyle: numberStyleSchema,
+        ringStyle: ringStyleSchema,
         outlines: z
           .union([z.enum(["ring", "pocket", "none"]), z.boolean()])
           .default("ring")
@@ -119,6 +163,8 @@ export const slabOptionsSchema = z
     material: z.enum(Object.keys(MATERIALS) as [Material, ...Material[]]).default("PLA"),
     nozzle: mm(0.1, 2).default(0.4),
     layerHeight: mm(0.04, 1).default(0.2),
+    /** The first layer's height (slicers often print it thicker for grip); the slab's layers start on it. */
+    firstLayerHeight: mm(0.04, 1).default(0.2),
     pricePerKg: z.number().finite().min(0).max(10_000).default(25),
   })
   .strict();
@@ -134,7 +180,40 @@ export function parseOptions(input: unknown): SlabOptions {
 
 export const DEFAULT_OPTIONS: SlabOptions = parseOptions({});
 
-/** Ring outlines: 0.6 mm wide, starting 0.8 mm outside the footprint (common practice). */
-export const RING = { clearance: 0.8, width: 0.6 } as const;
-/** Piece numbers: 4 mm cap height in the mono face. */
-export const NUMBER_SIZE = 4;
+/**
+ * What every engraving must leave under it: two layers, and never under 0.4 mm, or the slab's floor
+ * there tears or prints as loose strands (common practice: 0.4 mm engraving on a 1 mm slab leaves 0.6).
+ */
+export function floorUnderMarks(o: Pick<SlabOptions, "layerHeight">): number {
+  return Math.max(2 * o.layerHeight, 0.4);
+}
+
+/** How deep an engraving may go on this slab (thickness less the floor), 0 when none is possible. */
+export function deepestEngraving(o: Pick<SlabOptions, "layerHeight" | "slab">): number {
+  return Math.max(0, o.slab.thickness - floorUnderMarks(o));
+}
+
+/**
+ * What a slicer makes of the slab and the gap. Layers start at z = 0 with the first layer, then
+ * `layerHeight` each; a layer is cut at its middle height (as slicers do), so a solid fills every
+ * layer whose middle lies inside it. The slab's top is the top of its last layer, the pieces' base the
+ * bottom of their first: the gap between them is whole layers, and zero when they fuse.
+ */
+export function slicedGap(o: Pick<SlabOptions, "layerHeight" | "firstLayerHeight" | "slab">): { slabTop: number; pieceBase: number; gap: number; layers: number } {
+  const f = o.firstLayerHeight, h = o.layerHeight;
+  const top = (k: number) => (k <= 0 ? 0 : f + (k - 1) * h); // top of layer k (1-based)
+  const mid = (k: number) => (k === 1 ? f / 2 : f + (k - 1.5) * h);
+  const eps = 1e-9;
+  // A cutting plane that meets a solid's flat top or bottom exactly counts as inside it.
+  // Layers whose middle is in the slab: 1…a.
+  let a = 0;
+  while (mid(a + 1) <= o.slab.thickness + eps) a++;
+  // The pieces start in the first layer whose middle is at or above their base.
+  const base = o.slab.thickness + o.slab.gap;
+  let b = a + 1;
+  while (mid(b) < base - eps) b++;
+  const round = (x: number) => Math.round(x * 1e6) / 1e6;
+  const slabTop = round(top(a)), pieceBase = round(top(b - 1));
+  const gap = round(Math.max(0, pieceBase - slabTop));
+  return { slabTop, pieceBase, gap, layers: b - 1 - a };
+}

@@ -1,10 +1,103 @@
 import type { CrossSection } from "manifold-3d";
 import type { Kernel, Scope } from "./kernel";
 import type { Contour } from "./marks/text";
+import type { Finding } from "./checks";
 import type { SlabOptions } from "./options";
 
 export type SlabShape = SlabOptions["slab"]["shape"];
 type Box = { minX: number; minY: number; maxX: number; maxY: number };
+
+/** A point the slab must hold with `clearance` + the margin all round it (a piece's hull vertex: its ring). */
+export type ContentPoint = { x: number; y: number; clearance: number };
+
+/**
+ * Whether the rounded rectangle over `b` with corner radius `r` (clamped as roundedRect clamps it)
+ * holds every point with its clearance + `m` all round. The rectangle is convex, so a disc of radius c
+ * round p lies inside it exactly when p lies inside the rectangle shrunk by c on every side and, where
+ * r > c, within r − c of the rectangle's core (the rectangle shrunk by r).
+ */
+function holds(b: Box, r: number, m: number, points: ContentPoint[]): boolean {
+  const w = b.maxX - b.minX, h = b.maxY - b.minY;
+  const rr = Math.max(0, Math.min(r, w / 2, h / 2));
+  const eps = 1e-7;
+  for (const p of points) {
+    const c = p.clearance + m;
+    if (p.x < b.minX + c - eps || p.x > b.maxX - c + eps || p.y < b.minY + c - eps || p.y > b.maxY - c + eps) return false;
+    if (rr <= c) continue;
+    const dx = Math.max(b.minX + rr - p.x, 0, p.x - (b.maxX - rr));
+    const dy = Math.max(b.minY + rr - p.y, 0, p.y - (b.maxY - rr));
+    if (Math.hypot(dx, dy) > rr - c + eps) return false;
+  }
+  return true;
+}
+
+const grow = (b: Box, e: number): Box => ({ minX: b.minX - e, minY: b.minY - e, maxX: b.maxX + e, maxY: b.maxY + e });
+
+/** The smallest x in [0, hi] for which ok(x) holds, ok being monotone and ok(hi) true (bisection to 1 µm). */
+function least(hi: number, ok: (x: number) => boolean): number {
+  if (ok(0)) return 0;
+  let lo = 0;
+  while (hi - lo > 1e-3) {
+    const mid = (lo + hi) / 2;
+    if (ok(mid)) hi = mid;
+    else lo = mid;
+  }
+  return hi;
+}
+
+/**
+ * A rounded rectangle that holds every piece (with its ring), number and band with the margin, by
+ * construction. Round corners cut into the content's box: the slab grows evenly just enough for the
+ * asked radius; if that would leave the bed, the radius is limited instead. Either is said in a finding.
+ */
+export function roundedSlab(o: SlabOptions, b: Box, points: ContentPoint[]): { box: Box; radius: number; note?: Finding } {
+  const m = o.slab.margin;
+  const r = o.slab.cornerRadius;
+  const tight = grow(b, m);
+  if (holds(tight, r, m, points)) return { box: tight, radius: r };
+  // Grown by r on every side the corners can no longer reach the content (its box is the core).
+  const e = least(r, (x) => holds(grow(tight, x), r, m, points));
+  const box = grow(tight, e);
+  const bed = o.layout.bed;
+  if (box.maxX - box.minX <= bed.width + 1e-6 && box.maxY - box.minY <= bed.depth + 1e-6) {
+    // A few tenths of a millimetre (the margin kept round a mark's corner) go unsaid.
+    if (e < 0.5) return { box, radius: r };
+    return {
+      box,
+      radius: r,
+      note: {
+        severity: "info",
+        code: "corners_grow_slab",
+        field: ["slab", "cornerRadius"],
+        message: `The ${r} mm corners would cut into the pieces and marks, so the slab is ${(2 * e).toFixed(1)} mm wider and deeper than they need (${(box.maxX - box.minX).toFixed(1)} × ${(box.maxY - box.minY).toFixed(1)} mm). A radius of ${maxRadius(tight, m, points).toFixed(1)} mm or less keeps it at its smallest.`,
+      },
+    };
+  }
+  const fit = maxRadius(tight, m, points);
+  return {
+    box: tight,
+    radius: fit,
+    note: {
+      severity: "warning",
+      code: "corner_radius_limited",
+      field: ["slab", "cornerRadius"],
+      message: `Corners of ${r} mm would cut into the pieces and marks, and a slab grown to hold them (${(box.maxX - box.minX).toFixed(1)} × ${(box.maxY - box.minY).toFixed(1)} mm) would not fit the ${bed.width} × ${bed.depth} mm bed; the corners are rounded to ${fit.toFixed(1)} mm instead. Choose ${(Math.floor(fit * 10 + 0.01) / 10).toFixed(1)} mm or less, or a disc.`,
+    },
+  };
+}
+
+/** The largest corner radius the tight box allows with every point held (bisection; 0 always works). */
+function maxRadius(tight: Box, m: number, points: ContentPoint[]): number {
+  const top = Math.min(tight.maxX - tight.minX, tight.maxY - tight.minY) / 2;
+  if (holds(tight, top, m, points)) return top;
+  let lo = 0, hi = top;
+  while (hi - lo > 1e-3) {
+    const mid = (lo + hi) / 2;
+    if (holds(tight, mid, m, points)) lo = mid;
+    else hi = mid;
+  }
+  return lo;
+}
 
 /** Segments per quarter circle for slab corners: area error −1.6·10⁻⁴·r² per corner, far below a layer. */
 export const CORNER_SEGMENTS = 32;
@@ -44,7 +137,7 @@ export function disc(cx: number, cy: number, r: number, segments = DISC_SEGMENTS
  * contour that follows the pieces (their shadows grown by the margin, gaps between them closed, and
  * the result kept as one outline).
  */
-export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: { boxes: Box[]; pieceShadows: CrossSection[]; ext: number }): CrossSection {
+export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: { boxes: Box[]; points: ContentPoint[]; pieceShadows: CrossSection[]; ext: number }): { outline: CrossSection; note?: Finding } {
   const { CrossSection } = kernel.wasm;
   const m = o.slab.margin;
   const b = content.boxes.reduce(
@@ -56,7 +149,7 @@ export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, conten
     const c = enclosingCircle(pts);
     // Grow by the margin, and by the polygon's inset so the inscribed edges keep the full margin.
     const radius = (c.r + m) / Math.cos(Math.PI / DISC_SEGMENTS);
-    return scope.track(new CrossSection([disc(c.x, c.y, radius)]));
+    return { outline: scope.track(new CrossSection([disc(c.x, c.y, radius)])) };
   }
   if (o.slab.shape === "contour") {
     const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + m, "Round", 2, 48)));
@@ -67,10 +160,11 @@ export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, conten
     cs = scope.track(scope.track(cs.offset(close, "Round", 2, 48)).offset(-close, "Round", 2, 48));
     const islands = cs.decompose().map((x) => scope.track(x));
     if (islands.length > 1) cs = scope.track(cs.hull());
-    return scope.track(cs.simplify(0.01));
+    return { outline: scope.track(cs.simplify(0.01)) };
   }
-  const w = b.maxX - b.minX + 2 * m, h = b.maxY - b.minY + 2 * m;
-  return scope.track(new CrossSection([roundedRect(b.minX - m, b.minY - m, w, h, o.slab.cornerRadius)]));
+  const r = roundedSlab(o, b, content.points);
+  const outline = scope.track(new CrossSection([roundedRect(r.box.minX, r.box.minY, r.box.maxX - r.box.minX, r.box.maxY - r.box.minY, r.radius)]));
+  return r.note ? { outline, note: r.note } : { outline };
 }
 
 export type Circle = { x: number; y: number; r: number };

@@ -14,7 +14,7 @@ export const STARTERS: Starter[] = [
     name: "Round thank-you slab",
     description: "A disc under the set with a thank-you line for the customer and the kit's name. Numbers and outline rings show a missing piece at a glance.",
     options: {
-      slab: { shape: "disc", thickness: 1, gap: 0.25, margin: 5 },
+      slab: { shape: "disc", thickness: 1, gap: 0.2, margin: 5 },
       marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 90 }, { value: "{kit}", size: 3.5, font: "sans-bold" }], numbers: true, outlines: "ring" },
     },
     variables: [{ name: "customer", label: "Customer's first name", default: "friend", sample: "Sam" }],

@@ -145,6 +145,8 @@ describe("inspection", () => {
     const pieces = piecesOf(built!);
     expect(pieces).toHaveLength(1);
     expect(pieces[0]!.partName).toBe(piece3.partName);
+    // The reprinted piece keeps its number, so it goes back to its own outline on the packed kit.
+    expect(pieces[0]!.number).toBe(3);
     expect(built!.variables).toEqual(p!.variables);
   });
 

@@ -4,7 +4,7 @@ import { useId, useState } from "react";
 import { get, useFieldArray, type FieldErrors, type Path, type Resolver, type UseFormReturn } from "react-hook-form";
 import { ENGRAVING_FONTS } from "@/lib/geometry/fonts";
 import { importSvgLogo, LogoError } from "@/lib/geometry/marks/logo";
-import { DEFAULT_OPTIONS, MATERIALS, slabOptionsSchema, type LogoMark, type MarkPosition, type SlabOptionsInput } from "@/lib/geometry/options";
+import { DEFAULT_OPTIONS, deepestEngraving, MATERIALS, slabOptionsSchema, type Depth, type LogoMark, type MarkPosition, type SlabOptionsInput } from "@/lib/geometry/options";
 import { BUILT_IN_VARIABLES, usedPlaceholders } from "@/lib/geometry/template";
 
 /**
@@ -31,12 +31,15 @@ export type FormValues = {
   material: keyof typeof MATERIALS;
   nozzle: number;
   layerHeight: number;
+  firstLayerHeight: number;
   pricePerKg: number;
   text: LineForm[];
   qr: QrForm;
   logo: LogoForm | null;
   numbers: boolean;
+  numberStyle: { size: number; font: FontId; depth: number };
   outlines: "ring" | "pocket" | "none";
+  ringStyle: { width: number; clearance: number; depth: number };
   /** Values for the {placeholders}, shown in the preview and used for the plate. */
   samples: Record<string, string>;
 };
@@ -55,12 +58,15 @@ export const DEFAULT_VALUES: FormValues = {
   material: D.material,
   nozzle: D.nozzle,
   layerHeight: D.layerHeight,
+  firstLayerHeight: D.firstLayerHeight,
   pricePerKg: D.pricePerKg,
   text: [line("ORDER {order}", 5), line("Thank you, {customer}!", 4)],
   qr: { value: "", module: 1.2, level: "M", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0, maxSize: NaN },
   logo: null,
   numbers: true,
+  numberStyle: { size: D.marks.numberStyle.size, font: D.marks.numberStyle.font, depth: 0.4 },
   outlines: "ring",
+  ringStyle: { width: D.marks.ringStyle.width, clearance: D.marks.ringStyle.clearance, depth: 0.4 },
   samples: { order: "10482", customer: "Sam" },
 };
 
@@ -83,11 +89,14 @@ export function formToOptions(f: FormValues, placements?: Placement[]): SlabOpti
       ...(f.qr.value.trim() ? { qr: { value: f.qr.value, module: f.qr.module, level: f.qr.level, relief: f.qr.relief, depth: f.qr.depth, position: position(f.qr.where, f.qr.x, f.qr.y), ...optional("maxSize", f.qr.maxSize) } } : {}),
       ...(f.logo ? { logo: { name: f.logo.name, paths: f.logo.paths, box: f.logo.box, width: f.logo.width, relief: f.logo.relief, depth: f.logo.depth, position: position(f.logo.where, f.logo.x, f.logo.y) } } : {}),
       numbers: f.numbers,
+      numberStyle: { ...f.numberStyle },
       outlines: f.outlines,
+      ringStyle: { ...f.ringStyle },
     },
     material: f.material,
     nozzle: f.nozzle,
     layerHeight: f.layerHeight,
+    firstLayerHeight: f.firstLayerHeight,
     pricePerKg: f.pricePerKg,
   };
 }
@@ -97,6 +106,9 @@ export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samp
   const o = slabOptionsSchema.parse(input);
   const preset = BEDS.find(([w, d]) => w === o.layout.bed.width && d === o.layout.bed.depth);
   const where = (p: MarkPosition) => (typeof p === "object" ? { where: "at" as const, x: p.x, y: p.y } : { where: p, x: 0, y: 0 });
+  // The form holds depths as numbers: "as deep as allowed" shows as that depth.
+  const deepest = Math.round(deepestEngraving(o) * 100) / 100;
+  const depth = (d: Depth | undefined) => (d === "max" ? deepest : (d ?? Math.min(0.4, deepest)));
   return {
     slab: { ...o.slab },
     bed: preset ? `${preset[0]}x${preset[1]}` : "custom",
@@ -107,12 +119,15 @@ export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samp
     material: o.material,
     nozzle: o.nozzle,
     layerHeight: o.layerHeight,
+    firstLayerHeight: o.firstLayerHeight,
     pricePerKg: o.pricePerKg,
-    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, ...where(t.position), maxWidth: t.maxWidth ?? NaN })),
-    qr: o.marks.qr ? { value: o.marks.qr.value, module: o.marks.qr.module, level: o.marks.qr.level, relief: o.marks.qr.relief, depth: o.marks.qr.depth, ...where(o.marks.qr.position), maxSize: o.marks.qr.maxSize ?? NaN } : DEFAULT_VALUES.qr,
-    logo: o.marks.logo ? { name: o.marks.logo.name, paths: o.marks.logo.paths, box: o.marks.logo.box, width: o.marks.logo.width, relief: o.marks.logo.relief, depth: o.marks.logo.depth, ...where(o.marks.logo.position) } : null,
+    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: depth(t.depth), ...where(t.position), maxWidth: t.maxWidth ?? NaN })),
+    qr: o.marks.qr ? { value: o.marks.qr.value, module: o.marks.qr.module, level: o.marks.qr.level, relief: o.marks.qr.relief, depth: depth(o.marks.qr.depth), ...where(o.marks.qr.position), maxSize: o.marks.qr.maxSize ?? NaN } : DEFAULT_VALUES.qr,
+    logo: o.marks.logo ? { name: o.marks.logo.name, paths: o.marks.logo.paths, box: o.marks.logo.box, width: o.marks.logo.width, relief: o.marks.logo.relief, depth: depth(o.marks.logo.depth), ...where(o.marks.logo.position) } : null,
     numbers: o.marks.numbers,
+    numberStyle: { ...o.marks.numberStyle, depth: depth(o.marks.numberStyle.depth) },
     outlines: o.marks.outlines,
+    ringStyle: { ...o.marks.ringStyle, depth: depth(o.marks.ringStyle.depth) },
     samples,
   };
 }
@@ -129,7 +144,7 @@ export function formPath(optionPath: (string | number | symbol)[]): string {
   }
   if (p[0] === "marks" && p[1] === "qr") return p[2] === "position" ? `qr.${p[3] ?? "x"}` : `qr.${p[2]}`;
   if (p[0] === "marks" && p[1] === "logo") return p[2] === "position" ? `logo.${p[3] ?? "x"}` : `logo.${p[2] ?? "width"}`;
-  if (p[0] === "marks") return p[1]!;
+  if (p[0] === "marks") return p.slice(1).join(".");
   return p.join(".");
 }
 
@@ -294,6 +309,7 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
           <Pick form={form} name="material" label="Material" aria="Material" options={Object.keys(MATERIALS).map((m) => [m, m])} />
           <Num form={form} name="nozzle" label="Nozzle" unit="mm" step={0.1} />
           <Num form={form} name="layerHeight" label="Layer height" unit="mm" step={0.02} />
+          <Num form={form} name="firstLayerHeight" label="First layer" unit="mm" step={0.02} />
           <Num form={form} name="pricePerKg" label="Filament price per kg" step={1} />
         </div>
       </fieldset>
@@ -361,6 +377,20 @@ export function OptionsFields({ form }: { form: UseFormReturn<FormValues> }) {
           </label>
           <Pick form={form} name="outlines" label="Outlines" aria="Piece outlines" options={[["ring", "outline rings"], ["pocket", "pockets"], ["none", "no outlines"]]} />
         </div>
+        {v.numbers ? (
+          <div className="grid grid-cols-3 gap-2">
+            <Num form={form} name="numberStyle.size" label="Number height" unit="mm" step={0.5} />
+            <Pick form={form} name="numberStyle.font" label="Number face" options={FACES} />
+            <Num form={form} name="numberStyle.depth" label="Number depth" unit="mm" step={0.1} />
+          </div>
+        ) : null}
+        {v.outlines !== "none" ? (
+          <div className="grid grid-cols-3 gap-2">
+            {v.outlines === "ring" ? <Num form={form} name="ringStyle.width" label="Ring width" unit="mm" step={0.1} /> : null}
+            <Num form={form} name="ringStyle.clearance" label="Clearance" unit="mm" step={0.1} />
+            <Num form={form} name="ringStyle.depth" label={v.outlines === "ring" ? "Ring depth" : "Pocket depth"} unit="mm" step={0.1} />
+          </div>
+        ) : null}
       </fieldset>
       <fieldset className="space-y-2">
         <legend className="font-bold">Values</legend>
