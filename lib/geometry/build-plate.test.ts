@@ -330,6 +330,7 @@ describe("one fixture per finding code", () => {
     ["mark_collides", () => placedText(true), () => placedText(false)],
     ["pieces_overlap", () => twoAt(5), () => twoAt(45)],
     ["pieces_too_close", () => twoAt(32), () => twoAt(45)],
+    ["pieces_fuse", () => twoAt(30.2), () => twoAt(32)],
     ["piece_outside_bed", () => offBed(true), () => offBed(false)],
     ["slab_outside_bed", () => offBed(true), () => offBed(false)],
   ] as [string, ...(() => ReturnType<typeof plate>)[]][])("%s: triggered by its fixture and not by the near miss", (code, trigger, ...misses) => {

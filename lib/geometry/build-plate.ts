@@ -195,7 +195,6 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   const { Manifold, CrossSection } = kernel.wasm;
   const findings: Finding[] = [];
   const m = o.slab.margin;
-  const spacing = o.layout.spacing;
 
   // 1. Parts measured once (or taken from the cache), footprints as kernel cross-sections.
   const measures = input.parts.map((part) => measurePart(kernel, scope, part.mesh, o.layerHeight, input.cache));
@@ -233,15 +232,15 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
   if (logo) {
     const points = logo.parts.reduce((n, p) => n + p.contours.reduce((m, c) => m + c.length, 0), 0);
     if (points > LOGO_LIMITS.points) {
-      findings.push({ severity: "error", code: "logo_too_complex", message: `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.w} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")} are engraved. Simplify its curves.` });
+      findings.push({ severity: "error", code: "logo_too_complex", field: ["marks", "logo", "paths"], message: `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.w} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")} are engraved. Simplify its curves.` });
       return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };
     }
   }
   // Room a template gives its filled values: too long is an error that says by how much.
-  for (const t of texts) {
+  for (const [i, t] of texts.entries()) {
     const width = t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX);
     if (t.mark.maxWidth !== undefined && width > t.mark.maxWidth + 1e-9) {
-      findings.push({ severity: "error", code: "text_too_long", message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.` });
+      findings.push({ severity: "error", code: "text_too_long", field: ["marks", "text", i, "value"], message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.` });
     }
   }
   if (qr && qr.mark.maxSize !== undefined && qr.shape.sizeWithQuietZone > qr.mark.maxSize + 1e-9) {
@@ -255,12 +254,17 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
     findings.push({
       severity: "error",
       code: "qr_too_large",
+      field: ["marks", "qr", "value"],
       message: `The QR code for "${qr.value.length > 60 ? `${qr.value.slice(0, 57)}…` : qr.value}" needs ${qr.shape.modules} modules, ${qr.shape.sizeWithQuietZone.toFixed(1)} mm with its quiet zone; the template allows ${qr.mark.maxSize} mm: ${(qr.shape.sizeWithQuietZone - qr.mark.maxSize).toFixed(1)} mm too large. Shorten the value by ${qr.value.length - lo} characters (or use smaller modules or a lower error correction).`,
     });
   }
 
   const ring = o.marks.ringStyle;
   const ext = o.marks.outlines === "ring" ? ring.clearance + ring.width : o.marks.outlines === "pocket" ? ring.clearance : 0;
+  // Whatever the spacing asked, the layout keeps pieces (or their rings and pockets) at least one
+  // line of the nozzle apart: closer, two pieces print as one, and the slab left between two
+  // outlines is a wall too thin to print (or none at all).
+  const spacing = Math.max(o.layout.spacing, o.nozzle);
   const numberFont = input.fonts[o.marks.numberStyle.font];
   const numberSize = o.marks.numberStyle.size;
   const highest = Math.max(1, work.length, ...(o.layout.pieceNumbers ?? []));
@@ -322,11 +326,12 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
       findings.push({
         severity: "error",
         code: "does_not_fit",
+        field: ["layout", "bed"],
         message: `The pieces and marks do not fit a ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed with ${m} mm margins${needW > maxW ? ` (the widest row needs ${needW.toFixed(1)} mm, ${(needW - maxW).toFixed(1)} mm more than there is)` : ""}. Use a bigger bed, fewer copies, or split the kit over two plates.`,
       });
-      for (const t of texts) {
+      for (const [i, t] of texts.entries()) {
         const width = t.shape.bounds.maxX - t.shape.bounds.minX;
-        if (width > maxW) findings.push({ severity: "error", code: "text_too_long", message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.` });
+        if (width > maxW) findings.push({ severity: "error", code: "text_too_long", field: ["marks", "text", i, "value"], message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.` });
       }
       lap("layout");
       return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings } };

@@ -60,6 +60,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     out.push({
       severity: "error",
       code: "slab_outside_bed",
+      field: ["layout", "bed"],
       message: `The slab is ${r1(c.slabSize.width)} × ${r1(c.slabSize.depth)} mm; the bed is ${o.layout.bed.width} × ${o.layout.bed.depth} mm.`,
     });
   }
@@ -69,28 +70,41 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
   const bed = { minX: 0, minY: 0, maxX: o.layout.bed.width, maxY: o.layout.bed.depth };
   for (const p of c.pieces) {
     if (p.bounds.minX < bed.minX - 1e-6 || p.bounds.minY < bed.minY - 1e-6 || p.bounds.maxX > bed.maxX + 1e-6 || p.bounds.maxY > bed.maxY + 1e-6) {
-      out.push({ severity: "error", code: "piece_outside_bed", piece: p.number, message: `Piece ${p.number} (${p.name}) lies outside the ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed.` });
+      out.push({ severity: "error", code: "piece_outside_bed", piece: p.number, field: ["layout", "placements"], message: `Piece ${p.number} (${p.name}) lies outside the ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed.` });
     }
   }
   const spacing = o.layout.spacing;
-  const grown = new Map<number, CrossSection>();
-  const grow = (p: CheckInput["pieces"][number]) => {
-    let g = grown.get(p.number);
-    if (!g) {
-      g = scope.track(p.shadow.offset(Math.max(0, spacing / 2 - 1e-3), "Round", 2, 24));
-      grown.set(p.number, g);
-    }
-    return g;
+  const grownBy = (by: number) => {
+    const cache = new Map<number, CrossSection>();
+    return (p: CheckInput["pieces"][number]) => {
+      let g = cache.get(p.number);
+      if (!g) {
+        g = scope.track(p.shadow.offset(Math.max(0, by / 2 - 1e-3), "Round", 2, 24));
+        cache.set(p.number, g);
+      }
+      return g;
+    };
   };
+  const grow = grownBy(spacing);
+  const line = grownBy(o.nozzle);
   for (let i = 0; i < c.pieces.length; i++) {
     for (let j = i + 1; j < c.pieces.length; j++) {
       const a = c.pieces[i]!, b = c.pieces[j]!;
-      if (!overlaps(a.bounds, b.bounds, spacing)) continue;
+      if (!overlaps(a.bounds, b.bounds, Math.max(spacing, o.nozzle))) continue;
       const both = area(scope.track(a.shadow.intersect(b.shadow)));
       if (both > AREA_EPS) {
-        out.push({ severity: "error", code: "pieces_overlap", pieces: [a.number, b.number], piece: a.number, message: `Pieces ${a.number} and ${b.number} overlap by ${r1(both)} mm².` });
+        out.push({ severity: "error", code: "pieces_overlap", pieces: [a.number, b.number], piece: a.number, field: ["layout", "placements"], message: `Pieces ${a.number} and ${b.number} overlap by ${r1(both)} mm².` });
+      } else if (area(scope.track(line(a).intersect(line(b)))) > AREA_EPS) {
+        out.push({
+          severity: "error",
+          code: "pieces_fuse",
+          pieces: [a.number, b.number],
+          piece: a.number,
+          field: ["layout", "placements"],
+          message: `Pieces ${a.number} and ${b.number} are closer than one ${r2(o.nozzle)} mm line: they would print as one. Move them at least ${r2(o.nozzle)} mm apart.`,
+        });
       } else if (spacing > 0 && area(scope.track(grow(a).intersect(grow(b)))) > AREA_EPS) {
-        out.push({ severity: "warning", code: "pieces_too_close", pieces: [a.number, b.number], piece: a.number, message: `Pieces ${a.number} and ${b.number} are closer than the ${spacing} mm spacing.` });
+        out.push({ severity: "warning", code: "pieces_too_close", pieces: [a.number, b.number], piece: a.number, field: ["layout", "placements"], message: `Pieces ${a.number} and ${b.number} are closer than the ${spacing} mm spacing. Move them apart.` });
       }
     }
   }
@@ -106,6 +120,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
         out.push({
           severity: "error",
           code: "off_slab",
+          field: ["slab", "margin"],
           ...(hanging.length ? { pieces: hanging, piece: hanging[0] } : {}),
           message: `${r1(a)} mm² of ${hanging.length ? `piece${hanging.length > 1 ? "s" : ""} ${hanging.join(", ")} and their` : "the"} outlines and marks lie off the slab. Make the margin or the slab larger.`,
         });
@@ -133,7 +148,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
     const keepOut = scope.track(CrossSection.union(c.pieces.map((p) => scope.track(p.shadow.offset(p.ringExt, "Round", 2, 24)))));
     for (const mk of c.marks) {
       if (area(scope.track(mk.cs.intersect(keepOut))) > AREA_EPS) {
-        out.push({ severity: "error", code: "mark_collides", ...(mk.field ? { field: mk.field } : {}), message: `The ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} runs under a piece or its outline; move it.` });
+        out.push({ severity: "error", code: "mark_collides", field: mk.field ? [...mk.field.slice(0, -1), "position"] : ["layout", "placements"], message: `The ${mk.kind === "number" ? mk.label : mk.kind === "logo" ? `logo ${mk.label}` : `text ${mk.label}`} runs under a piece or its outline; move it.` });
       }
     }
     if (c.qr) {
@@ -141,7 +156,7 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
       const zone = scope.track(new CrossSection([[[c.qr.x, c.qr.y], [c.qr.x + s, c.qr.y], [c.qr.x + s, c.qr.y + s], [c.qr.x, c.qr.y + s]]]));
       const others = c.marks.length ? scope.track(CrossSection.union(c.marks.map((m) => m.cs))) : null;
       if (area(scope.track(zone.intersect(keepOut))) > AREA_EPS || (others && area(scope.track(zone.intersect(others))) > AREA_EPS)) {
-        out.push({ severity: "error", code: "qr_quiet_zone", message: "Something lies in the QR code's quiet zone (4 modules all round, ISO/IEC 18004); scanners may not read it. Move the code or the pieces." });
+        out.push({ severity: "error", code: "qr_quiet_zone", field: ["marks", "qr", "position"], message: "Something lies in the QR code's quiet zone (4 modules all round, ISO/IEC 18004); scanners may not read it. Move the code or the pieces." });
       }
     }
   }

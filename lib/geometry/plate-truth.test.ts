@@ -175,3 +175,26 @@ describe("numbers in reading order, stable (fault 8)", () => {
     expect(r.pieces.map((p) => [p.slot, p.number])).toEqual([[2, 5], [1, 12]]);
   });
 });
+
+describe("the new rules' wording: what is wrong, where, by how much, what to change", () => {
+  const fix = /\b(Make|make|Use|use|Choose|choose|Set|set|Give|give|thicken|Thicken|Move|move|Round|emboss)\b/;
+  it.each([
+    ["mark_too_deep", () => build({ slab: { thickness: 0.6 }, marks: { text: [{ value: "ORDER 7", depth: 0.8 }] } }, tiles()), /text line 1/, /0\.60 mm less/],
+    ["slab_too_thin_to_engrave", () => build({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3 }, tiles()), /outline ring|piece numbers/, /0\.60 mm under it/],
+    ["emboss_needs_height", () => build({ marks: { text: [{ value: "UP", relief: "emboss", depth: "max" }] } }, tiles()), /text line 1/, /height in mm/],
+    ["ring_too_narrow", () => build({ nozzle: 0.8, marks: { ringStyle: { width: 0.6 } } }, tiles(1)), /Outline rings/, /0\.20 mm more/],
+    ["corners_grow_slab", () => build({ slab: { cornerRadius: 20 } }, counters(30)), /corners/, /\d+\.\d mm wider/],
+    ["corner_radius_limited", () => build({ slab: { cornerRadius: 40, margin: 2 }, layout: { bed: { width: 100, depth: 100 } } }, counters(30)), /100 × 100 mm bed/, /rounded to \d+\.\d mm/],
+    ["gap_sliced_away", () => build({ slab: { gap: 0.1 }, firstLayerHeight: 0.25 }, tiles()), /0\.10 mm gap/, /to nothing/],
+    ["gap_below_layer", () => build({ slab: { gap: 0.15 } }, tiles()), /0\.15 mm gap/, /thinner than one 0\.20 mm layer/],
+    ["gap_sliced", () => build({ slab: { gap: 0.3 } }, tiles()), /0\.30 mm gap/, /0\.20 mm \(1 layer\)/],
+    ["piece_numbers_mismatch", () => build({ layout: { pieceNumbers: [1] } }, tiles(2)), /layout\.pieceNumbers/, /1 numbers for 2 pieces/],
+  ] as const)("%s", (code, make, where, howMuch) => {
+    const f = make().findings.find((x) => x.code === code)!;
+    expect(f, code).toBeDefined();
+    expect(f.field).toBeDefined();
+    expect(f.message).toMatch(where);
+    expect(f.message).toMatch(howMuch);
+    expect(f.message).toMatch(fix);
+  });
+});

@@ -69,7 +69,7 @@ export function roundedSlab(o: SlabOptions, b: Box, points: ContentPoint[]): { b
         severity: "info",
         code: "corners_grow_slab",
         field: ["slab", "cornerRadius"],
-        message: `The ${r} mm corners would cut into the pieces and marks, so the slab is ${(2 * e).toFixed(1)} mm wider and deeper than they need (${(box.maxX - box.minX).toFixed(1)} × ${(box.maxY - box.minY).toFixed(1)} mm). A radius of ${maxRadius(tight, m, points).toFixed(1)} mm or less keeps it at its smallest.`,
+        message: `The ${r} mm corners would cut into the pieces and marks, so the slab is ${(2 * e).toFixed(1)} mm wider and deeper than they need (${(box.maxX - box.minX).toFixed(1)} × ${(box.maxY - box.minY).toFixed(1)} mm). Choose a radius of ${maxRadius(tight, m, points).toFixed(1)} mm or less (or a disc) to keep it at its smallest.`,
       },
     };
   }
@@ -152,8 +152,11 @@ export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, conten
     return { outline: scope.track(new CrossSection([disc(c.x, c.y, radius)])) };
   }
   if (o.slab.shape === "contour") {
-    const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + m, "Round", 2, 48)));
-    const rects = content.boxes.map((x) => [[x.minX - m, x.minY - m], [x.maxX + m, x.minY - m], [x.maxX + m, x.maxY + m], [x.minX - m, x.maxY + m]] as Contour);
+    // 0.02 mm more than the margin: the round offsets' chords and the final simplification (0.01 mm)
+    // may then shave the outline, never the content.
+    const slack = m + 0.02;
+    const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + slack, "Round", 2, 48)));
+    const rects = content.boxes.map((x) => [[x.minX - slack, x.minY - slack], [x.maxX + slack, x.minY - slack], [x.maxX + slack, x.maxY + slack], [x.minX - slack, x.maxY + slack]] as Contour);
     let cs = scope.track(CrossSection.union([...grown, ...rects.map((r) => scope.track(new CrossSection([r])))]));
     // Close the gaps between neighbours (grow, then shrink by the same amount).
     const close = Math.max(o.layout.spacing, 2) + m;

@@ -38,7 +38,7 @@ export type BuildOutcome =
 // lowers its own priority and the web process (and the worker's queue loop) keep the CPU they need
 // when they share a machine with it (common practice for batch workers). SLAB_THREAD_NICE=0 turns it off.
 try {
-  os.setPriority(Number(process.env.SLAB_THREAD_NICE ?? 10));
+  os.setPriority(Number(process.env.SLAB_THREAD_NICE ?? 19));
 } catch {
   // not permitted here: run at normal priority
 }

@@ -20,6 +20,12 @@ test("a designer tunes the demo kit's slab live, places a piece by hand, and mak
   await page.getByTestId("opt-gap").fill("0.25");
   await expect(page.getByTestId("findings")).not.toContainText("gap_out_of_range");
 
+  // A mark engraved deeper than the slab allows is refused under its own field, saying by how much.
+  await page.getByLabel(/^Number depth/).fill("0.8");
+  await expect(page.getByTestId("field-note-mark_too_deep")).toContainText("0.20 mm less");
+  await page.getByLabel(/^Number depth/).fill("0.4");
+  await expect(page.getByTestId("field-note-mark_too_deep")).toHaveCount(0);
+
   // Drag piece 1 onto piece 2: an overlap, pointed at in the findings; one click back to automatic.
   const a = (await page.getByTestId("map-piece-1").boundingBox())!;
   const b = (await page.getByTestId("map-piece-2").boundingBox())!;
@@ -107,7 +113,7 @@ test("disc outline, a text line and a QR code change the preview; the downloaded
   await expect.poll(async () => Math.abs((await mid()) - atMid)).toBeLessThan(1);
   // Per-line options: the second line embossed at 0.6 mm still builds.
   await page.getByLabel("Relief").nth(1).selectOption("emboss");
-  await page.getByLabel("Height").first().fill("0.6");
+  await page.getByLabel(/^Height/).first().fill("0.6");
   await changed();
   await expect(page.getByTestId("findings")).not.toContainText("error");
 

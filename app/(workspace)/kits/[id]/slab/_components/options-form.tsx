@@ -1,6 +1,7 @@
 "use client";
 
-import { useId, useState } from "react";
+import { createContext, useContext, useId, useState } from "react";
+import type { Finding } from "@/lib/geometry/checks";
 import { get, useFieldArray, type FieldErrors, type Path, type Resolver, type UseFormReturn } from "react-hook-form";
 import { ENGRAVING_FONTS } from "@/lib/geometry/fonts";
 import { importSvgLogo, LogoError } from "@/lib/geometry/marks/logo";
@@ -135,7 +136,7 @@ export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samp
 /** Where an option's message belongs in the form. */
 export function formPath(optionPath: (string | number | symbol)[]): string {
   const p = optionPath.map(String);
-  if (p[0] === "layout" && p[1] === "bed") return p[2] === "depth" ? "bedDepth" : "bedWidth";
+  if (p[0] === "layout" && p[1] === "bed") return p[2] === undefined ? "bed" : p[2] === "depth" ? "bedDepth" : "bedWidth";
   if (p[0] === "layout") return p[1]!;
   if (p[0] === "marks" && p[1] === "text") {
     const f = p[3] === "position" ? (p[4] ?? "x") : p[3];
@@ -146,6 +147,38 @@ export function formPath(optionPath: (string | number | symbol)[]): string {
   if (p[0] === "marks" && p[1] === "logo") return p[2] === "position" ? `logo.${p[3] ?? "x"}` : `logo.${p[2] ?? "width"}`;
   if (p[0] === "marks") return p.slice(1).join(".");
   return p.join(".");
+}
+
+/** The engine's findings that name an option, by the form field they belong to (shown under it). */
+export type FieldNotes = Map<string, Pick<Finding, "severity" | "message" | "code">[]>;
+export const FieldNotesContext = createContext<FieldNotes>(new Map());
+
+export function fieldNotes(findings: Finding[], values: Pick<FormValues, "text">): FieldNotes {
+  const kept = values.text.map((t, i) => (t.value.trim() ? i : -1)).filter((i) => i >= 0);
+  const out: FieldNotes = new Map();
+  for (const f of findings) {
+    if (!f.field || f.severity === "info") continue;
+    let path = formPath(f.field);
+    const m = /^text\.(\d+)\.(.*)$/.exec(path);
+    if (m) path = `text.${kept[Number(m[1])] ?? m[1]}.${m[2]}`;
+    out.set(path, [...(out.get(path) ?? []), { severity: f.severity, message: f.message, code: f.code }]);
+  }
+  return out;
+}
+
+function Notes({ name, id }: { name: string; id: string }) {
+  const notes = useContext(FieldNotesContext).get(name);
+  if (!notes?.length) return null;
+  return (
+    <>
+      {notes.map((n) => (
+        <span key={n.code} id={`${id}-n-${n.code}`} data-testid={`field-note-${n.code}`} className={`mt-0.5 block whitespace-normal ${n.severity === "error" ? "text-finding-error" : "text-finding-warning"}`}>
+          {n.severity === "error" ? "✕ " : "⚠ "}
+          {n.message}
+        </span>
+      ))}
+    </>
+  );
 }
 
 const friendly = (message: string) => (/received nan|expected number/i.test(message) ? "Enter a number." : message);
@@ -187,7 +220,9 @@ function Num({ form, name, label, unit, step, testId }: { form: UseFormReturn<Fo
         <span id={`${id}-e`} className="mt-0.5 block text-finding-error">
           {error}
         </span>
-      ) : null}
+      ) : (
+        <Notes name={name} id={id} />
+      )}
     </div>
   );
 }
@@ -204,6 +239,7 @@ function Pick({ form, name, label, options, aria }: { form: UseFormReturn<FormVa
           </option>
         ))}
       </select>
+      <Notes name={name} id={id} />
     </div>
   );
 }
@@ -215,7 +251,7 @@ function Text({ form, name, label, placeholder, aria }: { form: UseFormReturn<Fo
     <div className="text-xs text-muted">
       <label htmlFor={id}>{label}</label>
       <input id={id} className={input} placeholder={placeholder} aria-label={aria} aria-invalid={Boolean(error)} {...form.register(name)} />
-      {error ? <span className="mt-0.5 block text-finding-error">{error}</span> : null}
+      {error ? <span className="mt-0.5 block text-finding-error">{error}</span> : <Notes name={name} id={id} />}
     </div>
   );
 }

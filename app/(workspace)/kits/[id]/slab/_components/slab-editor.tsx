@@ -11,7 +11,7 @@ import { useToast } from "@/app/_components/toasts";
 import { MATERIALS, slabOptionsSchema } from "@/lib/geometry/options";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import type { TemplateVariableDef } from "@/lib/geometry/template";
-import { DEFAULT_VALUES, formToOptions, OptionsFields, optionsToForm, slabResolver, valuePlaceholders, type FormValues } from "./options-form";
+import { DEFAULT_VALUES, FieldNotesContext, fieldNotes, formToOptions, OptionsFields, optionsToForm, slabResolver, valuePlaceholders, type FormValues } from "./options-form";
 import { SaveTemplate } from "./save-template";
 import { makePlateAction } from "../../../actions";
 import { PlateMap } from "./plate-map";
@@ -122,6 +122,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
     worker.current.postMessage({ type: "build", seq: n, options, variables });
   }, [options, check.success, variables]);
 
+  const notes = useMemo(() => fieldNotes(result?.findings ?? [], form.getValues()), [result, form]);
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
   const moveTo = useCallback(
     (piece: PlacedPiece, dx: number, dy: number, dr = 0) => {
@@ -190,7 +191,9 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
           {canSaveTemplates ? <SaveTemplate values={values} applied={applied} onSaved={(t) => setApplied(t)} /> : null}
         </section>
         <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
-          <OptionsFields form={form} />
+          <FieldNotesContext.Provider value={notes}>
+            <OptionsFields form={form} />
+          </FieldNotesContext.Provider>
         </form>
       </div>
 
