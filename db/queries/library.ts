@@ -48,6 +48,8 @@ export async function listPlates(caller: Caller, filter: { kitId?: string; limit
       title: plates.title,
       estimates: plates.estimates,
       findings: plates.findings,
+      proofSummary: sql<string | null>`${plates.proof}->>'summary'`,
+      proofOk: sql<boolean | null>`(${plates.proof}->>'ok')::boolean`,
       hasStl: sql<boolean>`${plates.stlBlobKey} is not null`,
       has3mf: sql<boolean>`${plates.threeMfBlobKey} is not null`,
       makerName: users.name,

@@ -81,6 +81,8 @@ export const plates = pgTable(
     progress: real("progress").notNull().default(0),
     /** Why the build failed, when it did: `{ code, message, details? }`. */
     error: jsonb("error").$type<{ code: string; message: string; details?: unknown }>(),
+    /** The proof of the exported files (lib/proof): every rule, pass or fail, its figures and a one-line summary. */
+    proof: jsonb("proof").$type<PlateProof>(),
     /** What the build needs: part blobs with quantities (and how to read them), kit and template references. */
     input: jsonb("input").$type<PlateInput>(),
     callbackUrl: text("callback_url"),
@@ -99,6 +101,16 @@ export const plates = pgTable(
     uniqueIndex("plates_job_key").on(t.jobId),
   ],
 );
+
+export type PlateProof = {
+  ok: boolean;
+  failed?: string;
+  rules: { rule: string; pass: boolean; figure?: number | string; message: string }[];
+  figures: { bodies: number; openEdges: number; minFloor: number | null; worstSupport: number | null; qrText: string | null };
+  ms: number;
+  summary: string;
+  timings?: Record<string, number>;
+};
 
 export type PlateInput = {
   parts: { name: string; blobKey: string; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number; partId?: string }[];

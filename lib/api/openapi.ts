@@ -28,6 +28,15 @@ export const findingSchema = z
     field: z.array(z.union([z.string(), z.number().int()])).optional().describe("Where an option is the cause: its path in the options, e.g. [\"marks\", \"text\", 0, \"depth\"]."),
   })
   ;
+export const proofSchema = z.object({
+  ok: z.boolean(),
+  failed: z.enum(["stl", "closed", "oriented", "volume", "bodies", "on_slab", "apart", "gap", "floor", "qr", "three_mf"]).optional().describe("The first rule that failed."),
+  rules: z.array(z.object({ rule: z.string(), pass: z.boolean(), figure: z.union([z.number(), z.string()]).optional(), message: z.string() })),
+  figures: z.object({ bodies: z.number().int(), openEdges: z.number().int(), minFloor: z.number().nullable().describe("mm"), worstSupport: z.number().nullable().describe("% of the worst piece's lowest layer over the slab"), qrText: z.string().nullable() }),
+  ms: z.number(),
+  summary: z.string().describe('One line, e.g. "Checked: closed, 14 bodies, every piece on the slab, QR reads back, 3MF matches".'),
+  timings: z.record(z.string(), z.number()).optional(),
+});
 export const plateSchema = z
   .object({
     plate: z.object({ id: z.string(), status: z.enum(["building", "ready", "failed"]), job: jobSchema, kitId: z.string().nullable(), pieceCount: z.number().int(), createdAt: z.string(), finishedAt: z.string().nullable(), title: z.string().nullable() }),
@@ -36,6 +45,7 @@ export const plateSchema = z
     findings: z.array(findingSchema),
     estimates: z.record(z.string(), z.unknown()).nullable(),
     stats: z.record(z.string(), z.unknown()),
+    proof: proofSchema.nullable().describe("The independent check of the exported STL and 3MF run after every build; null for a plate still building or failed before its files were made."),
   })
   ;
 export const kitListSchema = z.object({ kits: z.array(z.object({ id: z.string(), name: z.string(), description: z.string().nullable(), updatedAt: z.string() })) });

@@ -299,6 +299,7 @@ export function plateView(p: Plate) {
     findings: p.findings,
     estimates: p.estimates,
     stats: rest,
+    proof: p.proof ?? null,
   };
 }
 

@@ -15,7 +15,7 @@ export async function sheetPlate(p: Plate): Promise<SheetPlate> {
   const [t] = p.templateVersionId
     ? await db().select({ name: templates.name, version: templateVersions.version }).from(templateVersions).innerJoin(templates, eq(templates.id, templateVersions.templateId)).where(eq(templateVersions.id, p.templateVersionId))
     : [];
-  return { id: p.id, title: p.title, createdAt: p.createdAt, options: p.options, variables: p.variables, findings: p.findings as SheetPlate["findings"], estimates: p.estimates as unknown as Estimates | null, layout: stats.layout, pieces: stats.pieces, templateName: t?.name ?? null, templateVersion: t?.version ?? null };
+  return { id: p.id, title: p.title, createdAt: p.createdAt, options: p.options, variables: p.variables, findings: p.findings as SheetPlate["findings"], estimates: p.estimates as unknown as Estimates | null, layout: stats.layout, pieces: stats.pieces, templateName: t?.name ?? null, templateVersion: t?.version ?? null, proofSummary: p.proof?.summary ?? null };
 }
 
 /** The plate's page in the app, where the sheet's QR code leads (the inspection page). */

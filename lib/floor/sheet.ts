@@ -29,6 +29,8 @@ export type SheetPlate = {
   pieces: PlacedPiece[];
   templateName?: string | null;
   templateVersion?: number | null;
+  /** The one-line summary of the plate's proof (lib/proof), when it has one. */
+  proofSummary?: string | null;
 };
 
 const PT = 72 / 25.4; // points per mm
@@ -149,6 +151,14 @@ export async function plateMapPdf(plate: SheetPlate, url: string, paper: Paper =
   for (const l of lines) {
     by -= 4.6;
     for (const part of wrap(l, regular, 3, P.w - 2 * m)) {
+      text(part, m, by, 3);
+      by -= 3.8;
+    }
+    by += 3.8;
+  }
+  if (plate.proofSummary) {
+    by -= 4.6;
+    for (const part of wrap(plate.proofSummary, regular, 3, P.w - 2 * m)) {
       text(part, m, by, 3);
       by -= 3.8;
     }

@@ -6,7 +6,7 @@
 import { readFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { deflateRawSync } from "node:zlib";
+import { deflateRawSync, inflateRawSync } from "node:zlib";
 import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
 import { hexTile } from "@/lib/geometry/demo-shapes";
 import { MeshImportError } from "@/lib/geometry/errors";
@@ -15,8 +15,9 @@ import { importMesh } from "@/lib/geometry/import";
 import type { Unit } from "@/lib/geometry/io/raw";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
 import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
-import type { SlabOptionsInput } from "@/lib/geometry/options";
+import { parseOptions, type SlabOptionsInput } from "@/lib/geometry/options";
 import { orientMesh } from "@/lib/geometry/orient";
+import { fillValue, provePlate, type Proof } from "@/lib/proof";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
 import { blobStore } from "@/lib/storage";
 
@@ -31,7 +32,7 @@ export type BuildTask = {
 };
 
 export type BuildOutcome =
-  | { ok: true; result: Omit<PlateResult, "bodies"> }
+  | { ok: true; result: Omit<PlateResult, "bodies">; proof?: Proof }
   | { ok: false; code: string; message: string; details?: unknown };
 
 // Builds and imports are batch work: on Linux a thread's nice value is its own, so each pool thread
@@ -68,6 +69,23 @@ let sample: IndexedMesh | undefined;
 function samplePieces() {
   sample ??= orientMesh(hexTile());
   return [{ id: "sample", name: "Sample piece", mesh: sample, quantity: 4 }];
+}
+
+/**
+ * Tests only: a plate whose values hold `proof_tamper: "turn-triangle"` has the STL's first triangle
+ * turned over between the build and its proof, to show that a plate whose files are wrong is never
+ * stored as ready. Honoured only when NODE_ENV is exactly "test", which only `npm test` sets
+ * (scripts/test.mjs); `npm start` and any production worker never run with it, so there the value is
+ * just an unused variable.
+ */
+function tamperForTest(result: { stl?: Uint8Array }, variables: Record<string, string>) {
+  if (process.env.NODE_ENV !== "test" || variables.proof_tamper !== "turn-triangle" || !result.stl) return;
+  const stl = result.stl.slice();
+  // Swap the second and third corners of facet 0 (12 bytes each, after the 12-byte normal).
+  const b = stl.slice(84 + 24, 84 + 36);
+  stl.copyWithin(84 + 24, 84 + 36, 84 + 48);
+  stl.set(b, 84 + 36);
+  result.stl = stl;
 }
 
 function retire() {
@@ -124,7 +142,23 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity });
     }
     const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, markOutlines: true, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
-    return { ok: true, result };
+    if (!result.stl || !result.threeMf) return { ok: true, result };
+    // The proof reads the files exactly as they will be stored, here in the thread (the worker's main
+    // thread stays free for the queue).
+    tamperForTest(result, task.variables);
+    const options = parseOptions(task.options);
+    const proof = provePlate({
+      stl: result.stl,
+      threeMf: result.threeMf,
+      inflateRaw: (d) => inflateRawSync(d),
+      options,
+      pieces: result.pieces.length,
+      // The value asked for: the option with the plate's values filled ({date} as the build fills it).
+      qrValue: options.marks.qr ? fillValue(options.marks.qr.value, { date: new Date().toISOString().slice(0, 10), ...task.variables }) : undefined,
+      marks: result.layout?.marks,
+      labels: result.pieces.map((p) => ({ number: p.number, bounds: p.bounds })),
+    });
+    return { ok: true, result, proof };
   } catch (err) {
     if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.message, details: err.details };
     if (err instanceof WebAssembly.RuntimeError || (err instanceof RangeError && /memory/i.test(err.message))) {

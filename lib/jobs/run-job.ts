@@ -36,6 +36,23 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     await finish(plate, { jobState: "failed", status: "failed", findings: r.findings, error: { code: "findings", message: "The plate has findings of severity error.", details: errorFindings(r.findings) } });
     return;
   }
+  // Every stored plate carries its proof; a plate whose files fail it is never ready.
+  const proof = outcome.proof;
+  if (!proof) {
+    await finish(plate, { jobState: "failed", status: "failed", findings: r.findings, error: { code: "proof_failed", message: "The plate's files were not proven (no proof came back from the build)." } });
+    return;
+  }
+  if (!proof.ok) {
+    const failed = proof.rules.find((x) => !x.pass);
+    await finish(plate, {
+      jobState: "failed",
+      status: "failed",
+      findings: r.findings,
+      proof,
+      error: { code: "proof_failed", message: `The plate's files failed their proof (${failed?.rule ?? proof.failed}): ${failed?.message ?? proof.summary}`, details: { rule: proof.failed, figure: failed?.figure ?? null, summary: proof.summary } },
+    });
+    return;
+  }
   await db().update(plates).set({ progress: 0.9 }).where(eq(plates.id, plateId));
   const [stl, tmf] = await Promise.all([blobStore().put(r.stl), blobStore().put(r.threeMf)]);
   await finish(plate, {
@@ -48,6 +65,7 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     estimates: r.estimates as unknown as Record<string, unknown>,
     stats: { ...r.stats, layout: r.layout, pieces: r.pieces } as unknown as Record<string, unknown>,
     pieceCount: r.pieces.length,
+    proof,
   });
 }
 

@@ -29,6 +29,11 @@ export function PlatesTable({ rows, label, showKit = true, empty, canMake = fals
             <td className={`px-3 py-2 ${p.jobState === "failed" ? "text-finding-error" : ""}`}>
               {stateLabel[p.jobState]}
               {warnings ? <span className="ml-1 text-finding-warning">· ⚠ {warnings}</span> : null}
+              {p.proofSummary ? (
+                <span data-testid="plate-proof" className={`block text-xs ${p.proofOk ? "text-muted" : "text-finding-error"}`}>
+                  {p.proofSummary}
+                </span>
+              ) : null}
             </td>
             <td className="space-x-2 px-3 py-2">
               {p.hasStl ? (

@@ -53,6 +53,11 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
             </>
           ) : null}
         </p>
+        {plate.proof ? (
+          <p className={`text-sm ${plate.proof.ok ? "text-muted" : "text-finding-error"}`} data-testid="plate-proof">
+            {plate.proof.summary}
+          </p>
+        ) : null}
         {state && mayInspect ? <MoveButtons id={plate.id} from={state} moves={nextMoves(state)} /> : null}
       </header>
       {layout ? (

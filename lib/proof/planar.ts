@@ -1,0 +1,286 @@
+import type { MultiPolygon, Ring } from "polygon-clipping";
+
+/** 2D helpers of the proof: convex overlap, hulls, a triangle grid, boundary loops, areas. */
+
+export type Box2 = { minX: number; minY: number; maxX: number; maxY: number };
+
+export function boxOf(xy: ArrayLike<number>): Box2 {
+  let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+  for (let i = 0; i < xy.length; i += 2) {
+    const x = xy[i]!, y = xy[i + 1]!;
+    if (x < minX) minX = x;
+    if (x > maxX) maxX = x;
+    if (y < minY) minY = y;
+    if (y > maxY) maxY = y;
+  }
+  return { minX, minY, maxX, maxY };
+}
+
+export const boxesOverlap = (a: Box2, b: Box2, eps = 0) => a.minX < b.maxX - eps && b.minX < a.maxX - eps && a.minY < b.maxY - eps && b.minY < a.maxY - eps;
+
+/**
+ * Do two convex polygons (flat x, y lists, either winding) overlap by more than `eps` (mm)?
+ * Separating-axis test: they are apart when their shadows on some edge normal overlap by `eps` or less,
+ * so polygons that only touch along an edge or at a corner do not count.
+ */
+export function convexOverlap(a: ArrayLike<number>, b: ArrayLike<number>, eps: number): boolean {
+  return !separatedOnEdgesOf(a, a, b, eps) && !separatedOnEdgesOf(b, a, b, eps);
+}
+
+function separatedOnEdgesOf(p: ArrayLike<number>, a: ArrayLike<number>, b: ArrayLike<number>, eps: number): boolean {
+  const n = p.length;
+  for (let i = 0; i < n; i += 2) {
+    const j = (i + 2) % n;
+    let nx = -(p[j + 1]! - p[i + 1]!), ny = p[j]! - p[i]!;
+    const len = Math.hypot(nx, ny);
+    if (len < 1e-12) continue;
+    nx /= len;
+    ny /= len;
+    let aMin = Infinity, aMax = -Infinity, bMin = Infinity, bMax = -Infinity;
+    for (let k = 0; k < a.length; k += 2) {
+      const d = a[k]! * nx + a[k + 1]! * ny;
+      if (d < aMin) aMin = d;
+      if (d > aMax) aMax = d;
+    }
+    for (let k = 0; k < b.length; k += 2) {
+      const d = b[k]! * nx + b[k + 1]! * ny;
+      if (d < bMin) bMin = d;
+      if (d > bMax) bMax = d;
+    }
+    if (aMax <= bMin + eps || bMax <= aMin + eps) return true;
+  }
+  return false;
+}
+
+/**
+ * Convex hull of points (flat x, y), counter-clockwise, by the monotone chain. Points inside the
+ * octagon of the extreme points are dropped first (Akl–Toussaint), which leaves few to sort.
+ */
+export function convexHull(xy: ArrayLike<number>): Float64Array {
+  const n = xy.length / 2;
+  if (n === 0) return new Float64Array(0);
+  // The eight extremes: min/max of x, y, x + y, x − y.
+  const ext = new Int32Array(8);
+  const best = new Float64Array(8).fill(-Infinity);
+  for (let i = 0; i < n; i++) {
+    const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+    for (let k = 0; k < 8; k++) {
+      const v = k === 0 ? -x : k === 1 ? x : k === 2 ? -y : k === 3 ? y : k === 4 ? x + y : k === 5 ? -x - y : k === 6 ? x - y : y - x;
+      if (v > best[k]!) (best[k] = v), (ext[k] = i);
+    }
+  }
+  // Octagon in counter-clockwise order: min x, min x+y... as angles around: left, bottom-left, bottom, bottom-right, right, top-right, top, top-left.
+  const ring = [ext[0]!, ext[5]!, ext[2]!, ext[6]!, ext[1]!, ext[4]!, ext[3]!, ext[7]!];
+  const oct: number[] = [];
+  for (const i of ring) {
+    const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+    const l = oct.length;
+    if (l >= 2 && oct[l - 2] === x && oct[l - 1] === y) continue;
+    oct.push(x, y);
+  }
+  if (oct.length >= 4 && oct[0] === oct[oct.length - 2] && oct[1] === oct[oct.length - 1]) oct.length -= 2;
+  const keep: number[] = [];
+  for (let i = 0; i < n; i++) {
+    const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+    let inside = oct.length >= 6;
+    for (let k = 0; inside && k < oct.length; k += 2) {
+      const ax = oct[k]!, ay = oct[k + 1]!, bx = oct[(k + 2) % oct.length]!, by = oct[(k + 3) % oct.length]!;
+      if ((bx - ax) * (y - ay) - (by - ay) * (x - ax) <= 0) inside = false;
+    }
+    if (!inside) keep.push(i);
+  }
+  keep.sort((i, j) => xy[2 * i]! - xy[2 * j]! || xy[2 * i + 1]! - xy[2 * j + 1]!);
+  const hx: number[] = [], hy: number[] = [];
+  const turn = (i: number) => {
+    const l = hx.length;
+    return (hx[l - 1]! - hx[l - 2]!) * (xy[2 * i + 1]! - hy[l - 2]!) - (hy[l - 1]! - hy[l - 2]!) * (xy[2 * i]! - hx[l - 2]!);
+  };
+  const chain = (order: number[], floor: number) => {
+    for (const i of order) {
+      while (hx.length >= floor + 2 && turn(i) <= 0) (hx.pop(), hy.pop());
+      hx.push(xy[2 * i]!);
+      hy.push(xy[2 * i + 1]!);
+    }
+  };
+  chain(keep, 0);
+  const lower = hx.length;
+  chain(keep.slice(0, -1).reverse(), lower - 1);
+  hx.pop();
+  hy.pop();
+  const out = new Float64Array(2 * hx.length);
+  for (let k = 0; k < hx.length; k++) (out[2 * k] = hx[k]!), (out[2 * k + 1] = hy[k]!);
+  return out;
+}
+
+/** The edges of a convex ring as outward half-planes: nx·x + ny·y − c is the distance outside. */
+export function halfPlanes(r: Ring): Float64Array {
+  const ccw = ringArea(r) > 0 ? 1 : -1;
+  const out: number[] = [];
+  for (let i = 0; i < r.length; i++) {
+    const a = r[i]!, b = r[(i + 1) % r.length]!;
+    const ex = b[0] - a[0], ey = b[1] - a[1];
+    const len = Math.hypot(ex, ey);
+    if (len < 1e-12) continue;
+    const nx = (ccw * ey) / len, ny = (-ccw * ex) / len;
+    out.push(nx, ny, nx * a[0] + ny * a[1]);
+  }
+  return Float64Array.from(out);
+}
+
+/** How far the farthest of the points (flat x, y) lies outside the half-planes (≤ 0: all inside). */
+export function outsideBy(planes: Float64Array, xy: ArrayLike<number>): number {
+  let worst = -Infinity;
+  for (let k = 0; k < xy.length; k += 2) {
+    const x = xy[k]!, y = xy[k + 1]!;
+    for (let p = 0; p < planes.length; p += 3) {
+      const d = planes[p]! * x + planes[p + 1]! * y - planes[p + 2]!;
+      if (d > worst) worst = d;
+    }
+  }
+  return worst;
+}
+
+/**
+ * Triangles (flat: 6 numbers each) bucketed on a uniform grid (cells in one typed array, filled by a
+ * counting sort), asked whether any of them overlaps a convex polygon by more than `eps`.
+ */
+export class TriGrid {
+  private readonly box: Box2;
+  private readonly cell: number;
+  private readonly cols: number;
+  private readonly rows: number;
+  private readonly start: Uint32Array;
+  private readonly items: Uint32Array;
+  private readonly mark: Uint32Array;
+  private stamp = 0;
+  constructor(readonly tri: Float64Array) {
+    const n = tri.length / 6;
+    this.box = boxOf(tri);
+    const w = this.box.maxX - this.box.minX || 1, h = this.box.maxY - this.box.minY || 1;
+    this.cell = Math.max(Math.sqrt((w * h) / Math.max(1, n)) * 2, 1e-3);
+    this.cols = Math.min(4096, Math.ceil(w / this.cell) + 1);
+    this.rows = Math.min(4096, Math.ceil(h / this.cell) + 1);
+    this.cell = Math.max(w / (this.cols - 0.5), h / (this.rows - 0.5), this.cell);
+    const counts = new Uint32Array(this.cols * this.rows + 1);
+    this.forCells(n, (k) => counts[k + 1]!++);
+    for (let k = 0; k < this.cols * this.rows; k++) counts[k + 1]! += counts[k]!;
+    this.start = counts.slice();
+    this.items = new Uint32Array(counts[this.cols * this.rows]!);
+    const fill = counts;
+    this.forCells(n, (k, t) => (this.items[fill[k]!++] = t));
+    this.mark = new Uint32Array(n);
+  }
+  private range(minX: number, minY: number, maxX: number, maxY: number): [number, number, number, number] {
+    const c0 = Math.max(0, Math.floor((minX - this.box.minX) / this.cell));
+    const c1 = Math.min(this.cols - 1, Math.floor((maxX - this.box.minX) / this.cell));
+    const r0 = Math.max(0, Math.floor((minY - this.box.minY) / this.cell));
+    const r1 = Math.min(this.rows - 1, Math.floor((maxY - this.box.minY) / this.cell));
+    return [c0, c1, r0, r1];
+  }
+  private forCells(n: number, f: (k: number, t: number) => void) {
+    const tri = this.tri;
+    for (let t = 0; t < n; t++) {
+      const o = 6 * t;
+      const [c0, c1, r0, r1] = this.range(Math.min(tri[o]!, tri[o + 2]!, tri[o + 4]!), Math.min(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!), Math.max(tri[o]!, tri[o + 2]!, tri[o + 4]!), Math.max(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!));
+      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) f(r * this.cols + c, t);
+    }
+  }
+  /** Any triangle overlapping the convex polygon `poly` (flat x, y) by more than eps. */
+  overlaps(poly: ArrayLike<number>, eps: number): boolean {
+    const b = boxOf(poly);
+    if (!boxesOverlap(b, this.box, eps)) return false;
+    const [c0, c1, r0, r1] = this.range(b.minX, b.minY, b.maxX, b.maxY);
+    const stamp = ++this.stamp;
+    for (let r = r0; r <= r1; r++) {
+      for (let c = c0; c <= c1; c++) {
+        const k = r * this.cols + c;
+        for (let i = this.start[k]!; i < this.start[k + 1]!; i++) {
+          const t = this.items[i]!;
+          if (this.mark[t] === stamp) continue;
+          this.mark[t] = stamp;
+          if (convexOverlap(this.tri.subarray(6 * t, 6 * t + 6), poly, eps)) return true;
+        }
+      }
+    }
+    return false;
+  }
+}
+
+/**
+ * The boundary of a set of triangles seen from above, as closed loops: every directed edge whose
+ * reverse is not in the set. Interior edges cancel. Loops come out in any winding; read them with
+ * an even-odd rule (see `evenOdd`).
+ */
+export function boundaryLoops(tris: ArrayLike<number>, positions: Float32Array, cornersOf: (t: number) => [number, number, number]): Ring[] {
+  const nv = positions.length / 3;
+  const key = (a: number, b: number) => a * nv + b;
+  const edges = new Set<number>();
+  for (let i = 0; i < tris.length; i++) {
+    const [a, b, c] = cornersOf(tris[i]!);
+    for (let e = 0; e < 3; e++) {
+      const u = e === 0 ? a : e === 1 ? b : c, v = e === 0 ? b : e === 1 ? c : a;
+      const back = key(v, u);
+      if (edges.has(back)) edges.delete(back);
+      else edges.add(key(u, v));
+    }
+  }
+  const next = new Map<number, number[]>();
+  for (const e of edges) {
+    const u = Math.floor(e / nv), v = e - u * nv;
+    const list = next.get(u);
+    if (list) list.push(v);
+    else next.set(u, [v]);
+  }
+  const loops: Ring[] = [];
+  for (const start of [...next.keys()]) {
+    for (;;) {
+      const outs = next.get(start);
+      if (!outs || outs.length === 0) break;
+      const ring: Ring = [];
+      let u = start;
+      for (let guard = 0; guard <= edges.size; guard++) {
+        ring.push([positions[3 * u]!, positions[3 * u + 1]!]);
+        const list = next.get(u);
+        const v = list?.pop();
+        if (v === undefined) break;
+        u = v;
+        if (u === start) break;
+      }
+      if (ring.length >= 3) loops.push(ring);
+    }
+  }
+  return loops;
+}
+
+export function ringArea(r: Ring): number {
+  let s = 0;
+  for (let i = 0, j = r.length - 1; i < r.length; j = i++) s += (r[j]![0] - r[i]![0]) * (r[j]![1] + r[i]![1]);
+  return s / 2;
+}
+
+/** Area of a polygon-clipping result (outer rings counter-clockwise, holes clockwise). */
+export function multiArea(mp: MultiPolygon): number {
+  let s = 0;
+  for (const poly of mp) for (const ring of poly) s += ringArea(ring);
+  return Math.abs(s) < 1e-15 ? 0 : s;
+}
+
+export function multiPerimeter(mp: MultiPolygon): number {
+  let s = 0;
+  for (const poly of mp) for (const r of poly) for (let i = 0, j = r.length - 1; i < r.length; j = i++) s += Math.hypot(r[i]![0] - r[j]![0], r[i]![1] - r[j]![1]);
+  return s;
+}
+
+/** Is the closed ring convex (collinear corners allowed)? */
+export function isConvex(r: Ring): boolean {
+  let sign = 0;
+  for (let i = 0; i < r.length; i++) {
+    const a = r[i]!, b = r[(i + 1) % r.length]!, c = r[(i + 2) % r.length]!;
+    const z = (b[0] - a[0]) * (c[1] - b[1]) - (b[1] - a[1]) * (c[0] - b[0]);
+    if (Math.abs(z) < 1e-9) continue;
+    if (sign === 0) sign = Math.sign(z);
+    else if (Math.sign(z) !== sign) return false;
+  }
+  return true;
+}
+

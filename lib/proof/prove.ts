@@ -1,0 +1,420 @@
+import polygonClipping, { type MultiPolygon, type Ring } from "polygon-clipping";
+import type { SlabOptions } from "@/lib/geometry/options";
+import { boundaryLoops, boxesOverlap, boxOf, convexHull, convexOverlap, halfPlanes, isConvex, multiArea, multiPerimeter, outsideBy, TriGrid, type Box2 } from "./planar";
+import { decodeRaster, heightRaster } from "./qr-read";
+import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
+import { readThreeMfBodies, ThreeMfProofError, type InflateRaw } from "./three-mf";
+import { connectedBodies, edgeReport, type Body } from "./topology";
+
+/**
+ * The proof of a plate: an independent reading of the exported STL and 3MF bytes (no geometry kernel,
+ * nothing of the engine but its option types) that says whether the files print as designed.
+ */
+export type ProofRuleId = "stl" | "closed" | "oriented" | "volume" | "bodies" | "on_slab" | "apart" | "gap" | "floor" | "qr" | "three_mf";
+export type ProofRule = { rule: ProofRuleId; pass: boolean; figure?: number | string; message: string };
+export type ProofFigures = { bodies: number; openEdges: number; minFloor: number | null; worstSupport: number | null; qrText: string | null };
+export type Proof = { ok: boolean; failed?: ProofRuleId; rules: ProofRule[]; figures: ProofFigures; ms: number; summary: string; timings: Record<string, number> };
+
+export type ProofInput = {
+  stl: Uint8Array;
+  threeMf: Uint8Array;
+  /** What was asked: the parsed options (thickness, gap, layer height, marks). */
+  options: Pick<SlabOptions, "slab" | "layerHeight" | "marks">;
+  /** How many pieces were asked for. */
+  pieces: number;
+  /** The QR value asked for, its placeholders filled (see `fillValue`); needed when the options ask for a QR code. */
+  qrValue?: string;
+  /** The layout's marks: where the QR code was put, so only that area is drawn. Without it the whole slab is. */
+  marks?: { kind: string; bounds: Box2 }[];
+  /** A faster raw DEFLATE decoder for the 3MF (node:zlib's inflateRawSync in the worker); fflate's by default. */
+  inflateRaw?: InflateRaw;
+  /** The layout's pieces, to name a piece by its number in a message. */
+  labels?: { number: number; bounds: Box2 }[];
+};
+
+/** `{name}` placeholders filled from `vars` (unknown ones stay as written), as the plate's marks are. */
+export function fillValue(value: string, vars: Record<string, string>): string {
+  return value.replace(/\{([a-z][a-z0-9_]*)\}/gi, (whole, name: string) => vars[name.toLowerCase()] ?? whole);
+}
+
+const fmt = (x: number, d = 2) => (Math.abs(x) < 0.5 * 10 ** -d ? 0 : x).toFixed(d);
+const at = (x: number, y: number) => `x ${fmt(x, 1)}, y ${fmt(y, 1)} mm`;
+
+type Piece = {
+  body: Body;
+  label: string;
+  base: number;
+  box: Box2;
+  hull: Float64Array;
+  up: Uint32Array;
+  down: Uint32Array;
+  grid?: TriGrid;
+  /** The bottom facets (flat, at the base) as 2D triangles, on their own grid. */
+  bottom?: TriGrid | null;
+};
+
+export function provePlate(input: ProofInput): Proof {
+  const t0 = performance.now();
+  const timings: Record<string, number> = {};
+  let tl = t0;
+  const lap = (name: string) => {
+    const now = performance.now();
+    timings[name] = Math.round((now - tl) * 10) / 10;
+    tl = now;
+  };
+  const rules: ProofRule[] = [];
+  const figures: ProofFigures = { bodies: 0, openEdges: 0, minFloor: null, worstSupport: null, qrText: null };
+  const o = input.options;
+  const layer = o.layerHeight;
+  const thickness = o.slab.thickness;
+  const gap = o.slab.gap;
+  // A small fraction of a layer: far above float32 rounding at plate sizes, far below anything a slicer sees.
+  const tol = Math.max(0.002, 0.05 * layer);
+  const done = (): Proof => {
+    const failed = rules.find((r) => !r.pass);
+    const ms = Math.round((performance.now() - t0) * 10) / 10;
+    const summary = failed
+      ? `Not proven: ${failed.message}`
+      : `Checked: closed, ${figures.bodies} bodies, every piece on the slab${figures.qrText !== null ? ", QR reads back" : ""}, 3MF matches`;
+    lap("3mf");
+    return { ok: !failed, ...(failed ? { failed: failed.rule } : {}), rules, figures, ms, summary, timings };
+  };
+
+  let m: WeldedStl;
+  try {
+    m = readWeldedStl(input.stl);
+  } catch (err) {
+    if (!(err instanceof StlProofError)) throw err;
+    rules.push({ rule: "stl", pass: false, message: err.message });
+    return done();
+  }
+  rules.push({ rule: "stl", pass: true, figure: m.triangles, message: `${m.triangles.toLocaleString("en-US")} triangles, ${m.positions.length / 3} corners after welding.` });
+
+  lap("read");
+  // 1. Closed and oriented: every undirected edge in exactly two triangles, each directed edge once.
+  const e = edgeReport(m);
+  figures.openEdges = e.open + e.nonManifold;
+  const where = e.firstBad ? ` (first at ${at(e.firstBad.at[0], e.firstBad.at[1])}, z ${fmt(e.firstBad.at[2])} mm)` : "";
+  rules.push(
+    e.open + e.nonManifold + e.degenerate === 0
+      ? { rule: "closed", pass: true, figure: 0, message: `All ${e.edges.toLocaleString("en-US")} edges are shared by exactly two triangles.` }
+      : { rule: "closed", pass: false, figure: e.open + e.nonManifold, message: `The STL is not closed: ${e.open} open edges, ${e.nonManifold} edges in more than two triangles${e.degenerate ? `, ${e.degenerate} triangles with a repeated corner` : ""}${where}.` },
+  );
+  rules.push(
+    e.misoriented === 0
+      ? { rule: "oriented", pass: true, figure: 0, message: "Every edge is used once in each direction." }
+      : { rule: "oriented", pass: false, figure: e.misoriented, message: `${e.misoriented} edges run the same way in both their triangles: a triangle is turned over${e.firstBad?.kind === "misoriented" ? where : ""}.` },
+  );
+
+  lap("edges");
+  // 2. Bodies: positive volume each; the slab is the one body standing on z = 0; the rest are the pieces.
+  const bodies = connectedBodies(m);
+  figures.bodies = bodies.length;
+  const inverted = bodies.filter((b) => b.volume <= 0);
+  rules.push(
+    inverted.length === 0
+      ? { rule: "volume", pass: true, message: "Every body has a positive volume." }
+      : { rule: "volume", pass: false, figure: inverted[0]!.volume, message: `${inverted.length} bodies have no positive volume (inside out or flat), the first at ${at(...centre(inverted[0]!))}: ${fmt(inverted[0]!.volume, 3)} mm³.` },
+  );
+  const onBed = bodies.filter((b) => Math.abs(b.min[2]) <= tol);
+  const below = bodies.filter((b) => b.min[2] < -tol);
+  const slab = onBed.reduce<Body | null>((best, b) => (!best || b.volume > best.volume ? b : best), null);
+  const want = input.pieces + 1;
+  {
+    const problems: string[] = [];
+    if (bodies.length !== want) problems.push(`${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}`);
+    if (onBed.length === 0) problems.push("no body stands on z = 0 (no slab)");
+    if (onBed.length > 1) problems.push(`the slab is in ${onBed.length} loose parts on z = 0 (the smallest at ${at(...centre(onBed.reduce((a, b) => (b.volume < a.volume ? b : a))))})`);
+    if (below.length) problems.push(`${below.length} bodies reach below the bed (lowest z ${fmt(Math.min(...below.map((b) => b.min[2])))} mm)`);
+    rules.push(problems.length ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` } : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: the slab and ${input.pieces} pieces.` });
+  }
+  if (!slab) {
+    rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
+    return threeMfRule(input, bodies, rules, done);
+  }
+
+  lap("bodies");
+  const P = m.positions, T = m.tris;
+  const zOf = (v: number) => P[3 * v + 2]!;
+  const area2 = (t: number) => {
+    const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
+    return (P[b]! - P[a]!) * (P[c + 1]! - P[a + 1]!) - (P[b + 1]! - P[a + 1]!) * (P[c]! - P[a]!);
+  };
+  const corners = (t: number): [number, number, number] => [T[3 * t]!, T[3 * t + 1]!, T[3 * t + 2]!];
+  const tri2d = (t: number) => {
+    const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
+    return Float64Array.of(P[a]!, P[a + 1]!, P[b]!, P[b + 1]!, P[c]!, P[c + 1]!);
+  };
+  const split = (tris: Uint32Array) => {
+    const up: number[] = [], down: number[] = [];
+    for (const t of tris) {
+      const s = area2(t);
+      if (s > 1e-10) up.push(t);
+      else if (s < -1e-10) down.push(t);
+    }
+    return { up: Uint32Array.from(up), down: Uint32Array.from(down) };
+  };
+
+  // The slab seen from above: the boundary of its bottom face (at z = 0), read even-odd.
+  const slabFaces = split(slab.tris);
+  const bottom = Array.from(slabFaces.down).filter((t) => zOf(T[3 * t]!) <= tol && zOf(T[3 * t + 1]!) <= tol && zOf(T[3 * t + 2]!) <= tol);
+  const loops = boundaryLoops(bottom, P, corners);
+  const outline: MultiPolygon = loops.length ? xorRings(loops) : [];
+  const holes = outline.reduce((s, poly) => s + poly.length - 1, 0);
+  const outer = outline.length === 1 && holes === 0 ? outline[0]![0]! : null;
+  const planes = outer !== null && isConvex(outer) ? halfPlanes(outer) : null;
+
+  lap("slab outline");
+  const seen = new Uint32Array(P.length / 3);
+  let stamp = 0;
+  const pieces: Piece[] = bodies
+    .filter((b) => b !== slab)
+    .map((body) => {
+      const { up, down } = split(body.tris);
+      // The body's corners, each once (corner ids are handed out in file order, so a body's span is small).
+      const xy: number[] = [];
+      for (const t of body.tris) {
+        for (let c = 0; c < 3; c++) {
+          const v = T[3 * t + c]!;
+          if (seen[v] === stamp + 1) continue;
+          seen[v] = stamp + 1;
+          xy.push(P[3 * v]!, P[3 * v + 1]!);
+        }
+      }
+      stamp++;
+      return { body, label: labelOf(input.labels, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull: convexHull(xy), up, down };
+    });
+  lap("pieces");
+  const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, tri2d)));
+
+  // 3. Every piece on the slab: its lowest layer (down-facing triangles within one layer of its base)
+  // inside the slab's outline.
+  let worst = 100;
+  let worstPiece: { p: Piece; pct: number; out: number } | null = null;
+  for (const p of pieces) {
+    const top = p.base + layer;
+    const flatBottom: number[] = [];
+    const band: Ring[] = [];
+    for (const t of p.down) {
+      const [a, b, c] = corners(t);
+      const za = zOf(a), zb = zOf(b), zc = zOf(c);
+      if (Math.max(za, zb, zc) <= p.base + tol) flatBottom.push(t);
+      else if (Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
+    }
+    p.bottom = flatBottom.length ? new TriGrid(flat(Uint32Array.from(flatBottom), tri2d)) : null;
+    let pct = 100, out = 0;
+    // A piece whose whole outline (its hull) lies inside a convex slab has its lowest layer on it too.
+    if (planes && outsideBy(planes, p.hull) <= tol) {
+      // on the slab
+    } else {
+      const loopsPart = boundaryLoops(flatBottom, P, corners);
+      let fp: MultiPolygon = loopsPart.length ? xorRings(loopsPart) : [];
+      const bandPolys = band.filter((r) => r.length >= 3).map((r) => [r]);
+      if (bandPolys.length) fp = polygonClipping.union(fp, ...bandPolys);
+      const total = multiArea(fp);
+      const inside = outline.length && total > 0 ? multiArea(polygonClipping.intersection(fp, outline)) : 0;
+      pct = total > 0 ? (100 * inside) / total : 0;
+      // Allowed outside: a band of the tolerance along the footprint's edge.
+      if (total - inside <= tol * multiPerimeter(fp)) pct = 100;
+      out = total - inside;
+    }
+    if (pct < worst || (!worstPiece && pct <= worst)) worstPiece = { p, pct, out };
+    worst = Math.min(worst, pct);
+  }
+  figures.worstSupport = pieces.length ? Math.round(worst * 100) / 100 : null;
+  rules.push(
+    worst >= 100
+      ? { rule: "on_slab", pass: true, figure: worst, message: `Every piece's lowest layer lies on the slab (${pieces.length} pieces).` }
+      : { rule: "on_slab", pass: false, figure: figures.worstSupport ?? 0, message: `${cap(worstPiece!.p.label)} stands ${fmt(100 - worst, 1)} % off the slab: only ${fmt(worst, 1)} % of its lowest layer is over the slab's outline.` },
+  );
+
+  lap("on_slab");
+  // 4. Pieces apart: no two pieces overlap seen from above (they all share the same heights).
+  let clash: string | null = null;
+  for (let i = 0; i < pieces.length && !clash; i++) {
+    for (let j = i + 1; j < pieces.length && !clash; j++) {
+      const a = pieces[i]!, b = pieces[j]!;
+      if (a.body.max[2] <= b.base || b.body.max[2] <= a.base) continue;
+      if (!boxesOverlap(a.box, b.box, 1e-3) || !convexOverlap(a.hull, b.hull, 1e-3)) continue;
+      const g = shadowGrid(a);
+      for (const t of b.up) {
+        const tri = tri2d(t);
+        if (g.overlaps(tri, 1e-3)) {
+          clash = `${cap(a.label)} and ${b.label} overlap seen from above (near ${at(tri[0]!, tri[1]!)}).`;
+          break;
+        }
+      }
+    }
+  }
+  rules.push(clash ? { rule: "apart", pass: false, message: clash } : { rule: "apart", pass: true, message: "No two pieces overlap." });
+
+  lap("apart");
+  // 5. The gap: the highest slab surface under each piece's shadow lies exactly `gap` below its base
+  // (so nothing of the slab, an embossed mark included, rises into or under a piece).
+  const slabUp = Array.from(slabFaces.up);
+  const zTop = new Float64Array(m.triangles);
+  for (const t of slabUp) zTop[t] = Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
+  slabUp.sort((a, b) => zTop[b]! - zTop[a]!);
+  // The slab's upward faces seen from above, in that order, with their boxes.
+  const upXY = flat(Uint32Array.from(slabUp), tri2d);
+  const upBox = new Float64Array(4 * slabUp.length);
+  for (let k = 0; k < slabUp.length; k++) {
+    const o6 = 6 * k;
+    upBox[4 * k] = Math.min(upXY[o6]!, upXY[o6 + 2]!, upXY[o6 + 4]!);
+    upBox[4 * k + 1] = Math.min(upXY[o6 + 1]!, upXY[o6 + 3]!, upXY[o6 + 5]!);
+    upBox[4 * k + 2] = Math.max(upXY[o6]!, upXY[o6 + 2]!, upXY[o6 + 4]!);
+    upBox[4 * k + 3] = Math.max(upXY[o6 + 1]!, upXY[o6 + 3]!, upXY[o6 + 5]!);
+  }
+  const pocket = o.marks.outlines === "pocket";
+  let gapProblem: string | null = null;
+  let worstGap = gap;
+  for (const p of pieces) {
+    // The highest slab face under the piece: above the asked surface anything under its shadow counts
+    // (an embossed mark under an overhang); at or below it, what lies under its bottom facets.
+    let under: number | null = null;
+    const asked = p.base - gap + tol;
+    for (let k = 0; k < slabUp.length; k++) {
+      const z = zTop[slabUp[k]!]!;
+      if (z < p.base - gap - 2) break; // far below: nothing closer under this piece
+      if (upBox[4 * k]! >= p.box.maxX - 1e-3 || upBox[4 * k + 2]! <= p.box.minX + 1e-3 || upBox[4 * k + 1]! >= p.box.maxY - 1e-3 || upBox[4 * k + 3]! <= p.box.minY + 1e-3) continue;
+      const tri = upXY.subarray(6 * k, 6 * k + 6);
+      if (!convexOverlap(tri, p.hull, 1e-3)) continue;
+      const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
+      if (hit) {
+        under = z;
+        break;
+      }
+    }
+    if (under === null) {
+      gapProblem ??= `${cap(p.label)} has no slab under it.`;
+      continue;
+    }
+    const g = p.base - under;
+    if (Math.abs(g - gap) > Math.abs(worstGap - gap)) worstGap = g;
+    if (g < -tol) gapProblem ??= `${cap(p.label)} sits ${fmt(-g)} mm into the slab (its base at z ${fmt(p.base)} mm, the slab under it reaches z ${fmt(under)} mm).`;
+    else if (g < gap - tol) gapProblem ??= `${cap(p.label)} is only ${fmt(g)} mm above the slab where ${fmt(gap)} mm was asked: the slab rises to z ${fmt(under)} mm under it.`;
+    else if (g > gap + tol) gapProblem ??= `${cap(p.label)} floats ${fmt(g)} mm above the slab where ${fmt(gap)} mm was asked (its base at z ${fmt(p.base)} mm).`;
+    else if (!pocket && Math.abs(p.base - (thickness + gap)) > tol) gapProblem ??= `${cap(p.label)} stands at z ${fmt(p.base)} mm, not on the slab's top at ${fmt(thickness + gap)} mm (${fmt(thickness)} mm slab + ${fmt(gap)} mm gap).`;
+  }
+  rules.push(gapProblem ? { rule: "gap", pass: false, figure: Math.round(worstGap * 1000) / 1000, message: gapProblem } : { rule: "gap", pass: true, figure: gap, message: `Every piece floats ${fmt(gap)} mm above the slab.` });
+
+  lap("gap");
+  // 6. Floors: the lowest upward-facing surface of the slab, and no hole through it.
+  const need = Math.max(2 * layer, 0.4);
+  let minFloor = Infinity, floorAt: [number, number] = [0, 0];
+  for (const t of slabUp) {
+    const z = Math.min(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
+    if (z < minFloor) (minFloor = z), (floorAt = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
+  }
+  if (holes > 0) minFloor = 0;
+  figures.minFloor = Number.isFinite(minFloor) ? Math.round(minFloor * 1000) / 1000 : null;
+  rules.push(
+    minFloor >= need - 1e-4
+      ? { rule: "floor", pass: true, figure: figures.minFloor ?? 0, message: `The thinnest floor under a mark is ${fmt(minFloor)} mm (at least ${fmt(need)} mm).` }
+      : {
+          rule: "floor",
+          pass: false,
+          figure: figures.minFloor ?? 0,
+          message: holes > 0 ? `A mark cuts right through the slab (${holes} holes in its bottom face); at least ${fmt(need)} mm must stay under every mark.` : `The floor under a mark is ${fmt(minFloor)} mm at ${at(...floorAt)}: ${fmt(need - minFloor)} mm short of the ${fmt(need)} mm (2 layers of ${fmt(layer)} mm, never under 0.40 mm) that must stay.`,
+        },
+  );
+
+  lap("floor");
+  // 7. The QR code reads back from a top view of the slab, exactly as asked.
+  const qr = o.marks.qr;
+  if (qr) {
+    const box = input.marks?.find((k) => k.kind === "qr")?.bounds;
+    const margin = qr.module;
+    const region = box ? { minX: box.minX - margin, minY: box.minY - margin, maxX: box.maxX + margin, maxY: box.maxY + margin } : { minX: slab.min[0], minY: slab.min[1], maxX: slab.max[0], maxY: slab.max[1] };
+    // Six pixels a module: enough for jsQR's sampling grid, small enough to stay cheap.
+    const ppm = Math.min(25, Math.max(3, 6 / qr.module));
+    const raster = heightRaster(P, T, slabUp, region, ppm);
+    const dark = qr.relief === "engrave" ? (z: number) => z > -Infinity && z < thickness - qr.depth / 2 : (z: number) => z > thickness + qr.depth / 2;
+    const text = decodeRaster(raster, dark);
+    figures.qrText = text;
+    const asked = input.qrValue;
+    rules.push(
+      asked !== undefined && text === asked
+        ? { rule: "qr", pass: true, figure: text, message: `The QR code reads back "${short(text)}".` }
+        : { rule: "qr", pass: false, figure: text ?? "", message: text === null ? `The QR code does not decode from a top view of the slab (${raster.width} × ${raster.height} px at ${fmt(ppm, 1)} px/mm).` : `The QR code reads "${short(text)}", not "${short(asked ?? "")}" as asked.` },
+    );
+    if (text !== asked) figures.qrText = text;
+  }
+  lap("qr");
+  return threeMfRule(input, bodies, rules, done);
+}
+
+/** 8. The 3MF read back holds the same bodies: count, triangles, bounds within 1e-3 mm. */
+function threeMfRule(input: ProofInput, bodies: Body[], rules: ProofRule[], done: () => Proof): Proof {
+  let read;
+  try {
+    read = readThreeMfBodies(input.threeMf, input.inflateRaw);
+  } catch (err) {
+    if (!(err instanceof ThreeMfProofError)) throw err;
+    rules.push({ rule: "three_mf", pass: false, message: err.message });
+    return done();
+  }
+  if (read.problems.length) {
+    rules.push({ rule: "three_mf", pass: false, message: `The 3MF does not read cleanly: ${read.problems.slice(0, 3).join(" ")}` });
+    return done();
+  }
+  if (read.bodies.length !== bodies.length) {
+    rules.push({ rule: "three_mf", pass: false, figure: read.bodies.length, message: `The 3MF holds ${read.bodies.length} bodies, the STL ${bodies.length}.` });
+    return done();
+  }
+  const byCount = new Map<number, typeof read.bodies>();
+  for (const b of read.bodies) byCount.set(b.triangles, [...(byCount.get(b.triangles) ?? []), b]);
+  const close = (a: number[], b: number[]) => a.every((x, i) => Math.abs(x - b[i]!) <= 1e-3);
+  for (const b of bodies) {
+    const list = byCount.get(b.tris.length) ?? [];
+    const i = list.findIndex((x) => close(x.min, b.min) && close(x.max, b.max));
+    if (i < 0) {
+      rules.push({ rule: "three_mf", pass: false, message: `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm).` });
+      return done();
+    }
+    list.splice(i, 1);
+  }
+  rules.push({ rule: "three_mf", pass: true, figure: read.bodies.length, message: `The 3MF holds the same ${read.bodies.length} bodies (triangles and bounds).` });
+  return done();
+}
+
+/** Closed loops read even-odd (each loop an outline or a hole), as one region. */
+function xorRings(loops: Ring[]): MultiPolygon {
+  const [first, ...rest] = loops.map((l) => [l]);
+  return first ? polygonClipping.xor(first, ...rest) : [];
+}
+
+/** The part of a triangle (x, y, z corners) at or below z = `top`, seen from above. */
+function clipBelow(tri: [number, number, number][], top: number): Ring {
+  const out: Ring = [];
+  for (let i = 0; i < 3; i++) {
+    const a = tri[i]!, b = tri[(i + 1) % 3]!;
+    const ina = a[2] <= top, inb = b[2] <= top;
+    if (ina) out.push([a[0], a[1]]);
+    if (ina !== inb) {
+      const s = (top - a[2]) / (b[2] - a[2]);
+      out.push([a[0] + s * (b[0] - a[0]), a[1] + s * (b[1] - a[1])]);
+    }
+  }
+  return out;
+}
+
+function flat(tris: Uint32Array, tri2d: (t: number) => Float64Array): Float64Array {
+  const out = new Float64Array(tris.length * 6);
+  tris.forEach((t, i) => out.set(tri2d(t), 6 * i));
+  return out;
+}
+
+const centre = (b: Body): [number, number] => [(b.min[0] + b.max[0]) / 2, (b.min[1] + b.max[1]) / 2];
+const cap = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
+const short = (s: string) => (s.length > 60 ? `${s.slice(0, 57)}…` : s);
+
+function labelOf(labels: ProofInput["labels"], b: Body): string {
+  const [x, y] = centre(b);
+  let best: { number: number; d: number } | null = null;
+  for (const l of labels ?? []) {
+    const d = Math.hypot((l.bounds.minX + l.bounds.maxX) / 2 - x, (l.bounds.minY + l.bounds.maxY) / 2 - y);
+    if (!best || d < best.d) best = { number: l.number, d };
+  }
+  return best && best.d < 1 ? `piece ${best.number} (at ${at(x, y)})` : `the piece at ${at(x, y)}`;
+}

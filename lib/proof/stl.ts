@@ -1,0 +1,81 @@
+/**
+ * The proof's own binary STL reader (3D Systems StereoLithography Interface Specification: an
+ * 80-byte header, a little-endian uint32 facet count, then 50 bytes per facet — normal, three
+ * vertices as float32, a uint16 attribute). It shares no code with the engine's importer, so a fault
+ * in one is not hidden by the same fault in the other.
+ *
+ * Vertices are welded by exact position (their float32 bits, with −0 read as 0): a closed plate
+ * written by any correct writer repeats every corner bit for bit, so no tolerance is wanted, and a
+ * tolerance would hide the gap a faulty writer leaves.
+ */
+export type WeldedStl = {
+  /** Triangles in the file. */
+  triangles: number;
+  /** Welded corners: x, y, z per vertex (float32, as the file stores them). */
+  positions: Float32Array;
+  /** Three vertex indices per triangle, in the file's order. */
+  tris: Uint32Array;
+};
+
+export class StlProofError extends Error {
+  constructor(message: string) {
+    super(message);
+    this.name = "StlProofError";
+  }
+}
+
+export function readWeldedStl(bytes: Uint8Array): WeldedStl {
+  if (bytes.byteLength < 84) throw new StlProofError(`The STL has ${bytes.byteLength} bytes; a binary STL has at least 84.`);
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const n = view.getUint32(80, true);
+  if (bytes.byteLength !== 84 + 50 * n) throw new StlProofError(`The STL says ${n} facets, which take ${84 + 50 * n} bytes; the file has ${bytes.byteLength}.`);
+  // An open-addressing table of corner bits → vertex index (+1; 0 is empty), sized for one new vertex
+  // per corner at worst and kept under half full.
+  let size = 1;
+  while (size < 3 * n * 2) size <<= 1;
+  const mask = size - 1;
+  const table = new Int32Array(size);
+  // A closed mesh has about half as many vertices as triangles; grown when a file has more.
+  let store = new Uint32Array(Math.max(3, Math.ceil(n * 0.75) * 3));
+  let count = 0;
+  const tris = new Uint32Array(3 * n);
+  for (let t = 0; t < n; t++) {
+    const base = 84 + 50 * t + 12;
+    for (let c = 0; c < 3; c++) {
+      const o = base + 12 * c;
+      let x = view.getUint32(o, true), y = view.getUint32(o + 4, true), z = view.getUint32(o + 8, true);
+      if (x === 0x80000000) x = 0;
+      if (y === 0x80000000) y = 0;
+      if (z === 0x80000000) z = 0;
+      let h = (Math.imul(x, 0x9e3779b1) ^ Math.imul(y, 0x85ebca77) ^ Math.imul(z, 0xc2b2ae3d)) >>> 0;
+      h = (h ^ (h >>> 15)) & mask;
+      for (;;) {
+        const slot = table[h]!;
+        if (slot === 0) {
+          if (3 * count + 3 > store.length) {
+            const grown = new Uint32Array(store.length * 2);
+            grown.set(store);
+            store = grown;
+          }
+          store[3 * count] = x;
+          store[3 * count + 1] = y;
+          store[3 * count + 2] = z;
+          table[h] = ++count;
+          tris[3 * t + c] = count - 1;
+          break;
+        }
+        const v = slot - 1;
+        if (store[3 * v] === x && store[3 * v + 1] === y && store[3 * v + 2] === z) {
+          tris[3 * t + c] = v;
+          break;
+        }
+        h = (h + 1) & mask;
+      }
+    }
+  }
+  const positions = new Float32Array(store.buffer.slice(0, 12 * count));
+  for (let i = 0; i < positions.length; i++) {
+    if (!Number.isFinite(positions[i]!)) throw new StlProofError(`The STL has a vertex that is not a finite number (vertex ${Math.floor(i / 3) + 1}).`);
+  }
+  return { triangles: n, positions, tris };
+}
