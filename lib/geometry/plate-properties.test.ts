@@ -21,6 +21,8 @@ import type { Kernel } from "./kernel";
 import { combineMeshes, type IndexedMesh } from "./mesh";
 import { floorUnderMarks, parseOptions, type SlabOptionsInput } from "./options";
 import { orientMesh } from "./orient";
+import { provePlate } from "@/lib/proof";
+import { inflateRawSync } from "node:zlib";
 
 let kernel: Kernel;
 let fonts: FontBook;
@@ -77,7 +79,7 @@ describe("every plate either is refused at a field or exports clean", () => {
     fc.assert(
       fc.property(optionsArb, partsArb, (options, [names, quantities]) => {
         const parts: PlatePart[] = names.map((n, i) => ({ id: n, name: n, mesh: shapes[n]!, quantity: quantities[i]! }));
-        const r = buildPlate(kernel, { parts, options, fonts, formats: ["stl"], variables: { date: "2026-12-03" } });
+        const r = buildPlate(kernel, { parts, options, fonts, formats: ["stl", "3mf"], variables: { date: "2026-12-03" } });
         const errors = r.findings.filter((f) => f.severity === "error");
         if (errors.length) {
           if (process.env.SLAB_PROPERTY_LOG) console.log("REFUSED", errors.map((e) => e.code).join(","), errors.some((e) => e.code === "off_slab") ? JSON.stringify({ options, names, quantities, m: errors.map((e) => e.message) }) : "");
@@ -87,11 +89,14 @@ describe("every plate either is refused at a field or exports clean", () => {
           return;
         }
         built++;
+        // The plate's own proof (lib/proof, kernel-free) on the exported STL and 3MF.
+        const o = parseOptions(options);
+        const proof = provePlate({ stl: r.stl!, threeMf: r.threeMf!, options: o, pieces: r.pieces.length, qrValue: o.marks.qr?.value, marks: r.layout!.marks, inflateRaw: (d) => inflateRawSync(d) });
+        expect(proof.rules.filter((x) => !x.pass), proof.summary).toEqual([]);
         const a = admesh(r.stl!);
         expect({ parts: a.parts, disconnected: a.disconnected, fixed: a.edgesFixed, reversed: a.facetsReversed, backwards: a.backwardsEdges }).toEqual({ parts: r.pieces.length + 1, disconnected: 0, fixed: 0, reversed: 0, backwards: 0 });
         const { slab, pieces } = slabAndPieces(r.stl!);
         expect(pieces).toHaveLength(r.pieces.length);
-        const o = parseOptions(options);
         // The floor under the deepest engraving (rings and pockets included).
         const floor = lowestTopSurface(slab);
         if (Number.isFinite(floor)) expect(floor).toBeGreaterThanOrEqual(floorUnderMarks(o) - 1e-4);

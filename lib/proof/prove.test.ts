@@ -84,7 +84,7 @@ describe("a plate as built proves itself", () => {
     // 1.0 mm slab, 0.4 mm deep marks: 0.6 mm of floor left.
     expect(p.figures.minFloor).toBeCloseTo(0.6, 4);
     expect(p.summary).toBe("Checked: closed, 7 bodies, every piece on the slab, QR reads back, 3MF matches");
-    expect(rule(p, "gap")!.figure).toBeCloseTo(0.25, 6);
+    expect(rule(p, "gap")!.figure).toBeCloseTo(0.2, 6); // the default gap: one 0.2 mm layer
   });
 
   it.each([
@@ -150,15 +150,15 @@ describe("tampered files fail the rule they break", () => {
     const stl = moveCorners(r.stl!, facetsOf(r, 2), (x, y, z) => [x, y, z - 0.5]);
     const p = prove(r, withMarks, { stl });
     expect(p.failed).toBe("gap");
-    expect(rule(p, "gap")!.message).toMatch(/sits 0\.25 mm into the slab/);
-    expect(rule(p, "gap")!.figure).toBeCloseTo(-0.25, 4);
+    expect(rule(p, "gap")!.message).toMatch(/sits 0\.30 mm into the slab/);
+    expect(rule(p, "gap")!.figure).toBeCloseTo(-0.3, 4);
   });
 
   it("a piece raised off its gap: gap", () => {
     const stl = moveCorners(r.stl!, facetsOf(r, 1), (x, y, z) => [x, y, z + 0.3]);
     const p = prove(r, withMarks, { stl });
     expect(p.failed).toBe("gap");
-    expect(rule(p, "gap")!.message).toMatch(/floats 0\.55 mm above the slab where 0\.25 mm was asked/);
+    expect(rule(p, "gap")!.message).toMatch(/floats 0\.50 mm above the slab where 0\.20 mm was asked/);
   });
 
   it("QR modules flipped (the finder pattern at the top left filled in): qr", () => {
@@ -199,12 +199,14 @@ describe("tampered files fail the rule they break", () => {
 });
 
 describe("faults the engine lets through today are caught", () => {
-  it("0.4 mm deep marks on a 0.6 mm slab leave 0.2 mm: floor (issue 16, fault 1)", () => {
-    const options: SlabOptionsInput = { slab: { thickness: 0.6 }, marks: { text: [{ value: "KIT 7" }] } };
-    const p = prove(plate(options), options);
+  it("a floor thinner than two layers fails: 0.6 mm left under marks, proven as if sliced at 0.35 mm layers", () => {
+    // The engine refuses marks deeper than the floor allows, so the proof is given a plate with a
+    // 0.6 mm floor and told of thicker layers than it was built for: 2 × 0.35 = 0.7 mm must stay.
+    const options: SlabOptionsInput = { marks: { text: [{ value: "KIT 7" }] } };
+    const p = prove(plate(options), { ...options, layerHeight: 0.35, firstLayerHeight: 0.35 });
     expect(p.failed === "floor" || rule(p, "floor")!.pass === false).toBe(true);
-    expect(p.figures.minFloor).toBeCloseTo(0.2, 4);
-    expect(rule(p, "floor")!.message).toMatch(/0\.20 mm .*: 0\.20 mm short of the 0\.40 mm/);
+    expect(p.figures.minFloor).toBeCloseTo(0.6, 4);
+    expect(rule(p, "floor")!.message).toMatch(/0\.60 mm .*: 0\.10 mm short of the 0\.70 mm/);
   });
 });
 

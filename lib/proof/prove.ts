@@ -1,5 +1,5 @@
 import polygonClipping, { type MultiPolygon, type Ring } from "polygon-clipping";
-import type { SlabOptions } from "@/lib/geometry/options";
+import { deepestEngraving, floorUnderMarks, type SlabOptions } from "@/lib/geometry/options";
 import { boundaryLoops, boxesOverlap, boxOf, convexHull, convexOverlap, halfPlanes, isConvex, multiArea, multiPerimeter, outsideBy, TriGrid, type Box2 } from "./planar";
 import { decodeRaster, heightRaster } from "./qr-read";
 import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
@@ -300,7 +300,7 @@ export function provePlate(input: ProofInput): Proof {
 
   lap("gap");
   // 6. Floors: the lowest upward-facing surface of the slab, and no hole through it.
-  const need = Math.max(2 * layer, 0.4);
+  const need = floorUnderMarks(o);
   let minFloor = Infinity, floorAt: [number, number] = [0, 0];
   for (const t of slabUp) {
     const z = Math.min(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
@@ -329,7 +329,9 @@ export function provePlate(input: ProofInput): Proof {
     // Six pixels a module: enough for jsQR's sampling grid, small enough to stay cheap.
     const ppm = Math.min(25, Math.max(3, 6 / qr.module));
     const raster = heightRaster(P, T, slabUp, region, ppm);
-    const dark = qr.relief === "engrave" ? (z: number) => z > -Infinity && z < thickness - qr.depth / 2 : (z: number) => z > thickness + qr.depth / 2;
+    // "As deep as allowed": the slab less the floor every engraving keeps (the option's own rule).
+    const depth = qr.depth === "max" ? deepestEngraving(o) : qr.depth;
+    const dark = qr.relief === "engrave" ? (z: number) => z > -Infinity && z < thickness - depth / 2 : (z: number) => z > thickness + depth / 2;
     const text = decodeRaster(raster, dark);
     figures.qrText = text;
     const asked = input.qrValue;
