@@ -3,7 +3,7 @@ import { templateVariableSchema } from "@/lib/geometry/template";
 import { apiKeyScopes } from "@/db/schema/workspaces";
 import { slabOptionsSchema } from "@/lib/geometry/options";
 import { APP_VERSION } from "@/lib/version";
-import { formatSchema, quantitySchema, variablesSchema } from "@/lib/validation/plates";
+import { formatSchema, quantitySchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
 /** Response shapes of the public API, as zod schemas: the OpenAPI document is generated from them. */
 export const errorSchema = z.object({ error: z.object({ code: z.string(), message: z.string(), details: z.unknown().optional() }) });
@@ -54,6 +54,7 @@ const plateForm = z.object({
   part: z.array(z.string()).optional().describe("Mesh files (STL, 3MF, OBJ); the file name is the part's name. Repeat the field for several parts."),
   kit: z.string().optional().describe("A stored kit's id, instead of part files."),
   quantity: z.string().optional().describe(`JSON array of quantities matching the part order, e.g. [2, 1]. Schema: ${JSON.stringify(z.toJSONSchema(quantitySchema))}`),
+  units: z.string().optional().describe(`Length unit of the part files (STL and OBJ carry none; millimetres when left out; overrides a 3MF's own): one of mm, cm, m, in for every file, or a JSON array in part order, e.g. ["mm", "in"]. Not with a kit (its parts keep their stored unit). A part under 1 mm or too large for the bed is refused with a finding (part_too_small, part_larger_than_bed) that names the unit to send; the importer's units_suspect warning is among the findings. Schema: ${JSON.stringify(z.toJSONSchema(unitsSchema))}`),
   options: z.string().optional().describe("JSON object with the slab builder's options (see the SlabOptions schema)."),
   variables: z.string().optional().describe(`JSON object filling {name} placeholders. Schema: ${JSON.stringify(z.toJSONSchema(variablesSchema))}`),
   format: formatSchema.optional(),

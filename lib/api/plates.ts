@@ -19,7 +19,8 @@ import { env } from "@/lib/env";
 import { enqueueBuild, PLATE_CHANNEL } from "@/lib/jobs/queue";
 import { callbackProblem } from "@/lib/jobs/webhook";
 import { blobStore } from "@/lib/storage";
-import { formatSchema, quantitySchema, variablesSchema } from "@/lib/validation/plates";
+import { API_UNITS } from "@/lib/geometry/units";
+import { formatSchema, quantitySchema, unitSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
 
 function json<T>(form: StreamedForm, schema: z.ZodType<T>, field: string): T | undefined {
@@ -35,6 +36,22 @@ function json<T>(form: StreamedForm, schema: z.ZodType<T>, field: string): T | u
   const parsed = schema.safeParse(value);
   if (!parsed.success) throw new ApiProblem(422, "invalid", `${field} does not match the schema.`, parsed.error.issues);
   return parsed.data;
+}
+
+/**
+ * `units`: a plain unit name for every part file ("m"), or a JSON array in part order (["mm", "in"]).
+ * A kit's parts keep the unit they were stored with.
+ */
+function partUnits(form: StreamedForm, count: number): z.infer<typeof unitSchema>[] | undefined {
+  if (form.fileFields.has("units")) throw new ApiProblem(400, "bad_request", "units must be a text field.");
+  const raw = form.get("units")?.trim();
+  if (!raw) return undefined;
+  const one = unitSchema.safeParse(raw);
+  if (one.success) return Array.from({ length: count }, () => one.data);
+  const list = raw.startsWith("[") ? json(form, unitsSchema, "units") : undefined;
+  if (!Array.isArray(list)) throw new ApiProblem(422, "invalid_units", `units must be one of mm, cm, m, in, or a JSON array of them in part order; got ${JSON.stringify(raw.slice(0, 40))}.`, { field: "units" });
+  if (list.length !== count) throw new ApiProblem(422, "invalid_units", `units has ${list.length} entries for ${count} part files.`, { field: "units" });
+  return list;
 }
 
 export type PlateRequest = {
@@ -63,6 +80,7 @@ export async function readPlateRequest(caller: ApiCaller, form: StreamedForm, qu
   if (form.fileFields.has("part")) throw new ApiProblem(400, "bad_request", "Each part must be a file.");
   if (form.fileFields.has("kit")) throw new ApiProblem(400, "bad_request", "kit must be an id.");
   if (files.length && kitId) throw new ApiProblem(400, "bad_request", "Send either part files or a kit, not both.");
+  if (kitId && form.get("units")) throw new ApiProblem(400, "bad_request", "units applies to part files; a kit's parts keep the unit they were stored with (change it in the parts library).");
   if (!files.length && !kitId) throw new ApiProblem(400, "bad_request", "Send one or more `part` files, or a `kit` id.");
   const rawOptions = json(form, z.record(z.string(), z.unknown()), "options") ?? {};
   const templateRef = form.get("template");
@@ -105,13 +123,15 @@ export async function readPlateRequest(caller: ApiCaller, form: StreamedForm, qu
   } else {
     const quantity = json(form, quantitySchema, "quantity");
     if (quantity && quantity.length !== files.length) throw new ApiProblem(422, "invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
+    const units = partUnits(form, files.length);
     for (const [i, f] of files.entries()) {
       // Refuse what is plainly not a mesh here, from its first bytes; the worker's import says what is wrong with the rest.
       if (f.size === 0) throw new ApiProblem(422, "empty", `${f.name}: the file is empty.`);
       if (!sniffHead(f.head, f.size) && !(f.size >= 84 && /\.stl$/i.test(f.name))) {
         throw new ApiProblem(415, "not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads STL (binary or ASCII), 3MF and OBJ.`);
       }
-      input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: f.key, quantity: quantity?.[i] ?? 1 });
+      const unit = units?.[i];
+      input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: f.key, quantity: quantity?.[i] ?? 1, ...(unit ? { unit: API_UNITS[unit] } : {}) });
     }
   }
   // The plate keeps every value it is made with, {date} included, so it can be made again exactly.

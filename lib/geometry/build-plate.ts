@@ -14,6 +14,7 @@ import { layoutText, type Contour, type TextShape } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
 import { deepestEngraving, floorUnderMarks, parseOptions, slicedGap, type Depth, type SlabOptions, type SlabOptionsInput, type TextMark } from "./options";
 import { slabOutline, type ContentPoint, type SlabShape } from "./slab";
+import { smallPartsFit, type CylinderFit } from "./small-parts";
 import { fillPlaceholders } from "./variables";
 
 export type PlatePart = {
@@ -105,6 +106,7 @@ export type PartMeasure = {
   height: number;
   size: [number, number, number];
   volume: number;
+  smallParts: CylinderFit;
 };
 /**
  * What one process keeps between builds: each part's measures (by mesh object and layer height) and
@@ -144,6 +146,7 @@ function measurePart(kernel: Kernel, scope: Scope, mesh: IndexedMesh, layerHeigh
     height: fp.height,
     size: [box.max[0] - box.min[0], box.max[1] - box.min[1], box.max[2] - box.min[2]],
     volume: solid.volume(),
+    smallParts: smallPartsFit(mesh.vertProperties),
   };
   if (cache) {
     const byLayer = cache.parts.get(mesh) ?? new Map<number, PartMeasure>();
@@ -599,7 +602,7 @@ function build(kernel: Kernel, scope: Scope, input: BuildInput, o: SlabOptions, 
       texts: blocks,
       qr: qrBlock,
       unfilled: [...o.marks.text.map((t) => fillPlaceholders(t.value, vars)), qr?.value ?? ""].flatMap((v) => [...v.matchAll(/\{([a-z][a-z0-9_]*)\}/gi)].map((x) => x[0])),
-      solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, size: measures[i]!.size })),
+      solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, size: measures[i]!.size, smallParts: measures[i]!.smallParts })),
     }),
   );
   lap("checks");

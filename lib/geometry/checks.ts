@@ -2,6 +2,7 @@ import type { CrossSection } from "manifold-3d";
 import type { Kernel, Scope } from "./kernel";
 import type { QrShape } from "./marks/qr";
 import { MATERIALS, slicedGap, type SlabOptions } from "./options";
+import type { CylinderFit } from "./small-parts";
 
 export type Severity = "error" | "warning" | "info";
 /**
@@ -23,8 +24,8 @@ export type CheckInput = {
   texts: { mark: { relief: "engrave" | "emboss"; size: number }; value: string }[];
   qr: { shape: QrShape; x: number; y: number; mark: { module: number } } | null;
   unfilled: string[];
-  /** Each part's extent (mm) along x, y and z. */
-  solids: { partId: string; name: string; size: [number, number, number] }[];
+  /** Each part's extent (mm) along x, y and z, and whether it fits the small-parts cylinder (small-parts.ts). */
+  solids: { partId: string; name: string; size: [number, number, number]; smallParts: CylinderFit }[];
 };
 
 /** Areas below this (mm²) are rounding, not overlap. */
@@ -35,9 +36,6 @@ const AREA_EPS = 0.01;
  * nozzle (from memory: about 3:1 for FDM parts without a brim).
  */
 export const TIP_RATIO = 3;
-
-/** The small-parts cylinder of US 16 CFR 1501: 31.75 mm across, 57.15 mm deep at its deepest. */
-export const SMALL_PARTS = { diameter: 31.75, depth: 57.15 };
 
 /** Warn when an opening (shrink, then grow back) by half the printable stroke removes more of a mark than this. */
 const THIN_LOSS = 0.25;
@@ -229,23 +227,26 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
   }
 
   // Small parts (informational: only matters for kits that may reach children). One finding for the plate.
-  const small: { name: string; dims: number[]; numbers: number[] }[] = [];
+  // 16 CFR 1501.4(b)(1): a part that fits the cylinder "in any orientation", uncompressed, is a small
+  // part; its convex hull is tested against the fixture's real shape over all orientations.
+  const small: { name: string; dims: number[]; numbers: number[]; maybe: number | null | undefined }[] = [];
   for (const s of c.solids) {
-    const dims = [...s.size].sort((x, y) => x - y);
-    // It may fit if its two larger sizes fit the opening and the depth (a conservative reading of the test).
-    if (dims[1]! <= SMALL_PARTS.diameter && dims[2]! <= SMALL_PARTS.depth) {
-      small.push({ name: s.name, dims, numbers: c.pieces.filter((p) => p.partId === s.partId).map((p) => p.number) });
-    }
+    const fit = s.smallParts;
+    if (fit.verdict === "does_not_fit") continue;
+    small.push({ name: s.name, dims: [...s.size].sort((x, y) => x - y), numbers: c.pieces.filter((p) => p.partId === s.partId).map((p) => p.number), maybe: fit.verdict === "may_fit" ? fit.within : undefined });
   }
   if (small.length) {
-    const list = small.map((s) => `${s.name} (${s.dims.map(r1).join(" × ")} mm)`).join(", ");
+    const list = small
+      .map((s) => `${s.name} (${s.dims.map(r1).join(" × ")} mm${s.maybe === undefined ? "" : s.maybe === null ? ", may fit: not decided" : `, may fit: within ${r2(s.maybe)} mm`})`)
+      .join(", ");
     const pieces = small.flatMap((s) => s.numbers).sort((a, b) => a - b);
+    const all = small.every((s) => s.maybe === undefined);
     out.push({
       severity: "info",
       code: "small_part",
       pieces,
       piece: pieces[0],
-      message: `${list} may fit the small-parts cylinder (US 16 CFR 1501): not for children under 3, and ages 3–6 need a choking-hazard warning. Check the rules where you sell.`,
+      message: `${list} ${all ? (small.length === 1 ? "fits" : "fit") : "may fit"} the small-parts cylinder of US 16 CFR 1501 (31.75 mm across, 25.4–57.15 mm deep, in some orientation): not for children under 3, and toys for ages 3 to 6 with small parts need the choking-hazard warning label of 16 CFR 1500.19. The rules differ where you sell: follow the local regulations.`,
     });
   }
 

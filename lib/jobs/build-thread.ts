@@ -8,14 +8,16 @@ import os from "node:os";
 import path from "node:path";
 import { deflateRawSync, inflateRawSync } from "node:zlib";
 import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
+import type { Finding } from "@/lib/geometry/checks";
 import { hexTile } from "@/lib/geometry/demo-shapes";
 import { MeshImportError } from "@/lib/geometry/errors";
 import { ENGRAVING_FONTS, parseFontBook, type EngravingFontId } from "@/lib/geometry/fonts";
 import { importMesh } from "@/lib/geometry/import";
 import type { Unit } from "@/lib/geometry/io/raw";
 import { loadKernel, type Kernel } from "@/lib/geometry/kernel";
-import { combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
+import { bounds, combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import { parseOptions, type SlabOptionsInput } from "@/lib/geometry/options";
+import { unitFindings, type ReadPart } from "@/lib/geometry/units";
 import { orientMesh } from "@/lib/geometry/orient";
 import { fillValue, provePlate, type Proof } from "@/lib/proof";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
@@ -23,7 +25,7 @@ import { blobStore } from "@/lib/storage";
 
 export type BuildTask = {
   /** Parts by blob key; `bytes` may be left out, and the thread reads the blob itself unless it holds the part already. */
-  parts: { name: string; blobKey: string; bytes?: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number }[];
+  parts: { name: string; blobKey: string; bytes?: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number; partId?: string }[];
   options: SlabOptionsInput;
   variables: Record<string, string>;
   title: string;
@@ -52,7 +54,7 @@ let fonts: ReturnType<typeof parseFontBook> | undefined;
  * Parts already read and oriented by this thread, by content key and reading: an order system sends
  * the same kit again and again, and importing (weld + kernel check) costs more than the build itself.
  */
-const meshCache = new Map<string, IndexedMesh>();
+const meshCache = new Map<string, { mesh: IndexedMesh; read: Pick<ReadPart, "unit" | "warnings" | "size"> }>();
 const CACHE_ENTRIES = 64;
 /** Their measures (footprints, size, volume), kept while the mesh stays in the cache above. */
 const partCache = newPartCache();
@@ -129,19 +131,30 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       return { ok: true, result };
     }
     const parts = [];
+    const unitNotes: Finding[] = [];
+    const bed = parseOptions(task.options).layout.bed;
     for (const [i, p] of task.parts.entries()) {
       const cacheKey = `${p.blobKey}|${p.unit ?? ""}|${p.layFlat ? 1 : 0}|${p.turned ? 1 : 0}|${p.rotation ?? 0}`;
-      let mesh = meshCache.get(cacheKey);
-      if (!mesh) {
+      let held = meshCache.get(cacheKey);
+      if (!held) {
         const bytes = p.bytes ?? (await blobStore().get(p.blobKey));
         const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
-        mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+        const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+        const b = bounds(mesh);
+        held = { mesh, read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] } };
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
-        meshCache.set(cacheKey, mesh);
+        meshCache.set(cacheKey, held);
       }
-      parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh, quantity: p.quantity });
+      // The importer's unit warning, and a refusal for a part too small to print or too large for the bed (the unit is likely wrong).
+      unitNotes.push(...unitFindings({ ...held.read, index: i + 1, name: p.name, source: p.partId ? "library" : "upload" }, bed));
+      parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh: held.mesh, quantity: p.quantity });
+    }
+    if (unitNotes.some((f) => f.severity === "error")) {
+      // Refused before building: a plate of wrongly scaled parts is not worth its booleans.
+      return { ok: true, result: { pieces: [], layout: null, findings: unitNotes, estimates: null, stats: { triangles: 0, bodies: 0, timings: {} } } };
     }
     const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, markOutlines: true, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
+    if (unitNotes.length) result.findings = [...unitNotes, ...result.findings];
     if (!result.stl || !result.threeMf) return { ok: true, result };
     // The proof reads the files exactly as they will be stored, here in the thread (the worker's main
     // thread stays free for the queue).

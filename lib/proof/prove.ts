@@ -303,7 +303,10 @@ export function provePlate(input: ProofInput): Proof {
   const need = floorUnderMarks(o);
   let minFloor = Infinity, floorAt: [number, number] = [0, 0];
   for (const t of slabUp) {
-    const z = Math.min(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
+    const za = zOf(T[3 * t]!), zb = zOf(T[3 * t + 1]!), zc = zOf(T[3 * t + 2]!);
+    // Floors are flat: a wall a hair off vertical also faces up a little, and is not one.
+    if (Math.max(za, zb, zc) - Math.min(za, zb, zc) > tol) continue;
+    const z = Math.min(za, zb, zc);
     if (z < minFloor) (minFloor = z), (floorAt = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
   }
   if (holes > 0) minFloor = 0;
