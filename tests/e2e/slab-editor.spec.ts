@@ -27,6 +27,8 @@ test("a designer tunes the demo kit's slab live, places a piece by hand, and mak
   await expect(page.getByTestId("field-note-mark_too_deep")).toHaveCount(0);
 
   // Drag piece 1 onto piece 2: an overlap, pointed at in the findings; one click back to automatic.
+  // The map stays in sight while the options column scrolls (it is sticky beside the form).
+  await expect(map).toBeInViewport();
   const a = (await page.getByTestId("map-piece-1").boundingBox())!;
   const b = (await page.getByTestId("map-piece-2").boundingBox())!;
   await page.mouse.move(a.x + a.width / 2, a.y + a.height / 2);

@@ -197,7 +197,8 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
         </form>
       </div>
 
-      <div className="space-y-3">
+      {/* The preview and the map stay in sight while the options column scrolls. */}
+      <div className="space-y-3 md:sticky md:top-2 md:self-start">
         <div className="card relative h-[22rem] overflow-hidden bg-paper">
           {result?.slab && result.layout && ready ? (
             <View3D slab={result.slab} parts={ready.parts} pieces={result.viewPieces} size={result.layout.slab} top={top} selected={selected} flagged={flagged} onPick={setSelected} />
