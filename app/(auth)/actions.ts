@@ -6,9 +6,10 @@ import { redirect } from "next/navigation";
 import { acceptInvitation, createWorkspace, pendingSignUpByToken, requestPasswordReset, requestSignUp, resetPassword, SIGN_UP_LINK_MESSAGES } from "@/db/queries/accounts";
 import { signIn } from "@/lib/auth/config";
 import { hit } from "@/lib/auth/rate-limit";
-import { loadSessionUser, setActiveWorkspace, UserError } from "@/lib/auth/guards";
+import { loadSessionUser, setActiveWorkspace } from "@/lib/auth/guards";
 import { clientIp } from "@/lib/auth/request";
 import { magicLinkSchema, resetConfirmSchema, resetRequestSchema, signInSchema, signUpSchema, workspaceSchema, type ActionResult } from "@/lib/validation/accounts";
+import { AppError } from "@/lib/errors";
 
 const invalid = (error: z.ZodError): ActionResult<never> => ({ ok: false, message: "Check the marked fields.", fieldErrors: z.flattenError(error).fieldErrors as Record<string, string[]> });
 const wait = (seconds: number) => (seconds < 90 ? `${seconds} ${seconds === 1 ? "second" : "seconds"}` : `${Math.ceil(seconds / 60)} minutes`);
@@ -108,7 +109,7 @@ export async function confirmPasswordReset(input: z.input<typeof resetConfirmSch
   try {
     await resetPassword(parsed.data.token, parsed.data.email, parsed.data.password, await clientIp());
   } catch (err) {
-    if (err instanceof UserError) return { ok: false, code: err.code, message: err.message };
+    if (err instanceof AppError) return { ok: false, code: err.code, message: err.message };
     throw err;
   }
   await signIn("credentials", { email: parsed.data.email, password: parsed.data.password, redirectTo: "/parts" });
@@ -123,7 +124,7 @@ export async function acceptInvite(input: { token: string }): Promise<ActionResu
     await setActiveWorkspace(workspaceId);
     return { ok: true, data: { workspaceId } };
   } catch (err) {
-    if (err instanceof UserError) return { ok: false, code: err.code, message: err.message };
+    if (err instanceof AppError) return { ok: false, code: err.code, message: err.message };
     throw err;
   }
 }

@@ -5,12 +5,13 @@ import { apiKeys, auditEvents, devOutbox, invitations, memberships, passwordRese
 import { generateApiKey } from "@/lib/auth/api-keys";
 import { rateLimited } from "@/lib/auth/errors";
 import { can } from "@/lib/auth/permissions";
-import { UserError, type Caller, type SessionUser } from "@/lib/auth/guards";
+import { type Caller, type SessionUser } from "@/lib/auth/guards";
 import { hashPassword, verifyPassword } from "@/lib/auth/password";
 import { hit } from "@/lib/auth/rate-limit";
 import { hashToken, newToken } from "@/lib/auth/tokens";
 import { audit } from "@/lib/audit";
 import { appUrl, linkMessage, linksMessage, sendMail } from "@/lib/mail";
+import { NotFound, Conflict, Invalid, Unavailable } from "@/lib/errors";
 
 export const INVITATION_DAYS = 7;
 export const RESET_MINUTES = 30;
@@ -103,9 +104,9 @@ export async function finishSignUp(token: string, ip: string): Promise<SessionUs
       sql`select id, email, name, password_hash, workshop, expires_at, used_at from pending_sign_ups where token_hash = ${hashToken(token)} for update`,
     );
     const p = res.rows[0];
-    if (!p) throw new UserError("sign_up_unknown", SIGN_UP_LINK_MESSAGES.unknown);
-    if (p.used_at) throw new UserError("sign_up_used", SIGN_UP_LINK_MESSAGES.used);
-    if (new Date(p.expires_at).getTime() < Date.now()) throw new UserError("sign_up_expired", SIGN_UP_LINK_MESSAGES.expired);
+    if (!p) throw new Invalid("sign_up_unknown", SIGN_UP_LINK_MESSAGES.unknown);
+    if (p.used_at) throw new Conflict("sign_up_used", SIGN_UP_LINK_MESSAGES.used);
+    if (new Date(p.expires_at).getTime() < Date.now()) throw new Invalid("sign_up_expired", SIGN_UP_LINK_MESSAGES.expired);
     await tx.update(pendingSignUps).set({ usedAt: new Date() }).where(eq(pendingSignUps.id, p.id));
     const [existing] = await tx.select().from(users).where(eq(users.email, p.email)).for("update");
     let user: typeof users.$inferSelect;
@@ -161,10 +162,10 @@ export async function changeRole(caller: Caller, userId: string, role: Role): Pr
   await db().transaction(async (tx) => {
     const rows = await tx.execute<{ user_id: string; role: Role }>(sql`select user_id, role from memberships where workspace_id = ${caller.workspace.id} for update`);
     const target = rows.rows.find((r) => r.user_id === userId);
-    if (!target) throw new UserError("not_found", "That person is not a member of this workspace.");
+    if (!target) throw new NotFound("not_found", "That person is not a member of this workspace.");
     if (target.role === role) return;
     if (target.role === "owner" && rows.rows.filter((r) => r.role === "owner").length === 1) {
-      throw new UserError("last_owner", "This is the workspace's only owner. Make someone else an owner first.");
+      throw new Conflict("last_owner", "This is the workspace's only owner. Make someone else an owner first.");
     }
     await tx.update(memberships).set({ role }).where(and(eq(memberships.workspaceId, caller.workspace.id), eq(memberships.userId, userId)));
     await audit({ workspaceId: caller.workspace.id, actorUserId: caller.user.id, action: "role_changed", target: userId, details: { from: target.role, to: role } }, tx);
@@ -175,9 +176,9 @@ export async function removeMember(caller: Caller, userId: string): Promise<void
   await db().transaction(async (tx) => {
     const rows = await tx.execute<{ user_id: string; role: Role }>(sql`select user_id, role from memberships where workspace_id = ${caller.workspace.id} for update`);
     const target = rows.rows.find((r) => r.user_id === userId);
-    if (!target) throw new UserError("not_found", "That person is not a member of this workspace.");
+    if (!target) throw new NotFound("not_found", "That person is not a member of this workspace.");
     if (target.role === "owner" && rows.rows.filter((r) => r.role === "owner").length === 1) {
-      throw new UserError("last_owner", "This is the workspace's only owner and cannot be removed.");
+      throw new Conflict("last_owner", "This is the workspace's only owner and cannot be removed.");
     }
     await tx.delete(memberships).where(and(eq(memberships.workspaceId, caller.workspace.id), eq(memberships.userId, userId)));
     await audit({ workspaceId: caller.workspace.id, actorUserId: caller.user.id, action: "member_removed", target: userId, details: { role: target.role } }, tx);
@@ -196,7 +197,7 @@ export async function inviteMember(caller: Caller, email: string, role: Role): P
       .from(memberships)
       .innerJoin(users, eq(users.id, memberships.userId))
       .where(and(eq(memberships.workspaceId, caller.workspace.id), eq(users.email, email)));
-    if (member) throw new UserError("already_member", "That person is already a member.", "email");
+    if (member) throw new Conflict("already_member", "That person is already a member.", undefined, "email");
     // A new invitation replaces any earlier one still pending for the same address.
     await tx
       .update(invitations)
@@ -225,7 +226,7 @@ export async function inviteMember(caller: Caller, email: string, role: Role): P
     // Without the message the invitation is useless: take it back rather than leave it half-done.
     await db().update(invitations).set({ revokedAt: new Date() }).where(eq(invitations.id, id));
     console.error("[mail] invitation not sent", err);
-    throw new UserError("mail_failed", "The invitation e-mail could not be sent, so no invitation was made. Try again later.");
+    throw new Unavailable("mail_failed", "The invitation e-mail could not be sent, so no invitation was made. Try again later.");
   }
   return { id };
 }
@@ -245,7 +246,7 @@ export async function revokeInvitation(caller: Caller, id: string): Promise<void
       .set({ revokedAt: new Date() })
       .where(and(eq(invitations.id, id), eq(invitations.workspaceId, caller.workspace.id), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
       .returning({ email: invitations.email });
-    if (!res[0]) throw new UserError("not_found", "No such pending invitation.");
+    if (!res[0]) throw new NotFound("not_found", "No such pending invitation.");
     await audit({ workspaceId: caller.workspace.id, actorUserId: caller.user.id, action: "invitation_revoked", target: res[0].email }, tx);
   });
 }
@@ -277,12 +278,12 @@ export async function acceptInvitation(user: SessionUser, token: string): Promis
       sql`select id, email, role, workspace_id, expires_at, accepted_at, revoked_at from invitations where token_hash = ${hashToken(token)} for update`,
     );
     const inv = res.rows[0];
-    if (!inv) throw new UserError("invitation_unknown", INVITATION_MESSAGES.unknown);
-    if (inv.accepted_at) throw new UserError("invitation_used", INVITATION_MESSAGES.used);
-    if (inv.revoked_at) throw new UserError("invitation_revoked", INVITATION_MESSAGES.revoked);
-    if (new Date(inv.expires_at).getTime() < Date.now()) throw new UserError("invitation_expired", INVITATION_MESSAGES.expired);
+    if (!inv) throw new Invalid("invitation_unknown", INVITATION_MESSAGES.unknown);
+    if (inv.accepted_at) throw new Conflict("invitation_used", INVITATION_MESSAGES.used);
+    if (inv.revoked_at) throw new Invalid("invitation_revoked", INVITATION_MESSAGES.revoked);
+    if (new Date(inv.expires_at).getTime() < Date.now()) throw new Invalid("invitation_expired", INVITATION_MESSAGES.expired);
     if (inv.email.toLowerCase() !== user.email.toLowerCase()) {
-      throw new UserError("invitation_other_email", `This invitation was sent to ${inv.email}; you are signed in as ${user.email}. Sign in with the invited address.`);
+      throw new Invalid("invitation_other_email", `This invitation was sent to ${inv.email}; you are signed in as ${user.email}. Sign in with the invited address.`);
     }
     await tx.insert(memberships).values({ workspaceId: inv.workspace_id, userId: user.id, role: inv.role }).onConflictDoNothing();
     await tx.update(invitations).set({ acceptedAt: new Date(), acceptedBy: user.id }).where(eq(invitations.id, inv.id));
@@ -322,9 +323,9 @@ export async function resetPassword(token: string, email: string, password: stri
       sql`select r.id, r.user_id, r.expires_at, r.used_at, u.email from password_resets r join users u on u.id = r.user_id where r.token_hash = ${hashToken(token)} for update of r`,
     );
     const row = res.rows[0];
-    if (!row || row.email.toLowerCase() !== email.toLowerCase()) throw new UserError("reset_invalid", "This reset link is not valid for that address. Ask for a new one.");
-    if (row.used_at) throw new UserError("reset_used", "This reset link has already been used. Ask for a new one.");
-    if (new Date(row.expires_at).getTime() < Date.now()) throw new UserError("reset_expired", "This reset link has expired. Ask for a new one.");
+    if (!row || row.email.toLowerCase() !== email.toLowerCase()) throw new Invalid("reset_invalid", "This reset link is not valid for that address. Ask for a new one.");
+    if (row.used_at) throw new Conflict("reset_used", "This reset link has already been used. Ask for a new one.");
+    if (new Date(row.expires_at).getTime() < Date.now()) throw new Invalid("reset_expired", "This reset link has expired. Ask for a new one.");
     // A new password ends every session the account had (whoever held them).
     await tx.update(users).set({ passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, emailVerified: sql`coalesce(${users.emailVerified}, now())`, updatedAt: new Date() }).where(eq(users.id, row.user_id));
     await tx.update(passwordResets).set({ usedAt: new Date() }).where(eq(passwordResets.userId, row.user_id));
@@ -359,7 +360,7 @@ export async function revokeApiKey(caller: Caller, id: string): Promise<void> {
       .set({ revokedAt: new Date() })
       .where(and(eq(apiKeys.id, id), eq(apiKeys.workspaceId, caller.workspace.id), isNull(apiKeys.revokedAt)))
       .returning({ name: apiKeys.name, prefix: apiKeys.prefix });
-    if (!res[0]) throw new UserError("not_found", "No such active key.");
+    if (!res[0]) throw new NotFound("not_found", "No such active key.");
     await audit({ workspaceId: caller.workspace.id, actorUserId: caller.user.id, action: "api_key_revoked", target: `${res[0].name} (swk_${res[0].prefix}…)` }, tx);
   });
 }
@@ -421,10 +422,10 @@ export async function endAllSessions(userId: string, ip: string): Promise<void> 
  * with the new password to keep this one.
  */
 export async function changePassword(user: SessionUser, current: string, password: string, ip: string): Promise<void> {
-  if (password.trim().toLowerCase() === user.email.toLowerCase()) throw new UserError("invalid", "Your password must not be your e-mail address.", "password");
+  if (password.trim().toLowerCase() === user.email.toLowerCase()) throw new Invalid("invalid", "Your password must not be your e-mail address.", undefined, "password");
   const [row] = await db().select({ hash: users.passwordHash }).from(users).where(eq(users.id, user.id));
-  if (!row?.hash) throw new UserError("no_password", "This account signs in by e-mailed link and has no password yet: choose one through “Forgot your password?” on the sign-in page.", "current");
-  if (!(await verifyPassword(current, row.hash))) throw new UserError("wrong_password", "That is not your present password.", "current");
+  if (!row?.hash) throw new Invalid("no_password", "This account signs in by e-mailed link and has no password yet: choose one through “Forgot your password?” on the sign-in page.", undefined, "current");
+  if (!(await verifyPassword(current, row.hash))) throw new Invalid("wrong_password", "That is not your present password.", undefined, "current");
   const passwordHash = await hashPassword(password);
   await db().transaction(async (tx) => {
     await tx.update(users).set({ passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() }).where(eq(users.id, user.id));

@@ -2,9 +2,10 @@ import "server-only";
 import { and, asc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
 import { kitParts, kits, parts } from "@/db/schema";
-import { UserError, type Caller } from "@/lib/auth/guards";
+import { type Caller } from "@/lib/auth/guards";
 import type { z } from "zod";
 import type { kitSchema } from "@/lib/validation/kits";
+import { NotFound, Invalid } from "@/lib/errors";
 
 type KitData = z.output<typeof kitSchema>;
 
@@ -29,7 +30,7 @@ export async function saveKit(caller: Caller, data: KitData): Promise<string> {
   return db().transaction(async (tx) => {
     const ids = [...new Set(data.lines.map((l) => l.partId))];
     const found = await tx.select({ id: parts.id }).from(parts).where(and(inArray(parts.id, ids), eq(parts.workspaceId, caller.workspace.id)));
-    if (found.length !== ids.length) throw new UserError("unknown_part", "One of the chosen parts no longer exists.", "lines");
+    if (found.length !== ids.length) throw new Invalid("unknown_part", "One of the chosen parts no longer exists.", undefined, "lines");
     let kitId = data.id;
     if (kitId) {
       const res = await tx
@@ -37,7 +38,7 @@ export async function saveKit(caller: Caller, data: KitData): Promise<string> {
         .set({ name: data.name, description: data.description || null, updatedAt: new Date() })
         .where(and(eq(kits.id, kitId), eq(kits.workspaceId, caller.workspace.id)))
         .returning({ id: kits.id });
-      if (!res[0]) throw new UserError("not_found", "No such kit.");
+      if (!res[0]) throw new NotFound("not_found", "No such kit.");
       await tx.delete(kitParts).where(eq(kitParts.kitId, kitId));
     } else {
       const [row] = await tx.insert(kits).values({ workspaceId: caller.workspace.id, name: data.name, description: data.description || null, createdBy: caller.user.id }).returning({ id: kits.id });
@@ -50,11 +51,11 @@ export async function saveKit(caller: Caller, data: KitData): Promise<string> {
 
 export async function duplicateKit(caller: Caller, id: string): Promise<string> {
   const kit = await getKit(caller, id);
-  if (!kit) throw new UserError("not_found", "No such kit.");
+  if (!kit) throw new NotFound("not_found", "No such kit.");
   return saveKit(caller, { name: `${kit.name} (copy)`.slice(0, 120), description: kit.description ?? undefined, lines: kit.lines });
 }
 
 export async function archiveKit(caller: Caller, id: string): Promise<void> {
   const res = await db().update(kits).set({ archivedAt: new Date() }).where(and(eq(kits.id, id), eq(kits.workspaceId, caller.workspace.id))).returning({ id: kits.id });
-  if (!res[0]) throw new UserError("not_found", "No such kit.");
+  if (!res[0]) throw new NotFound("not_found", "No such kit.");
 }

@@ -1,8 +1,8 @@
 import "server-only";
 import busboy from "busboy";
-import { ApiProblem } from "@/lib/api/respond";
 import { chunksOf, keepHead, type StoredUpload } from "@/lib/parts/upload";
 import { blobStore, BlobTooLargeError } from "@/lib/storage";
+import { AppError, BadRequest, TooLarge } from "@/lib/errors";
 
 /** A file part of the form, already in the blob store. */
 export type StoredFile = StoredUpload & { field: string; name: string };
@@ -22,7 +22,7 @@ export function textForm(values: Record<string, string | undefined>): StreamedFo
   return { get: (n) => fields.get(n) ?? null, has: (n) => fields.has(n), fileFields: new Set(), files: [] };
 }
 
-const tooLarge = (max: number) => new ApiProblem(413, "file_too_large", `The request is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit.`, { limit: max });
+const tooLarge = (max: number) => new TooLarge("file_too_large", `The request is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit.`, { limit: max });
 
 /**
  * Read multipart/form-data with busboy as it arrives: the bytes of the whole body are counted as they
@@ -37,7 +37,7 @@ export async function readMultipart(req: Request, opts: { maxBytes: number; maxF
   try {
     bb = busboy({ headers: { "content-type": req.headers.get("content-type") ?? "" }, limits: { files: maxFiles, fields: 100, fieldSize: maxFieldBytes, parts: maxFiles + 100 } });
   } catch {
-    throw new ApiProblem(400, "bad_request", "The multipart body could not be read (no boundary).");
+    throw new BadRequest("bad_request", "The multipart body could not be read (no boundary).");
   }
   const fields = new Map<string, string>();
   const fileFields = new Set<string>();
@@ -64,16 +64,16 @@ export async function readMultipart(req: Request, opts: { maxBytes: number; maxF
     stores.push(stored);
   });
   bb.on("field", (name, value, info) => {
-    if (info.valueTruncated) fail(new ApiProblem(413, "field_too_large", `The field ${name.slice(0, 40)} is longer than ${(maxFieldBytes / 1024 / 1024).toFixed(0)} MB.`));
+    if (info.valueTruncated) fail(new TooLarge("field_too_large", `The field ${name.slice(0, 40)} is longer than ${(maxFieldBytes / 1024 / 1024).toFixed(0)} MB.`));
     else if (name === "part") fileFields.add(name);
     else fields.set(name, value);
   });
-  bb.on("filesLimit", () => fail(new ApiProblem(413, "too_many_files", `Send at most ${maxFiles} part files in one request.`)));
-  bb.on("fieldsLimit", () => fail(new ApiProblem(413, "too_many_fields", "The form has too many fields.")));
-  bb.on("partsLimit", () => fail(new ApiProblem(413, "too_many_fields", "The form has too many parts.")));
+  bb.on("filesLimit", () => fail(new TooLarge("too_many_files", `Send at most ${maxFiles} part files in one request.`)));
+  bb.on("fieldsLimit", () => fail(new TooLarge("too_many_fields", "The form has too many fields.")));
+  bb.on("partsLimit", () => fail(new TooLarge("too_many_fields", "The form has too many parts.")));
   const closed = new Promise<void>((resolve, reject) => {
     bb.on("close", resolve);
-    bb.on("error", () => reject(new ApiProblem(400, "bad_request", "The multipart body could not be read.")));
+    bb.on("error", () => reject(new BadRequest("bad_request", "The multipart body could not be read.")));
   });
   closed.catch(() => undefined);
 
@@ -86,7 +86,7 @@ export async function readMultipart(req: Request, opts: { maxBytes: number; maxF
       if (!bb.write(chunk)) await Promise.race([new Promise((r) => bb.once("drain", r)), closed]);
     }
   } catch (err) {
-    fail(err instanceof ApiProblem ? err : new ApiProblem(400, "bad_request", "The request body was cut off."));
+    fail(err instanceof AppError ? err : new BadRequest("bad_request", "The request body was cut off."));
   }
   if (failure) {
     bb.destroy();

@@ -6,7 +6,6 @@ import { z } from "zod";
 import { db } from "@/db";
 import { idempotencyKeys, kitParts, kits, parts, plates, type Plate, type PlateInput } from "@/db/schema";
 import type { ApiCaller } from "@/lib/auth/api-guard";
-import { ApiProblem } from "@/lib/api/respond";
 import { notFound } from "@/lib/auth/errors";
 import { sniffHead } from "@/lib/geometry/io/sniff";
 import type { StreamedForm } from "@/lib/api/multipart";
@@ -21,20 +20,21 @@ import { callbackProblem } from "@/lib/jobs/webhook";
 import { blobStore } from "@/lib/storage";
 import { API_UNITS } from "@/lib/geometry/units";
 import { formatSchema, quantitySchema, unitSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
+import { BadRequest, NotFound, Conflict, UnsupportedMedia, Invalid } from "@/lib/errors";
 
 
 function json<T>(form: StreamedForm, schema: z.ZodType<T>, field: string): T | undefined {
-  if (form.fileFields.has(field)) throw new ApiProblem(400, "bad_request", `${field} must be a text field holding JSON.`);
+  if (form.fileFields.has(field)) throw new BadRequest("bad_request", `${field} must be a text field holding JSON.`);
   const raw = form.get(field);
   if (raw === null || raw === "") return undefined;
   let value: unknown;
   try {
     value = JSON.parse(raw);
   } catch {
-    throw new ApiProblem(400, "bad_request", `${field} is not valid JSON.`);
+    throw new BadRequest("bad_request", `${field} is not valid JSON.`);
   }
   const parsed = schema.safeParse(value);
-  if (!parsed.success) throw new ApiProblem(422, "invalid", `${field} does not match the schema.`, parsed.error.issues);
+  if (!parsed.success) throw new Invalid("invalid", `${field} does not match the schema.`, parsed.error.issues);
   return parsed.data;
 }
 
@@ -43,14 +43,14 @@ function json<T>(form: StreamedForm, schema: z.ZodType<T>, field: string): T | u
  * A kit's parts keep the unit they were stored with.
  */
 function partUnits(form: StreamedForm, count: number): z.infer<typeof unitSchema>[] | undefined {
-  if (form.fileFields.has("units")) throw new ApiProblem(400, "bad_request", "units must be a text field.");
+  if (form.fileFields.has("units")) throw new BadRequest("bad_request", "units must be a text field.");
   const raw = form.get("units")?.trim();
   if (!raw) return undefined;
   const one = unitSchema.safeParse(raw);
   if (one.success) return Array.from({ length: count }, () => one.data);
   const list = raw.startsWith("[") ? json(form, unitsSchema, "units") : undefined;
-  if (!Array.isArray(list)) throw new ApiProblem(422, "invalid_units", `units must be one of mm, cm, m, in, or a JSON array of them in part order; got ${JSON.stringify(raw.slice(0, 40))}.`, { field: "units" });
-  if (list.length !== count) throw new ApiProblem(422, "invalid_units", `units has ${list.length} entries for ${count} part files.`, { field: "units" });
+  if (!Array.isArray(list)) throw new Invalid("invalid_units", `units must be one of mm, cm, m, in, or a JSON array of them in part order; got ${JSON.stringify(raw.slice(0, 40))}.`, { field: "units" });
+  if (list.length !== count) throw new Invalid("invalid_units", `units has ${list.length} entries for ${count} part files.`, { field: "units" });
   return list;
 }
 
@@ -77,36 +77,36 @@ export type PlateRequest = {
 export async function readPlateRequest(caller: ApiCaller, form: StreamedForm, queryFormat: string | null): Promise<PlateRequest> {
   const files = form.files;
   const kitId = form.get("kit");
-  if (form.fileFields.has("part")) throw new ApiProblem(400, "bad_request", "Each part must be a file.");
-  if (form.fileFields.has("kit")) throw new ApiProblem(400, "bad_request", "kit must be an id.");
-  if (files.length && kitId) throw new ApiProblem(400, "bad_request", "Send either part files or a kit, not both.");
-  if (kitId && form.get("units")) throw new ApiProblem(400, "bad_request", "units applies to part files; a kit's parts keep the unit they were stored with (change it in the parts library).");
-  if (!files.length && !kitId) throw new ApiProblem(400, "bad_request", "Send one or more `part` files, or a `kit` id.");
+  if (form.fileFields.has("part")) throw new BadRequest("bad_request", "Each part must be a file.");
+  if (form.fileFields.has("kit")) throw new BadRequest("bad_request", "kit must be an id.");
+  if (files.length && kitId) throw new BadRequest("bad_request", "Send either part files or a kit, not both.");
+  if (kitId && form.get("units")) throw new BadRequest("bad_request", "units applies to part files; a kit's parts keep the unit they were stored with (change it in the parts library).");
+  if (!files.length && !kitId) throw new BadRequest("bad_request", "Send one or more `part` files, or a `kit` id.");
   const rawOptions = json(form, z.record(z.string(), z.unknown()), "options") ?? {};
   const templateRef = form.get("template");
   const versionRaw = form.get("templateVersion");
-  if (form.fileFields.has("template")) throw new ApiProblem(400, "bad_request", "template must be a template id.");
+  if (form.fileFields.has("template")) throw new BadRequest("bad_request", "template must be a template id.");
   const templateVersion = versionRaw === null || versionRaw === "" ? undefined : Number(versionRaw);
-  if (templateVersion !== undefined && !(Number.isInteger(templateVersion) && templateVersion >= 1)) throw new ApiProblem(400, "bad_request", "templateVersion must be a version number (1, 2, …).");
-  if (templateVersion !== undefined && !templateRef) throw new ApiProblem(400, "bad_request", "templateVersion needs a template.");
+  if (templateVersion !== undefined && !(Number.isInteger(templateVersion) && templateVersion >= 1)) throw new BadRequest("bad_request", "templateVersion must be a version number (1, 2, …).");
+  if (templateVersion !== undefined && !templateRef) throw new BadRequest("bad_request", "templateVersion needs a template.");
   const version = templateRef ? await versionForPlate(caller.workspaceId, templateRef, templateVersion) : null;
   const storedOptions = version ? mergeOptions(version.options as SlabOptionsInput, rawOptions as SlabOptionsInput) : (rawOptions as SlabOptionsInput);
   const parsedOptions = slabOptionsSchema.safeParse(storedOptions);
-  if (!parsedOptions.success) throw new ApiProblem(422, "invalid_options", version ? "options over the template do not match the slab builder's options." : "options do not match the slab builder's options.", parsedOptions.error.issues);
+  if (!parsedOptions.success) throw new Invalid("invalid_options", version ? "options over the template do not match the slab builder's options." : "options do not match the slab builder's options.", parsedOptions.error.issues);
   const givenVariables = json(form, variablesSchema, "variables") ?? {};
   const fmt = formatSchema.safeParse(form.get("format") ?? queryFormat ?? "3mf");
-  if (!fmt.success) throw new ApiProblem(400, "bad_request", "format must be stl, 3mf or json.");
+  if (!fmt.success) throw new BadRequest("bad_request", "format must be stl, 3mf or json.");
   const callbackUrl = form.get("callbackUrl") || undefined;
   if (callbackUrl) {
     const problem = await callbackProblem(callbackUrl);
-    if (problem) throw new ApiProblem(422, problem.code, problem.message, { reason: problem.reason, ...(problem.address ? { address: problem.address } : {}) });
+    if (problem) throw new Invalid(problem.code, problem.message, { reason: problem.reason, ...(problem.address ? { address: problem.address } : {}) });
   }
 
   const input: PlateInput = { parts: [] };
   let title = "Slabwright plate";
   if (kitId) {
     const [kit] = await db().select().from(kits).where(and(eq(kits.id, kitId), eq(kits.workspaceId, caller.workspaceId)));
-    if (!kit) throw new ApiProblem(404, "not_found", "No such kit.");
+    if (!kit) throw new NotFound("not_found", "No such kit.");
     const lines = await db().select({ kp: kitParts, part: parts }).from(kitParts).innerJoin(parts, eq(parts.id, kitParts.partId)).where(eq(kitParts.kitId, kit.id)).orderBy(kitParts.position);
     input.kitId = kit.id;
     title = kit.name;
@@ -122,13 +122,13 @@ export async function readPlateRequest(caller: ApiCaller, form: StreamedForm, qu
     }));
   } else {
     const quantity = json(form, quantitySchema, "quantity");
-    if (quantity && quantity.length !== files.length) throw new ApiProblem(422, "invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
+    if (quantity && quantity.length !== files.length) throw new Invalid("invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
     const units = partUnits(form, files.length);
     for (const [i, f] of files.entries()) {
       // Refuse what is plainly not a mesh here, from its first bytes; the worker's import says what is wrong with the rest.
-      if (f.size === 0) throw new ApiProblem(422, "empty", `${f.name}: the file is empty.`);
+      if (f.size === 0) throw new Invalid("empty", `${f.name}: the file is empty.`);
       if (!sniffHead(f.head, f.size) && !(f.size >= 84 && /\.stl$/i.test(f.name))) {
-        throw new ApiProblem(415, "not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads STL (binary or ASCII), 3MF and OBJ.`);
+        throw new UnsupportedMedia("not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads STL (binary or ASCII), 3MF and OBJ.`);
       }
       const unit = units?.[i];
       input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: f.key, quantity: quantity?.[i] ?? 1, ...(unit ? { unit: API_UNITS[unit] } : {}) });
@@ -141,7 +141,7 @@ export async function readPlateRequest(caller: ApiCaller, form: StreamedForm, qu
     try {
       variables = resolveValues(version.variables as TemplateVariableDef[], givenVariables, { date: today, kit: kitId ? title : undefined });
     } catch (err) {
-      if (err instanceof TemplateValueError) throw new ApiProblem(422, err.code, err.message, { variables: err.names });
+      if (err instanceof TemplateValueError) throw new Invalid(err.code, err.message, { variables: err.names });
       throw err;
     }
     input.templateId = version.templateId;
@@ -192,7 +192,7 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
   if (!plate) {
     const again = await priorPlate(caller, idempotencyKey!, hash);
     if (again) return { plate: again, replay: true };
-    throw new ApiProblem(409, "idempotency_conflict", "This Idempotency-Key is being used by another request.");
+    throw new Conflict("idempotency_conflict", "This Idempotency-Key is being used by another request.");
   }
   try {
     const jobId = await enqueueBuild(plate.id, buildPriority(plan));
@@ -211,7 +211,7 @@ export async function createPlate(caller: ApiCaller, r: PlateRequest, idempotenc
 export async function remakePlate(workspaceId: string, plateId: string, userId: string | null): Promise<Plate> {
   const [old] = await db().select().from(plates).where(and(eq(plates.id, plateId), eq(plates.workspaceId, workspaceId)));
   if (!old) throw notFound("plate");
-  if (!old.input) throw new ApiProblem(409, "not_remakeable", "This plate has no stored inputs to make it from.");
+  if (!old.input) throw new Conflict("not_remakeable", "This plate has no stored inputs to make it from.");
   let plan: PlanId = "bench";
   const row = await db().transaction(async (tx) => {
     plan = (await meterPlate(tx, workspaceId, 1, old.options)).plan;
@@ -238,7 +238,7 @@ async function priorPlate(caller: ApiCaller, key: string, hash: string): Promise
     .innerJoin(plates, eq(plates.id, idempotencyKeys.plateId))
     .where(and(eq(idempotencyKeys.workspaceId, caller.workspaceId), eq(idempotencyKeys.key, key), sql`${idempotencyKeys.createdAt} > now() - interval '24 hours'`));
   if (!row) return null;
-  if (row.k.requestHash !== hash) throw new ApiProblem(409, "idempotency_conflict", "This Idempotency-Key was used with a different request in the last 24 hours.");
+  if (row.k.requestHash !== hash) throw new Conflict("idempotency_conflict", "This Idempotency-Key was used with a different request in the last 24 hours.");
   return row.p;
 }
 
@@ -326,7 +326,7 @@ export function plateView(p: Plate) {
 /** The plate's file with its headers: type, a file name, the plate id and its warnings. */
 export async function plateFile(plate: Plate, format: "stl" | "3mf"): Promise<Response> {
   const key = format === "stl" ? plate.stlBlobKey : plate.threeMfBlobKey;
-  if (!key || plate.jobState !== "done") throw new ApiProblem(409, "not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
+  if (!key || plate.jobState !== "done") throw new Conflict("not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
   const bytes = await blobStore().get(key);
   const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
   // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.

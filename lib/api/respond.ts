@@ -1,7 +1,6 @@
 import "server-only";
 import { ZodError } from "zod";
-import { AccessError } from "@/lib/auth/errors";
-import { UserError } from "@/lib/auth/errors";
+import { AppError, RateLimited, httpStatus } from "@/lib/errors";
 import { hasNul, isBadInputDbError } from "@/lib/db-errors";
 
 function safeDecode(url: string): string {
@@ -9,22 +8,6 @@ function safeDecode(url: string): string {
     return decodeURIComponent(url);
   } catch {
     return url;
-  }
-}
-
-/** Statuses for refusals a person can act on; anything else of that kind is a 422. */
-const USER_ERROR_STATUS: Record<string, number> = { not_found: 404, part_in_use: 409, conflict: 409 };
-
-/** A refusal with its HTTP status, code and details, thrown anywhere under a route. */
-export class ApiProblem extends Error {
-  constructor(
-    readonly status: number,
-    readonly code: string,
-    message: string,
-    readonly details?: unknown,
-  ) {
-    super(message);
-    this.name = "ApiProblem";
   }
 }
 
@@ -70,11 +53,9 @@ export function apiRoute<C>(handler: (req: Request, ctx: C) => Promise<Response>
     try {
       return await handler(req, ctx);
     } catch (err) {
-      if (err instanceof AccessError) {
-        return apiError(err.status, err.code, err.message, undefined, err.retryAfterSeconds ? { "Retry-After": String(err.retryAfterSeconds) } : undefined);
+      if (err instanceof AppError) {
+        return apiError(httpStatus(err), err.code, err.message, err.details, err instanceof RateLimited ? { "Retry-After": String(err.retryAfterSeconds) } : undefined);
       }
-      if (err instanceof ApiProblem) return apiError(err.status, err.code, err.message, err.details);
-      if (err instanceof UserError) return apiError(USER_ERROR_STATUS[err.code] ?? 422, err.code, err.message);
       if (err instanceof ZodError) return apiError(422, "invalid", "The request does not match the API's schema.", err.issues);
       // req.json() on a body that is not JSON.
       if (err instanceof SyntaxError) return apiError(400, "bad_json", "The request body is not valid JSON.");

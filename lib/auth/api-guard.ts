@@ -3,10 +3,10 @@ import { and, eq, isNull, lt, or } from "drizzle-orm";
 import { db } from "@/db";
 import { apiKeys, type ApiKeyScope } from "@/db/schema";
 import { hashApiKey, parseApiKeyPrefix } from "./api-keys";
-import { ApiProblem } from "@/lib/api/respond";
 import { billingOf } from "@/lib/billing/service";
-import { AccessError, rateLimited } from "./errors";
+import { rateLimited } from "./errors";
 import { hit } from "./rate-limit";
+import { Unauthorized, PlanLimit, Forbidden } from "@/lib/errors";
 
 export type ApiCaller = { keyId: string; workspaceId: string; scopes: ApiKeyScope[] };
 
@@ -17,21 +17,21 @@ export type ApiCaller = { keyId: string; workspaceId: string; scopes: ApiKeyScop
 export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<ApiCaller> {
   const header = req.headers.get("authorization") ?? "";
   const m = /^Bearer\s+(\S+)$/i.exec(header);
-  if (!m) throw new AccessError(401, "unauthorized", "Send an API key as `Authorization: Bearer <key>`.");
+  if (!m) throw new Unauthorized("unauthorized", "Send an API key as `Authorization: Bearer <key>`.");
   const key = m[1]!;
-  if (!parseApiKeyPrefix(key)) throw new AccessError(401, "unauthorized", "That is not a Slabwright API key.");
+  if (!parseApiKeyPrefix(key)) throw new Unauthorized("unauthorized", "That is not a Slabwright API key.");
   const [row] = await db()
     .select({ id: apiKeys.id, workspaceId: apiKeys.workspaceId, scopes: apiKeys.scopes, lastUsedAt: apiKeys.lastUsedAt })
     .from(apiKeys)
     .where(and(eq(apiKeys.keyHash, hashApiKey(key)), isNull(apiKeys.revokedAt)))
     .limit(1);
-  if (!row) throw new AccessError(401, "unauthorized", "This API key is unknown or has been revoked.");
+  if (!row) throw new Unauthorized("unauthorized", "This API key is unknown or has been revoked.");
   const limit = await hit("apiPerKey", row.id);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "requests with this key");
-  if (!row.scopes.includes(scope)) throw new AccessError(403, "forbidden", `This key lacks the ${scope} scope.`);
+  if (!row.scopes.includes(scope)) throw new Forbidden("forbidden", `This key lacks the ${scope} scope.`);
   // The order API comes with the paid plans: a workspace moved to Bench keeps its keys, refused here.
   const plan = (await billingOf(row.workspaceId)).effective;
-  if (plan.apiKeys === 0) throw new ApiProblem(402, "plan_limit", `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`, { plan: plan.id });
+  if (plan.apiKeys === 0) throw new PlanLimit("plan_limit", `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`, { plan: plan.id });
   // Last-used time, at most once a minute per key (no write on every request).
   const minuteAgo = new Date(Date.now() - 60_000);
   await db()

@@ -11,10 +11,10 @@ import { audit } from "@/lib/audit";
 import { env } from "@/lib/env";
 import { linkMessage, sendMail } from "@/lib/mail";
 import { finishSignUp, revokeSession, sessionStillValid } from "@/db/queries/accounts";
-import { UserError } from "./errors";
 import { checkPassword } from "./password";
 import { isBlocked, signInFailed, signInSucceeded, signInWait } from "./rate-limit";
 import { clientIp } from "./request";
+import { AppError } from "@/lib/errors";
 
 const credentialsSchema = z.object({
   email: z.string().trim().toLowerCase().email(),
@@ -95,7 +95,7 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
           const user = await finishSignUp(token, await clientIp(request.headers));
           return { id: user.id, email: user.email, name: user.name };
         } catch (err) {
-          if (err instanceof UserError) throw new BadCredentials();
+          if (err instanceof AppError) throw new BadCredentials();
           throw err;
         }
       },

@@ -8,8 +8,9 @@ import { memberships, users, workspaces, type Role } from "@/db/schema";
 import type { ActionResult } from "@/lib/validation/accounts";
 import { auth } from "./config";
 import { isBadInputDbError } from "@/lib/db-errors";
-import { AccessError, forbidden, notSignedIn, UserError } from "./errors";
+import { forbidden, notSignedIn } from "./errors";
 import { can, type Permission } from "./permissions";
+import { AppError, formMessage } from "@/lib/errors";
 
 export const WORKSPACE_COOKIE = "sw_workspace";
 
@@ -75,7 +76,7 @@ export async function requirePermission(permission: Permission): Promise<{ calle
   return { caller, allowed: can(caller.role, permission) };
 }
 
-/** For code paths that throw: the caller allowed to do `permission`, or an AccessError. */
+/** For code paths that throw: the caller allowed to do `permission`, or an AppError (Unauthorized, Forbidden). */
 export async function authorize(permission: Permission, what: string): Promise<Caller> {
   const caller = await loadCaller();
   if (!caller) throw notSignedIn();
@@ -115,8 +116,7 @@ export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Per
     try {
       return await fn(parsed.data, caller);
     } catch (err) {
-      if (err instanceof AccessError) return { ok: false, code: err.code, message: err.message };
-      if (err instanceof UserError) return { ok: false, code: err.code, message: err.message, fieldErrors: err.field ? { [err.field]: [err.message] } : undefined };
+      if (err instanceof AppError) return { ok: false, code: err.code, message: formMessage(err), fieldErrors: err.field ? { [err.field]: [formMessage(err)] } : undefined };
       if (isBadInputDbError(err)) return { ok: false, code: "bad_request", message: "Something you entered cannot be stored (a NUL character, or a number or text out of range). Nothing was changed." };
       console.error(`[action] ${what} failed`, err);
       return { ok: false, code: "internal", message: "Something went wrong and nothing was changed. Try again." };
@@ -124,4 +124,3 @@ export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Per
   };
 }
 
-export { UserError } from "./errors";

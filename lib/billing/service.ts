@@ -3,11 +3,10 @@ import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import Stripe from "stripe";
 import { db, type Db } from "@/db";
 import { billingEvents, checkoutSessions, invoices, plateUsage, workspaceBilling } from "@/db/schema";
-import { ApiProblem } from "@/lib/api/respond";
 import { audit } from "@/lib/audit";
-import { UserError } from "@/lib/auth/errors";
 import { env, requireSecret } from "@/lib/env";
 import { PLANS, type Plan, type PlanId } from "./plans";
+import { BadRequest, PlanLimit, Invalid, Unavailable } from "@/lib/errors";
 
 type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
@@ -65,7 +64,7 @@ export async function meterPlate(tx: Tx, workspaceId: string, count = 1, options
   await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`usage:${workspaceId}`}))`);
   const b = await billingOf(workspaceId, tx);
   if (engravesLogo(options) && !b.effective.logos) {
-    throw new ApiProblem(402, "plan_limit", `Logos come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. Remove the logo, or an owner can upgrade under Settings → Billing.`, { plan: b.plan, limit: "logos" });
+    throw new PlanLimit("plan_limit", `Logos come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. Remove the logo, or an owner can upgrade under Settings → Billing.`, { plan: b.plan, limit: "logos" });
   }
   const start = periodStart(b);
   const [row] = await tx
@@ -74,7 +73,7 @@ export async function meterPlate(tx: Tx, workspaceId: string, count = 1, options
     .onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: sql`${plateUsage.plates} + ${count}` } })
     .returning();
   if (row!.plates > b.effective.platesPerPeriod) {
-    throw new ApiProblem(402, "plan_limit", `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: row!.plates - count });
+    throw new PlanLimit("plan_limit", `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: row!.plates - count });
   }
   return b;
 }
@@ -91,9 +90,9 @@ export function buildPriority(plan: PlanId): number {
 /** Checkout for a paid plan: the provider's hosted page, back to the billing page afterwards. */
 export async function startCheckout(actor: { workspaceId: string; userId: string; email: string }, plan: PlanId): Promise<string> {
   const p = PLANS[plan];
-  if (plan === "bench" || !p.priceEnv) throw new UserError("invalid", "The Bench plan needs no checkout.");
+  if (plan === "bench" || !p.priceEnv) throw new Invalid("invalid", "The Bench plan needs no checkout.");
   const b = await billingOf(actor.workspaceId);
-  if (b.plan === plan && b.status !== "canceled") throw new UserError("invalid", `The workspace is on the ${p.name} plan already.`);
+  if (b.plan === plan && b.status !== "canceled") throw new Invalid("invalid", `The workspace is on the ${p.name} plan already.`);
   let customer = b.customerId;
   if (!customer) {
     const c = await payments().customers.create({ email: actor.email, metadata: { workspaceId: actor.workspaceId } });
@@ -119,7 +118,7 @@ export async function startCheckout(actor: { workspaceId: string; userId: string
 
 export async function billingPortal(workspaceId: string): Promise<string> {
   const b = await billingOf(workspaceId);
-  if (!b.customerId) throw new UserError("invalid", "There is nothing to manage yet: choose a paid plan first.");
+  if (!b.customerId) throw new Invalid("invalid", "There is nothing to manage yet: choose a paid plan first.");
   const s = await payments().billingPortal.sessions.create({ customer: b.customerId, return_url: new URL("/settings/billing", env().AUTH_URL).toString() });
   return s.url;
 }
@@ -160,12 +159,12 @@ async function checkedCheckout(sessionId: string | undefined) {
  */
 export async function handleBillingEvent(raw: string, signature: string | null): Promise<Outcome> {
   const webhookSecret = env().STRIPE_WEBHOOK_SECRET;
-  if (!webhookSecret) throw new ApiProblem(503, "billing_not_configured", "This server has no STRIPE_WEBHOOK_SECRET: it cannot verify payment events.");
+  if (!webhookSecret) throw new Unavailable("billing_not_configured", "This server has no STRIPE_WEBHOOK_SECRET: it cannot verify payment events.");
   let event: Stripe.Event;
   try {
     event = payments().webhooks.constructEvent(raw, signature ?? "", webhookSecret);
   } catch (err) {
-    throw new ApiProblem(400, "bad_signature", `The event's signature does not verify: ${err instanceof Error ? err.message : String(err)}`);
+    throw new BadRequest("bad_signature", `The event's signature does not verify: ${err instanceof Error ? err.message : String(err)}`);
   }
   const obj = event.data.object as unknown as Obj;
   const checkout = event.type === "checkout.session.completed" ? await checkedCheckout(obj.id) : null;

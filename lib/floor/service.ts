@@ -2,12 +2,12 @@ import "server-only";
 import { and, asc, desc, eq, ilike, isNotNull, like, or, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { FLOOR_STATES, floorEvents, inspections, kits, memberships, plates, users, type FloorState, type PieceCheck, type Plate } from "@/db/schema";
-import { UserError } from "@/lib/auth/errors";
 import type { PlanId } from "@/lib/billing/plans";
 import { buildPriority, meterPlate } from "@/lib/billing/service";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
 import { enqueueBuild, enqueueCallback } from "@/lib/jobs/queue";
 import { appUrl, sendMail } from "@/lib/mail";
+import { NotFound, Conflict, Invalid } from "@/lib/errors";
 
 /**
  * The print floor: plates move through to print → printing → to inspect → done (or print failed);
@@ -40,7 +40,7 @@ export const nextMoves = (s: FloorState) => MOVES[s];
 async function plateOf(workspaceId: string, id: string, lock = false, tx = db()): Promise<Plate> {
   const q = tx.select().from(plates).where(and(eq(plates.id, id), eq(plates.workspaceId, workspaceId)));
   const [p] = lock ? await q.for("update") : await q;
-  if (!p) throw new UserError("not_found", "No such plate.");
+  if (!p) throw new NotFound("not_found", "No such plate.");
   return p;
 }
 
@@ -106,8 +106,8 @@ export async function plateFloor(workspaceId: string, id: string) {
 export async function movePlate(actor: FloorActor, id: string, to: FloorState, note?: string) {
   await db().transaction(async (tx) => {
     const p = await plateOf(actor.workspaceId, id, true, tx);
-    if (!p.floorState) throw new UserError("not_on_floor", "This plate is not on the floor yet: its files are still being made.");
-    if (!MOVES[p.floorState].includes(to)) throw new UserError("bad_move", `A plate that is ${STATE_LABEL[p.floorState]} cannot go to ${STATE_LABEL[to]}.`);
+    if (!p.floorState) throw new Conflict("not_on_floor", "This plate is not on the floor yet: its files are still being made.");
+    if (!MOVES[p.floorState].includes(to)) throw new Invalid("bad_move", `A plate that is ${STATE_LABEL[p.floorState]} cannot go to ${STATE_LABEL[to]}.`);
     await tx.update(plates).set({ floorState: to }).where(eq(plates.id, id));
     await tx.insert(floorEvents).values({ workspaceId: actor.workspaceId, plateId: id, fromState: p.floorState, toState: to, note: note ?? null, byUserId: actor.userId });
   });
@@ -122,10 +122,10 @@ export async function recordInspection(actor: FloorActor, id: string, checks: Pi
   const out = await db().transaction(async (tx) => {
     const p = await plateOf(actor.workspaceId, id, true, tx);
     const pieces = piecesOf(p);
-    if (!p.floorState || pieces.length === 0) throw new UserError("not_on_floor", "This plate has no finished slab to inspect yet.");
+    if (!p.floorState || pieces.length === 0) throw new Conflict("not_on_floor", "This plate has no finished slab to inspect yet.");
     const byNumber = new Map((checks === "all-present" ? [] : checks).map((c) => [c.number, c]));
-    for (const n of byNumber.keys()) if (!pieces.some((x) => x.number === n)) throw new UserError("invalid", `The plate has no piece ${n}.`);
-    for (const c of byNumber.values()) if (c.state === "defective" && !c.note?.trim()) throw new UserError("invalid", `Say what is wrong with piece ${c.number}.`, `note-${c.number}`);
+    for (const n of byNumber.keys()) if (!pieces.some((x) => x.number === n)) throw new Invalid("invalid", `The plate has no piece ${n}.`);
+    for (const c of byNumber.values()) if (c.state === "defective" && !c.note?.trim()) throw new Invalid("invalid", `Say what is wrong with piece ${c.number}.`, undefined, `note-${c.number}`);
     const results: PieceCheck[] = pieces.map((x) => byNumber.get(x.number) ?? { number: x.number, state: "present" });
     const missing = results.filter((r) => r.state === "missing").length, defective = results.filter((r) => r.state === "defective").length;
     const [prior] = await tx.select({ n: sql<number>`count(*)::int` }).from(inspections).where(eq(inspections.plateId, id));
@@ -166,10 +166,10 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
 export async function makeReprint(actor: FloorActor, id: string): Promise<Plate> {
   const p = await plateOf(actor.workspaceId, id);
   const [last] = await db().select().from(inspections).where(eq(inspections.plateId, id)).orderBy(desc(inspections.at)).limit(1);
-  if (!last) throw new UserError("not_inspected", "Inspect the plate first: the reprint holds the pieces the inspection found missing or defective.");
+  if (!last) throw new Conflict("not_inspected", "Inspect the plate first: the reprint holds the pieces the inspection found missing or defective.");
   const wanted = last.results.filter((r) => r.state !== "present").map((r) => r.number);
-  if (!wanted.length) throw new UserError("nothing_to_reprint", "The last inspection found every piece present.");
-  if (!p.input) throw new UserError("not_remakeable", "This plate has no stored inputs to reprint from.");
+  if (!wanted.length) throw new Conflict("nothing_to_reprint", "The last inspection found every piece present.");
+  if (!p.input) throw new Conflict("not_remakeable", "This plate has no stored inputs to reprint from.");
   const pieces = piecesOf(p);
   // Pieces name their part as the build thread does: part-1, part-2, … in the input's order.
   const byPart = p.input.parts.map((_, i) => wanted.filter((n) => pieces.find((x) => x.number === n)?.partId === `part-${i + 1}`).sort((a, b) => a - b));

@@ -2,16 +2,16 @@ import "server-only";
 import { eq } from "drizzle-orm";
 import { db } from "@/db";
 import { templates, templateVersions, type Plate } from "@/db/schema";
-import { ApiProblem } from "@/lib/api/respond";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 import type { Estimates } from "@/lib/geometry/estimates";
 import { appUrl } from "@/lib/mail";
 import { PAPERS, plateMapPdf, type Paper, type SheetPlate } from "./sheet";
+import { BadRequest, Conflict } from "@/lib/errors";
 
 /** What the sheet needs of a plate, with its template's name and version. */
 export async function sheetPlate(p: Plate): Promise<SheetPlate> {
   const stats = p.stats as { layout?: PlateLayout; pieces?: PlacedPiece[] } | null;
-  if (p.jobState !== "done" || !stats?.layout || !stats.pieces) throw new ApiProblem(409, "not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
+  if (p.jobState !== "done" || !stats?.layout || !stats.pieces) throw new Conflict("not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
   const [t] = p.templateVersionId
     ? await db().select({ name: templates.name, version: templateVersions.version }).from(templateVersions).innerJoin(templates, eq(templates.id, templateVersions.templateId)).where(eq(templateVersions.id, p.templateVersionId))
     : [];
@@ -23,7 +23,7 @@ export const platePageUrl = (id: string) => appUrl(`/floor/plates/${id}`);
 
 export async function sheetResponse(req: Request, p: Plate): Promise<Response> {
   const paper = (new URL(req.url).searchParams.get("paper") ?? "a4").toLowerCase();
-  if (!(paper in PAPERS)) throw new ApiProblem(400, "bad_request", "paper must be a4 or letter.");
+  if (!(paper in PAPERS)) throw new BadRequest("bad_request", "paper must be a4 or letter.");
   const pdf = await plateMapPdf(await sheetPlate(p), platePageUrl(p.id), paper as Paper);
   const stem = (p.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
   return new Response(pdf as Uint8Array<ArrayBuffer>, {

@@ -2,12 +2,13 @@ import "server-only";
 import { and, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
 import { partUploads, parts, type Part, type PartUpload } from "@/db/schema";
-import { UserError, type Caller } from "@/lib/auth/guards";
+import { type Caller } from "@/lib/auth/guards";
 import { UNIT_MM, type Unit } from "@/lib/geometry/io/raw";
 import { enqueuePartUpload } from "@/lib/jobs/queue";
 import type { StoredBlob } from "@/lib/storage";
 import { inKitsRefusal } from "./in-kits";
 import { dropOrphans } from "./orphans";
+import { NotFound, Conflict, Invalid } from "@/lib/errors";
 
 export type StoredPart = { id: string; name: string; triangles: number; bodies: number; warnings: Part["warnings"]; repairs: string[] };
 
@@ -86,10 +87,10 @@ async function queueRework(caller: Caller, part: Part, options: { split?: boolea
  */
 export async function updatePart(caller: Caller, id: string, change: { name?: string; unit?: Unit; layFlat?: boolean }): Promise<{ part: Part; upload?: PartUpload }> {
   let part = await getPart(caller, id);
-  if (!part) throw new UserError("not_found", "No such part.");
+  if (!part) throw new NotFound("not_found", "No such part.");
   if (change.name !== undefined && change.name !== part.name) {
     const [row] = await db().update(parts).set({ name: change.name, updatedAt: new Date() }).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id))).returning();
-    if (!row) throw new UserError("not_found", "No such part.");
+    if (!row) throw new NotFound("not_found", "No such part.");
     part = row;
   }
   const unit = change.unit ?? (part.unit as Unit);
@@ -101,20 +102,20 @@ export async function updatePart(caller: Caller, id: string, change: { name?: st
 /** Split a stored multi-body part into one part per body, replacing it: queued for a build worker. */
 export async function splitPart(caller: Caller, id: string): Promise<PartUpload> {
   const part = await getPart(caller, id);
-  if (!part) throw new UserError("not_found", "No such part.");
-  if (part.bodies < 2) throw new UserError("single_body", "This part has one body; there is nothing to split.");
+  if (!part) throw new NotFound("not_found", "No such part.");
+  if (part.bodies < 2) throw new Invalid("single_body", "This part has one body; there is nothing to split.");
   await refuseIfInKits(caller, [id], "split");
   return queueRework(caller, part, { split: true, unit: part.unit as Unit, layFlat: part.layFlat });
 }
 
 async function refuseIfInKits(caller: Caller, ids: string[], verb: string) {
   const refusal = await inKitsRefusal(db(), caller.workspace.id, ids, verb);
-  if (refusal) throw new UserError("part_in_use", refusal);
+  if (refusal) throw new Conflict("part_in_use", refusal);
 }
 
 export async function deletePart(caller: Caller, id: string): Promise<void> {
   const part = await getPart(caller, id);
-  if (!part) throw new UserError("not_found", "No such part.");
+  if (!part) throw new NotFound("not_found", "No such part.");
   await refuseIfInKits(caller, [id], "delete");
   await db().delete(parts).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id)));
   await dropOrphans([part.blobKey]);

@@ -1,5 +1,5 @@
 import "server-only";
-import { apiError } from "@/lib/api/respond";
+import { Invalid, TooLarge, UnsupportedMedia } from "@/lib/errors";
 import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/io/sniff";
 import { ACCEPTED_FORMATS } from "@/lib/geometry/errors";
 import { blobStore, BlobTooLargeError, type StoredBlob } from "@/lib/storage";
@@ -10,7 +10,7 @@ export function maxUploadBytes(): number {
   return Number.isFinite(v) && v > 0 ? v : IMPORT_LIMITS.maxBytes;
 }
 
-export const tooLarge = (max: number, what = "The file") => apiError(413, "file_too_large", `${what} is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });
+export const tooLarge = (max: number, what = "The file") => new TooLarge("file_too_large", `${what} is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });
 
 /** How many of a stream's first bytes are kept to tell its format (sniffHead). */
 export const HEAD_BYTES = 4096;
@@ -60,15 +60,15 @@ export type StoredUpload = StoredBlob & { head: Uint8Array };
  * to `max` bytes. A declared Content-Length over the limit is refused before any of the body is read;
  * a body that turns out longer (chunked, or lying) is cut off the moment it passes the limit.
  */
-export async function storeBody(req: Request, max: number): Promise<StoredUpload | Response> {
+export async function storeBody(req: Request, max: number): Promise<StoredUpload> {
   const declared = Number(req.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > max) return tooLarge(max);
+  if (Number.isFinite(declared) && declared > max) throw tooLarge(max);
   const { stream, head } = keepHead(chunksOf(req.body));
   try {
     const stored = await blobStore().putStream(stream, { maxBytes: max });
     return { ...stored, head: head() };
   } catch (err) {
-    if (err instanceof BlobTooLargeError) return tooLarge(max);
+    if (err instanceof BlobTooLargeError) throw tooLarge(max);
     throw err;
   }
 }
@@ -78,9 +78,10 @@ export async function storeBody(req: Request, max: number): Promise<StoredUpload
  * what is wrong with the rest). A file named .stl that matches nothing still goes to the STL reader,
  * which names the problem, as long as it is long enough to be one.
  */
-export function plainRefusal(upload: StoredUpload, fileName: string): { status: number; code: string; message: string } | null {
-  if (upload.size === 0) return { status: 422, code: "empty", message: "the file is empty" };
+export function plainRefusal(upload: StoredUpload, fileName: string): Invalid | UnsupportedMedia | null {
+  const details = { file: fileName };
+  if (upload.size === 0) return new Invalid("empty", "the file is empty", details);
   if (sniffHead(upload.head, upload.size)) return null;
   if (upload.size >= 84 && /\.stl$/i.test(fileName)) return null;
-  return { status: 415, code: "not_a_mesh", message: `this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.` };
+  return new UnsupportedMedia("not_a_mesh", `this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.`, details);
 }

@@ -3,12 +3,12 @@ import { and, asc, desc, eq, ilike, isNull, or, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { templates, templateVersions, users, type TemplateVersion } from "@/db/schema";
 import { audit } from "@/lib/audit";
-import { UserError } from "@/lib/auth/errors";
 import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 import { describeChanges, templateBodySchema, type TemplateBody, type TemplateVariableDef } from "@/lib/geometry/template";
 import { billingOf } from "@/lib/billing/service";
 import { enqueueThumbnail } from "@/lib/jobs/queue";
+import { PlanLimit, NotFound, Conflict, Invalid } from "@/lib/errors";
 
 /**
  * Templates of a workspace, and the starters every workspace sees (workspace_id null). A template's
@@ -23,12 +23,12 @@ export function checkBody(input: unknown): TemplateBody {
   const r = templateBodySchema.safeParse(input);
   if (!r.success) {
     const issue = r.error.issues[0]!;
-    throw new UserError("invalid_template", issue.message, issue.path.join("."));
+    throw new Invalid("invalid_template", issue.message, undefined, issue.path.join("."));
   }
   const logo = r.data.options.marks.logo;
   if (logo) {
     const points = logoContours(logo, logo.width).reduce((n, p) => n + p.contours.reduce((m, c) => m + c.length, 0), 0);
-    if (points > LOGO_LIMITS.points) throw new UserError("invalid_template", `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.width} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")}.`, "options.marks.logo");
+    if (points > LOGO_LIMITS.points) throw new Invalid("invalid_template", `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.width} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")}.`, undefined, "options.marks.logo");
   }
   return r.data;
 }
@@ -63,7 +63,7 @@ export type TemplateRow = Awaited<ReturnType<typeof listTemplates>>[number];
 
 export async function getTemplate(workspaceId: string, id: string) {
   const [t] = await db().select().from(templates).where(and(eq(templates.id, id), visible(workspaceId)));
-  if (!t) throw new UserError("not_found", "No such template.");
+  if (!t) throw new NotFound("not_found", "No such template.");
   const versions = await db()
     .select({ v: templateVersions, by: users.name, byEmail: users.email })
     .from(templateVersions)
@@ -76,19 +76,19 @@ export async function getTemplate(workspaceId: string, id: string) {
 /** A template version a plate will use: the current one, or the one asked for. */
 export async function versionForPlate(workspaceId: string, templateId: string, version?: number): Promise<TemplateVersion & { templateName: string }> {
   const [t] = await db().select().from(templates).where(and(eq(templates.id, templateId), visible(workspaceId)));
-  if (!t) throw new UserError("not_found", "No such template.");
+  if (!t) throw new NotFound("not_found", "No such template.");
   const [v] = await db()
     .select()
     .from(templateVersions)
     .where(and(eq(templateVersions.templateId, t.id), eq(templateVersions.version, version ?? t.currentVersion)));
-  if (!v) throw new UserError("not_found", `The template has no version ${version}; its newest is ${t.currentVersion}.`);
+  if (!v) throw new NotFound("not_found", `The template has no version ${version}; its newest is ${t.currentVersion}.`);
   return { ...v, templateName: t.name };
 }
 
 async function writable(tx: Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0], actor: Actor, id: string) {
   const [t] = await tx.select().from(templates).where(and(eq(templates.id, id), visible(actor.workspaceId))).for("update");
-  if (!t) throw new UserError("not_found", "No such template.");
-  if (!t.workspaceId) throw new UserError("starter_read_only", "Starter templates cannot be changed: duplicate it, then edit the copy.");
+  if (!t) throw new NotFound("not_found", "No such template.");
+  if (!t.workspaceId) throw new Conflict("starter_read_only", "Starter templates cannot be changed: duplicate it, then edit the copy.");
   return t;
 }
 
@@ -96,7 +96,7 @@ async function writable(tx: Parameters<Parameters<ReturnType<typeof db>["transac
 async function checkPlan(actor: Actor, body: TemplateBody) {
   if (!body.options.marks.logo) return;
   const b = await billingOf(actor.workspaceId);
-  if (!b.effective.logos) throw new UserError("plan_limit", `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade under Settings → Billing.`, "options.marks.logo");
+  if (!b.effective.logos) throw new PlanLimit("plan_limit", `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade under Settings → Billing.`, undefined, "options.marks.logo");
 }
 
 export async function createTemplate(actor: Actor, input: { name: string; description?: string; body: unknown; note?: string }): Promise<{ id: string; versionId: string }> {
@@ -138,7 +138,7 @@ export async function saveVersion(actor: Actor, id: string, input: { body: unkno
 export async function restoreVersion(actor: Actor, id: string, version: number) {
   const { versions } = await getTemplate(actor.workspaceId, id);
   const old = versions.find((v) => v.version === version);
-  if (!old) throw new UserError("not_found", `The template has no version ${version}.`);
+  if (!old) throw new NotFound("not_found", `The template has no version ${version}.`);
   return saveVersion(actor, id, { body: { options: old.options, variables: old.variables }, restoredFrom: version });
 }
 

@@ -6,12 +6,12 @@ import { z } from "zod";
 import { db } from "@/db";
 import { plates } from "@/db/schema";
 import { createPlate, readPlateRequest, remakePlate } from "@/lib/api/plates";
-import { ApiProblem } from "@/lib/api/respond";
 import { textForm } from "@/lib/api/multipart";
 import { archiveKit, duplicateKit, saveKit } from "@/db/queries/kits";
 import { guardedAction } from "@/lib/auth/guards";
 import { idSchema } from "@/lib/validation/accounts";
 import { kitSchema } from "@/lib/validation/kits";
+import { AppError } from "@/lib/errors";
 
 export const saveKitAction = guardedAction(kitSchema, "kits:write", "editing kits", async (input, caller) => {
   const id = await saveKit(caller, input);
@@ -43,7 +43,7 @@ export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "ma
     revalidatePath("/plates");
     return { ok: true, data: { plateId: plate.id } };
   } catch (err) {
-    if (err instanceof ApiProblem) return { ok: false, code: err.code, message: err.message };
+    if (err instanceof AppError) return { ok: false, code: err.code, message: err.message };
     throw err;
   }
 });
@@ -55,7 +55,7 @@ export const remakePlateAction = guardedAction(z.object({ plateId: z.string().mi
     revalidatePath("/plates");
     return { ok: true, data: { plateId: plate.id }, message: "Making the plate again: it appears in the list when it is built." };
   } catch (err) {
-    if (err instanceof ApiProblem) return { ok: false, code: err.code, message: err.message };
+    if (err instanceof AppError) return { ok: false, code: err.code, message: err.message };
     throw err;
   }
 });

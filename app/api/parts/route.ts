@@ -1,6 +1,7 @@
 import { z } from "zod";
 import { PART_SORTS, searchParts } from "@/db/queries/parts";
-import { apiError, apiRoute } from "@/lib/api/respond";
+import { apiRoute } from "@/lib/api/respond";
+import { BadRequest } from "@/lib/errors";
 import { authorize } from "@/lib/auth/guards";
 import { UNIT_MM } from "@/lib/geometry/io/raw";
 import { queueUpload, uploadView } from "@/lib/parts/ingest";
@@ -43,14 +44,13 @@ const uploadQuery = z.object({
 export const POST = apiRoute(async (req: Request) => {
   const caller = await authorize("parts:write", "uploading parts");
   const parsed = uploadQuery.safeParse(Object.fromEntries(new URL(req.url).searchParams));
-  if (!parsed.success) return apiError(400, "bad_request", "Say the file's name as ?name=…", parsed.error.issues);
+  if (!parsed.success) throw new BadRequest("bad_request", "Say the file's name as ?name=…", parsed.error.issues);
   const q = parsed.data;
   const stored = await storeBody(req, maxUploadBytes());
-  if (stored instanceof Response) return stored;
   const refusal = plainRefusal(stored, q.name);
   if (refusal) {
     if (stored.created) await dropOrphans([stored.key]);
-    return apiError(refusal.status, refusal.code, refusal.message, { file: q.name });
+    throw refusal;
   }
   const upload = await queueUpload(caller, stored, q.name, { split: q.split === "1", unit: q.unit, layFlat: q.layFlat === "1" });
   const view = await uploadView(upload);

@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import { listKits } from "@/db/queries/library";
-import { requireCaller, UserError } from "@/lib/auth/guards";
+import { requireCaller } from "@/lib/auth/guards";
 import { can } from "@/lib/auth/permissions";
 import type { TemplateVariableDef } from "@/lib/geometry/template";
 import { when } from "@/lib/format";
@@ -10,6 +10,7 @@ import { DataTable, PageHeader } from "../../_components/page-header";
 import { ArchiveButton, DuplicateButton, RestoreButton } from "../_components/template-actions";
 import { TemplateThumb } from "../_components/thumb";
 import { UseInEditor } from "../_components/use-in-editor";
+import { NotFound } from "@/lib/errors";
 
 export const metadata: Metadata = { title: "Template" };
 
@@ -19,7 +20,7 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
   try {
     t = await getTemplate(caller.workspace.id, (await params).id);
   } catch (err) {
-    if (err instanceof UserError && err.code === "not_found") notFound();
+    if (err instanceof NotFound) notFound();
     throw err;
   }
   const { template, versions, current } = t;

@@ -1,9 +1,10 @@
-import { apiError, apiRoute, ApiProblem } from "@/lib/api/respond";
+import { apiError, apiRoute } from "@/lib/api/respond";
 import { createPlate, jobView, plateFile, plateView, readPlateRequest, waitForPlate } from "@/lib/api/plates";
 import { requireApiKey } from "@/lib/auth/api-guard";
 import { readMultipart } from "@/lib/api/multipart";
 import { dropOrphans } from "@/lib/parts/orphans";
 import { maxUploadBytes } from "@/lib/parts/upload";
+import { BadRequest, TooLarge, UnsupportedMedia } from "@/lib/errors";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -20,10 +21,10 @@ const syncWaitMs = () => Number(process.env.SLAB_SYNC_WAIT_MS ?? 20_000);
 export const POST = apiRoute(async (req: Request) => {
   const caller = await requireApiKey(req, "plates:write");
   const type = req.headers.get("content-type") ?? "";
-  if (!type.startsWith("multipart/form-data")) return apiError(415, "unsupported_media_type", "Send multipart/form-data with `part` files or a `kit` id.");
+  if (!type.startsWith("multipart/form-data")) throw new UnsupportedMedia("unsupported_media_type", "Send multipart/form-data with `part` files or a `kit` id.");
   const limit = maxUploadBytes();
   const declared = Number(req.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > limit) return apiError(413, "file_too_large", `The request is larger than the ${(limit / 1024 / 1024).toFixed(0)} MB limit.`);
+  if (Number.isFinite(declared) && declared > limit) throw new TooLarge("file_too_large", `The request is larger than the ${(limit / 1024 / 1024).toFixed(0)} MB limit.`, { limit });
   // Streamed: counted as it arrives (a chunked body declares no length), each part file stored on the way.
   const form = await readMultipart(req, { maxBytes: limit });
   let request;
@@ -35,7 +36,7 @@ export const POST = apiRoute(async (req: Request) => {
     throw err;
   }
   const idem = req.headers.get("idempotency-key");
-  if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem)) throw new ApiProblem(400, "bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
+  if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem)) throw new BadRequest("bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
   const { plate } = await createPlate(caller, request, idem);
   const asyncOnly = /respond-async/i.test(req.headers.get("prefer") ?? "");
   const done = asyncOnly ? plate : await waitForPlate(plate.id, syncWaitMs());

@@ -1,13 +1,14 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { notFound } from "next/navigation";
-import { requireCaller, UserError } from "@/lib/auth/guards";
+import { requireCaller } from "@/lib/auth/guards";
 import { can } from "@/lib/auth/permissions";
 import type { PlateLayout } from "@/lib/geometry/build-plate";
 import { slabTopSvg } from "@/lib/geometry/thumbnail";
 import { nextMoves, piecesOf, plateFloor, STATE_LABEL } from "@/lib/floor/service";
 import { when } from "@/lib/format";
 import { InspectionForm, MoveButtons, ReprintButton } from "../../_components/floor-controls";
+import { NotFound } from "@/lib/errors";
 
 export const metadata: Metadata = { title: "Plate on the floor" };
 
@@ -19,7 +20,7 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
   try {
     f = await plateFloor(caller.workspace.id, id);
   } catch (err) {
-    if (err instanceof UserError && err.code === "not_found") notFound();
+    if (err instanceof NotFound) notFound();
     throw err;
   }
   const { plate, events, inspections, reprints, original } = f;

@@ -1,7 +1,8 @@
-import { apiRoute, ApiProblem } from "@/lib/api/respond";
+import { apiRoute } from "@/lib/api/respond";
 import { plateFile } from "@/lib/api/plates";
 import { sessionPlate } from "@/lib/api/session-plates";
 import { authorize } from "@/lib/auth/guards";
+import { BadRequest } from "@/lib/errors";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -10,6 +11,6 @@ export const dynamic = "force-dynamic";
 export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
   const caller = await authorize("plates:download", "downloading plate files");
   const format = new URL(req.url).searchParams.get("format") ?? "3mf";
-  if (format !== "stl" && format !== "3mf") throw new ApiProblem(400, "bad_request", "format must be stl or 3mf.");
+  if (format !== "stl" && format !== "3mf") throw new BadRequest("bad_request", "format must be stl or 3mf.");
   return plateFile(await sessionPlate(caller, (await ctx.params).id), format);
 });

@@ -1,13 +1,13 @@
 import type { Metadata } from "next";
 import { notFound } from "next/navigation";
 import QRCode from "qrcode";
-import { requireCaller, UserError } from "@/lib/auth/guards";
+import { requireCaller } from "@/lib/auth/guards";
 import { cautionsFor } from "@/lib/floor/sheet";
 import { platePageUrl, sheetPlate } from "@/lib/floor/sheet-response";
 import { plateFloor } from "@/lib/floor/service";
 import { parseOptions } from "@/lib/geometry/options";
-import { ApiProblem } from "@/lib/api/respond";
 import { PrintButton } from "./print-button";
+import { AppError } from "@/lib/errors";
 
 export const metadata: Metadata = { title: "Plate map" };
 
@@ -20,7 +20,7 @@ export default async function SheetPage({ params }: { params: Promise<{ id: stri
   try {
     s = await sheetPlate((await plateFloor(caller.workspace.id, (await params).id)).plate);
   } catch (err) {
-    if ((err instanceof UserError && err.code === "not_found") || err instanceof ApiProblem) notFound();
+    if (err instanceof AppError) notFound();
     throw err;
   }
   const o = parseOptions(s.options);

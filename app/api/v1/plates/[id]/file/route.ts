@@ -1,6 +1,7 @@
-import { apiRoute, ApiProblem } from "@/lib/api/respond";
+import { apiRoute } from "@/lib/api/respond";
 import { plateFile, plateFor } from "@/lib/api/plates";
 import { requireApiKey } from "@/lib/auth/api-guard";
+import { BadRequest } from "@/lib/errors";
 
 export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
@@ -9,6 +10,6 @@ export const dynamic = "force-dynamic";
 export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
   const caller = await requireApiKey(req, "plates:read");
   const format = new URL(req.url).searchParams.get("format") ?? "3mf";
-  if (format !== "stl" && format !== "3mf") throw new ApiProblem(400, "bad_request", "format must be stl or 3mf.");
+  if (format !== "stl" && format !== "3mf") throw new BadRequest("bad_request", "format must be stl or 3mf.");
   return plateFile(await plateFor(caller, (await ctx.params).id), format);
 });
