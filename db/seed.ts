@@ -3,6 +3,7 @@
  * Idempotent: running it again changes nothing and keeps the same demo API key.
  */
 import { promises as fs } from "node:fs";
+import { parseEnv } from "@/lib/env";
 import path from "node:path";
 import { and, eq, isNull } from "drizzle-orm";
 import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, templates, templateVersions, users, workspaceBilling, workspaces, type Role } from "@/db/schema";
@@ -34,7 +35,8 @@ const DEMO_KEY_NAME = "Demo order system";
 export type DemoCredentials = { users: { email: string; password: string; role: Role }[]; apiKey: string };
 
 export function credentialsFile(): string {
-  return process.env.SLAB_CREDENTIALS_FILE ?? path.join(process.cwd(), ".data", "demo-credentials.json");
+  // Read afresh (not the cached env): the seed's own test points it elsewhere at run time.
+  return parseEnv(process.env).SLAB_CREDENTIALS_FILE ?? path.join(process.cwd(), ".data", "demo-credentials.json");
 }
 
 async function readSavedKey(): Promise<string | null> {

@@ -34,4 +34,14 @@ describe("lib/env secrets", () => {
     expect(() => requireStartupSecrets(parseEnv({ NODE_ENV: "development" }))).not.toThrow();
     expect(() => requireStartupSecrets(parseEnv({ NODE_ENV: "test" }))).not.toThrow();
   });
+
+  it("checks the tuning variables' ranges and gives their defaults", () => {
+    const e = parseEnv({});
+    expect([e.SLAB_SYNC_WAIT_MS, e.SLAB_JOB_EXPIRY_S, e.SLAB_CALLBACK_TIMEOUT_MS, e.SLAB_THREAD_NICE, e.SLAB_MAX_UPLOAD_BYTES]).toEqual([20_000, 60, 10_000, 19, 200 * 1024 * 1024]);
+    expect(parseEnv({ SLAB_THREAD_NICE: "5", SLAB_CALLBACK_RETRY_LIMIT: "0" })).toMatchObject({ SLAB_THREAD_NICE: 5, SLAB_CALLBACK_RETRY_LIMIT: 0 });
+    // Unix nice values run 0..19 for an unprivileged process (POSIX nice(3), setpriority(2)).
+    expect(() => parseEnv({ SLAB_THREAD_NICE: "25" })).toThrow(/SLAB_THREAD_NICE/);
+    expect(() => parseEnv({ SLAB_SYNC_WAIT_MS: "soon" })).toThrow(/SLAB_SYNC_WAIT_MS/);
+    expect(() => parseEnv({ SLAB_MAX_UPLOAD_BYTES: "-1" })).toThrow(/SLAB_MAX_UPLOAD_BYTES/);
+  });
 });

@@ -53,6 +53,27 @@ const schema = z.object({
   STRIPE_PRICE_FARM: z.string().default("price_farm_monthly"),
   /** Days a workspace keeps its paid plan after a failed payment. */
   SLAB_BILLING_GRACE_DAYS: z.coerce.number().min(0).default(7),
+  /** Largest upload accepted, bytes (library files and the plate API's whole body); default 200 MB. */
+  SLAB_MAX_UPLOAD_BYTES: z.coerce.number().int().min(1024).max(2 ** 31).default(200 * 1024 * 1024),
+  /** How long `POST /api/v1/plates` waits for the build before answering 202 with the job. */
+  SLAB_SYNC_WAIT_MS: z.coerce.number().int().min(0).max(120_000).default(20_000),
+  /** A build job not finished in this time is retried by the queue. */
+  SLAB_JOB_EXPIRY_S: z.coerce.number().int().min(5).max(3600).default(60),
+  /** How often the queue looks for expired jobs. */
+  SLAB_QUEUE_MAINTENANCE_S: z.coerce.number().int().min(1).max(3600).default(15),
+  /** Callback deliveries: tries after the first, seconds before the first retry (doubling), time per attempt. */
+  SLAB_CALLBACK_RETRY_LIMIT: z.coerce.number().int().min(0).max(20).default(5),
+  SLAB_CALLBACK_RETRY_DELAY_S: z.coerce.number().int().min(0).max(3600).default(5),
+  SLAB_CALLBACK_TIMEOUT_MS: z.coerce.number().int().min(100).max(120_000).default(10_000),
+  /** Hosts callbacks may reach though not public (test receivers on loopback); ignored in production unless the next is "1". */
+  SLAB_WEBHOOK_ALLOW_HOSTS: z.string().default(""),
+  SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION: z.string().optional(),
+  /** Build threads' scheduling priority (Unix nice, 0–19): builds yield the cores to the web process. */
+  SLAB_THREAD_NICE: z.coerce.number().int().min(0).max(19).default(19),
+  /** Builds one thread makes before it is replaced (bounds what a leak could cost). */
+  SLAB_THREAD_MAX_BUILDS: z.coerce.number().int().min(1).max(1_000_000).default(100),
+  /** Where the seed writes the demo accounts' passwords and API key. */
+  SLAB_CREDENTIALS_FILE: z.string().optional(),
 });
 
 export type Env = z.infer<typeof schema>;

@@ -18,6 +18,11 @@ export class AppError extends Error {
     super(message);
     this.name = new.target.name;
   }
+
+  /** Its HTTP status, read from the one table (services never choose it). */
+  get status(): number {
+    return httpStatus(this);
+  }
 }
 
 /** The request itself is malformed: not JSON, a cut-off body, a NUL in an id. */

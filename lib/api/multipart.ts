@@ -16,12 +16,6 @@ export type StreamedForm = {
   files: StoredFile[];
 };
 
-/** A form of text fields only (the slab editor's "make the plate", which names a kit). */
-export function textForm(values: Record<string, string | undefined>): StreamedForm {
-  const fields = new Map(Object.entries(values).filter((e): e is [string, string] => e[1] !== undefined));
-  return { get: (n) => fields.get(n) ?? null, has: (n) => fields.has(n), fileFields: new Set(), files: [] };
-}
-
 const tooLarge = (max: number) => new TooLarge("file_too_large", `The request is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit.`, { limit: max });
 
 /**

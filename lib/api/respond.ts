@@ -1,4 +1,5 @@
 import "server-only";
+import { env } from "@/lib/env";
 import { ZodError } from "zod";
 import { AppError, RateLimited, httpStatus } from "@/lib/errors";
 import { hasNul, isBadInputDbError } from "@/lib/db-errors";
@@ -38,7 +39,7 @@ export function crossSiteProblem(req: Request): Response | null {
 
 function sameOrigin(origin: string, req: Request): boolean {
   const own = new Set([new URL(req.url).origin]);
-  if (process.env.AUTH_URL) own.add(new URL(process.env.AUTH_URL).origin);
+  own.add(new URL(env().AUTH_URL).origin);
   const host = req.headers.get("host");
   if (host) own.add(`${new URL(req.url).protocol}//${host}`);
   return own.has(origin);

@@ -2,13 +2,15 @@ import "server-only";
 import { and, eq, isNull, lt, or } from "drizzle-orm";
 import { db } from "@/db";
 import { apiKeys, type ApiKeyScope } from "@/db/schema";
+import type { WorkspaceActor } from "./actor";
 import { hashApiKey, parseApiKeyPrefix } from "./api-keys";
 import { billingOf } from "@/lib/billing/service";
 import { rateLimited } from "./errors";
 import { hit } from "./rate-limit";
 import { Unauthorized, PlanLimit, Forbidden } from "@/lib/errors";
 
-export type ApiCaller = { keyId: string; workspaceId: string; scopes: ApiKeyScope[] };
+/** An order system acting through one of the workspace's API keys. */
+export type ApiCaller = WorkspaceActor & { apiKeyId: string; userId: null };
 
 /**
  * The caller of a public API route: `Authorization: Bearer <key>`, looked up by hash on every request
@@ -38,5 +40,5 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
     .update(apiKeys)
     .set({ lastUsedAt: new Date() })
     .where(and(eq(apiKeys.id, row.id), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, minuteAgo))));
-  return { keyId: row.id, workspaceId: row.workspaceId, scopes: row.scopes };
+  return { workspaceId: row.workspaceId, userId: null, apiKeyId: row.id, permissions: row.scopes };
 }

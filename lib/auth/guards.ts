@@ -1,4 +1,5 @@
 import "server-only";
+import { env } from "@/lib/env";
 import { and, asc, eq } from "drizzle-orm";
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
@@ -10,13 +11,16 @@ import { auth } from "./config";
 import { isBadInputDbError } from "@/lib/db-errors";
 import { forbidden, notSignedIn } from "./errors";
 import { can, type Permission } from "./permissions";
+import { permissionsOf, type WorkspaceActor } from "./actor";
 import { AppError, formMessage } from "@/lib/errors";
 
 export const WORKSPACE_COOKIE = "sw_workspace";
 
 export type SessionUser = { id: string; email: string; name: string | null };
 
-export type Caller = {
+/** A signed-in member acting in their active workspace, with what pages show about them. */
+export type Caller = WorkspaceActor & {
+  userId: string;
   user: SessionUser;
   workspace: { id: string; name: string; slug: string };
   role: Role;
@@ -53,6 +57,10 @@ export async function callerFor(user: SessionUser, wantedWorkspace?: string): Pr
   if (rows.length === 0) return null;
   const active = rows.find((r) => r.id === wantedWorkspace) ?? rows[0]!;
   return {
+    workspaceId: active.id,
+    userId: user.id,
+    apiKeyId: null,
+    permissions: permissionsOf(active.role),
     user,
     workspace: { id: active.id, name: active.name, slug: active.slug },
     role: active.role,
@@ -86,7 +94,7 @@ export async function authorize(permission: Permission, what: string): Promise<C
 
 /** Make a workspace the active one for this browser (the membership is still checked on every request). */
 export async function setActiveWorkspace(workspaceId: string): Promise<void> {
-  (await cookies()).set(WORKSPACE_COOKIE, workspaceId, { httpOnly: true, sameSite: "lax", path: "/", secure: process.env.AUTH_URL?.startsWith("https://") ?? false });
+  (await cookies()).set(WORKSPACE_COOKIE, workspaceId, { httpOnly: true, sameSite: "lax", path: "/", secure: env().AUTH_URL.startsWith("https://") });
 }
 
 /** Membership check for one workspace by id, straight from the database. */

@@ -4,6 +4,7 @@
  * that hit the WASM memory limit, so its memory (which WebAssembly never gives back) is renewed.
  */
 import { readFileSync } from "node:fs";
+import { env } from "@/lib/env";
 import os from "node:os";
 import path from "node:path";
 import { deflateRawSync, inflateRawSync } from "node:zlib";
@@ -41,12 +42,12 @@ export type BuildOutcome =
 // lowers its own priority and the web process (and the worker's queue loop) keep the CPU they need
 // when they share a machine with it (common practice for batch workers). SLAB_THREAD_NICE=0 turns it off.
 try {
-  os.setPriority(Number(process.env.SLAB_THREAD_NICE ?? 19));
+  os.setPriority(env().SLAB_THREAD_NICE);
 } catch {
   // not permitted here: run at normal priority
 }
 
-const MAX_BUILDS = Number(process.env.SLAB_THREAD_MAX_BUILDS ?? 100);
+const MAX_BUILDS = env().SLAB_THREAD_MAX_BUILDS;
 let builds = 0;
 let kernel: Promise<Kernel> | undefined;
 let fonts: ReturnType<typeof parseFontBook> | undefined;
@@ -81,7 +82,7 @@ function samplePieces() {
  * just an unused variable.
  */
 function tamperForTest(result: { stl?: Uint8Array }, variables: Record<string, string>) {
-  if (process.env.NODE_ENV !== "test" || variables.proof_tamper !== "turn-triangle" || !result.stl) return;
+  if (env().NODE_ENV !== "test" || variables.proof_tamper !== "turn-triangle" || !result.stl) return;
   const stl = result.stl.slice();
   // Swap the second and third corners of facet 0 (12 bytes each, after the 12-byte normal).
   const b = stl.slice(84 + 24, 84 + 36);

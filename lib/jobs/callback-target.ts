@@ -1,4 +1,5 @@
 import http from "node:http";
+import { env as appEnv } from "@/lib/env";
 import https from "node:https";
 import { lookup as dnsLookup } from "node:dns/promises";
 import type { LookupAddress } from "node:dns";
@@ -104,7 +105,7 @@ let warnedProduction = false;
  * NODE_ENV=production the list is ignored unless SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION=1 says it is
  * meant (e.g. a receiver on the same private network as a self-hosted install).
  */
-export function allowedHosts(env: NodeJS.ProcessEnv = process.env): string[] {
+export function allowedHosts(env: { SLAB_WEBHOOK_ALLOW_HOSTS?: string; SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION?: string; NODE_ENV?: string } = appEnv()): string[] {
   const list = (env.SLAB_WEBHOOK_ALLOW_HOSTS ?? "").split(",").map((h) => h.trim().toLowerCase().replace(/^\[|\]$/g, "")).filter(Boolean);
   if (list.length && env.NODE_ENV === "production" && env.SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION !== "1") {
     if (!warnedProduction) console.warn("[webhook] SLAB_WEBHOOK_ALLOW_HOSTS is ignored in production; set SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION=1 to keep it");

@@ -16,7 +16,7 @@ export const PLATE_CHANNEL = "slab_plates";
  * another (short on purpose: a dead worker costs seconds, not hours). Builds take about a second.
  */
 export function jobExpirySeconds(): number {
-  return Number(process.env.SLAB_JOB_EXPIRY_S ?? 60);
+  return env().SLAB_JOB_EXPIRY_S;
 }
 
 /** How often the queue looks for expired jobs (those whose worker died) to hand them out again. */
@@ -24,7 +24,7 @@ const g = globalThis as unknown as { __slabBoss?: Promise<PgBoss> };
 
 export function boss(): Promise<PgBoss> {
   g.__slabBoss ??= (async () => {
-    const b = new PgBoss({ connectionString: env().DATABASE_URL, max: 4, maintenanceIntervalSeconds: Number(process.env.SLAB_QUEUE_MAINTENANCE_S ?? 15) });
+    const b = new PgBoss({ connectionString: env().DATABASE_URL, max: 4, maintenanceIntervalSeconds: env().SLAB_QUEUE_MAINTENANCE_S });
     b.on("error", (err) => console.error("[queue]", err));
     await b.start();
     await b.createQueue(BUILD_QUEUE, { name: BUILD_QUEUE, retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
@@ -50,7 +50,6 @@ export async function enqueueThumbnail(templateVersionId: string): Promise<strin
   return id;
 }
 
-const num = (v: string | undefined, fallback: number) => (v !== undefined && v !== "" && Number.isFinite(Number(v)) ? Number(v) : fallback);
 
 /**
  * A delivery's schedule: 1 + `retryLimit` attempts, each given `timeoutMs`; pg-boss's backoff waits
@@ -59,12 +58,12 @@ const num = (v: string | undefined, fallback: number) => (v !== undefined && v !
  */
 export function callbackRetry(): { retryLimit: number; retryDelay: number; retryBackoff: true; expireInSeconds: number } {
   const timeoutS = Math.ceil(callbackTimeoutMs() / 1000);
-  return { retryLimit: num(process.env.SLAB_CALLBACK_RETRY_LIMIT, 5), retryDelay: num(process.env.SLAB_CALLBACK_RETRY_DELAY_S, 5), retryBackoff: true, expireInSeconds: Math.max(30, 3 * timeoutS) };
+  return { retryLimit: env().SLAB_CALLBACK_RETRY_LIMIT, retryDelay: env().SLAB_CALLBACK_RETRY_DELAY_S, retryBackoff: true, expireInSeconds: Math.max(30, 3 * timeoutS) };
 }
 
 /** How long one delivery attempt may take (connect, send, status line) before it counts as failed. */
 export function callbackTimeoutMs(): number {
-  return num(process.env.SLAB_CALLBACK_TIMEOUT_MS, 10_000);
+  return env().SLAB_CALLBACK_TIMEOUT_MS;
 }
 
 /** Queue a signed webhook event; the worker delivers it (and retries it) from CALLBACK_QUEUE. */

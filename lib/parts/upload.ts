@@ -1,4 +1,5 @@
 import "server-only";
+import { env } from "@/lib/env";
 import { Invalid, TooLarge, UnsupportedMedia } from "@/lib/errors";
 import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/io/sniff";
 import { ACCEPTED_FORMATS } from "@/lib/geometry/errors";
@@ -6,8 +7,7 @@ import { blobStore, BlobTooLargeError, type StoredBlob } from "@/lib/storage";
 
 /** Largest mesh upload accepted, bytes (SLAB_MAX_UPLOAD_BYTES overrides the engine's 200 MB default). */
 export function maxUploadBytes(): number {
-  const v = Number(process.env.SLAB_MAX_UPLOAD_BYTES);
-  return Number.isFinite(v) && v > 0 ? v : IMPORT_LIMITS.maxBytes;
+  return env().SLAB_MAX_UPLOAD_BYTES;
 }
 
 export const tooLarge = (max: number, what = "The file") => new TooLarge("file_too_large", `${what} is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });

@@ -1,4 +1,5 @@
 import { execFileSync } from "node:child_process";
+import { permissionsOf, systemActor } from "@/lib/auth/actor";
 import { createHmac } from "node:crypto";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -113,7 +114,7 @@ describe("inspection", () => {
     const piece3 = piecesOf(p!).find((x) => x.number === 3)!;
     received.length = 0;
 
-    const r = await recordInspection({ workspaceId, userId: operatorId }, id, [{ number: 3, state: "missing" }]);
+    const r = await recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [{ number: 3, state: "missing" }]);
     expect(r.to).toBe("reprint_needed");
     const [after] = await db().select().from(plates).where(eq(plates.id, id));
     expect(after!.floorState).toBe("reprint_needed");
@@ -133,7 +134,7 @@ describe("inspection", () => {
     expect(createHmac("sha256", ws!.webhookSecret!).update(`${m[1]}.${ev.body}`).digest("hex")).toBe(m[2]);
     expect(JSON.parse(ev.body)).toMatchObject({ event: "inspection", plate: { id }, pieces: [{ number: 3, state: "missing" }] });
 
-    const reprint = await makeReprint({ workspaceId, userId: operatorId }, id);
+    const reprint = await makeReprint({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id);
     expect([reprint.reprintOf, reprint.source, reprint.pieceCount, reprint.templateVersionId]).toEqual([id, "reprint", 1, p!.templateVersionId]);
     for (let i = 0; i < 100; i++) {
       const [x] = await db().select().from(plates).where(eq(plates.id, reprint.id));
@@ -152,9 +153,9 @@ describe("inspection", () => {
 
   it("a defective piece needs a note; a piece the plate does not have is refused", async () => {
     const id = await makePlate();
-    await expect(recordInspection({ workspaceId, userId: operatorId }, id, [{ number: 2, state: "defective" }])).rejects.toThrow(/Say what is wrong with piece 2/);
-    await expect(recordInspection({ workspaceId, userId: operatorId }, id, [{ number: 99, state: "missing" }])).rejects.toThrow(/no piece 99/);
-    const ok = await recordInspection({ workspaceId, userId: operatorId }, id, "all-present");
+    await expect(recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [{ number: 2, state: "defective" }])).rejects.toThrow(/Say what is wrong with piece 2/);
+    await expect(recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [{ number: 99, state: "missing" }])).rejects.toThrow(/no piece 99/);
+    const ok = await recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, "all-present");
     expect(ok.to).toBe("done");
   });
 });
@@ -176,12 +177,12 @@ describe("first-pass yield", () => {
     await seed(kitA!.id, [1, 0], [0, 0]); // failed first, fine after the reprint: still a first-pass failure
     await seed(kitB!.id, [0, 0]);
     await seed(kitB!.id, [0, 2]);
-    const all = await firstPassYield(ws!.id);
+    const all = await firstPassYield(systemActor(ws!.id));
     expect([all.inspected, all.passed, all.yield]).toEqual([5, 3, 0.6]);
     expect(all.weeks).toEqual([{ week: "2026-11-16", inspected: 5, passed: 3 }]); // ISO weeks start on Monday
-    const a = await firstPassYield(ws!.id, kitA!.id);
+    const a = await firstPassYield(systemActor(ws!.id), kitA!.id);
     expect([a.inspected, a.passed]).toEqual([3, 2]);
-    const b = await firstPassYield(ws!.id, kitB!.id);
+    const b = await firstPassYield(systemActor(ws!.id), kitB!.id);
     expect(b.yield).toBe(0.5);
     await db().delete(workspaces).where(eq(workspaces.id, ws!.id));
   });

@@ -3,7 +3,8 @@ import { and, eq, isNull } from "drizzle-orm";
 import { beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { kits, plates, templates, users, workspaces } from "@/db/schema";
-import { remakePlate } from "@/lib/api/plates";
+import { remakePlate } from "@/lib/plates/create";
+import { permissionsOf } from "@/lib/auth/actor";
 import { createTemplate, saveVersion } from "@/lib/templates/service";
 import { baseUrl } from "../support/http";
 
@@ -101,7 +102,7 @@ describe("plates from a template", () => {
     expect(v2.status).toBe(200);
     expect((await bytes(v2)).equals(v1Bytes)).toBe(false); // the newest version is another slab
 
-    const again = await remakePlate(workspaceId, v1Plate, designerId);
+    const again = await remakePlate({ workspaceId, userId: designerId, apiKeyId: null, permissions: permissionsOf("designer") }, v1Plate);
     expect((await fileOf(again.id, "stl")).equals(v1Bytes)).toBe(true);
     // 3MF too (dated by the plate's {date}, so remaking on another day gives the same bytes).
     expect((await fileOf(again.id, "3mf")).equals(await fileOf(v1Plate, "3mf"))).toBe(true);

@@ -15,7 +15,7 @@ const ORDER: FloorState[] = ["to_print", "printing", "to_inspect", "reprint_need
 export default async function FloorPage({ searchParams }: { searchParams: Promise<{ q?: string }> }) {
   const caller = await requireCaller();
   const { q = "" } = await searchParams;
-  const { counts, lists } = await floorQueue(caller.workspace.id, q);
+  const { counts, lists } = await floorQueue(caller, q);
   const total = Object.values(counts).reduce((a, b) => a + (b ?? 0), 0);
   const mayMove = can(caller.role, "inspections:record");
   return (

@@ -45,9 +45,9 @@ function YieldChart({ weeks, label }: { weeks: { week: string; inspected: number
 
 export default async function HistoryPage() {
   const caller = await requireCaller();
-  const all = await firstPassYield(caller.workspace.id);
-  const kits = await kitsWithInspections(caller.workspace.id);
-  const perKit = await Promise.all(kits.map(async (k) => ({ kit: k, y: await firstPassYield(caller.workspace.id, k.id) })));
+  const all = await firstPassYield(caller);
+  const kits = await kitsWithInspections(caller);
+  const perKit = await Promise.all(kits.map(async (k) => ({ kit: k, y: await firstPassYield(caller, k.id) })));
   return (
     <>
       <PageHeader title="Inspection history" lead="First-pass yield: plates whose first inspection found every piece present and none defective, over plates inspected." />

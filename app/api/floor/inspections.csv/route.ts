@@ -16,7 +16,7 @@ const cell = (v: unknown) => {
 /** GET /api/floor/inspections.csv — every inspection of the workspace, one row per piece checked. */
 export const GET = apiRoute(async () => {
   const caller = await authorize("workspace:view", "exporting inspections");
-  const rows = await inspectionRows(caller.workspace.id);
+  const rows = await inspectionRows(caller);
   const lines = [["inspected_at", "plate_id", "plate", "kit", "inspector", "first_inspection", "piece", "part", "state", "note"].join(",")];
   for (const r of rows) {
     const pieces = ((r.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? []);

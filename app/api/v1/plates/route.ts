@@ -1,5 +1,9 @@
 import { apiError, apiRoute } from "@/lib/api/respond";
-import { createPlate, jobView, plateFile, plateView, readPlateRequest, waitForPlate } from "@/lib/api/plates";
+import { env } from "@/lib/env";
+import { jobView, orderFromForm, plateFile, plateView } from "@/lib/api/plates";
+import { createPlate } from "@/lib/plates/create";
+import { resolvePlateRequest } from "@/lib/plates/request";
+import { waitForPlate } from "@/lib/plates/wait";
 import { requireApiKey } from "@/lib/auth/api-guard";
 import { readMultipart } from "@/lib/api/multipart";
 import { dropOrphans } from "@/lib/parts/orphans";
@@ -10,7 +14,7 @@ export const runtime = "nodejs";
 export const dynamic = "force-dynamic";
 
 /** How long a request waits for its build before answering 202 with the job (SLAB_SYNC_WAIT_MS, default 20 s). */
-const syncWaitMs = () => Number(process.env.SLAB_SYNC_WAIT_MS ?? 20_000);
+const syncWaitMs = () => env().SLAB_SYNC_WAIT_MS;
 
 /**
  * POST /api/v1/plates — multipart: `part` files (or `kit`), `quantity`, `options`, `variables`,
@@ -29,7 +33,7 @@ export const POST = apiRoute(async (req: Request) => {
   const form = await readMultipart(req, { maxBytes: limit });
   let request;
   try {
-    request = await readPlateRequest(caller, form, new URL(req.url).searchParams.get("format"));
+    request = await resolvePlateRequest(caller, orderFromForm(form, new URL(req.url).searchParams.get("format")));
   } catch (err) {
     // A refused request keeps none of the files it brought.
     await dropOrphans(form.files.filter((f) => f.created).map((f) => f.key));
@@ -37,9 +41,9 @@ export const POST = apiRoute(async (req: Request) => {
   }
   const idem = req.headers.get("idempotency-key");
   if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem)) throw new BadRequest("bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
-  const { plate } = await createPlate(caller, request, idem);
+  const { plate } = await createPlate(caller, request.spec, { source: "api", ...(idem !== null ? { idempotency: { key: idem, requestHash: request.requestHash } } : {}) });
   const asyncOnly = /respond-async/i.test(req.headers.get("prefer") ?? "");
-  const done = asyncOnly ? plate : await waitForPlate(plate.id, syncWaitMs());
+  const done = asyncOnly ? plate : await waitForPlate(caller, plate.id, syncWaitMs());
   if (done.jobState === "failed") {
     const e = done.error ?? { code: "build_failed", message: "The build failed." };
     return apiError(422, e.code, e.message, { plate: { id: done.id }, ...(e.code === "findings" ? { findings: e.details } : e.details ? { details: e.details } : {}) }, { "X-Plate-Id": done.id });

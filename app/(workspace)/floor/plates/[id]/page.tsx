@@ -18,7 +18,7 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
   const caller = await requireCaller(`/floor/plates/${id}`);
   let f;
   try {
-    f = await plateFloor(caller.workspace.id, id);
+    f = await plateFloor(caller, id);
   } catch (err) {
     if (err instanceof NotFound) notFound();
     throw err;

@@ -1,5 +1,6 @@
 import { apiRoute } from "@/lib/api/respond";
-import { jobView, plateByJob } from "@/lib/api/plates";
+import { plateByJob } from "@/db/queries/plates";
+import { jobView } from "@/lib/api/plates";
 import { requireApiKey } from "@/lib/auth/api-guard";
 
 export const runtime = "nodejs";

@@ -1,5 +1,6 @@
 import { apiRoute } from "@/lib/api/respond";
-import { plateFor, plateView } from "@/lib/api/plates";
+import { plateById } from "@/db/queries/plates";
+import { plateView } from "@/lib/api/plates";
 import { requireApiKey } from "@/lib/auth/api-guard";
 
 export const runtime = "nodejs";
@@ -8,5 +9,5 @@ export const dynamic = "force-dynamic";
 /** GET /api/v1/plates/{id} — the plate: status, pieces, layout, findings, estimates (scope plates:read). */
 export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
   const caller = await requireApiKey(req, "plates:read");
-  return Response.json(plateView(await plateFor(caller, (await ctx.params).id)));
+  return Response.json(plateView(await plateById(caller, (await ctx.params).id)));
 });

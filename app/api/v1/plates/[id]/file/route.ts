@@ -1,5 +1,6 @@
 import { apiRoute } from "@/lib/api/respond";
-import { plateFile, plateFor } from "@/lib/api/plates";
+import { plateById } from "@/db/queries/plates";
+import { plateFile } from "@/lib/api/plates";
 import { requireApiKey } from "@/lib/auth/api-guard";
 import { BadRequest } from "@/lib/errors";
 
@@ -11,5 +12,5 @@ export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: st
   const caller = await requireApiKey(req, "plates:read");
   const format = new URL(req.url).searchParams.get("format") ?? "3mf";
   if (format !== "stl" && format !== "3mf") throw new BadRequest("bad_request", "format must be stl or 3mf.");
-  return plateFile(await plateFor(caller, (await ctx.params).id), format);
+  return plateFile(await plateById(caller, (await ctx.params).id), format);
 });
