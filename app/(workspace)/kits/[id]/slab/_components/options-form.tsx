@@ -1,170 +1,18 @@
 "use client";
 
 import { createContext, useContext, useId, useState } from "react";
-import type { Finding } from "@/lib/geometry/checks";
 import { get, useFieldArray, type FieldErrors, type Path, type Resolver, type UseFormReturn } from "react-hook-form";
 import { ENGRAVING_FONTS } from "@/lib/geometry/fonts";
 import { importSvgLogo, LogoError } from "@/lib/geometry/marks/logo";
-import { DEFAULT_OPTIONS, deepestEngraving, MATERIALS, slabOptionsSchema, type Depth, type LogoMark, type MarkPosition, type SlabOptionsInput } from "@/lib/geometry/options";
-import { BUILT_IN_VARIABLES, usedPlaceholders } from "@/lib/geometry/template";
+import { MATERIALS } from "@/lib/geometry/options";
+import { BEDS, formProblems, newLine as line, valuePlaceholders, type FieldNotes, type FormValues, type Relief, type Where } from "./form-model";
 
 /**
- * The slab editor's options form: react-hook-form over values shaped for people (a bed picked by
- * size, a position picked from a list), turned into the slab builder's canonical options and checked
- * by the engine's own zod schema, whose messages are shown at their fields.
+ * The slab editor's options form: react-hook-form over the form model (form-model.ts), checked by
+ * the engine's own zod schema, whose messages are shown at their fields.
  */
 
-export const BEDS = [[180, 180], [220, 220], [235, 235], [250, 210], [256, 256], [300, 300], [350, 350], [400, 400]] as const;
-type Where = "auto" | "top" | "bottom" | "at";
-type FontId = keyof typeof ENGRAVING_FONTS;
-type Relief = "engrave" | "emboss";
-/** `maxWidth` and `maxSize` are NaN when not set (an empty number field). */
-export type LineForm = { value: string; size: number; font: FontId; relief: Relief; depth: number; where: Where; x: number; y: number; maxWidth: number };
-export type QrForm = { value: string; module: number; level: "L" | "M" | "Q" | "H"; relief: Relief; depth: number; where: Where; x: number; y: number; maxSize: number };
-export type LogoForm = { name: string; paths: LogoMark["paths"]; box: LogoMark["box"]; width: number; relief: Relief; depth: number; where: Where; x: number; y: number };
-export type FormValues = {
-  slab: { shape: "rounded-rect" | "disc" | "contour"; thickness: number; gap: number; cornerRadius: number; margin: number };
-  bed: string;
-  bedWidth: number;
-  bedDepth: number;
-  spacing: number;
-  copies: number;
-  material: keyof typeof MATERIALS;
-  nozzle: number;
-  layerHeight: number;
-  firstLayerHeight: number;
-  pricePerKg: number;
-  text: LineForm[];
-  qr: QrForm;
-  logo: LogoForm | null;
-  numbers: boolean;
-  numberStyle: { size: number; font: FontId; depth: number };
-  outlines: "ring" | "pocket" | "none";
-  ringStyle: { width: number; clearance: number; depth: number };
-  /** Values for the {placeholders}, shown in the preview and used for the plate. */
-  samples: Record<string, string>;
-};
-
-type Placement = { piece: number; x: number; y: number; rotation: number };
-
-const D = DEFAULT_OPTIONS;
-const line = (value: string, size: number): LineForm => ({ value, size, font: "sans-bold", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0, maxWidth: NaN });
-export const DEFAULT_VALUES: FormValues = {
-  slab: { ...D.slab },
-  bed: "220x220",
-  bedWidth: 220,
-  bedDepth: 220,
-  spacing: D.layout.spacing,
-  copies: 1,
-  material: D.material,
-  nozzle: D.nozzle,
-  layerHeight: D.layerHeight,
-  firstLayerHeight: D.firstLayerHeight,
-  pricePerKg: D.pricePerKg,
-  text: [line("ORDER {order}", 5), line("Thank you, {customer}!", 4)],
-  qr: { value: "", module: 1.2, level: "M", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0, maxSize: NaN },
-  logo: null,
-  numbers: true,
-  numberStyle: { size: D.marks.numberStyle.size, font: D.marks.numberStyle.font, depth: 0.4 },
-  outlines: "ring",
-  ringStyle: { width: D.marks.ringStyle.width, clearance: D.marks.ringStyle.clearance, depth: 0.4 },
-  samples: { order: "10482", customer: "Sam" },
-};
-
-const position = (where: Where, x: number, y: number): MarkPosition => (where === "at" ? { x, y } : where);
-const optional = <K extends string>(k: K, v: number) => (Number.isFinite(v) ? ({ [k]: v } as Record<K, number>) : {});
-
-/** Placeholders used in the text and QR values that the person fills ({date} and {kit} fill themselves). */
-export function valuePlaceholders(f: Pick<FormValues, "text" | "qr">): string[] {
-  return usedPlaceholders({ marks: { text: f.text.filter((t) => t.value.trim()).map((t) => ({ value: t.value })), ...(f.qr.value.trim() ? { qr: { value: f.qr.value } } : {}) } }).filter((n) => !(BUILT_IN_VARIABLES as readonly string[]).includes(n));
-}
-
-export function formToOptions(f: FormValues, placements?: Placement[]): SlabOptionsInput {
-  const [w, d] = f.bed === "custom" ? [f.bedWidth, f.bedDepth] : f.bed.split("x").map(Number);
-  return {
-    slab: { ...f.slab },
-    layout: { spacing: f.spacing, bed: { width: w!, depth: d! }, copies: f.copies, ...(placements ? { placements } : {}) },
-    marks: {
-      // An emptied line is left out rather than refused, so a line can be retyped without an error.
-      text: f.text.filter((t) => t.value.trim()).map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, position: position(t.where, t.x, t.y), ...optional("maxWidth", t.maxWidth) })),
-      ...(f.qr.value.trim() ? { qr: { value: f.qr.value, module: f.qr.module, level: f.qr.level, relief: f.qr.relief, depth: f.qr.depth, position: position(f.qr.where, f.qr.x, f.qr.y), ...optional("maxSize", f.qr.maxSize) } } : {}),
-      ...(f.logo ? { logo: { name: f.logo.name, paths: f.logo.paths, box: f.logo.box, width: f.logo.width, relief: f.logo.relief, depth: f.logo.depth, position: position(f.logo.where, f.logo.x, f.logo.y) } } : {}),
-      numbers: f.numbers,
-      numberStyle: { ...f.numberStyle },
-      outlines: f.outlines,
-      ringStyle: { ...f.ringStyle },
-    },
-    material: f.material,
-    nozzle: f.nozzle,
-    layerHeight: f.layerHeight,
-    firstLayerHeight: f.firstLayerHeight,
-    pricePerKg: f.pricePerKg,
-  };
-}
-
-/** The other way: canonical options (a template's, say) as form values. */
-export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samples"] = {}): FormValues {
-  const o = slabOptionsSchema.parse(input);
-  const preset = BEDS.find(([w, d]) => w === o.layout.bed.width && d === o.layout.bed.depth);
-  const where = (p: MarkPosition) => (typeof p === "object" ? { where: "at" as const, x: p.x, y: p.y } : { where: p, x: 0, y: 0 });
-  // The form holds depths as numbers: "as deep as allowed" shows as that depth.
-  const deepest = Math.round(deepestEngraving(o) * 100) / 100;
-  const depth = (d: Depth | undefined) => (d === "max" ? deepest : (d ?? Math.min(0.4, deepest)));
-  return {
-    slab: { ...o.slab },
-    bed: preset ? `${preset[0]}x${preset[1]}` : "custom",
-    bedWidth: o.layout.bed.width,
-    bedDepth: o.layout.bed.depth,
-    spacing: o.layout.spacing,
-    copies: o.layout.copies,
-    material: o.material,
-    nozzle: o.nozzle,
-    layerHeight: o.layerHeight,
-    firstLayerHeight: o.firstLayerHeight,
-    pricePerKg: o.pricePerKg,
-    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: depth(t.depth), ...where(t.position), maxWidth: t.maxWidth ?? NaN })),
-    qr: o.marks.qr ? { value: o.marks.qr.value, module: o.marks.qr.module, level: o.marks.qr.level, relief: o.marks.qr.relief, depth: depth(o.marks.qr.depth), ...where(o.marks.qr.position), maxSize: o.marks.qr.maxSize ?? NaN } : DEFAULT_VALUES.qr,
-    logo: o.marks.logo ? { name: o.marks.logo.name, paths: o.marks.logo.paths, box: o.marks.logo.box, width: o.marks.logo.width, relief: o.marks.logo.relief, depth: depth(o.marks.logo.depth), ...where(o.marks.logo.position) } : null,
-    numbers: o.marks.numbers,
-    numberStyle: { ...o.marks.numberStyle, depth: depth(o.marks.numberStyle.depth) },
-    outlines: o.marks.outlines,
-    ringStyle: { ...o.marks.ringStyle, depth: depth(o.marks.ringStyle.depth) },
-    samples,
-  };
-}
-
-/** Where an option's message belongs in the form. */
-export function formPath(optionPath: (string | number | symbol)[]): string {
-  const p = optionPath.map(String);
-  if (p[0] === "layout" && p[1] === "bed") return p[2] === undefined ? "bed" : p[2] === "depth" ? "bedDepth" : "bedWidth";
-  if (p[0] === "layout") return p[1]!;
-  if (p[0] === "marks" && p[1] === "text") {
-    const f = p[3] === "position" ? (p[4] ?? "x") : p[3];
-    // Text lines are sent without the emptied ones: the index is mapped back by the caller.
-    return `text.${p[2]}.${f}`;
-  }
-  if (p[0] === "marks" && p[1] === "qr") return p[2] === "position" ? `qr.${p[3] ?? "x"}` : `qr.${p[2]}`;
-  if (p[0] === "marks" && p[1] === "logo") return p[2] === "position" ? `logo.${p[3] ?? "x"}` : `logo.${p[2] ?? "width"}`;
-  if (p[0] === "marks") return p.slice(1).join(".");
-  return p.join(".");
-}
-
-/** The engine's findings that name an option, by the form field they belong to (shown under it). */
-export type FieldNotes = Map<string, Pick<Finding, "severity" | "message" | "code">[]>;
 export const FieldNotesContext = createContext<FieldNotes>(new Map());
-
-export function fieldNotes(findings: Finding[], values: Pick<FormValues, "text">): FieldNotes {
-  const kept = values.text.map((t, i) => (t.value.trim() ? i : -1)).filter((i) => i >= 0);
-  const out: FieldNotes = new Map();
-  for (const f of findings) {
-    if (!f.field || f.severity === "info") continue;
-    let path = formPath(f.field);
-    const m = /^text\.(\d+)\.(.*)$/.exec(path);
-    if (m) path = `text.${kept[Number(m[1])] ?? m[1]}.${m[2]}`;
-    out.set(path, [...(out.get(path) ?? []), { severity: f.severity, message: f.message, code: f.code }]);
-  }
-  return out;
-}
 
 function Notes({ name, id }: { name: string; id: string }) {
   const notes = useContext(FieldNotesContext).get(name);
@@ -181,23 +29,17 @@ function Notes({ name, id }: { name: string; id: string }) {
   );
 }
 
-const friendly = (message: string) => (/received nan|expected number/i.test(message) ? "Enter a number." : message);
-
 /** The engine's schema as the form's resolver: one check, one set of messages, at their fields. */
 export const slabResolver: Resolver<FormValues> = async (values) => {
-  const r = slabOptionsSchema.safeParse(formToOptions(values));
-  if (r.success) return { values, errors: {} };
-  const kept = values.text.map((t, i) => (t.value.trim() ? i : -1)).filter((i) => i >= 0);
+  const problems = formProblems(values);
+  if (!problems.length) return { values, errors: {} };
   const errors: Record<string, unknown> = {};
-  for (const issue of r.error.issues) {
-    let path = formPath(issue.path as (string | number)[]);
-    const m = /^text\.(\d+)\.(.*)$/.exec(path);
-    if (m) path = `text.${kept[Number(m[1])] ?? m[1]}.${m[2]}`;
+  for (const { path, type, message } of problems) {
     if (get(errors, path)) continue;
-    let node = errors as Record<string, unknown>;
+    let node = errors;
     const keys = path.split(".");
     keys.forEach((k, i) => {
-      if (i === keys.length - 1) node[k] = { type: issue.code, message: friendly(issue.message) };
+      if (i === keys.length - 1) node[k] = { type, message };
       else node = (node[k] ??= {}) as Record<string, unknown>;
     });
   }
