@@ -155,6 +155,18 @@ describe("each field's conversion", () => {
     expect(formProblems(DEFAULT_VALUES)).toEqual([]);
   });
 
+  it("an out-of-range number keeps the schema's own message", () => {
+    // The gap's range in the options table is 0.1–0.5 mm; zod words its range messages "Too big:
+    // expected number to be <=0.5", which must not be read as an empty field.
+    const [big] = formProblems(values({ slab: { ...DEFAULT_VALUES.slab, gap: 0.9 } }));
+    expect(big).toMatchObject({ path: "slab.gap", type: "too_big" });
+    expect(big?.message).not.toBe("Enter a number.");
+    expect(big?.message).toMatch(/0\.5/);
+    const [small] = formProblems(values({ slab: { ...DEFAULT_VALUES.slab, gap: 0.01 } }));
+    expect(small).toMatchObject({ path: "slab.gap", type: "too_small" });
+    expect(small?.message).toMatch(/0\.1/);
+  });
+
   it("the QR code: an empty or blank value means no code", () => {
     expect(formToOptions(values({ qr: { ...DEFAULT_VALUES.qr, value: "" } })).marks).not.toHaveProperty("qr");
     expect(formToOptions(values({ qr: { ...DEFAULT_VALUES.qr, value: "  " } })).marks).not.toHaveProperty("qr");

@@ -207,8 +207,11 @@ export function fieldNotes(findings: Finding[], values: Pick<FormValues, "text">
   return out;
 }
 
-/** zod's words for a number field left empty (NaN), said the way the form says it. */
-export const friendlyMessage = (message: string) => (/received nan|expected number/i.test(message) ? "Enter a number." : message);
+/**
+ * zod's words for a number field left empty (NaN), said the way the form says it. Only a wrong type
+ * is: zod's range messages also say "expected number" ("Too big: expected number to be <=0.5").
+ */
+export const friendlyMessage = (issue: { code: string; message: string }) => (issue.code === "invalid_type" && /expected number/i.test(issue.message) ? "Enter a number." : issue.message);
 
 /** One message per form field, the first the schema gives for it, in field order. */
 export type FormProblems = { path: string; type: string; message: string }[];
@@ -223,7 +226,7 @@ export function formProblems(values: FormValues): FormProblems {
     const path = fieldPath(issue.path, values);
     if (seen.has(path)) continue;
     seen.add(path);
-    out.push({ path, type: issue.code, message: friendlyMessage(issue.message) });
+    out.push({ path, type: issue.code, message: friendlyMessage(issue) });
   }
   return out;
 }
