@@ -16,8 +16,10 @@ import { FieldNotesContext } from "./fields";
 import { OptionsFields, slabResolver } from "./options-form";
 import { SaveTemplate } from "./save-template";
 import { makePlateAction } from "../../../actions";
+import { movedPlacements } from "./layout-history";
 import { PlateMap } from "./plate-map";
 import type { Body, DisplayPart, EditorPart, FromWorker } from "./protocol";
+import { useLayoutHistory } from "./use-layout-history";
 
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
 
@@ -31,40 +33,8 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   const router = useRouter();
   const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
   const values = useWatch({ control: form.control }) as FormValues;
-  type Placements = { piece: number; x: number; y: number; rotation: number }[] | undefined;
-  // Layout moves with undo and redo: `past` holds earlier layouts, `future` the undone ones.
-  const [placements, setPlacementsNow] = useState<Placements>();
-  const [past, setPast] = useState<Placements[]>([]);
-  const [future, setFuture] = useState<Placements[]>([]);
-  const setPlacements = useCallback(
-    (next: Placements) => {
-      setPast((p) => [...p.slice(-49), placements]);
-      setFuture([]);
-      setPlacementsNow(next);
-    },
-    [placements],
-  );
-  const undo = useCallback(() => {
-    if (!past.length) return;
-    setFuture((f) => [placements, ...f]);
-    setPlacementsNow(past[past.length - 1]);
-    setPast((p) => p.slice(0, -1));
-  }, [past, placements]);
-  const redo = useCallback(() => {
-    if (!future.length) return;
-    setPast((p) => [...p, placements]);
-    setPlacementsNow(future[0]);
-    setFuture((f) => f.slice(1));
-  }, [future, placements]);
-  useEffect(() => {
-    const onKey = (e: KeyboardEvent) => {
-      if (!(e.ctrlKey || e.metaKey) || (e.target as HTMLElement).closest("input, select, textarea")) return;
-      if (e.key.toLowerCase() === "z" && !e.shiftKey) (e.preventDefault(), undo());
-      else if (e.key.toLowerCase() === "y" || (e.key.toLowerCase() === "z" && e.shiftKey)) (e.preventDefault(), redo());
-    };
-    window.addEventListener("keydown", onKey);
-    return () => window.removeEventListener("keydown", onKey);
-  }, [undo, redo]);
+  const layout = useLayoutHistory();
+  const placements = layout.placements;
   const [result, setResult] = useState<{ slab: Body | null; viewPieces: PlacedPiece[]; stale?: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number; seq: number } | null>(null);
   const [ready, setReady] = useState<{ ms: number; triangles: number; parts: DisplayPart[] } | null>(null);
   const [problem, setProblem] = useState<string | null>(null);
@@ -88,9 +58,9 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
       setApplied(t);
       if (!t) return;
       form.reset(optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default]))));
-      setPlacementsNow(undefined);
+      layout.replace(undefined);
     },
-    [form],
+    [form, layout.replace],
   );
   useEffect(() => {
     if (applied) applyTemplate(applied);
@@ -127,11 +97,10 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   const notes = useMemo(() => fieldNotes(result?.findings ?? [], form.getValues()), [result, form]);
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
   const moveTo = useCallback(
-    (piece: PlacedPiece, dx: number, dy: number, dr = 0) => {
-      if (!result) return;
-      setPlacements(result.pieces.map((p) => ({ piece: p.slot, x: p.x + (p.number === piece.number ? dx : 0), y: p.y + (p.number === piece.number ? dy : 0), rotation: p.rotation + (p.number === piece.number ? dr : 0) })));
+    (piece: PlacedPiece, dx: number, dy: number, turn = 0) => {
+      if (result) layout.place(movedPlacements(result.pieces, piece.number, dx, dy, turn));
     },
-    [result],
+    [result, layout.place],
   );
   const sel = result?.pieces.find((p) => p.number === selected);
 
@@ -224,13 +193,13 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
           )}
         </div>
         <div className="flex flex-wrap items-center gap-2 text-xs">
-          <button type="button" className="btn-quiet px-2 py-1" disabled={!placements} onClick={() => setPlacements(undefined)}>
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!placements} onClick={layout.automatic}>
             Automatic layout
           </button>
-          <button type="button" className="btn-quiet px-2 py-1" disabled={!past.length} onClick={undo} title="Ctrl+Z">
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!layout.canUndo} onClick={layout.undo} title="Ctrl+Z">
             Undo
           </button>
-          <button type="button" className="btn-quiet px-2 py-1" disabled={!future.length} onClick={redo} title="Ctrl+Y">
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!layout.canRedo} onClick={layout.redo} title="Ctrl+Y">
             Redo
           </button>
           {sel ? (
