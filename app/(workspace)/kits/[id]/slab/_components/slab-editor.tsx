@@ -1,10 +1,8 @@
 "use client";
 
 import dynamic from "next/dynamic";
-import { useCallback, useEffect, useMemo, useRef, useState } from "react";
-import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
-import type { Finding } from "@/lib/geometry/checks";
-import type { Estimates } from "@/lib/geometry/estimates";
+import { useCallback, useEffect, useMemo, useState } from "react";
+import type { PlacedPiece } from "@/lib/geometry/build-plate";
 import { useRouter } from "next/navigation";
 import { useForm, useWatch } from "react-hook-form";
 import { useToast } from "@/app/_components/toasts";
@@ -18,8 +16,9 @@ import { SaveTemplate } from "./save-template";
 import { makePlateAction } from "../../../actions";
 import { movedPlacements } from "./layout-history";
 import { PlateMap } from "./plate-map";
-import type { Body, DisplayPart, EditorPart, FromWorker } from "./protocol";
+import type { EditorPart } from "./protocol";
 import { useLayoutHistory } from "./use-layout-history";
+import { useSlabWorker } from "./use-slab-worker";
 
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
 
@@ -35,16 +34,9 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   const values = useWatch({ control: form.control }) as FormValues;
   const layout = useLayoutHistory();
   const placements = layout.placements;
-  const [result, setResult] = useState<{ slab: Body | null; viewPieces: PlacedPiece[]; stale?: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number; seq: number } | null>(null);
-  const [ready, setReady] = useState<{ ms: number; triangles: number; parts: DisplayPart[] } | null>(null);
-  const [problem, setProblem] = useState<string | null>(null);
   const [selected, setSelected] = useState<number | undefined>();
   const [top, setTop] = useState(false);
   const [making, setMaking] = useState<{ plateId?: string; progress: number; status: string; message?: string } | null>(null);
-  const worker = useRef<Worker | null>(null);
-  const seq = useRef(0);
-  const sentAt = useRef(new Map<number, number>());
-  const [latency, setLatency] = useState<number | null>(null);
 
   const options = useMemo(() => formToOptions(values, placements), [values, placements]);
   const check = useMemo(() => slabOptionsSchema.safeParse(options), [options]);
@@ -67,32 +59,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
     // Apply the template named in the address once, on opening.
   }, []);
 
-  useEffect(() => {
-    const w = new Worker(new URL("./slab.worker.ts", import.meta.url), { type: "module" });
-    worker.current = w;
-    w.onmessage = (e: MessageEvent<FromWorker>) => {
-      const m = e.data;
-      if (m.type === "ready") setReady({ ms: m.ms, triangles: m.triangles, parts: m.parts });
-      else if (m.type === "error") setProblem(m.message);
-      else if (m.seq === seq.current) {
-        setProblem(null);
-        // A build stopped by an error finding has no geometry: keep showing the last slab that built.
-        setResult((prev) => ({ slab: m.slab ?? prev?.slab ?? null, stale: !m.slab && Boolean(prev?.slab), pieces: m.pieces, viewPieces: m.slab || !prev ? m.pieces : prev.viewPieces, layout: m.layout ?? prev?.layout ?? null, findings: m.findings, estimates: m.estimates, ms: m.ms, seq: m.seq }));
-        const t = sentAt.current.get(m.seq);
-        // Option change → frame: measured to the next animation frame after the new meshes arrive.
-        if (t !== undefined) requestAnimationFrame(() => setLatency(performance.now() - t));
-      }
-    };
-    w.postMessage({ type: "init", parts });
-    return () => w.terminate();
-  }, [parts]);
-
-  useEffect(() => {
-    if (!check.success || !worker.current) return;
-    const n = ++seq.current;
-    sentAt.current.set(n, performance.now());
-    worker.current.postMessage({ type: "build", seq: n, options, variables });
-  }, [options, check.success, variables]);
+  const { ready, preview: result, problem, latency } = useSlabWorker(parts, options, variables, check.success);
 
   const notes = useMemo(() => fieldNotes(result?.findings ?? [], form.getValues()), [result, form]);
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
