@@ -3,7 +3,6 @@
 import dynamic from "next/dynamic";
 import { useCallback, useEffect, useMemo, useState } from "react";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
-import { useRouter } from "next/navigation";
 import { useForm, useWatch } from "react-hook-form";
 import { useToast } from "@/app/_components/toasts";
 import { MATERIALS, slabOptionsSchema } from "@/lib/geometry/options";
@@ -13,11 +12,11 @@ import { DEFAULT_VALUES, fieldNotes, formToOptions, optionsToForm, valuePlacehol
 import { FieldNotesContext } from "./fields";
 import { OptionsFields, slabResolver } from "./options-form";
 import { SaveTemplate } from "./save-template";
-import { makePlateAction } from "../../../actions";
 import { movedPlacements } from "./layout-history";
 import { PlateMap } from "./plate-map";
 import type { EditorPart } from "./protocol";
 import { useLayoutHistory } from "./use-layout-history";
+import { useMakePlate } from "./use-make-plate";
 import { useSlabWorker } from "./use-slab-worker";
 
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
@@ -29,14 +28,12 @@ export type EditorTemplate = { id: string; name: string; version: number; starte
 
 export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, templates, initialTemplateId }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean; canSaveTemplates: boolean; templates: EditorTemplate[]; initialTemplateId?: string }) {
   const toast = useToast();
-  const router = useRouter();
   const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
   const values = useWatch({ control: form.control }) as FormValues;
   const layout = useLayoutHistory();
   const placements = layout.placements;
   const [selected, setSelected] = useState<number | undefined>();
   const [top, setTop] = useState(false);
-  const [making, setMaking] = useState<{ plateId?: string; progress: number; status: string; message?: string } | null>(null);
 
   const options = useMemo(() => formToOptions(values, placements), [values, placements]);
   const check = useMemo(() => slabOptionsSchema.safeParse(options), [options]);
@@ -60,6 +57,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   }, []);
 
   const { ready, preview: result, problem, latency } = useSlabWorker(parts, options, variables, check.success);
+  const { making, busy, make } = useMakePlate();
 
   const notes = useMemo(() => fieldNotes(result?.findings ?? [], form.getValues()), [result, form]);
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
@@ -70,36 +68,6 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
     [result, layout.place],
   );
   const sel = result?.pieces.find((p) => p.number === selected);
-
-  async function make() {
-    setMaking({ progress: 0, status: "queued" });
-    const r = await makePlateAction({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) });
-    if (!r.ok) {
-      toast("problem", `The plate was not made: ${r.message}`);
-      return setMaking({ progress: 0, status: "failed", message: r.message });
-    }
-    const plateId = r.data.plateId;
-    for (;;) {
-      const res = await fetch(`/api/plates/${plateId}/status`);
-      if (!res.ok) {
-        toast("problem", "Lost track of the plate being made; it is listed under Plates when it is done.");
-        return setMaking({ plateId, progress: 0, status: "failed", message: `status check answered HTTP ${res.status}` });
-      }
-      const s = (await res.json()) as { job: { status: string; progress: number; error: { message: string } | null } };
-      setMaking({ plateId, progress: s.job.progress, status: s.job.status, message: s.job.error?.message });
-      if (s.job.status === "done") {
-        toast("done", `Plate made: ${result?.pieces.length ?? ""} pieces on one slab. Both files are ready to download.`);
-        router.refresh();
-        break;
-      }
-      if (s.job.status === "failed") {
-        toast("problem", `The plate could not be made: ${s.job.error?.message ?? "the build failed"}`);
-        router.refresh();
-        break;
-      }
-      await new Promise((res) => setTimeout(res, 300));
-    }
-  }
 
   return (
     <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
@@ -222,7 +190,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
         ) : null}
         {canMake ? (
           <section className="card space-y-2 p-3">
-            <button type="button" className="btn-primary w-full" disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || (making !== null && making.status !== "done" && making.status !== "failed")} onClick={() => void make()}>
+            <button type="button" className="btn-primary w-full" disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || busy} onClick={() => void make({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) }, result?.pieces.length)}>
               Make the plate
             </button>
             {making ? (
