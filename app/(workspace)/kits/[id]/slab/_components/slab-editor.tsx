@@ -2,32 +2,30 @@
 
 import dynamic from "next/dynamic";
 import { useCallback, useEffect, useMemo, useState } from "react";
-import type { PlacedPiece } from "@/lib/geometry/build-plate";
 import { useForm, useWatch } from "react-hook-form";
-import { useToast } from "@/app/_components/toasts";
-import { MATERIALS, slabOptionsSchema } from "@/lib/geometry/options";
-import type { SlabOptionsInput } from "@/lib/geometry/options";
-import type { TemplateVariableDef } from "@/lib/geometry/template";
-import { DEFAULT_VALUES, fieldNotes, formToOptions, optionsToForm, valuePlaceholders, type FormValues } from "./form-model";
+import type { PlacedPiece } from "@/lib/geometry/build-plate";
+import { slabOptionsSchema } from "@/lib/geometry/options";
 import { FieldNotesContext } from "./fields";
-import { OptionsFields, slabResolver } from "./options-form";
-import { SaveTemplate } from "./save-template";
+import { DEFAULT_VALUES, fieldNotes, formToOptions, optionsToForm, valuePlaceholders, type FormValues } from "./form-model";
 import { movedPlacements } from "./layout-history";
+import { MakePanel } from "./make-panel";
+import { OptionsFields, slabResolver } from "./options-form";
 import { PlateMap } from "./plate-map";
 import type { EditorPart } from "./protocol";
+import { EstimatesPanel, FindingsPanel } from "./result-panels";
+import { TemplatePicker, type EditorTemplate } from "./template-picker";
 import { useLayoutHistory } from "./use-layout-history";
 import { useMakePlate } from "./use-make-plate";
 import { useSlabWorker } from "./use-slab-worker";
 
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
 
-const icon = { error: "✕", warning: "⚠", info: "ℹ" } as const;
-const tone = { error: "text-finding-error", warning: "text-finding-warning", info: "text-finding-info" } as const;
-
-export type EditorTemplate = { id: string; name: string; version: number; starter: boolean; options: SlabOptionsInput; variables: TemplateVariableDef[] };
-
+/**
+ * The slab editor: the options form and templates on the left, the live preview (3D view and plate
+ * map, hand placements) in the middle, findings, estimates and "Make the plate" on the right. The
+ * engine runs in a Web Worker (useSlabWorker); the plate is made on the server (useMakePlate).
+ */
 export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, templates, initialTemplateId }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean; canSaveTemplates: boolean; templates: EditorTemplate[]; initialTemplateId?: string }) {
-  const toast = useToast();
   const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
   const values = useWatch({ control: form.control }) as FormValues;
   const layout = useLayoutHistory();
@@ -72,30 +70,7 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   return (
     <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
       <div className="space-y-3">
-        <section className="card space-y-2 p-3 text-sm" aria-label="Template">
-          <label className="block text-xs text-muted">
-            Template
-            <select
-              className="field-input mt-0.5 py-1 text-sm"
-              aria-label="Apply a template"
-              value={applied?.id ?? ""}
-              onChange={(e) => {
-                const t = templates.find((x) => x.id === e.target.value) ?? null;
-                applyTemplate(t);
-                if (t) toast("note", `“${t.name}” (version ${t.version}) applied: its options are in the form, its sample values below.`);
-              }}
-            >
-              <option value="">none — options of my own</option>
-              {templates.map((t) => (
-                <option key={t.id} value={t.id}>
-                  {t.name} · v{t.version}
-                  {t.starter ? " · starter" : ""}
-                </option>
-              ))}
-            </select>
-          </label>
-          {canSaveTemplates ? <SaveTemplate values={values} applied={applied} onSaved={(t) => setApplied(t)} /> : null}
-        </section>
+        <TemplatePicker templates={templates} applied={applied} onApply={applyTemplate} values={values} canSave={canSaveTemplates} onSaved={setApplied} />
         <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
           <FieldNotesContext.Provider value={notes}>
             <OptionsFields form={form} />
@@ -155,70 +130,16 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
       </div>
 
       <aside className="space-y-3 text-sm md:col-span-2 md:grid md:grid-cols-2 md:gap-3 md:space-y-0 xl:col-span-1 xl:block xl:space-y-3">
-        <section className="card p-3">
-          <h2 className="text-base">Findings</h2>
-          {!result ? <p className="text-muted">—</p> : result.findings.length === 0 ? <p className="text-muted">None: the slab passes every check.</p> : null}
-          <ul className="mt-1 space-y-1.5" data-testid="findings">
-            {result?.findings.map((f, i) => (
-              <li key={i} className={tone[f.severity]}>
-                <button type="button" className="text-left" onClick={() => f.piece !== undefined && setSelected(f.piece)}>
-                  <span aria-hidden="true">{icon[f.severity]} </span>
-                  <span className="font-bold">{f.severity}</span> <span className="text-ink">{f.message}</span> <code className="font-mono text-xs text-muted">{f.code}</code>
-                </button>
-              </li>
-            ))}
-          </ul>
-        </section>
-        {result?.estimates && result.layout ? (
-          <section className="card p-3" data-testid="estimates">
-            <h2 className="text-base">Estimates</h2>
-            <dl className="mt-1 grid grid-cols-2 gap-x-2 gap-y-0.5 font-mono text-xs">
-              <dt className="font-sans text-muted">Slab</dt>
-              <dd>{result.layout.slab.width.toFixed(1)} × {result.layout.slab.depth.toFixed(1)} mm</dd>
-              <dt className="font-sans text-muted">Pieces</dt>
-              <dd>{result.pieces.length}</dd>
-              <dt className="font-sans text-muted">Mass</dt>
-              <dd>{result.estimates.totalMass.toFixed(1)} g {result.estimates.material}</dd>
-              <dt className="font-sans text-muted">Filament</dt>
-              <dd>{result.estimates.filamentLength.toFixed(2)} m</dd>
-              <dt className="font-sans text-muted">Cost</dt>
-              <dd>{result.estimates.cost.toFixed(2)}</dd>
-              <dt className="font-sans text-muted">Slab used</dt>
-              <dd>{(result.layout.utilisation * 100).toFixed(0)} %</dd>
-            </dl>
-          </section>
-        ) : null}
+        <FindingsPanel findings={result?.findings ?? null} onSelect={setSelected} />
+        <EstimatesPanel preview={result} />
         {canMake ? (
-          <section className="card space-y-2 p-3">
-            <button type="button" className="btn-primary w-full" disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || busy} onClick={() => void make({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) }, result?.pieces.length)}>
-              Make the plate
-            </button>
-            {making ? (
-              <div data-testid="make-status">
-                <progress className="h-1.5 w-full accent-[#6d4aff]" max={1} value={making.progress} aria-label="Build progress" />
-                <p className="text-xs text-muted">
-                  {making.status}
-                  {making.message ? ` — ${making.message}` : ""}
-                </p>
-                {making.status === "done" && making.plateId ? (
-                  <p className="space-x-3 text-xs">
-                    <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=3mf`}>
-                      Download 3MF
-                    </a>
-                    <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=stl`}>
-                      Download STL
-                    </a>
-                  </p>
-                ) : null}
-              </div>
-            ) : null}
-            <ul className="list-disc space-y-0.5 pl-4 text-xs text-muted" data-testid="cautions">
-              <li>Keep the air gap in your slicer (support gap settings), or the pieces fuse to the slab.</li>
-              <li>The nozzle (≈190–260 °C) and bed (up to ≈110 °C) are hot: let the plate cool before lifting the slab.</li>
-              {MATERIALS[values.material]?.styrene ? <li className="text-finding-warning">⚠ {values.material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
-              {result?.findings.some((f) => f.code === "small_part") ? <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li> : null}
-            </ul>
-          </section>
+          <MakePanel
+            making={making}
+            disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || busy}
+            onMake={() => void make({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) }, result?.pieces.length)}
+            material={values.material}
+            smallParts={Boolean(result?.findings.some((f) => f.code === "small_part"))}
+          />
         ) : null}
         {ready ? <p className="text-xs text-muted">Engine ready in {ready.ms.toFixed(0)} ms · {ready.triangles.toLocaleString("en-US")} part triangles</p> : null}
       </aside>
