@@ -1,9 +1,11 @@
+import type { Plate } from "@/db/schema";
+
 /**
  * Following a plate being made, without React: ask `/api/plates/{id}/status` until the job is done or
  * failed, the answer is lost, or the caller stops (an aborted signal: the editor was left). Stopping
  * cancels the request in flight and the pause between two questions.
  */
-export type JobStatus = { status: "queued" | "running" | "done" | "failed"; progress: number; error: { message: string } | null };
+export type JobStatus = { status: Plate["jobState"]; progress: number; error: { message: string } | null };
 
 export type WatchEnd = { kind: "done"; job: JobStatus } | { kind: "failed"; job: JobStatus } | { kind: "lost"; reason: string } | { kind: "stopped" };
 
@@ -16,7 +18,7 @@ export type WatchOptions = {
   fetch?: (url: string, init: { signal: AbortSignal }) => Promise<Response>;
 };
 
-const STATES = new Set(["queued", "running", "done", "failed"]);
+const STATES = new Set<string>(["queued", "running", "done", "failed"] satisfies JobStatus["status"][]);
 
 /** Wait `ms`, or less when the signal aborts. */
 export function pause(ms: number, signal: AbortSignal): Promise<void> {
