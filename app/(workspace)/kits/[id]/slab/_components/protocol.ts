@@ -1,3 +1,4 @@
+import type { KitPart } from "@/db/schema";
 import type { Finding } from "@/lib/geometry/checks";
 import type { Estimates } from "@/lib/geometry/estimates";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
@@ -7,7 +8,7 @@ import type { SlabOptionsInput } from "@/lib/geometry/options";
  * Messages between the slab editor and its Web Worker, which runs the same lib/geometry engine as the
  * server. The worker keeps the parts' meshes between edits; each `build` re-lays and re-marks the slab.
  */
-export type EditorPart = { id: string; name: string; quantity: number; rotation: number; orientation: "as-imported" | "lay-flat" | "turned" };
+export type EditorPart = { id: string; name: string; quantity: number; rotation: number; orientation: KitPart["orientation"] };
 
 export type ToWorker =
   | { type: "init"; parts: EditorPart[] }

@@ -8,8 +8,8 @@ import { z } from "zod";
 import { useToast } from "@/app/_components/toasts";
 import { templateBodySchema, type TemplateVariableDef } from "@/lib/geometry/template";
 import { createTemplateAction, saveTemplateVersionAction } from "../../../../templates/actions";
-import { formToOptions, valuePlaceholders, type FormValues } from "./options-form";
-import type { EditorTemplate } from "./slab-editor";
+import { formToOptions, valuePlaceholders, type FormValues } from "./form-model";
+import type { EditorTemplate } from "./template-picker";
 
 const saveSchema = z.object({
   mode: z.enum(["new", "version"]),

@@ -1,78 +1,37 @@
 "use client";
 
 import dynamic from "next/dynamic";
-import { useCallback, useEffect, useMemo, useRef, useState } from "react";
-import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
-import type { Finding } from "@/lib/geometry/checks";
-import type { Estimates } from "@/lib/geometry/estimates";
-import { useRouter } from "next/navigation";
+import { useCallback, useEffect, useMemo, useState } from "react";
 import { useForm, useWatch } from "react-hook-form";
-import { useToast } from "@/app/_components/toasts";
-import { MATERIALS, slabOptionsSchema } from "@/lib/geometry/options";
-import type { SlabOptionsInput } from "@/lib/geometry/options";
-import type { TemplateVariableDef } from "@/lib/geometry/template";
-import { DEFAULT_VALUES, FieldNotesContext, fieldNotes, formToOptions, OptionsFields, optionsToForm, slabResolver, valuePlaceholders, type FormValues } from "./options-form";
-import { SaveTemplate } from "./save-template";
-import { makePlateAction } from "../../../actions";
+import type { PlacedPiece } from "@/lib/geometry/build-plate";
+import { slabOptionsSchema } from "@/lib/geometry/options";
+import { FieldNotesContext } from "./fields";
+import { DEFAULT_VALUES, fieldNotes, formToOptions, optionsToForm, valuePlaceholders, type FormValues } from "./form-model";
+import { movedPlacements } from "./layout-history";
+import { MakePanel } from "./make-panel";
+import { OptionsFields, slabResolver } from "./options-form";
 import { PlateMap } from "./plate-map";
-import type { Body, DisplayPart, EditorPart, FromWorker } from "./protocol";
+import type { EditorPart } from "./protocol";
+import { EstimatesPanel, FindingsPanel } from "./result-panels";
+import { TemplatePicker, type EditorTemplate } from "./template-picker";
+import { useLayoutHistory } from "./use-layout-history";
+import { useMakePlate } from "./use-make-plate";
+import { useSlabWorker } from "./use-slab-worker";
 
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
 
-const icon = { error: "✕", warning: "⚠", info: "ℹ" } as const;
-const tone = { error: "text-finding-error", warning: "text-finding-warning", info: "text-finding-info" } as const;
-
-export type EditorTemplate = { id: string; name: string; version: number; starter: boolean; options: SlabOptionsInput; variables: TemplateVariableDef[] };
-
+/**
+ * The slab editor: the options form and templates on the left, the live preview (3D view and plate
+ * map, hand placements) in the middle, findings, estimates and "Make the plate" on the right. The
+ * engine runs in a Web Worker (useSlabWorker); the plate is made on the server (useMakePlate).
+ */
 export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, templates, initialTemplateId }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean; canSaveTemplates: boolean; templates: EditorTemplate[]; initialTemplateId?: string }) {
-  const toast = useToast();
-  const router = useRouter();
   const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
   const values = useWatch({ control: form.control }) as FormValues;
-  type Placements = { piece: number; x: number; y: number; rotation: number }[] | undefined;
-  // Layout moves with undo and redo: `past` holds earlier layouts, `future` the undone ones.
-  const [placements, setPlacementsNow] = useState<Placements>();
-  const [past, setPast] = useState<Placements[]>([]);
-  const [future, setFuture] = useState<Placements[]>([]);
-  const setPlacements = useCallback(
-    (next: Placements) => {
-      setPast((p) => [...p.slice(-49), placements]);
-      setFuture([]);
-      setPlacementsNow(next);
-    },
-    [placements],
-  );
-  const undo = useCallback(() => {
-    if (!past.length) return;
-    setFuture((f) => [placements, ...f]);
-    setPlacementsNow(past[past.length - 1]);
-    setPast((p) => p.slice(0, -1));
-  }, [past, placements]);
-  const redo = useCallback(() => {
-    if (!future.length) return;
-    setPast((p) => [...p, placements]);
-    setPlacementsNow(future[0]);
-    setFuture((f) => f.slice(1));
-  }, [future, placements]);
-  useEffect(() => {
-    const onKey = (e: KeyboardEvent) => {
-      if (!(e.ctrlKey || e.metaKey) || (e.target as HTMLElement).closest("input, select, textarea")) return;
-      if (e.key.toLowerCase() === "z" && !e.shiftKey) (e.preventDefault(), undo());
-      else if (e.key.toLowerCase() === "y" || (e.key.toLowerCase() === "z" && e.shiftKey)) (e.preventDefault(), redo());
-    };
-    window.addEventListener("keydown", onKey);
-    return () => window.removeEventListener("keydown", onKey);
-  }, [undo, redo]);
-  const [result, setResult] = useState<{ slab: Body | null; viewPieces: PlacedPiece[]; stale?: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number; seq: number } | null>(null);
-  const [ready, setReady] = useState<{ ms: number; triangles: number; parts: DisplayPart[] } | null>(null);
-  const [problem, setProblem] = useState<string | null>(null);
+  const layout = useLayoutHistory();
+  const placements = layout.placements;
   const [selected, setSelected] = useState<number | undefined>();
   const [top, setTop] = useState(false);
-  const [making, setMaking] = useState<{ plateId?: string; progress: number; status: string; message?: string } | null>(null);
-  const worker = useRef<Worker | null>(null);
-  const seq = useRef(0);
-  const sentAt = useRef(new Map<number, number>());
-  const [latency, setLatency] = useState<number | null>(null);
 
   const options = useMemo(() => formToOptions(values, placements), [values, placements]);
   const check = useMemo(() => slabOptionsSchema.safeParse(options), [options]);
@@ -86,110 +45,32 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
       setApplied(t);
       if (!t) return;
       form.reset(optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default]))));
-      setPlacementsNow(undefined);
+      layout.replace(undefined);
     },
-    [form],
+    [form, layout.replace],
   );
   useEffect(() => {
     if (applied) applyTemplate(applied);
     // Apply the template named in the address once, on opening.
   }, []);
 
-  useEffect(() => {
-    const w = new Worker(new URL("./slab.worker.ts", import.meta.url), { type: "module" });
-    worker.current = w;
-    w.onmessage = (e: MessageEvent<FromWorker>) => {
-      const m = e.data;
-      if (m.type === "ready") setReady({ ms: m.ms, triangles: m.triangles, parts: m.parts });
-      else if (m.type === "error") setProblem(m.message);
-      else if (m.seq === seq.current) {
-        setProblem(null);
-        // A build stopped by an error finding has no geometry: keep showing the last slab that built.
-        setResult((prev) => ({ slab: m.slab ?? prev?.slab ?? null, stale: !m.slab && Boolean(prev?.slab), pieces: m.pieces, viewPieces: m.slab || !prev ? m.pieces : prev.viewPieces, layout: m.layout ?? prev?.layout ?? null, findings: m.findings, estimates: m.estimates, ms: m.ms, seq: m.seq }));
-        const t = sentAt.current.get(m.seq);
-        // Option change → frame: measured to the next animation frame after the new meshes arrive.
-        if (t !== undefined) requestAnimationFrame(() => setLatency(performance.now() - t));
-      }
-    };
-    w.postMessage({ type: "init", parts });
-    return () => w.terminate();
-  }, [parts]);
-
-  useEffect(() => {
-    if (!check.success || !worker.current) return;
-    const n = ++seq.current;
-    sentAt.current.set(n, performance.now());
-    worker.current.postMessage({ type: "build", seq: n, options, variables });
-  }, [options, check.success, variables]);
+  const { ready, preview: result, problem, latency } = useSlabWorker(parts, options, variables, check.success);
+  const { making, busy, make } = useMakePlate();
 
   const notes = useMemo(() => fieldNotes(result?.findings ?? [], form.getValues()), [result, form]);
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
   const moveTo = useCallback(
-    (piece: PlacedPiece, dx: number, dy: number, dr = 0) => {
-      if (!result) return;
-      setPlacements(result.pieces.map((p) => ({ piece: p.slot, x: p.x + (p.number === piece.number ? dx : 0), y: p.y + (p.number === piece.number ? dy : 0), rotation: p.rotation + (p.number === piece.number ? dr : 0) })));
+    (piece: PlacedPiece, dx: number, dy: number, turn = 0) => {
+      if (result) layout.place(movedPlacements(result.pieces, piece.number, dx, dy, turn));
     },
-    [result],
+    [result, layout.place],
   );
   const sel = result?.pieces.find((p) => p.number === selected);
-
-  async function make() {
-    setMaking({ progress: 0, status: "queued" });
-    const r = await makePlateAction({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) });
-    if (!r.ok) {
-      toast("problem", `The plate was not made: ${r.message}`);
-      return setMaking({ progress: 0, status: "failed", message: r.message });
-    }
-    const plateId = r.data.plateId;
-    for (;;) {
-      const res = await fetch(`/api/plates/${plateId}/status`);
-      if (!res.ok) {
-        toast("problem", "Lost track of the plate being made; it is listed under Plates when it is done.");
-        return setMaking({ plateId, progress: 0, status: "failed", message: `status check answered HTTP ${res.status}` });
-      }
-      const s = (await res.json()) as { job: { status: string; progress: number; error: { message: string } | null } };
-      setMaking({ plateId, progress: s.job.progress, status: s.job.status, message: s.job.error?.message });
-      if (s.job.status === "done") {
-        toast("done", `Plate made: ${result?.pieces.length ?? ""} pieces on one slab. Both files are ready to download.`);
-        router.refresh();
-        break;
-      }
-      if (s.job.status === "failed") {
-        toast("problem", `The plate could not be made: ${s.job.error?.message ?? "the build failed"}`);
-        router.refresh();
-        break;
-      }
-      await new Promise((res) => setTimeout(res, 300));
-    }
-  }
 
   return (
     <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
       <div className="space-y-3">
-        <section className="card space-y-2 p-3 text-sm" aria-label="Template">
-          <label className="block text-xs text-muted">
-            Template
-            <select
-              className="field-input mt-0.5 py-1 text-sm"
-              aria-label="Apply a template"
-              value={applied?.id ?? ""}
-              onChange={(e) => {
-                const t = templates.find((x) => x.id === e.target.value) ?? null;
-                applyTemplate(t);
-                if (t) toast("note", `“${t.name}” (version ${t.version}) applied: its options are in the form, its sample values below.`);
-              }}
-            >
-              <option value="">none — options of my own</option>
-              {templates.map((t) => (
-                <option key={t.id} value={t.id}>
-                  {t.name} · v{t.version}
-                  {t.starter ? " · starter" : ""}
-                </option>
-              ))}
-            </select>
-          </label>
-          {canSaveTemplates ? <SaveTemplate values={values} applied={applied} onSaved={(t) => setApplied(t)} /> : null}
-        </section>
+        <TemplatePicker templates={templates} applied={applied} onApply={applyTemplate} values={values} canSave={canSaveTemplates} onSaved={setApplied} />
         <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
           <FieldNotesContext.Provider value={notes}>
             <OptionsFields form={form} />
@@ -222,13 +103,13 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
           )}
         </div>
         <div className="flex flex-wrap items-center gap-2 text-xs">
-          <button type="button" className="btn-quiet px-2 py-1" disabled={!placements} onClick={() => setPlacements(undefined)}>
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!placements} onClick={layout.automatic}>
             Automatic layout
           </button>
-          <button type="button" className="btn-quiet px-2 py-1" disabled={!past.length} onClick={undo} title="Ctrl+Z">
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!layout.canUndo} onClick={layout.undo} title="Ctrl+Z">
             Undo
           </button>
-          <button type="button" className="btn-quiet px-2 py-1" disabled={!future.length} onClick={redo} title="Ctrl+Y">
+          <button type="button" className="btn-quiet px-2 py-1" disabled={!layout.canRedo} onClick={layout.redo} title="Ctrl+Y">
             Redo
           </button>
           {sel ? (
@@ -249,70 +130,16 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
       </div>
 
       <aside className="space-y-3 text-sm md:col-span-2 md:grid md:grid-cols-2 md:gap-3 md:space-y-0 xl:col-span-1 xl:block xl:space-y-3">
-        <section className="card p-3">
-          <h2 className="text-base">Findings</h2>
-          {!result ? <p className="text-muted">—</p> : result.findings.length === 0 ? <p className="text-muted">None: the slab passes every check.</p> : null}
-          <ul className="mt-1 space-y-1.5" data-testid="findings">
-            {result?.findings.map((f, i) => (
-              <li key={i} className={tone[f.severity]}>
-                <button type="button" className="text-left" onClick={() => f.piece !== undefined && setSelected(f.piece)}>
-                  <span aria-hidden="true">{icon[f.severity]} </span>
-                  <span className="font-bold">{f.severity}</span> <span className="text-ink">{f.message}</span> <code className="font-mono text-xs text-muted">{f.code}</code>
-                </button>
-              </li>
-            ))}
-          </ul>
-        </section>
-        {result?.estimates && result.layout ? (
-          <section className="card p-3" data-testid="estimates">
-            <h2 className="text-base">Estimates</h2>
-            <dl className="mt-1 grid grid-cols-2 gap-x-2 gap-y-0.5 font-mono text-xs">
-              <dt className="font-sans text-muted">Slab</dt>
-              <dd>{result.layout.slab.width.toFixed(1)} × {result.layout.slab.depth.toFixed(1)} mm</dd>
-              <dt className="font-sans text-muted">Pieces</dt>
-              <dd>{result.pieces.length}</dd>
-              <dt className="font-sans text-muted">Mass</dt>
-              <dd>{result.estimates.totalMass.toFixed(1)} g {result.estimates.material}</dd>
-              <dt className="font-sans text-muted">Filament</dt>
-              <dd>{result.estimates.filamentLength.toFixed(2)} m</dd>
-              <dt className="font-sans text-muted">Cost</dt>
-              <dd>{result.estimates.cost.toFixed(2)}</dd>
-              <dt className="font-sans text-muted">Slab used</dt>
-              <dd>{(result.layout.utilisation * 100).toFixed(0)} %</dd>
-            </dl>
-          </section>
-        ) : null}
+        <FindingsPanel findings={result?.findings ?? null} onSelect={setSelected} />
+        <EstimatesPanel preview={result} />
         {canMake ? (
-          <section className="card space-y-2 p-3">
-            <button type="button" className="btn-primary w-full" disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || (making !== null && making.status !== "done" && making.status !== "failed")} onClick={() => void make()}>
-              Make the plate
-            </button>
-            {making ? (
-              <div data-testid="make-status">
-                <progress className="h-1.5 w-full accent-[#6d4aff]" max={1} value={making.progress} aria-label="Build progress" />
-                <p className="text-xs text-muted">
-                  {making.status}
-                  {making.message ? ` — ${making.message}` : ""}
-                </p>
-                {making.status === "done" && making.plateId ? (
-                  <p className="space-x-3 text-xs">
-                    <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=3mf`}>
-                      Download 3MF
-                    </a>
-                    <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=stl`}>
-                      Download STL
-                    </a>
-                  </p>
-                ) : null}
-              </div>
-            ) : null}
-            <ul className="list-disc space-y-0.5 pl-4 text-xs text-muted" data-testid="cautions">
-              <li>Keep the air gap in your slicer (support gap settings), or the pieces fuse to the slab.</li>
-              <li>The nozzle (≈190–260 °C) and bed (up to ≈110 °C) are hot: let the plate cool before lifting the slab.</li>
-              {MATERIALS[values.material]?.styrene ? <li className="text-finding-warning">⚠ {values.material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
-              {result?.findings.some((f) => f.code === "small_part") ? <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li> : null}
-            </ul>
-          </section>
+          <MakePanel
+            making={making}
+            disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || busy}
+            onMake={() => void make({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) }, result?.pieces.length)}
+            material={values.material}
+            smallParts={Boolean(result?.findings.some((f) => f.code === "small_part"))}
+          />
         ) : null}
         {ready ? <p className="text-xs text-muted">Engine ready in {ready.ms.toFixed(0)} ms · {ready.triangles.toLocaleString("en-US")} part triangles</p> : null}
       </aside>

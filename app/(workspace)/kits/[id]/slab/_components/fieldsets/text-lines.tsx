@@ -1,0 +1,49 @@
+"use client";
+
+import { useFieldArray, useWatch } from "react-hook-form";
+import { FACES, Num, Pick, RELIEF, Text, WHERE, type Form } from "../fields";
+import { newLine } from "../form-model";
+
+/** The schema takes at most six text lines. */
+const MAX_LINES = 6;
+
+/** Text lines: each with its size, face, relief, depth, place and longest width. */
+export function TextLinesFieldset({ form }: { form: Form }) {
+  const lines = useFieldArray({ control: form.control, name: "text" });
+  const text = useWatch({ control: form.control, name: "text" });
+  return (
+    <fieldset className="space-y-2">
+      <legend className="font-bold">Text</legend>
+      {lines.fields.length === 0 ? <p className="text-xs text-muted">No text on the slab. Add a line for an order number or a thank-you.</p> : null}
+      {lines.fields.map((f, i) => (
+        <div key={f.id} className="space-y-1.5 rounded-card border border-hairline p-2">
+          <div className="flex items-end gap-1">
+            <div className="grow">
+              <Text form={form} name={`text.${i}.value`} label={`Text line ${i + 1}`} />
+            </div>
+            <button type="button" className="btn-quiet px-2 py-1 text-xs" onClick={() => lines.remove(i)} aria-label={`Remove line ${i + 1}`} title="Remove this line">
+              ✕
+            </button>
+          </div>
+          <div className="grid grid-cols-2 gap-2">
+            <Num form={form} name={`text.${i}.size`} label="Cap height" unit="mm" step={0.5} />
+            <Pick form={form} name={`text.${i}.font`} label="Face" options={FACES} />
+            <Pick form={form} name={`text.${i}.relief`} label="Relief" options={RELIEF} />
+            <Num form={form} name={`text.${i}.depth`} label={text[i]?.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
+            <Pick form={form} name={`text.${i}.where`} label="Place" options={WHERE} />
+            <Num form={form} name={`text.${i}.maxWidth`} label="Max width" unit="mm" step={1} />
+          </div>
+          {text[i]?.where === "at" ? (
+            <div className="grid grid-cols-2 gap-2">
+              <Num form={form} name={`text.${i}.x`} label="x" unit="mm" step={0.5} />
+              <Num form={form} name={`text.${i}.y`} label="y" unit="mm" step={0.5} />
+            </div>
+          ) : null}
+        </div>
+      ))}
+      <button type="button" className="btn-quiet px-2 py-1 text-xs" disabled={lines.fields.length >= MAX_LINES} onClick={() => lines.append(newLine("", 4))}>
+        Add a text line
+      </button>
+    </fieldset>
+  );
+}

@@ -1,0 +1,40 @@
+"use client";
+
+import { MATERIALS, type Material } from "@/lib/geometry/options";
+import type { Making } from "./use-make-plate";
+
+/** "Make the plate", its progress and downloads, and the cautions for printing and selling it. */
+export function MakePanel({ making, disabled, onMake, material, smallParts }: { making: Making | null; disabled: boolean; onMake: () => void; material: Material; smallParts: boolean }) {
+  return (
+    <section className="card space-y-2 p-3">
+      <button type="button" className="btn-primary w-full" disabled={disabled} onClick={onMake}>
+        Make the plate
+      </button>
+      {making ? (
+        <div data-testid="make-status">
+          <progress className="h-1.5 w-full accent-[#6d4aff]" max={1} value={making.progress} aria-label="Build progress" />
+          <p className="text-xs text-muted">
+            {making.status}
+            {making.message ? ` — ${making.message}` : ""}
+          </p>
+          {making.status === "done" && making.plateId ? (
+            <p className="space-x-3 text-xs">
+              <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=3mf`}>
+                Download 3MF
+              </a>
+              <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=stl`}>
+                Download STL
+              </a>
+            </p>
+          ) : null}
+        </div>
+      ) : null}
+      <ul className="list-disc space-y-0.5 pl-4 text-xs text-muted" data-testid="cautions">
+        <li>Keep the air gap in your slicer (support gap settings), or the pieces fuse to the slab.</li>
+        <li>The nozzle (≈190–260 °C) and bed (up to ≈110 °C) are hot: let the plate cool before lifting the slab.</li>
+        {MATERIALS[material]?.styrene ? <li className="text-finding-warning">⚠ {material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
+        {smallParts ? <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li> : null}
+      </ul>
+    </section>
+  );
+}

@@ -1,0 +1,40 @@
+import { describe, expect, it } from "vitest";
+import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
+import type { Finding } from "@/lib/geometry/checks";
+import { mergePreview } from "./preview";
+import type { Body, FromWorker } from "./protocol";
+
+type Built = Extract<FromWorker, { type: "built" }>;
+const slab = (name: string): Body => ({ name, positions: new Float32Array(9), indices: new Uint32Array([0, 1, 2]) });
+const piece = (number: number, x: number) => ({ number, slot: number, x, y: 0, rotation: 0 }) as PlacedPiece;
+const layout = (width: number) => ({ slab: { width } }) as PlateLayout;
+const overlap: Finding = { severity: "error", code: "pieces_overlap", message: "Pieces 1 and 2 overlap.", pieces: [1, 2] };
+const built = (seq: number, over: Partial<Built>): Built => ({ type: "built", seq, ms: 40, slab: null, pieces: [], layout: null, findings: [], estimates: null, ...over });
+
+describe("the preview across builds", () => {
+  it("a build with a slab shows it and its pieces", () => {
+    const p = mergePreview(null, built(1, { slab: slab("a"), pieces: [piece(1, 10)], layout: layout(100) }));
+    expect(p).toMatchObject({ slab: { name: "a" }, stale: false, viewPieces: [piece(1, 10)], pieces: [piece(1, 10)], layout: { slab: { width: 100 } }, seq: 1 });
+  });
+
+  it("a refused build keeps the last slab in view, marked stale, with the new findings and map", () => {
+    const good = mergePreview(null, built(1, { slab: slab("a"), pieces: [piece(1, 10)], layout: layout(100) }));
+    const refused = mergePreview(good, built(2, { slab: null, pieces: [piece(1, 30)], findings: [overlap] }));
+    expect(refused.slab?.name).toBe("a");
+    expect(refused.stale).toBe(true);
+    // The 3D view keeps the pieces that belong to the slab it shows; the map shows the new places.
+    expect(refused.viewPieces).toEqual([piece(1, 10)]);
+    expect(refused.pieces).toEqual([piece(1, 30)]);
+    expect(refused.layout?.slab.width).toBe(100);
+    expect(refused.findings).toEqual([overlap]);
+    expect(refused.seq).toBe(2);
+    // The next build that works replaces it all and is no longer stale.
+    const fixed = mergePreview(refused, built(3, { slab: slab("b"), pieces: [piece(1, 12)], layout: layout(110) }));
+    expect(fixed).toMatchObject({ slab: { name: "b" }, stale: false, viewPieces: [piece(1, 12)], layout: { slab: { width: 110 } } });
+  });
+
+  it("a first build that is refused is not stale: there is nothing older to show", () => {
+    const p = mergePreview(null, built(1, { slab: null, pieces: [piece(1, 5)], findings: [overlap] }));
+    expect(p).toMatchObject({ slab: null, stale: false, viewPieces: [piece(1, 5)], layout: null });
+  });
+});
