@@ -42,6 +42,30 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   await page.getByRole("button", { name: /Record the inspection \(1 to reprint\)/ }).click();
   await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
   await page.screenshot({ path: ".data/test-results/screenshots/floor-inspection.png", fullPage: true });
+  // Past the plan's quota a reprint is refused with the plan's message and the way to upgrade (it is
+  // a plate like any other), and nothing is made; back under it, the same button works.
+  const pg = (await import("pg")).default;
+  const db = new pg.Client({ connectionString: process.env.DATABASE_URL });
+  await db.connect();
+  const usage = async (plates: number) => {
+    const { rows } = await db.query(`select b.workspace_id, b.plan, b.period_start from workspace_billing b join workspaces w on w.id = b.workspace_id where w.slug = 'marrowby'`);
+    const b = rows[0] as { workspace_id: string; plan: string; period_start: Date | null };
+    const now = new Date();
+    const start = b.plan !== "bench" && b.period_start ? b.period_start : new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), 1));
+    await db.query(`insert into plate_usage (workspace_id, period_start, plates) values ($1, $2, $3) on conflict (workspace_id, period_start) do update set plates = excluded.plates`, [b.workspace_id, start, plates]);
+  };
+  try {
+    await usage(1_000_000);
+    await page.getByRole("button", { name: "Make the reprint (1 piece)" }).click();
+    await expect(page.getByTestId("toasts")).toContainText(/made its [\d,]+ plates for this billing period/);
+    await expect(page.getByTestId("toasts")).toContainText("An owner can upgrade under Settings → Billing");
+    await expect(page.getByTestId("toasts")).not.toContainText("Something went wrong");
+    await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
+    await expect(page.getByTestId("reprint-row")).toHaveCount(0);
+  } finally {
+    await usage(0);
+    await db.end();
+  }
   await page.getByRole("button", { name: "Make the reprint (1 piece)" }).click();
 
   // The reprint's page: it names the original and its status; the original lists the reprint.
