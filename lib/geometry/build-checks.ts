@@ -7,6 +7,7 @@ import type { Finding } from "./checks";
 import type { Logo, MarkPlaces, MarkShapes, TextLine } from "./mark-bands";
 import { LOGO_LIMITS } from "./marks/logo";
 import { qrShape } from "./marks/qr";
+import { lineWidth } from "./marks/text";
 import { deepestEngraving, depthOrDefault, floorUnderMarks, type Depth, type SlabOptions } from "./options";
 
 /** A logo that flattens to more points than are engraved: the build stops before laying anything out. */
@@ -21,7 +22,7 @@ export function logoTooComplex(logo: Logo | null): Finding | undefined {
 export function roomForValues(shapes: MarkShapes): Finding[] {
   const out: Finding[] = [];
   for (const [i, t] of shapes.texts.entries()) {
-    const width = t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX);
+    const width = lineWidth(t.shape);
     if (t.mark.maxWidth !== undefined && width > t.mark.maxWidth + 1e-9) {
       out.push({ severity: "error", code: "text_too_long", field: ["marks", "text", i, "value"], message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.` });
     }
@@ -58,7 +59,7 @@ export function doesNotFit(o: SlabOptions, room: { needW: number; maxW: number }
     },
   ];
   for (const [i, t] of texts.entries()) {
-    const width = t.shape.bounds.maxX - t.shape.bounds.minX;
+    const width = lineWidth(t.shape);
     if (width > maxW) out.push({ severity: "error", code: "text_too_long", field: ["marks", "text", i, "value"], message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.` });
   }
   return out;

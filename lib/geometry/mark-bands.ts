@@ -1,6 +1,6 @@
 import { logoContours, logoHeight } from "./marks/logo";
 import { qrShape, type QrShape } from "./marks/qr";
-import { layoutText, type TextShape } from "./marks/text";
+import { layoutText, lineWidth, type TextShape } from "./marks/text";
 import type { LogoMark, QrMark, SlabOptions, TextMark } from "./options";
 import type { PieceRoom } from "./piece-layout";
 import { pieceBounds, type Piece } from "./pieces";
@@ -54,7 +54,7 @@ function band(shapes: MarkShapes, where: "top" | "bottom", spacing: number): Ban
   const qr = shapes.qr && inBand(shapes.qr.mark.position) ? shapes.qr : null;
   const logo = shapes.logo && inBand(shapes.logo.mark.position) ? shapes.logo : null;
   const textH = lines.reduce((s, t, i) => s + t.mark.size * (i === 0 ? 1 : LINE_PITCH), 0) + (lines.length ? DESCENT * lines[lines.length - 1]!.mark.size : 0);
-  const textW = Math.max(0, ...lines.map((t) => t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX)));
+  const textW = Math.max(0, ...lines.map((t) => lineWidth(t.shape)));
   const qrSide = qr ? qr.shape.sizeWithQuietZone : 0;
   const h = Math.max(textH, qrSide, logo?.h ?? 0);
   const items = [logo?.w ?? 0, textW, qrSide].filter((x) => x > 0);
@@ -122,7 +122,7 @@ export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, fra
       if (i > 0) y -= t.mark.size * LINE_PITCH;
       // On a disc the lines are centred (in the room the QR leaves), which keeps the disc small.
       const room = frame.innerW - b.logoW - (b.qr ? b.qr.shape.sizeWithQuietZone + spacing : 0);
-      const width = t.shape.bounds.maxX - Math.min(0, t.shape.bounds.minX);
+      const width = lineWidth(t.shape);
       const indent = o.slab.shape === "disc" ? Math.max(0, (room - width) / 2) : 0;
       texts.push({ ...t, x: frame.minX + b.logoW + indent - Math.min(0, t.shape.bounds.minX), y });
     });

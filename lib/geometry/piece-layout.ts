@@ -2,7 +2,7 @@ import { rotatedBounds } from "./footprint";
 import { arrange, areaScore, type PackItem } from "./layout";
 import type { Bands, NumberGlyphs } from "./mark-bands";
 import { NUMBER_GAP, NUMBER_PAD } from "./mark-bands";
-import type { TextShape } from "./marks/text";
+import { lineWidth, type TextShape } from "./marks/text";
 import type { SlabOptions } from "./options";
 import { pieceBounds, type Piece } from "./pieces";
 import type { Box } from "./plate-context";
@@ -70,7 +70,7 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
     return o.slab.shape === "disc" ? Math.hypot(W, H) : areaScore(W, H);
   };
   const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, score);
-  if (!found || texts.some((t) => t.shape.bounds.maxX - t.shape.bounds.minX > maxW) || bands.w > maxW || maxH <= 0) {
+  if (!found || texts.some((t) => lineWidth(t.shape) > maxW) || bands.w > maxW || maxH <= 0) {
     return { fits: false, maxW, needW: Math.max(bands.w, ...auto.map((p) => Math.min(...itemOf(p).sizes.map((d) => d[0])))) };
   }
   const baseY = m + (bands.bottom.h ? bands.bottom.h + spacing : 0);
