@@ -1,7 +1,8 @@
 /**
  * The findings a build raises between its steps, each before the step it guards (the plate's own
  * checks, once everything is laid out, are in checks.ts): the marks' shapes and the room a template
- * gives them, the layout on the bed, the piece numbers asked for, and every mark's depth.
+ * gives them, the layout on the bed, the piece numbers asked for, the slab's corners, and every
+ * mark's depth.
  */
 import type { Finding } from "./checks";
 import type { Logo, MarkPlaces, MarkShapes, TextLine } from "./mark-bands";
@@ -9,6 +10,7 @@ import { LOGO_LIMITS } from "./marks/logo";
 import { qrShape } from "./marks/qr";
 import { lineWidth } from "./marks/text";
 import { deepestEngraving, depthOrDefault, floorUnderMarks, type Depth, type SlabOptions } from "./options";
+import type { CornerFit } from "./slab";
 
 /** A logo that flattens to more points than are engraved: the build stops before laying anything out. */
 export function logoTooComplex(logo: Logo | null): Finding | undefined {
@@ -75,6 +77,25 @@ export function pieceNumbersMismatch(given: number[] | undefined, pieces: number
     code: "piece_numbers_mismatch",
     field: ["layout", "pieceNumbers"],
     message: dup !== undefined ? `Piece number ${dup} is given twice in layout.pieceNumbers; each piece needs its own.` : `layout.pieceNumbers lists ${given.length} numbers for ${pieces} pieces; give exactly one per piece, in kit order.`,
+  };
+}
+
+/** Round corners that made the slab grow, or that were limited to keep it on the bed (slab.ts). */
+export function cornerFinding(o: SlabOptions, c: CornerFit): Finding {
+  const mm = ([w, d]: [number, number]) => `${w.toFixed(1)} × ${d.toFixed(1)} mm`;
+  if (c.kind === "grown") {
+    return {
+      severity: "info",
+      code: "corners_grow_slab",
+      field: ["slab", "cornerRadius"],
+      message: `The ${c.asked} mm corners would cut into the pieces and marks, so the slab is ${(2 * c.grownBy).toFixed(1)} mm wider and deeper than they need (${mm(c.size)}). Choose a radius of ${c.largestFitting.toFixed(1)} mm or less (or a disc) to keep it at its smallest.`,
+    };
+  }
+  return {
+    severity: "warning",
+    code: "corner_radius_limited",
+    field: ["slab", "cornerRadius"],
+    message: `Corners of ${c.asked} mm would cut into the pieces and marks, and a slab grown to hold them (${mm(c.grownSize)}) would not fit the ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed; the corners are rounded to ${c.radius.toFixed(1)} mm instead. Choose ${(Math.floor(c.radius * 10 + 0.01) / 10).toFixed(1)} mm or less, or a disc.`,
   };
 }
 

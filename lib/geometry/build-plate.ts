@@ -1,5 +1,5 @@
 import type { Manifold } from "manifold-3d";
-import { doesNotFit, logoTooComplex, markDepths, pieceNumbersMismatch, roomForValues } from "./build-checks";
+import { cornerFinding, doesNotFit, logoTooComplex, markDepths, pieceNumbersMismatch, roomForValues } from "./build-checks";
 import { runChecks, type CheckInput, type Finding } from "./checks";
 import { estimate, type Estimates } from "./estimates";
 import type { FontBook } from "./fonts";
@@ -119,7 +119,7 @@ function build(ctx: BuildContext): PlateResult {
   const boxes = pieceBoxes(pieces, room, glyphs);
   const places = placeMarks(o, shapes, bands, bandFrame(o, boxes, bands, room.spacing), room.spacing);
   const slab = slabAround(ctx, { pieces, pieceBoxes: boxes, markBoxes: markList(places).map((mk) => mk.bounds), ext: room.ext });
-  if (slab.note) findings.push(slab.note);
+  if (slab.corners) findings.push(cornerFinding(o, slab.corners));
   movePieces(pieces, slab.dx, slab.dy);
   moveMarks(places, glyphs, slab.dx, slab.dy);
   laps.lap("slab outline");

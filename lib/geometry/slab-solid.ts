@@ -1,10 +1,9 @@
 import type { CrossSection, Manifold } from "manifold-3d";
-import type { Finding } from "./checks";
 import type { Reliefs } from "./mark-reliefs";
 import type { IndexedMesh } from "./mesh";
 import { hullAt, placedShadow, type Piece } from "./pieces";
 import type { Box, PlateContext } from "./plate-context";
-import { slabOutline, type ContentPoint } from "./slab";
+import { slabOutline, type ContentPoint, type CornerFit } from "./slab";
 
 /** The last few slab solids a process built, by a fingerprint of what shapes them (see `PartCache`). */
 export type SlabCache = Map<string, { mesh: IndexedMesh; volume: number }>;
@@ -15,9 +14,10 @@ const CUT_OVERSHOOT = 0.01;
 
 /**
  * The slab's outline around everything on it with the margin (slab.ts), moved so the slab sits in
- * the positive quadrant from (0, 0): `dx`, `dy` is that move, for the pieces and the marks.
+ * the positive quadrant from (0, 0): `dx`, `dy` is that move, for the pieces and the marks; `corners`
+ * says when round corners made the slab grow or were limited.
  */
-export function slabAround(ctx: PlateContext, content: { pieces: Piece[]; pieceBoxes: Box[]; markBoxes: Box[]; ext: number }): { outline: CrossSection; width: number; depth: number; dx: number; dy: number; note?: Finding } {
+export function slabAround(ctx: PlateContext, content: { pieces: Piece[]; pieceBoxes: Box[]; markBoxes: Box[]; ext: number }): { outline: CrossSection; width: number; depth: number; dx: number; dy: number; corners?: CornerFit } {
   const { kernel, scope, options: o } = ctx;
   const boxes = [...content.pieceBoxes, ...content.markBoxes];
   // What the slab must hold with its margin: each piece's hull grown by its ring, every box's corners.
@@ -34,7 +34,7 @@ export function slabAround(ctx: PlateContext, content: { pieces: Piece[]; pieceB
     depth: ob.max[1] - ob.min[1],
     dx,
     dy,
-    ...(shaped.note ? { note: shaped.note } : {}),
+    ...(shaped.corners ? { corners: shaped.corners } : {}),
   };
 }
 
