@@ -1,19 +1,19 @@
-import type { Manifold } from "manifold-3d";
+import type { CrossSection, Manifold } from "manifold-3d";
 import { cornerFinding, doesNotFit, logoTooComplex, markDepths, pieceNumbersMismatch, roomForValues } from "./build-checks";
-import { runChecks, type CheckInput, type Finding } from "./checks";
+import { runChecks, type Finding } from "./checks";
 import { estimate, type Estimates } from "./estimates";
 import type { FontBook } from "./fonts";
 import { write3mf } from "./io/3mf-write";
 import { writeBinaryStl } from "./io/stl-write";
 import type { DeflateRaw } from "./io/zip-write";
 import { withScope, type Kernel } from "./kernel";
-import { bandFrame, markBands, markList, markShapes, moveMarks, numberGlyphs, numberWidth, placeMarks } from "./mark-bands";
-import { allReliefs, markReliefs, reliefOutlines } from "./mark-reliefs";
+import { bandFrame, markBands, markList, markShapes, moveMarks, numberGlyphs, numberWidth, placeMarks, type MarkPlaces } from "./mark-bands";
+import { allReliefs, markReliefs, reliefOutlines, type Reliefs } from "./mark-reliefs";
 import type { Contour } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
 import { parseOptions, slicedGap, type SlabOptions, type SlabOptionsInput } from "./options";
 import { numberPieces, pieceBoxes, pieceRoom, placePieces } from "./piece-layout";
-import { kitPieces, measureParts, movePieces, pieceBounds, pieceLift, pieceMeshes, placedPieces, placedShadow, type PartCache, type PlacedPiece, type PlatePart } from "./pieces";
+import { checkedPieces, kitPieces, measureParts, movePieces, pieceBounds, pieceInSlot, pieceLift, pieceMeshes, placedPieces, placedShadow, type PartCache, type Piece, type PlacedPiece, type PlatePart } from "./pieces";
 import { Laps, type Box, type PlateContext } from "./plate-context";
 import type { SlabShape } from "./slab";
 import { slabAround, slabSolid } from "./slab-solid";
@@ -134,29 +134,23 @@ function build(ctx: BuildContext): PlateResult {
   laps.lap("marks");
 
   // 6. The plate's checks, before the expensive booleans: an error stops the build here.
-  const checked: CheckInput = {
-    options: o,
-    slab: slab.outline,
-    slabSize: { width: slab.width, depth: slab.depth },
-    pieces: pieces.map((p, i) => ({ number: numberOf.get(p.slot)!, shadow: shadows[i]!, name: p.part.name, height: p.fp.height, contactArea: p.fp.contactArea, partId: p.part.id, bounds: pieceBounds(p), ringExt: room.ext })),
-    marks: reliefs.regions,
-    allMarks: allReliefs(reliefs),
-    texts: places.texts,
-    qr: places.qr,
-    unfilled: [...shapes.texts.map((t) => t.value), shapes.qr?.value ?? ""].flatMap(unfilledPlaceholders),
-    solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, size: measures[i]!.size, smallParts: measures[i]!.smallParts })),
-  };
-  findings.push(...runChecks(ctx.kernel, scope, checked));
+  findings.push(
+    ...runChecks(ctx.kernel, scope, {
+      options: o,
+      slab: slab.outline,
+      slabSize: { width: slab.width, depth: slab.depth },
+      pieces: checkedPieces(pieces, numberOf, shadows, room.ext),
+      marks: reliefs.regions,
+      allMarks: allReliefs(reliefs),
+      texts: places.texts,
+      qr: places.qr,
+      unfilled: [...shapes.texts.map((t) => t.value), shapes.qr?.value ?? ""].flatMap(unfilledPlaceholders),
+      solids: input.parts.map((p, i) => ({ partId: p.id, name: p.name, size: measures[i]!.size, smallParts: measures[i]!.smallParts })),
+    }),
+  );
   laps.lap("checks");
-  const sliced = slicedGap(o);
-  const slicing = { slabTop: sliced.slabTop, pieceBase: sliced.pieceBase, gap: sliced.gap, gapLayers: sliced.layers, minFloor: o.slab.thickness - Math.max(0, ...reliefs.engrave.keys()) };
-  const layout: PlateLayout = {
-    slab: { shape: o.slab.shape, width: slab.width, depth: slab.depth, outline: slab.outline.toPolygons(), thickness: o.slab.thickness },
-    bed: o.layout.bed,
-    ...(markOutlines ? { markOutlines } : {}),
-    utilisation: pieces.reduce((s, p) => s + p.fp.shadowArea, 0) / slab.outline.area(),
-    marks: markList(places),
-  };
+  const slicing = slicingOf(o, reliefs);
+  const layout = plateLayout(o, slab, pieces, places, markOutlines);
   if (findings.some((f) => f.severity === "error")) {
     return { pieces: placed, layout, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings: laps.timings }, slicing };
   }
@@ -167,9 +161,26 @@ function build(ctx: BuildContext): PlateResult {
   const bodies: NonNullable<PlateResult["bodies"]> = [{ name: "Slab", mesh: solid.mesh }, ...pieceMeshes(placed, pieces).map(({ piece, mesh }) => ({ name: `${piece.number} · ${piece.partName}`, mesh, piece: piece.number }))];
   laps.lap("pieces");
   const { stl, threeMf } = plateFiles(ctx, bodies, `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap`);
-  const estimates = estimate(o, solid.volume, placed.map((p) => ({ number: p.number, volume: measures[pieces[p.slot - 1]!.partIndex]!.volume })));
+  const estimates = estimate(o, solid.volume, placed.map((p) => ({ number: p.number, volume: measures[pieceInSlot(pieces, p.slot).partIndex]!.volume })));
   const triangles = bodies.reduce((s, b) => s + b.mesh.triVerts.length / 3, 0);
   return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings: laps.timings }, slicing, bodies };
+}
+
+/** The plate as laid out, for the plate map, previews and the API (kernel-free). */
+function plateLayout(o: SlabOptions, slab: { outline: CrossSection; width: number; depth: number }, pieces: Piece[], places: MarkPlaces, markOutlines?: Contour[]): PlateLayout {
+  return {
+    slab: { shape: o.slab.shape, width: slab.width, depth: slab.depth, outline: slab.outline.toPolygons(), thickness: o.slab.thickness },
+    bed: o.layout.bed,
+    ...(markOutlines ? { markOutlines } : {}),
+    utilisation: pieces.reduce((s, p) => s + p.fp.shadowArea, 0) / slab.outline.area(),
+    marks: markList(places),
+  };
+}
+
+/** What a slicer makes of the slab and the gap (options.ts), and the floor left under the deepest engraving. */
+function slicingOf(o: SlabOptions, reliefs: Reliefs): NonNullable<PlateResult["slicing"]> {
+  const sliced = slicedGap(o);
+  return { slabTop: sliced.slabTop, pieceBase: sliced.pieceBase, gap: sliced.gap, gapLayers: sliced.layers, minFloor: o.slab.thickness - Math.max(0, ...reliefs.engrave.keys()) };
 }
 
 /** The files asked for in `formats`, each timed as its own stage. */

@@ -4,7 +4,7 @@ import type { Bands, NumberGlyphs } from "./mark-bands";
 import { NUMBER_GAP, NUMBER_PAD } from "./mark-bands";
 import { lineWidth, type TextShape } from "./marks/text";
 import type { SlabOptions } from "./options";
-import { pieceBounds, type Piece } from "./pieces";
+import { pieceBounds, pieceInSlot, type Piece } from "./pieces";
 import type { Box } from "./plate-context";
 
 /** What a piece's rectangle on the bed holds besides its shadow. */
@@ -78,8 +78,7 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
   // over them: the slab looks balanced and a disc round it comes out smaller.
   const centre = manual.length === 0 ? Math.max(0, (bands.w - found.width) / 2) : 0;
   for (const packed of found.packed) {
-    // Pack keys are slots, which count from 1 in kit order.
-    const p = pieces[packed.key - 1]!;
+    const p = pieceInSlot(pieces, packed.key);
     if (packed.choice === 1) p.angle = (p.angle + 90) % 360;
     const rb = rotatedBounds(p.fp.hull, p.angle);
     p.x = packed.x + m + manualMaxX + centre + gutter + ext - rb.minX;

@@ -1,4 +1,5 @@
 import type { CrossSection } from "manifold-3d";
+import type { CheckInput } from "./checks";
 import { bestPackingAngle, measureFootprint, rotatedBounds, type PartFootprint } from "./footprint";
 import type { Kernel, Scope } from "./kernel";
 import type { NumberGlyphs } from "./mark-bands";
@@ -110,6 +111,11 @@ export function kitPieces(o: SlabOptions, parts: PlatePart[], footprints: PartFo
   return pieces;
 }
 
+/** The piece in a slot (slots count from 1 in kit order, as `kitPieces` gives them). */
+export function pieceInSlot(pieces: Piece[], slot: number): Piece {
+  return pieces[slot - 1]!;
+}
+
 /** The piece's shadow extent where it stands (its hull turned and moved). */
 export function pieceBounds(p: Piece): Box {
   const rb = rotatedBounds(p.fp.hull, p.angle);
@@ -165,6 +171,11 @@ export type PlacedPiece = {
   numberAt?: { x: number; y: number };
 };
 
+/** The pieces as the plate checks take them (checks.ts), in kit order. */
+export function checkedPieces(pieces: Piece[], numberOf: Map<number, number>, shadows: CrossSection[], ringExt: number): CheckInput["pieces"] {
+  return pieces.map((p, i) => ({ number: numberOf.get(p.slot)!, shadow: shadows[i]!, name: p.part.name, height: p.fp.height, contactArea: p.fp.contactArea, partId: p.part.id, bounds: pieceBounds(p), ringExt }));
+}
+
 /** The pieces as the result lists them, by number (`shadows` in the pieces' order, `glyphs` by slot). */
 export function placedPieces(pieces: Piece[], at: { numberOf: Map<number, number>; shadows: CrossSection[]; glyphs: Map<number, NumberGlyphs>; z: number }): PlacedPiece[] {
   const placed = pieces.map((p, i): PlacedPiece => {
@@ -192,7 +203,7 @@ export function placedPieces(pieces: Piece[], at: { numberOf: Map<number, number
 
 /** Each placed piece's mesh: its part's own welded mesh turned and moved in plain arithmetic (no kernel round trip). */
 export function pieceMeshes(placed: PlacedPiece[], pieces: Piece[]): { piece: PlacedPiece; mesh: IndexedMesh }[] {
-  return placed.map((p) => ({ piece: p, mesh: placeMesh(pieces[p.slot - 1]!.part.mesh, p.rotation, p.x, p.y, p.z) }));
+  return placed.map((p) => ({ piece: p, mesh: placeMesh(pieceInSlot(pieces, p.slot).part.mesh, p.rotation, p.x, p.y, p.z) }));
 }
 
 /** Turn a mesh about Z by `deg` and move it to (x, y, z). */
