@@ -1,7 +1,6 @@
 import { rotatedBounds } from "./footprint";
 import { arrange, areaScore, type PackItem } from "./layout";
-import type { Bands, NumberGlyphs } from "./mark-bands";
-import { NUMBER_GAP, NUMBER_PAD } from "./mark-bands";
+import { NUMBER_GAP, NUMBER_PAD, type Bands, type NumberGlyphs } from "./mark-bands";
 import { lineWidth, type TextShape } from "./marks/text";
 import type { SlabOptions } from "./options";
 import { pieceBounds, pieceInSlot, type Piece } from "./pieces";
@@ -38,7 +37,8 @@ export type Placing = { fits: true } | { fits: false; needW: number; maxW: numbe
 
 /**
  * Hand-placed pieces keep their places; the rest are packed to their right, above the bottom band,
- * within the bed less its margins and the bands. Sets each piece's angle, x and y.
+ * within the bed less its margins and the bands. Sets each piece's angle, x and y. Packed pieces do
+ * not fit when the packer finds no place for them, or the bands or a text line are wider than the bed.
  */
 export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, bands: Bands, texts: { shape: TextShape }[]): Placing {
   const m = o.slab.margin;
