@@ -9,7 +9,53 @@ export type Severity = "error" | "warning" | "info";
  * One thing the checks found. `field`, where an option is the cause, is its path in the options
  * (as zod reports a path: ["marks", "text", 0, "depth"]), so a form shows the finding at that field.
  */
-export type Finding = { severity: Severity; code: string; message: string; piece?: number; pieces?: number[]; field?: (string | number)[] };
+export type Finding = { severity: Severity; code: FindingCode; message: string; piece?: number; pieces?: number[]; field?: (string | number)[] };
+
+/**
+ * Every code a finding can carry, by the stage that raises it, so a caller outside the engine
+ * compares codes with type checking (`f.code === "small_part"`; a misspelt code does not compile).
+ */
+export type FindingCode =
+  // The parts as read (units.ts), before anything is built.
+  | "units_suspect"
+  | "part_too_small"
+  | "part_larger_than_bed"
+  // The marks' shapes and the room a template gives them.
+  | "logo_too_complex"
+  | "text_too_long"
+  | "qr_too_large"
+  // The layout on the bed.
+  | "does_not_fit"
+  | "piece_numbers_mismatch"
+  // The slab's outline.
+  | "corners_grow_slab"
+  | "corner_radius_limited"
+  // Engraving depths and embossing heights.
+  | "emboss_needs_height"
+  | "slab_too_thin_to_engrave"
+  | "mark_too_deep"
+  // The laid-out plate (runChecks).
+  | "slab_outside_bed"
+  | "piece_outside_bed"
+  | "pieces_overlap"
+  | "pieces_fuse"
+  | "pieces_too_close"
+  | "off_slab"
+  | "contact_too_small"
+  | "tip_over_risk"
+  | "mark_collides"
+  | "qr_quiet_zone"
+  | "qr_module_too_small"
+  | "ring_too_narrow"
+  | "stroke_too_thin"
+  | "sharp_corners"
+  | "gap_out_of_range"
+  | "gap_sliced_away"
+  | "gap_below_layer"
+  | "gap_sliced"
+  | "thickness_sliced"
+  | "small_part"
+  | "unfilled_placeholder";
 
 type Box = { minX: number; minY: number; maxX: number; maxY: number };
 

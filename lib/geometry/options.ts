@@ -193,6 +193,15 @@ export function deepestEngraving(o: Pick<SlabOptions, "layerHeight" | "slab">): 
   return Math.max(0, o.slab.thickness - floorUnderMarks(o));
 }
 
+/** What an engraving left to its default is cut: two layers' worth (0.4 mm, common practice), or as deep as a thinner slab allows. */
+export const DEFAULT_CUT_DEPTH = 0.4;
+
+/** The depth of a ring, pocket or number: as asked or, where left out, the default (DEFAULT_CUT_DEPTH). */
+export function depthOrDefault(o: Pick<SlabOptions, "layerHeight" | "slab">, depth: Depth | undefined): Depth {
+  const deepest = deepestEngraving(o);
+  return depth ?? (deepest >= 0.1 ? Math.min(DEFAULT_CUT_DEPTH, Math.round(deepest * 1e6) / 1e6) : DEFAULT_CUT_DEPTH);
+}
+
 /**
  * What a slicer makes of the slab and the gap. Layers start at z = 0 with the first layer, then
  * `layerHeight` each; a layer is cut at its middle height (as slicers do), so a solid fills every

@@ -1,7 +1,6 @@
 import type { CrossSection } from "manifold-3d";
 import type { Kernel, Scope } from "./kernel";
 import type { Contour } from "./marks/text";
-import type { Finding } from "./checks";
 import type { SlabOptions } from "./options";
 
 export type SlabShape = SlabOptions["slab"]["shape"];
@@ -46,11 +45,21 @@ function least(hi: number, ok: (x: number) => boolean): number {
 }
 
 /**
+ * What became of round corners that would cut into the content: the slab grown evenly by `grownBy`
+ * on every side to `size` (`largestFitting` is the radius that would have kept it at its smallest),
+ * or, where that slab (`grownSize`) would leave the bed, the radius limited to `radius`. A finding
+ * says which (build-checks.ts).
+ */
+export type CornerFit =
+  | { kind: "grown"; asked: number; grownBy: number; size: [number, number]; largestFitting: number }
+  | { kind: "limited"; asked: number; radius: number; grownSize: [number, number] };
+
+/**
  * A rounded rectangle that holds every piece (with its ring), number and band with the margin, by
  * construction. Round corners cut into the content's box: the slab grows evenly just enough for the
- * asked radius; if that would leave the bed, the radius is limited instead. Either is said in a finding.
+ * asked radius; if that would leave the bed, the radius is limited instead.
  */
-export function roundedSlab(o: SlabOptions, b: Box, points: ContentPoint[]): { box: Box; radius: number; note?: Finding } {
+export function roundedSlab(o: SlabOptions, b: Box, points: ContentPoint[]): { box: Box; radius: number; corners?: CornerFit } {
   const m = o.slab.margin;
   const r = o.slab.cornerRadius;
   const tight = grow(b, m);
@@ -59,31 +68,14 @@ export function roundedSlab(o: SlabOptions, b: Box, points: ContentPoint[]): { b
   const e = least(r, (x) => holds(grow(tight, x), r, m, points));
   const box = grow(tight, e);
   const bed = o.layout.bed;
-  if (box.maxX - box.minX <= bed.width + 1e-6 && box.maxY - box.minY <= bed.depth + 1e-6) {
+  const size: [number, number] = [box.maxX - box.minX, box.maxY - box.minY];
+  if (size[0] <= bed.width + 1e-6 && size[1] <= bed.depth + 1e-6) {
     // A few tenths of a millimetre (the margin kept round a mark's corner) go unsaid.
     if (e < 0.5) return { box, radius: r };
-    return {
-      box,
-      radius: r,
-      note: {
-        severity: "info",
-        code: "corners_grow_slab",
-        field: ["slab", "cornerRadius"],
-        message: `The ${r} mm corners would cut into the pieces and marks, so the slab is ${(2 * e).toFixed(1)} mm wider and deeper than they need (${(box.maxX - box.minX).toFixed(1)} × ${(box.maxY - box.minY).toFixed(1)} mm). Choose a radius of ${maxRadius(tight, m, points).toFixed(1)} mm or less (or a disc) to keep it at its smallest.`,
-      },
-    };
+    return { box, radius: r, corners: { kind: "grown", asked: r, grownBy: e, size, largestFitting: maxRadius(tight, m, points) } };
   }
   const fit = maxRadius(tight, m, points);
-  return {
-    box: tight,
-    radius: fit,
-    note: {
-      severity: "warning",
-      code: "corner_radius_limited",
-      field: ["slab", "cornerRadius"],
-      message: `Corners of ${r} mm would cut into the pieces and marks, and a slab grown to hold them (${(box.maxX - box.minX).toFixed(1)} × ${(box.maxY - box.minY).toFixed(1)} mm) would not fit the ${bed.width} × ${bed.depth} mm bed; the corners are rounded to ${fit.toFixed(1)} mm instead. Choose ${(Math.floor(fit * 10 + 0.01) / 10).toFixed(1)} mm or less, or a disc.`,
-    },
-  };
+  return { box: tight, radius: fit, corners: { kind: "limited", asked: r, radius: fit, grownSize: size } };
 }
 
 /** The largest corner radius the tight box allows with every point held (bisection; 0 always works). */
@@ -137,7 +129,7 @@ export function disc(cx: number, cy: number, r: number, segments = DISC_SEGMENTS
  * contour that follows the pieces (their shadows grown by the margin, gaps between them closed, and
  * the result kept as one outline).
  */
-export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: { boxes: Box[]; points: ContentPoint[]; pieceShadows: CrossSection[]; ext: number }): { outline: CrossSection; note?: Finding } {
+export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: { boxes: Box[]; points: ContentPoint[]; pieceShadows: CrossSection[]; ext: number }): { outline: CrossSection; corners?: CornerFit } {
   const { CrossSection } = kernel.wasm;
   const m = o.slab.margin;
   const b = content.boxes.reduce(
@@ -167,7 +159,7 @@ export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, conten
   }
   const r = roundedSlab(o, b, content.points);
   const outline = scope.track(new CrossSection([roundedRect(r.box.minX, r.box.minY, r.box.maxX - r.box.minX, r.box.maxY - r.box.minY, r.radius)]));
-  return r.note ? { outline, note: r.note } : { outline };
+  return r.corners ? { outline, corners: r.corners } : { outline };
 }
 
 export type Circle = { x: number; y: number; r: number };

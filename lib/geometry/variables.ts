@@ -9,3 +9,8 @@ export function placeholders(value: string): string[] {
 export function fillPlaceholders(value: string, vars: Record<string, string>): string {
   return value.replace(PLACEHOLDER, (whole, name: string) => vars[name.toLowerCase()] ?? whole);
 }
+
+/** The placeholders still in a filled value, as written (a check names each one that has no value). */
+export function unfilledPlaceholders(value: string): string[] {
+  return [...value.matchAll(PLACEHOLDER)].map((m) => m[0]);
+}

@@ -13,6 +13,15 @@ export type TextShape = {
   emSize: number;
 };
 
+/**
+ * How long a laid-out line is: from its pen origin (or from its ink, where a glyph reaches left of
+ * the origin) to the right end of its ink. A band reserves this much for the line, and every check
+ * on a line's length (its template's maxWidth, the bed) measures this.
+ */
+export function lineWidth(shape: Pick<TextShape, "bounds">): number {
+  return shape.bounds.maxX - Math.min(0, shape.bounds.minX);
+}
+
 /** Chord tolerance for flattening glyph curves, mm: area error about 2·10⁻³ on 5 mm text (measured). */
 export const TEXT_TOLERANCE = 0.01;
 
