@@ -248,13 +248,13 @@ describe("messages at their fields", () => {
   it("findings: only errors and warnings that name a field, grouped by field", () => {
     const findings: Finding[] = [
       { severity: "error", code: "mark_too_deep", message: "too deep", field: ["marks", "numberStyle", "depth"] },
-      { severity: "warning", code: "thin_ring", message: "thin", field: ["marks", "numberStyle", "depth"] },
-      { severity: "info", code: "note", message: "fyi", field: ["slab", "gap"] },
+      { severity: "warning", code: "stroke_too_thin", message: "thin", field: ["marks", "numberStyle", "depth"] },
+      { severity: "info", code: "gap_sliced", message: "fyi", field: ["slab", "gap"] },
       { severity: "error", code: "pieces_overlap", message: "overlap", piece: 1 },
-      { severity: "warning", code: "wide", message: "wide", field: ["marks", "text", 0, "maxWidth"] },
+      { severity: "warning", code: "text_too_long", message: "wide", field: ["marks", "text", 0, "maxWidth"] },
     ];
     const notes = fieldNotes(findings, { text: [newLine("", 4), newLine("A", 4)] });
     expect([...notes.keys()]).toEqual(["numberStyle.depth", "text.1.maxWidth"]);
-    expect(notes.get("numberStyle.depth")?.map((n) => n.code)).toEqual(["mark_too_deep", "thin_ring"]);
+    expect(notes.get("numberStyle.depth")?.map((n) => n.code)).toEqual(["mark_too_deep", "stroke_too_thin"]);
   });
 });
