@@ -3,7 +3,11 @@ import { templateVariableSchema } from "@/lib/geometry/template";
 import { apiKeyScopes } from "@/db/schema/workspaces";
 import { slabOptionsSchema } from "@/lib/geometry/options";
 import { APP_VERSION } from "@/lib/version";
+import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, IMPORT_FORMAT_IDS, IMPORT_FORMATS } from "@/lib/geometry/formats";
 import { formatSchema, quantitySchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
+
+/** A plate file in each export format, by its media type. */
+const fileContent = () => Object.fromEntries(EXPORT_FORMAT_IDS.map((f) => [EXPORT_FORMATS[f].mime, { schema: { type: "string", contentMediaType: EXPORT_FORMATS[f].mime } }]));
 
 /** Response shapes of the public API, as zod schemas: the OpenAPI document is generated from them. */
 export const errorSchema = z.object({ error: z.object({ code: z.string(), message: z.string(), details: z.unknown().optional() }) });
@@ -14,7 +18,7 @@ export const jobSchema = z
     progress: z.number().min(0).max(1),
     statusUrl: z.string(),
     plate: z.object({ id: z.string(), url: z.string() }),
-    result: z.object({ stl: z.string(), "3mf": z.string() }).nullable(),
+    result: z.object(Object.fromEntries(EXPORT_FORMAT_IDS.map((f) => [f, z.string()]))).nullable(),
     error: z.object({ code: z.string(), message: z.string(), details: z.unknown().optional() }).nullable(),
   })
   ;
@@ -114,12 +118,12 @@ export function openApiDocument() {
             { name: "Prefer", in: "header", required: false, schema: { type: "string", enum: ["respond-async"] }, description: "Answer 202 with the job at once." },
             { name: "format", in: "query", required: false, schema: schema(formatSchema) },
           ],
-          requestBody: { required: true, content: { "multipart/form-data": { schema: schema(plateForm, "input"), encoding: { part: { contentType: "application/octet-stream, model/stl, model/3mf, model/obj" } } } } },
+          requestBody: { required: true, content: { "multipart/form-data": { schema: schema(plateForm, "input"), encoding: { part: { contentType: ["application/octet-stream", ...IMPORT_FORMAT_IDS.flatMap((f) => IMPORT_FORMATS[f].mime)].join(", ") } } } } },
           responses: {
             "200": {
               description: "The plate file (or JSON with format=json). Headers X-Plate-Id and X-Plate-Warnings.",
               headers: { "X-Plate-Id": { schema: { type: "string" } }, "X-Plate-Warnings": { schema: { type: "string" } } },
-              content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } }, "application/json": { schema: ref("Plate") } },
+              content: { ...fileContent(), "application/json": { schema: ref("Plate") } },
             },
             "202": { description: "Still building: poll the job.", content: { "application/json": { schema: { type: "object", properties: { job: ref("Job") }, required: ["job"] } } } },
             ...errors(400, 401, 402, 403, 404, 409, 413, 415, 422, 429),
@@ -136,8 +140,8 @@ export function openApiDocument() {
         get: {
           operationId: "getPlateFile",
           summary: "A plate's file (scope plates:read)",
-          parameters: [idParam("id"), { name: "format", in: "query", required: false, schema: { type: "string", enum: ["stl", "3mf"] } }],
-          responses: { "200": { description: "The file", content: { "model/stl": { schema: { type: "string", contentMediaType: "model/stl" } }, "model/3mf": { schema: { type: "string", contentMediaType: "model/3mf" } } } }, ...errors(400, 401, 403, 404, 409, 429) },
+          parameters: [idParam("id"), { name: "format", in: "query", required: false, schema: { type: "string", enum: EXPORT_FORMAT_IDS } }],
+          responses: { "200": { description: "The file", content: fileContent() }, ...errors(400, 401, 403, 404, 409, 429) },
         },
       },
       "/api/v1/plates/{id}/map.pdf": {

@@ -4,6 +4,7 @@ import type { Plate } from "@/db/schema";
 import type { StreamedForm } from "@/lib/api/multipart";
 import { BadRequest, Conflict, Invalid } from "@/lib/errors";
 import type { PlateOrder } from "@/lib/plates/request";
+import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, type ExportFormatId } from "@/lib/geometry/formats";
 import { blobStore } from "@/lib/storage";
 import { formatSchema, quantitySchema, unitSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
@@ -78,7 +79,7 @@ export function jobView(p: Plate) {
     progress: p.progress,
     statusUrl: `/api/v1/jobs/${p.jobId}`,
     plate: { id: p.id, url: `/api/v1/plates/${p.id}` },
-    result: p.jobState === "done" ? { stl: `/api/v1/plates/${p.id}/file?format=stl`, "3mf": `/api/v1/plates/${p.id}/file?format=3mf` } : null,
+    result: p.jobState === "done" ? Object.fromEntries(EXPORT_FORMAT_IDS.map((f) => [f, `/api/v1/plates/${p.id}/file?format=${f}`])) : null,
     error: p.error ?? null,
   };
 }
@@ -98,17 +99,17 @@ export function plateView(p: Plate) {
 }
 
 /** The plate's file with its headers: type, a file name, the plate id and its warnings. */
-export async function plateFile(plate: Plate, format: "stl" | "3mf"): Promise<Response> {
+export async function plateFile(plate: Plate, format: ExportFormatId): Promise<Response> {
   const key = format === "stl" ? plate.stlBlobKey : plate.threeMfBlobKey;
   if (!key || plate.jobState !== "done") throw new Conflict("not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
   const bytes = await blobStore().get(key);
   const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
   // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.
   const stem = (plate.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
-  const name = `${stem}-${plate.createdAt.toISOString().slice(0, 10)}-${plate.id.slice(0, 4)}.${format}`;
+  const name = `${stem}-${plate.createdAt.toISOString().slice(0, 10)}-${plate.id.slice(0, 4)}${EXPORT_FORMATS[format].extension}`;
   return new Response(bytes as Uint8Array<ArrayBuffer>, {
     headers: {
-      "Content-Type": format === "stl" ? "model/stl" : "model/3mf",
+      "Content-Type": EXPORT_FORMATS[format].mime,
       "Content-Disposition": `attachment; filename="${name}"`,
       "Content-Length": String(bytes.byteLength),
       "X-Plate-Id": plate.id,

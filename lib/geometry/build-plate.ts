@@ -2,6 +2,7 @@ import type { CrossSection, Manifold } from "manifold-3d";
 import { cornerFinding, doesNotFit, logoTooComplex, markDepths, pieceNumbersMismatch, roomForValues } from "./build-checks";
 import { runChecks, type Finding } from "./checks";
 import { estimate, type Estimates } from "./estimates";
+import { EXPORT_FORMAT_IDS, type ExportFormatId } from "./formats";
 import type { FontBook } from "./fonts";
 import { write3mf } from "./io/3mf-write";
 import { writeBinaryStl } from "./io/stl-write";
@@ -27,7 +28,7 @@ export type BuildInput = {
   fonts: FontBook;
   variables?: Record<string, string>;
   /** Files to write; none for a preview or a check-only build. */
-  formats?: ("stl" | "3mf")[];
+  formats?: ExportFormatId[];
   title?: string;
   deflateRaw?: DeflateRaw;
   /**
@@ -160,7 +161,7 @@ function build(ctx: BuildContext): PlateResult {
   laps.lap("slab booleans");
   const bodies: NonNullable<PlateResult["bodies"]> = [{ name: "Slab", mesh: solid.mesh }, ...pieceMeshes(placed, pieces).map(({ piece, mesh }) => ({ name: `${piece.number} · ${piece.partName}`, mesh, piece: piece.number }))];
   laps.lap("pieces");
-  const { stl, threeMf } = plateFiles(ctx, bodies, `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap`);
+  const { stl, "3mf": threeMf } = plateFiles(ctx, bodies, `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap`);
   const estimates = estimate(o, solid.volume, placed.map((p) => ({ number: p.number, volume: measures[pieceInSlot(pieces, p.slot).partIndex]!.volume })));
   const triangles = bodies.reduce((s, b) => s + b.mesh.triVerts.length / 3, 0);
   return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings: laps.timings }, slicing, bodies };
@@ -183,18 +184,14 @@ function slicingOf(o: SlabOptions, reliefs: Reliefs): NonNullable<PlateResult["s
   return { slabTop: sliced.slabTop, pieceBase: sliced.pieceBase, gap: sliced.gap, gapLayers: sliced.layers, minFloor: o.slab.thickness - Math.max(0, ...reliefs.engrave.keys()) };
 }
 
-/** The files asked for in `formats`, each timed as its own stage. */
-function plateFiles(ctx: BuildContext, bodies: NonNullable<PlateResult["bodies"]>, description: string): { stl?: Uint8Array; threeMf?: Uint8Array } {
-  const { input, laps, vars } = ctx;
-  const formats = input.formats ?? [];
-  let stl: Uint8Array | undefined;
-  let threeMf: Uint8Array | undefined;
-  if (formats.includes("stl")) {
-    stl = writeBinaryStl(bodies.map((b) => b.mesh));
-    laps.lap("stl");
-  }
-  if (formats.includes("3mf")) {
-    threeMf = write3mf(
+type FileBody = NonNullable<PlateResult["bodies"]>[number];
+type Writer = (bodies: FileBody[], ctx: BuildContext, description: string) => Uint8Array;
+
+/** Each export format's writer (formats.ts lists the formats; a new one does not compile without its writer here). */
+const WRITERS: Record<ExportFormatId, Writer> = {
+  stl: (bodies) => writeBinaryStl(bodies.map((b) => b.mesh)),
+  "3mf": (bodies, { input, vars }, description) =>
+    write3mf(
       bodies.map((b) => ({ name: b.name, mesh: b.mesh, partNumber: b.piece ? String(b.piece) : "slab" })),
       {
         title: input.title ?? "Slabwright plate",
@@ -203,8 +200,17 @@ function plateFiles(ctx: BuildContext, bodies: NonNullable<PlateResult["bodies"]
         ...(/^\d{4}-\d{2}-\d{2}$/.test(vars.date ?? "") ? { creationDate: new Date(`${vars.date}T00:00:00Z`) } : {}),
       },
       input.deflateRaw,
-    );
-    laps.lap("3mf");
+    ),
+};
+
+/** The files asked for in `formats` (in the registry's order), each timed as its own stage. */
+function plateFiles(ctx: BuildContext, bodies: FileBody[], description: string): Partial<Record<ExportFormatId, Uint8Array>> {
+  const asked = new Set(ctx.input.formats ?? []);
+  const files: Partial<Record<ExportFormatId, Uint8Array>> = {};
+  for (const f of EXPORT_FORMAT_IDS) {
+    if (!asked.has(f)) continue;
+    files[f] = WRITERS[f](bodies, ctx, description);
+    ctx.laps.lap(f);
   }
-  return { stl, threeMf };
+  return files;
 }

@@ -2,6 +2,8 @@
  * Typed errors of the engine. Every import problem carries a stable `code` (for the API and the UI),
  * the file's name, and a plain message a person can act on.
  */
+import { ACCEPTED_FORMATS } from "./formats";
+
 export type ImportErrorCode =
   | "not_a_mesh"
   | "empty"
@@ -39,7 +41,7 @@ export class MeshImportError extends Error {
   }
 }
 
-export const ACCEPTED_FORMATS = ["STL (binary or ASCII)", "3MF", "OBJ"] as const;
+export { ACCEPTED_FORMATS };
 
 export class UnsupportedFormatError extends MeshImportError {
   constructor(file: string, why: string) {

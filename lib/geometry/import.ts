@@ -1,4 +1,5 @@
 import { MeshImportError } from "./errors";
+import type { ImportFormatId } from "./formats";
 import { read3mf } from "./io/3mf-read";
 import { readObj } from "./io/obj-read";
 import { UNIT_MM, type RawModel, type RawObject, type Unit } from "./io/raw";
@@ -54,6 +55,13 @@ export type ImportResult = {
   warnings: ImportWarning[];
 };
 
+/** Each format's reader (formats.ts lists the formats; a new one does not compile without its reader here). */
+const READERS: Record<ImportFormatId, (bytes: Uint8Array, file: string, limits: ImportLimits) => RawModel> = {
+  "3mf": read3mf,
+  obj: readObj,
+  stl: (bytes, file, limits) => readStl(bytes, file, limits.maxTriangles),
+};
+
 /**
  * Bytes in, closed indexed shells out. Steps: read → scale to millimetres → weld exact duplicates →
  * drop degenerate triangles → (if edges are still open) weld within a tolerance → make winding
@@ -66,10 +74,7 @@ export function importMesh(bytes: Uint8Array, kernel: Kernel, options: ImportOpt
     throw new MeshImportError("file_too_large", file, `the file is ${mb(bytes.byteLength)} MB; the limit is ${mb(limits.maxBytes)} MB`, { bytes: bytes.byteLength, limit: limits.maxBytes });
   }
   const format = detectFormat(bytes, file);
-  let raw: RawModel;
-  if (format === "3mf") raw = read3mf(bytes, file, limits);
-  else if (format === "obj") raw = readObj(bytes, file, limits);
-  else raw = readStl(bytes, file, limits.maxTriangles);
+  const raw = READERS[format](bytes, file, limits);
 
   const unit: Unit = options.unit ?? raw.declaredUnit ?? "millimeter";
   const scale = UNIT_MM[unit];

@@ -5,6 +5,7 @@ import type { LogoMark, QrMark, SlabOptions, TextMark } from "./options";
 import type { PieceRoom } from "./piece-layout";
 import { pieceBounds, type Piece } from "./pieces";
 import type { Box, PlateContext } from "./plate-context";
+import { SHAPE_RULES } from "./slab";
 import { fillPlaceholders } from "./variables";
 
 /** Baseline to baseline of two text lines in a band, in cap heights of the lower line. */
@@ -123,7 +124,7 @@ export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, fra
       // On a disc the lines are centred (in the room the QR leaves), which keeps the disc small.
       const room = frame.innerW - b.logoW - (b.qr ? b.qr.shape.sizeWithQuietZone + spacing : 0);
       const width = lineWidth(t.shape);
-      const indent = o.slab.shape === "disc" ? Math.max(0, (room - width) / 2) : 0;
+      const indent = SHAPE_RULES[o.slab.shape].centreText ? Math.max(0, (room - width) / 2) : 0;
       texts.push({ ...t, x: frame.minX + b.logoW + indent - Math.min(0, t.shape.bounds.minX), y });
     });
   };

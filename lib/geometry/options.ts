@@ -1,5 +1,6 @@
 import { z } from "zod";
 import { ENGRAVING_FONTS } from "./fonts";
+import { SLAB_SHAPE_IDS } from "./slab-shapes";
 
 /**
  * The slab builder's options: the one canonical table. The slab editor's form, the plate API and
@@ -122,7 +123,7 @@ export const slabOptionsSchema = z
   .object({
     slab: z
       .object({
-        shape: z.enum(["disc", "rounded-rect", "contour"]).default("rounded-rect"),
+        shape: z.enum(SLAB_SHAPE_IDS).default(SLAB_SHAPE_IDS[0]),
         thickness: mm(0.6, 3).default(1.0),
         /** Air gap between the slab's top and the pieces: one 0.2 mm layer by default (see `slicedGap`). */
         gap: mm(0.1, 0.5).default(0.2),

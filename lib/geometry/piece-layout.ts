@@ -1,5 +1,6 @@
 import { rotatedBounds } from "./footprint";
-import { arrange, areaScore, type PackItem } from "./layout";
+import { arrange, type PackItem } from "./layout";
+import { SHAPE_RULES } from "./slab";
 import { NUMBER_GAP, NUMBER_PAD, type Bands, type NumberGlyphs } from "./mark-bands";
 import { lineWidth, type TextShape } from "./marks/text";
 import type { SlabOptions } from "./options";
@@ -67,7 +68,7 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
   // for a disc, the diagonal of that whole block (the circle around it), else its area.
   const score = (w: number, h: number) => {
     const W = Math.max(w + manualMaxX, bands.w), H = h + bands.h;
-    return o.slab.shape === "disc" ? Math.hypot(W, H) : areaScore(W, H);
+    return SHAPE_RULES[o.slab.shape].packingScore(W, H);
   };
   const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, score);
   if (!found || texts.some((t) => lineWidth(t.shape) > maxW) || bands.w > maxW || maxH <= 0) {

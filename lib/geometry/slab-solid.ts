@@ -3,7 +3,7 @@ import type { Reliefs } from "./mark-reliefs";
 import type { IndexedMesh } from "./mesh";
 import { hullAt, placedShadow, type Piece } from "./pieces";
 import type { Box, PlateContext } from "./plate-context";
-import { slabOutline, type ContentPoint, type CornerFit } from "./slab";
+import { SHAPE_RULES, type ContentPoint, type CornerFit } from "./slab";
 
 /** The last few slab solids a process built, by a fingerprint of what shapes them (see `PartCache`). */
 export type SlabCache = Map<string, { mesh: IndexedMesh; volume: number }>;
@@ -25,7 +25,7 @@ export function slabAround(ctx: PlateContext, content: { pieces: Piece[]; pieceB
     ...content.pieces.flatMap((p) => hullAt(p).map(([x, y]) => ({ x, y, clearance: content.ext }))),
     ...boxes.flatMap((b) => [[b.minX, b.minY], [b.maxX, b.minY], [b.minX, b.maxY], [b.maxX, b.maxY]].map(([x, y]) => ({ x: x!, y: y!, clearance: 0 }))),
   ];
-  const shaped = slabOutline(kernel, scope, o, { boxes, points, pieceShadows: content.pieces.map((p) => placedShadow(scope, p)), ext: content.ext });
+  const shaped = SHAPE_RULES[o.slab.shape].outline(kernel, scope, o, { boxes, points, pieceShadows: content.pieces.map((p) => placedShadow(scope, p)), ext: content.ext });
   const ob = shaped.outline.bounds();
   const dx = -ob.min[0], dy = -ob.min[1];
   return {

@@ -1,9 +1,11 @@
 import type { CrossSection } from "manifold-3d";
 import type { Kernel, Scope } from "./kernel";
 import type { Contour } from "./marks/text";
+import { areaScore } from "./layout";
 import type { SlabOptions } from "./options";
+import type { SlabShapeId } from "./slab-shapes";
 
-export type SlabShape = SlabOptions["slab"]["shape"];
+export type { SlabShapeId as SlabShape } from "./slab-shapes";
 type Box = { minX: number; minY: number; maxX: number; maxY: number };
 
 /** A point the slab must hold with `clearance` + the margin all round it (a piece's hull vertex: its ring). */
@@ -124,43 +126,66 @@ export function disc(cx: number, cy: number, r: number, segments = DISC_SEGMENTS
   return pts;
 }
 
-/**
- * The slab's outline around everything on it plus the margin: a rounded rectangle, a disc, or a
- * contour that follows the pieces (their shadows grown by the margin, gaps between them closed, and
- * the result kept as one outline).
- */
-export function slabOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: { boxes: Box[]; points: ContentPoint[]; pieceShadows: CrossSection[]; ext: number }): { outline: CrossSection; corners?: CornerFit } {
-  const { CrossSection } = kernel.wasm;
-  const m = o.slab.margin;
-  const b = content.boxes.reduce(
+/** What the slab is built around: the content's boxes and points, the pieces' shadows and how far rings reach past them. */
+export type SlabContent = { boxes: Box[]; points: ContentPoint[]; pieceShadows: CrossSection[]; ext: number };
+export type OutlineResult = { outline: CrossSection; corners?: CornerFit };
+
+const boxOf = (boxes: Box[]) =>
+  boxes.reduce(
     (acc, x) => ({ minX: Math.min(acc.minX, x.minX), minY: Math.min(acc.minY, x.minY), maxX: Math.max(acc.maxX, x.maxX), maxY: Math.max(acc.maxY, x.maxY) }),
     { minX: Infinity, minY: Infinity, maxX: -Infinity, maxY: -Infinity },
   );
-  if (o.slab.shape === "disc") {
-    const pts = content.boxes.flatMap((x) => [[x.minX, x.minY], [x.maxX, x.minY], [x.minX, x.maxY], [x.maxX, x.maxY]] as [number, number][]);
-    const c = enclosingCircle(pts);
-    // Grow by the margin, and by the polygon's inset so the inscribed edges keep the full margin.
-    const radius = (c.r + m) / Math.cos(Math.PI / DISC_SEGMENTS);
-    return { outline: scope.track(new CrossSection([disc(c.x, c.y, radius)])) };
-  }
-  if (o.slab.shape === "contour") {
-    // 0.02 mm more than the margin: the round offsets' chords and the final simplification (0.01 mm)
-    // may then shave the outline, never the content.
-    const slack = m + 0.02;
-    const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + slack, "Round", 2, 48)));
-    const rects = content.boxes.map((x) => [[x.minX - slack, x.minY - slack], [x.maxX + slack, x.minY - slack], [x.maxX + slack, x.maxY + slack], [x.minX - slack, x.maxY + slack]] as Contour);
-    let cs = scope.track(CrossSection.union([...grown, ...rects.map((r) => scope.track(new CrossSection([r])))]));
-    // Close the gaps between neighbours (grow, then shrink by the same amount).
-    const close = Math.max(o.layout.spacing, 2) + m;
-    cs = scope.track(scope.track(cs.offset(close, "Round", 2, 48)).offset(-close, "Round", 2, 48));
-    const islands = cs.decompose().map((x) => scope.track(x));
-    if (islands.length > 1) cs = scope.track(cs.hull());
-    return { outline: scope.track(cs.simplify(0.01)) };
-  }
-  const r = roundedSlab(o, b, content.points);
-  const outline = scope.track(new CrossSection([roundedRect(r.box.minX, r.box.minY, r.box.maxX - r.box.minX, r.box.maxY - r.box.minY, r.radius)]));
+
+/** A disc round every content box, the smallest that holds them with the margin. */
+export function discOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent): OutlineResult {
+  const pts = content.boxes.flatMap((x) => [[x.minX, x.minY], [x.maxX, x.minY], [x.minX, x.maxY], [x.maxX, x.maxY]] as [number, number][]);
+  const c = enclosingCircle(pts);
+  // Grow by the margin, and by the polygon's inset so the inscribed edges keep the full margin.
+  const radius = (c.r + o.slab.margin) / Math.cos(Math.PI / DISC_SEGMENTS);
+  return { outline: scope.track(new kernel.wasm.CrossSection([disc(c.x, c.y, radius)])) };
+}
+
+/** An outline that follows the pieces: their shadows grown by the margin, gaps between them closed, kept as one outline. */
+export function contourOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent): OutlineResult {
+  const { CrossSection } = kernel.wasm;
+  // 0.02 mm more than the margin: the round offsets' chords and the final simplification (0.01 mm)
+  // may then shave the outline, never the content.
+  const slack = o.slab.margin + 0.02;
+  const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + slack, "Round", 2, 48)));
+  const rects = content.boxes.map((x) => [[x.minX - slack, x.minY - slack], [x.maxX + slack, x.minY - slack], [x.maxX + slack, x.maxY + slack], [x.minX - slack, x.maxY + slack]] as Contour);
+  let cs = scope.track(CrossSection.union([...grown, ...rects.map((r) => scope.track(new CrossSection([r])))]));
+  // Close the gaps between neighbours (grow, then shrink by the same amount).
+  const close = Math.max(o.layout.spacing, 2) + o.slab.margin;
+  cs = scope.track(scope.track(cs.offset(close, "Round", 2, 48)).offset(-close, "Round", 2, 48));
+  const islands = cs.decompose().map((x) => scope.track(x));
+  if (islands.length > 1) cs = scope.track(cs.hull());
+  return { outline: scope.track(cs.simplify(0.01)) };
+}
+
+/** A rounded rectangle round the content, grown (or its radius limited) so every content point keeps the margin. */
+export function roundedRectOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent): OutlineResult {
+  const r = roundedSlab(o, boxOf(content.boxes), content.points);
+  const outline = scope.track(new kernel.wasm.CrossSection([roundedRect(r.box.minX, r.box.minY, r.box.maxX - r.box.minX, r.box.maxY - r.box.minY, r.radius)]));
   return r.corners ? { outline, corners: r.corners } : { outline };
 }
+
+type ShapeRules = {
+  outline: (kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent) => OutlineResult;
+  /**
+   * How the packer rates a block of pieces with the mark bands, W × H mm (lower is better): the
+   * slab's area for a rectangle, the circle round the block (its diagonal) for a disc.
+   */
+  packingScore: (width: number, height: number) => number;
+  /** Text lines centred in their band (a disc stays small that way), else left-aligned. */
+  centreText: boolean;
+};
+
+/** What each slab shape (slab-shapes.ts) does. */
+export const SHAPE_RULES: Record<SlabShapeId, ShapeRules> = {
+  "rounded-rect": { outline: roundedRectOutline, packingScore: areaScore, centreText: false },
+  disc: { outline: discOutline, packingScore: (w, h) => Math.hypot(w, h), centreText: true },
+  contour: { outline: contourOutline, packingScore: areaScore, centreText: false },
+};
 
 export type Circle = { x: number; y: number; r: number };
 

@@ -2,7 +2,7 @@ import "server-only";
 import { env } from "@/lib/env";
 import { Invalid, TooLarge, UnsupportedMedia } from "@/lib/errors";
 import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/io/sniff";
-import { ACCEPTED_FORMATS } from "@/lib/geometry/errors";
+import { ACCEPTED_FORMATS } from "@/lib/geometry/formats";
 import { blobStore, BlobTooLargeError, type StoredBlob } from "@/lib/storage";
 
 /** Largest mesh upload accepted, bytes (SLAB_MAX_UPLOAD_BYTES overrides the engine's 200 MB default). */

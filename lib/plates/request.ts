@@ -5,6 +5,7 @@ import type { PlateInput } from "@/db/schema";
 import { kitForPlate } from "@/db/queries/plates";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import { Invalid, UnsupportedMedia } from "@/lib/errors";
+import { ACCEPTED_FORMATS } from "@/lib/geometry/formats";
 import { sniffHead } from "@/lib/geometry/io/sniff";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
@@ -76,7 +77,7 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
     for (const [i, f] of (order.files ?? []).entries()) {
       if (f.size === 0) throw new Invalid("empty", `${f.name}: the file is empty.`);
       if (!sniffHead(f.head, f.size) && !(f.size >= 84 && /\.stl$/i.test(f.name))) {
-        throw new UnsupportedMedia("not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads STL (binary or ASCII), 3MF and OBJ.`);
+        throw new UnsupportedMedia("not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.`);
       }
       input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: f.key, quantity: f.quantity, ...(f.unit ? { unit: API_UNITS[f.unit] } : {}) });
     }

@@ -1,7 +1,9 @@
 import { z } from "zod";
+import { EXPORT_FORMAT_IDS } from "@/lib/geometry/formats";
 
 /** Fields of the plate API's multipart form, shared by the route and the OpenAPI document. */
-export const formatSchema = z.enum(["stl", "3mf", "json"]);
+/** What the plate API answers with: a plate file (formats.ts) or the plate as JSON. */
+export const formatSchema = z.enum([...EXPORT_FORMAT_IDS, "json"]);
 export const variablesSchema = z.record(z.string().regex(/^[a-z][a-z0-9_]*$/i), z.string().max(500));
 export const quantitySchema = z.array(z.number().int().min(1).max(500));
 

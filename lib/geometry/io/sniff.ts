@@ -3,9 +3,9 @@
  * process refuses what is plainly not a mesh from here, and leaves every real read to the workers.
  */
 import { MeshImportError, UnsupportedFormatError } from "../errors";
-import { isBinaryStl, looksLikeAsciiStl } from "./stl-read";
+import { sniffImportFormat, type ImportFormatId } from "../formats";
 
-export type MeshFormat = "stl" | "3mf" | "obj";
+export type MeshFormat = ImportFormatId;
 
 export type ImportLimits = {
   maxBytes: number;
@@ -39,11 +39,7 @@ export const IMPORT_LIMITS: ImportLimits = {
 
 /** The format the bytes themselves show, or null: no file-name fallback (for refusing early). */
 export function sniffFormat(bytes: Uint8Array): MeshFormat | null {
-  if (bytes.byteLength >= 4 && bytes[0] === 0x50 && bytes[1] === 0x4b && bytes[2] === 0x03 && bytes[3] === 0x04) return "3mf";
-  if (isBinaryStl(bytes) || looksLikeAsciiStl(bytes)) return "stl";
-  const head = new TextDecoder("latin1").decode(bytes.subarray(0, Math.min(bytes.byteLength, 4096)));
-  if (/^\s*v\s/m.test(head)) return "obj";
-  return null;
+  return sniffImportFormat(bytes, bytes.byteLength);
 }
 
 /**
@@ -52,12 +48,7 @@ export function sniffFormat(bytes: Uint8Array): MeshFormat | null {
  * `head` should hold at least the first 4 kB (all of a smaller file).
  */
 export function sniffHead(head: Uint8Array, size: number): MeshFormat | null {
-  if (head.byteLength >= 4 && head[0] === 0x50 && head[1] === 0x4b && head[2] === 0x03 && head[3] === 0x04) return "3mf";
-  if (head.byteLength >= 84 && size === 84 + 50 * new DataView(head.buffer, head.byteOffset, head.byteLength).getUint32(80, true)) return "stl";
-  if (looksLikeAsciiStl(head)) return "stl";
-  const text = new TextDecoder("latin1").decode(head.subarray(0, Math.min(head.byteLength, 4096)));
-  if (/^\s*v\s/m.test(text)) return "obj";
-  return null;
+  return sniffImportFormat(head, size);
 }
 
 /** The format by content; a file named .stl that matches nothing goes to the STL reader, which says what is wrong. */

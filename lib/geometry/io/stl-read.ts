@@ -1,28 +1,14 @@
 import { MeshImportError, UnsupportedFormatError } from "../errors";
 import type { RawModel, RawObject } from "./raw";
+import { isBinaryStl, looksLikeAsciiStl } from "../formats";
+
+export { isBinaryStl, looksLikeAsciiStl };
 
 /**
  * STL (3D Systems StereoLithography Interface Specification, 1989). Binary files are told from ASCII by
  * the size rule 84 + 50·n with n the header's facet count — not by the word "solid", which many binary
  * exporters write into the header anyway.
  */
-export function isBinaryStl(bytes: Uint8Array): boolean {
-  if (bytes.byteLength < 84) return false;
-  const n = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(80, true);
-  return bytes.byteLength === 84 + 50 * n;
-}
-
-export function looksLikeAsciiStl(bytes: Uint8Array): boolean {
-  const head = new TextDecoder("latin1").decode(bytes.subarray(0, Math.min(bytes.byteLength, 512))).trimStart().toLowerCase();
-  if (!head.startsWith("solid")) return false;
-  // A binary file whose header begins with "solid" has control bytes soon after.
-  for (let i = 0; i < Math.min(bytes.byteLength, 512); i++) {
-    const c = bytes[i]!;
-    if (c < 9 || (c > 13 && c < 32)) return false;
-  }
-  return true;
-}
-
 export function readBinaryStl(bytes: Uint8Array, file: string, maxTriangles: number): RawModel {
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   if (bytes.byteLength < 84) {

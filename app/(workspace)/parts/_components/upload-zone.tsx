@@ -1,6 +1,7 @@
 "use client";
 
 import { useCallback, useRef, useState } from "react";
+import { ACCEPT_ATTRIBUTE } from "@/lib/geometry/formats";
 import { follow, type UploadBody } from "./follow-upload";
 
 type Item = {
@@ -14,7 +15,7 @@ type Item = {
   parts?: { id: string; name: string; bodies: number; warnings: { code: string; message: string; suggestion?: { unit: string } }[] }[];
 };
 
-const ACCEPT = ".stl,.3mf,.obj,model/stl,model/3mf,model/obj";
+const ACCEPT = ACCEPT_ATTRIBUTE;
 
 /** Send one file as the raw body with XMLHttpRequest, the one browser API that reports upload progress. */
 function send(file: File, onProgress: (sent: number) => void, onSent: () => void): Promise<{ status: number; body: unknown }> {

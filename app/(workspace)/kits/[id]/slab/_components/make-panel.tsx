@@ -1,6 +1,7 @@
 "use client";
 
 import { MATERIALS, type Material } from "@/lib/geometry/options";
+import { EXPORT_FORMAT_IDS, EXPORT_FORMATS } from "@/lib/geometry/formats";
 import type { Making } from "./use-make-plate";
 
 /** "Make the plate", its progress and downloads, and the cautions for printing and selling it. */
@@ -19,12 +20,11 @@ export function MakePanel({ making, disabled, onMake, material, smallParts }: { 
           </p>
           {making.status === "done" && making.plateId ? (
             <p className="space-x-3 text-xs">
-              <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=3mf`}>
-                Download 3MF
-              </a>
-              <a className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=stl`}>
-                Download STL
-              </a>
+              {EXPORT_FORMAT_IDS.map((f) => (
+                <a key={f} className="text-accent underline" href={`/api/plates/${making.plateId}/download?format=${f}`}>
+                  Download {EXPORT_FORMATS[f].label}
+                </a>
+              ))}
             </p>
           ) : null}
         </div>
