@@ -5,7 +5,7 @@ export type Health = { status: "ok" | "degraded"; db: "ok" | "down"; version: st
 
 /** Ask the database for one row, with a short deadline so a dead server answers quickly. */
 export async function checkHealth(pool: pg.Pool, timeoutMs = 2000): Promise<{ httpStatus: 200 | 503; body: Health }> {
-  let dbOk = false;
+  let dbOk: boolean;
   try {
     const query = pool.query("select 1 as ok");
     const timeout = new Promise<never>((_, reject) => setTimeout(() => reject(new Error("db timeout")), timeoutMs).unref());

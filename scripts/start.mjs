@@ -6,7 +6,6 @@ import path from "node:path";
 import {
   DATA,
   appEnv,
-  bin,
   databaseName,
   ensureBuild,
   ensureDatabase,

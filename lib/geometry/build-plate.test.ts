@@ -234,7 +234,7 @@ describe("layout", () => {
 describe("QR code on the slab", () => {
   const decodeBoth = (rgba: Uint8ClampedArray, w: number, h: number) => {
     const a = jsQR(rgba, w, h)?.data ?? null;
-    let b: string | null = null;
+    let b: string | null;
     try {
       const lum = new Uint8ClampedArray(w * h);
       for (let i = 0; i < w * h; i++) lum[i] = rgba[i * 4]!;

@@ -43,7 +43,7 @@ describe("damaged files", () => {
         try {
           importMesh(data, kernel, { fileName: name });
         } catch (err) {
-          if (!(err instanceof MeshImportError)) throw new Error(`${name} round ${round}: ${String(err)}`);
+          if (!(err instanceof MeshImportError)) throw new Error(`${name} round ${round}: ${String(err)}`, { cause: err });
           expect(err.message.length).toBeGreaterThan(name.length + 5);
           refused++;
         }

@@ -57,7 +57,10 @@ function slabKey(thickness: number, outline: CrossSection, reliefs: Reliefs): st
     const polys = (cs: CrossSection) => {
       for (const c of cs.toPolygons()) {
         add(c.length);
-        for (const [x, y] of c) (add(x), add(y));
+        for (const [x, y] of c) {
+          add(x);
+          add(y);
+        }
       }
     };
     polys(outline);
@@ -65,7 +68,10 @@ function slabKey(thickness: number, outline: CrossSection, reliefs: Reliefs): st
       for (const [depth, list] of map) {
         add(tag);
         add(depth);
-        for (const cs of list) (add(-1), polys(cs));
+        for (const cs of list) {
+          add(-1);
+          polys(cs);
+        }
       }
     }
   });

@@ -433,8 +433,14 @@ function hullSet(positions: ArrayLike<number>, n: number, center: [number, numbe
 function insideBall(p: PointSet): number {
   if (!p.faces?.length) return 0;
   let cx = 0, cy = 0, cz = 0;
-  for (let i = 0; i < p.n; i++) (cx += p.x[i]!), (cy += p.y[i]!), (cz += p.z[i]!);
-  (cx /= p.n), (cy /= p.n), (cz /= p.n);
+  for (let i = 0; i < p.n; i++) {
+    cx += p.x[i]!;
+    cy += p.y[i]!;
+    cz += p.z[i]!;
+  }
+  cx /= p.n;
+  cy /= p.n;
+  cz /= p.n;
   let r = Infinity;
   for (const f of p.faces) {
     const [a, b, c] = f as [[number, number, number], [number, number, number], [number, number, number]];
@@ -474,7 +480,11 @@ function farthest(p: PointSet): { length: number; axis: [number, number, number]
   for (let i = 0; i < p.n; i++) {
     for (let j = i + 1; j < p.n; j++) {
       const e = (p.x[i]! - p.x[j]!) ** 2 + (p.y[i]! - p.y[j]!) ** 2 + (p.z[i]! - p.z[j]!) ** 2;
-      if (e > d) (d = e), (a = i), (b = j);
+      if (e > d) {
+        d = e;
+        a = i;
+        b = j;
+      }
     }
   }
   const len = Math.sqrt(d) || 1;

@@ -1,7 +1,7 @@
 import "server-only";
 import { env } from "@/lib/env";
 import { Invalid, TooLarge, UnsupportedMedia } from "@/lib/errors";
-import { IMPORT_LIMITS, sniffHead } from "@/lib/geometry/io/sniff";
+import { sniffHead } from "@/lib/geometry/io/sniff";
 import { ACCEPTED_FORMATS } from "@/lib/geometry/formats";
 import { blobStore, BlobTooLargeError, type StoredBlob } from "@/lib/storage";
 

@@ -3,7 +3,7 @@
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useRouter } from "next/navigation";
 import { useState } from "react";
-import { useFieldArray, useForm } from "react-hook-form";
+import { useFieldArray, useForm, useWatch } from "react-hook-form";
 import type { z } from "zod";
 import { FormMessage } from "@/app/_components/form";
 import { kitSchema, ORIENTATION_LABEL, ORIENTATIONS } from "@/lib/validation/kits";
@@ -17,7 +17,8 @@ export function KitForm({ initial, parts }: { initial: Values; parts: { id: stri
   const form = useForm<Values, unknown, z.output<typeof kitSchema>>({ resolver: zodResolver(kitSchema), defaultValues: initial });
   const lines = useFieldArray({ control: form.control, name: "lines" });
   const errors = form.formState.errors;
-  const pieces = (form.watch("lines") ?? []).reduce((s, l) => s + (Number(l.quantity) || 0), 0);
+  const watched = useWatch({ control: form.control, name: "lines" });
+  const pieces = (watched ?? []).reduce((s, l) => s + (Number(l.quantity) || 0), 0);
 
   const onSubmit = form.handleSubmit(async (values) => {
     setMessage(null);

@@ -26,7 +26,7 @@ function send(file: File, onProgress: (sent: number) => void, onSent: () => void
     xhr.upload.onprogress = (e) => onProgress(e.loaded);
     xhr.upload.onload = onSent;
     xhr.onload = () => {
-      let body: unknown = null;
+      let body: unknown;
       try {
         body = JSON.parse(xhr.responseText);
       } catch {

@@ -2,8 +2,8 @@
 
 import { zodResolver } from "@hookform/resolvers/zod";
 import { useRouter } from "next/navigation";
-import { useEffect, useId, useState } from "react";
-import { useFieldArray, useForm } from "react-hook-form";
+import { useId, useState } from "react";
+import { useFieldArray, useForm, useWatch } from "react-hook-form";
 import { z } from "zod";
 import { useToast } from "@/app/_components/toasts";
 import { templateBodySchema, type TemplateVariableDef } from "@/lib/geometry/template";
@@ -35,17 +35,17 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
   const canVersion = Boolean(applied && !applied.starter);
   const form = useForm<SaveForm>({ resolver: zodResolver(saveSchema), defaultValues: { mode: canVersion ? "version" : "new", name: "", description: "", note: "", variables: [] } });
   const vars = useFieldArray({ control: form.control, name: "variables" });
-  // One row per placeholder in use; a template's own definitions (label, default) are kept.
-  useEffect(() => {
-    if (!open) return;
+  // One row per placeholder in use, made when the form opens; a template's own definitions (label, default) are kept.
+  const openForm = () => {
     const known = new Map<string, TemplateVariableDef>((applied?.variables ?? []).map((v) => [v.name, v]));
     const current = new Map(form.getValues("variables").map((v) => [v.name, v]));
     form.setValue(
       "variables",
       names.map((n) => current.get(n) ?? { name: n, label: known.get(n)?.label ?? "", default: known.get(n)?.default ?? "", sample: values.samples?.[n] ?? known.get(n)?.sample ?? "" }),
     );
-  }, [open, names.join("|")]);
-  const mode = form.watch("mode");
+    setOpen(true);
+  };
+  const mode = useWatch({ control: form.control, name: "mode" });
 
   const submit = form.handleSubmit(async (f) => {
     setProblem(null);
@@ -68,7 +68,7 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
 
   if (!open) {
     return (
-      <button type="button" className="btn-quiet w-full px-2 py-1 text-xs" onClick={() => setOpen(true)}>
+      <button type="button" className="btn-quiet w-full px-2 py-1 text-xs" onClick={openForm}>
         Save as a template…
       </button>
     );

@@ -1,7 +1,7 @@
 "use client";
 
 import dynamic from "next/dynamic";
-import { useCallback, useEffect, useMemo, useState } from "react";
+import { useCallback, useMemo, useState } from "react";
 import { useForm, useWatch } from "react-hook-form";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
 import { slabOptionsSchema } from "@/lib/geometry/options";
@@ -18,6 +18,9 @@ import { useLayoutHistory } from "./use-layout-history";
 import { useMakePlate } from "./use-make-plate";
 import { useSlabWorker } from "./use-slab-worker";
 
+/** The form's values for a template: its options, and its variables' sample values (else their defaults). */
+const templateForm = (t: EditorTemplate) => optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default])));
+
 const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
 
 /**
@@ -26,7 +29,9 @@ const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: f
  * engine runs in a Web Worker (useSlabWorker); the plate is made on the server (useMakePlate).
  */
 export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, templates, initialTemplateId }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean; canSaveTemplates: boolean; templates: EditorTemplate[]; initialTemplateId?: string }) {
-  const form = useForm<FormValues>({ defaultValues: DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
+  // A template named in the address opens the editor with its options and sample values.
+  const [applied, setApplied] = useState<EditorTemplate | null>(() => templates.find((t) => t.id === initialTemplateId) ?? null);
+  const form = useForm<FormValues>({ defaultValues: applied ? templateForm(applied) : DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
   const values = useWatch({ control: form.control }) as FormValues;
   const layout = useLayoutHistory();
   const placements = layout.placements;
@@ -35,24 +40,23 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
 
   const options = useMemo(() => formToOptions(values, placements), [values, placements]);
   const check = useMemo(() => slabOptionsSchema.safeParse(options), [options]);
-  const [applied, setApplied] = useState<EditorTemplate | null>(() => templates.find((t) => t.id === initialTemplateId) ?? null);
   const wanted = useMemo(() => (applied ? applied.variables.map((v) => v.name) : valuePlaceholders(values)), [applied, values]);
   const samplesKey = JSON.stringify(wanted.map((n) => values.samples?.[n] ?? ""));
   // The values sent with a build: the template's variables (or the placeholders in use) and {kit}.
-  const variables = useMemo(() => ({ kit: kitName, ...Object.fromEntries(wanted.map((n) => [n, values.samples?.[n] ?? ""])) }), [wanted, samplesKey, kitName]);
+  const variables = useMemo(() => {
+    const samples = JSON.parse(samplesKey) as string[];
+    return { kit: kitName, ...Object.fromEntries(wanted.map((n, i) => [n, samples[i] ?? ""])) };
+  }, [wanted, samplesKey, kitName]);
+  const { replace: replaceLayout, place } = layout;
   const applyTemplate = useCallback(
     (t: EditorTemplate | null) => {
       setApplied(t);
       if (!t) return;
-      form.reset(optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default]))));
-      layout.replace(undefined);
+      form.reset(templateForm(t));
+      replaceLayout(undefined);
     },
-    [form, layout.replace],
+    [form, replaceLayout],
   );
-  useEffect(() => {
-    if (applied) applyTemplate(applied);
-    // Apply the template named in the address once, on opening.
-  }, []);
 
   const { ready, preview: result, problem, latency } = useSlabWorker(parts, options, variables, check.success);
   const { making, busy, make } = useMakePlate();
@@ -61,9 +65,9 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
   const moveTo = useCallback(
     (piece: PlacedPiece, dx: number, dy: number, turn = 0) => {
-      if (result) layout.place(movedPlacements(result.pieces, piece.number, dx, dy, turn));
+      if (result) place(movedPlacements(result.pieces, piece.number, dx, dy, turn));
     },
-    [result, layout.place],
+    [result, place],
   );
   const sel = result?.pieces.find((p) => p.number === selected);
 
