@@ -72,6 +72,10 @@ const schema = z.object({
   SLAB_THREAD_NICE: z.coerce.number().int().min(0).max(19).default(19),
   /** Builds one thread makes before it is replaced (bounds what a leak could cost). */
   SLAB_THREAD_MAX_BUILDS: z.coerce.number().int().min(1).max(1_000_000).default(100),
+  /** The worker process: build threads (default: one per core), jobs each holds at once, callback deliveries at once. */
+  SLAB_WORKER_THREADS: z.coerce.number().int().min(1).max(256).optional(),
+  SLAB_JOBS_PER_THREAD: z.coerce.number().int().min(1).max(16).default(2),
+  SLAB_CALLBACK_CONCURRENCY: z.coerce.number().int().min(1).max(256).default(8),
   /** Where the seed writes the demo accounts' passwords and API key. */
   SLAB_CREDENTIALS_FILE: z.string().optional(),
 });

@@ -23,7 +23,7 @@ import { runPlateJob } from "@/lib/jobs/run-job";
 import { runThumbnailJob } from "@/lib/jobs/run-thumbnail";
 import { deliverOnce, type CallbackJob } from "@/lib/jobs/webhook";
 
-const threads = Number(process.env.SLAB_WORKER_THREADS ?? Math.max(1, os.availableParallelism()));
+const threads = env().SLAB_WORKER_THREADS ?? Math.max(1, os.availableParallelism());
 const pool = new Piscina({ filename: new URL("../lib/jobs/build-thread-entry.mjs", import.meta.url).href, minThreads: threads, maxThreads: threads, idleTimeout: 60_000 });
 const queue = await boss();
 
@@ -84,8 +84,8 @@ const callbackSlot = () =>
   });
 // Two jobs in hand per thread: while one job's files are stored and its row is written, the thread
 // already builds the next (piscina queues it), so a thread never idles on the database or the disk.
-const perThread = Math.max(1, Number(process.env.SLAB_JOBS_PER_THREAD ?? 2));
-const callbackSlots = Math.max(1, Number(process.env.SLAB_CALLBACK_CONCURRENCY ?? 8));
+const perThread = env().SLAB_JOBS_PER_THREAD;
+const callbackSlots = env().SLAB_CALLBACK_CONCURRENCY;
 const slots = [...Array.from({ length: threads * perThread }, () => slot()), ...Array.from({ length: callbackSlots }, () => callbackSlot())];
 // Template top views still to draw (seeded starters, or a queue that was down when one was saved).
 void (async () => {
