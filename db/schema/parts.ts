@@ -1,4 +1,5 @@
 import { sql } from "drizzle-orm";
+import type { ImportFormatId } from "@/lib/geometry/formats";
 import {
   boolean,
   check,
@@ -15,7 +16,12 @@ import {
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
 
-export const meshFormatEnum = pgEnum("mesh_format", ["stl", "3mf", "obj"]);
+/** The import formats (lib/geometry/formats.ts) as stored; a new one is added here and migrated (`npm run db:generate`). */
+const MESH_FORMATS = ["stl", "3mf", "obj"] as const satisfies readonly ImportFormatId[];
+// Fails to compile while an import format cannot be stored.
+const everyFormatStored: [Exclude<ImportFormatId, (typeof MESH_FORMATS)[number]>] extends [never] ? true : never = true;
+void everyFormatStored;
+export const meshFormatEnum = pgEnum("mesh_format", MESH_FORMATS);
 
 /** An uploaded mesh: its measured metadata plus a reference to the stored bytes (SHA-256 key). */
 export const parts = pgTable(

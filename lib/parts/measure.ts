@@ -4,6 +4,7 @@
  * store are used here.
  */
 import type { Kernel } from "@/lib/geometry/kernel";
+import type { ImportFormatId } from "@/lib/geometry/formats";
 import { importMesh } from "@/lib/geometry/import";
 import { stem } from "@/lib/geometry/io/stl-read";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
@@ -33,7 +34,7 @@ export type PartUploadTask = { blobKey: string; fileName: string; split?: boolea
 /** One part row to insert, all but the workspace, the uploader and the id. */
 export type PartDraft = {
   name: string;
-  format: "stl" | "3mf" | "obj";
+  format: ImportFormatId;
   blobKey: string;
   byteSize: number;
   unit: string;
