@@ -22,3 +22,12 @@ export function permissionsOf(role: Role): Permission[] {
 export function systemActor(workspaceId: string): WorkspaceActor {
   return { workspaceId, userId: null, apiKeyId: null, permissions: [] };
 }
+
+/**
+ * A service that some callers still call with a bare workspace id (code outside this change keeps
+ * doing so for now) takes either; its queries need only the workspace, which both name.
+ */
+export type ActorOrWorkspace = WorkspaceActor | string;
+export function asActor(a: ActorOrWorkspace): WorkspaceActor {
+  return typeof a === "string" ? systemActor(a) : a;
+}
