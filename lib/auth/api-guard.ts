@@ -31,8 +31,9 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
   const limit = await hit("apiPerKey", row.id);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "requests with this key");
   if (!row.scopes.includes(scope)) throw new Forbidden("forbidden", `This key lacks the ${scope} scope.`);
+  const actor: ApiCaller = { workspaceId: row.workspaceId, userId: null, apiKeyId: row.id, permissions: row.scopes };
   // The order API comes with the paid plans: a workspace moved to Bench keeps its keys, refused here.
-  const plan = (await billingOf(row.workspaceId)).effective;
+  const plan = (await billingOf(actor)).effective;
   if (plan.apiKeys === 0) throw new PlanLimit("plan_limit", `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`, { plan: plan.id });
   // Last-used time, at most once a minute per key (no write on every request).
   const minuteAgo = new Date(Date.now() - 60_000);
@@ -40,5 +41,5 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
     .update(apiKeys)
     .set({ lastUsedAt: new Date() })
     .where(and(eq(apiKeys.id, row.id), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, minuteAgo))));
-  return { workspaceId: row.workspaceId, userId: null, apiKeyId: row.id, permissions: row.scopes };
+  return actor;
 }

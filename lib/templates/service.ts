@@ -67,7 +67,7 @@ async function writable(tx: Tx, actor: Actor, id: string) {
 /** Logos come with the paid plans. */
 async function checkPlan(actor: Actor, body: TemplateBody) {
   if (!body.options.marks.logo) return;
-  const b = await billingOf(actor.workspaceId);
+  const b = await billingOf(actor);
   if (!b.effective.logos) throw new PlanLimit("plan_limit", `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade under Settings → Billing.`, undefined, "options.marks.logo");
 }
 

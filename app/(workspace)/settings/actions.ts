@@ -35,7 +35,7 @@ export const dropMember = guardedAction(memberSchema, "members:manage", "removin
 
 export const makeApiKey = guardedAction(apiKeySchema, "api-keys:manage", "creating API keys", async (input, caller) => {
   // API keys come with the plan: the Bench plan has none, the paid plans a number each.
-  const billing = await billingOf(caller.workspace.id);
+  const billing = await billingOf(caller);
   const [held] = await db().select({ n: sql<number>`count(*)::int` }).from(apiKeys).where(and(eq(apiKeys.workspaceId, caller.workspace.id), isNull(apiKeys.revokedAt)));
   if (held!.n >= billing.effective.apiKeys) {
     return { ok: false, code: "plan_limit", message: billing.effective.apiKeys === 0 ? `The ${billing.effective.name} plan has no API access. Upgrade under Settings → Billing to connect an order system.` : `The ${billing.effective.name} plan allows ${billing.effective.apiKeys} API keys; revoke one or upgrade under Settings → Billing.` };
