@@ -15,7 +15,7 @@ type Db = ReturnType<typeof db> | Tx;
 export const PART_SORTS = { name: parts.name, triangles: parts.triangles, volume: parts.volume, contactArea: parts.contactArea, createdAt: parts.createdAt, sizeZ: parts.sizeZ } as const;
 export type PartSort = keyof typeof PART_SORTS;
 
-/** The parts library: one page of the caller's workspace's parts, searched by name and sorted. */
+/** The parts library: one page of the actor's workspace's parts, searched by name and sorted. */
 export async function searchParts(actor: WorkspaceActor, q: { search?: string; sort?: PartSort; dir?: "asc" | "desc"; page?: number; pageSize?: number }) {
   const pageSize = Math.min(100, Math.max(1, q.pageSize ?? 20));
   const page = Math.max(1, q.page ?? 1);
