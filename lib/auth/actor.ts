@@ -24,8 +24,10 @@ export function systemActor(workspaceId: string): WorkspaceActor {
 }
 
 /**
- * A service that some callers still call with a bare workspace id (code outside this change keeps
- * doing so for now) takes either; its queries need only the workspace, which both name.
+ * What the few services still called with a bare workspace id take (listTemplates, versionForPlate,
+ * meterPlate, and the plate map's template label): an actor, or the id, which stands for the system
+ * acting for that workspace. Their queries read or count within the workspace and record no person,
+ * so both give the same result; once every caller passes its actor this goes.
  */
 export type ActorOrWorkspace = WorkspaceActor | string;
 export function asActor(a: ActorOrWorkspace): WorkspaceActor {
