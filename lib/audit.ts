@@ -1,6 +1,6 @@
 import "server-only";
-import { db, type Db } from "@/db";
-import { auditEvents } from "@/db/schema";
+import { insertAuditEvent } from "@/db/queries/audit";
+import type { Tx } from "@/db/queries/tx";
 
 export type AuditAction =
   | "sign_in"
@@ -31,8 +31,6 @@ export type AuditAction =
   | "plan_changed"
   | "billing_event";
 
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
-
 export type AuditEntry = {
   workspaceId?: string | null;
   actorUserId?: string | null;
@@ -46,5 +44,5 @@ export type AuditEntry = {
 
 /** Record an event, inside the caller's transaction when it has one (so the event and the change land together). */
 export async function audit(entry: AuditEntry, tx?: Tx): Promise<void> {
-  await (tx ?? db()).insert(auditEvents).values(entry);
+  await insertAuditEvent(entry, tx);
 }

@@ -14,9 +14,7 @@ import os from "node:os";
 import pg from "pg";
 import { Piscina } from "piscina";
 import { env } from "@/lib/env";
-import { eq } from "drizzle-orm";
-import { db } from "@/db";
-import { templateVersions } from "@/db/schema";
+import { pendingThumbnails } from "@/db/queries/templates";
 import { BUILD_QUEUE, boss, CALLBACK_QUEUE, callbackTimeoutMs, enqueueThumbnail, JOB_CHANNEL } from "@/lib/jobs/queue";
 import { runPartUploadJob } from "@/lib/jobs/run-part-upload";
 import { runPlateJob } from "@/lib/jobs/run-job";
@@ -89,7 +87,7 @@ const callbackSlots = env().SLAB_CALLBACK_CONCURRENCY;
 const slots = [...Array.from({ length: threads * perThread }, () => slot()), ...Array.from({ length: callbackSlots }, () => callbackSlot())];
 // Template top views still to draw (seeded starters, or a queue that was down when one was saved).
 void (async () => {
-  const pending = await db().select({ id: templateVersions.id }).from(templateVersions).where(eq(templateVersions.thumbnailState, "pending"));
+  const pending = await pendingThumbnails();
   for (const v of pending) await enqueueThumbnail(v.id).catch((err: unknown) => console.error("[worker] thumbnail not queued", err));
 })();
 console.log(`worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}, ${callbackSlots} delivery slots on ${CALLBACK_QUEUE}`);

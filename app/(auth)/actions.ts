@@ -3,7 +3,10 @@
 import { AuthError, CredentialsSignin } from "next-auth";
 import { z } from "zod";
 import { redirect } from "next/navigation";
-import { acceptInvitation, createWorkspace, pendingSignUpByToken, requestPasswordReset, requestSignUp, resetPassword, SIGN_UP_LINK_MESSAGES } from "@/db/queries/accounts";
+import { acceptInvitation } from "@/lib/accounts/invitations";
+import { createWorkspace } from "@/lib/accounts/members";
+import { requestPasswordReset, resetPassword } from "@/lib/accounts/passwords";
+import { pendingSignUpByToken, requestSignUp, SIGN_UP_LINK_MESSAGES } from "@/lib/accounts/sign-up";
 import { signIn } from "@/lib/auth/config";
 import { hit } from "@/lib/auth/rate-limit";
 import { loadSessionUser, setActiveWorkspace } from "@/lib/auth/guards";

@@ -10,7 +10,7 @@ export default async function WorkspaceLayout({ children }: { children: ReactNod
   // a plate's inspection page opened from the QR code on its sheet), so the layout does not redirect.
   if (!(await loadSessionUser())) return <>{children}</>;
   const caller = await requireCaller();
-  const billing = await billingOf(caller.workspace.id);
+  const billing = await billingOf(caller);
   return (
     <ToastProvider>
       <div className="min-h-screen">

@@ -2,60 +2,63 @@ import "server-only";
 import { and, asc, eq, inArray } from "drizzle-orm";
 import { db } from "@/db";
 import { kitParts, kits, parts } from "@/db/schema";
-import { type Caller } from "@/lib/auth/guards";
-import type { z } from "zod";
-import type { kitSchema } from "@/lib/validation/kits";
-import { NotFound, Invalid } from "@/lib/errors";
+import type { WorkspaceActor } from "@/lib/auth/actor";
+import type { Tx } from "./tx";
 
-type KitData = z.output<typeof kitSchema>;
+/** Kits and their lines, within the actor's workspace (lib/kits composes the writes). */
 
-export async function getKit(caller: Caller, id: string) {
-  const [kit] = await db().select().from(kits).where(and(eq(kits.id, id), eq(kits.workspaceId, caller.workspace.id)));
+/** A kit of the actor's workspace with its lines (and their parts' names) in kit order, or null. */
+export async function getKit(actor: WorkspaceActor, id: string) {
+  const [kit] = await db().select().from(kits).where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)));
   if (!kit) return null;
   const lines = await db()
     .select({ partId: kitParts.partId, quantity: kitParts.quantity, rotation: kitParts.rotation, orientation: kitParts.orientation, name: parts.name })
     .from(kitParts)
     .innerJoin(parts, eq(parts.id, kitParts.partId))
-    .where(eq(kitParts.kitId, kit.id))
+    .where(and(eq(kitParts.kitId, kit.id), eq(parts.workspaceId, actor.workspaceId)))
     .orderBy(asc(kitParts.position));
   return { ...kit, lines };
 }
 
-export async function partChoices(caller: Caller) {
-  return db().select({ id: parts.id, name: parts.name }).from(parts).where(eq(parts.workspaceId, caller.workspace.id)).orderBy(asc(parts.name));
+/** The parts a kit line may use: the workspace's, by name. */
+export async function partChoices(actor: WorkspaceActor) {
+  return db().select({ id: parts.id, name: parts.name }).from(parts).where(eq(parts.workspaceId, actor.workspaceId)).orderBy(asc(parts.name));
 }
 
-/** Create or replace a kit and its lines in one transaction; every part must be the caller's workspace's. */
-export async function saveKit(caller: Caller, data: KitData): Promise<string> {
-  return db().transaction(async (tx) => {
-    const ids = [...new Set(data.lines.map((l) => l.partId))];
-    const found = await tx.select({ id: parts.id }).from(parts).where(and(inArray(parts.id, ids), eq(parts.workspaceId, caller.workspace.id)));
-    if (found.length !== ids.length) throw new Invalid("unknown_part", "One of the chosen parts no longer exists.", undefined, "lines");
-    let kitId = data.id;
-    if (kitId) {
-      const res = await tx
-        .update(kits)
-        .set({ name: data.name, description: data.description || null, updatedAt: new Date() })
-        .where(and(eq(kits.id, kitId), eq(kits.workspaceId, caller.workspace.id)))
-        .returning({ id: kits.id });
-      if (!res[0]) throw new NotFound("not_found", "No such kit.");
-      await tx.delete(kitParts).where(eq(kitParts.kitId, kitId));
-    } else {
-      const [row] = await tx.insert(kits).values({ workspaceId: caller.workspace.id, name: data.name, description: data.description || null, createdBy: caller.user.id }).returning({ id: kits.id });
-      kitId = row!.id;
-    }
-    await tx.insert(kitParts).values(data.lines.map((l, position) => ({ kitId: kitId!, partId: l.partId, quantity: l.quantity, rotation: l.rotation, orientation: l.orientation, position })));
-    return kitId!;
-  });
+/** How many of `ids` are parts of the actor's workspace. */
+export async function countWorkspaceParts(tx: Tx, actor: WorkspaceActor, ids: string[]): Promise<number> {
+  const found = await tx.select({ id: parts.id }).from(parts).where(and(inArray(parts.id, ids), eq(parts.workspaceId, actor.workspaceId)));
+  return found.length;
 }
 
-export async function duplicateKit(caller: Caller, id: string): Promise<string> {
-  const kit = await getKit(caller, id);
-  if (!kit) throw new NotFound("not_found", "No such kit.");
-  return saveKit(caller, { name: `${kit.name} (copy)`.slice(0, 120), description: kit.description ?? undefined, lines: kit.lines });
+export type KitValues = { name: string; description: string | null };
+
+/** Change a kit's name and description; false when the workspace has no such kit. */
+export async function updateKit(tx: Tx, actor: WorkspaceActor, id: string, values: KitValues): Promise<boolean> {
+  const res = await tx
+    .update(kits)
+    .set({ ...values, updatedAt: new Date() })
+    .where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)))
+    .returning({ id: kits.id });
+  return Boolean(res[0]);
 }
 
-export async function archiveKit(caller: Caller, id: string): Promise<void> {
-  const res = await db().update(kits).set({ archivedAt: new Date() }).where(and(eq(kits.id, id), eq(kits.workspaceId, caller.workspace.id))).returning({ id: kits.id });
-  if (!res[0]) throw new NotFound("not_found", "No such kit.");
+/** A new kit of the actor's workspace, made by the actor; its id. */
+export async function insertKit(tx: Tx, actor: WorkspaceActor, values: KitValues): Promise<string> {
+  const [row] = await tx.insert(kits).values({ workspaceId: actor.workspaceId, ...values, createdBy: actor.userId }).returning({ id: kits.id });
+  return row!.id;
+}
+
+export type KitLine = Omit<typeof kitParts.$inferInsert, "kitId" | "position">;
+
+/** Replace a kit's lines by `lines`, in that order (the kit was just inserted or updated in this transaction). */
+export async function replaceKitLines(tx: Tx, kitId: string, lines: KitLine[], opts: { fresh?: boolean } = {}): Promise<void> {
+  if (!opts.fresh) await tx.delete(kitParts).where(eq(kitParts.kitId, kitId));
+  await tx.insert(kitParts).values(lines.map((l, position) => ({ ...l, kitId, position })));
+}
+
+/** Archive a kit; false when the workspace has no such kit. */
+export async function archiveKitRow(actor: WorkspaceActor, id: string): Promise<boolean> {
+  const res = await db().update(kits).set({ archivedAt: new Date() }).where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId))).returning({ id: kits.id });
+  return Boolean(res[0]);
 }

@@ -2,11 +2,11 @@ import "server-only";
 import { and, asc, desc, eq, isNull, max, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { kitParts, kits, plates, templates, templateVersions, users } from "@/db/schema";
-import type { Caller } from "@/lib/auth/guards";
+import type { WorkspaceActor } from "@/lib/auth/actor";
 
-// Every read is scoped to the caller's active workspace; there is no query here without that filter.
+// Every read is scoped to the actor's workspace; there is no query here without that filter.
 
-export async function listKits(caller: Caller) {
+export async function listKits(actor: WorkspaceActor) {
   const pieceCounts = db()
     .select({ kitId: kitParts.kitId, pieces: sql<number>`coalesce(sum(${kitParts.quantity}), 0)::int`.as("pieces") })
     .from(kitParts)
@@ -15,7 +15,7 @@ export async function listKits(caller: Caller) {
   const lastPlates = db()
     .select({ kitId: plates.kitId, lastPlateAt: max(plates.createdAt).as("last_plate_at") })
     .from(plates)
-    .where(eq(plates.workspaceId, caller.workspace.id))
+    .where(eq(plates.workspaceId, actor.workspaceId))
     .groupBy(plates.kitId)
     .as("last_plates");
   return db()
@@ -30,11 +30,11 @@ export async function listKits(caller: Caller) {
     .from(kits)
     .leftJoin(pieceCounts, eq(pieceCounts.kitId, kits.id))
     .leftJoin(lastPlates, eq(lastPlates.kitId, kits.id))
-    .where(and(eq(kits.workspaceId, caller.workspace.id), isNull(kits.archivedAt)))
+    .where(and(eq(kits.workspaceId, actor.workspaceId), isNull(kits.archivedAt)))
     .orderBy(asc(kits.name));
 }
 
-export async function listPlates(caller: Caller, filter: { kitId?: string; limit?: number } = {}) {
+export async function listPlates(actor: WorkspaceActor, filter: { kitId?: string; limit?: number } = {}) {
   return db()
     .select({
       id: plates.id,
@@ -64,7 +64,7 @@ export async function listPlates(caller: Caller, filter: { kitId?: string; limit
     .leftJoin(templateVersions, eq(templateVersions.id, plates.templateVersionId))
     .leftJoin(templates, eq(templates.id, templateVersions.templateId))
     .leftJoin(users, eq(users.id, plates.createdBy))
-    .where(and(eq(plates.workspaceId, caller.workspace.id), filter.kitId ? eq(plates.kitId, filter.kitId) : undefined))
+    .where(and(eq(plates.workspaceId, actor.workspaceId), filter.kitId ? eq(plates.kitId, filter.kitId) : undefined))
     .orderBy(desc(plates.createdAt))
     .limit(filter.limit ?? 100);
 }

@@ -1,5 +1,6 @@
-import "server-only";
 import { db } from "@/db";
+
+// The worker runs its transactions through here too, so no server-only import.
 
 /** A transaction handle: queries that must commit together take it as their first argument. */
 export type Tx = Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0];

@@ -1,7 +1,6 @@
 import "server-only";
-import { and, eq, isNull, lt, or } from "drizzle-orm";
-import { db } from "@/db";
-import { apiKeys, type ApiKeyScope } from "@/db/schema";
+import type { ApiKeyScope } from "@/db/schema";
+import { activeApiKeyByHash, touchApiKey } from "@/db/queries/api-keys";
 import type { WorkspaceActor } from "./actor";
 import { hashApiKey, parseApiKeyPrefix } from "./api-keys";
 import { billingOf } from "@/lib/billing/service";
@@ -22,23 +21,16 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
   if (!m) throw new Unauthorized("unauthorized", "Send an API key as `Authorization: Bearer <key>`.");
   const key = m[1]!;
   if (!parseApiKeyPrefix(key)) throw new Unauthorized("unauthorized", "That is not a Slabwright API key.");
-  const [row] = await db()
-    .select({ id: apiKeys.id, workspaceId: apiKeys.workspaceId, scopes: apiKeys.scopes, lastUsedAt: apiKeys.lastUsedAt })
-    .from(apiKeys)
-    .where(and(eq(apiKeys.keyHash, hashApiKey(key)), isNull(apiKeys.revokedAt)))
-    .limit(1);
+  const row = await activeApiKeyByHash(hashApiKey(key));
   if (!row) throw new Unauthorized("unauthorized", "This API key is unknown or has been revoked.");
   const limit = await hit("apiPerKey", row.id);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "requests with this key");
   if (!row.scopes.includes(scope)) throw new Forbidden("forbidden", `This key lacks the ${scope} scope.`);
+  const actor: ApiCaller = { workspaceId: row.workspaceId, userId: null, apiKeyId: row.id, permissions: row.scopes };
   // The order API comes with the paid plans: a workspace moved to Bench keeps its keys, refused here.
-  const plan = (await billingOf(row.workspaceId)).effective;
+  const plan = (await billingOf(actor)).effective;
   if (plan.apiKeys === 0) throw new PlanLimit("plan_limit", `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`, { plan: plan.id });
   // Last-used time, at most once a minute per key (no write on every request).
-  const minuteAgo = new Date(Date.now() - 60_000);
-  await db()
-    .update(apiKeys)
-    .set({ lastUsedAt: new Date() })
-    .where(and(eq(apiKeys.id, row.id), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, minuteAgo))));
-  return { workspaceId: row.workspaceId, userId: null, apiKeyId: row.id, permissions: row.scopes };
+  await touchApiKey(actor);
+  return actor;
 }

@@ -1,16 +1,14 @@
-import { DrizzleAdapter } from "@auth/drizzle-adapter";
 import { randomUUID } from "node:crypto";
-import { eq } from "drizzle-orm";
 import NextAuth, { CredentialsSignin } from "next-auth";
 import Credentials from "next-auth/providers/credentials";
 import Nodemailer from "next-auth/providers/nodemailer";
 import { z } from "zod";
-import { db } from "@/db";
-import { accounts, sessions, users, verificationTokens } from "@/db/schema";
+import { authAdapter } from "@/db/queries/auth-adapter";
+import { revokeSession, sessionStillValid, sessionVersionOf, userByEmail } from "@/db/queries/users";
+import { finishSignUp } from "@/lib/accounts/sign-up";
 import { audit } from "@/lib/audit";
 import { env } from "@/lib/env";
 import { linkMessage, sendMail } from "@/lib/mail";
-import { finishSignUp, revokeSession, sessionStillValid } from "@/db/queries/accounts";
 import { checkPassword } from "./password";
 import { isBlocked, signInFailed, signInSucceeded, signInWait } from "./rate-limit";
 import { clientIp } from "./request";
@@ -38,12 +36,7 @@ export const SESSION_MAX_AGE_S = 12 * 60 * 60;
 export const MAGIC_LINK_MAX_AGE_S = 15 * 60;
 
 export const { handlers, auth, signIn, signOut } = NextAuth({
-  adapter: DrizzleAdapter(db(), {
-    usersTable: users,
-    accountsTable: accounts,
-    sessionsTable: sessions,
-    verificationTokensTable: verificationTokens,
-  }),
+  adapter: authAdapter(),
   // Credentials sign-in only works with JWT sessions; membership and role are still read from the
   // database on every request (lib/auth/guards.ts), never trusted from the token.
   session: { strategy: "jwt", maxAge: SESSION_MAX_AGE_S, updateAge: 15 * 60 },
@@ -70,7 +63,7 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
         // owner out — and a sign-in by e-mailed link is never held back by either.
         const [byIp, wait] = await Promise.all([isBlocked("signInFailuresPerIp", ip), signInWait(email)]);
         if (byIp.blocked || wait > 0) throw new TooManyAttempts(Math.max(byIp.blocked ? byIp.retryAfter : 0, wait));
-        const [user] = await db().select().from(users).where(eq(users.email, email)).limit(1);
+        const user = await userByEmail(email);
         // Checked against a stand-in hash when there is no password, so both take the same time.
         const ok = await checkPassword(password, user?.passwordHash);
         if (!user || !ok) {
@@ -83,7 +76,7 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
         return { id: user.id, email: user.email, name: user.name };
       },
     }),
-    // The link mailed at sign-up: using it makes the account (lib: db/queries/accounts finishSignUp).
+    // The link mailed at sign-up: using it makes the account (lib/accounts/sign-up finishSignUp).
     Credentials({
       id: "sign-up-link",
       name: "Sign-up link",
@@ -120,9 +113,9 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
      */
     async jwt({ token, user }) {
       if (user?.id) {
-        const [row] = await db().select({ v: users.sessionVersion }).from(users).where(eq(users.id, user.id));
-        if (!row) return null;
-        return { ...token, sub: user.id, sid: randomUUID(), sv: row.v };
+        const version = await sessionVersionOf(user.id);
+        if (version === null) return null;
+        return { ...token, sub: user.id, sid: randomUUID(), sv: version };
       }
       if (!token.sub || typeof token.sid !== "string" || typeof token.sv !== "number") return null;
       if (!(await sessionStillValid(token.sub, token.sv, token.sid))) return null;

@@ -1,11 +1,11 @@
 import "server-only";
 import { env } from "@/lib/env";
-import { and, asc, eq } from "drizzle-orm";
 import { cookies } from "next/headers";
 import { redirect } from "next/navigation";
 import { z } from "zod";
-import { db } from "@/db";
-import { memberships, users, workspaces, type Role } from "@/db/schema";
+import type { Role } from "@/db/schema";
+import { sessionUserById, type SessionUser } from "@/db/queries/users";
+import { roleOf, workspacesOf } from "@/db/queries/workspaces";
 import type { ActionResult } from "@/lib/validation/accounts";
 import { auth } from "./config";
 import { isBadInputDbError } from "@/lib/db-errors";
@@ -16,7 +16,7 @@ import { AppError, formMessage } from "@/lib/errors";
 
 export const WORKSPACE_COOKIE = "sw_workspace";
 
-export type SessionUser = { id: string; email: string; name: string | null };
+export type { SessionUser };
 
 /** A signed-in member acting in their active workspace, with what pages show about them. */
 export type Caller = WorkspaceActor & {
@@ -32,8 +32,7 @@ export async function loadSessionUser(): Promise<SessionUser | null> {
   const session = await auth();
   const userId = session?.user?.id;
   if (!userId) return null;
-  const [user] = await db().select({ id: users.id, email: users.email, name: users.name }).from(users).where(eq(users.id, userId)).limit(1);
-  return user ?? null;
+  return sessionUserById(userId);
 }
 
 /**
@@ -48,12 +47,7 @@ export async function loadCaller(): Promise<Caller | null> {
 }
 
 export async function callerFor(user: SessionUser, wantedWorkspace?: string): Promise<Caller | null> {
-  const rows = await db()
-    .select({ id: workspaces.id, name: workspaces.name, slug: workspaces.slug, role: memberships.role })
-    .from(memberships)
-    .innerJoin(workspaces, eq(workspaces.id, memberships.workspaceId))
-    .where(eq(memberships.userId, user.id))
-    .orderBy(asc(workspaces.name));
+  const rows = await workspacesOf(user.id);
   if (rows.length === 0) return null;
   const active = rows.find((r) => r.id === wantedWorkspace) ?? rows[0]!;
   return {
@@ -99,12 +93,7 @@ export async function setActiveWorkspace(workspaceId: string): Promise<void> {
 
 /** Membership check for one workspace by id, straight from the database. */
 export async function roleIn(workspaceId: string, userId: string): Promise<Role | null> {
-  const [row] = await db()
-    .select({ role: memberships.role })
-    .from(memberships)
-    .where(and(eq(memberships.workspaceId, workspaceId), eq(memberships.userId, userId)))
-    .limit(1);
-  return row?.role ?? null;
+  return roleOf(workspaceId, userId);
 }
 
 /**

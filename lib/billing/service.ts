@@ -1,14 +1,32 @@
 import "server-only";
-import { and, desc, eq, isNull, sql } from "drizzle-orm";
 import Stripe from "stripe";
-import { db, type Db } from "@/db";
-import { billingEvents, checkoutSessions, invoices, plateUsage, workspaceBilling } from "@/db/schema";
+import type { workspaceBilling } from "@/db/schema";
+import {
+  addPlates,
+  billingRow,
+  checkoutSessionById,
+  completeCheckoutSession,
+  endGrace,
+  insertBillingEvent,
+  insertBillingRow,
+  insertCheckoutSession,
+  invoiceRows,
+  lockBilling,
+  lockUsage,
+  platesInPeriod,
+  setBilling,
+  setBillingEventOutcome,
+  setCustomer,
+  upsertInvoice,
+  workspaceOfCustomer,
+  type BillingRow,
+} from "@/db/queries/billing";
+import { transaction, type Tx } from "@/db/queries/tx";
+import { asActor, systemActor, type ActorOrWorkspace, type WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
 import { env, requireSecret } from "@/lib/env";
 import { PLANS, type Plan, type PlanId } from "./plans";
 import { BadRequest, PlanLimit, Invalid, Unavailable } from "@/lib/errors";
-
-type Tx = Parameters<Parameters<Db["transaction"]>[0]>[0];
 
 let client: Stripe | undefined;
 /** The payments SDK; STRIPE_API_BASE (development, tests) points it at our local fake server. */
@@ -20,31 +38,28 @@ export function payments(): Stripe {
   return client;
 }
 
-export type Billing = typeof workspaceBilling.$inferSelect & { effective: Plan };
+export type Billing = BillingRow & { effective: Plan };
 
 const monthStart = (d = new Date()) => new Date(Date.UTC(d.getUTCFullYear(), d.getUTCMonth(), 1));
 
 /** A workspace's billing, with a grace period that has run out turned into the free plan. */
-export async function billingOf(workspaceId: string, tx: Tx | Db = db()): Promise<Billing> {
-  let [b] = await tx.select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, workspaceId));
-  if (!b) {
-    [b] = await tx.insert(workspaceBilling).values({ workspaceId }).onConflictDoNothing().returning();
-    b ??= (await tx.select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, workspaceId)))[0]!;
-  }
+export async function billingOf(actor: WorkspaceActor, tx?: Tx): Promise<Billing> {
+  let b = await billingRow(actor, tx);
+  if (!b) b = (await insertBillingRow(actor, tx)) ?? (await billingRow(actor, tx))!;
   if (b.status === "grace" && b.graceUntil && b.graceUntil.getTime() < Date.now()) {
-    [b] = await tx.update(workspaceBilling).set({ plan: "bench", status: "canceled", graceUntil: null, updatedAt: new Date() }).where(eq(workspaceBilling.workspaceId, workspaceId)).returning();
-    await audit({ workspaceId, action: "plan_changed", details: { to: "bench", reason: "grace period ended after a failed payment" } }, tx as Tx);
+    b = await endGrace(actor, tx);
+    await audit({ workspaceId: actor.workspaceId, action: "plan_changed", details: { to: "bench", reason: "grace period ended after a failed payment" } }, tx);
   }
-  return { ...b!, effective: PLANS[b!.plan] };
+  return { ...b, effective: PLANS[b.plan] };
 }
 
 export function periodStart(b: Billing): Date {
   return b.plan !== "bench" && b.periodStart ? b.periodStart : monthStart();
 }
 
-export async function usageOf(b: Billing, tx: Tx | Db = db()): Promise<number> {
-  const [u] = await tx.select().from(plateUsage).where(and(eq(plateUsage.workspaceId, b.workspaceId), eq(plateUsage.periodStart, periodStart(b))));
-  return u?.plates ?? 0;
+/** Plates the workspace has made in `b`'s current period. */
+export async function usageOf(actor: WorkspaceActor, b: Billing, tx?: Tx): Promise<number> {
+  return platesInPeriod(actor, periodStart(b), tx);
 }
 
 /** Whether a plate's stored options (template and overrides merged) engrave a logo. */
@@ -59,21 +74,18 @@ export function engravesLogo(options: unknown): boolean {
  * API, the editor, a remake, a reprint) comes through here with the plate's options, so the plan's
  * other limits (logos) are checked here too, once.
  */
-export async function meterPlate(tx: Tx, workspaceId: string, count = 1, options?: unknown): Promise<Billing> {
+export async function meterPlate(tx: Tx, workspace: ActorOrWorkspace, count = 1, options?: unknown): Promise<Billing> {
+  const actor = asActor(workspace);
   // One writer at a time per workspace, so two requests cannot both take the last plate.
-  await tx.execute(sql`select pg_advisory_xact_lock(hashtext(${`usage:${workspaceId}`}))`);
-  const b = await billingOf(workspaceId, tx);
+  await lockUsage(tx, actor);
+  const b = await billingOf(actor, tx);
   if (engravesLogo(options) && !b.effective.logos) {
     throw new PlanLimit("plan_limit", `Logos come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. Remove the logo, or an owner can upgrade under Settings → Billing.`, { plan: b.plan, limit: "logos" });
   }
   const start = periodStart(b);
-  const [row] = await tx
-    .insert(plateUsage)
-    .values({ workspaceId, periodStart: start, plates: count })
-    .onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: sql`${plateUsage.plates} + ${count}` } })
-    .returning();
-  if (row!.plates > b.effective.platesPerPeriod) {
-    throw new PlanLimit("plan_limit", `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: row!.plates - count });
+  const plates = await addPlates(tx, actor, start, count);
+  if (plates > b.effective.platesPerPeriod) {
+    throw new PlanLimit("plan_limit", `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: plates - count });
   }
   return b;
 }
@@ -88,16 +100,16 @@ export function buildPriority(plan: PlanId): number {
 }
 
 /** Checkout for a paid plan: the provider's hosted page, back to the billing page afterwards. */
-export async function startCheckout(actor: { workspaceId: string; userId: string; email: string }, plan: PlanId): Promise<string> {
+export async function startCheckout(actor: WorkspaceActor & { email: string }, plan: PlanId): Promise<string> {
   const p = PLANS[plan];
   if (plan === "bench" || !p.priceEnv) throw new Invalid("invalid", "The Bench plan needs no checkout.");
-  const b = await billingOf(actor.workspaceId);
+  const b = await billingOf(actor);
   if (b.plan === plan && b.status !== "canceled") throw new Invalid("invalid", `The workspace is on the ${p.name} plan already.`);
   let customer = b.customerId;
   if (!customer) {
     const c = await payments().customers.create({ email: actor.email, metadata: { workspaceId: actor.workspaceId } });
     customer = c.id;
-    await db().update(workspaceBilling).set({ customerId: customer, updatedAt: new Date() }).where(eq(workspaceBilling.workspaceId, actor.workspaceId));
+    await setCustomer(actor, customer);
   }
   const back = new URL("/settings/billing", env().AUTH_URL);
   const session = await payments().checkout.sessions.create({
@@ -110,14 +122,14 @@ export async function startCheckout(actor: { workspaceId: string; userId: string
     subscription_data: { metadata: { workspaceId: actor.workspaceId, plan } },
   });
   // Our own record of the session: the webhook applies a completed checkout only through it.
-  await db().insert(checkoutSessions).values({ id: session.id, workspaceId: actor.workspaceId, plan });
+  await insertCheckoutSession(actor, session.id, plan);
   await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "checkout_started", details: { plan } });
   if (!session.url) throw new Error("the payment provider gave no checkout page");
   return session.url;
 }
 
-export async function billingPortal(workspaceId: string): Promise<string> {
-  const b = await billingOf(workspaceId);
+export async function billingPortal(actor: WorkspaceActor): Promise<string> {
+  const b = await billingOf(actor);
   if (!b.customerId) throw new Invalid("invalid", "There is nothing to manage yet: choose a paid plan first.");
   const s = await payments().billingPortal.sessions.create({ customer: b.customerId, return_url: new URL("/settings/billing", env().AUTH_URL).toString() });
   return s.url;
@@ -138,7 +150,7 @@ const idOf = (v: string | { id: string } | null | undefined): string | null => (
  */
 async function checkedCheckout(sessionId: string | undefined) {
   if (!sessionId) return { outcome: "unknown_session" as const };
-  const [record] = await db().select().from(checkoutSessions).where(eq(checkoutSessions.id, sessionId));
+  const record = await checkoutSessionById(sessionId);
   if (!record) return { outcome: "unknown_session" as const };
   const s = await payments().checkout.sessions.retrieve(sessionId);
   // Fulfil only a complete session that is paid (or needs no payment) — from memory of the provider's
@@ -168,23 +180,24 @@ export async function handleBillingEvent(raw: string, signature: string | null):
   }
   const obj = event.data.object as unknown as Obj;
   const checkout = event.type === "checkout.session.completed" ? await checkedCheckout(obj.id) : null;
-  return db().transaction(async (tx) => {
+  return transaction(async (tx) => {
     const customer = typeof obj.customer === "string" ? obj.customer : null;
     let workspaceId: string | null = null;
     if (checkout) workspaceId = checkout.record?.workspaceId ?? null;
-    else if (customer) workspaceId = (await tx.select({ id: workspaceBilling.workspaceId }).from(workspaceBilling).where(eq(workspaceBilling.customerId, customer)))[0]?.id ?? null;
+    else if (customer) workspaceId = await workspaceOfCustomer(tx, customer);
     const created = new Date(event.created * 1000);
-    const inserted = await tx.insert(billingEvents).values({ id: event.id, type: event.type, workspaceId, createdAt: created, outcome: "pending" }).onConflictDoNothing().returning();
-    if (!inserted.length) return "duplicate";
+    if (!(await insertBillingEvent(tx, { id: event.id, type: event.type, workspaceId, createdAt: created }))) return "duplicate";
     const done = async (outcome: Exclude<Outcome, "duplicate">) => {
-      await tx.update(billingEvents).set({ outcome }).where(eq(billingEvents.id, event.id));
+      await setBillingEventOutcome(tx, event.id, outcome);
       if (outcome.startsWith("session_") || outcome === "unknown_session") console.warn(`billing: event ${event.id} (${event.type}) not applied: ${outcome}`);
       return outcome;
     };
     if (checkout && checkout.outcome !== "ok") return done(checkout.outcome);
     if (!workspaceId) return done("unknown_customer");
-    await tx.execute(sql`select 1 from workspace_billing where workspace_id = ${workspaceId} for update`);
-    const b = await billingOf(workspaceId, tx);
+    // The provider acts on the workspace our records name: the system, for that workspace.
+    const actor = systemActor(workspaceId);
+    await lockBilling(tx, actor);
+    const b = await billingOf(actor, tx);
     if (b.lastEventAt && created.getTime() < b.lastEventAt.getTime()) return done("stale");
     const set: Partial<typeof workspaceBilling.$inferInsert> = { lastEventAt: created, updatedAt: new Date() };
     let to: PlanId | null = null;
@@ -193,8 +206,7 @@ export async function handleBillingEvent(raw: string, signature: string | null):
         if (checkout?.outcome !== "ok") return done("unknown_session");
         // The provider's session must belong to the customer we made for this workspace.
         if (b.customerId && checkout.customer !== b.customerId) return done("session_mismatch");
-        const [first] = await tx.update(checkoutSessions).set({ completedAt: new Date() }).where(and(eq(checkoutSessions.id, checkout.record.id), isNull(checkoutSessions.completedAt))).returning();
-        if (!first) return done("ignored"); // this checkout was applied once already (another event id)
+        if (!(await completeCheckoutSession(tx, actor, checkout.record.id))) return done("ignored"); // this checkout was applied once already (another event id)
         to = checkout.record.plan;
         Object.assign(set, { customerId: checkout.customer, subscriptionId: checkout.subscription, status: "active", graceUntil: null, plan: to });
         break;
@@ -221,24 +233,21 @@ export async function handleBillingEvent(raw: string, signature: string | null):
       case "invoice.payment_failed": {
         const paid = event.type === "invoice.paid";
         const line = (obj.lines as { data?: { period?: { start?: number; end?: number } }[] } | undefined)?.data?.[0]?.period;
-        await tx
-          .insert(invoices)
-          .values({ id: obj.id as string, workspaceId, amountCents: Number(paid ? obj.amount_paid : obj.amount_due) || 0, currency: String(obj.currency ?? "eur"), status: paid ? "paid" : "failed", periodStart: at(line?.start ?? (obj.period_start as number)), periodEnd: at(line?.end ?? (obj.period_end as number)), createdAt: created })
-          .onConflictDoUpdate({ target: invoices.id, set: { status: paid ? "paid" : "failed" } });
+        await upsertInvoice(tx, actor, { id: obj.id as string, amountCents: Number(paid ? obj.amount_paid : obj.amount_due) || 0, currency: String(obj.currency ?? "eur"), status: paid ? "paid" : "failed", periodStart: at(line?.start ?? (obj.period_start as number)), periodEnd: at(line?.end ?? (obj.period_end as number)), createdAt: created });
         if (paid) Object.assign(set, { status: "active", graceUntil: null });
         else Object.assign(set, { status: "grace", graceUntil: new Date(Date.now() + env().SLAB_BILLING_GRACE_DAYS * 86_400_000) });
         break;
       }
       default:
-        await tx.update(workspaceBilling).set({ lastEventAt: b.lastEventAt }).where(eq(workspaceBilling.workspaceId, workspaceId));
+        await setBilling(tx, actor, { lastEventAt: b.lastEventAt });
         return done("ignored");
     }
-    await tx.update(workspaceBilling).set(set).where(eq(workspaceBilling.workspaceId, workspaceId));
+    await setBilling(tx, actor, set);
     await audit({ workspaceId, action: to && to !== b.plan ? "plan_changed" : "billing_event", details: { event: event.type, id: event.id, ...(to ? { from: b.plan, to } : {}), ...(set.status ? { status: set.status } : {}) } }, tx);
     return done("applied");
   });
 }
 
-export async function invoicesOf(workspaceId: string) {
-  return db().select().from(invoices).where(eq(invoices.workspaceId, workspaceId)).orderBy(desc(invoices.createdAt)).limit(50);
+export async function invoicesOf(actor: WorkspaceActor) {
+  return invoiceRows(actor);
 }

@@ -1,7 +1,7 @@
 import "server-only";
-import { eq } from "drizzle-orm";
-import { db } from "@/db";
-import { templates, templateVersions, type Plate } from "@/db/schema";
+import type { Plate } from "@/db/schema";
+import { templateLabel } from "@/db/queries/templates";
+import { asActor } from "@/lib/auth/actor";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 import type { Estimates } from "@/lib/geometry/estimates";
 import { appUrl } from "@/lib/mail";
@@ -12,9 +12,8 @@ import { BadRequest, Conflict } from "@/lib/errors";
 export async function sheetPlate(p: Plate): Promise<SheetPlate> {
   const stats = p.stats as { layout?: PlateLayout; pieces?: PlacedPiece[] } | null;
   if (p.jobState !== "done" || !stats?.layout || !stats.pieces) throw new Conflict("not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
-  const [t] = p.templateVersionId
-    ? await db().select({ name: templates.name, version: templateVersions.version }).from(templateVersions).innerJoin(templates, eq(templates.id, templateVersions.templateId)).where(eq(templateVersions.id, p.templateVersionId))
-    : [];
+  // Within the plate's workspace: its template is that workspace's own or a starter.
+  const t = p.templateVersionId ? await templateLabel(asActor(p.workspaceId), p.templateVersionId) : null;
   return { id: p.id, title: p.title, createdAt: p.createdAt, options: p.options, variables: p.variables, findings: p.findings as SheetPlate["findings"], estimates: p.estimates as unknown as Estimates | null, layout: stats.layout, pieces: stats.pieces, templateName: t?.name ?? null, templateVersion: t?.version ?? null, proofSummary: p.proof?.summary ?? null };
 }
 

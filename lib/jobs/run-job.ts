@@ -1,7 +1,7 @@
-import { eq, sql } from "drizzle-orm";
 import type { Piscina } from "piscina";
-import { db } from "@/db";
-import { plates, type Plate } from "@/db/schema";
+import type { plates, Plate } from "@/db/schema";
+import { announcePlate, finishBuild, plateForBuild, setBuildProgress, startBuild } from "@/db/queries/builds";
+import { systemActor } from "@/lib/auth/actor";
 import { blobStore } from "@/lib/storage";
 import type { BuildOutcome, BuildTask } from "./build-thread";
 import { enqueueCallback, PLATE_CHANNEL } from "./queue";
@@ -15,10 +15,11 @@ const errorFindings = (findings: unknown[]) => (findings as { severity: string }
  * cannot fit) fails the plate for good; anything unexpected is thrown so the queue retries the job.
  */
 export async function runPlateJob(pool: Piscina, plateId: string, jobId: string): Promise<void> {
-  const [plate] = await db().select().from(plates).where(eq(plates.id, plateId));
+  const plate = await plateForBuild(plateId);
   if (!plate || !plate.input) throw new Error(`plate ${plateId} has no input`);
   if (plate.jobState === "done" || plate.jobState === "failed") return; // finished by an earlier delivery of this job
-  await db().update(plates).set({ jobState: "running", progress: 0.2, jobId }).where(eq(plates.id, plateId));
+  const actor = systemActor(plate.workspaceId);
+  await startBuild(actor, plateId, jobId);
   const task: BuildTask = {
     // The thread reads a part's blob only when it does not hold that part already.
     parts: plate.input.parts,
@@ -53,7 +54,7 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     });
     return;
   }
-  await db().update(plates).set({ progress: 0.9 }).where(eq(plates.id, plateId));
+  await setBuildProgress(actor, plateId, 0.9);
   const [stl, tmf] = await Promise.all([blobStore().put(r.stl), blobStore().put(r.threeMf)]);
   await finish(plate, {
     jobState: "done",
@@ -71,8 +72,8 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
 
 async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>) {
   const finishedAt = new Date();
-  await db().update(plates).set({ ...set, progress: 1, finishedAt }).where(eq(plates.id, plate.id));
-  await db().execute(sql`select pg_notify(${PLATE_CHANNEL}, ${plate.id})`);
+  await finishBuild(systemActor(plate.workspaceId), plate.id, set, finishedAt);
+  await announcePlate(PLATE_CHANNEL, plate.id);
   if (plate.callbackUrl) {
     const event = {
       event: set.jobState === "done" ? "plate.done" : "plate.failed",

@@ -1,7 +1,6 @@
 import { createHmac, randomBytes } from "node:crypto";
-import { eq } from "drizzle-orm";
-import { db } from "@/db";
-import { workspaces } from "@/db/schema";
+import { setWebhookSecret, webhookSecretOf } from "@/db/queries/workspaces";
+import { systemActor, type WorkspaceActor } from "@/lib/auth/actor";
 import { allowedHosts, postToTarget, resolveCallback, type CallbackRefusal, type PostOutcome, type Resolver } from "./callback-target";
 
 /**
@@ -17,11 +16,12 @@ export function sign(secret: string, body: string, t = Math.floor(Date.now() / 1
   return `t=${t},v1=${createHmac("sha256", secret).update(`${t}.${body}`).digest("hex")}`;
 }
 
-export async function webhookSecret(workspaceId: string): Promise<string> {
-  const [ws] = await db().select({ secret: workspaces.webhookSecret }).from(workspaces).where(eq(workspaces.id, workspaceId));
-  if (ws?.secret) return ws.secret;
+/** The workspace's signing secret, made on first use. */
+export async function webhookSecret(actor: WorkspaceActor): Promise<string> {
+  const existing = await webhookSecretOf(actor);
+  if (existing) return existing;
   const secret = `whsec_${randomBytes(24).toString("base64url")}`;
-  await db().update(workspaces).set({ webhookSecret: secret }).where(eq(workspaces.id, workspaceId));
+  await setWebhookSecret(actor, secret);
   return secret;
 }
 
@@ -42,7 +42,7 @@ export type DeliveryOutcome = { delivered: true; status: number } | { delivered:
 export async function deliverOnce(job: CallbackJob, opts: { timeoutMs: number; resolver?: Resolver }): Promise<DeliveryOutcome> {
   const r = await resolveCallback(job.url, { resolver: opts.resolver, allowHosts: allowedHosts() });
   if (!r.ok) return { delivered: false, refused: r.refusal };
-  const secret = await webhookSecret(job.workspaceId);
+  const secret = await webhookSecret(systemActor(job.workspaceId));
   const out: PostOutcome = await postToTarget(r.target, { "content-type": "application/json", [SIGNATURE_HEADER]: sign(secret, job.body) }, job.body, opts.timeoutMs);
   return out.ok ? { delivered: true, status: out.status } : { delivered: false, error: out.error, status: out.status };
 }

@@ -1,7 +1,7 @@
 import "server-only";
-import { and, eq, inArray } from "drizzle-orm";
-import { db } from "@/db";
-import { partUploads, parts, type Part, type PartUpload } from "@/db/schema";
+import type { Part, PartUpload } from "@/db/schema";
+import { deletePartRow, insertUpload, partById, partsByIds, refuseUnqueuedUpload, renamePart, uploadById } from "@/db/queries/parts";
+import type { WorkspaceActor } from "@/lib/auth/actor";
 import { type Caller } from "@/lib/auth/guards";
 import { UNIT_MM, type Unit } from "@/lib/geometry/io/raw";
 import { enqueuePartUpload } from "@/lib/jobs/queue";
@@ -24,10 +24,10 @@ export type UploadView = {
 const storedPart = (p: Part): StoredPart => ({ id: p.id, name: p.name, triangles: p.triangles, bodies: p.bodies, warnings: p.warnings, repairs: p.repairs });
 
 /** What the library (and its upload list) is told about an upload: its state, then its parts or the refusal. */
-export async function uploadView(u: PartUpload): Promise<UploadView> {
+export async function uploadView(actor: WorkspaceActor, u: PartUpload): Promise<UploadView> {
   const base = { id: u.id, file: u.fileName, state: u.state, url: `/api/parts/uploads/${u.id}` };
   if (u.state === "ready") {
-    const rows = u.partIds.length ? await db().select().from(parts).where(and(inArray(parts.id, u.partIds), eq(parts.workspaceId, u.workspaceId))) : [];
+    const rows = u.partIds.length ? await partsByIds(actor, u.partIds) : [];
     const order = new Map(u.partIds.map((id, i) => [id, i]));
     return { ...base, parts: rows.sort((a, b) => (order.get(a.id) ?? 0) - (order.get(b.id) ?? 0)).map(storedPart) };
   }
@@ -40,45 +40,37 @@ export async function uploadView(u: PartUpload): Promise<UploadView> {
  * are already in the blob store (content-addressed, so a retry reuses them).
  */
 export async function queueUpload(caller: Caller, stored: StoredBlob, fileName: string, opts: { split?: boolean; unit?: Unit; layFlat?: boolean } = {}): Promise<PartUpload> {
-  const [row] = await db()
-    .insert(partUploads)
-    .values({ workspaceId: caller.workspace.id, fileName: fileName.slice(0, 200), blobKey: stored.key, byteSize: stored.size, options: { split: Boolean(opts.split), unit: opts.unit, layFlat: Boolean(opts.layFlat) }, uploadedBy: caller.user.id })
-    .returning();
+  const row = await insertUpload(caller, { fileName: fileName.slice(0, 200), blobKey: stored.key, byteSize: stored.size, options: { split: Boolean(opts.split), unit: opts.unit, layFlat: Boolean(opts.layFlat) }, uploadedBy: caller.user.id });
   try {
-    await enqueuePartUpload(row!.id);
+    await enqueuePartUpload(row.id);
   } catch (err) {
-    await db().update(partUploads).set({ state: "refused", finishedAt: new Date(), error: { code: "queue_unavailable", message: "The import queue is not available; try again in a moment." } }).where(eq(partUploads.id, row!.id));
+    await refuseUnqueuedUpload(caller, row.id);
     await dropOrphans([stored.key]);
     throw err;
   }
-  return row!;
+  return row;
 }
 
 export async function getUpload(caller: Caller, id: string): Promise<PartUpload | null> {
-  const [u] = await db().select().from(partUploads).where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, caller.workspace.id)));
-  return u ?? null;
+  return uploadById(caller, id);
 }
 
 export async function getPart(caller: Caller, id: string): Promise<Part | null> {
-  const [p] = await db().select().from(parts).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id)));
-  return p ?? null;
+  return partById(caller, id);
 }
 
 const EXT: Record<Part["format"], string> = { stl: "stl", "3mf": "3mf", obj: "obj" };
 
 /** Queue a stored part to be read again by a build worker: in another unit, laid flat, or split into its bodies. */
 async function queueRework(caller: Caller, part: Part, options: { split?: boolean; unit?: Unit; layFlat?: boolean }): Promise<PartUpload> {
-  const [row] = await db()
-    .insert(partUploads)
-    .values({ workspaceId: caller.workspace.id, fileName: `${part.name}.${EXT[part.format]}`, blobKey: part.blobKey, byteSize: part.byteSize, options: { ...options, replaces: part.id }, uploadedBy: caller.user.id })
-    .returning();
+  const row = await insertUpload(caller, { fileName: `${part.name}.${EXT[part.format]}`, blobKey: part.blobKey, byteSize: part.byteSize, options: { ...options, replaces: part.id }, uploadedBy: caller.user.id });
   try {
-    await enqueuePartUpload(row!.id);
+    await enqueuePartUpload(row.id);
   } catch (err) {
-    await db().update(partUploads).set({ state: "refused", finishedAt: new Date(), error: { code: "queue_unavailable", message: "The import queue is not available; try again in a moment." } }).where(eq(partUploads.id, row!.id));
+    await refuseUnqueuedUpload(caller, row.id);
     throw err;
   }
-  return row!;
+  return row;
 }
 
 /**
@@ -89,7 +81,7 @@ export async function updatePart(caller: Caller, id: string, change: { name?: st
   let part = await getPart(caller, id);
   if (!part) throw new NotFound("not_found", "No such part.");
   if (change.name !== undefined && change.name !== part.name) {
-    const [row] = await db().update(parts).set({ name: change.name, updatedAt: new Date() }).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id))).returning();
+    const row = await renamePart(caller, id, change.name);
     if (!row) throw new NotFound("not_found", "No such part.");
     part = row;
   }
@@ -109,7 +101,7 @@ export async function splitPart(caller: Caller, id: string): Promise<PartUpload>
 }
 
 async function refuseIfInKits(caller: Caller, ids: string[], verb: string) {
-  const refusal = await inKitsRefusal(db(), caller.workspace.id, ids, verb);
+  const refusal = await inKitsRefusal(caller, ids, verb);
   if (refusal) throw new Conflict("part_in_use", refusal);
 }
 
@@ -117,7 +109,7 @@ export async function deletePart(caller: Caller, id: string): Promise<void> {
   const part = await getPart(caller, id);
   if (!part) throw new NotFound("not_found", "No such part.");
   await refuseIfInKits(caller, [id], "delete");
-  await db().delete(parts).where(and(eq(parts.id, id), eq(parts.workspaceId, caller.workspace.id)));
+  await deletePartRow(caller, id);
   await dropOrphans([part.blobKey]);
 }
 

@@ -1,5 +1,4 @@
-import { sql } from "drizzle-orm";
-import { db } from "@/db";
+import { blobUses } from "@/db/queries/blobs";
 import { blobStore } from "@/lib/storage";
 
 /**
@@ -9,11 +8,6 @@ import { blobStore } from "@/lib/storage";
  */
 export async function dropOrphans(keys: string[]): Promise<void> {
   for (const key of keys) {
-    const [used] = await db()
-      .execute<{ n: number }>(
-        sql`select (select count(*) from parts where blob_key = ${key}) + (select count(*) from plates where stl_blob_key = ${key} or three_mf_blob_key = ${key} or input::text like ${`%${key}%`}) + (select count(*) from part_uploads where blob_key = ${key} and state = 'checking') as n`,
-      )
-      .then((r) => r.rows);
-    if (Number(used?.n ?? 0) === 0) await blobStore().delete(key);
+    if ((await blobUses(key)) === 0) await blobStore().delete(key);
   }
 }

@@ -1,7 +1,8 @@
 import "server-only";
-import { and, asc, desc, eq, ilike, isNull, or, sql } from "drizzle-orm";
-import { db } from "@/db";
-import { templates, templateVersions, users, type TemplateVersion } from "@/db/schema";
+import type { TemplateVersion } from "@/db/schema";
+import { insertTemplate, insertTemplateVersion, lockTemplate, setCurrentVersion, setTemplateArchived, setTemplateName, templateById, templateRows, templateVersion, templateVersionRows } from "@/db/queries/templates";
+import { transaction, type Tx } from "@/db/queries/tx";
+import { asActor, type ActorOrWorkspace, type WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
 import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
@@ -16,7 +17,8 @@ import { PlanLimit, NotFound, Conflict, Invalid } from "@/lib/errors";
  * made from version n can be made again exactly.
  */
 
-export type Actor = { workspaceId: string; userId: string | null; email?: string | null };
+/** Who changes a template: the acting identity, with the address its audit lines name. */
+export type Actor = WorkspaceActor & { email?: string | null };
 
 /** Check a template's options and variables; the message says what to fix. */
 export function checkBody(input: unknown): TemplateBody {
@@ -33,60 +35,30 @@ export function checkBody(input: unknown): TemplateBody {
   return r.data;
 }
 
-const visible = (workspaceId: string) => or(eq(templates.workspaceId, workspaceId), isNull(templates.workspaceId));
-
-export async function listTemplates(workspaceId: string, filter: { q?: string; archived?: boolean } = {}) {
-  const q = filter.q?.trim();
-  return db()
-    .select({
-      id: templates.id,
-      name: templates.name,
-      description: templates.description,
-      starter: sql<boolean>`${templates.workspaceId} is null`,
-      version: templates.currentVersion,
-      archivedAt: templates.archivedAt,
-      updatedAt: templates.updatedAt,
-      variables: templateVersions.variables,
-      thumbnailSvg: templateVersions.thumbnailSvg,
-      thumbnailState: templateVersions.thumbnailState,
-      findings: templateVersions.findings,
-      options: templateVersions.options,
-      updatedBy: users.name,
-    })
-    .from(templates)
-    .innerJoin(templateVersions, and(eq(templateVersions.templateId, templates.id), eq(templateVersions.version, templates.currentVersion)))
-    .leftJoin(users, eq(users.id, templateVersions.createdBy))
-    .where(and(visible(workspaceId), filter.archived ? sql`${templates.archivedAt} is not null` : isNull(templates.archivedAt), q ? or(ilike(templates.name, `%${q}%`), ilike(templates.description, `%${q}%`)) : undefined))
-    .orderBy(sql`${templates.workspaceId} is null`, desc(templates.updatedAt), asc(templates.name));
+export async function listTemplates(actor: ActorOrWorkspace, filter: { q?: string; archived?: boolean } = {}) {
+  return templateRows(asActor(actor), filter);
 }
 export type TemplateRow = Awaited<ReturnType<typeof listTemplates>>[number];
 
-export async function getTemplate(workspaceId: string, id: string) {
-  const [t] = await db().select().from(templates).where(and(eq(templates.id, id), visible(workspaceId)));
+export async function getTemplate(actor: WorkspaceActor, id: string) {
+  const t = await templateById(actor, id);
   if (!t) throw new NotFound("not_found", "No such template.");
-  const versions = await db()
-    .select({ v: templateVersions, by: users.name, byEmail: users.email })
-    .from(templateVersions)
-    .leftJoin(users, eq(users.id, templateVersions.createdBy))
-    .where(eq(templateVersions.templateId, t.id))
-    .orderBy(desc(templateVersions.version));
+  const versions = await templateVersionRows(actor, t.id);
   return { template: t, versions: versions.map((r) => ({ ...r.v, by: r.by ?? r.byEmail ?? (t.workspaceId ? "—" : "Slabwright") })), current: versions.find((r) => r.v.version === t.currentVersion)!.v };
 }
 
 /** A template version a plate will use: the current one, or the one asked for. */
-export async function versionForPlate(workspaceId: string, templateId: string, version?: number): Promise<TemplateVersion & { templateName: string }> {
-  const [t] = await db().select().from(templates).where(and(eq(templates.id, templateId), visible(workspaceId)));
+export async function versionForPlate(actor: ActorOrWorkspace, templateId: string, version?: number): Promise<TemplateVersion & { templateName: string }> {
+  const a = asActor(actor);
+  const t = await templateById(a, templateId);
   if (!t) throw new NotFound("not_found", "No such template.");
-  const [v] = await db()
-    .select()
-    .from(templateVersions)
-    .where(and(eq(templateVersions.templateId, t.id), eq(templateVersions.version, version ?? t.currentVersion)));
+  const v = await templateVersion(a, t.id, version ?? t.currentVersion);
   if (!v) throw new NotFound("not_found", `The template has no version ${version}; its newest is ${t.currentVersion}.`);
   return { ...v, templateName: t.name };
 }
 
-async function writable(tx: Parameters<Parameters<ReturnType<typeof db>["transaction"]>[0]>[0], actor: Actor, id: string) {
-  const [t] = await tx.select().from(templates).where(and(eq(templates.id, id), visible(actor.workspaceId))).for("update");
+async function writable(tx: Tx, actor: Actor, id: string) {
+  const t = await lockTemplate(tx, actor, id);
   if (!t) throw new NotFound("not_found", "No such template.");
   if (!t.workspaceId) throw new Conflict("starter_read_only", "Starter templates cannot be changed: duplicate it, then edit the copy.");
   return t;
@@ -95,21 +67,18 @@ async function writable(tx: Parameters<Parameters<ReturnType<typeof db>["transac
 /** Logos come with the paid plans. */
 async function checkPlan(actor: Actor, body: TemplateBody) {
   if (!body.options.marks.logo) return;
-  const b = await billingOf(actor.workspaceId);
+  const b = await billingOf(actor);
   if (!b.effective.logos) throw new PlanLimit("plan_limit", `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade under Settings → Billing.`, undefined, "options.marks.logo");
 }
 
 export async function createTemplate(actor: Actor, input: { name: string; description?: string; body: unknown; note?: string }): Promise<{ id: string; versionId: string }> {
   const body = checkBody(input.body);
   await checkPlan(actor, body);
-  const out = await db().transaction(async (tx) => {
-    const [t] = await tx.insert(templates).values({ workspaceId: actor.workspaceId, name: input.name.trim(), description: input.description?.trim() ?? "", createdBy: actor.userId }).returning();
-    const [v] = await tx
-      .insert(templateVersions)
-      .values({ templateId: t!.id, version: 1, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? null, changes: describeChanges(null, body), createdBy: actor.userId })
-      .returning();
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_created", target: t!.id, details: { name: t!.name } }, tx);
-    return { id: t!.id, versionId: v!.id };
+  const out = await transaction(async (tx) => {
+    const t = await insertTemplate(tx, actor, { name: input.name.trim(), description: input.description?.trim() ?? "", createdBy: actor.userId });
+    const v = await insertTemplateVersion(tx, t.id, { version: 1, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? null, changes: describeChanges(null, body), createdBy: actor.userId });
+    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_created", target: t.id, details: { name: t.name } }, tx);
+    return { id: t.id, versionId: v.id };
   });
   await enqueueThumbnail(out.versionId);
   return out;
@@ -118,49 +87,46 @@ export async function createTemplate(actor: Actor, input: { name: string; descri
 export async function saveVersion(actor: Actor, id: string, input: { body: unknown; note?: string; restoredFrom?: number }): Promise<{ version: number; versionId: string }> {
   const body = checkBody(input.body);
   await checkPlan(actor, body);
-  const out = await db().transaction(async (tx) => {
+  const out = await transaction(async (tx) => {
     const t = await writable(tx, actor, id);
-    const [prev] = await tx.select().from(templateVersions).where(and(eq(templateVersions.templateId, id), eq(templateVersions.version, t.currentVersion)));
+    const prev = await templateVersion(actor, id, t.currentVersion, { tx });
     const version = t.currentVersion + 1;
     const changes = describeChanges(prev ? { options: prev.options as SlabOptionsInput, variables: prev.variables as TemplateVariableDef[] } : null, body);
-    const [v] = await tx
-      .insert(templateVersions)
-      .values({ templateId: id, version, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? (input.restoredFrom ? `restored from version ${input.restoredFrom}` : null), changes, createdBy: actor.userId })
-      .returning();
-    await tx.update(templates).set({ currentVersion: version, updatedAt: new Date() }).where(eq(templates.id, id));
+    const v = await insertTemplateVersion(tx, id, { version, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? (input.restoredFrom ? `restored from version ${input.restoredFrom}` : null), changes, createdBy: actor.userId });
+    await setCurrentVersion(tx, actor, id, version);
     await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: input.restoredFrom ? "template_version_restored" : "template_version_saved", target: id, details: { version, ...(input.restoredFrom ? { restoredFrom: input.restoredFrom } : {}) } }, tx);
-    return { version, versionId: v!.id };
+    return { version, versionId: v.id };
   });
   await enqueueThumbnail(out.versionId);
   return out;
 }
 
 export async function restoreVersion(actor: Actor, id: string, version: number) {
-  const { versions } = await getTemplate(actor.workspaceId, id);
+  const { versions } = await getTemplate(actor, id);
   const old = versions.find((v) => v.version === version);
   if (!old) throw new NotFound("not_found", `The template has no version ${version}.`);
   return saveVersion(actor, id, { body: { options: old.options, variables: old.variables }, restoredFrom: version });
 }
 
 export async function duplicateTemplate(actor: Actor, id: string): Promise<{ id: string; versionId: string }> {
-  const { template, current } = await getTemplate(actor.workspaceId, id);
+  const { template, current } = await getTemplate(actor, id);
   const out = await createTemplate(actor, { name: `${template.name} (copy)`, description: template.description, body: { options: current.options, variables: current.variables }, note: `copied from ${template.name}, version ${current.version}` });
   await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_duplicated", target: out.id, details: { from: id } });
   return out;
 }
 
 export async function setArchived(actor: Actor, id: string, archived: boolean) {
-  await db().transaction(async (tx) => {
+  await transaction(async (tx) => {
     await writable(tx, actor, id);
-    await tx.update(templates).set({ archivedAt: archived ? new Date() : null, updatedAt: new Date() }).where(eq(templates.id, id));
+    await setTemplateArchived(tx, actor, id, archived);
     await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: archived ? "template_archived" : "template_unarchived", target: id }, tx);
   });
 }
 
 export async function renameTemplate(actor: Actor, id: string, name: string, description: string) {
-  await db().transaction(async (tx) => {
+  await transaction(async (tx) => {
     await writable(tx, actor, id);
-    await tx.update(templates).set({ name: name.trim(), description: description.trim(), updatedAt: new Date() }).where(eq(templates.id, id));
+    await setTemplateName(tx, actor, id, name.trim(), description.trim());
     await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_renamed", target: id, details: { name } }, tx);
   });
 }

@@ -23,7 +23,8 @@ vi.mock("next/cache", () => ({ revalidatePath: () => undefined }));
 
 import { db } from "@/db";
 import { DEMO_USERS } from "@/db/seed";
-import { acceptInvitation, createApiKey, inviteMember } from "@/db/queries/accounts";
+import { createApiKey } from "@/lib/accounts/api-keys";
+import { acceptInvitation, inviteMember } from "@/lib/accounts/invitations";
 import { apiKeys, auditEvents, devOutbox, invitations, kits, memberships, users, workspaces, type Role } from "@/db/schema";
 import { authorize, callerFor, loadCaller, type Caller } from "@/lib/auth/guards";
 import { hashPassword } from "@/lib/auth/password";

@@ -3,6 +3,7 @@ import { eq, like, sql } from "drizzle-orm";
 import { beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { apiKeys, auditEvents, billingEvents, invoices, kits, memberships, plateUsage, users, workspaceBilling, workspaces } from "@/db/schema";
+import { permissionsOf, systemActor } from "@/lib/auth/actor";
 import { generateApiKey } from "@/lib/auth/api-keys";
 import { PLANS } from "@/lib/billing/plans";
 import { billingOf, startCheckout } from "@/lib/billing/service";
@@ -31,7 +32,7 @@ beforeAll(async () => {
   await db().insert(memberships).values({ workspaceId: ws.id, userId: ownerId, role: "owner" });
 });
 
-const actor = () => ({ workspaceId: ws.id, userId: ownerId, email: ownerEmail });
+const actor = () => ({ workspaceId: ws.id, userId: ownerId, apiKeyId: null, permissions: permissionsOf("owner"), email: ownerEmail });
 /** Sign like the provider (HMAC-SHA256 of "t.body"), independently of the SDK the app verifies with. */
 const sign = (body: string, t = Math.floor(Date.now() / 1000), key = secret) => `t=${t},v1=${createHmac("sha256", key).update(`${t}.${body}`).digest("hex")}`;
 const hook = (body: string, sig: string) => fetch(`${baseUrl()}/api/billing/webhook`, { method: "POST", body, headers: { "content-type": "application/json", "stripe-signature": sig } });
@@ -47,12 +48,12 @@ async function payOnHostedPage(url: string) {
 
 describe("checkout", () => {
   it("checkout → hosted page → signed events → the Workshop plan is active, with its invoice", async () => {
-    expect((await billingOf(ws.id)).plan).toBe("bench");
+    expect((await billingOf(systemActor(ws.id))).plan).toBe("bench");
     const url = await startCheckout(actor(), "workshop");
     expect(url.startsWith(fake)).toBe(true);
     await payOnHostedPage(url);
-    await expect.poll(async () => (await billingOf(ws.id)).plan, { timeout: 10_000 }).toBe("workshop");
-    const b = await billingOf(ws.id);
+    await expect.poll(async () => (await billingOf(systemActor(ws.id))).plan, { timeout: 10_000 }).toBe("workshop");
+    const b = await billingOf(systemActor(ws.id));
     expect([b.status, b.subscriptionId?.startsWith("sub_"), b.customerId?.startsWith("cus_")]).toEqual(["active", true, true]);
     await expect.poll(async () => (await db().select().from(invoices).where(eq(invoices.workspaceId, ws.id))).length).toBe(1);
     const [inv] = await db().select().from(invoices).where(eq(invoices.workspaceId, ws.id));
@@ -63,7 +64,7 @@ describe("checkout", () => {
 
   it("an event delivered twice changes nothing the second time", async () => {
     const events = ((await (await fetch(`${fake}/_control/events`)).json()) as { events: { id: string; type: string; data: { object: { customer?: string } } }[] }).events;
-    const customer = (await billingOf(ws.id)).customerId;
+    const customer = (await billingOf(systemActor(ws.id))).customerId;
     const paid = events.filter((e) => e.type === "invoice.paid" && e.data.object.customer === customer).at(-1)!;
     const before = await db().select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, ws.id));
     const r = (await (await fetch(`${fake}/_control/events/${paid.id}/resend`, { method: "POST" })).json()) as { status: number };
@@ -75,22 +76,22 @@ describe("checkout", () => {
   });
 
   it("an older event arriving after a newer one is recorded as stale and changes nothing", async () => {
-    const b = await billingOf(ws.id);
+    const b = await billingOf(systemActor(ws.id));
     const late = { type: "customer.subscription.deleted", object: { id: b.subscriptionId, object: "subscription", customer: b.customerId, status: "canceled", metadata: { workspaceId: ws.id } }, created: Math.floor(b.lastEventAt!.getTime() / 1000) - 3600 };
     const { event } = (await (await fetch(`${fake}/_control/send`, { method: "POST", body: JSON.stringify(late) })).json()) as { event: string };
     const [row] = await db().select().from(billingEvents).where(eq(billingEvents.id, event));
     expect(row!.outcome).toBe("stale");
-    expect((await billingOf(ws.id)).plan).toBe("workshop");
+    expect((await billingOf(systemActor(ws.id))).plan).toBe("workshop");
   });
 
   it("a bad signature is a 400 and changes nothing", async () => {
-    const body = JSON.stringify({ id: "evt_forged", object: "event", type: "customer.subscription.deleted", created: Math.floor(Date.now() / 1000), data: { object: { id: "sub_x", customer: (await billingOf(ws.id)).customerId, metadata: { workspaceId: ws.id } } } });
+    const body = JSON.stringify({ id: "evt_forged", object: "event", type: "customer.subscription.deleted", created: Math.floor(Date.now() / 1000), data: { object: { id: "sub_x", customer: (await billingOf(systemActor(ws.id))).customerId, metadata: { workspaceId: ws.id } } } });
     const r = await hook(body, sign(body, undefined, "whsec_someone_else"));
     expect(r.status).toBe(400);
     expect(((await r.json()) as { error: { code: string } }).error.code).toBe("bad_signature");
     expect((await hook(body, "")).status).toBe(400);
     expect(await db().select().from(billingEvents).where(eq(billingEvents.id, "evt_forged"))).toEqual([]);
-    expect((await billingOf(ws.id)).plan).toBe("workshop");
+    expect((await billingOf(systemActor(ws.id))).plan).toBe("workshop");
   });
 });
 
@@ -98,21 +99,21 @@ describe("forged and foreign checkout events", () => {
   // ASVS 4.0 V2.10.4 / V6.4.1 (no secret in source code): the value that used to be the in-code
   // default must not verify anything now.
   it("a checkout.session.completed signed with the old in-source secret is refused (400) and changes nothing", async () => {
-    const before = await billingOf(ws.id);
+    const before = await billingOf(systemActor(ws.id));
     const id = `evt_legacy_${Date.now()}`;
     const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: "cs_forged_legacy", object: "checkout.session", customer: before.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: ws.id, plan: "farm" } } } });
     const r = await hook(body, sign(body, undefined, LEGACY_SECRET));
     expect(r.status).toBe(400);
     expect(((await r.json()) as { error: { code: string } }).error.code).toBe("bad_signature");
     expect(await db().select().from(billingEvents).where(eq(billingEvents.id, id))).toEqual([]);
-    expect((await billingOf(ws.id)).plan).toBe(before.plan);
+    expect((await billingOf(systemActor(ws.id))).plan).toBe(before.plan);
   });
 
   // ASVS 4.0 V13.2.x / V1.5.x (webhook authenticity beyond the signature; untrusted input): only a checkout session the
   // app created is applied. A signed event for any other session id is answered 200 (outcome
   // unknown_session) and recorded, so the provider stops redelivering it, but it changes no plan.
   it("a correctly signed event for a checkout session we never created is recorded and not applied", async () => {
-    const before = await billingOf(ws.id);
+    const before = await billingOf(systemActor(ws.id));
     const id = `evt_unknown_session_${Date.now()}`;
     const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: `cs_never_made_${Date.now()}`, object: "checkout.session", customer: before.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: ws.id, plan: "farm" } } } });
     const r = await hook(body, sign(body));
@@ -120,7 +121,7 @@ describe("forged and foreign checkout events", () => {
     expect(((await r.json()) as { outcome: string }).outcome).toBe("unknown_session");
     const [row] = await db().select().from(billingEvents).where(eq(billingEvents.id, id));
     expect(row?.outcome).toBe("unknown_session");
-    const after = await billingOf(ws.id);
+    const after = await billingOf(systemActor(ws.id));
     expect([after.plan, after.subscriptionId]).toEqual([before.plan, before.subscriptionId]);
   });
 
@@ -130,8 +131,8 @@ describe("forged and foreign checkout events", () => {
     await db().delete(workspaces).where(like(workspaces.name, "Billing other shop%"));
     const [other] = await db().insert(workspaces).values({ name: "Billing other shop", slug: `billing-other-${Date.now()}` }).returning();
     const otherId = other?.id ?? "";
-    expect((await billingOf(otherId)).plan).toBe("bench");
-    const aBefore = await billingOf(ws.id);
+    expect((await billingOf(systemActor(otherId))).plan).toBe("bench");
+    const aBefore = await billingOf(systemActor(ws.id));
     const url = await startCheckout(actor(), "farm"); // a real session, for workspace A, never paid
     const sessionId = new URL(url).pathname.split("/").at(-1) ?? "";
     expect(sessionId).toMatch(/^cs_/);
@@ -139,9 +140,9 @@ describe("forged and foreign checkout events", () => {
     const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: sessionId, object: "checkout.session", customer: aBefore.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: otherId, plan: "farm" } } } });
     const r = await hook(body, sign(body));
     expect(r.status).toBe(200);
-    expect((await billingOf(otherId)).plan).toBe("bench");
+    expect((await billingOf(systemActor(otherId))).plan).toBe("bench");
     // Nor is A upgraded: the provider says that session was never paid.
-    const aAfter = await billingOf(ws.id);
+    const aAfter = await billingOf(systemActor(ws.id));
     expect([aAfter.plan, aAfter.subscriptionId]).toEqual([aBefore.plan, aBefore.subscriptionId]);
     const [row] = await db().select().from(billingEvents).where(eq(billingEvents.id, id));
     expect(row?.workspaceId).not.toBe(otherId);
@@ -154,7 +155,7 @@ describe("quota and failed payments", () => {
     const [kit] = await db().insert(kits).values({ workspaceId: ws.id, name: "Empty test kit" }).returning();
     const k = generateApiKey();
     await db().insert(apiKeys).values({ workspaceId: ws.id, name: "quota test", prefix: k.prefix, keyHash: k.hash, scopes: ["plates:write", "plates:read"] });
-    const b = await billingOf(ws.id);
+    const b = await billingOf(systemActor(ws.id));
     const start = b.periodStart!;
     await db().insert(plateUsage).values({ workspaceId: ws.id, periodStart: start, plates: PLANS.workshop.platesPerPeriod }).onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: PLANS.workshop.platesPerPeriod } });
     const f = new FormData();
@@ -170,17 +171,17 @@ describe("quota and failed payments", () => {
   });
 
   it("a failed payment gives a grace period, then the workspace moves to the free plan", async () => {
-    const b = await billingOf(ws.id);
+    const b = await billingOf(systemActor(ws.id));
     const r = await fetch(`${fake}/_control/fail-payment`, { method: "POST", body: JSON.stringify({ customer: b.customerId }) });
     expect(r.status).toBe(200);
-    await expect.poll(async () => (await billingOf(ws.id)).status, { timeout: 10_000 }).toBe("grace");
-    const g = await billingOf(ws.id);
+    await expect.poll(async () => (await billingOf(systemActor(ws.id))).status, { timeout: 10_000 }).toBe("grace");
+    const g = await billingOf(systemActor(ws.id));
     expect(g.plan).toBe("workshop"); // still the paid plan while the grace period lasts
     expect(g.graceUntil!.getTime()).toBeGreaterThan(Date.now() + 6 * 86_400_000);
     expect((await db().select().from(invoices).where(eq(invoices.workspaceId, ws.id))).map((i) => i.status).sort()).toEqual(["failed", "paid"]);
     // The grace period runs out.
     await db().update(workspaceBilling).set({ graceUntil: new Date(Date.now() - 1000) }).where(eq(workspaceBilling.workspaceId, ws.id));
-    const down = await billingOf(ws.id);
+    const down = await billingOf(systemActor(ws.id));
     expect([down.plan, down.status, down.effective.apiKeys]).toEqual(["bench", "canceled", 0]);
     // The shop's key, made on Workshop, now meets the Bench plan's refusal.
     const [key] = await db().select().from(apiKeys).where(eq(apiKeys.workspaceId, ws.id));

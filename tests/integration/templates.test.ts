@@ -25,6 +25,8 @@ beforeAll(async () => {
   designerId = u!.id;
 });
 
+const designer = () => ({ workspaceId, userId: designerId, apiKeyId: null, permissions: permissionsOf("designer") });
+
 const post = (fields: Record<string, string>) => {
   const f = new FormData();
   for (const [k, v] of Object.entries(fields)) f.append(k, v);
@@ -87,7 +89,7 @@ describe("plates from a template", () => {
   });
 
   it("a plate made with version 1 is made again byte for byte after version 2 is saved", async () => {
-    const actor = { workspaceId, userId: designerId };
+    const actor = designer();
     const t = await createTemplate(actor, { name: `Pinning ${Date.now()}`, body: { options: { marks: { text: [{ value: "ORDER {order}" }] } }, variables: [{ name: "order", default: "", sample: "1" }] } });
     const v1 = await post({ kit: kitId, template: t.id, format: "stl", variables: JSON.stringify({ order: "20931" }) });
     expect(v1.status).toBe(200);
@@ -102,7 +104,7 @@ describe("plates from a template", () => {
     expect(v2.status).toBe(200);
     expect((await bytes(v2)).equals(v1Bytes)).toBe(false); // the newest version is another slab
 
-    const again = await remakePlate({ workspaceId, userId: designerId, apiKeyId: null, permissions: permissionsOf("designer") }, v1Plate);
+    const again = await remakePlate(designer(), v1Plate);
     expect((await fileOf(again.id, "stl")).equals(v1Bytes)).toBe(true);
     // 3MF too (dated by the plate's {date}, so remaking on another day gives the same bytes).
     expect((await fileOf(again.id, "3mf")).equals(await fileOf(v1Plate, "3mf"))).toBe(true);
@@ -114,11 +116,11 @@ describe("plates from a template", () => {
   });
 
   it("a template using an undefined variable cannot be saved", async () => {
-    await expect(createTemplate({ workspaceId, userId: designerId }, { name: "Broken", body: { options: { marks: { text: [{ value: "Hi {nmae}" }] } }, variables: [{ name: "name" }] } })).rejects.toThrow(/uses \{nmae\}, which is not defined/);
+    await expect(createTemplate(designer(), { name: "Broken", body: { options: { marks: { text: [{ value: "Hi {nmae}" }] } }, variables: [{ name: "name" }] } })).rejects.toThrow(/uses \{nmae\}, which is not defined/);
   });
 
   it("starter templates cannot be changed", async () => {
     const round = await starter("round-thanks");
-    await expect(saveVersion({ workspaceId, userId: designerId }, round.id, { body: { options: {}, variables: [] } })).rejects.toThrow(/duplicate it/);
+    await expect(saveVersion(designer(), round.id, { body: { options: {}, variables: [] } })).rejects.toThrow(/duplicate it/);
   });
 });

@@ -16,7 +16,7 @@ export default async function DevelopersPage() {
   const caller = await requireCaller();
   const owner = can(caller.role, "api-keys:manage");
   const base = appUrl("/").replace(/\/$/, "");
-  const secret = owner ? await webhookSecret(caller.workspace.id) : null;
+  const secret = owner ? await webhookSecret(caller) : null;
   const curl = `curl -sS -X POST ${base}/api/v1/plates \\
   -H "Authorization: Bearer $SLAB_KEY" \\
   -H "Idempotency-Key: order-10482" \\

@@ -4,7 +4,7 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { createPlate, remakePlate } from "@/lib/plates/create";
 import { resolvePlateRequest } from "@/lib/plates/request";
-import { archiveKit, duplicateKit, saveKit } from "@/db/queries/kits";
+import { archiveKit, duplicateKit, saveKit } from "@/lib/kits/service";
 import { guardedAction } from "@/lib/auth/guards";
 import { idSchema } from "@/lib/validation/accounts";
 import { kitSchema } from "@/lib/validation/kits";

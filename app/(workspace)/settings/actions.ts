@@ -1,11 +1,11 @@
 "use server";
 
 import { revalidatePath } from "next/cache";
-import { and, eq, isNull, sql } from "drizzle-orm";
-import { db } from "@/db";
-import { apiKeys } from "@/db/schema";
+import { activeApiKeyCount } from "@/db/queries/api-keys";
+import { createApiKey, revokeApiKey } from "@/lib/accounts/api-keys";
+import { inviteMember, revokeInvitation } from "@/lib/accounts/invitations";
+import { changeRole, removeMember } from "@/lib/accounts/members";
 import { billingOf } from "@/lib/billing/service";
-import { changeRole, createApiKey, inviteMember, removeMember, revokeApiKey, revokeInvitation } from "@/db/queries/accounts";
 import { guardedAction } from "@/lib/auth/guards";
 import { apiKeySchema, changeRoleSchema, idSchema, inviteSchema, memberSchema } from "@/lib/validation/accounts";
 
@@ -35,9 +35,8 @@ export const dropMember = guardedAction(memberSchema, "members:manage", "removin
 
 export const makeApiKey = guardedAction(apiKeySchema, "api-keys:manage", "creating API keys", async (input, caller) => {
   // API keys come with the plan: the Bench plan has none, the paid plans a number each.
-  const billing = await billingOf(caller.workspace.id);
-  const [held] = await db().select({ n: sql<number>`count(*)::int` }).from(apiKeys).where(and(eq(apiKeys.workspaceId, caller.workspace.id), isNull(apiKeys.revokedAt)));
-  if (held!.n >= billing.effective.apiKeys) {
+  const billing = await billingOf(caller);
+  if ((await activeApiKeyCount(caller)) >= billing.effective.apiKeys) {
     return { ok: false, code: "plan_limit", message: billing.effective.apiKeys === 0 ? `The ${billing.effective.name} plan has no API access. Upgrade under Settings → Billing to connect an order system.` : `The ${billing.effective.name} plan allows ${billing.effective.apiKeys} API keys; revoke one or upgrade under Settings → Billing.` };
   }
   const created = await createApiKey(caller, input.name, input.scopes);

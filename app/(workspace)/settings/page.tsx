@@ -1,5 +1,6 @@
 import type { Metadata } from "next";
-import { listMembers, listPendingInvitations } from "@/db/queries/accounts";
+import { listPendingInvitations } from "@/lib/accounts/invitations";
+import { listMembers } from "@/lib/accounts/members";
 import { requireCaller } from "@/lib/auth/guards";
 import { can } from "@/lib/auth/permissions";
 import { People } from "./_components/people";

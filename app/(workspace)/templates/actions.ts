@@ -5,7 +5,7 @@ import { z } from "zod";
 import { guardedAction, type Caller } from "@/lib/auth/guards";
 import { createTemplate, duplicateTemplate, renameTemplate, restoreVersion, saveVersion, setArchived, type Actor } from "@/lib/templates/service";
 
-const actor = (c: Caller): Actor => ({ workspaceId: c.workspace.id, userId: c.user.id, email: c.user.email });
+const actor = (c: Caller): Actor => ({ ...c, email: c.user.email });
 const body = z.object({ options: z.record(z.string(), z.unknown()), variables: z.array(z.record(z.string(), z.unknown())).max(20) });
 const name = z.string().trim().min(1, "Give the template a name.").max(80, "At most 80 characters.");
 const description = z.string().trim().max(500, "At most 500 characters.").default("");

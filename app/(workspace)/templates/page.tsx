@@ -15,7 +15,7 @@ export default async function TemplatesPage({ searchParams }: { searchParams: Pr
   const caller = await requireCaller();
   const { q = "", archived } = await searchParams;
   const showArchived = archived === "1";
-  const rows = await listTemplates(caller.workspace.id, { q, archived: showArchived });
+  const rows = await listTemplates(caller, { q, archived: showArchived });
   const mayEdit = can(caller.role, "templates:write");
   return (
     <>

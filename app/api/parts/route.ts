@@ -53,6 +53,6 @@ export const POST = apiRoute(async (req: Request) => {
     throw refusal;
   }
   const upload = await queueUpload(caller, stored, q.name, { split: q.split === "1", unit: q.unit, layFlat: q.layFlat === "1" });
-  const view = await uploadView(upload);
+  const view = await uploadView(caller, upload);
   return Response.json({ upload: view }, { status: 202, headers: { Location: view.url } });
 });

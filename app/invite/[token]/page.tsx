@@ -1,7 +1,7 @@
 import type { Metadata } from "next";
 import Link from "next/link";
 import { NarrowPage } from "@/app/_components/narrow-page";
-import { invitationByToken, INVITATION_MESSAGES } from "@/db/queries/accounts";
+import { invitationByToken, INVITATION_MESSAGES } from "@/lib/accounts/invitations";
 import { loadSessionUser } from "@/lib/auth/guards";
 import { ROLE_LABEL } from "@/lib/auth/permissions";
 import { AcceptButton } from "./_components/accept-button";

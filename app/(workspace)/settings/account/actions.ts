@@ -1,7 +1,7 @@
 "use server";
 
 import { redirect } from "next/navigation";
-import { changePassword, endAllSessions } from "@/db/queries/accounts";
+import { changePassword, endAllSessions } from "@/lib/accounts/passwords";
 import { signIn, signOut } from "@/lib/auth/config";
 import { guardedAction, loadSessionUser } from "@/lib/auth/guards";
 import { clientIp } from "@/lib/auth/request";

@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import { listApiKeys } from "@/db/queries/accounts";
+import { listApiKeys } from "@/lib/accounts/api-keys";
 import { requirePermission } from "@/lib/auth/guards";
 import { ApiKeys } from "./_components/api-keys";
 

@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { listAudit } from "@/db/queries/accounts";
+import { listAudit } from "@/lib/accounts/activity";
 import { requirePermission } from "@/lib/auth/guards";
 import { when } from "@/lib/format";
 import { DataTable } from "../../_components/page-header";

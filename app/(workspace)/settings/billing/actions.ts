@@ -5,10 +5,10 @@ import { guardedAction } from "@/lib/auth/guards";
 import { billingPortal, startCheckout } from "@/lib/billing/service";
 
 export const checkoutAction = guardedAction(z.object({ plan: z.enum(["workshop", "farm"]) }), "billing:manage", "changing the plan", async (input, caller) => {
-  const url = await startCheckout({ workspaceId: caller.workspace.id, userId: caller.user.id, email: caller.user.email }, input.plan);
+  const url = await startCheckout({ ...caller, email: caller.user.email }, input.plan);
   return { ok: true, data: { url } };
 });
 
 export const portalAction = guardedAction(z.object({}), "billing:manage", "managing billing", async (_input, caller) => {
-  return { ok: true, data: { url: await billingPortal(caller.workspace.id) } };
+  return { ok: true, data: { url: await billingPortal(caller) } };
 });

@@ -11,9 +11,9 @@ export const metadata: Metadata = { title: "Billing" };
 export default async function BillingPage({ searchParams }: { searchParams: Promise<{ checkout?: string }> }) {
   const { caller, allowed } = await requirePermission("billing:manage");
   if (!allowed) return <EmptyState message="Only the workspace's owners see and change its plan." />;
-  const b = await billingOf(caller.workspace.id);
-  const used = await usageOf(b);
-  const invoices = await invoicesOf(caller.workspace.id);
+  const b = await billingOf(caller);
+  const used = await usageOf(caller, b);
+  const invoices = await invoicesOf(caller);
   const { checkout } = await searchParams;
   const plan = b.effective;
   return (

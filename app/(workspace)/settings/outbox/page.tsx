@@ -1,5 +1,5 @@
 import type { Metadata } from "next";
-import { listOutbox } from "@/db/queries/accounts";
+import { listOutbox } from "@/lib/accounts/activity";
 import { requireCaller } from "@/lib/auth/guards";
 import { env } from "@/lib/env";
 import { when } from "@/lib/format";

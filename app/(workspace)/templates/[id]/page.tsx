@@ -18,7 +18,7 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
   const caller = await requireCaller();
   let t;
   try {
-    t = await getTemplate(caller.workspace.id, (await params).id);
+    t = await getTemplate(caller, (await params).id);
   } catch (err) {
     if (err instanceof NotFound) notFound();
     throw err;

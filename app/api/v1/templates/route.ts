@@ -10,7 +10,7 @@ export const dynamic = "force-dynamic";
 /** GET /api/v1/templates — the key's workspace's templates and the starters (scope templates:read). */
 export const GET = apiRoute(async (req: Request) => {
   const caller = await requireApiKey(req, "templates:read");
-  const rows = await listTemplates(caller.workspaceId);
+  const rows = await listTemplates(caller);
   return Response.json({
     templates: rows.map((t) => ({
       id: t.id,

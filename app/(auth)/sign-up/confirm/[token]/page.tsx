@@ -1,6 +1,6 @@
 import type { Metadata } from "next";
 import Link from "next/link";
-import { pendingSignUpByToken, SIGN_UP_LINK_MESSAGES } from "@/db/queries/accounts";
+import { pendingSignUpByToken, SIGN_UP_LINK_MESSAGES } from "@/lib/accounts/sign-up";
 import { FinishButton } from "./_components/finish-button";
 
 export const metadata: Metadata = { title: "Finish creating your account" };

@@ -11,5 +11,5 @@ export const GET = apiRoute(async (_req: Request, ctx: { params: Promise<{ id: s
   const caller = await authorize("workspace:view", "seeing parts");
   const upload = await getUpload(caller, (await ctx.params).id);
   if (!upload) throw notFound("upload");
-  return Response.json({ upload: await uploadView(upload) }, { headers: { "Cache-Control": "no-store" } });
+  return Response.json({ upload: await uploadView(caller, upload) }, { headers: { "Cache-Control": "no-store" } });
 });

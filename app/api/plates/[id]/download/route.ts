@@ -1,6 +1,6 @@
 import { apiRoute } from "@/lib/api/respond";
 import { plateFile } from "@/lib/api/plates";
-import { sessionPlate } from "@/lib/api/session-plates";
+import { plateById } from "@/db/queries/plates";
 import { authorize } from "@/lib/auth/guards";
 import { BadRequest } from "@/lib/errors";
 import { DEFAULT_EXPORT_FORMAT, EXPORT_FORMAT_IDS, isExportFormat } from "@/lib/geometry/formats";
@@ -13,5 +13,5 @@ export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: st
   const caller = await authorize("plates:download", "downloading plate files");
   const format = new URL(req.url).searchParams.get("format") ?? DEFAULT_EXPORT_FORMAT;
   if (!isExportFormat(format)) throw new BadRequest("bad_request", `format must be ${EXPORT_FORMAT_IDS.join(" or ")}.`);
-  return plateFile(await sessionPlate(caller, (await ctx.params).id), format);
+  return plateFile(await plateById(caller, (await ctx.params).id), format);
 });
