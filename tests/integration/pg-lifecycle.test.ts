@@ -11,7 +11,9 @@ import { checkHealth } from "@/lib/health";
 // test database the other tests use.
 const base = mkdtempSync(path.join(tmpdir(), "slab-pgtest-"));
 const dir = path.join(base, "pg");
-const port = 55000 + Math.floor(Math.random() * 4000);
+// Below Linux's ephemeral range (ip_local_port_range, 32768–60999 by default), where the kernel
+// hands out outgoing connections' local ports: a port there may be taken by any client for a while.
+const port = 24000 + Math.floor(Math.random() * 8000);
 const passwordFile = path.join(base, "pg-password");
 const env = { ...process.env, SLAB_PG_DIR: dir, SLAB_PG_PORT: String(port), SLAB_PG_FAST: "1", SLAB_PG_PASSWORD_FILE: passwordFile };
 const pgsh = (cmd: string) => spawnSync("bash", ["scripts/pg.sh", cmd], { env, encoding: "utf8" });
