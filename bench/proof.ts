@@ -21,7 +21,7 @@ const prove = (r: ReturnType<typeof build>) =>
   provePlate({
     stl: r.stl!,
     threeMf: r.threeMf!,
-    inflateRaw: (d) => inflateRawSync(d),
+    inflateRaw: (d, size) => inflateRawSync(d, size ? { chunkSize: Math.max(64, size + 1) } : {}),
     options,
     pieces: r.pieces.length,
     qrValue: fillValue(options.marks.qr!.value, {}),

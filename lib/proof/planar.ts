@@ -53,24 +53,82 @@ function separatedOnEdgesOf(p: ArrayLike<number>, a: ArrayLike<number>, b: Array
 }
 
 /**
+ * A convex polygon (flat x, y, as `convexHull` gives it) with its edge normals and its own shadow
+ * on each, worked out once: the separating-axis test against it then costs O(n) instead of O(n²).
+ * `overlaps(poly, eps)` is `convexOverlap(poly, this polygon, eps)`.
+ */
+export class ConvexShape {
+  /** Per edge with a length: nx, ny, min and max of the polygon's own projection. */
+  private readonly axes: Float64Array;
+  constructor(readonly xy: Float64Array) {
+    const n = xy.length;
+    const axes: number[] = [];
+    // The extremes on successive edge normals turn with the edges: each is walked on from the last
+    // (rotating calipers), so the whole table costs O(n), not O(n²).
+    let lo = -1, hi = -1;
+    const proj = (k: number, nx: number, ny: number) => xy[k]! * nx + xy[k + 1]! * ny;
+    for (let i = 0; i < n; i += 2) {
+      const j = (i + 2) % n;
+      let nx = -(xy[j + 1]! - xy[i + 1]!), ny = xy[j]! - xy[i]!;
+      const len = Math.hypot(nx, ny);
+      if (len < 1e-12) continue;
+      nx /= len;
+      ny /= len;
+      if (lo < 0) {
+        lo = hi = 0;
+        for (let k = 2; k < n; k += 2) {
+          if (proj(k, nx, ny) < proj(lo, nx, ny)) lo = k;
+          if (proj(k, nx, ny) > proj(hi, nx, ny)) hi = k;
+        }
+      } else {
+        for (let s = 0; s < n && proj((lo + 2) % n, nx, ny) <= proj(lo, nx, ny); s += 2) lo = (lo + 2) % n;
+        for (let s = 0; s < n && proj((hi + 2) % n, nx, ny) >= proj(hi, nx, ny); s += 2) hi = (hi + 2) % n;
+      }
+      axes.push(nx, ny, proj(lo, nx, ny), proj(hi, nx, ny));
+    }
+    this.axes = Float64Array.from(axes);
+  }
+  overlaps(poly: ArrayLike<number>, eps: number): boolean {
+    // The polygon's own edges first (as convexOverlap does), against this shape's points.
+    if (separatedOnEdgesOf(poly, poly, this.xy, eps)) return false;
+    const ax = this.axes;
+    for (let i = 0; i < ax.length; i += 4) {
+      const nx = ax[i]!, ny = ax[i + 1]!;
+      let aMin = Infinity, aMax = -Infinity;
+      for (let k = 0; k < poly.length; k += 2) {
+        const d = poly[k]! * nx + poly[k + 1]! * ny;
+        if (d < aMin) aMin = d;
+        if (d > aMax) aMax = d;
+      }
+      if (aMax <= ax[i + 2]! + eps || ax[i + 3]! <= aMin + eps) return false;
+    }
+    return true;
+  }
+}
+
+/**
  * Convex hull of points (flat x, y), counter-clockwise, by the monotone chain. Points inside the
  * octagon of the extreme points are dropped first (Akl–Toussaint), which leaves few to sort.
  */
 export function convexHull(xy: ArrayLike<number>): Float64Array {
   const n = xy.length / 2;
   if (n === 0) return new Float64Array(0);
-  // The eight extremes: min/max of x, y, x + y, x − y.
-  const ext = new Int32Array(8);
-  const best = new Float64Array(8).fill(-Infinity);
+  // The eight extremes: min/max of x, y, x + y, x − y (the first point reaching each).
+  let e0 = 0, e1 = 0, e2 = 0, e3 = 0, e4 = 0, e5 = 0, e6 = 0, e7 = 0;
+  let b0 = -Infinity, b1 = -Infinity, b2 = -Infinity, b3 = -Infinity, b4 = -Infinity, b5 = -Infinity, b6 = -Infinity, b7 = -Infinity;
   for (let i = 0; i < n; i++) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
-    for (let k = 0; k < 8; k++) {
-      const v = k === 0 ? -x : k === 1 ? x : k === 2 ? -y : k === 3 ? y : k === 4 ? x + y : k === 5 ? -x - y : k === 6 ? x - y : y - x;
-      if (v > best[k]!) (best[k] = v), (ext[k] = i);
-    }
+    if (-x > b0) (b0 = -x), (e0 = i);
+    if (x > b1) (b1 = x), (e1 = i);
+    if (-y > b2) (b2 = -y), (e2 = i);
+    if (y > b3) (b3 = y), (e3 = i);
+    if (x + y > b4) (b4 = x + y), (e4 = i);
+    if (-x - y > b5) (b5 = -x - y), (e5 = i);
+    if (x - y > b6) (b6 = x - y), (e6 = i);
+    if (y - x > b7) (b7 = y - x), (e7 = i);
   }
-  // Octagon in counter-clockwise order: min x, min x+y... as angles around: left, bottom-left, bottom, bottom-right, right, top-right, top, top-left.
-  const ring = [ext[0]!, ext[5]!, ext[2]!, ext[6]!, ext[1]!, ext[4]!, ext[3]!, ext[7]!];
+  // Octagon in counter-clockwise order: left, bottom-left, bottom, bottom-right, right, top-right, top, top-left.
+  const ring = [e0, e5, e2, e6, e1, e4, e3, e7];
   const oct: number[] = [];
   for (const i of ring) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
@@ -79,13 +137,21 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
     oct.push(x, y);
   }
   if (oct.length >= 4 && oct[0] === oct[oct.length - 2] && oct[1] === oct[oct.length - 1]) oct.length -= 2;
+  // Its edges as start point and direction.
+  const m = oct.length;
+  const edge = new Float64Array(2 * m);
+  for (let k = 0; k < m; k += 2) {
+    edge[2 * k] = oct[k]!;
+    edge[2 * k + 1] = oct[k + 1]!;
+    edge[2 * k + 2] = oct[(k + 2) % m]! - oct[k]!;
+    edge[2 * k + 3] = oct[(k + 3) % m]! - oct[k + 1]!;
+  }
   const keep: number[] = [];
   for (let i = 0; i < n; i++) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
-    let inside = oct.length >= 6;
-    for (let k = 0; inside && k < oct.length; k += 2) {
-      const ax = oct[k]!, ay = oct[k + 1]!, bx = oct[(k + 2) % oct.length]!, by = oct[(k + 3) % oct.length]!;
-      if ((bx - ax) * (y - ay) - (by - ay) * (x - ax) <= 0) inside = false;
+    let inside = m >= 6;
+    for (let k = 0; inside && k < 2 * m; k += 4) {
+      if (edge[k + 2]! * (y - edge[k + 1]!) - edge[k + 3]! * (x - edge[k]!) <= 0) inside = false;
     }
     if (!inside) keep.push(i);
   }

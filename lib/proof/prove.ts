@@ -1,6 +1,6 @@
 import polygonClipping, { type MultiPolygon, type Ring } from "polygon-clipping";
 import { deepestEngraving, floorUnderMarks, type SlabOptions } from "@/lib/geometry/options";
-import { boundaryLoops, boxesOverlap, boxOf, convexHull, convexOverlap, halfPlanes, isConvex, multiArea, multiPerimeter, outsideBy, TriGrid, type Box2 } from "./planar";
+import { boundaryLoops, boxesOverlap, convexHull, ConvexShape, halfPlanes, isConvex, multiArea, multiPerimeter, outsideBy, TriGrid, type Box2 } from "./planar";
 import { decodeRaster, heightRaster } from "./qr-read";
 import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
 import { readThreeMfBodies, ThreeMfProofError, type InflateRaw } from "./three-mf";
@@ -46,6 +46,7 @@ type Piece = {
   base: number;
   box: Box2;
   hull: Float64Array;
+  convex: ConvexShape;
   up: Uint32Array;
   down: Uint32Array;
   grid?: TriGrid;
@@ -146,13 +147,15 @@ export function provePlate(input: ProofInput): Proof {
     return Float64Array.of(P[a]!, P[a + 1]!, P[b]!, P[b + 1]!, P[c]!, P[c + 1]!);
   };
   const split = (tris: Uint32Array) => {
-    const up: number[] = [], down: number[] = [];
-    for (const t of tris) {
+    const up = new Uint32Array(tris.length), down = new Uint32Array(tris.length);
+    let nu = 0, nd = 0;
+    for (let i = 0; i < tris.length; i++) {
+      const t = tris[i]!;
       const s = area2(t);
-      if (s > 1e-10) up.push(t);
-      else if (s < -1e-10) down.push(t);
+      if (s > 1e-10) up[nu++] = t;
+      else if (s < -1e-10) down[nd++] = t;
     }
-    return { up: Uint32Array.from(up), down: Uint32Array.from(down) };
+    return { up: up.slice(0, nu), down: down.slice(0, nd) };
   };
 
   // The slab seen from above: the boundary of its bottom face (at z = 0), read even-odd.
@@ -165,24 +168,20 @@ export function provePlate(input: ProofInput): Proof {
   const planes = outer !== null && isConvex(outer) ? halfPlanes(outer) : null;
 
   lap("slab outline");
-  const seen = new Uint32Array(P.length / 3);
-  let stamp = 0;
+  const scratch = new Float64Array(2 * bodies.reduce((most, b) => (b === slab ? most : Math.max(most, b.verts.length)), 0));
   const pieces: Piece[] = bodies
     .filter((b) => b !== slab)
     .map((body) => {
       const { up, down } = split(body.tris);
-      // The body's corners, each once (corner ids are handed out in file order, so a body's span is small).
-      const xy: number[] = [];
-      for (const t of body.tris) {
-        for (let c = 0; c < 3; c++) {
-          const v = T[3 * t + c]!;
-          if (seen[v] === stamp + 1) continue;
-          seen[v] = stamp + 1;
-          xy.push(P[3 * v]!, P[3 * v + 1]!);
-        }
+      // The body's corners, each once.
+      let k = 0;
+      for (let i = 0; i < body.verts.length; i++) {
+        const v = body.verts[i]!;
+        scratch[k++] = P[3 * v]!;
+        scratch[k++] = P[3 * v + 1]!;
       }
-      stamp++;
-      return { body, label: labelOf(input.labels, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull: convexHull(xy), up, down };
+      const hull = convexHull(scratch.subarray(0, k));
+      return { body, label: labelOf(input.labels, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
     });
   lap("pieces");
   const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, tri2d)));
@@ -193,21 +192,26 @@ export function provePlate(input: ProofInput): Proof {
   let worstPiece: { p: Piece; pct: number; out: number } | null = null;
   for (const p of pieces) {
     const top = p.base + layer;
-    const flatBottom: number[] = [];
-    const band: Ring[] = [];
-    for (const t of p.down) {
-      const [a, b, c] = corners(t);
-      const za = zOf(a), zb = zOf(b), zc = zOf(c);
-      if (Math.max(za, zb, zc) <= p.base + tol) flatBottom.push(t);
-      else if (Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
+    const flatBottom = new Uint32Array(p.down.length);
+    let nb = 0;
+    for (let i = 0; i < p.down.length; i++) {
+      const t = p.down[i]!;
+      if (Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!)) <= p.base + tol) flatBottom[nb++] = t;
     }
-    p.bottom = flatBottom.length ? new TriGrid(flat(Uint32Array.from(flatBottom), tri2d)) : null;
+    p.bottom = nb ? new TriGrid(flat(flatBottom.subarray(0, nb), tri2d)) : null;
     let pct = 100, out = 0;
     // A piece whose whole outline (its hull) lies inside a convex slab has its lowest layer on it too.
     if (planes && outsideBy(planes, p.hull) <= tol) {
       // on the slab
     } else {
-      const loopsPart = boundaryLoops(flatBottom, P, corners);
+      // The lowest layer: the flat bottom, and the down-facing triangles that reach below one layer up, clipped there.
+      const band: Ring[] = [];
+      for (const t of p.down) {
+        const [a, b, c] = corners(t);
+        const za = zOf(a), zb = zOf(b), zc = zOf(c);
+        if (Math.max(za, zb, zc) > p.base + tol && Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
+      }
+      const loopsPart = boundaryLoops(flatBottom.subarray(0, nb), P, corners);
       let fp: MultiPolygon = loopsPart.length ? xorRings(loopsPart) : [];
       const bandPolys = band.filter((r) => r.length >= 3).map((r) => [r]);
       if (bandPolys.length) fp = polygonClipping.union(fp, ...bandPolys);
@@ -235,7 +239,7 @@ export function provePlate(input: ProofInput): Proof {
     for (let j = i + 1; j < pieces.length && !clash; j++) {
       const a = pieces[i]!, b = pieces[j]!;
       if (a.body.max[2] <= b.base || b.body.max[2] <= a.base) continue;
-      if (!boxesOverlap(a.box, b.box, 1e-3) || !convexOverlap(a.hull, b.hull, 1e-3)) continue;
+      if (!boxesOverlap(a.box, b.box, 1e-3) || !b.convex.overlaps(a.hull, 1e-3)) continue;
       const g = shadowGrid(a);
       for (const t of b.up) {
         const tri = tri2d(t);
@@ -278,7 +282,7 @@ export function provePlate(input: ProofInput): Proof {
       if (z < p.base - gap - 2) break; // far below: nothing closer under this piece
       if (upBox[4 * k]! >= p.box.maxX - 1e-3 || upBox[4 * k + 2]! <= p.box.minX + 1e-3 || upBox[4 * k + 1]! >= p.box.maxY - 1e-3 || upBox[4 * k + 3]! <= p.box.minY + 1e-3) continue;
       const tri = upXY.subarray(6 * k, 6 * k + 6);
-      if (!convexOverlap(tri, p.hull, 1e-3)) continue;
+      if (!p.convex.overlaps(tri, 1e-3)) continue;
       const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
       if (hit) {
         under = z;
@@ -363,23 +367,27 @@ function threeMfRule(input: ProofInput, bodies: Body[], rules: ProofRule[], done
     rules.push({ rule: "three_mf", pass: false, message: `The 3MF does not read cleanly: ${read.problems.slice(0, 3).join(" ")}` });
     return done();
   }
-  if (read.bodies.length !== bodies.length) {
-    rules.push({ rule: "three_mf", pass: false, figure: read.bodies.length, message: `The 3MF holds ${read.bodies.length} bodies, the STL ${bodies.length}.` });
+  // Shell for shell: the 3MF's meshes split where their triangles share no vertex, as the STL's bodies are.
+  const shells = read.shells;
+  if (shells.length !== bodies.length) {
+    rules.push({ rule: "three_mf", pass: false, figure: shells.length, message: `The 3MF holds ${shells.length} bodies, the STL ${bodies.length}.` });
     return done();
   }
-  const byCount = new Map<number, typeof read.bodies>();
-  for (const b of read.bodies) byCount.set(b.triangles, [...(byCount.get(b.triangles) ?? []), b]);
+  const byCount = new Map<number, typeof shells>();
+  for (const b of shells) byCount.set(b.triangles, [...(byCount.get(b.triangles) ?? []), b]);
   const close = (a: number[], b: number[]) => a.every((x, i) => Math.abs(x - b[i]!) <= 1e-3);
   for (const b of bodies) {
     const list = byCount.get(b.tris.length) ?? [];
-    const i = list.findIndex((x) => close(x.min, b.min) && close(x.max, b.max));
+    // Corners 1e-3 mm apart (what the bounds allow) move a closed surface's volume by at most
+    // √3·1e-3 mm × its area: the volume's first variation is the normal displacement over the surface.
+    const i = list.findIndex((x) => close(x.min, b.min) && close(x.max, b.max) && Math.abs(x.volume - b.volume) <= 2e-3 * b.area + 1e-9);
     if (i < 0) {
-      rules.push({ rule: "three_mf", pass: false, message: `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm).` });
+      rules.push({ rule: "three_mf", pass: false, message: `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm, ${fmt(b.volume, 1)} mm³).` });
       return done();
     }
     list.splice(i, 1);
   }
-  rules.push({ rule: "three_mf", pass: true, figure: read.bodies.length, message: `The 3MF holds the same ${read.bodies.length} bodies (triangles and bounds).` });
+  rules.push({ rule: "three_mf", pass: true, figure: shells.length, message: `The 3MF holds the same ${shells.length} bodies (triangles, bounds and volume).` });
   return done();
 }
 
