@@ -208,68 +208,109 @@ export function outsideBy(planes: Float64Array, xy: ArrayLike<number>): number {
 
 /**
  * Triangles (flat: 6 numbers each) bucketed on a uniform grid (cells in one typed array, filled by a
- * counting sort), asked whether any of them overlaps a convex polygon by more than `eps`.
+ * counting sort), asked whether any of them overlaps a convex polygon by more than `eps`. The grid is
+ * built at the first query that would scan many triangles: a set asked once or twice (a piece's flat
+ * bottom under the slab face it stands over) is scanned by boxes instead.
  */
 export class TriGrid {
   private readonly box: Box2;
-  private readonly cell: number;
-  private readonly cols: number;
-  private readonly rows: number;
-  private readonly start: Uint32Array;
-  private readonly items: Uint32Array;
-  private readonly mark: Uint32Array;
+  /** Each triangle's box: min x, min y, max x, max y. */
+  private readonly boxes: Float64Array;
+  private grid: { cell: number; cols: number; rows: number; start: Uint32Array; items: Uint32Array; mark: Uint32Array } | null = null;
   private stamp = 0;
+  private scanned = 0;
   constructor(readonly tri: Float64Array) {
     const n = tri.length / 6;
     this.box = boxOf(tri);
-    const w = this.box.maxX - this.box.minX || 1, h = this.box.maxY - this.box.minY || 1;
-    this.cell = Math.max(Math.sqrt((w * h) / Math.max(1, n)) * 2, 1e-3);
-    this.cols = Math.min(4096, Math.ceil(w / this.cell) + 1);
-    this.rows = Math.min(4096, Math.ceil(h / this.cell) + 1);
-    this.cell = Math.max(w / (this.cols - 0.5), h / (this.rows - 0.5), this.cell);
-    const counts = new Uint32Array(this.cols * this.rows + 1);
-    this.forCells(n, (k) => counts[k + 1]!++);
-    for (let k = 0; k < this.cols * this.rows; k++) counts[k + 1]! += counts[k]!;
-    this.start = counts.slice();
-    this.items = new Uint32Array(counts[this.cols * this.rows]!);
-    const fill = counts;
-    this.forCells(n, (k, t) => (this.items[fill[k]!++] = t));
-    this.mark = new Uint32Array(n);
-  }
-  private range(minX: number, minY: number, maxX: number, maxY: number): [number, number, number, number] {
-    const c0 = Math.max(0, Math.floor((minX - this.box.minX) / this.cell));
-    const c1 = Math.min(this.cols - 1, Math.floor((maxX - this.box.minX) / this.cell));
-    const r0 = Math.max(0, Math.floor((minY - this.box.minY) / this.cell));
-    const r1 = Math.min(this.rows - 1, Math.floor((maxY - this.box.minY) / this.cell));
-    return [c0, c1, r0, r1];
-  }
-  private forCells(n: number, f: (k: number, t: number) => void) {
-    const tri = this.tri;
+    this.boxes = new Float64Array(4 * n);
     for (let t = 0; t < n; t++) {
       const o = 6 * t;
-      const [c0, c1, r0, r1] = this.range(Math.min(tri[o]!, tri[o + 2]!, tri[o + 4]!), Math.min(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!), Math.max(tri[o]!, tri[o + 2]!, tri[o + 4]!), Math.max(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!));
-      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) f(r * this.cols + c, t);
+      this.boxes[4 * t] = Math.min(tri[o]!, tri[o + 2]!, tri[o + 4]!);
+      this.boxes[4 * t + 1] = Math.min(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!);
+      this.boxes[4 * t + 2] = Math.max(tri[o]!, tri[o + 2]!, tri[o + 4]!);
+      this.boxes[4 * t + 3] = Math.max(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!);
     }
+  }
+  private build() {
+    const n = this.tri.length / 6;
+    const w = this.box.maxX - this.box.minX || 1, h = this.box.maxY - this.box.minY || 1;
+    let cell = Math.max(Math.sqrt((w * h) / Math.max(1, n)) * 2, 1e-3);
+    const cols = Math.min(4096, Math.ceil(w / cell) + 1);
+    const rows = Math.min(4096, Math.ceil(h / cell) + 1);
+    cell = Math.max(w / (cols - 0.5), h / (rows - 0.5), cell);
+    const g = { cell, cols, rows, start: new Uint32Array(cols * rows + 1), items: new Uint32Array(0), mark: new Uint32Array(n) };
+    this.grid = g;
+    const counts = g.start;
+    const bx = this.boxes;
+    for (let t = 0; t < n; t++) {
+      const [c0, c1, r0, r1] = this.range(bx[4 * t]!, bx[4 * t + 1]!, bx[4 * t + 2]!, bx[4 * t + 3]!);
+      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) counts[r * cols + c + 1]!++;
+    }
+    for (let k = 0; k < cols * rows; k++) counts[k + 1]! += counts[k]!;
+    const fill = counts.slice();
+    g.items = new Uint32Array(counts[cols * rows]!);
+    for (let t = 0; t < n; t++) {
+      const [c0, c1, r0, r1] = this.range(bx[4 * t]!, bx[4 * t + 1]!, bx[4 * t + 2]!, bx[4 * t + 3]!);
+      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) g.items[fill[r * cols + c]!++] = t;
+    }
+  }
+  private range(minX: number, minY: number, maxX: number, maxY: number): [number, number, number, number] {
+    const g = this.grid!;
+    const c0 = Math.max(0, Math.floor((minX - this.box.minX) / g.cell));
+    const c1 = Math.min(g.cols - 1, Math.floor((maxX - this.box.minX) / g.cell));
+    const r0 = Math.max(0, Math.floor((minY - this.box.minY) / g.cell));
+    const r1 = Math.min(g.rows - 1, Math.floor((maxY - this.box.minY) / g.cell));
+    return [c0, c1, r0, r1];
   }
   /** Any triangle overlapping the convex polygon `poly` (flat x, y) by more than eps. */
   overlaps(poly: ArrayLike<number>, eps: number): boolean {
     const b = boxOf(poly);
     if (!boxesOverlap(b, this.box, eps)) return false;
+    const n = this.tri.length / 6;
+    if (!this.grid && this.scanned + n > 16 * n && n > 64) this.build();
+    const g = this.grid;
+    if (!g) {
+      // By boxes: a triangle whose box does not overlap the polygon's overlaps it by nothing along
+      // some axis, so by no more than eps along the separating axis test's best one.
+      this.scanned += n;
+      const bx = this.boxes;
+      for (let t = 0; t < n; t++) {
+        if (bx[4 * t]! >= b.maxX || bx[4 * t + 2]! <= b.minX || bx[4 * t + 1]! >= b.maxY || bx[4 * t + 3]! <= b.minY) continue;
+        if (convexOverlap(this.tri.subarray(6 * t, 6 * t + 6), poly, eps)) return true;
+      }
+      return false;
+    }
     const [c0, c1, r0, r1] = this.range(b.minX, b.minY, b.maxX, b.maxY);
     const stamp = ++this.stamp;
     for (let r = r0; r <= r1; r++) {
       for (let c = c0; c <= c1; c++) {
-        const k = r * this.cols + c;
-        for (let i = this.start[k]!; i < this.start[k + 1]!; i++) {
-          const t = this.items[i]!;
-          if (this.mark[t] === stamp) continue;
-          this.mark[t] = stamp;
+        const k = r * g.cols + c;
+        for (let i = g.start[k]!; i < g.start[k + 1]!; i++) {
+          const t = g.items[i]!;
+          if (g.mark[t] === stamp) continue;
+          g.mark[t] = stamp;
           if (convexOverlap(this.tri.subarray(6 * t, 6 * t + 6), poly, eps)) return true;
         }
       }
     }
     return false;
   }
+}
+
+/**
+ * Do all points (flat x, y) lie within `tol` of the inside of the half-planes (as
+ * `outsideBy(planes, xy) <= tol`)? A plane the points' bounding circle stays clear of is not scanned.
+ */
+export function withinPlanes(planes: Float64Array, xy: ArrayLike<number>, tol: number): boolean {
+  const b = boxOf(xy);
+  const cx = (b.minX + b.maxX) / 2, cy = (b.minY + b.maxY) / 2;
+  const r = Math.hypot(b.maxX - b.minX, b.maxY - b.minY) / 2;
+  for (let p = 0; p < planes.length; p += 3) {
+    const nx = planes[p]!, ny = planes[p + 1]!, c = planes[p + 2]!;
+    if (nx * cx + ny * cy - c + r < tol - 1e-9) continue;
+    for (let k = 0; k < xy.length; k += 2) if (nx * xy[k]! + ny * xy[k + 1]! - c > tol) return false;
+  }
+  return true;
 }
 
 /**

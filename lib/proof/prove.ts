@@ -1,10 +1,10 @@
 import polygonClipping, { type MultiPolygon, type Ring } from "polygon-clipping";
 import { deepestEngraving, floorUnderMarks, type SlabOptions } from "@/lib/geometry/options";
-import { boundaryLoops, boxesOverlap, convexHull, ConvexShape, halfPlanes, isConvex, multiArea, multiPerimeter, outsideBy, TriGrid, type Box2 } from "./planar";
+import { boundaryLoops, boxesOverlap, convexHull, ConvexShape, halfPlanes, isConvex, multiArea, multiPerimeter, TriGrid, withinPlanes, type Box2 } from "./planar";
 import { decodeRaster, heightRaster } from "./qr-read";
 import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
 import { readThreeMfBodies, ThreeMfProofError, type InflateRaw } from "./three-mf";
-import { connectedBodies, edgeReport, type Body } from "./topology";
+import { connectedBodies, edgeReport, hollows, type Body } from "./topology";
 
 /**
  * The proof of a plate: an independent reading of the exported STL and 3MF bytes (no geometry kernel,
@@ -30,6 +30,12 @@ export type ProofInput = {
   inflateRaw?: InflateRaw;
   /** The layout's pieces, to name a piece by its number in a message. */
   labels?: { number: number; bounds: Box2 }[];
+  /**
+   * How many closed shells each piece is, in the layout's order (as `labels`): more than 1 for a part
+   * of several bodies, or a hollow part (an outer shell and an inside-out inner one). 1 each when not
+   * given. With `labels`, a piece's loose bodies are told apart from the other pieces by its bounds.
+   */
+  shells?: number[];
 };
 
 /** `{name}` placeholders filled from `vars` (unknown ones stay as written), as the plate's marks are. */
@@ -42,6 +48,8 @@ const at = (x: number, y: number) => `x ${fmt(x, 1)}, y ${fmt(y, 1)} mm`;
 
 type Piece = {
   body: Body;
+  /** The piece the body belongs to: an index into `labels`, or its own (negative) when none fits. */
+  group: number;
   label: string;
   base: number;
   box: Box2;
@@ -111,23 +119,44 @@ export function provePlate(input: ProofInput): Proof {
   // 2. Bodies: positive volume each; the slab is the one body standing on z = 0; the rest are the pieces.
   const bodies = connectedBodies(m);
   figures.bodies = bodies.length;
-  const inverted = bodies.filter((b) => b.volume <= 0);
+  // A hollow part's inner wall is inside out, as it should be, when it lies within a positive body.
+  const inner = hollows(m, bodies);
+  const inverted = bodies.filter((b) => b.volume <= 0 && !inner.has(b));
   rules.push(
     inverted.length === 0
-      ? { rule: "volume", pass: true, message: "Every body has a positive volume." }
+      ? { rule: "volume", pass: true, message: inner.size ? `Every body has a positive volume, but for ${inner.size} inside-out ${inner.size === 1 ? "shell" : "shells"} each inside one (a hollow).` : "Every body has a positive volume." }
       : { rule: "volume", pass: false, figure: inverted[0]!.volume, message: `${inverted.length} bodies have no positive volume (inside out or flat), the first at ${at(...centre(inverted[0]!))}: ${fmt(inverted[0]!.volume, 3)} mm³.` },
   );
   const onBed = bodies.filter((b) => Math.abs(b.min[2]) <= tol);
   const below = bodies.filter((b) => b.min[2] < -tol);
   const slab = onBed.reduce<Body | null>((best, b) => (!best || b.volume > best.volume ? b : best), null);
-  const want = input.pieces + 1;
+  const labels = input.labels ?? [];
+  const shellsOf = (i: number) => {
+    const s = input.shells?.[i];
+    return s !== undefined && Number.isInteger(s) && s >= 1 ? s : 1;
+  };
+  let shellTotal = 0;
+  for (let i = 0; i < input.pieces; i++) shellTotal += shellsOf(i);
+  const want = shellTotal + 1;
+  // Each outer body's piece (hollows go with the body around them).
+  const outerBodies = bodies.filter((b) => b !== slab && !inner.has(b));
+  const groupOf = pieceGroups(outerBodies, labels, shellsOf);
   {
     const problems: string[] = [];
-    if (bodies.length !== want) problems.push(`${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}`);
+    if (bodies.length !== want) problems.push(shellTotal === input.pieces ? `${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}` : `${bodies.length} bodies where ${input.pieces} pieces of ${shellTotal} shells and the slab make ${want}`);
     if (onBed.length === 0) problems.push("no body stands on z = 0 (no slab)");
     if (onBed.length > 1) problems.push(`the slab is in ${onBed.length} loose parts on z = 0 (the smallest at ${at(...centre(onBed.reduce((a, b) => (b.volume < a.volume ? b : a))))})`);
     if (below.length) problems.push(`${below.length} bodies reach below the bed (lowest z ${fmt(Math.min(...below.map((b) => b.min[2])))} mm)`);
-    rules.push(problems.length ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` } : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: the slab and ${input.pieces} pieces.` });
+    if (input.shells && labels.length) {
+      // Shell for shell, piece by piece: the outer bodies each piece was given, and the hollows inside them.
+      const count = new Uint32Array(labels.length);
+      for (const b of outerBodies) if (groupOf.get(b)! >= 0) count[groupOf.get(b)!]!++;
+      for (const [, around] of inner) if ((groupOf.get(around) ?? -1) >= 0) count[groupOf.get(around)!]!++;
+      const off = labels.map((l, i) => ({ l, i })).filter(({ i }) => i < input.pieces && count[i] !== shellsOf(i));
+      if (off.length) problems.push(`piece ${off[0]!.l.number} has ${count[off[0]!.i]} shells where its part has ${shellsOf(off[0]!.i)}${off.length > 1 ? ` (${off.length} pieces differ)` : ""}`);
+    }
+    const what = shellTotal === input.pieces ? `the slab and ${input.pieces} pieces` : `the slab and ${input.pieces} pieces of ${shellTotal} shells`;
+    rules.push(problems.length ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` } : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: ${what}.` });
   }
   if (!slab) {
     rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
@@ -168,10 +197,8 @@ export function provePlate(input: ProofInput): Proof {
   const planes = outer !== null && isConvex(outer) ? halfPlanes(outer) : null;
 
   lap("slab outline");
-  const scratch = new Float64Array(2 * bodies.reduce((most, b) => (b === slab ? most : Math.max(most, b.verts.length)), 0));
-  const pieces: Piece[] = bodies
-    .filter((b) => b !== slab)
-    .map((body) => {
+  const scratch = new Float64Array(2 * outerBodies.reduce((most, b) => Math.max(most, b.verts.length), 0));
+  const pieces: Piece[] = outerBodies.map((body) => {
       const { up, down } = split(body.tris);
       // The body's corners, each once.
       let k = 0;
@@ -181,10 +208,11 @@ export function provePlate(input: ProofInput): Proof {
         scratch[k++] = P[3 * v + 1]!;
       }
       const hull = convexHull(scratch.subarray(0, k));
-      return { body, label: labelOf(input.labels, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
+      const group = groupOf.get(body)!;
+      return { body, group, label: labelOf(labels, group, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
     });
   lap("pieces");
-  const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, tri2d)));
+  const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, P, T)));
 
   // 3. Every piece on the slab: its lowest layer (down-facing triangles within one layer of its base)
   // inside the slab's outline.
@@ -198,10 +226,10 @@ export function provePlate(input: ProofInput): Proof {
       const t = p.down[i]!;
       if (Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!)) <= p.base + tol) flatBottom[nb++] = t;
     }
-    p.bottom = nb ? new TriGrid(flat(flatBottom.subarray(0, nb), tri2d)) : null;
+    p.bottom = nb ? new TriGrid(flat(flatBottom.subarray(0, nb), P, T)) : null;
     let pct = 100, out = 0;
     // A piece whose whole outline (its hull) lies inside a convex slab has its lowest layer on it too.
-    if (planes && outsideBy(planes, p.hull) <= tol) {
+    if (planes && withinPlanes(planes, p.hull, tol)) {
       // on the slab
     } else {
       // The lowest layer: the flat bottom, and the down-facing triangles that reach below one layer up, clipped there.
@@ -228,7 +256,7 @@ export function provePlate(input: ProofInput): Proof {
   figures.worstSupport = pieces.length ? Math.round(worst * 100) / 100 : null;
   rules.push(
     worst >= 100
-      ? { rule: "on_slab", pass: true, figure: worst, message: `Every piece's lowest layer lies on the slab (${pieces.length} pieces).` }
+      ? { rule: "on_slab", pass: true, figure: worst, message: `Every piece's lowest layer lies on the slab (${pieces.length === input.pieces ? `${pieces.length} pieces` : `${input.pieces} pieces, ${pieces.length} bodies`}).` }
       : { rule: "on_slab", pass: false, figure: figures.worstSupport ?? 0, message: `${cap(worstPiece!.p.label)} stands ${fmt(100 - worst, 1)} % off the slab: only ${fmt(worst, 1)} % of its lowest layer is over the slab's outline.` },
   );
 
@@ -238,6 +266,7 @@ export function provePlate(input: ProofInput): Proof {
   for (let i = 0; i < pieces.length && !clash; i++) {
     for (let j = i + 1; j < pieces.length && !clash; j++) {
       const a = pieces[i]!, b = pieces[j]!;
+      if (a.group === b.group) continue; // one part's own bodies
       if (a.body.max[2] <= b.base || b.body.max[2] <= a.base) continue;
       if (!boxesOverlap(a.box, b.box, 1e-3) || !b.convex.overlaps(a.hull, 1e-3)) continue;
       const g = shadowGrid(a);
@@ -260,7 +289,7 @@ export function provePlate(input: ProofInput): Proof {
   for (const t of slabUp) zTop[t] = Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
   slabUp.sort((a, b) => zTop[b]! - zTop[a]!);
   // The slab's upward faces seen from above, in that order, with their boxes.
-  const upXY = flat(Uint32Array.from(slabUp), tri2d);
+  const upXY = flat(Uint32Array.from(slabUp), P, T);
   const upBox = new Float64Array(4 * slabUp.length);
   for (let k = 0; k < slabUp.length; k++) {
     const o6 = 6 * k;
@@ -412,9 +441,17 @@ function clipBelow(tri: [number, number, number][], top: number): Ring {
   return out;
 }
 
-function flat(tris: Uint32Array, tri2d: (t: number) => Float64Array): Float64Array {
+/** Triangles seen from above: x, y of their three corners, six numbers each. */
+function flat(tris: Uint32Array, P: Float32Array, T: Uint32Array): Float64Array {
   const out = new Float64Array(tris.length * 6);
-  tris.forEach((t, i) => out.set(tri2d(t), 6 * i));
+  for (let i = 0; i < tris.length; i++) {
+    const t = tris[i]!;
+    for (let c = 0; c < 3; c++) {
+      const v = 3 * T[3 * t + c]!;
+      out[6 * i + 2 * c] = P[v]!;
+      out[6 * i + 2 * c + 1] = P[v + 1]!;
+    }
+  }
   return out;
 }
 
@@ -422,12 +459,47 @@ const centre = (b: Body): [number, number] => [(b.min[0] + b.max[0]) / 2, (b.min
 const cap = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 const short = (s: string) => (s.length > 60 ? `${s.slice(0, 57)}…` : s);
 
-function labelOf(labels: ProofInput["labels"], b: Body): string {
-  const [x, y] = centre(b);
-  let best: { number: number; d: number } | null = null;
-  for (const l of labels ?? []) {
-    const d = Math.hypot((l.bounds.minX + l.bounds.maxX) / 2 - x, (l.bounds.minY + l.bounds.maxY) / 2 - y);
-    if (!best || d < best.d) best = { number: l.number, d };
+/**
+ * Which piece each outer body is: first a label whose centre is within 1 mm of the body's (a piece of
+ * one shell), then, for a piece of several shells, a label whose bounds hold the body (the smallest
+ * such); as many bodies per piece as it has shells. Any other body is a piece of its own (−1 − i).
+ */
+function pieceGroups(outer: Body[], labels: NonNullable<ProofInput["labels"]>, shellsOf: (i: number) => number): Map<Body, number> {
+  const out = new Map<Body, number>();
+  const taken = new Uint32Array(labels.length);
+  const centreOf = (l: Box2) => [(l.minX + l.maxX) / 2, (l.minY + l.maxY) / 2] as const;
+  for (const b of outer) {
+    const [x, y] = centre(b);
+    let best = -1, bestD = 1;
+    labels.forEach((l, i) => {
+      const [lx, ly] = centreOf(l.bounds);
+      const d = Math.hypot(lx - x, ly - y);
+      if (d < bestD) (best = i), (bestD = d);
+    });
+    if (best >= 0 && taken[best]! < shellsOf(best)) {
+      out.set(b, best);
+      taken[best]!++;
+    }
   }
-  return best && best.d < 1 ? `piece ${best.number} (at ${at(x, y)})` : `the piece at ${at(x, y)}`;
+  const margin = 0.05; // the layout's bounds come from the part's hull: the same corners, rounded apart at most by float32
+  outer.forEach((b, k) => {
+    if (out.has(b)) return;
+    let best = -1, bestArea = Infinity;
+    labels.forEach((l, i) => {
+      const r = l.bounds;
+      if (shellsOf(i) < 2 || taken[i]! >= shellsOf(i)) return;
+      if (b.min[0] < r.minX - margin || b.min[1] < r.minY - margin || b.max[0] > r.maxX + margin || b.max[1] > r.maxY + margin) return;
+      const area = (r.maxX - r.minX) * (r.maxY - r.minY);
+      if (area < bestArea) (best = i), (bestArea = area);
+    });
+    if (best >= 0) taken[best]!++;
+    out.set(b, best >= 0 ? best : -1 - k);
+  });
+  return out;
+}
+
+function labelOf(labels: NonNullable<ProofInput["labels"]>, group: number, b: Body): string {
+  const [x, y] = centre(b);
+  const l = group >= 0 ? labels[group] : undefined;
+  return l ? `piece ${l.number} (at ${at(x, y)})` : `the piece at ${at(x, y)}`;
 }

@@ -197,3 +197,50 @@ export function connectedBodies(m: WeldedStl): Body[] {
   }
   return out;
 }
+
+/**
+ * The generalized winding number of a closed triangle set about a point: the triangles' signed solid
+ * angles (Van Oosterom & Strackee, "The Solid Angle of a Plane Triangle", IEEE Trans. Biomed. Eng.
+ * 30(2), 1983: tan(Ω/2) = a·(b×c) / (|a||b||c| + (a·b)|c| + (a·c)|b| + (b·c)|a|)) summed over 4π.
+ * 1 inside a closed outward-facing surface, 0 outside, whatever its shape.
+ */
+export function windingNumber(m: WeldedStl, tris: Uint32Array, x: number, y: number, z: number): number {
+  const p = m.positions, t = m.tris;
+  let sum = 0;
+  for (let i = 0; i < tris.length; i++) {
+    const k = 3 * tris[i]!;
+    const a = 3 * t[k]!, b = 3 * t[k + 1]!, c = 3 * t[k + 2]!;
+    const ax = p[a]! - x, ay = p[a + 1]! - y, az = p[a + 2]! - z;
+    const bx = p[b]! - x, by = p[b + 1]! - y, bz = p[b + 2]! - z;
+    const cx = p[c]! - x, cy = p[c + 1]! - y, cz = p[c + 2]! - z;
+    const la = Math.hypot(ax, ay, az), lb = Math.hypot(bx, by, bz), lc = Math.hypot(cx, cy, cz);
+    const num = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+    const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
+    sum += 2 * Math.atan2(num, den);
+  }
+  return sum / (4 * Math.PI);
+}
+
+/**
+ * The hollows: each inside-out body (negative volume) that lies strictly inside a body of positive
+ * volume (its box strictly within that body's box, one of its corners enclosed by it), mapped to the
+ * smallest such body. Its negative volume is then right: it is the inner wall of a hollow part.
+ */
+export function hollows(m: WeldedStl, bodies: Body[]): Map<Body, Body> {
+  const out = new Map<Body, Body>();
+  const solids = bodies.filter((b) => b.volume > 0).sort((a, b) => a.volume - b.volume);
+  for (const v of bodies) {
+    if (!(v.volume < 0)) continue;
+    const corner = 3 * v.verts[0]!;
+    const x = m.positions[corner]!, y = m.positions[corner + 1]!, z = m.positions[corner + 2]!;
+    for (const s of solids) {
+      if (s.volume <= -v.volume) continue;
+      if (!(s.min[0] < v.min[0] && s.min[1] < v.min[1] && s.min[2] < v.min[2] && v.max[0] < s.max[0] && v.max[1] < s.max[1] && v.max[2] < s.max[2])) continue;
+      if (windingNumber(m, s.tris, x, y, z) > 0.5) {
+        out.set(v, s);
+        break;
+      }
+    }
+  }
+  return out;
+}
