@@ -146,35 +146,35 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
     edge[2 * k + 2] = oct[(k + 2) % m]! - oct[k]!;
     edge[2 * k + 3] = oct[(k + 3) % m]! - oct[k + 1]!;
   }
-  const keep: number[] = [];
+  const kept = new Uint32Array(n);
+  let nk = 0;
   for (let i = 0; i < n; i++) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
     let inside = m >= 6;
     for (let k = 0; inside && k < 2 * m; k += 4) {
       if (edge[k + 2]! * (y - edge[k + 1]!) - edge[k + 3]! * (x - edge[k]!) <= 0) inside = false;
     }
-    if (!inside) keep.push(i);
+    if (!inside) kept[nk++] = i;
   }
-  keep.sort((i, j) => xy[2 * i]! - xy[2 * j]! || xy[2 * i + 1]! - xy[2 * j + 1]!);
-  const hx: number[] = [], hy: number[] = [];
-  const turn = (i: number) => {
-    const l = hx.length;
-    return (hx[l - 1]! - hx[l - 2]!) * (xy[2 * i + 1]! - hy[l - 2]!) - (hy[l - 1]! - hy[l - 2]!) * (xy[2 * i]! - hx[l - 2]!);
-  };
-  const chain = (order: number[], floor: number) => {
-    for (const i of order) {
-      while (hx.length >= floor + 2 && turn(i) <= 0) (hx.pop(), hy.pop());
-      hx.push(xy[2 * i]!);
-      hy.push(xy[2 * i + 1]!);
+  const keep = kept.subarray(0, nk).sort((i, j) => xy[2 * i]! - xy[2 * j]! || xy[2 * i + 1]! - xy[2 * j + 1]!);
+  // Monotone chain: the lower hull left to right, then the upper right to left.
+  const hx = new Float64Array(2 * nk + 2), hy = new Float64Array(2 * nk + 2);
+  let h = 0;
+  const chain = (from: number, to: number, step: number, floor: number) => {
+    for (let k = from; k !== to; k += step) {
+      const i = keep[k]!;
+      const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+      while (h >= floor + 2 && (hx[h - 1]! - hx[h - 2]!) * (y - hy[h - 2]!) - (hy[h - 1]! - hy[h - 2]!) * (x - hx[h - 2]!) <= 0) h--;
+      hx[h] = x;
+      hy[h] = y;
+      h++;
     }
   };
-  chain(keep, 0);
-  const lower = hx.length;
-  chain(keep.slice(0, -1).reverse(), lower - 1);
-  hx.pop();
-  hy.pop();
-  const out = new Float64Array(2 * hx.length);
-  for (let k = 0; k < hx.length; k++) (out[2 * k] = hx[k]!), (out[2 * k + 1] = hy[k]!);
+  chain(0, nk, 1, 0);
+  if (nk > 1) chain(nk - 2, -1, -1, h - 1);
+  h--;
+  const out = new Float64Array(2 * Math.max(0, h));
+  for (let k = 0; k < h; k++) (out[2 * k] = hx[k]!), (out[2 * k + 1] = hy[k]!);
   return out;
 }
 

@@ -3,7 +3,7 @@ import { deepestEngraving, floorUnderMarks, type SlabOptions } from "@/lib/geome
 import { boundaryLoops, boxesOverlap, convexHull, ConvexShape, halfPlanes, isConvex, multiArea, multiPerimeter, TriGrid, withinPlanes, type Box2 } from "./planar";
 import { decodeRaster, heightRaster } from "./qr-read";
 import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
-import { readThreeMfBodies, ThreeMfProofError, type InflateRaw } from "./three-mf";
+import { readThreeMfBodies, readThreeMfBodiesAsync, ThreeMfProofError, type InflateRaw, type InflateRawAsync, type ThreeMfRead } from "./three-mf";
 import { connectedBodies, edgeReport, hollows, type Body } from "./topology";
 
 /**
@@ -28,6 +28,8 @@ export type ProofInput = {
   marks?: { kind: string; bounds: Box2 }[];
   /** A faster raw DEFLATE decoder for the 3MF (node:zlib's inflateRawSync in the worker); fflate's by default. */
   inflateRaw?: InflateRaw;
+  /** For provePlateAsync: a decoder off this thread for the 3MF's model part (node:zlib's inflateRaw). */
+  inflateRawAsync?: InflateRawAsync;
   /** The layout's pieces, to name a piece by its number in a message. */
   labels?: { number: number; bounds: Box2 }[];
   /**
@@ -62,8 +64,45 @@ type Piece = {
   bottom?: TriGrid | null;
 };
 
+/** The proof, the 3MF read on this thread. */
 export function provePlate(input: ProofInput): Proof {
+  const steps = proofSteps(input, performance.now());
+  let r = steps.next();
+  while (!r.done) r = steps.next(readNow(input));
+  return r.value;
+}
+
+/**
+ * The same proof, the 3MF's model part expanded by `input.inflateRawAsync` (node:zlib's thread pool
+ * in the worker) while the STL is checked on this thread; without it, as provePlate.
+ */
+export async function provePlateAsync(input: ProofInput): Promise<Proof> {
   const t0 = performance.now();
+  const pending = input.inflateRawAsync
+    ? readThreeMfBodiesAsync(input.threeMf, input.inflateRawAsync, input.inflateRaw).catch((err: unknown) => {
+        if (err instanceof ThreeMfProofError) return err;
+        throw err;
+      })
+    : null;
+  // Not asked for when the STL does not read: no rejection goes unheard.
+  pending?.catch(() => {});
+  const steps = proofSteps(input, t0);
+  let r = steps.next();
+  while (!r.done) r = steps.next(pending ? await pending : readNow(input));
+  return r.value;
+}
+
+function readNow(input: ProofInput): ThreeMfRead | ThreeMfProofError {
+  try {
+    return readThreeMfBodies(input.threeMf, input.inflateRaw);
+  } catch (err) {
+    if (err instanceof ThreeMfProofError) return err;
+    throw err;
+  }
+}
+
+/** The rules in order; the 3MF's reading is asked for (yield) when its rule comes. */
+function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, ThreeMfRead | ThreeMfProofError> {
   const timings: Record<string, number> = {};
   let tl = t0;
   const lap = (name: string) => {
@@ -117,7 +156,8 @@ export function provePlate(input: ProofInput): Proof {
 
   lap("edges");
   // 2. Bodies: positive volume each; the slab is the one body standing on z = 0; the rest are the pieces.
-  const bodies = connectedBodies(m);
+  const facing = new Int8Array(m.triangles);
+  const bodies = connectedBodies(m, facing);
   figures.bodies = bodies.length;
   // A hollow part's inner wall is inside out, as it should be, when it lies within a positive body.
   const inner = hollows(m, bodies);
@@ -160,31 +200,28 @@ export function provePlate(input: ProofInput): Proof {
   }
   if (!slab) {
     rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
-    return threeMfRule(input, bodies, rules, done);
+    return yield* threeMfRule(bodies, rules, done);
   }
 
   lap("bodies");
   const P = m.positions, T = m.tris;
   const zOf = (v: number) => P[3 * v + 2]!;
-  const area2 = (t: number) => {
-    const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
-    return (P[b]! - P[a]!) * (P[c + 1]! - P[a + 1]!) - (P[b + 1]! - P[a + 1]!) * (P[c]! - P[a]!);
-  };
   const corners = (t: number): [number, number, number] => [T[3 * t]!, T[3 * t + 1]!, T[3 * t + 2]!];
   const tri2d = (t: number) => {
     const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
     return Float64Array.of(P[a]!, P[a + 1]!, P[b]!, P[b + 1]!, P[c]!, P[c + 1]!);
   };
   const split = (tris: Uint32Array) => {
-    const up = new Uint32Array(tris.length), down = new Uint32Array(tris.length);
+    // Up-facing from the front of one buffer, down-facing from its back (then put back in order).
+    const buf = new Uint32Array(tris.length);
     let nu = 0, nd = 0;
     for (let i = 0; i < tris.length; i++) {
       const t = tris[i]!;
-      const s = area2(t);
-      if (s > 1e-10) up[nu++] = t;
-      else if (s < -1e-10) down[nd++] = t;
+      const f = facing[t]!;
+      if (f > 0) buf[nu++] = t;
+      else if (f < 0) buf[tris.length - ++nd] = t;
     }
-    return { up: up.slice(0, nu), down: down.slice(0, nd) };
+    return { up: buf.subarray(0, nu), down: buf.subarray(tris.length - nd).reverse() };
   };
 
   // The slab seen from above: the boundary of its bottom face (at z = 0), read even-odd.
@@ -379,17 +416,14 @@ export function provePlate(input: ProofInput): Proof {
     if (text !== asked) figures.qrText = text;
   }
   lap("qr");
-  return threeMfRule(input, bodies, rules, done);
+  return yield* threeMfRule(bodies, rules, done);
 }
 
 /** 8. The 3MF read back holds the same bodies: count, triangles, bounds within 1e-3 mm. */
-function threeMfRule(input: ProofInput, bodies: Body[], rules: ProofRule[], done: () => Proof): Proof {
-  let read;
-  try {
-    read = readThreeMfBodies(input.threeMf, input.inflateRaw);
-  } catch (err) {
-    if (!(err instanceof ThreeMfProofError)) throw err;
-    rules.push({ rule: "three_mf", pass: false, message: err.message });
+function* threeMfRule(bodies: Body[], rules: ProofRule[], done: () => Proof): Generator<void, Proof, ThreeMfRead | ThreeMfProofError> {
+  const read = yield;
+  if (read instanceof ThreeMfProofError) {
+    rules.push({ rule: "three_mf", pass: false, message: read.message });
     return done();
   }
   if (read.problems.length) {

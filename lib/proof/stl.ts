@@ -91,9 +91,14 @@ export function readWeldedStl(bytes: Uint8Array): WeldedStl {
       }
     }
   }
-  const positions = new Float32Array(store.buffer.slice(0, 12 * count));
+  // The corners' bits read as the floats they are (a view, no copy).
+  const positions = new Float32Array(store.buffer, 0, 3 * count);
+  assertFinite(positions);
+  return { triangles: n, positions, tris };
+}
+
+function assertFinite(positions: Float32Array) {
   for (let i = 0; i < positions.length; i++) {
     if (!Number.isFinite(positions[i]!)) throw new StlProofError(`The STL has a vertex that is not a finite number (vertex ${Math.floor(i / 3) + 1}).`);
   }
-  return { triangles: n, positions, tris };
 }

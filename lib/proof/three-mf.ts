@@ -242,6 +242,34 @@ function zipDirectory(bytes: Uint8Array): Map<string, ZipEntryRef> | null {
   return out;
 }
 
+/** Raw DEFLATE off the calling thread, e.g. node:zlib's `inflateRaw` (its thread pool); `size` as for InflateRaw. */
+export type InflateRawAsync = (data: Uint8Array, size?: number) => Promise<Uint8Array>;
+
+/** An entry's stored bytes, found through the central directory, and what they expand to. */
+type StoredEntry = { name: string; data: Uint8Array; method: number; size: number; compressed: number };
+
+function storedEntry(bytes: Uint8Array, e: ZipEntryRef, name: string): StoredEntry {
+  const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  if (e.offset + 30 > bytes.length || v.getUint32(e.offset, true) !== 0x04034b50) throw new Error(`no local header for ${name}`);
+  const from = e.offset + 30 + v.getUint16(e.offset + 26, true) + v.getUint16(e.offset + 28, true);
+  if (from + e.compressed > bytes.length) throw new Error(`${name} runs past the end of the package`);
+  if (e.method !== 0 && e.method !== 8) throw new Error(`${name} uses compression method ${e.method}`);
+  return { name, data: bytes.subarray(from, from + e.compressed), method: e.method, size: e.size, compressed: e.compressed };
+}
+
+/**
+ * The size to allocate by: DEFLATE expands at most 1032 : 1 (zlib's technical notes: a 258-byte match
+ * in about 2 bits), so a size past that, or past 1 GiB, is no hint.
+ */
+const sizeHint = (e: StoredEntry) => (e.size <= Math.min(1032 * e.compressed + 1024, 2 ** 30) ? e.size : undefined);
+
+function expanded(e: StoredEntry, out: Uint8Array): Uint8Array {
+  if (out.length !== e.size) throw new Error(`${e.name} expands to ${out.length} bytes where the directory says ${e.size}`);
+  return out;
+}
+
+const notZip = (err: unknown) => new ThreeMfProofError(`The 3MF is not a readable zip package (${err instanceof Error ? err.message : String(err)}).`);
+
 /**
  * Entries of a zip package by name: found through the central directory and expanded straight from
  * the package's bytes (by `inflateRaw` when given, else by fflate); a package this reader leaves
@@ -250,34 +278,26 @@ function zipDirectory(bytes: Uint8Array): Map<string, ZipEntryRef> | null {
 function unzipEntry(bytes: Uint8Array, dir: Map<string, ZipEntryRef> | null, name: string, inflateRaw?: InflateRaw): Uint8Array | undefined {
   try {
     if (!dir) return unzipSync(bytes, { filter: (f) => f.name === name })[name];
-    const e = dir.get(name);
-    if (!e) return undefined;
-    const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-    if (e.offset + 30 > bytes.length || v.getUint32(e.offset, true) !== 0x04034b50) throw new Error(`no local header for ${name}`);
-    const from = e.offset + 30 + v.getUint16(e.offset + 26, true) + v.getUint16(e.offset + 28, true);
-    if (from + e.compressed > bytes.length) throw new Error(`${name} runs past the end of the package`);
-    const data = bytes.subarray(from, from + e.compressed);
-    let out: Uint8Array;
-    if (e.method === 0) out = data;
-    // DEFLATE expands at most 1032 : 1 (zlib's technical notes: a 258-byte match in about 2 bits), so a size past that,
-    // or past 1 GiB, is no hint to allocate by.
-    else if (e.method === 8) out = inflateRaw ? inflateRaw(data, e.size <= Math.min(1032 * e.compressed + 1024, 2 ** 30) ? e.size : undefined) : inflateSync(data);
-    else throw new Error(`${name} uses compression method ${e.method}`);
-    if (out.length !== e.size) throw new Error(`${name} expands to ${out.length} bytes where the directory says ${e.size}`);
-    return out;
+    const ref = dir.get(name);
+    if (!ref) return undefined;
+    const e = storedEntry(bytes, ref, name);
+    if (e.method === 0) return expanded(e, e.data);
+    return expanded(e, inflateRaw ? inflateRaw(e.data, sizeHint(e)) : inflateSync(e.data));
   } catch (err) {
-    throw new ThreeMfProofError(`The 3MF is not a readable zip package (${err instanceof Error ? err.message : String(err)}).`);
+    throw notZip(err);
   }
 }
 
-/** Read the build of a 3MF package: every mesh it places, with its triangle count and bounds (mm). */
-export function readThreeMfBodies(bytes: Uint8Array, inflateRaw?: InflateRaw): ThreeMfRead {
-  let dir: Map<string, ZipEntryRef> | null = null;
+function directoryOf(bytes: Uint8Array): Map<string, ZipEntryRef> | null {
   try {
-    dir = zipDirectory(bytes);
+    return zipDirectory(bytes);
   } catch {
-    // A directory that runs past the bytes: left to fflate, which says what is wrong.
+    return null; // a directory that runs past the bytes: left to fflate, which says what is wrong
   }
+}
+
+/** The model part the package's relationships name (OPC: `_rels/.rels`, type …/3dmodel). */
+function modelTarget(bytes: Uint8Array, dir: Map<string, ZipEntryRef> | null, inflateRaw?: InflateRaw): string {
   const rels = unzipEntry(bytes, dir, "_rels/.rels", inflateRaw);
   if (!rels) throw new ThreeMfProofError("The 3MF has no _rels/.rels part (OPC requires it to name the model).");
   let target: string | undefined;
@@ -288,9 +308,53 @@ export function readThreeMfBodies(bytes: Uint8Array, inflateRaw?: InflateRaw): T
     if (type && tg && text(rels, type) === REL_MODEL) target = text(rels, tg).replace(/^\//, "");
   }
   if (!target) throw new ThreeMfProofError("The 3MF's relationships name no 3D model part.");
+  return target;
+}
+const noModel = (target: string) => new ThreeMfProofError(`The 3MF names ${target} as its model, but the package has no such part.`);
+
+/** Read the build of a 3MF package: every mesh it places, with its triangle count and bounds (mm). */
+export function readThreeMfBodies(bytes: Uint8Array, inflateRaw?: InflateRaw): ThreeMfRead {
+  const dir = directoryOf(bytes);
+  const target = modelTarget(bytes, dir, inflateRaw);
   const model = unzipEntry(bytes, dir, target, inflateRaw);
-  if (!model) throw new ThreeMfProofError(`The 3MF names ${target} as its model, but the package has no such part.`);
+  if (!model) throw noModel(target);
   return readModel(model);
+}
+
+/**
+ * As readThreeMfBodies, the model part (tens of megabytes of XML) expanded by `inflateRawAsync` while
+ * the caller goes on with other work; the small parts and the reading stay on the calling thread.
+ * Rejects with ThreeMfProofError as readThreeMfBodies throws.
+ */
+export function readThreeMfBodiesAsync(bytes: Uint8Array, inflateRawAsync: InflateRawAsync, inflateRaw?: InflateRaw): Promise<ThreeMfRead> {
+  try {
+    const dir = directoryOf(bytes);
+    const target = modelTarget(bytes, dir, inflateRaw);
+    const ref = dir?.get(target);
+    if (!dir || !ref) return Promise.resolve(readThreeMfBodies(bytes, inflateRaw));
+    let e: StoredEntry;
+    try {
+      e = storedEntry(bytes, ref, target);
+    } catch (err) {
+      throw notZip(err);
+    }
+    if (e.method === 0) return Promise.resolve(readModel(expandedOr(e, e.data)));
+    return inflateRawAsync(e.data, sizeHint(e)).then(
+      (out) => readModel(expandedOr(e, out)),
+      (err: unknown) => {
+        throw notZip(err);
+      },
+    );
+  } catch (err) {
+    return Promise.reject(err);
+  }
+}
+function expandedOr(e: StoredEntry, out: Uint8Array): Uint8Array {
+  try {
+    return expanded(e, out);
+  } catch (err) {
+    throw notZip(err);
+  }
 }
 
 export function readModel(b: Uint8Array): ThreeMfRead {
@@ -320,11 +384,11 @@ export function readModel(b: Uint8Array): ThreeMfRead {
   for (let i = b.indexOf(60); i >= 0 && i < n; ) {
     const c1 = b[i + 1];
     if (c1 === 118 && isWord(b, i + 1, VERTEX)) {
-      i = vertexRun(b, i, run, problems, object?.id ?? "");
+      i = vertexRun(b, i, run ?? newRun(), run !== null, problems, object?.id ?? "");
       continue;
     }
     if (c1 === 116 && isWord(b, i + 1, TRIANGLE)) {
-      i = triangleRun(b, i, run, problems, object?.id ?? "");
+      i = triangleRun(b, i, run ?? newRun(), run !== null, problems, object?.id ?? "");
       continue;
     }
     const { tag: t, next } = tagAt(b, i);
@@ -358,7 +422,7 @@ export function readModel(b: Uint8Array): ThreeMfRead {
         break;
       }
       case "mesh":
-        if (object) run = { verts: new Float64Array(3 * 1024), nv: 0, tris: new Uint32Array(3 * 2048), nt: 0, triangles: 0, joins: 0, volume6: 0 };
+        if (object) run = newRun();
         break;
       case "components":
         if (object) group = { ...object, components: [] };
@@ -427,19 +491,20 @@ function isWord(b: Uint8Array, at: number, word: Uint8Array): boolean {
 /** The next `<` from `j`: mostly the next line's first byte. */
 const onward = (b: Uint8Array, j: number) => (b[j] === 60 ? j : b[j] === 10 && b[j + 1] === 60 ? j + 1 : b.indexOf(60, j));
 const NUMS = new Float64Array(3);
+const newRun = (): MeshRun => ({ verts: new Float64Array(3 * 1024), nv: 0, tris: new Uint32Array(3 * 2048), nt: 0, triangles: 0, parent: undefined, joins: 0, volume6: 0 });
 
 /**
  * `<vertex>` elements one after another from `i` (a `<`), into the mesh (outside a mesh they are
  * read past): the loop a model spends its time in, kept small. Returns where the next other tag starts.
  */
-function vertexRun(b: Uint8Array, i: number, run: MeshRun | null, problems: string[], id: string): number {
+function vertexRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, problems: string[], id: string): number {
   const nums = NUMS;
-  let verts = run?.verts ?? new Float64Array(0), nv = run?.nv ?? 0;
+  let verts = run.verts, nv = run.nv;
   while (i >= 0 && b[i + 1] === 118 && isWord(b, i + 1, VERTEX)) {
     let j = fastNumbers(b, i + 7, nums, 1);
     if (j < 0) j = numbersAt(b, i + 7, nums);
     i = onward(b, j);
-    if (!run) continue;
+    if (!keep) continue;
     const x = nums[0]!, y = nums[1]!, z = nums[2]!;
     if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) {
       if (problems.length < 20) problems.push(`Object ${id}: vertex ${nv + 1} is not three numbers.`);
@@ -455,7 +520,8 @@ function vertexRun(b: Uint8Array, i: number, run: MeshRun | null, problems: stri
     verts[3 * nv + 2] = z;
     nv++;
   }
-  if (run) (run.verts = verts), (run.nv = nv);
+  run.verts = verts;
+  run.nv = nv;
   return i;
 }
 
@@ -463,25 +529,25 @@ function vertexRun(b: Uint8Array, i: number, run: MeshRun | null, problems: stri
  * `<triangle>` elements one after another from `i`, as `vertexRun`; only well-formed ones are kept.
  * Their vertices are joined (union-find) and their volume summed on the way, while they are in cache.
  */
-function triangleRun(b: Uint8Array, i: number, run: MeshRun | null, problems: string[], id: string): number {
+function triangleRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, problems: string[], id: string): number {
   const nums = NUMS;
-  let tris = run?.tris ?? new Uint32Array(0), nt = run?.nt ?? 0, triangles = run?.triangles ?? 0, joins = run?.joins ?? 0, vol = run?.volume6 ?? 0;
-  const nv = run?.nv ?? 0;
-  const p = run?.verts ?? new Float64Array(0);
-  let parent = run?.parent;
-  if (run && (!parent || parent.length !== nv)) {
+  let tris = run.tris, nt = run.nt, triangles = run.triangles, joins = run.joins, vol = run.volume6;
+  const nv = run.nv;
+  const p = run.verts;
+  let parent = run.parent;
+  if (!parent || parent.length !== nv) {
     // Vertices come before triangles (3MF core §4.1); a mesh that adds more later starts over.
     parent = new Int32Array(nv);
     for (let v = 0; v < nv; v++) parent[v] = v;
     joins = 0;
     for (let k = 0; k < 3 * nt; k += 3) joins += join(parent, tris[k]!, tris[k + 1]!) + join(parent, tris[k]!, tris[k + 2]!);
   }
-  const up = parent ?? new Int32Array(0);
+  const up = parent;
   while (i >= 0 && b[i + 1] === 116 && isWord(b, i + 1, TRIANGLE)) {
     let j = fastNumbers(b, i + 9, nums, 2);
     if (j < 0) j = numbersAt(b, i + 9, nums);
     i = onward(b, j);
-    if (!run) continue;
+    if (!keep) continue;
     const v1 = nums[0]!, v2 = nums[1]!, v3 = nums[2]!;
     triangles++;
     // 3MF core §4.1.2: three distinct indices of vertices of this mesh.
@@ -504,7 +570,12 @@ function triangleRun(b: Uint8Array, i: number, run: MeshRun | null, problems: st
     const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!, bx = p[c]!, by = p[c + 1]!, bz = p[c + 2]!, cx = p[d]!, cy = p[d + 1]!, cz = p[d + 2]!;
     vol += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
   }
-  if (run) (run.tris = tris), (run.nt = nt), (run.triangles = triangles), (run.parent = parent), (run.joins = joins), (run.volume6 = vol);
+  run.tris = tris;
+  run.nt = nt;
+  run.triangles = triangles;
+  run.parent = parent;
+  run.joins = joins;
+  run.volume6 = vol;
   return i;
 }
 
@@ -570,29 +641,41 @@ function withShells(me: MeshObject & Partial<MeshRun>): MeshObject {
 
 /** The mesh placed by `m` (row vectors, 3MF core §3.3), in millimetres: its bounds, and each shell's. */
 function bodyOf(me: MeshObject, m: Matrix, scale: number, into: ThreeMfShell[]): ThreeMfBody {
-  const min: [number, number, number] = [Infinity, Infinity, Infinity];
-  const max: [number, number, number] = [-Infinity, -Infinity, -Infinity];
   if (!me.shells) withShells(me);
   const shellOf = me.shellOf!;
   // A linear map scales volumes by its determinant (a mirror turns them inside out); a translation keeps them.
   const det = m[0]! * (m[4]! * m[8]! - m[5]! * m[7]!) - m[1]! * (m[3]! * m[8]! - m[5]! * m[6]!) + m[2]! * (m[3]! * m[7]! - m[4]! * m[6]!);
-  const first = into.length;
-  for (const sh of me.shells!) into.push({ objectId: me.id, triangles: sh.triangles, min: [Infinity, Infinity, Infinity], max: [-Infinity, -Infinity, -Infinity], volume: sh.volume * det * scale ** 3 });
+  const shells = me.shells!;
+  // Per shell: min x, y, z, max x, y, z.
+  const box = new Float64Array(6 * shells.length);
+  for (let k = 0; k < shells.length; k++) box.fill(Infinity, 6 * k, 6 * k + 3).fill(-Infinity, 6 * k + 3, 6 * k + 6);
+  let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
   const v = me.verts;
+  const m00 = m[0]!, m01 = m[1]!, m02 = m[2]!, m10 = m[3]!, m11 = m[4]!, m12 = m[5]!, m20 = m[6]!, m21 = m[7]!, m22 = m[8]!, m30 = m[9]!, m31 = m[10]!, m32 = m[11]!;
   for (let i = 0; i < me.nv; i++) {
     const x = v[3 * i]!, y = v[3 * i + 1]!, z = v[3 * i + 2]!;
+    const wx = (x * m00 + y * m10 + z * m20 + m30) * scale, wy = (x * m01 + y * m11 + z * m21 + m31) * scale, wz = (x * m02 + y * m12 + z * m22 + m32) * scale;
+    if (wx < x0) x0 = wx;
+    if (wx > x1) x1 = wx;
+    if (wy < y0) y0 = wy;
+    if (wy > y1) y1 = wy;
+    if (wz < z0) z0 = wz;
+    if (wz > z1) z1 = wz;
     const s = shellOf[i]!;
-    const sh = s >= 0 ? into[first + s]! : null;
-    for (let c = 0; c < 3; c++) {
-      const w = (x * m[c]! + y * m[3 + c]! + z * m[6 + c]! + m[9 + c]!) * scale;
-      if (w < min[c]!) min[c] = w;
-      if (w > max[c]!) max[c] = w;
-      if (sh) {
-        if (w < sh.min[c]!) sh.min[c] = w;
-        if (w > sh.max[c]!) sh.max[c] = w;
-      }
-    }
+    if (s < 0) continue;
+    const o = 6 * s;
+    if (wx < box[o]!) box[o] = wx;
+    if (wy < box[o + 1]!) box[o + 1] = wy;
+    if (wz < box[o + 2]!) box[o + 2] = wz;
+    if (wx > box[o + 3]!) box[o + 3] = wx;
+    if (wy > box[o + 4]!) box[o + 4] = wy;
+    if (wz > box[o + 5]!) box[o + 5] = wz;
   }
+  shells.forEach((sh, k) => {
+    const o = 6 * k;
+    into.push({ objectId: me.id, triangles: sh.triangles, min: [box[o]!, box[o + 1]!, box[o + 2]!], max: [box[o + 3]!, box[o + 4]!, box[o + 5]!], volume: sh.volume * det * scale ** 3 });
+  });
+  const min: [number, number, number] = [x0, y0, z0], max: [number, number, number] = [x1, y1, z1];
   return { objectId: me.id, name: me.name, triangles: me.triangles, min, max };
 }
 

@@ -111,9 +111,11 @@ export type Body = {
 /**
  * Split into connected bodies (triangles that share a welded corner belong together): union-find
  * over the corners, bodies numbered in order of their first triangle, triangles grouped by a counting
- * sort; volume and area summed per triangle, bounds per corner, each in one pass.
+ * sort; volume and area summed per triangle, bounds per corner, each in one pass. `facing`, when
+ * given, gets each triangle's side seen from above: 1 up, −1 down, 0 edge-on (twice its shadow's
+ * signed area beyond ±1e-10 mm²).
  */
-export function connectedBodies(m: WeldedStl): Body[] {
+export function connectedBodies(m: WeldedStl, facing?: Int8Array): Body[] {
   const nv = m.positions.length / 3;
   const n = m.triangles;
   const t = m.tris;
@@ -163,6 +165,7 @@ export function connectedBodies(m: WeldedStl): Body[] {
     const ux = bx - ax, uy = by - ay, uz = bz - az, wx = cx - ax, wy = cy - ay, wz = cz - az;
     const nx = uy * wz - uz * wy, ny = uz * wx - ux * wz, nz = ux * wy - uy * wx;
     area[b]! += Math.sqrt(nx * nx + ny * ny + nz * nz);
+    if (facing) facing[i] = nz > 1e-10 ? 1 : nz < -1e-10 ? -1 : 0;
   }
   for (let b = 0; b < bodies; b++) counts[b + 1]! += counts[b]!;
   const order = new Uint32Array(n);
