@@ -6,7 +6,7 @@
 import { readFileSync } from "node:fs";
 import os from "node:os";
 import path from "node:path";
-import { deflateRawSync, inflateRawSync } from "node:zlib";
+import { deflateRawSync, inflateRaw, inflateRawSync } from "node:zlib";
 import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
 import type { Finding } from "@/lib/geometry/checks";
 import { hexTile } from "@/lib/geometry/demo-shapes";
@@ -19,7 +19,7 @@ import { bounds, combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import { parseOptions, type SlabOptionsInput } from "@/lib/geometry/options";
 import { unitFindings, type ReadPart } from "@/lib/geometry/units";
 import { orientMesh } from "@/lib/geometry/orient";
-import { fillValue, provePlate, type Proof } from "@/lib/proof";
+import { fillValue, provePlateAsync, type Proof } from "@/lib/proof";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
 import { blobStore } from "@/lib/storage";
 
@@ -164,11 +164,14 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
     // thread stays free for the queue).
     tamperForTest(result, task.variables);
     const options = parseOptions(task.options);
-    const proof = provePlate({
+    // The 3MF's model part is expanded in node:zlib's thread pool while the STL is checked here; one
+    // output buffer of the size the zip directory states (one byte more, so zlib ends there).
+    const chunk = (size?: number) => (size ? { chunkSize: Math.max(64, size + 1) } : {});
+    const proof = await provePlateAsync({
       stl: result.stl,
       threeMf: result.threeMf,
-      // One output buffer of the size the zip directory states (one byte more, so zlib ends there).
-      inflateRaw: (d, size) => inflateRawSync(d, size ? { chunkSize: Math.max(64, size + 1) } : {}),
+      inflateRaw: (d, size) => inflateRawSync(d, chunk(size)),
+      inflateRawAsync: (d, size) => new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),
       options,
       pieces: result.pieces.length,
       // The value asked for: the option with the plate's values filled ({date} as the build fills it).
