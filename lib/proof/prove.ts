@@ -103,6 +103,17 @@ function readNow(input: ProofInput): ThreeMfRead | ThreeMfProofError {
 
 /** The rules in order; the 3MF's reading is asked for (yield) when its rule comes. */
 function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, ThreeMfRead | ThreeMfProofError> {
+  // The STL's rules in a plain function: V8 optimizes a long loop in the middle of a plain function
+  // (on-stack replacement), not one in a generator's body.
+  const s = stlRules(input, t0);
+  if ("proof" in s) return s.proof;
+  const read = yield;
+  return threeMfRule(read, s.bodies, s.rules, s.done);
+}
+
+type StlDone = { proof: Proof } | { bodies: Body[]; rules: ProofRule[]; done: () => Proof };
+
+function stlRules(input: ProofInput, t0: number): StlDone {
   const timings: Record<string, number> = {};
   let tl = t0;
   const lap = (name: string) => {
@@ -134,7 +145,7 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
   } catch (err) {
     if (!(err instanceof StlProofError)) throw err;
     rules.push({ rule: "stl", pass: false, message: err.message });
-    return done();
+    return { proof: done() };
   }
   rules.push({ rule: "stl", pass: true, figure: m.triangles, message: `${m.triangles.toLocaleString("en-US")} triangles, ${m.positions.length / 3} corners after welding.` });
 
@@ -200,7 +211,7 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
   }
   if (!slab) {
     rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
-    return yield* threeMfRule(bodies, rules, done);
+    return { bodies, rules, done };
   }
 
   lap("bodies");
@@ -211,18 +222,7 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
     const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
     return Float64Array.of(P[a]!, P[a + 1]!, P[b]!, P[b + 1]!, P[c]!, P[c + 1]!);
   };
-  const split = (tris: Uint32Array) => {
-    // Up-facing from the front of one buffer, down-facing from its back (then put back in order).
-    const buf = new Uint32Array(tris.length);
-    let nu = 0, nd = 0;
-    for (let i = 0; i < tris.length; i++) {
-      const t = tris[i]!;
-      const f = facing[t]!;
-      if (f > 0) buf[nu++] = t;
-      else if (f < 0) buf[tris.length - ++nd] = t;
-    }
-    return { up: buf.subarray(0, nu), down: buf.subarray(tris.length - nd).reverse() };
-  };
+  const split = (tris: Uint32Array) => splitFacing(tris, facing);
 
   // The slab seen from above: the boundary of its bottom face (at z = 0), read even-odd.
   const slabFaces = split(slab.tris);
@@ -236,18 +236,11 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
   lap("slab outline");
   const scratch = new Float64Array(2 * outerBodies.reduce((most, b) => Math.max(most, b.verts.length), 0));
   const pieces: Piece[] = outerBodies.map((body) => {
-      const { up, down } = split(body.tris);
-      // The body's corners, each once.
-      let k = 0;
-      for (let i = 0; i < body.verts.length; i++) {
-        const v = body.verts[i]!;
-        scratch[k++] = P[3 * v]!;
-        scratch[k++] = P[3 * v + 1]!;
-      }
-      const hull = convexHull(scratch.subarray(0, k));
-      const group = groupOf.get(body)!;
-      return { body, group, label: labelOf(labels, group, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
-    });
+    const { up, down } = split(body.tris);
+    const hull = convexHull(shadowPoints(body.verts, P, scratch));
+    const group = groupOf.get(body)!;
+    return { body, group, label: labelOf(labels, group, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
+  });
   lap("pieces");
   const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, P, T)));
 
@@ -257,13 +250,9 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
   let worstPiece: { p: Piece; pct: number; out: number } | null = null;
   for (const p of pieces) {
     const top = p.base + layer;
-    const flatBottom = new Uint32Array(p.down.length);
-    let nb = 0;
-    for (let i = 0; i < p.down.length; i++) {
-      const t = p.down[i]!;
-      if (Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!)) <= p.base + tol) flatBottom[nb++] = t;
-    }
-    p.bottom = nb ? new TriGrid(flat(flatBottom.subarray(0, nb), P, T)) : null;
+    const flatBottom = flatAt(p.down, p.base + tol, P, T);
+    const nb = flatBottom.length;
+    p.bottom = nb ? new TriGrid(flat(flatBottom, P, T)) : null;
     let pct = 100, out = 0;
     // A piece whose whole outline (its hull) lies inside a convex slab has its lowest layer on it too.
     if (planes && withinPlanes(planes, p.hull, tol)) {
@@ -276,7 +265,7 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
         const za = zOf(a), zb = zOf(b), zc = zOf(c);
         if (Math.max(za, zb, zc) > p.base + tol && Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
       }
-      const loopsPart = boundaryLoops(flatBottom.subarray(0, nb), P, corners);
+      const loopsPart = boundaryLoops(flatBottom, P, corners);
       let fp: MultiPolygon = loopsPart.length ? xorRings(loopsPart) : [];
       const bandPolys = band.filter((r) => r.length >= 3).map((r) => [r]);
       if (bandPolys.length) fp = polygonClipping.union(fp, ...bandPolys);
@@ -321,40 +310,15 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
   lap("apart");
   // 5. The gap: the highest slab surface under each piece's shadow lies exactly `gap` below its base
   // (so nothing of the slab, an embossed mark included, rises into or under a piece).
-  const slabUp = Array.from(slabFaces.up);
-  const zTop = new Float64Array(m.triangles);
-  for (const t of slabUp) zTop[t] = Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
-  slabUp.sort((a, b) => zTop[b]! - zTop[a]!);
-  // The slab's upward faces seen from above, in that order, with their boxes.
-  const upXY = flat(Uint32Array.from(slabUp), P, T);
-  const upBox = new Float64Array(4 * slabUp.length);
-  for (let k = 0; k < slabUp.length; k++) {
-    const o6 = 6 * k;
-    upBox[4 * k] = Math.min(upXY[o6]!, upXY[o6 + 2]!, upXY[o6 + 4]!);
-    upBox[4 * k + 1] = Math.min(upXY[o6 + 1]!, upXY[o6 + 3]!, upXY[o6 + 5]!);
-    upBox[4 * k + 2] = Math.max(upXY[o6]!, upXY[o6 + 2]!, upXY[o6 + 4]!);
-    upBox[4 * k + 3] = Math.max(upXY[o6 + 1]!, upXY[o6 + 3]!, upXY[o6 + 5]!);
-  }
+  const top = slabTop(slabFaces.up, P, T);
+  const slabUp = top.tris;
   const pocket = o.marks.outlines === "pocket";
   let gapProblem: string | null = null;
   let worstGap = gap;
   for (const p of pieces) {
     // The highest slab face under the piece: above the asked surface anything under its shadow counts
     // (an embossed mark under an overhang); at or below it, what lies under its bottom facets.
-    let under: number | null = null;
-    const asked = p.base - gap + tol;
-    for (let k = 0; k < slabUp.length; k++) {
-      const z = zTop[slabUp[k]!]!;
-      if (z < p.base - gap - 2) break; // far below: nothing closer under this piece
-      if (upBox[4 * k]! >= p.box.maxX - 1e-3 || upBox[4 * k + 2]! <= p.box.minX + 1e-3 || upBox[4 * k + 1]! >= p.box.maxY - 1e-3 || upBox[4 * k + 3]! <= p.box.minY + 1e-3) continue;
-      const tri = upXY.subarray(6 * k, 6 * k + 6);
-      if (!p.convex.overlaps(tri, 1e-3)) continue;
-      const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
-      if (hit) {
-        under = z;
-        break;
-      }
-    }
+    const under = highestUnder(p, top, p.base - gap + tol, p.base - gap - 2, shadowGrid);
     if (under === null) {
       gapProblem ??= `${cap(p.label)} has no slab under it.`;
       continue;
@@ -371,14 +335,9 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
   lap("gap");
   // 6. Floors: the lowest upward-facing surface of the slab, and no hole through it.
   const need = floorUnderMarks(o);
-  let minFloor = Infinity, floorAt: [number, number] = [0, 0];
-  for (const t of slabUp) {
-    const za = zOf(T[3 * t]!), zb = zOf(T[3 * t + 1]!), zc = zOf(T[3 * t + 2]!);
-    // Floors are flat: a wall a hair off vertical also faces up a little, and is not one.
-    if (Math.max(za, zb, zc) - Math.min(za, zb, zc) > tol) continue;
-    const z = Math.min(za, zb, zc);
-    if (z < minFloor) (minFloor = z), (floorAt = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
-  }
+  const lowest = lowestFlat(slabUp, tol, P, T);
+  let minFloor = lowest.z;
+  const floorAt = lowest.at;
   if (holes > 0) minFloor = 0;
   figures.minFloor = Number.isFinite(minFloor) ? Math.round(minFloor * 1000) / 1000 : null;
   rules.push(
@@ -416,12 +375,11 @@ function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, Thre
     if (text !== asked) figures.qrText = text;
   }
   lap("qr");
-  return yield* threeMfRule(bodies, rules, done);
+  return { bodies, rules, done };
 }
 
 /** 8. The 3MF read back holds the same bodies: count, triangles, bounds within 1e-3 mm. */
-function* threeMfRule(bodies: Body[], rules: ProofRule[], done: () => Proof): Generator<void, Proof, ThreeMfRead | ThreeMfProofError> {
-  const read = yield;
+function threeMfRule(read: ThreeMfRead | ThreeMfProofError, bodies: Body[], rules: ProofRule[], done: () => Proof): Proof {
   if (read instanceof ThreeMfProofError) {
     rules.push({ rule: "three_mf", pass: false, message: read.message });
     return done();
@@ -536,4 +494,90 @@ function labelOf(labels: NonNullable<ProofInput["labels"]>, group: number, b: Bo
   const [x, y] = centre(b);
   const l = group >= 0 ? labels[group] : undefined;
   return l ? `piece ${l.number} (at ${at(x, y)})` : `the piece at ${at(x, y)}`;
+}
+
+/** The triangles (of `tris`) whose corners all lie at or below z = `atMost`. */
+function flatAt(tris: Uint32Array, atMost: number, P: Float32Array, T: Uint32Array): Uint32Array {
+  const out = new Uint32Array(tris.length);
+  let n = 0;
+  for (let i = 0; i < tris.length; i++) {
+    const t = tris[i]!;
+    if (Math.max(P[3 * T[3 * t]! + 2]!, P[3 * T[3 * t + 1]! + 2]!, P[3 * T[3 * t + 2]! + 2]!) <= atMost) out[n++] = t;
+  }
+  return out.subarray(0, n);
+}
+
+/** The slab's upward faces, highest first (by their highest corner), seen from above with their boxes. */
+type SlabTop = { tris: Uint32Array; z: Float64Array; xy: Float64Array; box: Float64Array };
+function slabTop(up: Uint32Array, P: Float32Array, T: Uint32Array): SlabTop {
+  const zOf = (t: number) => Math.max(P[3 * T[3 * t]! + 2]!, P[3 * T[3 * t + 1]! + 2]!, P[3 * T[3 * t + 2]! + 2]!);
+  const order = Array.from(up, (t) => ({ t, z: zOf(t) })).sort((a, b) => b.z - a.z);
+  const tris = Uint32Array.from(order, (e) => e.t);
+  const z = Float64Array.from(order, (e) => e.z);
+  const xy = flat(tris, P, T);
+  const box = new Float64Array(4 * tris.length);
+  for (let k = 0; k < tris.length; k++) {
+    const o6 = 6 * k;
+    box[4 * k] = Math.min(xy[o6]!, xy[o6 + 2]!, xy[o6 + 4]!);
+    box[4 * k + 1] = Math.min(xy[o6 + 1]!, xy[o6 + 3]!, xy[o6 + 5]!);
+    box[4 * k + 2] = Math.max(xy[o6]!, xy[o6 + 2]!, xy[o6 + 4]!);
+    box[4 * k + 3] = Math.max(xy[o6 + 1]!, xy[o6 + 3]!, xy[o6 + 5]!);
+  }
+  return { tris, z, xy, box };
+}
+
+/**
+ * The highest slab face under a piece, or null: above the asked surface (`asked`) anything under its
+ * shadow counts (an embossed mark under an overhang); at or below it, what lies under its bottom
+ * facets. Faces below `floor` are far below: nothing closer lies under this piece.
+ */
+function highestUnder(p: Piece, top: SlabTop, asked: number, floor: number, shadowGrid: (p: Piece) => TriGrid): number | null {
+  const { z: zs, box, xy } = top;
+  for (let k = 0; k < zs.length; k++) {
+    const z = zs[k]!;
+    if (z < floor) break;
+    if (box[4 * k]! >= p.box.maxX - 1e-3 || box[4 * k + 2]! <= p.box.minX + 1e-3 || box[4 * k + 1]! >= p.box.maxY - 1e-3 || box[4 * k + 3]! <= p.box.minY + 1e-3) continue;
+    const tri = xy.subarray(6 * k, 6 * k + 6);
+    if (!p.convex.overlaps(tri, 1e-3)) continue;
+    const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
+    if (hit) return z;
+  }
+  return null;
+}
+
+/** The lowest flat upward face (floors are flat: a wall a hair off vertical also faces up a little, and is not one). */
+function lowestFlat(up: Uint32Array, tol: number, P: Float32Array, T: Uint32Array): { z: number; at: [number, number] } {
+  let minFloor = Infinity, at: [number, number] = [0, 0];
+  for (let i = 0; i < up.length; i++) {
+    const t = up[i]!;
+    const za = P[3 * T[3 * t]! + 2]!, zb = P[3 * T[3 * t + 1]! + 2]!, zc = P[3 * T[3 * t + 2]! + 2]!;
+    if (Math.max(za, zb, zc) - Math.min(za, zb, zc) > tol) continue;
+    const z = Math.min(za, zb, zc);
+    if (z < minFloor) (minFloor = z), (at = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
+  }
+  return { z: minFloor, at };
+}
+
+/** Triangles facing up, and those facing down (in their order), by `facing` (see connectedBodies). */
+function splitFacing(tris: Uint32Array, facing: Int8Array): { up: Uint32Array; down: Uint32Array } {
+  // Up-facing from the front of one buffer, down-facing from its back (then put back in order).
+  const buf = new Uint32Array(tris.length);
+  let nu = 0, nd = 0;
+  for (let i = 0; i < tris.length; i++) {
+    const t = tris[i]!;
+    const f = facing[t]!;
+    if (f > 0) buf[nu++] = t;
+    else if (f < 0) buf[tris.length - ++nd] = t;
+  }
+  return { up: buf.subarray(0, nu), down: buf.subarray(tris.length - nd).reverse() };
+}
+
+/** The corners' x, y (each corner once), into `into`. */
+function shadowPoints(verts: Uint32Array, P: Float32Array, into: Float64Array): Float64Array {
+  for (let i = 0; i < verts.length; i++) {
+    const v = 3 * verts[i]!;
+    into[2 * i] = P[v]!;
+    into[2 * i + 1] = P[v + 1]!;
+  }
+  return into.subarray(0, 2 * verts.length);
 }
