@@ -378,7 +378,7 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   return { bodies, rules, done };
 }
 
-/** 8. The 3MF read back holds the same bodies: count, triangles, bounds within 1e-3 mm. */
+/** 8. The 3MF read back holds the same bodies, shell for shell: count, triangles, bounds within 1e-3 mm, volume. */
 function threeMfRule(read: ThreeMfRead | ThreeMfProofError, bodies: Body[], rules: ProofRule[], done: () => Proof): Proof {
   if (read instanceof ThreeMfProofError) {
     rules.push({ rule: "three_mf", pass: false, message: read.message });
