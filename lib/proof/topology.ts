@@ -228,9 +228,12 @@ export function windingNumber(m: WeldedStl, tris: Uint32Array, x: number, y: num
  * The hollows: each inside-out body (negative volume) that lies strictly inside a body of positive
  * volume (its box strictly within that body's box, one of its corners enclosed by it), mapped to the
  * smallest such body. Its negative volume is then right: it is the inner wall of a hollow part.
+ * Only looked for among at most `most` bodies (the pairs grow as their square).
  */
-export function hollows(m: WeldedStl, bodies: Body[]): Map<Body, Body> {
+export function hollows(m: WeldedStl, bodies: Body[], most = 4096): Map<Body, Body> {
   const out = new Map<Body, Body>();
+  // A file of more bodies than that is no plate (the bodies rule says so): no pairs are tried.
+  if (bodies.length > most) return out;
   const solids = bodies.filter((b) => b.volume > 0).sort((a, b) => a.volume - b.volume);
   for (const v of bodies) {
     if (!(v.volume < 0)) continue;
