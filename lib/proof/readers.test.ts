@@ -2,7 +2,7 @@ import { inflateRaw, inflateRawSync } from "node:zlib";
 import { strToU8, zipSync } from "fflate";
 import { describe, expect, it } from "vitest";
 import { convexHull, convexOverlap, ConvexShape, outsideBy, TriGrid, withinPlanes, halfPlanes } from "./planar";
-import { readWeldedStl } from "./stl";
+import { readWeldedStl, StlProofError } from "./stl";
 import { readModel, readThreeMfBodies, readThreeMfBodiesAsync, ThreeMfProofError } from "./three-mf";
 import { connectedBodies, edgeReport, hollows, windingNumber } from "./topology";
 
@@ -52,6 +52,14 @@ describe("the STL weld", () => {
     const [b] = connectedBodies(m);
     expect(b!.volume).toBeCloseTo(24, 10);
     expect(b!.area).toBeCloseTo(2 * (6 + 8 + 12), 10); // 2(wd + wh + dh)
+  });
+
+  it("refuses a corner that is no finite number (binary32 with every exponent bit set: NaN or infinity), naming it", () => {
+    const tris = boxTris([0, 0, 0], [1, 1, 1]);
+    tris[3]![4] = NaN; // the second corner of facet 4: a corner not seen before it
+    expect(() => readWeldedStl(stlOf(tris))).toThrow(StlProofError);
+    tris[3]![4] = Infinity;
+    expect(() => readWeldedStl(stlOf(tris))).toThrow(/^The STL has a vertex that is not a finite number \(vertex \d+\)\.$/);
   });
 });
 
