@@ -7,7 +7,7 @@ import { readFileSync } from "node:fs";
 import { env } from "@/lib/env";
 import os from "node:os";
 import path from "node:path";
-import { deflateRawSync, inflateRawSync } from "node:zlib";
+import { deflateRawSync, inflateRaw, inflateRawSync } from "node:zlib";
 import { buildPlate, newPartCache, type PlateResult } from "@/lib/geometry/build-plate";
 import type { Finding } from "@/lib/geometry/checks";
 import { hexTile } from "@/lib/geometry/demo-shapes";
@@ -20,7 +20,7 @@ import { bounds, combineMeshes, type IndexedMesh } from "@/lib/geometry/mesh";
 import { parseOptions, type SlabOptionsInput } from "@/lib/geometry/options";
 import { unitFindings, type ReadPart } from "@/lib/geometry/units";
 import { orientMesh } from "@/lib/geometry/orient";
-import { fillValue, provePlate, type Proof } from "@/lib/proof";
+import { fillValue, provePlateAsync, type Proof } from "@/lib/proof";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
 import { blobStore } from "@/lib/storage";
 
@@ -55,7 +55,7 @@ let fonts: ReturnType<typeof parseFontBook> | undefined;
  * Parts already read and oriented by this thread, by content key and reading: an order system sends
  * the same kit again and again, and importing (weld + kernel check) costs more than the build itself.
  */
-const meshCache = new Map<string, { mesh: IndexedMesh; read: Pick<ReadPart, "unit" | "warnings" | "size"> }>();
+const meshCache = new Map<string, { mesh: IndexedMesh; shells: number; read: Pick<ReadPart, "unit" | "warnings" | "size"> }>();
 const CACHE_ENTRIES = 64;
 /** Their measures (footprints, size, volume), kept while the mesh stays in the cache above. */
 const partCache = newPartCache();
@@ -132,6 +132,9 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       return { ok: true, result };
     }
     const parts = [];
+    // How many closed shells each part is (the importer's bodies, joined into one mesh): the proof
+    // counts a part of several bodies, or a hollow one, shell for shell.
+    const shellsOf = new Map<string, number>();
     const unitNotes: Finding[] = [];
     const bed = parseOptions(task.options).layout.bed;
     for (const [i, p] of task.parts.entries()) {
@@ -142,13 +145,14 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
         const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
         const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
         const b = bounds(mesh);
-        held = { mesh, read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] } };
+        held = { mesh, shells: imported.bodies.length, read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] } };
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
         meshCache.set(cacheKey, held);
       }
       // The importer's unit warning, and a refusal for a part too small to print or too large for the bed (the unit is likely wrong).
       unitNotes.push(...unitFindings({ ...held.read, index: i + 1, name: p.name, source: p.partId ? "library" : "upload" }, bed));
       parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh: held.mesh, quantity: p.quantity });
+      shellsOf.set(`part-${i + 1}`, held.shells);
     }
     if (unitNotes.some((f) => f.severity === "error")) {
       // Refused before building: a plate of wrongly scaled parts is not worth its booleans.
@@ -161,16 +165,21 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
     // thread stays free for the queue).
     tamperForTest(result, task.variables);
     const options = parseOptions(task.options);
-    const proof = provePlate({
+    // The 3MF's model part is expanded in node:zlib's thread pool while the STL is checked here; one
+    // output buffer of the size the zip directory states (one byte more, so zlib ends there).
+    const chunk = (size?: number) => (size ? { chunkSize: Math.max(64, size + 1) } : {});
+    const proof = await provePlateAsync({
       stl: result.stl,
       threeMf: result.threeMf,
-      inflateRaw: (d) => inflateRawSync(d),
+      inflateRaw: (d, size) => inflateRawSync(d, chunk(size)),
+      inflateRawAsync: (d, size) => new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),
       options,
       pieces: result.pieces.length,
       // The value asked for: the option with the plate's values filled ({date} as the build fills it).
       qrValue: options.marks.qr ? fillValue(options.marks.qr.value, { date: new Date().toISOString().slice(0, 10), ...task.variables }) : undefined,
       marks: result.layout?.marks,
       labels: result.pieces.map((p) => ({ number: p.number, bounds: p.bounds })),
+      shells: result.pieces.map((p) => shellsOf.get(p.partId) ?? 1),
     });
     return { ok: true, result, proof };
   } catch (err) {

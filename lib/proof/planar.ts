@@ -53,24 +53,82 @@ function separatedOnEdgesOf(p: ArrayLike<number>, a: ArrayLike<number>, b: Array
 }
 
 /**
+ * A convex polygon (flat x, y, as `convexHull` gives it) with its edge normals and its own shadow
+ * on each, worked out once: the separating-axis test against it then costs O(n) instead of O(n²).
+ * `overlaps(poly, eps)` is `convexOverlap(poly, this polygon, eps)`.
+ */
+export class ConvexShape {
+  /** Per edge with a length: nx, ny, min and max of the polygon's own projection. */
+  private readonly axes: Float64Array;
+  constructor(readonly xy: Float64Array) {
+    const n = xy.length;
+    const axes: number[] = [];
+    // The extremes on successive edge normals turn with the edges: each is walked on from the last
+    // (rotating calipers), so the whole table costs O(n), not O(n²).
+    let lo = -1, hi = -1;
+    const proj = (k: number, nx: number, ny: number) => xy[k]! * nx + xy[k + 1]! * ny;
+    for (let i = 0; i < n; i += 2) {
+      const j = (i + 2) % n;
+      let nx = -(xy[j + 1]! - xy[i + 1]!), ny = xy[j]! - xy[i]!;
+      const len = Math.hypot(nx, ny);
+      if (len < 1e-12) continue;
+      nx /= len;
+      ny /= len;
+      if (lo < 0) {
+        lo = hi = 0;
+        for (let k = 2; k < n; k += 2) {
+          if (proj(k, nx, ny) < proj(lo, nx, ny)) lo = k;
+          if (proj(k, nx, ny) > proj(hi, nx, ny)) hi = k;
+        }
+      } else {
+        for (let s = 0; s < n && proj((lo + 2) % n, nx, ny) <= proj(lo, nx, ny); s += 2) lo = (lo + 2) % n;
+        for (let s = 0; s < n && proj((hi + 2) % n, nx, ny) >= proj(hi, nx, ny); s += 2) hi = (hi + 2) % n;
+      }
+      axes.push(nx, ny, proj(lo, nx, ny), proj(hi, nx, ny));
+    }
+    this.axes = Float64Array.from(axes);
+  }
+  overlaps(poly: ArrayLike<number>, eps: number): boolean {
+    // The polygon's own edges first (as convexOverlap does), against this shape's points.
+    if (separatedOnEdgesOf(poly, poly, this.xy, eps)) return false;
+    const ax = this.axes;
+    for (let i = 0; i < ax.length; i += 4) {
+      const nx = ax[i]!, ny = ax[i + 1]!;
+      let aMin = Infinity, aMax = -Infinity;
+      for (let k = 0; k < poly.length; k += 2) {
+        const d = poly[k]! * nx + poly[k + 1]! * ny;
+        if (d < aMin) aMin = d;
+        if (d > aMax) aMax = d;
+      }
+      if (aMax <= ax[i + 2]! + eps || ax[i + 3]! <= aMin + eps) return false;
+    }
+    return true;
+  }
+}
+
+/**
  * Convex hull of points (flat x, y), counter-clockwise, by the monotone chain. Points inside the
  * octagon of the extreme points are dropped first (Akl–Toussaint), which leaves few to sort.
  */
 export function convexHull(xy: ArrayLike<number>): Float64Array {
   const n = xy.length / 2;
   if (n === 0) return new Float64Array(0);
-  // The eight extremes: min/max of x, y, x + y, x − y.
-  const ext = new Int32Array(8);
-  const best = new Float64Array(8).fill(-Infinity);
+  // The eight extremes: min/max of x, y, x + y, x − y (the first point reaching each).
+  let e0 = 0, e1 = 0, e2 = 0, e3 = 0, e4 = 0, e5 = 0, e6 = 0, e7 = 0;
+  let b0 = -Infinity, b1 = -Infinity, b2 = -Infinity, b3 = -Infinity, b4 = -Infinity, b5 = -Infinity, b6 = -Infinity, b7 = -Infinity;
   for (let i = 0; i < n; i++) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
-    for (let k = 0; k < 8; k++) {
-      const v = k === 0 ? -x : k === 1 ? x : k === 2 ? -y : k === 3 ? y : k === 4 ? x + y : k === 5 ? -x - y : k === 6 ? x - y : y - x;
-      if (v > best[k]!) (best[k] = v), (ext[k] = i);
-    }
+    if (-x > b0) (b0 = -x), (e0 = i);
+    if (x > b1) (b1 = x), (e1 = i);
+    if (-y > b2) (b2 = -y), (e2 = i);
+    if (y > b3) (b3 = y), (e3 = i);
+    if (x + y > b4) (b4 = x + y), (e4 = i);
+    if (-x - y > b5) (b5 = -x - y), (e5 = i);
+    if (x - y > b6) (b6 = x - y), (e6 = i);
+    if (y - x > b7) (b7 = y - x), (e7 = i);
   }
-  // Octagon in counter-clockwise order: min x, min x+y... as angles around: left, bottom-left, bottom, bottom-right, right, top-right, top, top-left.
-  const ring = [ext[0]!, ext[5]!, ext[2]!, ext[6]!, ext[1]!, ext[4]!, ext[3]!, ext[7]!];
+  // Octagon in counter-clockwise order: left, bottom-left, bottom, bottom-right, right, top-right, top, top-left.
+  const ring = [e0, e5, e2, e6, e1, e4, e3, e7];
   const oct: number[] = [];
   for (const i of ring) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
@@ -79,36 +137,44 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
     oct.push(x, y);
   }
   if (oct.length >= 4 && oct[0] === oct[oct.length - 2] && oct[1] === oct[oct.length - 1]) oct.length -= 2;
-  const keep: number[] = [];
+  // Its edges as start point and direction.
+  const m = oct.length;
+  const edge = new Float64Array(2 * m);
+  for (let k = 0; k < m; k += 2) {
+    edge[2 * k] = oct[k]!;
+    edge[2 * k + 1] = oct[k + 1]!;
+    edge[2 * k + 2] = oct[(k + 2) % m]! - oct[k]!;
+    edge[2 * k + 3] = oct[(k + 3) % m]! - oct[k + 1]!;
+  }
+  const kept = new Uint32Array(n);
+  let nk = 0;
   for (let i = 0; i < n; i++) {
     const x = xy[2 * i]!, y = xy[2 * i + 1]!;
-    let inside = oct.length >= 6;
-    for (let k = 0; inside && k < oct.length; k += 2) {
-      const ax = oct[k]!, ay = oct[k + 1]!, bx = oct[(k + 2) % oct.length]!, by = oct[(k + 3) % oct.length]!;
-      if ((bx - ax) * (y - ay) - (by - ay) * (x - ax) <= 0) inside = false;
+    let inside = m >= 6;
+    for (let k = 0; inside && k < 2 * m; k += 4) {
+      if (edge[k + 2]! * (y - edge[k + 1]!) - edge[k + 3]! * (x - edge[k]!) <= 0) inside = false;
     }
-    if (!inside) keep.push(i);
+    if (!inside) kept[nk++] = i;
   }
-  keep.sort((i, j) => xy[2 * i]! - xy[2 * j]! || xy[2 * i + 1]! - xy[2 * j + 1]!);
-  const hx: number[] = [], hy: number[] = [];
-  const turn = (i: number) => {
-    const l = hx.length;
-    return (hx[l - 1]! - hx[l - 2]!) * (xy[2 * i + 1]! - hy[l - 2]!) - (hy[l - 1]! - hy[l - 2]!) * (xy[2 * i]! - hx[l - 2]!);
-  };
-  const chain = (order: number[], floor: number) => {
-    for (const i of order) {
-      while (hx.length >= floor + 2 && turn(i) <= 0) (hx.pop(), hy.pop());
-      hx.push(xy[2 * i]!);
-      hy.push(xy[2 * i + 1]!);
+  const keep = kept.subarray(0, nk).sort((i, j) => xy[2 * i]! - xy[2 * j]! || xy[2 * i + 1]! - xy[2 * j + 1]!);
+  // Monotone chain: the lower hull left to right, then the upper right to left.
+  const hx = new Float64Array(2 * nk + 2), hy = new Float64Array(2 * nk + 2);
+  let h = 0;
+  const chain = (from: number, to: number, step: number, floor: number) => {
+    for (let k = from; k !== to; k += step) {
+      const i = keep[k]!;
+      const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+      while (h >= floor + 2 && (hx[h - 1]! - hx[h - 2]!) * (y - hy[h - 2]!) - (hy[h - 1]! - hy[h - 2]!) * (x - hx[h - 2]!) <= 0) h--;
+      hx[h] = x;
+      hy[h] = y;
+      h++;
     }
   };
-  chain(keep, 0);
-  const lower = hx.length;
-  chain(keep.slice(0, -1).reverse(), lower - 1);
-  hx.pop();
-  hy.pop();
-  const out = new Float64Array(2 * hx.length);
-  for (let k = 0; k < hx.length; k++) (out[2 * k] = hx[k]!), (out[2 * k + 1] = hy[k]!);
+  chain(0, nk, 1, 0);
+  if (nk > 1) chain(nk - 2, -1, -1, h - 1);
+  h--;
+  const out = new Float64Array(2 * Math.max(0, h));
+  for (let k = 0; k < h; k++) (out[2 * k] = hx[k]!), (out[2 * k + 1] = hy[k]!);
   return out;
 }
 
@@ -142,68 +208,109 @@ export function outsideBy(planes: Float64Array, xy: ArrayLike<number>): number {
 
 /**
  * Triangles (flat: 6 numbers each) bucketed on a uniform grid (cells in one typed array, filled by a
- * counting sort), asked whether any of them overlaps a convex polygon by more than `eps`.
+ * counting sort), asked whether any of them overlaps a convex polygon by more than `eps`. The grid is
+ * built at the first query that would scan many triangles: a set asked once or twice (a piece's flat
+ * bottom under the slab face it stands over) is scanned by boxes instead.
  */
 export class TriGrid {
   private readonly box: Box2;
-  private readonly cell: number;
-  private readonly cols: number;
-  private readonly rows: number;
-  private readonly start: Uint32Array;
-  private readonly items: Uint32Array;
-  private readonly mark: Uint32Array;
+  /** Each triangle's box: min x, min y, max x, max y. */
+  private readonly boxes: Float64Array;
+  private grid: { cell: number; cols: number; rows: number; start: Uint32Array; items: Uint32Array; mark: Uint32Array } | null = null;
   private stamp = 0;
+  private scanned = 0;
   constructor(readonly tri: Float64Array) {
     const n = tri.length / 6;
     this.box = boxOf(tri);
-    const w = this.box.maxX - this.box.minX || 1, h = this.box.maxY - this.box.minY || 1;
-    this.cell = Math.max(Math.sqrt((w * h) / Math.max(1, n)) * 2, 1e-3);
-    this.cols = Math.min(4096, Math.ceil(w / this.cell) + 1);
-    this.rows = Math.min(4096, Math.ceil(h / this.cell) + 1);
-    this.cell = Math.max(w / (this.cols - 0.5), h / (this.rows - 0.5), this.cell);
-    const counts = new Uint32Array(this.cols * this.rows + 1);
-    this.forCells(n, (k) => counts[k + 1]!++);
-    for (let k = 0; k < this.cols * this.rows; k++) counts[k + 1]! += counts[k]!;
-    this.start = counts.slice();
-    this.items = new Uint32Array(counts[this.cols * this.rows]!);
-    const fill = counts;
-    this.forCells(n, (k, t) => (this.items[fill[k]!++] = t));
-    this.mark = new Uint32Array(n);
-  }
-  private range(minX: number, minY: number, maxX: number, maxY: number): [number, number, number, number] {
-    const c0 = Math.max(0, Math.floor((minX - this.box.minX) / this.cell));
-    const c1 = Math.min(this.cols - 1, Math.floor((maxX - this.box.minX) / this.cell));
-    const r0 = Math.max(0, Math.floor((minY - this.box.minY) / this.cell));
-    const r1 = Math.min(this.rows - 1, Math.floor((maxY - this.box.minY) / this.cell));
-    return [c0, c1, r0, r1];
-  }
-  private forCells(n: number, f: (k: number, t: number) => void) {
-    const tri = this.tri;
+    this.boxes = new Float64Array(4 * n);
     for (let t = 0; t < n; t++) {
       const o = 6 * t;
-      const [c0, c1, r0, r1] = this.range(Math.min(tri[o]!, tri[o + 2]!, tri[o + 4]!), Math.min(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!), Math.max(tri[o]!, tri[o + 2]!, tri[o + 4]!), Math.max(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!));
-      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) f(r * this.cols + c, t);
+      this.boxes[4 * t] = Math.min(tri[o]!, tri[o + 2]!, tri[o + 4]!);
+      this.boxes[4 * t + 1] = Math.min(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!);
+      this.boxes[4 * t + 2] = Math.max(tri[o]!, tri[o + 2]!, tri[o + 4]!);
+      this.boxes[4 * t + 3] = Math.max(tri[o + 1]!, tri[o + 3]!, tri[o + 5]!);
     }
+  }
+  private build() {
+    const n = this.tri.length / 6;
+    const w = this.box.maxX - this.box.minX || 1, h = this.box.maxY - this.box.minY || 1;
+    let cell = Math.max(Math.sqrt((w * h) / Math.max(1, n)) * 2, 1e-3);
+    const cols = Math.min(4096, Math.ceil(w / cell) + 1);
+    const rows = Math.min(4096, Math.ceil(h / cell) + 1);
+    cell = Math.max(w / (cols - 0.5), h / (rows - 0.5), cell);
+    const g = { cell, cols, rows, start: new Uint32Array(cols * rows + 1), items: new Uint32Array(0), mark: new Uint32Array(n) };
+    this.grid = g;
+    const counts = g.start;
+    const bx = this.boxes;
+    for (let t = 0; t < n; t++) {
+      const [c0, c1, r0, r1] = this.range(bx[4 * t]!, bx[4 * t + 1]!, bx[4 * t + 2]!, bx[4 * t + 3]!);
+      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) counts[r * cols + c + 1]!++;
+    }
+    for (let k = 0; k < cols * rows; k++) counts[k + 1]! += counts[k]!;
+    const fill = counts.slice();
+    g.items = new Uint32Array(counts[cols * rows]!);
+    for (let t = 0; t < n; t++) {
+      const [c0, c1, r0, r1] = this.range(bx[4 * t]!, bx[4 * t + 1]!, bx[4 * t + 2]!, bx[4 * t + 3]!);
+      for (let r = r0; r <= r1; r++) for (let c = c0; c <= c1; c++) g.items[fill[r * cols + c]!++] = t;
+    }
+  }
+  private range(minX: number, minY: number, maxX: number, maxY: number): [number, number, number, number] {
+    const g = this.grid!;
+    const c0 = Math.max(0, Math.floor((minX - this.box.minX) / g.cell));
+    const c1 = Math.min(g.cols - 1, Math.floor((maxX - this.box.minX) / g.cell));
+    const r0 = Math.max(0, Math.floor((minY - this.box.minY) / g.cell));
+    const r1 = Math.min(g.rows - 1, Math.floor((maxY - this.box.minY) / g.cell));
+    return [c0, c1, r0, r1];
   }
   /** Any triangle overlapping the convex polygon `poly` (flat x, y) by more than eps. */
   overlaps(poly: ArrayLike<number>, eps: number): boolean {
     const b = boxOf(poly);
     if (!boxesOverlap(b, this.box, eps)) return false;
+    const n = this.tri.length / 6;
+    if (!this.grid && this.scanned + n > 16 * n && n > 64) this.build();
+    const g = this.grid;
+    if (!g) {
+      // By boxes: a triangle whose box does not overlap the polygon's overlaps it by nothing along
+      // some axis, so by no more than eps along the separating axis test's best one.
+      this.scanned += n;
+      const bx = this.boxes;
+      for (let t = 0; t < n; t++) {
+        if (bx[4 * t]! >= b.maxX || bx[4 * t + 2]! <= b.minX || bx[4 * t + 1]! >= b.maxY || bx[4 * t + 3]! <= b.minY) continue;
+        if (convexOverlap(this.tri.subarray(6 * t, 6 * t + 6), poly, eps)) return true;
+      }
+      return false;
+    }
     const [c0, c1, r0, r1] = this.range(b.minX, b.minY, b.maxX, b.maxY);
     const stamp = ++this.stamp;
     for (let r = r0; r <= r1; r++) {
       for (let c = c0; c <= c1; c++) {
-        const k = r * this.cols + c;
-        for (let i = this.start[k]!; i < this.start[k + 1]!; i++) {
-          const t = this.items[i]!;
-          if (this.mark[t] === stamp) continue;
-          this.mark[t] = stamp;
+        const k = r * g.cols + c;
+        for (let i = g.start[k]!; i < g.start[k + 1]!; i++) {
+          const t = g.items[i]!;
+          if (g.mark[t] === stamp) continue;
+          g.mark[t] = stamp;
           if (convexOverlap(this.tri.subarray(6 * t, 6 * t + 6), poly, eps)) return true;
         }
       }
     }
     return false;
   }
+}
+
+/**
+ * Do all points (flat x, y) lie within `tol` of the inside of the half-planes (as
+ * `outsideBy(planes, xy) <= tol`)? A plane the points' bounding circle stays clear of is not scanned.
+ */
+export function withinPlanes(planes: Float64Array, xy: ArrayLike<number>, tol: number): boolean {
+  const b = boxOf(xy);
+  const cx = (b.minX + b.maxX) / 2, cy = (b.minY + b.maxY) / 2;
+  const r = Math.hypot(b.maxX - b.minX, b.maxY - b.minY) / 2;
+  for (let p = 0; p < planes.length; p += 3) {
+    const nx = planes[p]!, ny = planes[p + 1]!, c = planes[p + 2]!;
+    if (nx * cx + ny * cy - c + r < tol - 1e-9) continue;
+    for (let k = 0; k < xy.length; k += 2) if (nx * xy[k]! + ny * xy[k + 1]! - c > tol) return false;
+  }
+  return true;
 }
 
 /**

@@ -1,10 +1,10 @@
 import polygonClipping, { type MultiPolygon, type Ring } from "polygon-clipping";
 import { deepestEngraving, floorUnderMarks, type SlabOptions } from "@/lib/geometry/options";
-import { boundaryLoops, boxesOverlap, boxOf, convexHull, convexOverlap, halfPlanes, isConvex, multiArea, multiPerimeter, outsideBy, TriGrid, type Box2 } from "./planar";
+import { boundaryLoops, boxesOverlap, convexHull, ConvexShape, halfPlanes, isConvex, multiArea, multiPerimeter, TriGrid, withinPlanes, type Box2 } from "./planar";
 import { decodeRaster, heightRaster } from "./qr-read";
 import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
-import { readThreeMfBodies, ThreeMfProofError, type InflateRaw } from "./three-mf";
-import { connectedBodies, edgeReport, type Body } from "./topology";
+import { readThreeMfBodies, readThreeMfBodiesAsync, ThreeMfProofError, type InflateRaw, type InflateRawAsync, type ThreeMfRead } from "./three-mf";
+import { connectedBodies, edgeReport, hollows, type Body } from "./topology";
 
 /**
  * The proof of a plate: an independent reading of the exported STL and 3MF bytes (no geometry kernel,
@@ -28,8 +28,16 @@ export type ProofInput = {
   marks?: { kind: string; bounds: Box2 }[];
   /** A faster raw DEFLATE decoder for the 3MF (node:zlib's inflateRawSync in the worker); fflate's by default. */
   inflateRaw?: InflateRaw;
+  /** For provePlateAsync: a decoder off this thread for the 3MF's model part (node:zlib's inflateRaw). */
+  inflateRawAsync?: InflateRawAsync;
   /** The layout's pieces, to name a piece by its number in a message. */
   labels?: { number: number; bounds: Box2 }[];
+  /**
+   * How many closed shells each piece is, in the layout's order (as `labels`): more than 1 for a part
+   * of several bodies, or a hollow part (an outer shell and an inside-out inner one). 1 each when not
+   * given. With `labels`, a piece's loose bodies are told apart from the other pieces by its bounds.
+   */
+  shells?: number[];
 };
 
 /** `{name}` placeholders filled from `vars` (unknown ones stay as written), as the plate's marks are. */
@@ -42,10 +50,13 @@ const at = (x: number, y: number) => `x ${fmt(x, 1)}, y ${fmt(y, 1)} mm`;
 
 type Piece = {
   body: Body;
+  /** The piece the body belongs to: an index into `labels`, or its own (negative) when none fits. */
+  group: number;
   label: string;
   base: number;
   box: Box2;
   hull: Float64Array;
+  convex: ConvexShape;
   up: Uint32Array;
   down: Uint32Array;
   grid?: TriGrid;
@@ -53,8 +64,56 @@ type Piece = {
   bottom?: TriGrid | null;
 };
 
+/** The proof, the 3MF read on this thread. */
 export function provePlate(input: ProofInput): Proof {
+  const steps = proofSteps(input, performance.now());
+  let r = steps.next();
+  while (!r.done) r = steps.next(readNow(input));
+  return r.value;
+}
+
+/**
+ * The same proof, the 3MF's model part expanded by `input.inflateRawAsync` (node:zlib's thread pool
+ * in the worker) while the STL is checked on this thread; without it, as provePlate.
+ */
+export async function provePlateAsync(input: ProofInput): Promise<Proof> {
   const t0 = performance.now();
+  const pending = input.inflateRawAsync
+    ? readThreeMfBodiesAsync(input.threeMf, input.inflateRawAsync, input.inflateRaw).catch((err: unknown) => {
+        if (err instanceof ThreeMfProofError) return err;
+        throw err;
+      })
+    : null;
+  // Not asked for when the STL does not read: no rejection goes unheard.
+  pending?.catch(() => {});
+  const steps = proofSteps(input, t0);
+  let r = steps.next();
+  while (!r.done) r = steps.next(pending ? await pending : readNow(input));
+  return r.value;
+}
+
+function readNow(input: ProofInput): ThreeMfRead | ThreeMfProofError {
+  try {
+    return readThreeMfBodies(input.threeMf, input.inflateRaw);
+  } catch (err) {
+    if (err instanceof ThreeMfProofError) return err;
+    throw err;
+  }
+}
+
+/** The rules in order; the 3MF's reading is asked for (yield) when its rule comes. */
+function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, ThreeMfRead | ThreeMfProofError> {
+  // The STL's rules in a plain function: V8 optimizes a long loop in the middle of a plain function
+  // (on-stack replacement), not one in a generator's body.
+  const s = stlRules(input, t0);
+  if ("proof" in s) return s.proof;
+  const read = yield;
+  return threeMfRule(read, s.bodies, s.rules, s.done);
+}
+
+type StlDone = { proof: Proof } | { bodies: Body[]; rules: ProofRule[]; done: () => Proof };
+
+function stlRules(input: ProofInput, t0: number): StlDone {
   const timings: Record<string, number> = {};
   let tl = t0;
   const lap = (name: string) => {
@@ -86,7 +145,7 @@ export function provePlate(input: ProofInput): Proof {
   } catch (err) {
     if (!(err instanceof StlProofError)) throw err;
     rules.push({ rule: "stl", pass: false, message: err.message });
-    return done();
+    return { proof: done() };
   }
   rules.push({ rule: "stl", pass: true, figure: m.triangles, message: `${m.triangles.toLocaleString("en-US")} triangles, ${m.positions.length / 3} corners after welding.` });
 
@@ -108,52 +167,62 @@ export function provePlate(input: ProofInput): Proof {
 
   lap("edges");
   // 2. Bodies: positive volume each; the slab is the one body standing on z = 0; the rest are the pieces.
-  const bodies = connectedBodies(m);
+  const facing = new Int8Array(m.triangles);
+  const bodies = connectedBodies(m, facing);
   figures.bodies = bodies.length;
-  const inverted = bodies.filter((b) => b.volume <= 0);
+  // A hollow part's inner wall is inside out, as it should be, when it lies within a positive body.
+  const inner = hollows(m, bodies);
+  const inverted = bodies.filter((b) => b.volume <= 0 && !inner.has(b));
   rules.push(
     inverted.length === 0
-      ? { rule: "volume", pass: true, message: "Every body has a positive volume." }
+      ? { rule: "volume", pass: true, message: inner.size ? `Every body has a positive volume, but for ${inner.size} inside-out ${inner.size === 1 ? "shell" : "shells"} each inside one (a hollow).` : "Every body has a positive volume." }
       : { rule: "volume", pass: false, figure: inverted[0]!.volume, message: `${inverted.length} bodies have no positive volume (inside out or flat), the first at ${at(...centre(inverted[0]!))}: ${fmt(inverted[0]!.volume, 3)} mm³.` },
   );
   const onBed = bodies.filter((b) => Math.abs(b.min[2]) <= tol);
   const below = bodies.filter((b) => b.min[2] < -tol);
   const slab = onBed.reduce<Body | null>((best, b) => (!best || b.volume > best.volume ? b : best), null);
-  const want = input.pieces + 1;
+  const labels = input.labels ?? [];
+  const shellsOf = (i: number) => {
+    const s = input.shells?.[i];
+    return s !== undefined && Number.isInteger(s) && s >= 1 ? s : 1;
+  };
+  let shellTotal = 0;
+  for (let i = 0; i < input.pieces; i++) shellTotal += shellsOf(i);
+  const want = shellTotal + 1;
+  // Each outer body's piece (hollows go with the body around them).
+  const outerBodies = bodies.filter((b) => b !== slab && !inner.has(b));
+  const groupOf = pieceGroups(outerBodies, labels, shellsOf);
   {
     const problems: string[] = [];
-    if (bodies.length !== want) problems.push(`${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}`);
+    if (bodies.length !== want) problems.push(shellTotal === input.pieces ? `${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}` : `${bodies.length} bodies where ${input.pieces} pieces of ${shellTotal} shells and the slab make ${want}`);
     if (onBed.length === 0) problems.push("no body stands on z = 0 (no slab)");
     if (onBed.length > 1) problems.push(`the slab is in ${onBed.length} loose parts on z = 0 (the smallest at ${at(...centre(onBed.reduce((a, b) => (b.volume < a.volume ? b : a))))})`);
     if (below.length) problems.push(`${below.length} bodies reach below the bed (lowest z ${fmt(Math.min(...below.map((b) => b.min[2])))} mm)`);
-    rules.push(problems.length ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` } : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: the slab and ${input.pieces} pieces.` });
+    if (input.shells && labels.length) {
+      // Shell for shell, piece by piece: the outer bodies each piece was given, and the hollows inside them.
+      const count = new Uint32Array(labels.length);
+      for (const b of outerBodies) if (groupOf.get(b)! >= 0) count[groupOf.get(b)!]!++;
+      for (const [, around] of inner) if ((groupOf.get(around) ?? -1) >= 0) count[groupOf.get(around)!]!++;
+      const off = labels.map((l, i) => ({ l, i })).filter(({ i }) => i < input.pieces && count[i] !== shellsOf(i));
+      if (off.length) problems.push(`piece ${off[0]!.l.number} has ${count[off[0]!.i]} shells where its part has ${shellsOf(off[0]!.i)}${off.length > 1 ? ` (${off.length} pieces differ)` : ""}`);
+    }
+    const what = shellTotal === input.pieces ? `the slab and ${input.pieces} pieces` : `the slab and ${input.pieces} pieces of ${shellTotal} shells`;
+    rules.push(problems.length ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` } : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: ${what}.` });
   }
   if (!slab) {
     rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
-    return threeMfRule(input, bodies, rules, done);
+    return { bodies, rules, done };
   }
 
   lap("bodies");
   const P = m.positions, T = m.tris;
   const zOf = (v: number) => P[3 * v + 2]!;
-  const area2 = (t: number) => {
-    const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
-    return (P[b]! - P[a]!) * (P[c + 1]! - P[a + 1]!) - (P[b + 1]! - P[a + 1]!) * (P[c]! - P[a]!);
-  };
   const corners = (t: number): [number, number, number] => [T[3 * t]!, T[3 * t + 1]!, T[3 * t + 2]!];
   const tri2d = (t: number) => {
     const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
     return Float64Array.of(P[a]!, P[a + 1]!, P[b]!, P[b + 1]!, P[c]!, P[c + 1]!);
   };
-  const split = (tris: Uint32Array) => {
-    const up: number[] = [], down: number[] = [];
-    for (const t of tris) {
-      const s = area2(t);
-      if (s > 1e-10) up.push(t);
-      else if (s < -1e-10) down.push(t);
-    }
-    return { up: Uint32Array.from(up), down: Uint32Array.from(down) };
-  };
+  const split = (tris: Uint32Array) => splitFacing(tris, facing);
 
   // The slab seen from above: the boundary of its bottom face (at z = 0), read even-odd.
   const slabFaces = split(slab.tris);
@@ -165,27 +234,15 @@ export function provePlate(input: ProofInput): Proof {
   const planes = outer !== null && isConvex(outer) ? halfPlanes(outer) : null;
 
   lap("slab outline");
-  const seen = new Uint32Array(P.length / 3);
-  let stamp = 0;
-  const pieces: Piece[] = bodies
-    .filter((b) => b !== slab)
-    .map((body) => {
-      const { up, down } = split(body.tris);
-      // The body's corners, each once (corner ids are handed out in file order, so a body's span is small).
-      const xy: number[] = [];
-      for (const t of body.tris) {
-        for (let c = 0; c < 3; c++) {
-          const v = T[3 * t + c]!;
-          if (seen[v] === stamp + 1) continue;
-          seen[v] = stamp + 1;
-          xy.push(P[3 * v]!, P[3 * v + 1]!);
-        }
-      }
-      stamp++;
-      return { body, label: labelOf(input.labels, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull: convexHull(xy), up, down };
-    });
+  const scratch = new Float64Array(2 * outerBodies.reduce((most, b) => Math.max(most, b.verts.length), 0));
+  const pieces: Piece[] = outerBodies.map((body) => {
+    const { up, down } = split(body.tris);
+    const hull = convexHull(shadowPoints(body.verts, P, scratch));
+    const group = groupOf.get(body)!;
+    return { body, group, label: labelOf(labels, group, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
+  });
   lap("pieces");
-  const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, tri2d)));
+  const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, P, T)));
 
   // 3. Every piece on the slab: its lowest layer (down-facing triangles within one layer of its base)
   // inside the slab's outline.
@@ -193,20 +250,21 @@ export function provePlate(input: ProofInput): Proof {
   let worstPiece: { p: Piece; pct: number; out: number } | null = null;
   for (const p of pieces) {
     const top = p.base + layer;
-    const flatBottom: number[] = [];
-    const band: Ring[] = [];
-    for (const t of p.down) {
-      const [a, b, c] = corners(t);
-      const za = zOf(a), zb = zOf(b), zc = zOf(c);
-      if (Math.max(za, zb, zc) <= p.base + tol) flatBottom.push(t);
-      else if (Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
-    }
-    p.bottom = flatBottom.length ? new TriGrid(flat(Uint32Array.from(flatBottom), tri2d)) : null;
+    const flatBottom = flatAt(p.down, p.base + tol, P, T);
+    const nb = flatBottom.length;
+    p.bottom = nb ? new TriGrid(flat(flatBottom, P, T)) : null;
     let pct = 100, out = 0;
     // A piece whose whole outline (its hull) lies inside a convex slab has its lowest layer on it too.
-    if (planes && outsideBy(planes, p.hull) <= tol) {
+    if (planes && withinPlanes(planes, p.hull, tol)) {
       // on the slab
     } else {
+      // The lowest layer: the flat bottom, and the down-facing triangles that reach below one layer up, clipped there.
+      const band: Ring[] = [];
+      for (const t of p.down) {
+        const [a, b, c] = corners(t);
+        const za = zOf(a), zb = zOf(b), zc = zOf(c);
+        if (Math.max(za, zb, zc) > p.base + tol && Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
+      }
       const loopsPart = boundaryLoops(flatBottom, P, corners);
       let fp: MultiPolygon = loopsPart.length ? xorRings(loopsPart) : [];
       const bandPolys = band.filter((r) => r.length >= 3).map((r) => [r]);
@@ -224,7 +282,7 @@ export function provePlate(input: ProofInput): Proof {
   figures.worstSupport = pieces.length ? Math.round(worst * 100) / 100 : null;
   rules.push(
     worst >= 100
-      ? { rule: "on_slab", pass: true, figure: worst, message: `Every piece's lowest layer lies on the slab (${pieces.length} pieces).` }
+      ? { rule: "on_slab", pass: true, figure: worst, message: `Every piece's lowest layer lies on the slab (${pieces.length === input.pieces ? `${pieces.length} pieces` : `${input.pieces} pieces, ${pieces.length} bodies`}).` }
       : { rule: "on_slab", pass: false, figure: figures.worstSupport ?? 0, message: `${cap(worstPiece!.p.label)} stands ${fmt(100 - worst, 1)} % off the slab: only ${fmt(worst, 1)} % of its lowest layer is over the slab's outline.` },
   );
 
@@ -234,8 +292,9 @@ export function provePlate(input: ProofInput): Proof {
   for (let i = 0; i < pieces.length && !clash; i++) {
     for (let j = i + 1; j < pieces.length && !clash; j++) {
       const a = pieces[i]!, b = pieces[j]!;
+      if (a.group === b.group) continue; // one part's own bodies
       if (a.body.max[2] <= b.base || b.body.max[2] <= a.base) continue;
-      if (!boxesOverlap(a.box, b.box, 1e-3) || !convexOverlap(a.hull, b.hull, 1e-3)) continue;
+      if (!boxesOverlap(a.box, b.box, 1e-3) || !b.convex.overlaps(a.hull, 1e-3)) continue;
       const g = shadowGrid(a);
       for (const t of b.up) {
         const tri = tri2d(t);
@@ -251,40 +310,15 @@ export function provePlate(input: ProofInput): Proof {
   lap("apart");
   // 5. The gap: the highest slab surface under each piece's shadow lies exactly `gap` below its base
   // (so nothing of the slab, an embossed mark included, rises into or under a piece).
-  const slabUp = Array.from(slabFaces.up);
-  const zTop = new Float64Array(m.triangles);
-  for (const t of slabUp) zTop[t] = Math.max(zOf(T[3 * t]!), zOf(T[3 * t + 1]!), zOf(T[3 * t + 2]!));
-  slabUp.sort((a, b) => zTop[b]! - zTop[a]!);
-  // The slab's upward faces seen from above, in that order, with their boxes.
-  const upXY = flat(Uint32Array.from(slabUp), tri2d);
-  const upBox = new Float64Array(4 * slabUp.length);
-  for (let k = 0; k < slabUp.length; k++) {
-    const o6 = 6 * k;
-    upBox[4 * k] = Math.min(upXY[o6]!, upXY[o6 + 2]!, upXY[o6 + 4]!);
-    upBox[4 * k + 1] = Math.min(upXY[o6 + 1]!, upXY[o6 + 3]!, upXY[o6 + 5]!);
-    upBox[4 * k + 2] = Math.max(upXY[o6]!, upXY[o6 + 2]!, upXY[o6 + 4]!);
-    upBox[4 * k + 3] = Math.max(upXY[o6 + 1]!, upXY[o6 + 3]!, upXY[o6 + 5]!);
-  }
+  const top = slabTop(slabFaces.up, P, T);
+  const slabUp = top.tris;
   const pocket = o.marks.outlines === "pocket";
   let gapProblem: string | null = null;
   let worstGap = gap;
   for (const p of pieces) {
     // The highest slab face under the piece: above the asked surface anything under its shadow counts
     // (an embossed mark under an overhang); at or below it, what lies under its bottom facets.
-    let under: number | null = null;
-    const asked = p.base - gap + tol;
-    for (let k = 0; k < slabUp.length; k++) {
-      const z = zTop[slabUp[k]!]!;
-      if (z < p.base - gap - 2) break; // far below: nothing closer under this piece
-      if (upBox[4 * k]! >= p.box.maxX - 1e-3 || upBox[4 * k + 2]! <= p.box.minX + 1e-3 || upBox[4 * k + 1]! >= p.box.maxY - 1e-3 || upBox[4 * k + 3]! <= p.box.minY + 1e-3) continue;
-      const tri = upXY.subarray(6 * k, 6 * k + 6);
-      if (!convexOverlap(tri, p.hull, 1e-3)) continue;
-      const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
-      if (hit) {
-        under = z;
-        break;
-      }
-    }
+    const under = highestUnder(p, top, p.base - gap + tol, p.base - gap - 2, shadowGrid);
     if (under === null) {
       gapProblem ??= `${cap(p.label)} has no slab under it.`;
       continue;
@@ -301,14 +335,9 @@ export function provePlate(input: ProofInput): Proof {
   lap("gap");
   // 6. Floors: the lowest upward-facing surface of the slab, and no hole through it.
   const need = floorUnderMarks(o);
-  let minFloor = Infinity, floorAt: [number, number] = [0, 0];
-  for (const t of slabUp) {
-    const za = zOf(T[3 * t]!), zb = zOf(T[3 * t + 1]!), zc = zOf(T[3 * t + 2]!);
-    // Floors are flat: a wall a hair off vertical also faces up a little, and is not one.
-    if (Math.max(za, zb, zc) - Math.min(za, zb, zc) > tol) continue;
-    const z = Math.min(za, zb, zc);
-    if (z < minFloor) (minFloor = z), (floorAt = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
-  }
+  const lowest = lowestFlat(slabUp, tol, P, T);
+  let minFloor = lowest.z;
+  const floorAt = lowest.at;
   if (holes > 0) minFloor = 0;
   figures.minFloor = Number.isFinite(minFloor) ? Math.round(minFloor * 1000) / 1000 : null;
   rules.push(
@@ -346,40 +375,40 @@ export function provePlate(input: ProofInput): Proof {
     if (text !== asked) figures.qrText = text;
   }
   lap("qr");
-  return threeMfRule(input, bodies, rules, done);
+  return { bodies, rules, done };
 }
 
-/** 8. The 3MF read back holds the same bodies: count, triangles, bounds within 1e-3 mm. */
-function threeMfRule(input: ProofInput, bodies: Body[], rules: ProofRule[], done: () => Proof): Proof {
-  let read;
-  try {
-    read = readThreeMfBodies(input.threeMf, input.inflateRaw);
-  } catch (err) {
-    if (!(err instanceof ThreeMfProofError)) throw err;
-    rules.push({ rule: "three_mf", pass: false, message: err.message });
+/** 8. The 3MF read back holds the same bodies, shell for shell: count, triangles, bounds within 1e-3 mm, volume. */
+function threeMfRule(read: ThreeMfRead | ThreeMfProofError, bodies: Body[], rules: ProofRule[], done: () => Proof): Proof {
+  if (read instanceof ThreeMfProofError) {
+    rules.push({ rule: "three_mf", pass: false, message: read.message });
     return done();
   }
   if (read.problems.length) {
     rules.push({ rule: "three_mf", pass: false, message: `The 3MF does not read cleanly: ${read.problems.slice(0, 3).join(" ")}` });
     return done();
   }
-  if (read.bodies.length !== bodies.length) {
-    rules.push({ rule: "three_mf", pass: false, figure: read.bodies.length, message: `The 3MF holds ${read.bodies.length} bodies, the STL ${bodies.length}.` });
+  // Shell for shell: the 3MF's meshes split where their triangles share no vertex, as the STL's bodies are.
+  const shells = read.shells;
+  if (shells.length !== bodies.length) {
+    rules.push({ rule: "three_mf", pass: false, figure: shells.length, message: `The 3MF holds ${shells.length} bodies, the STL ${bodies.length}.` });
     return done();
   }
-  const byCount = new Map<number, typeof read.bodies>();
-  for (const b of read.bodies) byCount.set(b.triangles, [...(byCount.get(b.triangles) ?? []), b]);
+  const byCount = new Map<number, typeof shells>();
+  for (const b of shells) byCount.set(b.triangles, [...(byCount.get(b.triangles) ?? []), b]);
   const close = (a: number[], b: number[]) => a.every((x, i) => Math.abs(x - b[i]!) <= 1e-3);
   for (const b of bodies) {
     const list = byCount.get(b.tris.length) ?? [];
-    const i = list.findIndex((x) => close(x.min, b.min) && close(x.max, b.max));
+    // Corners 1e-3 mm apart (what the bounds allow) move a closed surface's volume by at most
+    // √3·1e-3 mm × its area: the volume's first variation is the normal displacement over the surface.
+    const i = list.findIndex((x) => close(x.min, b.min) && close(x.max, b.max) && Math.abs(x.volume - b.volume) <= 2e-3 * b.area + 1e-9);
     if (i < 0) {
-      rules.push({ rule: "three_mf", pass: false, message: `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm).` });
+      rules.push({ rule: "three_mf", pass: false, message: `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm, ${fmt(b.volume, 1)} mm³).` });
       return done();
     }
     list.splice(i, 1);
   }
-  rules.push({ rule: "three_mf", pass: true, figure: read.bodies.length, message: `The 3MF holds the same ${read.bodies.length} bodies (triangles and bounds).` });
+  rules.push({ rule: "three_mf", pass: true, figure: shells.length, message: `The 3MF holds the same ${shells.length} bodies (triangles, bounds and volume).` });
   return done();
 }
 
@@ -404,9 +433,17 @@ function clipBelow(tri: [number, number, number][], top: number): Ring {
   return out;
 }
 
-function flat(tris: Uint32Array, tri2d: (t: number) => Float64Array): Float64Array {
+/** Triangles seen from above: x, y of their three corners, six numbers each. */
+function flat(tris: Uint32Array, P: Float32Array, T: Uint32Array): Float64Array {
   const out = new Float64Array(tris.length * 6);
-  tris.forEach((t, i) => out.set(tri2d(t), 6 * i));
+  for (let i = 0; i < tris.length; i++) {
+    const t = tris[i]!;
+    for (let c = 0; c < 3; c++) {
+      const v = 3 * T[3 * t + c]!;
+      out[6 * i + 2 * c] = P[v]!;
+      out[6 * i + 2 * c + 1] = P[v + 1]!;
+    }
+  }
   return out;
 }
 
@@ -414,12 +451,133 @@ const centre = (b: Body): [number, number] => [(b.min[0] + b.max[0]) / 2, (b.min
 const cap = (s: string) => s.charAt(0).toUpperCase() + s.slice(1);
 const short = (s: string) => (s.length > 60 ? `${s.slice(0, 57)}…` : s);
 
-function labelOf(labels: ProofInput["labels"], b: Body): string {
-  const [x, y] = centre(b);
-  let best: { number: number; d: number } | null = null;
-  for (const l of labels ?? []) {
-    const d = Math.hypot((l.bounds.minX + l.bounds.maxX) / 2 - x, (l.bounds.minY + l.bounds.maxY) / 2 - y);
-    if (!best || d < best.d) best = { number: l.number, d };
+/**
+ * Which piece each outer body is: first a label whose centre is within 1 mm of the body's (a piece of
+ * one shell), then, for a piece of several shells, a label whose bounds hold the body (the smallest
+ * such); as many bodies per piece as it has shells. Any other body is a piece of its own (−1 − i).
+ */
+function pieceGroups(outer: Body[], labels: NonNullable<ProofInput["labels"]>, shellsOf: (i: number) => number): Map<Body, number> {
+  const out = new Map<Body, number>();
+  const taken = new Uint32Array(labels.length);
+  const centreOf = (l: Box2) => [(l.minX + l.maxX) / 2, (l.minY + l.maxY) / 2] as const;
+  for (const b of outer) {
+    const [x, y] = centre(b);
+    let best = -1, bestD = 1;
+    labels.forEach((l, i) => {
+      const [lx, ly] = centreOf(l.bounds);
+      const d = Math.hypot(lx - x, ly - y);
+      if (d < bestD) (best = i), (bestD = d);
+    });
+    if (best >= 0 && taken[best]! < shellsOf(best)) {
+      out.set(b, best);
+      taken[best]!++;
+    }
   }
-  return best && best.d < 1 ? `piece ${best.number} (at ${at(x, y)})` : `the piece at ${at(x, y)}`;
+  const margin = 0.05; // the layout's bounds come from the part's hull: the same corners, rounded apart at most by float32
+  outer.forEach((b, k) => {
+    if (out.has(b)) return;
+    let best = -1, bestArea = Infinity;
+    labels.forEach((l, i) => {
+      const r = l.bounds;
+      if (shellsOf(i) < 2 || taken[i]! >= shellsOf(i)) return;
+      if (b.min[0] < r.minX - margin || b.min[1] < r.minY - margin || b.max[0] > r.maxX + margin || b.max[1] > r.maxY + margin) return;
+      const area = (r.maxX - r.minX) * (r.maxY - r.minY);
+      if (area < bestArea) (best = i), (bestArea = area);
+    });
+    if (best >= 0) taken[best]!++;
+    out.set(b, best >= 0 ? best : -1 - k);
+  });
+  return out;
+}
+
+function labelOf(labels: NonNullable<ProofInput["labels"]>, group: number, b: Body): string {
+  const [x, y] = centre(b);
+  const l = group >= 0 ? labels[group] : undefined;
+  return l ? `piece ${l.number} (at ${at(x, y)})` : `the piece at ${at(x, y)}`;
+}
+
+/** The triangles (of `tris`) whose corners all lie at or below z = `atMost`. */
+function flatAt(tris: Uint32Array, atMost: number, P: Float32Array, T: Uint32Array): Uint32Array {
+  const out = new Uint32Array(tris.length);
+  let n = 0;
+  for (let i = 0; i < tris.length; i++) {
+    const t = tris[i]!;
+    if (Math.max(P[3 * T[3 * t]! + 2]!, P[3 * T[3 * t + 1]! + 2]!, P[3 * T[3 * t + 2]! + 2]!) <= atMost) out[n++] = t;
+  }
+  return out.subarray(0, n);
+}
+
+/** The slab's upward faces, highest first (by their highest corner), seen from above with their boxes. */
+type SlabTop = { tris: Uint32Array; z: Float64Array; xy: Float64Array; box: Float64Array };
+function slabTop(up: Uint32Array, P: Float32Array, T: Uint32Array): SlabTop {
+  const zOf = (t: number) => Math.max(P[3 * T[3 * t]! + 2]!, P[3 * T[3 * t + 1]! + 2]!, P[3 * T[3 * t + 2]! + 2]!);
+  const order = Array.from(up, (t) => ({ t, z: zOf(t) })).sort((a, b) => b.z - a.z);
+  const tris = Uint32Array.from(order, (e) => e.t);
+  const z = Float64Array.from(order, (e) => e.z);
+  const xy = flat(tris, P, T);
+  const box = new Float64Array(4 * tris.length);
+  for (let k = 0; k < tris.length; k++) {
+    const o6 = 6 * k;
+    box[4 * k] = Math.min(xy[o6]!, xy[o6 + 2]!, xy[o6 + 4]!);
+    box[4 * k + 1] = Math.min(xy[o6 + 1]!, xy[o6 + 3]!, xy[o6 + 5]!);
+    box[4 * k + 2] = Math.max(xy[o6]!, xy[o6 + 2]!, xy[o6 + 4]!);
+    box[4 * k + 3] = Math.max(xy[o6 + 1]!, xy[o6 + 3]!, xy[o6 + 5]!);
+  }
+  return { tris, z, xy, box };
+}
+
+/**
+ * The highest slab face under a piece, or null: above the asked surface (`asked`) anything under its
+ * shadow counts (an embossed mark under an overhang); at or below it, what lies under its bottom
+ * facets. Faces below `floor` are far below: nothing closer lies under this piece.
+ */
+function highestUnder(p: Piece, top: SlabTop, asked: number, floor: number, shadowGrid: (p: Piece) => TriGrid): number | null {
+  const { z: zs, box, xy } = top;
+  for (let k = 0; k < zs.length; k++) {
+    const z = zs[k]!;
+    if (z < floor) break;
+    if (box[4 * k]! >= p.box.maxX - 1e-3 || box[4 * k + 2]! <= p.box.minX + 1e-3 || box[4 * k + 1]! >= p.box.maxY - 1e-3 || box[4 * k + 3]! <= p.box.minY + 1e-3) continue;
+    const tri = xy.subarray(6 * k, 6 * k + 6);
+    if (!p.convex.overlaps(tri, 1e-3)) continue;
+    const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
+    if (hit) return z;
+  }
+  return null;
+}
+
+/** The lowest flat upward face (floors are flat: a wall a hair off vertical also faces up a little, and is not one). */
+function lowestFlat(up: Uint32Array, tol: number, P: Float32Array, T: Uint32Array): { z: number; at: [number, number] } {
+  let minFloor = Infinity, at: [number, number] = [0, 0];
+  for (let i = 0; i < up.length; i++) {
+    const t = up[i]!;
+    const za = P[3 * T[3 * t]! + 2]!, zb = P[3 * T[3 * t + 1]! + 2]!, zc = P[3 * T[3 * t + 2]! + 2]!;
+    if (Math.max(za, zb, zc) - Math.min(za, zb, zc) > tol) continue;
+    const z = Math.min(za, zb, zc);
+    if (z < minFloor) (minFloor = z), (at = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
+  }
+  return { z: minFloor, at };
+}
+
+/** Triangles facing up, and those facing down (in their order), by `facing` (see connectedBodies). */
+function splitFacing(tris: Uint32Array, facing: Int8Array): { up: Uint32Array; down: Uint32Array } {
+  // Up-facing from the front of one buffer, down-facing from its back (then put back in order).
+  const buf = new Uint32Array(tris.length);
+  let nu = 0, nd = 0;
+  for (let i = 0; i < tris.length; i++) {
+    const t = tris[i]!;
+    const f = facing[t]!;
+    if (f > 0) buf[nu++] = t;
+    else if (f < 0) buf[tris.length - ++nd] = t;
+  }
+  return { up: buf.subarray(0, nu), down: buf.subarray(tris.length - nd).reverse() };
+}
+
+/** The corners' x, y (each corner once), into `into`. */
+function shadowPoints(verts: Uint32Array, P: Float32Array, into: Float64Array): Float64Array {
+  for (let i = 0; i < verts.length; i++) {
+    const v = 3 * verts[i]!;
+    into[2 * i] = P[v]!;
+    into[2 * i + 1] = P[v + 1]!;
+  }
+  return into.subarray(0, 2 * verts.length);
 }

@@ -31,7 +31,9 @@ export function heightRaster(positions: Float32Array, tris: Uint32Array, triIds:
       const y = region.minY + (r + 0.5) / pxPerMm;
       // Where the scanline crosses the three edges.
       let x0 = Infinity, x1 = -Infinity;
-      for (const [px, py, qx, qy] of [[ax, ay, bx, by], [bx, by, cx, cy], [cx, cy, ax, ay]] as const) {
+      for (let e = 0; e < 3; e++) {
+        const px = e === 0 ? ax : e === 1 ? bx : cx, py = e === 0 ? ay : e === 1 ? by : cy;
+        const qx = e === 0 ? bx : e === 1 ? cx : ax, qy = e === 0 ? by : e === 1 ? cy : ay;
         if ((py <= y && y <= qy) || (qy <= y && y <= py)) {
           const x = py === qy ? Math.min(px, qx) : px + ((y - py) / (qy - py)) * (qx - px);
           const xe = py === qy ? Math.max(px, qx) : x;

@@ -1,4 +1,4 @@
-import { Unzip, unzipSync, type UnzipDecoder } from "fflate";
+import { inflateSync, unzipSync } from "fflate";
 
 /**
  * The proof's own 3MF reader: enough of the 3MF Core Specification (1.4.0) to count what a build
@@ -15,7 +15,13 @@ const REL_MODEL = "http://schemas.microsoft.com/3dmanufacturing/2013/01/3dmodel"
 const UNIT_MM: Record<string, number> = { micron: 0.001, millimeter: 1, centimeter: 10, inch: 25.4, foot: 304.8, meter: 1000 };
 
 export type ThreeMfBody = { objectId: string; name: string; triangles: number; min: [number, number, number]; max: [number, number, number] };
-export type ThreeMfRead = { unit: string; bodies: ThreeMfBody[]; problems: string[] };
+/**
+ * One connected shell of a placed mesh (triangles that share a vertex index), in millimetres: a mesh
+ * object may hold several (a part made of several bodies, a hollow part's outer and inner shell).
+ * `volume` is signed: an inside-out shell (a void) counts negative.
+ */
+export type ThreeMfShell = { objectId: string; triangles: number; min: [number, number, number]; max: [number, number, number]; volume: number };
+export type ThreeMfRead = { unit: string; bodies: ThreeMfBody[]; shells: ThreeMfShell[]; problems: string[] };
 
 export class ThreeMfProofError extends Error {
   constructor(message: string) {
@@ -178,70 +184,121 @@ function compose(a: Matrix, b: Matrix): Matrix {
   return out;
 }
 
-type MeshObject = { id: string; name: string; verts: Float64Array; nv: number; triangles: number };
+type MeshObject = {
+  id: string;
+  name: string;
+  verts: Float64Array;
+  nv: number;
+  triangles: number;
+  /** Vertex indices of the well-formed triangles, three each. */
+  tris: Uint32Array;
+  nt: number;
+  /** After the mesh closes: each vertex's shell, and per shell its triangles and signed local volume. */
+  shellOf?: Int32Array;
+  shells?: { triangles: number; volume: number }[];
+};
 type ComponentsObject = { id: string; name: string; components: { objectId: string; transform: Matrix }[] };
 
-/** Raw DEFLATE (RFC 1951) decoder, e.g. node:zlib's `inflateRawSync`, faster than fflate's on big models. */
-export type InflateRaw = (data: Uint8Array) => Uint8Array;
+/**
+ * Raw DEFLATE (RFC 1951) decoder, e.g. node:zlib's `inflateRawSync`, faster than fflate's on big
+ * models. `size` is what the zip directory says the entry expands to: a hint for the output buffer,
+ * never trusted (the result's length is checked against it).
+ */
+export type InflateRaw = (data: Uint8Array, size?: number) => Uint8Array;
+
+/** An entry as the zip's central directory lists it (PKWARE APPNOTE.TXT §4.3.12). */
+type ZipEntryRef = { method: number; compressed: number; size: number; offset: number };
 
 /**
- * Entries of a zip package by name. fflate reads the package; DEFLATE'd entries are expanded by
- * `inflateRaw` when one is given (a decoder registered with fflate's Unzip), else by fflate itself.
+ * The central directory of a zip package, read in place (APPNOTE §4.3.16 end record, §4.3.12 file
+ * headers). Null for what this small reader leaves to fflate: ZIP64, split archives, encryption.
  */
-function unzipEntry(bytes: Uint8Array, name: string, inflateRaw?: InflateRaw): Uint8Array | undefined {
-  try {
-    if (!inflateRaw) return unzipSync(bytes, { filter: (f) => f.name === name })[name];
-    let found: Uint8Array | undefined;
-    let failure: unknown;
-    const unzip = new Unzip((file) => {
-      if (file.name !== name) return;
-      const chunks: Uint8Array[] = [];
-      file.ondata = (err, chunk, final) => {
-        if (err) failure = err;
-        chunks.push(chunk);
-        if (final) found = chunks.length === 1 ? chunks[0] : concat(chunks);
-      };
-      file.start();
-    });
-    unzip.register(decoderWith(inflateRaw));
-    unzip.push(bytes, true);
-    if (failure) throw failure;
-    return found;
-  } catch (err) {
-    throw new ThreeMfProofError(`The 3MF is not a readable zip package (${err instanceof Error ? err.message : String(err)}).`);
-  }
-}
-
-function decoderWith(inflateRaw: InflateRaw) {
-  return class implements UnzipDecoder {
-    static compression = 8;
-    private chunks: Uint8Array[] = [];
-    ondata: UnzipDecoder["ondata"] = () => {};
-    push(chunk: Uint8Array, final: boolean) {
-      this.chunks.push(chunk.slice());
-      if (!final) return;
-      let out: Uint8Array;
-      try {
-        out = inflateRaw(this.chunks.length === 1 ? this.chunks[0]! : concat(this.chunks));
-      } catch (err) {
-        this.ondata(err instanceof Error ? Object.assign(err, { code: 0 }) : null, new Uint8Array(0), true);
-        return;
-      }
-      this.ondata(null, out as Uint8Array<ArrayBuffer>, true);
+function zipDirectory(bytes: Uint8Array): Map<string, ZipEntryRef> | null {
+  const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  let end = -1;
+  for (let i = bytes.length - 22; i >= Math.max(0, bytes.length - 22 - 0xffff); i--) {
+    if (v.getUint32(i, true) === 0x06054b50) {
+      end = i;
+      break;
     }
-  };
-}
-
-function concat(chunks: Uint8Array[]): Uint8Array {
-  const out = new Uint8Array(chunks.reduce((s, c) => s + c.length, 0));
-  let o = 0;
-  for (const c of chunks) (out.set(c, o), (o += c.length));
+  }
+  if (end < 0) return null;
+  const count = v.getUint16(end + 10, true);
+  let at = v.getUint32(end + 16, true);
+  if (v.getUint16(end + 4, true) !== 0 || count === 0xffff || at === 0xffffffff) return null;
+  const out = new Map<string, ZipEntryRef>();
+  for (let k = 0; k < count; k++) {
+    if (at + 46 > bytes.length || v.getUint32(at, true) !== 0x02014b50) return null;
+    const flags = v.getUint16(at + 8, true);
+    const method = v.getUint16(at + 10, true);
+    const compressed = v.getUint32(at + 20, true), size = v.getUint32(at + 24, true);
+    const nameLen = v.getUint16(at + 28, true), extraLen = v.getUint16(at + 30, true), commentLen = v.getUint16(at + 32, true);
+    const offset = v.getUint32(at + 42, true);
+    if (flags & 1 || compressed === 0xffffffff || size === 0xffffffff || offset === 0xffffffff) return null;
+    const name = (flags & 0x800 ? utf8 : latin1).decode(bytes.subarray(at + 46, at + 46 + nameLen));
+    out.set(name, { method, compressed, size, offset });
+    at += 46 + nameLen + extraLen + commentLen;
+  }
   return out;
 }
 
-/** Read the build of a 3MF package: every mesh it places, with its triangle count and bounds (mm). */
-export function readThreeMfBodies(bytes: Uint8Array, inflateRaw?: InflateRaw): ThreeMfRead {
-  const rels = unzipEntry(bytes, "_rels/.rels", inflateRaw);
+/** Raw DEFLATE off the calling thread, e.g. node:zlib's `inflateRaw` (its thread pool); `size` as for InflateRaw. */
+export type InflateRawAsync = (data: Uint8Array, size?: number) => Promise<Uint8Array>;
+
+/** An entry's stored bytes, found through the central directory, and what they expand to. */
+type StoredEntry = { name: string; data: Uint8Array; method: number; size: number; compressed: number };
+
+function storedEntry(bytes: Uint8Array, e: ZipEntryRef, name: string): StoredEntry {
+  const v = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  if (e.offset + 30 > bytes.length || v.getUint32(e.offset, true) !== 0x04034b50) throw new Error(`no local header for ${name}`);
+  const from = e.offset + 30 + v.getUint16(e.offset + 26, true) + v.getUint16(e.offset + 28, true);
+  if (from + e.compressed > bytes.length) throw new Error(`${name} runs past the end of the package`);
+  if (e.method !== 0 && e.method !== 8) throw new Error(`${name} uses compression method ${e.method}`);
+  return { name, data: bytes.subarray(from, from + e.compressed), method: e.method, size: e.size, compressed: e.compressed };
+}
+
+/**
+ * The size to allocate by: DEFLATE expands at most 1032 : 1 (zlib's technical notes: a 258-byte match
+ * in about 2 bits), so a size past that, or past 1 GiB, is no hint.
+ */
+const sizeHint = (e: StoredEntry) => (e.size <= Math.min(1032 * e.compressed + 1024, 2 ** 30) ? e.size : undefined);
+
+function expanded(e: StoredEntry, out: Uint8Array): Uint8Array {
+  if (out.length !== e.size) throw new Error(`${e.name} expands to ${out.length} bytes where the directory says ${e.size}`);
+  return out;
+}
+
+const notZip = (err: unknown) => new ThreeMfProofError(`The 3MF is not a readable zip package (${err instanceof Error ? err.message : String(err)}).`);
+
+/**
+ * Entries of a zip package by name: found through the central directory and expanded straight from
+ * the package's bytes (by `inflateRaw` when given, else by fflate); a package this reader leaves
+ * alone is read by fflate's unzip.
+ */
+function unzipEntry(bytes: Uint8Array, dir: Map<string, ZipEntryRef> | null, name: string, inflateRaw?: InflateRaw): Uint8Array | undefined {
+  try {
+    if (!dir) return unzipSync(bytes, { filter: (f) => f.name === name })[name];
+    const ref = dir.get(name);
+    if (!ref) return undefined;
+    const e = storedEntry(bytes, ref, name);
+    if (e.method === 0) return expanded(e, e.data);
+    return expanded(e, inflateRaw ? inflateRaw(e.data, sizeHint(e)) : inflateSync(e.data));
+  } catch (err) {
+    throw notZip(err);
+  }
+}
+
+function directoryOf(bytes: Uint8Array): Map<string, ZipEntryRef> | null {
+  try {
+    return zipDirectory(bytes);
+  } catch {
+    return null; // a directory that runs past the bytes: left to fflate, which says what is wrong
+  }
+}
+
+/** The model part the package's relationships name (OPC: `_rels/.rels`, type …/3dmodel). */
+function modelTarget(bytes: Uint8Array, dir: Map<string, ZipEntryRef> | null, inflateRaw?: InflateRaw): string {
+  const rels = unzipEntry(bytes, dir, "_rels/.rels", inflateRaw);
   if (!rels) throw new ThreeMfProofError("The 3MF has no _rels/.rels part (OPC requires it to name the model).");
   let target: string | undefined;
   for (const t of tags(rels)) {
@@ -251,9 +308,53 @@ export function readThreeMfBodies(bytes: Uint8Array, inflateRaw?: InflateRaw): T
     if (type && tg && text(rels, type) === REL_MODEL) target = text(rels, tg).replace(/^\//, "");
   }
   if (!target) throw new ThreeMfProofError("The 3MF's relationships name no 3D model part.");
-  const model = unzipEntry(bytes, target, inflateRaw);
-  if (!model) throw new ThreeMfProofError(`The 3MF names ${target} as its model, but the package has no such part.`);
+  return target;
+}
+const noModel = (target: string) => new ThreeMfProofError(`The 3MF names ${target} as its model, but the package has no such part.`);
+
+/** Read the build of a 3MF package: every mesh it places, with its triangle count and bounds (mm). */
+export function readThreeMfBodies(bytes: Uint8Array, inflateRaw?: InflateRaw): ThreeMfRead {
+  const dir = directoryOf(bytes);
+  const target = modelTarget(bytes, dir, inflateRaw);
+  const model = unzipEntry(bytes, dir, target, inflateRaw);
+  if (!model) throw noModel(target);
   return readModel(model);
+}
+
+/**
+ * As readThreeMfBodies, the model part (tens of megabytes of XML) expanded by `inflateRawAsync` while
+ * the caller goes on with other work; the small parts and the reading stay on the calling thread.
+ * Rejects with ThreeMfProofError as readThreeMfBodies throws.
+ */
+export function readThreeMfBodiesAsync(bytes: Uint8Array, inflateRawAsync: InflateRawAsync, inflateRaw?: InflateRaw): Promise<ThreeMfRead> {
+  try {
+    const dir = directoryOf(bytes);
+    const target = modelTarget(bytes, dir, inflateRaw);
+    const ref = dir?.get(target);
+    if (!dir || !ref) return Promise.resolve(readThreeMfBodies(bytes, inflateRaw));
+    let e: StoredEntry;
+    try {
+      e = storedEntry(bytes, ref, target);
+    } catch (err) {
+      throw notZip(err);
+    }
+    if (e.method === 0) return Promise.resolve(readModel(expandedOr(e, e.data)));
+    return inflateRawAsync(e.data, sizeHint(e)).then(
+      (out) => readModel(expandedOr(e, out)),
+      (err: unknown) => {
+        throw notZip(err);
+      },
+    );
+  } catch (err) {
+    return Promise.reject(err);
+  }
+}
+function expandedOr(e: StoredEntry, out: Uint8Array): Uint8Array {
+  try {
+    return expanded(e, out);
+  } catch (err) {
+    throw notZip(err);
+  }
 }
 
 export function readModel(b: Uint8Array): ThreeMfRead {
@@ -264,7 +365,8 @@ export function readModel(b: Uint8Array): ThreeMfRead {
   let unit = "millimeter";
   let seenModel = false;
   let object: { id: string; name: string } | null = null;
-  let mesh: MeshObject | null = null;
+  // The mesh being read (filled by the runs of hot elements).
+  let run: MeshRun | null = null;
   let group: ComponentsObject | null = null;
   let inBuild = false;
   const attr = (t: Tag, n: string) => t.attrs.find((a) => a.name === n);
@@ -278,52 +380,27 @@ export function readModel(b: Uint8Array): ThreeMfRead {
     }
     return m;
   };
-  const V = "vertex", TRI = "triangle";
-  const isName = (at: number, word: string) => {
-    for (let k = 0; k < word.length; k++) if (b[at + k] !== word.charCodeAt(k)) return false;
-    return isSpace(b[at + word.length] ?? 0);
-  };
-  const nums = new Float64Array(3);
-  for (let i = b.indexOf(60); i >= 0 && i < b.length; i = b.indexOf(60, i)) {
-    if (isName(i + 1, V)) {
-      i = numbersAt(b, i + 1 + V.length, nums);
-      if (!mesh) continue;
-      const x = nums[0]!, y = nums[1]!, z = nums[2]!;
-      if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) {
-        if (problems.length < 20) problems.push(`Object ${mesh.id}: vertex ${mesh.nv + 1} is not three numbers.`);
-        continue;
-      }
-      if (3 * mesh.nv + 3 > mesh.verts.length) {
-        const grown = new Float64Array(mesh.verts.length * 2);
-        grown.set(mesh.verts);
-        mesh.verts = grown;
-      }
-      mesh.verts[3 * mesh.nv] = x;
-      mesh.verts[3 * mesh.nv + 1] = y;
-      mesh.verts[3 * mesh.nv + 2] = z;
-      mesh.nv++;
+  const n = b.length;
+  for (let i = b.indexOf(60); i >= 0 && i < n; ) {
+    const c1 = b[i + 1];
+    if (c1 === 118 && isWord(b, i + 1, VERTEX)) {
+      i = vertexRun(b, i, run ?? newRun(), run !== null, problems, object?.id ?? "");
       continue;
     }
-    if (isName(i + 1, TRI)) {
-      i = numbersAt(b, i + 1 + TRI.length, nums);
-      if (!mesh) continue;
-      const v1 = nums[0]!, v2 = nums[1]!, v3 = nums[2]!;
-      // 3MF core §4.1.2: three distinct indices of vertices of this mesh.
-      const ok = Number.isInteger(v1) && Number.isInteger(v2) && Number.isInteger(v3) && v1 >= 0 && v2 >= 0 && v3 >= 0 && v1 < mesh.nv && v2 < mesh.nv && v3 < mesh.nv && v1 !== v2 && v2 !== v3 && v1 !== v3;
-      if (!ok && problems.length < 20) problems.push(`Object ${mesh.id}: triangle ${mesh.triangles + 1} has indices ${v1}, ${v2}, ${v3} (of ${mesh.nv} vertices).`);
-      mesh.triangles++;
+    if (c1 === 116 && isWord(b, i + 1, TRIANGLE)) {
+      i = triangleRun(b, i, run ?? newRun(), run !== null, problems, object?.id ?? "");
       continue;
     }
     const { tag: t, next } = tagAt(b, i);
-    i = next;
+    i = b.indexOf(60, next);
     if (!t) continue;
     const nm = t.name;
     if (nm.includes(":")) continue; // another namespace's element
     if (t.closing) {
       if (nm === "object") {
-        if (mesh) meshes.set(mesh.id, mesh);
+        if (run && object) meshes.set(object.id, withShells({ id: object.id, name: object.name, ...run }));
         if (group) groups.set(group.id, group);
-        object = mesh = group = null;
+        object = group = run = null;
       } else if (nm === "build") inBuild = false;
       continue;
     }
@@ -345,7 +422,7 @@ export function readModel(b: Uint8Array): ThreeMfRead {
         break;
       }
       case "mesh":
-        if (object) mesh = { ...object, verts: new Float64Array(3 * 1024), nv: 0, triangles: 0 };
+        if (object) run = newRun();
         break;
       case "components":
         if (object) group = { ...object, components: [] };
@@ -368,6 +445,7 @@ export function readModel(b: Uint8Array): ThreeMfRead {
   if (!seenModel) throw new ThreeMfProofError("The 3MF's model part has no <model> element.");
   const scale = UNIT_MM[unit] ?? 1;
   const bodies: ThreeMfBody[] = [];
+  const shells: ThreeMfShell[] = [];
   const place = (id: string, m: Matrix, depth: number) => {
     if (depth > 16) {
       problems.push(`Object ${id}: components nest more than 16 deep (a cycle?).`);
@@ -375,7 +453,7 @@ export function readModel(b: Uint8Array): ThreeMfRead {
     }
     const me = meshes.get(id);
     if (me) {
-      bodies.push(bodyOf(me, m, scale));
+      bodies.push(bodyOf(me, m, scale, shells));
       return;
     }
     const g = groups.get(id);
@@ -386,20 +464,264 @@ export function readModel(b: Uint8Array): ThreeMfRead {
     for (const c of g.components) place(c.objectId, compose(c.transform, m), depth + 1);
   };
   for (const it of items) place(it.objectId, it.transform, 0);
-  return { unit, bodies, problems };
+  return { unit, bodies, shells, problems };
 }
 
-function bodyOf(me: MeshObject, m: Matrix, scale: number): ThreeMfBody {
-  const min: [number, number, number] = [Infinity, Infinity, Infinity];
-  const max: [number, number, number] = [-Infinity, -Infinity, -Infinity];
+/** A mesh's vertices, its well-formed triangles (three indices each) and every triangle counted. */
+type MeshRun = {
+  verts: Float64Array;
+  nv: number;
+  tris: Uint32Array;
+  nt: number;
+  triangles: number;
+  /** Union-find over the vertices, joined as the triangles are read; `joins` successful unions. */
+  parent?: Int32Array;
+  joins: number;
+  /** Six times the signed volume of all well-formed triangles, summed as they are read. */
+  volume6: number;
+};
+
+const VERTEX = Uint8Array.from("vertex", (c) => c.charCodeAt(0));
+const TRIANGLE = Uint8Array.from("triangle", (c) => c.charCodeAt(0));
+/** Does the element name `word` start at `at`, followed by a space? */
+function isWord(b: Uint8Array, at: number, word: Uint8Array): boolean {
+  for (let k = 1; k < word.length; k++) if (b[at + k] !== word[k]) return false;
+  return isSpace(b[at + word.length] ?? 0);
+}
+/** The next `<` from `j`: mostly the next line's first byte. */
+const onward = (b: Uint8Array, j: number) => (b[j] === 60 ? j : b[j] === 10 && b[j + 1] === 60 ? j + 1 : b.indexOf(60, j));
+const NUMS = new Float64Array(3);
+const newRun = (): MeshRun => ({ verts: new Float64Array(3 * 1024), nv: 0, tris: new Uint32Array(3 * 2048), nt: 0, triangles: 0, parent: undefined, joins: 0, volume6: 0 });
+
+/**
+ * `<vertex>` elements one after another from `i` (a `<`), into the mesh (outside a mesh they are
+ * read past): the loop a model spends its time in, kept small. Returns where the next other tag starts.
+ */
+function vertexRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, problems: string[], id: string): number {
+  const nums = NUMS;
+  let verts = run.verts, nv = run.nv;
+  while (i >= 0 && b[i + 1] === 118 && isWord(b, i + 1, VERTEX)) {
+    let j = fastNumbers(b, i + 7, nums, 1);
+    if (j < 0) j = numbersAt(b, i + 7, nums);
+    i = onward(b, j);
+    if (!keep) continue;
+    const x = nums[0]!, y = nums[1]!, z = nums[2]!;
+    if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) {
+      if (problems.length < 20) problems.push(`Object ${id}: vertex ${nv + 1} is not three numbers.`);
+      continue;
+    }
+    if (3 * nv + 3 > verts.length) {
+      const grown = new Float64Array(verts.length * 2);
+      grown.set(verts);
+      verts = grown;
+    }
+    verts[3 * nv] = x;
+    verts[3 * nv + 1] = y;
+    verts[3 * nv + 2] = z;
+    nv++;
+  }
+  run.verts = verts;
+  run.nv = nv;
+  return i;
+}
+
+/**
+ * `<triangle>` elements one after another from `i`, as `vertexRun`; only well-formed ones are kept.
+ * Their vertices are joined (union-find) and their volume summed on the way, while they are in cache.
+ */
+function triangleRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, problems: string[], id: string): number {
+  const nums = NUMS;
+  let tris = run.tris, nt = run.nt, triangles = run.triangles, joins = run.joins, vol = run.volume6;
+  const nv = run.nv;
+  const p = run.verts;
+  let parent = run.parent;
+  if (!parent || parent.length !== nv) {
+    // Vertices come before triangles (3MF core §4.1); a mesh that adds more later starts over.
+    parent = new Int32Array(nv);
+    for (let v = 0; v < nv; v++) parent[v] = v;
+    joins = 0;
+    for (let k = 0; k < 3 * nt; k += 3) joins += join(parent, tris[k]!, tris[k + 1]!) + join(parent, tris[k]!, tris[k + 2]!);
+  }
+  const up = parent;
+  while (i >= 0 && b[i + 1] === 116 && isWord(b, i + 1, TRIANGLE)) {
+    let j = fastNumbers(b, i + 9, nums, 2);
+    if (j < 0) j = numbersAt(b, i + 9, nums);
+    i = onward(b, j);
+    if (!keep) continue;
+    const v1 = nums[0]!, v2 = nums[1]!, v3 = nums[2]!;
+    triangles++;
+    // 3MF core §4.1.2: three distinct indices of vertices of this mesh.
+    const ok = Number.isInteger(v1) && Number.isInteger(v2) && Number.isInteger(v3) && v1 >= 0 && v2 >= 0 && v3 >= 0 && v1 < nv && v2 < nv && v3 < nv && v1 !== v2 && v2 !== v3 && v1 !== v3;
+    if (!ok) {
+      if (problems.length < 20) problems.push(`Object ${id}: triangle ${triangles} has indices ${v1}, ${v2}, ${v3} (of ${nv} vertices).`);
+      continue;
+    }
+    if (3 * nt + 3 > tris.length) {
+      const grown = new Uint32Array(tris.length * 2);
+      grown.set(tris);
+      tris = grown;
+    }
+    tris[3 * nt] = v1;
+    tris[3 * nt + 1] = v2;
+    tris[3 * nt + 2] = v3;
+    nt++;
+    joins += join(up, v1, v2) + join(up, v1, v3);
+    const a = 3 * v1, c = 3 * v2, d = 3 * v3;
+    const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!, bx = p[c]!, by = p[c + 1]!, bz = p[c + 2]!, cx = p[d]!, cy = p[d + 1]!, cz = p[d + 2]!;
+    vol += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+  }
+  run.tris = tris;
+  run.nt = nt;
+  run.triangles = triangles;
+  run.parent = parent;
+  run.joins = joins;
+  run.volume6 = vol;
+  return i;
+}
+
+/** Union-find root, halving the path on the way. */
+function root(parent: Int32Array, x: number): number {
+  while (parent[x] !== x) {
+    const g = parent[parent[x]!]!;
+    parent[x] = g;
+    x = g;
+  }
+  return x;
+}
+/** Join two vertices' sets under the smaller root: 1 if they were apart. */
+function join(parent: Int32Array, a: number, b: number): number {
+  const ra = root(parent, a), rb = root(parent, b);
+  if (ra === rb) return 0;
+  if (ra < rb) parent[rb] = ra;
+  else parent[ra] = rb;
+  return 1;
+}
+
+/**
+ * The mesh's connected shells (3MF core §4.1: a mesh object is manifold, its triangles share their
+ * vertices by index), from the union-find the triangles were read into, with each shell's triangles
+ * and signed volume (divergence theorem, tetrahedra from the origin) in the object's own coordinates.
+ * One shell using every vertex, the usual case, needs no second pass.
+ */
+function withShells(me: MeshObject & Partial<MeshRun>): MeshObject {
+  const nv = me.nv, t = me.tris, p = me.verts;
+  let parent = me.parent;
+  if (!parent || parent.length !== nv) {
+    parent = new Int32Array(nv);
+    for (let v = 0; v < nv; v++) parent[v] = v;
+    me.joins = 0;
+    for (let k = 0; k < 3 * me.nt; k += 3) me.joins += join(parent, t[k]!, t[k + 1]!) + join(parent, t[k]!, t[k + 2]!);
+    me.volume6 = undefined;
+  }
+  if (me.nt > 0 && nv - (me.joins ?? 0) === 1 && me.volume6 !== undefined) {
+    me.shellOf = new Int32Array(nv);
+    me.shells = [{ triangles: me.nt, volume: me.volume6 / 6 }];
+    return me;
+  }
+  const shellOfRoot = new Int32Array(nv).fill(-1);
+  const shells: { triangles: number; volume: number }[] = [];
+  for (let i = 0; i < 3 * me.nt; i += 3) {
+    const r = root(parent, t[i]!);
+    let s = shellOfRoot[r]!;
+    if (s < 0) s = shellOfRoot[r] = shells.push({ triangles: 0, volume: 0 }) - 1;
+    const a = 3 * t[i]!, b = 3 * t[i + 1]!, c = 3 * t[i + 2]!;
+    const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!, bx = p[b]!, by = p[b + 1]!, bz = p[b + 2]!, cx = p[c]!, cy = p[c + 1]!, cz = p[c + 2]!;
+    const sh = shells[s]!;
+    sh.triangles++;
+    sh.volume += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+  }
+  for (const sh of shells) sh.volume /= 6;
+  // A vertex no triangle uses belongs to no shell (-1).
+  const shellOf = new Int32Array(nv);
+  for (let v = 0; v < nv; v++) shellOf[v] = shellOfRoot[root(parent, v)]!;
+  me.shellOf = shellOf;
+  me.shells = shells;
+  return me;
+}
+
+/** The mesh placed by `m` (row vectors, 3MF core §3.3), in millimetres: its bounds, and each shell's. */
+function bodyOf(me: MeshObject, m: Matrix, scale: number, into: ThreeMfShell[]): ThreeMfBody {
+  if (!me.shells) withShells(me);
+  const shellOf = me.shellOf!;
+  // A linear map scales volumes by its determinant (a mirror turns them inside out); a translation keeps them.
+  const det = m[0]! * (m[4]! * m[8]! - m[5]! * m[7]!) - m[1]! * (m[3]! * m[8]! - m[5]! * m[6]!) + m[2]! * (m[3]! * m[7]! - m[4]! * m[6]!);
+  const shells = me.shells!;
+  // Per shell: min x, y, z, max x, y, z.
+  const box = new Float64Array(6 * shells.length);
+  for (let k = 0; k < shells.length; k++) box.fill(Infinity, 6 * k, 6 * k + 3).fill(-Infinity, 6 * k + 3, 6 * k + 6);
+  let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
   const v = me.verts;
+  const m00 = m[0]!, m01 = m[1]!, m02 = m[2]!, m10 = m[3]!, m11 = m[4]!, m12 = m[5]!, m20 = m[6]!, m21 = m[7]!, m22 = m[8]!, m30 = m[9]!, m31 = m[10]!, m32 = m[11]!;
   for (let i = 0; i < me.nv; i++) {
     const x = v[3 * i]!, y = v[3 * i + 1]!, z = v[3 * i + 2]!;
-    for (let c = 0; c < 3; c++) {
-      const s = (x * m[c]! + y * m[3 + c]! + z * m[6 + c]! + m[9 + c]!) * scale;
-      if (s < min[c]!) min[c] = s;
-      if (s > max[c]!) max[c] = s;
-    }
+    const wx = (x * m00 + y * m10 + z * m20 + m30) * scale, wy = (x * m01 + y * m11 + z * m21 + m31) * scale, wz = (x * m02 + y * m12 + z * m22 + m32) * scale;
+    if (wx < x0) x0 = wx;
+    if (wx > x1) x1 = wx;
+    if (wy < y0) y0 = wy;
+    if (wy > y1) y1 = wy;
+    if (wz < z0) z0 = wz;
+    if (wz > z1) z1 = wz;
+    const s = shellOf[i]!;
+    if (s < 0) continue;
+    const o = 6 * s;
+    if (wx < box[o]!) box[o] = wx;
+    if (wy < box[o + 1]!) box[o + 1] = wy;
+    if (wz < box[o + 2]!) box[o + 2] = wz;
+    if (wx > box[o + 3]!) box[o + 3] = wx;
+    if (wy > box[o + 4]!) box[o + 4] = wy;
+    if (wz > box[o + 5]!) box[o + 5] = wz;
   }
+  shells.forEach((sh, k) => {
+    const o = 6 * k;
+    into.push({ objectId: me.id, triangles: sh.triangles, min: [box[o]!, box[o + 1]!, box[o + 2]!], max: [box[o + 3]!, box[o + 4]!, box[o + 5]!], volume: sh.volume * det * scale ** 3 });
+  });
+  const min: [number, number, number] = [x0, y0, z0], max: [number, number, number] = [x1, y1, z1];
   return { objectId: me.id, name: me.name, triangles: me.triangles, min, max };
+}
+
+/**
+ * The hot elements' usual form, `<vertex x="1.5" y="-2" z="0"/>` or `<triangle v1="0" v2="1"
+ * v3="2"/>` (one space apart, plain decimals of at most 15 digits, which convert exactly as
+ * digits ÷ 10^k), read without a call per byte. Anything else returns −1 and is read by
+ * `numbersAt`. `nameLen` 1 reads x, y, z; 2 reads v1, v2, v3.
+ */
+const POW10 = Float64Array.from({ length: 16 }, (_, k) => Number(`1e${k}`));
+function fastNumbers(b: Uint8Array, j: number, out: Float64Array, nameLen: 1 | 2): number {
+  out[0] = out[1] = out[2] = NaN;
+  for (let k = 0; k < 3; k++) {
+    if (b[j] !== 32) return -1;
+    let slot: number;
+    if (nameLen === 1) {
+      slot = b[j + 1]! - 120; // x
+      j += 2;
+    } else {
+      if (b[j + 1] !== 118) return -1; // v
+      slot = b[j + 2]! - 49; // 1
+      j += 3;
+    }
+    if (!(slot >= 0 && slot <= 2) || b[j] !== 61 || b[j + 1] !== 34) return -1;
+    j += 2;
+    let c = b[j];
+    const neg = c === 45;
+    if (neg) c = b[++j];
+    let mant = 0, digits = 0, frac = 0;
+    while (c !== undefined && c >= 48 && c <= 57) {
+      mant = mant * 10 + (c - 48);
+      digits++;
+      c = b[++j];
+    }
+    if (c === 46) {
+      c = b[++j];
+      while (c !== undefined && c >= 48 && c <= 57) {
+        mant = mant * 10 + (c - 48);
+        digits++;
+        frac++;
+        c = b[++j];
+      }
+    }
+    if (c !== 34 || digits === 0 || digits > 15) return -1;
+    j++;
+    out[slot] = (neg ? -mant : mant) / POW10[frac]!;
+  }
+  return b[j] === 47 && b[j + 1] === 62 ? j + 2 : -1;
 }
