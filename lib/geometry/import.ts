@@ -8,7 +8,7 @@ import { readStl } from "./io/stl-read";
 
 export { detectFormat, IMPORT_LIMITS, sniffFormat, sniffHead, type ImportLimits, type MeshFormat } from "./io/sniff";
 import type { Kernel } from "./kernel";
-import { bounds, signedVolume, type Bounds, type IndexedMesh } from "./mesh";
+import { bounds, combineMeshes, signedVolume, windingNumber, type Bounds, type IndexedMesh } from "./mesh";
 import { applyMerge, badEdges, compact, dropDegenerate, flipAll, orientConsistently, splitShells, weldExact } from "./repair";
 
 export type ImportOptions = {
@@ -37,10 +37,12 @@ export type ImportedBody = {
   name: string;
   mesh: IndexedMesh;
   triangles: number;
-  /** mm³, always positive (inside-out shells are flipped). */
+  /** mm³, always positive (inside-out shells are flipped, but for a hollow's inner walls). */
   volume: number;
   bounds: Bounds;
   genus: number;
+  /** Closed shells in the mesh: 1, or more for a hollow body (its outer skin and each void inside it). */
+  shells: number;
 };
 
 export type ImportResult = {
@@ -84,7 +86,7 @@ export function importMesh(bytes: Uint8Array, kernel: Kernel, options: ImportOpt
 
   for (const obj of raw.objects) {
     checkFinite(obj, file);
-    const shells = cleanObject(obj, scale, kernel, counts, file);
+    const shells = withVoids(cleanObject(obj, scale, kernel, counts, file));
     shells.forEach((mesh, i) => {
       let name = shells.length > 1 ? `${obj.name} ${i + 1}` : obj.name;
       const seen = names.get(name) ?? 0;
@@ -184,7 +186,37 @@ function toleranceWeld(mesh: IndexedMesh, kernel: Kernel): number {
   return m.mergeFromVert.length;
 }
 
-function measure(mesh: IndexedMesh, name: string, kernel: Kernel, file: string, counts: Record<string, number>): ImportedBody {
+type Shell = { mesh: IndexedMesh; volume: number; bounds: Bounds; voids: IndexedMesh[] };
+
+/**
+ * An inside-out shell that lies inside a right-way-out shell of the same object is that body's void
+ * (a hollow part, printed with walls): it is kept, inside out, in the outer shell's mesh. Any other
+ * inside-out shell is the exporter's mistake, and `measure` turns it right way out. Inside is told
+ * by the bounds and the winding number of one of the inner shell's corners (≥ ½).
+ */
+function withVoids(meshes: IndexedMesh[]): (IndexedMesh & { shells?: number })[] {
+  if (meshes.length < 2) return meshes;
+  const shells: Shell[] = meshes.map((mesh) => ({ mesh, volume: signedVolume(mesh), bounds: bounds(mesh), voids: [] }));
+  const inside = (b: Bounds, o: Bounds) => [0, 1, 2].every((k) => b.min[k]! > o.min[k]! && b.max[k]! < o.max[k]!);
+  const kept: Shell[] = [];
+  for (const s of shells) {
+    if (s.volume < 0) {
+      const p = s.mesh.vertProperties;
+      // The smallest right-way-out shell round it (a void belongs to the wall nearest it).
+      const outer = shells
+        .filter((o) => o.volume > 0 && inside(s.bounds, o.bounds) && windingNumber(o.mesh, p[0]!, p[1]!, p[2]!) >= 0.5)
+        .sort((a, b) => a.volume - b.volume)[0];
+      if (outer) {
+        outer.voids.push(s.mesh);
+        continue;
+      }
+    }
+    kept.push(s);
+  }
+  return kept.map((s) => (s.voids.length ? Object.assign(combineMeshes([s.mesh, ...s.voids]), { shells: 1 + s.voids.length }) : s.mesh));
+}
+
+function measure(mesh: IndexedMesh & { shells?: number }, name: string, kernel: Kernel, file: string, counts: Record<string, number>): ImportedBody {
   let volume = signedVolume(mesh);
   const b = bounds(mesh);
   const size = Math.max(b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]);
@@ -206,7 +238,7 @@ function measure(mesh: IndexedMesh, name: string, kernel: Kernel, file: string, 
       const code = (err as { code?: string }).code ?? "unknown";
       throw new MeshImportError("not_manifold", file, `${name} is not a valid solid for the geometry kernel (${code})`, { kernel: code });
     }
-    return { name, mesh, triangles: mesh.triVerts.length / 3, volume, bounds: b, genus: solid.genus() };
+    return { name, mesh: { vertProperties: mesh.vertProperties, triVerts: mesh.triVerts }, triangles: mesh.triVerts.length / 3, volume, bounds: b, genus: solid.genus(), shells: mesh.shells ?? 1 };
   } finally {
     scope.close();
   }

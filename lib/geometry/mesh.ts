@@ -82,3 +82,26 @@ export function combineMeshes(meshes: IndexedMesh[]): IndexedMesh {
   }
   return { vertProperties: v, triVerts: t };
 }
+
+/**
+ * The winding number of a closed mesh about a point: ≈ 1 inside an outward-facing shell, 0 outside
+ * (−1 inside an inside-out one). The sum of the triangles' signed solid angles over 4π, each by
+ * A. Van Oosterom and J. Strackee, "The solid angle of a plane triangle", IEEE Trans. Biomed. Eng.
+ * BME-30(2), 1983: tan(Ω/2) = a·(b×c) / (|a||b||c| + (a·b)|c| + (a·c)|b| + (b·c)|a|).
+ */
+export function windingNumber(mesh: IndexedMesh, x: number, y: number, z: number): number {
+  const p = mesh.vertProperties;
+  const t = mesh.triVerts;
+  let sum = 0;
+  for (let i = 0; i < t.length; i += 3) {
+    const a = t[i]! * 3, b = t[i + 1]! * 3, c = t[i + 2]! * 3;
+    const ax = p[a]! - x, ay = p[a + 1]! - y, az = p[a + 2]! - z;
+    const bx = p[b]! - x, by = p[b + 1]! - y, bz = p[b + 2]! - z;
+    const cx = p[c]! - x, cy = p[c + 1]! - y, cz = p[c + 2]! - z;
+    const la = Math.hypot(ax, ay, az), lb = Math.hypot(bx, by, bz), lc = Math.hypot(cx, cy, cz);
+    const det = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+    const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
+    sum += 2 * Math.atan2(det, den);
+  }
+  return sum / (4 * Math.PI);
+}

@@ -145,7 +145,7 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
         const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
         const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
         const b = bounds(mesh);
-        held = { mesh, shells: imported.bodies.length, read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] } };
+        held = { mesh, shells: imported.bodies.reduce((s, x) => s + x.shells, 0), read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] } };
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
         meshCache.set(cacheKey, held);
       }
