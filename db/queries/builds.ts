@@ -1,6 +1,7 @@
 import { and, eq, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { plates, type Plate } from "@/db/schema";
+import { plateFiles, plates, type Plate } from "@/db/schema";
+import type { ExportFormatId } from "@/lib/geometry/formats";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 
 /**
@@ -25,8 +26,22 @@ export async function setBuildProgress(actor: WorkspaceActor, plateId: string, p
 }
 
 /** The build's outcome on the plate (its files, findings, proof or error), finished at `finishedAt`. */
-export async function finishBuild(actor: WorkspaceActor, plateId: string, set: Partial<typeof plates.$inferInsert>, finishedAt: Date): Promise<void> {
-  await db().update(plates).set({ ...set, progress: 1, finishedAt }).where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
+export async function finishBuild(
+  actor: WorkspaceActor,
+  plateId: string,
+  set: Partial<typeof plates.$inferInsert>,
+  finishedAt: Date,
+  files: { format: ExportFormatId; blobKey: string; bytes: number; sha256: string }[] = [],
+): Promise<void> {
+  // The outcome and the files land together: a ready plate always has its files listed.
+  await db().transaction(async (tx) => {
+    const [row] = await tx.update(plates).set({ ...set, progress: 1, finishedAt }).where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId))).returning({ id: plates.id });
+    if (!row || !files.length) return;
+    await tx
+      .insert(plateFiles)
+      .values(files.map((f) => ({ plateId, ...f })))
+      .onConflictDoUpdate({ target: [plateFiles.plateId, plateFiles.format], set: { blobKey: sql`excluded.blob_key`, bytes: sql`excluded.bytes`, sha256: sql`excluded.sha256` } });
+  });
 }
 
 /** Tell whoever listens on `channel` (a request waiting for the plate) that the plate has changed. */

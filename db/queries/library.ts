@@ -1,7 +1,8 @@
 import "server-only";
 import { and, asc, desc, eq, isNull, max, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { kitParts, kits, plates, templates, templateVersions, users } from "@/db/schema";
+import { plateFiles, kitParts, kits, plates, templates, templateVersions, users } from "@/db/schema";
+import type { ExportFormatId } from "@/lib/geometry/formats";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 
 // Every read is scoped to the actor's workspace; there is no query here without that filter.
@@ -50,8 +51,7 @@ export async function listPlates(actor: WorkspaceActor, filter: { kitId?: string
       findings: plates.findings,
       proofSummary: sql<string | null>`${plates.proof}->>'summary'`,
       proofOk: sql<boolean | null>`(${plates.proof}->>'ok')::boolean`,
-      hasStl: sql<boolean>`${plates.stlBlobKey} is not null`,
-      has3mf: sql<boolean>`${plates.threeMfBlobKey} is not null`,
+      files: sql<ExportFormatId[]>`coalesce((select array_agg(${plateFiles.format}) from ${plateFiles} where ${plateFiles.plateId} = ${plates.id}), '{}')`,
       makerName: users.name,
       makerEmail: users.email,
       templateId: templates.id,

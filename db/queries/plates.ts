@@ -1,7 +1,8 @@
 import "server-only";
 import { and, eq, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { idempotencyKeys, kitParts, kits, parts, plates, type Plate } from "@/db/schema";
+import { idempotencyKeys, kitParts, kits, parts, plateFiles, plates, type Plate } from "@/db/schema";
+import type { ExportFormatId } from "@/lib/geometry/formats";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import { notFound } from "@/lib/errors";
 import type { Tx } from "./tx";
@@ -23,6 +24,16 @@ export async function plateByJob(actor: WorkspaceActor, jobId: string): Promise<
   const [p] = await db().select().from(plates).where(and(eq(plates.jobId, jobId), eq(plates.workspaceId, actor.workspaceId)));
   if (!p) throw notFound("job");
   return p;
+}
+
+/** A plate's stored file in one format, or null (not built yet, failed, or never written in it). */
+export async function plateFileOf(actor: WorkspaceActor, plateId: string, format: ExportFormatId) {
+  const [f] = await db()
+    .select({ blobKey: plateFiles.blobKey, bytes: plateFiles.bytes, sha256: plateFiles.sha256 })
+    .from(plateFiles)
+    .innerJoin(plates, eq(plates.id, plateFiles.plateId))
+    .where(and(eq(plateFiles.plateId, plateId), eq(plateFiles.format, format), eq(plates.workspaceId, actor.workspaceId)));
+  return f ?? null;
 }
 
 export type PlateValues = Omit<typeof plates.$inferInsert, "id" | "workspaceId" | "createdAt">;

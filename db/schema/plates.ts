@@ -1,5 +1,6 @@
 import { sql } from "drizzle-orm";
 import { index, integer, jsonb, pgEnum, pgTable, primaryKey, real, text, timestamp, uniqueIndex } from "drizzle-orm/pg-core";
+import type { ExportFormatId } from "@/lib/geometry/formats";
 import { users } from "./auth";
 import { kits } from "./parts";
 import { workspaces } from "./workspaces";
@@ -72,8 +73,6 @@ export const plates = pgTable(
     findings: jsonb("findings").$type<unknown[]>().notNull().default(sql`'[]'::jsonb`),
     estimates: jsonb("estimates").$type<Record<string, unknown>>(),
     stats: jsonb("stats").$type<Record<string, unknown>>(),
-    stlBlobKey: text("stl_blob_key"),
-    threeMfBlobKey: text("three_mf_blob_key"),
     pieceCount: integer("piece_count").notNull().default(0),
     /** The build job (pg-boss id) and how far it got: queued → running → done | failed. */
     jobId: text("job_id"),
@@ -100,6 +99,26 @@ export const plates = pgTable(
     index("plates_kit_created_idx").on(t.kitId, t.createdAt),
     uniqueIndex("plates_job_key").on(t.jobId),
   ],
+);
+
+/**
+ * A plate's files, one row per format written (lib/geometry/formats.ts): the blob that holds it, its
+ * length and its SHA-256. A new export format needs no column.
+ */
+export const plateFiles = pgTable(
+  "plate_files",
+  {
+    plateId: text("plate_id")
+      .notNull()
+      .references(() => plates.id, { onDelete: "cascade" }),
+    format: text("format").$type<ExportFormatId>().notNull(),
+    blobKey: text("blob_key").notNull(),
+    /** Bytes; null for files stored before this table, whose length was not recorded. */
+    bytes: integer("bytes"),
+    sha256: text("sha256").notNull(),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [primaryKey({ columns: [t.plateId, t.format] }), index("plate_files_blob_idx").on(t.blobKey)],
 );
 
 export type PlateProof = {

@@ -2,9 +2,11 @@ import "server-only";
 import { z } from "zod";
 import type { Plate } from "@/db/schema";
 import type { StreamedForm } from "@/lib/api/multipart";
-import { BadRequest, Conflict, Invalid } from "@/lib/errors";
+import { BadRequest, Conflict, Invalid, NotFound } from "@/lib/errors";
 import type { PlateOrder } from "@/lib/plates/request";
 import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, type ExportFormatId } from "@/lib/geometry/formats";
+import { plateFileOf } from "@/db/queries/plates";
+import type { WorkspaceActor } from "@/lib/auth/actor";
 import { blobStore } from "@/lib/storage";
 import { formatSchema, quantitySchema, unitSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
@@ -99,10 +101,11 @@ export function plateView(p: Plate) {
 }
 
 /** The plate's file with its headers: type, a file name, the plate id and its warnings. */
-export async function plateFile(plate: Plate, format: ExportFormatId): Promise<Response> {
-  const key = format === "stl" ? plate.stlBlobKey : plate.threeMfBlobKey;
-  if (!key || plate.jobState !== "done") throw new Conflict("not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
-  const bytes = await blobStore().get(key);
+export async function plateFile(actor: WorkspaceActor, plate: Plate, format: ExportFormatId): Promise<Response> {
+  if (plate.jobState !== "done") throw new Conflict("not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
+  const file = await plateFileOf(actor, plate.id, format);
+  if (!file) throw new NotFound("no_file", `This plate was not written as ${EXPORT_FORMATS[format].label}.`);
+  const bytes = await blobStore().get(file.blobKey);
   const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
   // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.
   const stem = (plate.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
@@ -112,6 +115,8 @@ export async function plateFile(plate: Plate, format: ExportFormatId): Promise<R
       "Content-Type": EXPORT_FORMATS[format].mime,
       "Content-Disposition": `attachment; filename="${name}"`,
       "Content-Length": String(bytes.byteLength),
+      // The file's SHA-256 as its entity tag (RFC 9110 §8.8.3): the same plate file, the same tag.
+      ETag: `"${file.sha256}"`,
       "X-Plate-Id": plate.id,
       "X-Plate-Warnings": warnings.join(","),
     },

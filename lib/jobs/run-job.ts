@@ -1,4 +1,5 @@
 import type { Piscina } from "piscina";
+import type { ExportFormatId } from "@/lib/geometry/formats";
 import type { plates, Plate } from "@/db/schema";
 import { announcePlate, finishBuild, plateForBuild, setBuildProgress, startBuild } from "@/db/queries/builds";
 import { systemActor } from "@/lib/auth/actor";
@@ -55,24 +56,23 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     return;
   }
   await setBuildProgress(actor, plateId, 0.9);
-  const [stl, tmf] = await Promise.all([blobStore().put(r.stl), blobStore().put(r.threeMf)]);
+  const written: [ExportFormatId, Uint8Array][] = [["stl", r.stl], ["3mf", r.threeMf]];
+  const files = await Promise.all(written.map(async ([format, bytes]) => ({ format, ...(await blobStore().put(bytes)), bytes: bytes.byteLength })));
   await finish(plate, {
     jobState: "done",
     status: "ready",
     floorState: "to_print",
-    stlBlobKey: stl.key,
-    threeMfBlobKey: tmf.key,
     findings: r.findings,
     estimates: r.estimates as unknown as Record<string, unknown>,
     stats: { ...r.stats, layout: r.layout, pieces: r.pieces } as unknown as Record<string, unknown>,
     pieceCount: r.pieces.length,
     proof,
-  });
+  }, files.map((f) => ({ format: f.format, blobKey: f.key, bytes: f.bytes, sha256: f.key })));
 }
 
-async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>) {
+async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>, files?: Parameters<typeof finishBuild>[4]) {
   const finishedAt = new Date();
-  await finishBuild(systemActor(plate.workspaceId), plate.id, set, finishedAt);
+  await finishBuild(systemActor(plate.workspaceId), plate.id, set, finishedAt, files);
   await announcePlate(PLATE_CHANNEL, plate.id);
   if (plate.callbackUrl) {
     const event = {

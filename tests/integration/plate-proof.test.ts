@@ -1,8 +1,9 @@
+import { createHash } from "node:crypto";
 import { readFileSync } from "node:fs";
 import { eq } from "drizzle-orm";
 import { beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
-import { kits, plates, workspaces } from "@/db/schema";
+import { kits, plateFiles, plates, workspaces } from "@/db/schema";
 import { baseUrl } from "../support/http";
 
 // Every plate the worker stores is proven from its exported files (lib/proof); a plate whose files are
@@ -36,6 +37,18 @@ describe("the proof of every plate", () => {
     expect(body.proof.figures).toMatchObject({ bodies: 7, openEdges: 0, qrText: "https://example.com/o/10482" });
     expect(body.proof.rules.map((x) => x.rule)).toEqual(["stl", "closed", "oriented", "volume", "bodies", "on_slab", "apart", "gap", "floor", "qr", "three_mf"]);
     expect(body.proof.summary).toBe("Checked: closed, 7 bodies, every piece on the slab, QR reads back, 3MF matches");
+    // Its files are listed one row per format, with the length and SHA-256 of what is served
+    // (the digest recomputed here with node:crypto, FIPS 180-4), the digest also its ETag.
+    const rows = await db().select().from(plateFiles).where(eq(plateFiles.plateId, id));
+    expect(rows.map((f) => f.format).sort()).toEqual(["3mf", "stl"]);
+    for (const f of rows) {
+      const file = await fetch(`${baseUrl()}/api/v1/plates/${id}/file?format=${f.format}`, { headers: auth });
+      expect(file.status).toBe(200);
+      const bytes = new Uint8Array(await file.arrayBuffer());
+      expect(bytes.byteLength).toBe(f.bytes);
+      expect(createHash("sha256").update(bytes).digest("hex")).toBe(f.sha256);
+      expect(file.headers.get("etag")).toBe(`"${f.sha256}"`);
+    }
   });
 
   it("a plate whose STL is tampered with between build and proof fails with proof_failed and is never ready", async () => {
@@ -49,8 +62,7 @@ describe("the proof of every plate", () => {
     const [row] = await db().select().from(plates).where(eq(plates.id, r.headers.get("x-plate-id")!));
     expect(row!.status).toBe("failed");
     expect(row!.jobState).toBe("failed");
-    expect(row!.stlBlobKey).toBeNull();
-    expect(row!.threeMfBlobKey).toBeNull();
+    expect(await db().select().from(plateFiles).where(eq(plateFiles.plateId, row!.id))).toEqual([]);
     expect(row!.proof).toMatchObject({ ok: false, failed: "oriented" });
     const file = await fetch(`${baseUrl()}/api/v1/plates/${row!.id}/file?format=stl`, { headers: auth });
     expect(file.status).toBe(409);

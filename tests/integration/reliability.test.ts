@@ -4,7 +4,7 @@ import path from "node:path";
 import { eq, sql } from "drizzle-orm";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
-import { kits, plates, workspaces } from "@/db/schema";
+import { plateFiles, kits, plates, workspaces } from "@/db/schema";
 import { baseUrl } from "../support/http";
 
 // Under load and through a worker crash, over HTTP against the started app and worker.
@@ -78,7 +78,7 @@ describe("reliability", () => {
     }
     expect(state).toBe("done");
     const [p] = await db().select().from(plates).where(eq(plates.id, plateId));
-    expect(p!.stlBlobKey).toBeTruthy();
+    expect((await db().select().from(plateFiles).where(eq(plateFiles.plateId, plateId))).map((f) => f.format)).toContain("stl");
     const job = await db().execute<{ state: string; retry_count: number }>(sql`select state, retry_count from pgboss.job where id = ${p!.jobId}`);
     expect(job.rows[0]).toMatchObject({ state: "completed" });
     expect(job.rows[0]!.retry_count).toBeGreaterThanOrEqual(1); // it was handed out again after the crash

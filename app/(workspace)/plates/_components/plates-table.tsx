@@ -1,4 +1,5 @@
 import Link from "next/link";
+import { EXPORT_FORMAT_IDS, EXPORT_FORMATS } from "@/lib/geometry/formats";
 import type { PlateRow } from "@/db/queries/library";
 import { when } from "@/lib/format";
 import { DataTable, EmptyState } from "../../_components/page-header";
@@ -36,17 +37,12 @@ export function PlatesTable({ rows, label, showKit = true, empty, canMake = fals
               ) : null}
             </td>
             <td className="space-x-2 px-3 py-2">
-              {p.hasStl ? (
-                <a className="text-accent underline" href={`/api/plates/${p.id}/download?format=stl`}>
-                  STL
+              {EXPORT_FORMAT_IDS.filter((f) => p.files.includes(f)).map((f) => (
+                <a key={f} className="text-accent underline" href={`/api/plates/${p.id}/download?format=${f}`}>
+                  {EXPORT_FORMATS[f].label}
                 </a>
-              ) : null}
-              {p.has3mf ? (
-                <a className="text-accent underline" href={`/api/plates/${p.id}/download?format=3mf`}>
-                  3MF
-                </a>
-              ) : null}
-              {!p.hasStl && !p.has3mf ? <span className="text-muted">—</span> : null}
+              ))}
+              {p.files.length === 0 ? <span className="text-muted">—</span> : null}
               {canMake && p.remakeable && p.jobState !== "queued" && p.jobState !== "running" ? <RemakeButton plateId={p.id} /> : null}
             </td>
           </tr>

@@ -52,5 +52,5 @@ export const POST = apiRoute(async (req: Request) => {
     return Response.json({ job: jobView(done) }, { status: 202, headers: { Location: `/api/v1/jobs/${done.jobId}`, "X-Plate-Id": done.id } });
   }
   if (request.format === "json") return Response.json(plateView(done), { headers: { "X-Plate-Id": done.id } });
-  return plateFile(done, request.format);
+  return plateFile(caller, done, request.format);
 });

@@ -13,5 +13,5 @@ export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: st
   const caller = await requireApiKey(req, "plates:read");
   const format = new URL(req.url).searchParams.get("format") ?? DEFAULT_EXPORT_FORMAT;
   if (!isExportFormat(format)) throw new BadRequest("bad_request", `format must be ${EXPORT_FORMAT_IDS.join(" or ")}.`);
-  return plateFile(await plateById(caller, (await ctx.params).id), format);
+  return plateFile(caller, await plateById(caller, (await ctx.params).id), format);
 });
