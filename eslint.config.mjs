@@ -18,12 +18,25 @@ export default tseslint.config(
       ...nextPlugin.configs["core-web-vitals"].rules,
       "max-len": ["error", { code: 140, ignoreUrls: true, ignoreRegExpLiterals: true }],
       // Unused names that start with _ are deliberate (a destructured field dropped, an unused argument).
-      "@typescript-eslint/no-unused-vars": ["error", { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_", caughtErrors: "none" }],
+      "@typescript-eslint/no-unused-vars": [
+        "error",
+        { argsIgnorePattern: "^_", varsIgnorePattern: "^_", destructuredArrayIgnorePattern: "^_", caughtErrors: "none" },
+      ],
     },
   },
   {
     // Node scripts and configs.
     files: ["scripts/**/*.mjs", "*.mjs", "*.config.*"],
-    languageOptions: { globals: { process: "readonly", console: "readonly", URL: "readonly", Buffer: "readonly", fetch: "readonly", setTimeout: "readonly", clearTimeout: "readonly" } },
+    languageOptions: {
+      globals: {
+        process: "readonly",
+        console: "readonly",
+        URL: "readonly",
+        Buffer: "readonly",
+        fetch: "readonly",
+        setTimeout: "readonly",
+        clearTimeout: "readonly",
+      },
+    },
   },
 );

@@ -11,7 +11,9 @@ const securityHeaders = [
   { key: "Referrer-Policy", value: "strict-origin-when-cross-origin" },
   { key: "X-Frame-Options", value: "DENY" },
   { key: "Permissions-Policy", value: "camera=(self), microphone=(), geolocation=()" },
-  ...(process.env.AUTH_URL?.startsWith("https://") ? [{ key: "Strict-Transport-Security", value: "max-age=31536000; includeSubDomains" }] : []),
+  ...(process.env.AUTH_URL?.startsWith("https://")
+    ? [{ key: "Strict-Transport-Security", value: "max-age=31536000; includeSubDomains" }]
+    : []),
 ];
 
 /** @type {import('next').NextConfig} */
@@ -24,7 +26,10 @@ const nextConfig = {
     return [
       { source: "/:path*", headers: securityHeaders },
       // Every API path but /api/parts/{id}/thumbnail (its route sends its own policy).
-      { source: "/api/:path((?!parts/[^/]+/thumbnail$).*)", headers: [{ key: "Content-Security-Policy", value: "default-src 'none'; frame-ancestors 'none'" }] },
+      {
+        source: "/api/:path((?!parts/[^/]+/thumbnail$).*)",
+        headers: [{ key: "Content-Security-Policy", value: "default-src 'none'; frame-ancestors 'none'" }],
+      },
     ];
   },
 };

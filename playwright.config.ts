@@ -20,7 +20,15 @@ export default defineConfig({
     screenshot: "only-on-failure",
     launchOptions: {
       executablePath: process.env.SLAB_CHROMIUM ?? "/usr/bin/chromium",
-      args: ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run", "--disable-background-networking", "--disable-component-update", "--disable-sync"],
+      args: [
+        "--no-sandbox",
+        "--disable-gpu",
+        "--disable-quic",
+        "--no-first-run",
+        "--disable-background-networking",
+        "--disable-component-update",
+        "--disable-sync",
+      ],
     },
   },
   projects: [
@@ -28,12 +36,15 @@ export default defineConfig({
     { name: "phone", use: { ...devices["Pixel 7"], channel: undefined }, grep: /@phone/ },
   ],
   // npm test starts the app itself (shared with the HTTP integration tests); run alone, Playwright does.
-  webServer: process.env.SLAB_TEST_SERVER === "1" ? undefined : {
-    command: `node scripts/serve.mjs -H 127.0.0.1 -p ${port}`,
-    url: `${baseURL}/api/health`,
-    reuseExistingServer: false,
-    timeout: 120_000,
-    stdout: "ignore",
-    stderr: "pipe",
-  },
+  webServer:
+    process.env.SLAB_TEST_SERVER === "1"
+      ? undefined
+      : {
+          command: `node scripts/serve.mjs -H 127.0.0.1 -p ${port}`,
+          url: `${baseURL}/api/health`,
+          reuseExistingServer: false,
+          timeout: 120_000,
+          stdout: "ignore",
+          stderr: "pipe",
+        },
 });

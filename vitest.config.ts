@@ -12,7 +12,12 @@ export default defineConfig({
       {
         extends: true,
         // Kernel tests take seconds on a busy two-core machine; the default 5 s is too tight there.
-        test: { name: "unit", include: ["lib/**/*.test.ts", "scripts/**/*.test.ts", "app/**/*.test.ts"], environment: "node", testTimeout: 30_000 },
+        test: {
+          name: "unit",
+          include: ["lib/**/*.test.ts", "scripts/**/*.test.ts", "app/**/*.test.ts"],
+          environment: "node",
+          testTimeout: 30_000,
+        },
       },
       {
         extends: true,

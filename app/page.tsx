@@ -3,10 +3,21 @@ import { Brand } from "./_components/brand";
 import { SlabIllustration } from "./_components/slab-illustration";
 
 const steps = [
-  { title: "Bring the parts", body: "STL, 3MF or OBJ. Each file is checked, welded where safe, and refused with a plain reason when it is not printable." },
-  { title: "Lay out the slab", body: "Pieces are packed to fit your bed with even spacing, on a 1 mm slab with rounded corners and a 0.2 mm air gap (one layer, so the slicer keeps it)." },
+  {
+    title: "Bring the parts",
+    body: "STL, 3MF or OBJ. Each file is checked, welded where safe, and refused with a plain reason when it is not printable.",
+  },
+  {
+    title: "Lay out the slab",
+    body:
+      "Pieces are packed to fit your bed with even spacing, on a 1 mm slab with rounded corners and a 0.2 mm air gap (one layer, " +
+      "so the slicer keeps it).",
+  },
   { title: "Mark it", body: "An order number, a thank-you line, a QR code, a number beside every piece and an outline under each one." },
-  { title: "Print and pack", body: "One watertight STL or 3MF, and a plate map the packing bench checks against: an empty outline is a missing piece." },
+  {
+    title: "Print and pack",
+    body: "One watertight STL or 3MF, and a plate map the packing bench checks against: an empty outline is a missing piece.",
+  },
 ];
 
 const people = [
@@ -33,11 +44,13 @@ export default function LandingPage() {
       <main className="mx-auto max-w-column px-4">
         <section className="grid items-center gap-10 py-12 md:grid-cols-2 md:py-20">
           <div>
-            <h1 className="text-2xl leading-tight md:text-[2.5rem] md:leading-[3rem]">Every kit on one printed slab, every piece accounted for.</h1>
+            <h1 className="text-2xl leading-tight md:text-[2.5rem] md:leading-[3rem]">
+              Every kit on one printed slab, every piece accounted for.
+            </h1>
             <p className="mt-4 text-base text-muted">
-              Slabwright turns a set of part meshes into a print-ready plate: the parts laid out to fit your bed, standing on a thin carrier slab
-              across a small air gap so they snap off clean, with engraved order text, a QR code, numbers and outlines. One file out, checked
-              against the rules of the trade.
+              Slabwright turns a set of part meshes into a print-ready plate: the parts laid out to fit your bed, standing on a thin carrier
+              slab across a small air gap so they snap off clean, with engraved order text, a QR code, numbers and outlines. One file out,
+              checked against the rules of the trade.
             </p>
             <div className="mt-6 flex flex-wrap gap-3">
               <Link href="/sign-in" className="btn-primary">

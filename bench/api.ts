@@ -13,10 +13,11 @@ const base = process.env.SLAB_BENCH_URL ?? "http://localhost:3000";
 /** What each request asks for: the STL file (default), or json (the plate's record without the file). */
 const FORMAT = process.env.SLAB_BENCH_FORMAT ?? "stl";
 const creds = JSON.parse(readFileSync(".data/demo-credentials.json", "utf8")) as { apiKey: string };
-const kits = (await (await fetch(`${base}/api/v1/kits`, { headers: { authorization: `Bearer ${creds.apiKey}` } })).json()) as { kits: { id: string }[] };
+const kits = (await (await fetch(`${base}/api/v1/kits`, { headers: { authorization: `Bearer ${creds.apiKey}` } })).json()) as {
+  kits: { id: string }[];
+};
 const kitId = kits.kits[0]!.id;
 const N = Number(process.env.SLAB_BENCH_PLATES ?? 30);
-
 
 /** CPU seconds used so far by each kind of process on this machine (Linux /proc), to show where it goes. */
 function cpuByKind(workerPid?: number): Record<string, number> {
@@ -29,7 +30,16 @@ function cpuByKind(workerPid?: number): Record<string, number> {
       const cmd = readFileSync(`/proc/${d}/cmdline`, "utf8").replace(/\0/g, " ");
       const f = stat.slice(stat.lastIndexOf(")") + 2).split(" ");
       const secs = (Number(f[11]) + Number(f[12])) / tick;
-      const kind = Number(d) === workerPid ? "worker (threads included)" : Number(d) === process.pid ? "benchmark client" : /next-server|next start|next\/dist|scripts\/serve\.mjs/.test(cmd) || stat.includes("(next-server") ? "Next server" : /postgres/.test(cmd) ? "PostgreSQL" : null;
+      const kind =
+        Number(d) === workerPid
+          ? "worker (threads included)"
+          : Number(d) === process.pid
+            ? "benchmark client"
+            : /next-server|next start|next\/dist|scripts\/serve\.mjs/.test(cmd) || stat.includes("(next-server")
+              ? "Next server"
+              : /postgres/.test(cmd)
+                ? "PostgreSQL"
+                : null;
       if (kind) out[kind] = (out[kind] ?? 0) + secs;
     } catch {
       // the process ended while being read
@@ -39,7 +49,10 @@ function cpuByKind(workerPid?: number): Record<string, number> {
 }
 
 async function runApi(threads: number) {
-  const worker = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], { env: { ...process.env, SLAB_WORKER_THREADS: String(threads) }, stdio: "ignore" });
+  const worker = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], {
+    env: { ...process.env, SLAB_WORKER_THREADS: String(threads) },
+    stdio: "ignore",
+  });
   await new Promise((r) => setTimeout(r, 3000)); // threads up, kernel loaded
   const lat: number[] = [];
   const cpu0 = cpuByKind(worker.pid);
@@ -65,7 +78,9 @@ async function runApi(threads: number) {
   );
   const minutes = (performance.now() - started) / 60_000;
   const cpu1 = cpuByKind(worker.pid);
-  const perPlate = Object.entries(cpu1).map(([k, v]) => `${k} ${(((v - (cpu0[k] ?? 0)) * 1000) / lat.length).toFixed(0)}`).join(", ");
+  const perPlate = Object.entries(cpu1)
+    .map(([k, v]) => `${k} ${(((v - (cpu0[k] ?? 0)) * 1000) / lat.length).toFixed(0)}`)
+    .join(", ");
   console.log(`  ${threads} thread(s), CPU ms per plate: ${perPlate}`);
   worker.kill("SIGTERM");
   await new Promise((r) => setTimeout(r, 1500));
@@ -88,4 +103,7 @@ console.log(`API, 2 threads: ${f(two.perMin)} plates/min, p50 ${f(two.p50)} ms, 
 console.log(`pool efficiency ${(two.perMin / (2 * inProcessPerMin)).toFixed(2)} (target ≥ 0.8)`);
 // The most any pool could reach here: two threads building at once with no server, database or client.
 const ceiling = await parallelCeiling(N);
-console.log(`two threads in-process, nothing else running: ${ceiling.two.toFixed(0)} builds/min against ${ceiling.one.toFixed(0)} for one: ceiling ${ceiling.ceiling.toFixed(2)} on this machine`);
+console.log(
+  `two threads in-process, nothing else running: ${ceiling.two.toFixed(0)} builds/min against ${ceiling.one.toFixed(0)} for one: ` +
+    `ceiling ${ceiling.ceiling.toFixed(2)} on this machine`,
+);

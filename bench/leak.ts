@@ -30,4 +30,7 @@ for (let i = 1; i <= builds; i++) {
 const rssEnd = process.memoryUsage().rss;
 console.log(`${builds} builds in ${((performance.now() - started) / 1000).toFixed(1)} s`);
 console.log(`live kernel objects after any build: max ${maxLive} (target 0)`);
-console.log(`rss after build 20 ${(rss20 / 1e6).toFixed(0)} MB, after build ${builds} ${(rssEnd / 1e6).toFixed(0)} MB, ratio ${(rssEnd / rss20).toFixed(3)} (target ≤ 1.10)`);
+console.log(
+  `rss after build 20 ${(rss20 / 1e6).toFixed(0)} MB, after build ${builds} ${(rssEnd / 1e6).toFixed(0)} MB, ratio ` +
+    `${(rssEnd / rss20).toFixed(3)} (target ≤ 1.10)`,
+);

@@ -25,7 +25,16 @@ export async function buildLoop(n: number, offset = 0): Promise<number> {
     { id: "pawn", name: "Beacon pawn", mesh: orientMesh(pawn(DEMO_PAWN_SEGMENTS)), quantity: 2 },
   ];
   const cache = newPartCache(); // as the worker threads keep one
-  const one = (i: number) => buildPlate(kernel, { parts, fonts, formats: ["stl", "3mf"], cache, options: ORDER_OPTIONS, variables: { order: String(10000 + offset + i) }, deflateRaw });
+  const one = (i: number) =>
+    buildPlate(kernel, {
+      parts,
+      fonts,
+      formats: ["stl", "3mf"],
+      cache,
+      options: ORDER_OPTIONS,
+      variables: { order: String(10000 + offset + i) },
+      deflateRaw,
+    });
   for (let i = 0; i < 3; i++) one(-1 - i); // warm-up: JIT, kernel, part measures
   const t0 = performance.now();
   for (let i = 0; i < n; i++) one(i);
@@ -53,5 +62,8 @@ if (!isMainThread && workerData) {
   parentPort!.postMessage(await buildLoop(n, offset));
 } else if (isMainThread && process.argv[1] && import.meta.url.endsWith(process.argv[1].split("/").pop()!)) {
   const r = await parallelCeiling(Number(process.env.SLAB_BENCH_PLATES ?? 30));
-  console.log(`in-process, 1 thread: ${r.one.toFixed(0)} builds/min; 2 threads at once: ${r.two.toFixed(0)} builds/min; ceiling ${r.ceiling.toFixed(2)}`);
+  console.log(
+    `in-process, 1 thread: ${r.one.toFixed(0)} builds/min; 2 threads at once: ${r.two.toFixed(0)} builds/min; ceiling ` +
+      `${r.ceiling.toFixed(2)}`,
+  );
 }

@@ -43,7 +43,8 @@ for (let r = 0; r < runs; r++) {
         cut.numTri(); // booleans are lazy: force the evaluation here
         const t1 = performance.now();
         const placed: KernelManifold[] = [];
-        for (const m of placedMeshes) placed.push(new Manifold(new Mesh({ numProp: 3, vertProperties: m.vertProperties, triVerts: m.triVerts })));
+        for (const m of placedMeshes)
+          placed.push(new Manifold(new Mesh({ numProp: 3, vertProperties: m.vertProperties, triVerts: m.triVerts })));
         // (making the piece solids is not part of our pipeline's floor: it never builds them)
         const t2 = performance.now();
         const all = Manifold.compose([cut, ...placed]);
@@ -78,8 +79,14 @@ for (let r = 0; r < 5; r++) {
 const floor = importFloor + booleanFloor + composeFloor + copyFloor;
 
 console.log("stages (last run, ms):", result!.stats.timings);
-console.log(`floor ms: new Manifold ${importFloor.toFixed(0)}, n-ary difference ${booleanFloor.toFixed(0)}, compose+getMesh ${composeFloor.toFixed(0)}, buffer copy ${copyFloor.toFixed(1)} = ${floor.toFixed(0)}`);
-console.log(`buildPlate (STL) ${best.toFixed(0)} ms, output ${(bytes / 1e6).toFixed(1)} MB, ${result!.stats.triangles.toLocaleString("en-US")} triangles`);
+console.log(
+  `floor ms: new Manifold ${importFloor.toFixed(0)}, n-ary difference ${booleanFloor.toFixed(0)}, compose+getMesh ` +
+    `${composeFloor.toFixed(0)}, buffer copy ${copyFloor.toFixed(1)} = ${floor.toFixed(0)}`,
+);
+console.log(
+  `buildPlate (STL) ${best.toFixed(0)} ms, output ${(bytes / 1e6).toFixed(1)} MB, ${result!.stats.triangles.toLocaleString("en-US")} ` +
+    `triangles`,
+);
 console.log(`ratio ${(best / floor).toFixed(2)} (target ≤ 1.5)`);
 
 // Writer throughput on this plate.
@@ -92,5 +99,8 @@ const stlMs = performance.now() - t;
 t = performance.now();
 const tmf = write3mf(bodies, { title: "bench" }, (d) => deflateRawSync(d, { level: 1 }));
 const tmfMs = performance.now() - t;
-console.log(`STL ${(stl.byteLength / 1e6 / (stlMs / 1000)).toFixed(0)} MB/s (${stlMs.toFixed(0)} ms); 3MF ${(tmf.byteLength / 1e6).toFixed(1)} MB in ${tmfMs.toFixed(0)} ms`);
+console.log(
+  `STL ${(stl.byteLength / 1e6 / (stlMs / 1000)).toFixed(0)} MB/s (${stlMs.toFixed(0)} ms); 3MF ${(tmf.byteLength / 1e6).toFixed(1)} ` +
+    `MB in ${tmfMs.toFixed(0)} ms`,
+);
 console.log(`live kernel objects after: ${kernel.live()}`);

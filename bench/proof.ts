@@ -17,14 +17,16 @@ const kernel = await loadKernel();
 const fonts = benchFonts();
 const parts = benchParts();
 const options = parseOptions(BENCH_OPTIONS);
-const build = () => buildPlate(kernel, { parts, options, fonts, formats: ["stl", "3mf"], deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
+const build = () =>
+  buildPlate(kernel, { parts, options, fonts, formats: ["stl", "3mf"], deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
 // One output buffer of the size the zip directory states (one byte more, so zlib ends there).
 const chunk = (size?: number) => (size ? { chunkSize: Math.max(64, size + 1) } : {});
 const input = (r: ReturnType<typeof build>): ProofInput => ({
   stl: r.stl!,
   threeMf: r.threeMf!,
   inflateRaw: (d, size) => inflateRawSync(d, chunk(size)),
-  inflateRawAsync: (d, size) => new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),
+  inflateRawAsync: (d, size) =>
+    new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),
   options,
   pieces: r.pieces.length,
   qrValue: fillValue(options.marks.qr!.value, {}),
@@ -66,5 +68,11 @@ for (let i = 0; i < runs; i++) {
 console.log("proof stages (last run, ms):", last!.timings);
 console.log("on one thread (last of its runs, ms):", lastSync!.timings);
 console.log(last!.summary);
-console.log(`build ${best.build.toFixed(0)} ms, proof ${best.proof.toFixed(0)} ms (best of ${runs}); best ratio in one run ${best.ratio.toFixed(3)} (target ≤ 0.15)`);
-console.log(`on one thread: proof ${best.sync.toFixed(0)} ms (best of ${runs}), ratio ${best.syncRatio.toFixed(3)} against the last build (${lastBuild.toFixed(0)} ms)`);
+console.log(
+  `build ${best.build.toFixed(0)} ms, proof ${best.proof.toFixed(0)} ms (best of ${runs}); best ratio in one run ` +
+    `${best.ratio.toFixed(3)} (target ≤ 0.15)`,
+);
+console.log(
+  `on one thread: proof ${best.sync.toFixed(0)} ms (best of ${runs}), ratio ${best.syncRatio.toFixed(3)} against the last build ` +
+    `(${lastBuild.toFixed(0)} ms)`,
+);

@@ -8,7 +8,13 @@ import { spawnSync } from "node:child_process";
 
 const runs = Number(process.env.SLAB_PROPERTY_RUNS ?? 3000);
 const t = performance.now();
-const r = spawnSync("npx", ["vitest", "run", "--project", "unit", "lib/geometry/plate-properties.test.ts"], { stdio: "inherit", env: { ...process.env, SLAB_PROPERTY_RUNS: String(runs) } });
+const r = spawnSync("npx", ["vitest", "run", "--project", "unit", "lib/geometry/plate-properties.test.ts"], {
+  stdio: "inherit",
+  env: { ...process.env, SLAB_PROPERTY_RUNS: String(runs) },
+});
 const s = (performance.now() - t) / 1000;
-console.log(`${runs} cases in ${s.toFixed(0)} s (${((s * 1000) / runs).toFixed(0)} ms a case, build + admesh + proof); ${r.status === 0 ? "all refused at a field or proven" : "a case failed (see above)"}`);
+console.log(
+  `${runs} cases in ${s.toFixed(0)} s (${((s * 1000) / runs).toFixed(0)} ms a case, build + admesh + proof); ` +
+    `${r.status === 0 ? "all refused at a field or proven" : "a case failed (see above)"}`,
+);
 process.exit(r.status ?? 1);

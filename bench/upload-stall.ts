@@ -59,7 +59,14 @@ const outcomes = await Promise.all(
     const res = await sendPart(designer, `bench-${String(what).replace(/\s/g, "-")}.3mf`, file as Uint8Array);
     const answeredMs = performance.now() - t;
     const u = await settled(designer, res);
-    return { what, bytes: (file as Uint8Array).byteLength, answeredMs, checkedMs: performance.now() - t, state: u.state, code: u.error?.code ?? "-" };
+    return {
+      what,
+      bytes: (file as Uint8Array).byteLength,
+      answeredMs,
+      checkedMs: performance.now() - t,
+      state: u.state,
+      code: u.error?.code ?? "-",
+    };
   }),
 );
 busy = false;
@@ -67,8 +74,14 @@ await poller;
 
 const f = (n: number) => n.toFixed(1);
 for (const o of outcomes) {
-  console.log(`${o.what}: ${(o.bytes / 1024).toFixed(0)} kB, answered in ${f(o.answeredMs)} ms (checking), ${o.state} (${o.code}) after ${f(o.checkedMs)} ms`);
+  console.log(
+    `${o.what}: ${(o.bytes / 1024).toFixed(0)} kB, answered in ${f(o.answeredMs)} ms (checking), ${o.state} (${o.code}) after ` +
+      `${f(o.checkedMs)} ms`,
+  );
 }
 console.log(`/api/health idle:   p50 ${f(pct(idle, 0.5))} ms, p95 ${f(pct(idle, 0.95))} ms (${idle.length} requests)`);
-console.log(`/api/health during: p50 ${f(pct(during, 0.5))} ms, p95 ${f(pct(during, 0.95))} ms, max ${f(Math.max(...during))} ms (${during.length} requests over ${f((performance.now() - started) / 1000)} s)`);
+console.log(
+  `/api/health during: p50 ${f(pct(during, 0.5))} ms, p95 ${f(pct(during, 0.95))} ms, max ${f(Math.max(...during))} ms ` +
+    `(${during.length} requests over ${f((performance.now() - started) / 1000)} s)`,
+);
 console.log(`p95 during ÷ p95 idle: ${(pct(during, 0.95) / pct(idle, 0.95)).toFixed(2)} (target ≤ 2)`);

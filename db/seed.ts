@@ -6,7 +6,20 @@ import { promises as fs } from "node:fs";
 import { parseEnv } from "@/lib/env";
 import path from "node:path";
 import { and, eq, isNull } from "drizzle-orm";
-import { apiKeyScopes, apiKeys, kitParts, kits, memberships, parts, templates, templateVersions, users, workspaceBilling, workspaces, type Role } from "@/db/schema";
+import {
+  apiKeyScopes,
+  apiKeys,
+  kitParts,
+  kits,
+  memberships,
+  parts,
+  templates,
+  templateVersions,
+  users,
+  workspaceBilling,
+  workspaces,
+  type Role,
+} from "@/db/schema";
 import { templateBodySchema } from "@/lib/geometry/template";
 import { demoTemplate, STARTERS } from "@/lib/templates/starters";
 import { generateApiKey, hashApiKey } from "@/lib/auth/api-keys";
@@ -94,13 +107,19 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
           id = row!.id;
         } else if (!(await verifyPassword(u.password, existing.passwordHash))) {
           // Someone changed a demo password: put the documented one back so the README stays true.
-          await tx.update(users).set({ passwordHash: await hashPassword(u.password) }).where(eq(users.id, existing.id));
+          await tx
+            .update(users)
+            .set({ passwordHash: await hashPassword(u.password) })
+            .where(eq(users.id, existing.id));
         }
         userIds[u.role] = id!;
-        await tx.insert(memberships).values({ workspaceId: ws.id, userId: id!, role: u.role }).onConflictDoUpdate({
-          target: [memberships.workspaceId, memberships.userId],
-          set: { role: u.role },
-        });
+        await tx
+          .insert(memberships)
+          .values({ workspaceId: ws.id, userId: id!, role: u.role })
+          .onConflictDoUpdate({
+            target: [memberships.workspaceId, memberships.userId],
+            set: { role: u.role },
+          });
       }
 
       const partIds: string[] = [];
@@ -114,7 +133,17 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
           // Bring a part seeded by an earlier version up to date (mesh, thumbnail, measurements).
           await tx
             .update(parts)
-            .set({ blobKey: blob.key, byteSize: blob.size, triangles: p.triangles, sizeX: p.sizeX, sizeY: p.sizeY, sizeZ: p.sizeZ, volume: p.volume, thumbnailSvg: p.thumbnailSvg, contactArea: p.contactArea })
+            .set({
+              blobKey: blob.key,
+              byteSize: blob.size,
+              triangles: p.triangles,
+              sizeX: p.sizeX,
+              sizeY: p.sizeY,
+              sizeZ: p.sizeZ,
+              volume: p.volume,
+              thumbnailSvg: p.thumbnailSvg,
+              contactArea: p.contactArea,
+            })
             .where(eq(parts.id, existing.id));
           partIds.push(existing.id);
           continue;
@@ -141,11 +170,19 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
       }
 
       const kitName = "Harbour Run token set";
-      const [kit] = await tx.select().from(kits).where(and(eq(kits.workspaceId, ws.id), eq(kits.name, kitName)));
+      const [kit] = await tx
+        .select()
+        .from(kits)
+        .where(and(eq(kits.workspaceId, ws.id), eq(kits.name, kitName)));
       if (!kit) {
         const [k] = await tx
           .insert(kits)
-          .values({ workspaceId: ws.id, name: kitName, description: "Four harbour tiles and two beacon pawns for the Harbour Run board game.", createdBy: userIds.designer })
+          .values({
+            workspaceId: ws.id,
+            name: kitName,
+            description: "Four harbour tiles and two beacon pawns for the Harbour Run board game.",
+            createdBy: userIds.designer,
+          })
           .returning({ id: kits.id });
         await tx.insert(kitParts).values([
           { kitId: k!.id, partId: partIds[0]!, quantity: 4, position: 0 },
@@ -158,27 +195,57 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
       await tx
         .insert(workspaceBilling)
         .values({ workspaceId: ws.id, plan: "workshop", status: "active" })
-        .onConflictDoUpdate({ target: workspaceBilling.workspaceId, set: { plan: "workshop", status: "active", graceUntil: null }, setWhere: isNull(workspaceBilling.subscriptionId) });
+        .onConflictDoUpdate({
+          target: workspaceBilling.workspaceId,
+          set: { plan: "workshop", status: "active", graceUntil: null },
+          setWhere: isNull(workspaceBilling.subscriptionId),
+        });
 
       // Starter templates (shared by every workspace), then the demo shop's own branded template.
       for (const st of STARTERS) {
         const [found] = await tx.select({ id: templates.id }).from(templates).where(eq(templates.starterKey, st.key));
         if (found) continue;
         const body = templateBodySchema.parse({ options: st.options, variables: st.variables });
-        const [t] = await tx.insert(templates).values({ workspaceId: null, starterKey: st.key, name: st.name, description: st.description }).returning({ id: templates.id });
-        await tx.insert(templateVersions).values({ templateId: t!.id, version: 1, options: body.options as Record<string, unknown>, variables: body.variables, changes: ["first version"], note: "shipped with Slabwright" });
+        const [t] = await tx
+          .insert(templates)
+          .values({ workspaceId: null, starterKey: st.key, name: st.name, description: st.description })
+          .returning({ id: templates.id });
+        await tx.insert(templateVersions).values({
+          templateId: t!.id,
+          version: 1,
+          options: body.options as Record<string, unknown>,
+          variables: body.variables,
+          changes: ["first version"],
+          note: "shipped with Slabwright",
+        });
       }
       const demo = demoTemplate();
-      const [demoFound] = await tx.select({ id: templates.id }).from(templates).where(and(eq(templates.workspaceId, ws.id), eq(templates.name, demo.name)));
+      const [demoFound] = await tx
+        .select({ id: templates.id })
+        .from(templates)
+        .where(and(eq(templates.workspaceId, ws.id), eq(templates.name, demo.name)));
       if (!demoFound) {
         const body = templateBodySchema.parse({ options: demo.options, variables: demo.variables });
-        const [t] = await tx.insert(templates).values({ workspaceId: ws.id, name: demo.name, description: demo.description, createdBy: userIds.designer }).returning({ id: templates.id });
-        await tx.insert(templateVersions).values({ templateId: t!.id, version: 1, options: body.options as Record<string, unknown>, variables: body.variables, changes: ["first version"], createdBy: userIds.designer });
+        const [t] = await tx
+          .insert(templates)
+          .values({ workspaceId: ws.id, name: demo.name, description: demo.description, createdBy: userIds.designer })
+          .returning({ id: templates.id });
+        await tx.insert(templateVersions).values({
+          templateId: t!.id,
+          version: 1,
+          options: body.options as Record<string, unknown>,
+          variables: body.variables,
+          changes: ["first version"],
+          createdBy: userIds.designer,
+        });
       }
 
       // Keep the saved demo key when this database still knows it; otherwise issue a new one.
       const known = savedKey
-        ? await tx.select({ id: apiKeys.id }).from(apiKeys).where(and(eq(apiKeys.workspaceId, ws.id), eq(apiKeys.keyHash, hashApiKey(savedKey))))
+        ? await tx
+            .select({ id: apiKeys.id })
+            .from(apiKeys)
+            .where(and(eq(apiKeys.workspaceId, ws.id), eq(apiKeys.keyHash, hashApiKey(savedKey))))
         : [];
       if (known.length === 0) {
         const fresh = generateApiKey();

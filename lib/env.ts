@@ -54,7 +54,12 @@ const schema = z.object({
   /** Days a workspace keeps its paid plan after a failed payment. */
   SLAB_BILLING_GRACE_DAYS: z.coerce.number().min(0).default(7),
   /** Largest upload accepted, bytes (library files and the plate API's whole body); default 200 MB. */
-  SLAB_MAX_UPLOAD_BYTES: z.coerce.number().int().min(1024).max(2 ** 31).default(200 * 1024 * 1024),
+  SLAB_MAX_UPLOAD_BYTES: z.coerce
+    .number()
+    .int()
+    .min(1024)
+    .max(2 ** 31)
+    .default(200 * 1024 * 1024),
   /** How long `POST /api/v1/plates` waits for the build before answering 202 with the job. */
   SLAB_SYNC_WAIT_MS: z.coerce.number().int().min(0).max(120_000).default(20_000),
   /** A build job not finished in this time is retried by the queue. */
@@ -101,8 +106,10 @@ export function requireStartupSecrets(e: Env): void {
   const missing = STARTUP_SECRETS.filter((n) => !e[n]);
   if (missing.length === 0) return;
   throw new Error(
-    `Slabwright will not start in production without ${missing.join(" and ")}. Set ${missing.length > 1 ? "them" : "it"} in the environment ` +
-      "(AUTH_SECRET: 32 or more random characters; STRIPE_WEBHOOK_SECRET: the signing secret of the payment provider's webhook endpoint). " +
+    `Slabwright will not start in production without ${missing.join(" and ")}. Set ${missing.length > 1 ? "them" : "it"} in the ` +
+      `environment ` +
+      "(AUTH_SECRET: 32 or more random characters; STRIPE_WEBHOOK_SECRET: the signing secret of the payment provider's webhook " +
+      "endpoint). " +
       "npm start and npm test make local ones under .data/ by themselves.",
   );
 }

@@ -1,5 +1,22 @@
 import { describe, expect, it } from "vitest";
-import { AppError, BadRequest, Conflict, Forbidden, formMessage, httpStatus, Invalid, NotFound, PlanLimit, RateLimited, TooLarge, Unauthorized, Unavailable, UnsupportedMedia, notFound, rateLimited } from "./errors";
+import {
+  AppError,
+  BadRequest,
+  Conflict,
+  Forbidden,
+  formMessage,
+  httpStatus,
+  Invalid,
+  NotFound,
+  PlanLimit,
+  RateLimited,
+  TooLarge,
+  Unauthorized,
+  Unavailable,
+  UnsupportedMedia,
+  notFound,
+  rateLimited,
+} from "./errors";
 
 describe("one error table", () => {
   // RFC 9110 §15 (400, 401, 403, 404, 409, 413, 415, 422, 503), RFC 6585 §4 (429), and 402 "Payment

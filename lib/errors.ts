@@ -93,4 +93,8 @@ export const notSignedIn = () => new Unauthorized("unauthorized", "Sign in first
 export const forbidden = (what: string) => new Forbidden("forbidden", `Your role does not allow this: ${what}.`);
 export const notFound = (what = "record") => new NotFound("not_found", `No such ${what}.`);
 export const rateLimited = (seconds: number, what: string) =>
-  new RateLimited("rate_limited", `Too many ${what}. Try again in ${seconds < 90 ? `${seconds} seconds` : `${Math.ceil(seconds / 60)} minutes`}.`, seconds);
+  new RateLimited(
+    "rate_limited",
+    `Too many ${what}. Try again in ${seconds < 90 ? `${seconds} seconds` : `${Math.ceil(seconds / 60)} minutes`}.`,
+    seconds,
+  );

@@ -18,9 +18,14 @@ function files(dir: string): string[] {
 }
 
 function resolve(from: string, spec: string): string | null {
-  const base = spec.startsWith("@/") ? path.join(ROOT, spec.slice(2)) : spec.startsWith(".") ? path.resolve(path.dirname(from), spec) : null;
+  const base = spec.startsWith("@/")
+    ? path.join(ROOT, spec.slice(2))
+    : spec.startsWith(".")
+      ? path.resolve(path.dirname(from), spec)
+      : null;
   if (!base) return null;
-  for (const c of [base, `${base}.ts`, `${base}.tsx`, path.join(base, "index.ts"), path.join(base, "index.tsx")]) if (existsSync(c) && statSync(c).isFile()) return c;
+  for (const c of [base, `${base}.ts`, `${base}.tsx`, path.join(base, "index.ts"), path.join(base, "index.tsx")])
+    if (existsSync(c) && statSync(c).isFile()) return c;
   return null;
 }
 
@@ -47,7 +52,9 @@ function chain(entry: string): Map<string, string> {
 
 describe("the web process", () => {
   it("never imports the mesh importer or the geometry kernel from a route, action, page or layout", () => {
-    const entries = files(path.join(ROOT, "app")).filter((f) => /(route|actions|page|layout)\.tsx?$/.test(f) && !isClient(readFileSync(f, "utf8")));
+    const entries = files(path.join(ROOT, "app")).filter(
+      (f) => /(route|actions|page|layout)\.tsx?$/.test(f) && !isClient(readFileSync(f, "utf8")),
+    );
     entries.push(path.join(ROOT, "proxy.ts"), path.join(ROOT, "instrumentation.ts"));
     expect(entries.length).toBeGreaterThan(20);
     const offenders: string[] = [];

@@ -9,7 +9,11 @@ export const CLIENT_HEADER = "x-slab-client";
 
 function parse(addr) {
   try {
-    const a = ipaddr.process(String(addr).trim().replace(/^\[|\]$/g, ""));
+    const a = ipaddr.process(
+      String(addr)
+        .trim()
+        .replace(/^\[|\]$/g, ""),
+    );
     return a;
   } catch {
     return null;
@@ -25,7 +29,10 @@ export function parseTrustedProxies(raw) {
     .map((entry) => {
       if (entry.includes("/")) {
         const [a, bits] = ipaddr.parseCIDR(entry);
-        return [a.kind() === "ipv6" && a.isIPv4MappedAddress() ? a.toIPv4Address() : a, a.kind() === "ipv6" && a.isIPv4MappedAddress() ? bits - 96 : bits];
+        return [
+          a.kind() === "ipv6" && a.isIPv4MappedAddress() ? a.toIPv4Address() : a,
+          a.kind() === "ipv6" && a.isIPv4MappedAddress() ? bits - 96 : bits,
+        ];
       }
       const a = parse(entry);
       if (!a) throw new Error(`SLAB_TRUSTED_PROXIES: "${entry}" is not an IP address or CIDR range`);

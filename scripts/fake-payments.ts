@@ -67,7 +67,11 @@ async function deliver(event: Rec): Promise<number> {
   const sig = createHmac("sha256", secret).update(`${t}.${payload}`).digest("hex");
   for (let attempt = 0; attempt < 3; attempt++) {
     try {
-      const r = await fetch(webhookUrl, { method: "POST", headers: { "content-type": "application/json", "stripe-signature": `t=${t},v1=${sig}` }, body: payload });
+      const r = await fetch(webhookUrl, {
+        method: "POST",
+        headers: { "content-type": "application/json", "stripe-signature": `t=${t},v1=${sig}` },
+        body: payload,
+      });
       if (r.ok || r.status === 400) return r.status;
     } catch {
       // the app is not up yet: try again
@@ -98,16 +102,37 @@ function subscriptionFor(session: Rec): Rec {
 const invoice = (sub: Rec, paid: boolean): Rec => {
   const price = (((sub.items as Rec).data as Rec[])[0]!.price as Rec).id as string;
   const amount = PRICES[price]?.amount ?? 0;
-  return { id: id("in"), object: "invoice", customer: sub.customer, subscription: sub.id, status: paid ? "paid" : "open", amount_paid: paid ? amount : 0, amount_due: amount, currency: "eur", lines: { data: [{ period: { start: sub.current_period_start, end: sub.current_period_end } }] } };
+  return {
+    id: id("in"),
+    object: "invoice",
+    customer: sub.customer,
+    subscription: sub.id,
+    status: paid ? "paid" : "open",
+    amount_paid: paid ? amount : 0,
+    amount_due: amount,
+    currency: "eur",
+    lines: { data: [{ period: { start: sub.current_period_start, end: sub.current_period_end } }] },
+  };
 };
 
+/** The plan a subscription is for, by its first item's price. */
+const planName = (sub: Rec) => PRICES[(((sub.items as Rec).data as Rec[])[0]!.price as Rec).id as string]?.name ?? "?";
+const cancelForm = `<form method="post"><button name="do" value="cancel" class="quiet">Cancel the plan</button></form>`;
+
 function page(title: string, body: string): string {
-  return `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width"><title>${esc(title)}</title>
+  return (
+    `<!doctype html><html lang="en"><head><meta charset="utf-8"><meta name="viewport" ` +
+    `content="width=device-width"><title>${esc(title)}</title>
 <style>body{font:16px system-ui,sans-serif;background:#f3f1ec;color:#1f2328;display:grid;place-items:center;min-height:100vh;margin:0}
 main{background:#fff;border:1px solid #ddd5c8;border-radius:10px;padding:28px;max-width:420px;width:100%}
-h1{font-size:20px}button{font:inherit;padding:10px 16px;border-radius:8px;border:1px solid #1f2328;background:#1f2328;color:#fff;cursor:pointer;margin-right:8px}
-button.quiet{background:#fff;color:#1f2328}label{display:block;font-size:13px;color:#5c6370;margin:12px 0 4px}input{font:inherit;width:100%;padding:8px;border:1px solid #ccc;border-radius:6px;box-sizing:border-box}
-.note{font-size:12px;color:#5c6370;margin-top:16px}</style></head><body><main>${body}</main></body></html>`;
+h1{font-size:20px}
+button{font:inherit;padding:10px 16px;border-radius:8px;border:1px solid #1f2328;
+background:#1f2328;color:#fff;cursor:pointer;margin-right:8px}
+button.quiet{background:#fff;color:#1f2328}
+label{display:block;font-size:13px;color:#5c6370;margin:12px 0 4px}
+input{font:inherit;width:100%;padding:8px;border:1px solid #ccc;border-radius:6px;box-sizing:border-box}
+.note{font-size:12px;color:#5c6370;margin-top:16px}</style></head><body><main>${body}</main></body></html>`
+  );
 }
 
 const server = http.createServer(async (req, res) => {
@@ -137,19 +162,44 @@ const server = http.createServer(async (req, res) => {
       const f = parseForm(body);
       const price = ((f.line_items as Rec | undefined)?.["0"] as Rec | undefined)?.price as string | undefined;
       if (!price || !PRICES[price]) return json(400, { error: { type: "invalid_request_error", message: `No such price: ${price}` } });
-      const s = { id: id("cs"), object: "checkout.session", mode: f.mode, customer: f.customer, status: "open", payment_status: "unpaid", metadata: f.metadata ?? {}, subscription_data: f.subscription_data, line_items: f.line_items, success_url: f.success_url, cancel_url: f.cancel_url, url: "" };
+      const s = {
+        id: id("cs"),
+        object: "checkout.session",
+        mode: f.mode,
+        customer: f.customer,
+        status: "open",
+        payment_status: "unpaid",
+        metadata: f.metadata ?? {},
+        subscription_data: f.subscription_data,
+        line_items: f.line_items,
+        success_url: f.success_url,
+        cancel_url: f.cancel_url,
+        url: "",
+      };
       s.url = `http://${req.headers.host}/pay/${s.id}`;
       sessions.set(s.id, s);
       return json(200, s);
     }
     if (req.method === "POST" && url.pathname === "/v1/billing_portal/sessions") {
       const f = parseForm(body);
-      return json(200, { id: id("bps"), object: "billing_portal.session", customer: f.customer, return_url: f.return_url, url: `http://${req.headers.host}/portal/${f.customer}?return=${encodeURIComponent(String(f.return_url))}` });
+      return json(200, {
+        id: id("bps"),
+        object: "billing_portal.session",
+        customer: f.customer,
+        return_url: f.return_url,
+        url: `http://${req.headers.host}/portal/${f.customer}?return=${encodeURIComponent(String(f.return_url))}`,
+      });
     }
     let r = m(/^\/v1\/checkout\/sessions\/([\w]+)$/);
-    if (req.method === "GET" && r) return sessions.has(r[1]!) ? json(200, sessions.get(r[1]!)) : json(404, { error: { type: "invalid_request_error", message: `No such checkout.session: ${r[1]}` } });
+    if (req.method === "GET" && r)
+      return sessions.has(r[1]!)
+        ? json(200, sessions.get(r[1]!))
+        : json(404, { error: { type: "invalid_request_error", message: `No such checkout.session: ${r[1]}` } });
     r = m(/^\/v1\/subscriptions\/([\w]+)$/);
-    if (req.method === "GET" && r) return subscriptions.has(r[1]!) ? json(200, subscriptions.get(r[1]!)) : json(404, { error: { type: "invalid_request_error", message: "No such subscription" } });
+    if (req.method === "GET" && r)
+      return subscriptions.has(r[1]!)
+        ? json(200, subscriptions.get(r[1]!))
+        : json(404, { error: { type: "invalid_request_error", message: "No such subscription" } });
 
     // The hosted pay page.
     r = m(/^\/pay\/([\w]+)$/);
@@ -158,10 +208,17 @@ const server = http.createServer(async (req, res) => {
       if (!s) return html(page("Not found", "<h1>This checkout has ended.</h1>"));
       const price = PRICES[((s.line_items as Rec)["0"] as Rec).price as string]!;
       if (req.method === "GET") {
-        return html(page(`Pay · ${price.name}`, `<h1>${esc(price.name)} plan</h1><p>€${(price.amount / 100).toFixed(2)} a month</p>
-<form method="post"><label for="card">Card number (on this test page any 16 digits do)</label><input id="card" name="card" value="1020 3040 5060 7080" inputmode="numeric">
-<p><button type="submit" name="do" value="pay">Pay €${(price.amount / 100).toFixed(2)}</button><button class="quiet" type="submit" name="do" value="cancel">Cancel</button></p></form>
-<p class="note">A local test payment page: no money moves.</p>`));
+        return html(
+          page(
+            `Pay · ${price.name}`,
+            `<h1>${esc(price.name)} plan</h1><p>€${(price.amount / 100).toFixed(2)} a month</p>
+<form method="post"><label for="card">Card number (on this test page any 16 digits do)</label>
+<input id="card" name="card" value="1020 3040 5060 7080" inputmode="numeric">
+<p><button type="submit" name="do" value="pay">Pay €${(price.amount / 100).toFixed(2)}</button>
+<button class="quiet" type="submit" name="do" value="cancel">Cancel</button></p></form>
+<p class="note">A local test payment page: no money moves.</p>`,
+          ),
+        );
       }
       const f = new URLSearchParams(body);
       if (f.get("do") === "cancel") {
@@ -183,7 +240,14 @@ const server = http.createServer(async (req, res) => {
       const sub = [...subscriptions.values()].find((x) => x.customer === customer && x.status !== "canceled");
       const back = url.searchParams.get("return") ?? "/";
       if (req.method === "GET") {
-        return html(page("Billing", `<h1>Your subscription</h1>${sub ? `<p>Plan: ${esc(PRICES[(((sub.items as Rec).data as Rec[])[0]!.price as Rec).id as string]?.name ?? "?")}</p><form method="post"><button name="do" value="cancel" class="quiet">Cancel the plan</button></form>` : "<p>No active subscription.</p>"}<p><a href="${esc(back)}">Back to Slabwright</a></p>`));
+        return html(
+          page(
+            "Billing",
+            `<h1>Your subscription</h1>` +
+              (sub ? `<p>Plan: ${esc(planName(sub))}</p>` + cancelForm : "<p>No active subscription.</p>") +
+              `<p><a href="${esc(back)}">Back to Slabwright</a></p>`,
+          ),
+        );
       }
       if (sub && new URLSearchParams(body).get("do") === "cancel") {
         sub.status = "canceled";

@@ -26,15 +26,18 @@ const server = new SMTPServer({
           .filter(Boolean)
           .join(", ");
         const workspace = mail.headers.get(WORKSPACE_HEADER.toLowerCase());
-        await pool.query("insert into dev_outbox (id, from_address, to_addresses, subject, text, html, workspace_id) values ($1, $2, $3, $4, $5, $6, $7)", [
-          crypto.randomUUID(),
-          mail.from?.text ?? null,
-          to,
-          mail.subject ?? null,
-          mail.text ?? null,
-          typeof mail.html === "string" ? mail.html : null,
-          typeof workspace === "string" ? workspace : null,
-        ]);
+        await pool.query(
+          "insert into dev_outbox (id, from_address, to_addresses, subject, text, html, workspace_id) values ($1, $2, $3, $4, $5, $6, $7)",
+          [
+            crypto.randomUUID(),
+            mail.from?.text ?? null,
+            to,
+            mail.subject ?? null,
+            mail.text ?? null,
+            typeof mail.html === "string" ? mail.html : null,
+            typeof workspace === "string" ? workspace : null,
+          ],
+        );
         callback();
       })
       .catch((err: Error) => callback(err));
@@ -43,7 +46,10 @@ const server = new SMTPServer({
 
 server.on("error", (err: NodeJS.ErrnoException) => {
   if (err.code === "EADDRINUSE") {
-    console.error(`fake SMTP: 127.0.0.1:${port} is taken (another copy running?); mail goes to whatever listens there. Set SLAB_SMTP_PORT to use another port.`);
+    console.error(
+      `fake SMTP: 127.0.0.1:${port} is taken (another copy running?); mail goes to whatever listens there. Set SLAB_SMTP_PORT to use ` +
+        `another port.`,
+    );
     process.exit(0);
   }
   console.error("fake SMTP:", err);

@@ -13,7 +13,12 @@ if (!/\/slabwright_test(\?|$)/.test(url)) {
 const pool = createPool(url);
 await pool.query("truncate abuse_counters, dev_outbox, plate_usage");
 // The demo shop back on its given plan, without the keys earlier test runs made (plans limit keys).
-await pool.query(`update workspace_billing set plan = 'workshop', status = 'active', customer_id = null, subscription_id = null, grace_until = null, period_start = null, period_end = null, last_event_at = null
-  where workspace_id in (select id from workspaces where slug = 'marrowby')`);
-await pool.query(`delete from api_keys where name <> 'Demo order system' and workspace_id in (select id from workspaces where slug = 'marrowby')`);
+await pool.query(
+  `update workspace_billing set plan = 'workshop', status = 'active', customer_id = null, subscription_id = null, ` +
+    `grace_until = null, period_start = null, period_end = null, last_event_at = null
+  where workspace_id in (select id from workspaces where slug = 'marrowby')`,
+);
+await pool.query(
+  `delete from api_keys where name <> 'Demo order system' and workspace_id in (select id from workspaces where slug = 'marrowby')`,
+);
 await pool.end();

@@ -95,22 +95,31 @@ async function checkedAction(req, res) {
   const body = Buffer.concat(chunks);
   const type = String(req.headers["content-type"] ?? "").toLowerCase();
   if (type.startsWith("multipart/form-data")) {
-    if (!(await multipartOk(req.headers, body))) return refuse(res, 400, "bad_form", "The form's data could not be read."), null;
+    if (!(await multipartOk(req.headers, body))) return (refuse(res, 400, "bad_form", "The form's data could not be read."), null);
   } else if (type.startsWith("text/plain")) {
     let args;
     try {
       args = JSON.parse(body.toString("utf8"));
     } catch {
-      return refuse(res, 400, "bad_form", "The form's data is not valid JSON."), null;
+      return (refuse(res, 400, "bad_form", "The form's data is not valid JSON."), null);
     }
-    if (!Array.isArray(args)) return refuse(res, 400, "bad_form", "The form's data must be a list of arguments."), null;
+    if (!Array.isArray(args)) return (refuse(res, 400, "bad_form", "The form's data must be a list of arguments."), null);
     const problem = badValue(args);
-    if (problem) return refuse(res, 400, "bad_form", problem), null;
+    if (problem) return (refuse(res, 400, "bad_form", problem), null);
   } else if (!type.startsWith("application/x-www-form-urlencoded")) {
-    return refuse(res, 415, "unsupported_media_type", "A form is sent as multipart/form-data or text/plain."), null;
+    return (refuse(res, 415, "unsupported_media_type", "A form is sent as multipart/form-data or text/plain."), null);
   }
   const copy = new http.IncomingMessage(req.socket);
-  Object.assign(copy, { method: req.method, url: req.url, headers: req.headers, rawHeaders: req.rawHeaders, httpVersion: req.httpVersion, httpVersionMajor: req.httpVersionMajor, httpVersionMinor: req.httpVersionMinor, complete: true });
+  Object.assign(copy, {
+    method: req.method,
+    url: req.url,
+    headers: req.headers,
+    rawHeaders: req.rawHeaders,
+    httpVersion: req.httpVersion,
+    httpVersionMajor: req.httpVersionMajor,
+    httpVersionMinor: req.httpVersionMinor,
+    complete: true,
+  });
   copy.push(body);
   copy.push(null);
   return copy;

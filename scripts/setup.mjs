@@ -131,10 +131,30 @@ export const authSecret = () => localSecret("AUTH_SECRET", "auth-secret", () => 
  */
 export const fakePaymentsSecrets = () => ({
   STRIPE_SECRET_KEY: localSecret(null, "payments-api-key", () => `sk_test_${randomBytes(24).toString("base64url")}`),
-  STRIPE_WEBHOOK_SECRET: localSecret("STRIPE_WEBHOOK_SECRET", "payments-webhook-secret", () => `whsec_${randomBytes(32).toString("base64url")}`),
+  STRIPE_WEBHOOK_SECRET: localSecret(
+    "STRIPE_WEBHOOK_SECRET",
+    "payments-webhook-secret",
+    () => `whsec_${randomBytes(32).toString("base64url")}`,
+  ),
 });
 
-const BUILD_INPUTS = ["app", "lib", "proxy.ts", "instrumentation.ts", "db/schema", "db/queries", "db/index.ts", "fonts", "public", "types", "next.config.mjs", "tailwind.config.ts", "postcss.config.mjs", "tsconfig.json", "package-lock.json"];
+const BUILD_INPUTS = [
+  "app",
+  "lib",
+  "proxy.ts",
+  "instrumentation.ts",
+  "db/schema",
+  "db/queries",
+  "db/index.ts",
+  "fonts",
+  "public",
+  "types",
+  "next.config.mjs",
+  "tailwind.config.ts",
+  "postcss.config.mjs",
+  "tsconfig.json",
+  "package-lock.json",
+];
 
 function sourceHash() {
   const h = createHash("sha256");
@@ -169,7 +189,13 @@ export function appEnv({ port, dbName, smtpPort = 2525, paymentsPort = 12111 }) 
   const fakePayments = !process.env.STRIPE_SECRET_KEY;
   return {
     ...(fakePayments
-      ? { STRIPE_API_BASE: `http://127.0.0.1:${paymentsPort}`, SLAB_PAYMENTS_PORT: String(paymentsPort), SLAB_FAKE_PAYMENTS: "1", SLAB_BILLING_WEBHOOK_URL: `http://localhost:${port}/api/billing/webhook`, ...fakePaymentsSecrets() }
+      ? {
+          STRIPE_API_BASE: `http://127.0.0.1:${paymentsPort}`,
+          SLAB_PAYMENTS_PORT: String(paymentsPort),
+          SLAB_FAKE_PAYMENTS: "1",
+          SLAB_BILLING_WEBHOOK_URL: `http://localhost:${port}/api/billing/webhook`,
+          ...fakePaymentsSecrets(),
+        }
       : {}),
     SMTP_URL: process.env.SMTP_URL ?? `smtp://127.0.0.1:${smtpPort}`,
     SLAB_SMTP_PORT: String(smtpPort),
@@ -240,18 +266,30 @@ export async function waitForHttp(url, timeoutMs = 60_000) {
 export function startFakeSmtp(env) {
   if (process.env.SMTP_URL) return null;
   // Node itself with tsx's loader (not the tsx wrapper), so stopping the child stops the server.
-  return spawn(process.execPath, ["--import", "tsx", "scripts/fake-smtp.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
+  return spawn(process.execPath, ["--import", "tsx", "scripts/fake-smtp.ts"], {
+    cwd: ROOT,
+    stdio: ["ignore", "inherit", "inherit"],
+    env: { ...process.env, ...env },
+  });
 }
 
 /** Our fake payment provider on loopback (development and tests), unless real keys are configured. */
 export function startFakePayments(env) {
   if (env.SLAB_FAKE_PAYMENTS !== "1") return null;
-  return spawn(process.execPath, ["--import", "tsx", "scripts/fake-payments.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
+  return spawn(process.execPath, ["--import", "tsx", "scripts/fake-payments.ts"], {
+    cwd: ROOT,
+    stdio: ["ignore", "inherit", "inherit"],
+    env: { ...process.env, ...env },
+  });
 }
 
 /** The build worker (queue consumer with its thread pool): `npm start` and `npm test` run one. */
 export function startWorker(env) {
-  return spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], { cwd: ROOT, stdio: ["ignore", "inherit", "inherit"], env: { ...process.env, ...env } });
+  return spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], {
+    cwd: ROOT,
+    stdio: ["ignore", "inherit", "inherit"],
+    env: { ...process.env, ...env },
+  });
 }
 
 export function spawnChild(cmd, args, env) {

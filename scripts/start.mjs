@@ -114,7 +114,9 @@ try {
       "Demo sign-ins (Marrowby Tabletop Co.):",
       ...creds.users.map((u) => `  ${u.role.padEnd(9)} ${u.email.padEnd(26)} ${u.password}`),
       `Demo API key (every scope): ${creds.apiKey}`,
-      env.SLAB_FAKE_SMTP === "1" ? `Mail is caught by a local fake server: each person reads their own at ${url}/settings/outbox; all of it with: npm run outbox` : "",
+      env.SLAB_FAKE_SMTP === "1"
+        ? `Mail is caught by a local fake server: each person reads their own at ${url}/settings/outbox; all of it with: npm run outbox`
+        : "",
       "",
       "Ctrl-C stops the app and the database.",
       "",

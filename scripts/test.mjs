@@ -25,7 +25,8 @@ import {
 } from "./setup.mjs";
 
 const started = Date.now();
-// `npm test -- unit` runs one stage; a path narrows it (`npm test -- integration tests/integration/attacks`).
+// `npm test -- unit` runs one stage (static, unit, integration, e2e);
+// a path narrows it (`npm test -- integration tests/integration/attacks`).
 const args = process.argv.slice(2);
 const filters = args.filter((a) => a.includes("/") || a.endsWith(".ts"));
 const only = args.filter((a) => !filters.includes(a));
@@ -46,7 +47,12 @@ fs.mkdirSync(resultsDir, { recursive: true });
 const port = Number(process.env.SLAB_TEST_PORT ?? 3100);
 const dbName = "slabwright_test";
 const env = {
-  ...appEnv({ port, dbName, smtpPort: Number(process.env.SLAB_TEST_SMTP_PORT ?? 2526), paymentsPort: Number(process.env.SLAB_TEST_PAYMENTS_PORT ?? 12112) }),
+  ...appEnv({
+    port,
+    dbName,
+    smtpPort: Number(process.env.SLAB_TEST_SMTP_PORT ?? 2526),
+    paymentsPort: Number(process.env.SLAB_TEST_PAYMENTS_PORT ?? 12112),
+  }),
   NODE_ENV: "test",
   SLAB_CREDENTIALS_FILE: path.join(DATA, "demo-credentials.test.json"),
   SLAB_TEST_PORT: String(port),
@@ -94,13 +100,35 @@ function cleanUp() {
 }
 process.on("exit", cleanUp);
 try {
+  // Types, lint and format first: a change that breaks them fails even when only tests changed.
+  if (want("static")) {
+    for (const [name, cmd, args] of [
+      ["typecheck", bin("tsc"), ["--noEmit"]],
+      ["lint", bin("eslint"), [".", "--max-warnings=0"]],
+      ["format", bin("prettier"), ["--check", ".", "--log-level=warn"]],
+    ]) {
+      const started = Date.now();
+      const res = run(cmd, args, { allowFail: true });
+      log(`${name}: ${res.status === 0 ? "clean" : "FAILED"} (${((Date.now() - started) / 1000).toFixed(0)} s)`);
+      if (res.status === 0) totals.passed += 1;
+      else {
+        totals.failed += 1;
+        exitCode = 1;
+      }
+    }
+  }
   ensureDatabase(dbName);
   migrateAndSeed(env);
   run(bin("tsx"), ["scripts/reset-test-state.ts"], { env });
   smtp = startFakeSmtp(env);
   payments = startFakePayments(env);
   // The build worker for the plate API tests; webhooks may call the tests' receiver on loopback.
-  Object.assign(env, { SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost", SLAB_JOB_EXPIRY_S: "6", SLAB_QUEUE_MAINTENANCE_S: "1", SLAB_THREAD_MAX_BUILDS: "5" });
+  Object.assign(env, {
+    SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1,localhost",
+    SLAB_JOB_EXPIRY_S: "6",
+    SLAB_QUEUE_MAINTENANCE_S: "1",
+    SLAB_THREAD_MAX_BUILDS: "5",
+  });
   // Webhook deliveries on a short schedule, so the tests see a retry within seconds (defaults: 10 s, 5 s).
   Object.assign(env, { SLAB_CALLBACK_TIMEOUT_MS: "2000", SLAB_CALLBACK_RETRY_DELAY_S: "1" });
   worker = startWorker(env);
@@ -110,7 +138,10 @@ try {
   let app = null;
   if (want("integration") || want("e2e")) {
     ensureBuild();
-    app = spawnChild(process.execPath, ["scripts/serve.mjs", "-H", "127.0.0.1", "-p", String(port)], { ...env, SLAB_MAX_UPLOAD_BYTES: String(20 * 1024 * 1024) });
+    app = spawnChild(process.execPath, ["scripts/serve.mjs", "-H", "127.0.0.1", "-p", String(port)], {
+      ...env,
+      SLAB_MAX_UPLOAD_BYTES: String(20 * 1024 * 1024),
+    });
     if (!(await waitForHttp(`http://localhost:${port}/api/health`, 120_000))) throw new Error("the test app did not start");
     env.SLAB_TEST_BASE_URL = `http://localhost:${port}`;
     env.SLAB_TEST_APP_PID = String(app.pid); // the upload tests read the app's memory from /proc
@@ -121,7 +152,10 @@ try {
   if (want("unit") || want("integration")) {
     const projects = ["unit", "integration"].filter(want).flatMap((p) => ["--project", p]);
     const out = path.join(resultsDir, "vitest.json");
-    const res = run(bin("vitest"), ["run", ...projects, ...filters, "--reporter=default", "--reporter=json", `--outputFile=${out}`], { env, allowFail: true });
+    const res = run(bin("vitest"), ["run", ...projects, ...filters, "--reporter=default", "--reporter=json", `--outputFile=${out}`], {
+      env,
+      allowFail: true,
+    });
     const json = readJson(out);
     if (json) {
       totals.passed += json.numPassedTests ?? 0;

@@ -22,7 +22,12 @@ import { runThumbnailJob } from "@/lib/jobs/run-thumbnail";
 import { deliverOnce, type CallbackJob } from "@/lib/jobs/webhook";
 
 const threads = env().SLAB_WORKER_THREADS ?? Math.max(1, os.availableParallelism());
-const pool = new Piscina({ filename: new URL("../lib/jobs/build-thread-entry.mjs", import.meta.url).href, minThreads: threads, maxThreads: threads, idleTimeout: 60_000 });
+const pool = new Piscina({
+  filename: new URL("../lib/jobs/build-thread-entry.mjs", import.meta.url).href,
+  minThreads: threads,
+  maxThreads: threads,
+  idleTimeout: 60_000,
+});
 const queue = await boss();
 
 let wake: (() => void)[] = [];
@@ -84,13 +89,19 @@ const callbackSlot = () =>
 // already builds the next (piscina queues it), so a thread never idles on the database or the disk.
 const perThread = env().SLAB_JOBS_PER_THREAD;
 const callbackSlots = env().SLAB_CALLBACK_CONCURRENCY;
-const slots = [...Array.from({ length: threads * perThread }, () => slot()), ...Array.from({ length: callbackSlots }, () => callbackSlot())];
+const slots = [
+  ...Array.from({ length: threads * perThread }, () => slot()),
+  ...Array.from({ length: callbackSlots }, () => callbackSlot()),
+];
 // Template top views still to draw (seeded starters, or a queue that was down when one was saved).
 void (async () => {
   const pending = await pendingThumbnails();
   for (const v of pending) await enqueueThumbnail(v.id).catch((err: unknown) => console.error("[worker] thumbnail not queued", err));
 })();
-console.log(`worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}, ${callbackSlots} delivery slots on ${CALLBACK_QUEUE}`);
+console.log(
+  `worker: ${threads} build ${threads === 1 ? "thread" : "threads"} on queue ${BUILD_QUEUE}, ${callbackSlots} delivery slots on ` +
+    `${CALLBACK_QUEUE}`,
+);
 
 async function stop() {
   if (stopping) return;

@@ -11,11 +11,24 @@ import { signIn } from "@/lib/auth/config";
 import { hit } from "@/lib/auth/rate-limit";
 import { loadSessionUser, setActiveWorkspace } from "@/lib/auth/guards";
 import { clientIp } from "@/lib/auth/request";
-import { magicLinkSchema, resetConfirmSchema, resetRequestSchema, signInSchema, signUpSchema, workspaceSchema, type ActionResult } from "@/lib/validation/accounts";
+import {
+  magicLinkSchema,
+  resetConfirmSchema,
+  resetRequestSchema,
+  signInSchema,
+  signUpSchema,
+  workspaceSchema,
+  type ActionResult,
+} from "@/lib/validation/accounts";
 import { AppError } from "@/lib/errors";
 
-const invalid = (error: z.ZodError): ActionResult<never> => ({ ok: false, message: "Check the marked fields.", fieldErrors: z.flattenError(error).fieldErrors as Record<string, string[]> });
-const wait = (seconds: number) => (seconds < 90 ? `${seconds} ${seconds === 1 ? "second" : "seconds"}` : `${Math.ceil(seconds / 60)} minutes`);
+const invalid = (error: z.ZodError): ActionResult<never> => ({
+  ok: false,
+  message: "Check the marked fields.",
+  fieldErrors: z.flattenError(error).fieldErrors as Record<string, string[]>,
+});
+const wait = (seconds: number) =>
+  seconds < 90 ? `${seconds} ${seconds === 1 ? "second" : "seconds"}` : `${Math.ceil(seconds / 60)} minutes`;
 const safeNext = (next: unknown) => (typeof next === "string" && /^\/(?!\/)[\w\-/?=&%.]*$/.test(next) ? next : "/parts");
 
 export async function signInWithPassword(input: z.input<typeof signInSchema> & { next?: string }): Promise<ActionResult> {
@@ -27,9 +40,14 @@ export async function signInWithPassword(input: z.input<typeof signInSchema> & {
   } catch (err) {
     if (err instanceof CredentialsSignin && err.code?.startsWith("rate_limited:")) {
       const seconds = Number(err.code.split(":")[1]);
-      return { ok: false, code: "rate_limited", message: `Too many wrong passwords. Try again in ${wait(seconds)}, or sign in by e-mailed link, which always works.` };
+      return {
+        ok: false,
+        code: "rate_limited",
+        message: `Too many wrong passwords. Try again in ${wait(seconds)}, or sign in by e-mailed link, which always works.`,
+      };
     }
-    if (err instanceof AuthError) return { ok: false, code: "bad_credentials", message: "That e-mail and password do not match an account." };
+    if (err instanceof AuthError)
+      return { ok: false, code: "bad_credentials", message: "That e-mail and password do not match an account." };
     throw err;
   }
   return { ok: true, data: undefined };
@@ -38,9 +56,21 @@ export async function signInWithPassword(input: z.input<typeof signInSchema> & {
 /** Mail sent on a form's say-so is limited per client and per address, so nobody's inbox is flooded. */
 async function mailAllowed(email: string): Promise<ActionResult | null> {
   const byIp = await hit("mailsPerIp", await clientIp());
-  if (!byIp.ok) return { ok: false, code: "rate_limited", message: `Too many e-mails asked for from your network. Try again in ${wait(byIp.retryAfter)}.` };
+  if (!byIp.ok)
+    return {
+      ok: false,
+      code: "rate_limited",
+      message: `Too many e-mails asked for from your network. Try again in ${wait(byIp.retryAfter)}.`,
+    };
   const byAddress = await hit("mailsPerAddress", email);
-  if (!byAddress.ok) return { ok: false, code: "rate_limited", message: `We sent mail to this address a moment ago. Check your inbox (and spam folder), or try again in ${wait(byAddress.retryAfter)}.` };
+  if (!byAddress.ok)
+    return {
+      ok: false,
+      code: "rate_limited",
+      message:
+        `We sent mail to this address a moment ago. Check your inbox (and spam folder), or try again in ` +
+        `${wait(byAddress.retryAfter)}.`,
+    };
   return null;
 }
 
@@ -71,11 +101,15 @@ export async function signUp(input: z.input<typeof signUpSchema> & { next?: stri
   if (!parsed.success) return invalid(parsed.error);
   const ip = await clientIp();
   const byIp = await hit("signUpsPerIp", ip);
-  if (!byIp.ok) return { ok: false, code: "rate_limited", message: `Too many sign-ups from your network. Try again in ${wait(byIp.retryAfter)}.` };
+  if (!byIp.ok)
+    return { ok: false, code: "rate_limited", message: `Too many sign-ups from your network. Try again in ${wait(byIp.retryAfter)}.` };
   const next = safeNext(input.next);
   const invited = next.startsWith("/invite/");
   // Someone arriving from an invitation joins that workspace; anyone else gets a workshop of their own.
-  await requestSignUp({ ...parsed.data, workshop: invited ? undefined : parsed.data.workshop || `${parsed.data.name}'s workshop`, next }, ip);
+  await requestSignUp(
+    { ...parsed.data, workshop: invited ? undefined : parsed.data.workshop || `${parsed.data.name}'s workshop`, next },
+    ip,
+  );
   redirect("/check-email?for=sign-up");
 }
 
@@ -87,7 +121,12 @@ export async function finishSignUpFromLink(input: { token: string }): Promise<Ac
   try {
     await signIn("sign-up-link", { token, redirectTo: safeNext(pending.next) });
   } catch (err) {
-    if (err instanceof AuthError) return { ok: false, code: "sign_up_failed", message: "This link could not be used. It may have been used a moment ago; try signing in." };
+    if (err instanceof AuthError)
+      return {
+        ok: false,
+        code: "sign_up_failed",
+        message: "This link could not be used. It may have been used a moment ago; try signing in.",
+      };
     throw err;
   }
   return { ok: true, data: undefined };
@@ -97,7 +136,12 @@ export async function askPasswordReset(input: z.input<typeof resetRequestSchema>
   const parsed = resetRequestSchema.safeParse(input);
   if (!parsed.success) return invalid(parsed.error);
   const byIp = await hit("mailsPerIp", await clientIp());
-  if (!byIp.ok) return { ok: false, code: "rate_limited", message: `Too many e-mails asked for from your network. Try again in ${wait(byIp.retryAfter)}.` };
+  if (!byIp.ok)
+    return {
+      ok: false,
+      code: "rate_limited",
+      message: `Too many e-mails asked for from your network. Try again in ${wait(byIp.retryAfter)}.`,
+    };
   try {
     await requestPasswordReset(parsed.data.email, await clientIp());
   } catch (err) {

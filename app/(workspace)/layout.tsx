@@ -16,8 +16,13 @@ export default async function WorkspaceLayout({ children }: { children: ReactNod
       <div className="min-h-screen">
         <TopBar caller={caller} />
         {billing.status === "grace" ? (
-          <p className="border-b border-finding-error/40 bg-finding-error/10 px-4 py-2 text-center text-sm print:hidden" role="status" data-testid="billing-banner">
-            A payment for the {billing.effective.name} plan failed. The plan holds until {billing.graceUntil?.toISOString().slice(0, 10)}; after that the workspace moves to the Bench plan.{" "}
+          <p
+            className="border-b border-finding-error/40 bg-finding-error/10 px-4 py-2 text-center text-sm print:hidden"
+            role="status"
+            data-testid="billing-banner"
+          >
+            A payment for the {billing.effective.name} plan failed. The plan holds until {billing.graceUntil?.toISOString().slice(0, 10)};
+            after that the workspace moves to the Bench plan.{" "}
             {caller.role === "owner" ? (
               <Link href="/settings/billing" className="underline">
                 Update the payment

@@ -8,7 +8,17 @@ import type { ActionResult } from "@/lib/validation/accounts";
  * One button that runs a server action and shows its refusal above itself; `onOk` follows a success
  * (an action that redirects never returns).
  */
-export function ActionButton<T>({ label, pendingLabel, run, onOk }: { label: string; pendingLabel: string; run: () => Promise<ActionResult<T>>; onOk?: (data: T) => void }) {
+export function ActionButton<T>({
+  label,
+  pendingLabel,
+  run,
+  onOk,
+}: {
+  label: string;
+  pendingLabel: string;
+  run: () => Promise<ActionResult<T>>;
+  onOk?: (data: T) => void;
+}) {
   const [pending, start] = useTransition();
   const [message, setMessage] = useState<{ ok: boolean; text: string } | null>(null);
   return (

@@ -35,7 +35,13 @@ export function useServerForm<T extends FieldValues, R>(
   return { form, onSubmit, message, pending: form.formState.isSubmitting };
 }
 
-export function Field<T extends FieldValues>({ form, name, label, hint, ...input }: { form: UseFormReturn<T>; name: Path<T>; label: string; hint?: string } & Omit<InputHTMLAttributes<HTMLInputElement>, "form" | "name">) {
+export function Field<T extends FieldValues>({
+  form,
+  name,
+  label,
+  hint,
+  ...input
+}: { form: UseFormReturn<T>; name: Path<T>; label: string; hint?: string } & Omit<InputHTMLAttributes<HTMLInputElement>, "form" | "name">) {
   const error = form.formState.errors[name]?.message as string | undefined;
   // Unique per form: two forms on one page (password and e-mailed link) both have an e-mail field.
   const id = `${useId()}-${String(name)}`;
@@ -44,7 +50,14 @@ export function Field<T extends FieldValues>({ form, name, label, hint, ...input
       <label htmlFor={id} className="block text-sm font-bold">
         {label}
       </label>
-      <input id={id} className="field-input mt-1" aria-invalid={Boolean(error)} aria-describedby={error ? `${id}-error` : hint ? `${id}-hint` : undefined} {...input} {...form.register(name)} />
+      <input
+        id={id}
+        className="field-input mt-1"
+        aria-invalid={Boolean(error)}
+        aria-describedby={error ? `${id}-error` : hint ? `${id}-hint` : undefined}
+        {...input}
+        {...form.register(name)}
+      />
       {error ? (
         <p id={`${id}-error`} className="mt-1 text-sm text-finding-error" data-testid={`${String(name)}-error`}>
           {error}
@@ -63,7 +76,10 @@ export function FormMessage({ message }: { message: { ok: boolean; text: string 
   return (
     <p
       data-testid="form-message"
-      className={`rounded-card border px-3 py-2 text-sm ${message.ok ? "border-accent/40 bg-accent-soft text-ink" : "border-finding-error/40 bg-finding-error/5 text-finding-error"}`}
+      className={
+        `rounded-card border px-3 py-2 text-sm ` +
+        `${message.ok ? "border-accent/40 bg-accent-soft text-ink" : "border-finding-error/40 bg-finding-error/5 text-finding-error"}`
+      }
     >
       <span aria-hidden="true">{message.ok ? "✓ " : "✕ "}</span>
       {message.text}

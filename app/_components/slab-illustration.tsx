@@ -11,7 +11,12 @@ export function SlabIllustration() {
     { n: 5, x: 150, y: 152, w: 86, h: 40 },
   ];
   return (
-    <svg viewBox="0 0 380 280" className="h-auto w-full" role="img" aria-label="A carrier slab seen from above, with five numbered pieces standing on outlines">
+    <svg
+      viewBox="0 0 380 280"
+      className="h-auto w-full"
+      role="img"
+      aria-label="A carrier slab seen from above, with five numbered pieces standing on outlines"
+    >
       <rect x="20" y="24" width="340" height="232" rx="22" fill="#efe8dc" stroke="#c9bfae" strokeWidth="2" />
       {pieces.map((p) => (
         <g key={p.n}>

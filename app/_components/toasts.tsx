@@ -18,7 +18,11 @@ export function ToastProvider({ children }: { children: ReactNode }) {
   return (
     <ToastContext.Provider value={push}>
       {children}
-      <div className="pointer-events-none fixed bottom-4 right-4 z-50 flex w-80 max-w-[calc(100vw-2rem)] flex-col gap-2" aria-live="polite" data-testid="toasts">
+      <div
+        className="pointer-events-none fixed bottom-4 right-4 z-50 flex w-80 max-w-[calc(100vw-2rem)] flex-col gap-2"
+        aria-live="polite"
+        data-testid="toasts"
+      >
         {toasts.map((t) => (
           <ToastItem key={t.id} toast={t} onDone={() => setToasts((all) => all.filter((x) => x.id !== t.id))} />
         ))}
@@ -34,7 +38,10 @@ function ToastItem({ toast, onDone }: { toast: Toast; onDone: () => void }) {
   }, [toast, onDone]);
   const edge = toast.tone === "done" ? "border-l-accent" : toast.tone === "problem" ? "border-l-finding-error" : "border-l-hairline";
   return (
-    <div role={toast.tone === "problem" ? "alert" : "status"} className={`card pointer-events-auto flex items-start gap-2 border-l-4 ${edge} px-3 py-2 text-sm shadow-lg`}>
+    <div
+      role={toast.tone === "problem" ? "alert" : "status"}
+      className={`card pointer-events-auto flex items-start gap-2 border-l-4 ${edge} px-3 py-2 text-sm shadow-lg`}
+    >
       <span className="grow">{toast.text}</span>
       <button type="button" className="text-muted hover:text-ink" aria-label="Dismiss" onClick={onDone}>
         ×

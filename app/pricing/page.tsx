@@ -15,7 +15,10 @@ export default function PricingPage() {
           </Link>
         </p>
         <h1 className="text-3xl">Plans</h1>
-        <p className="text-muted">Every plan builds the same slabs with the same checks. They differ in how many plates a month, and whether an order system and a logo come with it.</p>
+        <p className="text-muted">
+          Every plan builds the same slabs with the same checks. They differ in how many plates a month, and whether an order system and a
+          logo come with it.
+        </p>
       </header>
       <ul className="grid gap-4 md:grid-cols-3" aria-label="Plans">
         {PLAN_ORDER.map((id) => {
@@ -27,7 +30,13 @@ export default function PricingPage() {
               <p className="text-lg font-bold">{money(p.monthlyCents)}</p>
               <ul className="list-disc space-y-0.5 pl-4 text-sm">
                 <li>{p.platesPerPeriod.toLocaleString("en-US")} plates a month</li>
-                <li>{p.apiKeys === 0 ? "no order API" : p.apiKeys >= 1000 ? "order API, as many keys as you need" : `order API, up to ${p.apiKeys} keys`}</li>
+                <li>
+                  {p.apiKeys === 0
+                    ? "no order API"
+                    : p.apiKeys >= 1000
+                      ? "order API, as many keys as you need"
+                      : `order API, up to ${p.apiKeys} keys`}
+                </li>
                 <li>{p.logos ? "logos on templates" : "templates without logos"}</li>
                 {p.buildPriority >= 10 ? <li>its plates built first when the workers are busy</li> : null}
               </ul>
@@ -35,7 +44,9 @@ export default function PricingPage() {
           );
         })}
       </ul>
-      <p className="text-sm text-muted">An owner changes the plan under Settings → Billing. Prices include no tax; the local payment page in the demo moves no money.</p>
+      <p className="text-sm text-muted">
+        An owner changes the plan under Settings → Billing. Prices include no tax; the local payment page in the demo moves no money.
+      </p>
     </main>
   );
 }

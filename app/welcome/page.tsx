@@ -13,11 +13,13 @@ export default async function WelcomePage() {
   if (await callerFor(user)) redirect("/parts");
   return (
     <NarrowPage>
-        <h1 className="text-xl">Welcome, {user.name ?? user.email}</h1>
-        <p className="mt-2 text-sm text-muted">You are not in any workshop yet. Create your own, or open the invitation link a workshop owner sent you.</p>
-        <div className="mt-6">
-          <WorkspaceForm />
-        </div>
+      <h1 className="text-xl">Welcome, {user.name ?? user.email}</h1>
+      <p className="mt-2 text-sm text-muted">
+        You are not in any workshop yet. Create your own, or open the invitation link a workshop owner sent you.
+      </p>
+      <div className="mt-6">
+        <WorkspaceForm />
+      </div>
     </NarrowPage>
   );
 }

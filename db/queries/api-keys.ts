@@ -8,15 +8,30 @@ import type { Tx } from "./tx";
 /** API keys of a workspace, within the actor's workspace; a key sent with a request is looked up by its hash alone. */
 
 /** A new key of the actor's workspace, made by the actor; its id. */
-export async function insertApiKey(tx: Tx, actor: WorkspaceActor, values: { name: string; prefix: string; keyHash: string; scopes: ApiKeyScope[]; createdBy: string }): Promise<string> {
-  const [row] = await tx.insert(apiKeys).values({ workspaceId: actor.workspaceId, ...values }).returning({ id: apiKeys.id });
+export async function insertApiKey(
+  tx: Tx,
+  actor: WorkspaceActor,
+  values: { name: string; prefix: string; keyHash: string; scopes: ApiKeyScope[]; createdBy: string },
+): Promise<string> {
+  const [row] = await tx
+    .insert(apiKeys)
+    .values({ workspaceId: actor.workspaceId, ...values })
+    .returning({ id: apiKeys.id });
   return row!.id;
 }
 
 /** The workspace's keys (never their hashes), newest first. */
 export async function apiKeyRows(actor: WorkspaceActor) {
   return db()
-    .select({ id: apiKeys.id, name: apiKeys.name, prefix: apiKeys.prefix, scopes: apiKeys.scopes, createdAt: apiKeys.createdAt, lastUsedAt: apiKeys.lastUsedAt, revokedAt: apiKeys.revokedAt })
+    .select({
+      id: apiKeys.id,
+      name: apiKeys.name,
+      prefix: apiKeys.prefix,
+      scopes: apiKeys.scopes,
+      createdAt: apiKeys.createdAt,
+      lastUsedAt: apiKeys.lastUsedAt,
+      revokedAt: apiKeys.revokedAt,
+    })
     .from(apiKeys)
     .where(eq(apiKeys.workspaceId, actor.workspaceId))
     .orderBy(desc(apiKeys.createdAt));
@@ -24,7 +39,10 @@ export async function apiKeyRows(actor: WorkspaceActor) {
 
 /** How many keys of the workspace still work. */
 export async function activeApiKeyCount(actor: WorkspaceActor): Promise<number> {
-  const [held] = await db().select({ n: sql<number>`count(*)::int` }).from(apiKeys).where(and(eq(apiKeys.workspaceId, actor.workspaceId), isNull(apiKeys.revokedAt)));
+  const [held] = await db()
+    .select({ n: sql<number>`count(*)::int` })
+    .from(apiKeys)
+    .where(and(eq(apiKeys.workspaceId, actor.workspaceId), isNull(apiKeys.revokedAt)));
   return held!.n;
 }
 
@@ -54,5 +72,11 @@ export async function touchApiKey(actor: WorkspaceActor & { apiKeyId: string }):
   await db()
     .update(apiKeys)
     .set({ lastUsedAt: new Date() })
-    .where(and(eq(apiKeys.id, actor.apiKeyId), eq(apiKeys.workspaceId, actor.workspaceId), or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, minuteAgo))));
+    .where(
+      and(
+        eq(apiKeys.id, actor.apiKeyId),
+        eq(apiKeys.workspaceId, actor.workspaceId),
+        or(isNull(apiKeys.lastUsedAt), lt(apiKeys.lastUsedAt, minuteAgo)),
+      ),
+    );
 }

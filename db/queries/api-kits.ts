@@ -21,7 +21,14 @@ export async function apiGetKit(actor: WorkspaceActor, id: string) {
     .where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)));
   if (!kit) return null;
   const lines = await db()
-    .select({ partId: parts.id, name: parts.name, quantity: kitParts.quantity, rotation: kitParts.rotation, orientation: kitParts.orientation, triangles: parts.triangles })
+    .select({
+      partId: parts.id,
+      name: parts.name,
+      quantity: kitParts.quantity,
+      rotation: kitParts.rotation,
+      orientation: kitParts.orientation,
+      triangles: parts.triangles,
+    })
     .from(kitParts)
     .innerJoin(parts, eq(parts.id, kitParts.partId))
     .where(and(eq(kitParts.kitId, kit.id), eq(parts.workspaceId, actor.workspaceId)))

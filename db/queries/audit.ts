@@ -17,14 +17,28 @@ export async function insertAuditEvent(entry: AuditValues, tx?: Tx): Promise<voi
 /** The workspace's events, and account events (sign-ins) of its current members: one page, newest first, and the total. */
 export async function auditPage(actor: WorkspaceActor, page: { limit: number; offset: number }) {
   const memberIds = db().select({ id: memberships.userId }).from(memberships).where(eq(memberships.workspaceId, actor.workspaceId));
-  const memberEmails = db().select({ email: users.email }).from(users).innerJoin(memberships, eq(memberships.userId, users.id)).where(eq(memberships.workspaceId, actor.workspaceId));
+  const memberEmails = db()
+    .select({ email: users.email })
+    .from(users)
+    .innerJoin(memberships, eq(memberships.userId, users.id))
+    .where(eq(memberships.workspaceId, actor.workspaceId));
   const where = or(
     eq(auditEvents.workspaceId, actor.workspaceId),
     and(isNull(auditEvents.workspaceId), or(inArray(auditEvents.actorUserId, memberIds), inArray(auditEvents.actorEmail, memberEmails))),
   );
   const [total] = await db().select({ n: count() }).from(auditEvents).where(where);
   const rows = await db()
-    .select({ id: auditEvents.id, action: auditEvents.action, target: auditEvents.target, ip: auditEvents.ip, details: auditEvents.details, createdAt: auditEvents.createdAt, actorEmail: auditEvents.actorEmail, actorName: users.name, actorUserEmail: users.email })
+    .select({
+      id: auditEvents.id,
+      action: auditEvents.action,
+      target: auditEvents.target,
+      ip: auditEvents.ip,
+      details: auditEvents.details,
+      createdAt: auditEvents.createdAt,
+      actorEmail: auditEvents.actorEmail,
+      actorName: users.name,
+      actorUserEmail: users.email,
+    })
     .from(auditEvents)
     .leftJoin(users, eq(users.id, auditEvents.actorUserId))
     .where(where)

@@ -27,7 +27,11 @@ export async function insertBillingRow(actor: WorkspaceActor, tx: Db = db()): Pr
 
 /** A grace period that ran out: the workspace is on the free plan now. */
 export async function endGrace(actor: WorkspaceActor, tx: Db = db()): Promise<BillingRow> {
-  const [b] = await tx.update(workspaceBilling).set({ plan: "bench", status: "canceled", graceUntil: null, updatedAt: new Date() }).where(eq(workspaceBilling.workspaceId, actor.workspaceId)).returning();
+  const [b] = await tx
+    .update(workspaceBilling)
+    .set({ plan: "bench", status: "canceled", graceUntil: null, updatedAt: new Date() })
+    .where(eq(workspaceBilling.workspaceId, actor.workspaceId))
+    .returning();
   return b!;
 }
 
@@ -46,14 +50,20 @@ export async function lockBilling(tx: Tx, actor: WorkspaceActor): Promise<void> 
 
 /** The workspace whose customer id the provider names, or null. */
 export async function workspaceOfCustomer(tx: Tx, customerId: string): Promise<string | null> {
-  return (await tx.select({ id: workspaceBilling.workspaceId }).from(workspaceBilling).where(eq(workspaceBilling.customerId, customerId)))[0]?.id ?? null;
+  return (
+    (await tx.select({ id: workspaceBilling.workspaceId }).from(workspaceBilling).where(eq(workspaceBilling.customerId, customerId)))[0]
+      ?.id ?? null
+  );
 }
 
 // ---------------------------------------------------------------- plate usage
 
 /** Plates made in the period starting `periodStart`. */
 export async function platesInPeriod(actor: WorkspaceActor, periodStart: Date, tx: Db = db()): Promise<number> {
-  const [u] = await tx.select().from(plateUsage).where(and(eq(plateUsage.workspaceId, actor.workspaceId), eq(plateUsage.periodStart, periodStart)));
+  const [u] = await tx
+    .select()
+    .from(plateUsage)
+    .where(and(eq(plateUsage.workspaceId, actor.workspaceId), eq(plateUsage.periodStart, periodStart)));
   return u?.plates ?? 0;
 }
 
@@ -95,8 +105,15 @@ export async function completeCheckoutSession(tx: Tx, actor: WorkspaceActor, id:
 }
 
 /** Record a provider event as pending; false when it was recorded before (a redelivery). */
-export async function insertBillingEvent(tx: Tx, values: { id: string; type: string; workspaceId: string | null; createdAt: Date }): Promise<boolean> {
-  const inserted = await tx.insert(billingEvents).values({ ...values, outcome: "pending" }).onConflictDoNothing().returning();
+export async function insertBillingEvent(
+  tx: Tx,
+  values: { id: string; type: string; workspaceId: string | null; createdAt: Date },
+): Promise<boolean> {
+  const inserted = await tx
+    .insert(billingEvents)
+    .values({ ...values, outcome: "pending" })
+    .onConflictDoNothing()
+    .returning();
   return inserted.length > 0;
 }
 

@@ -18,11 +18,17 @@ export async function plateForBuild(plateId: string): Promise<Plate | null> {
 
 /** The build has started in job `jobId`. */
 export async function startBuild(actor: WorkspaceActor, plateId: string, jobId: string): Promise<void> {
-  await db().update(plates).set({ jobState: "running", progress: 0.2, jobId }).where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
+  await db()
+    .update(plates)
+    .set({ jobState: "running", progress: 0.2, jobId })
+    .where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
 }
 
 export async function setBuildProgress(actor: WorkspaceActor, plateId: string, progress: number): Promise<void> {
-  await db().update(plates).set({ progress }).where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
+  await db()
+    .update(plates)
+    .set({ progress })
+    .where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
 }
 
 /** The build's outcome on the plate (its files, findings, proof or error), finished at `finishedAt`. */
@@ -35,12 +41,19 @@ export async function finishBuild(
 ): Promise<void> {
   // The outcome and the files land together: a ready plate always has its files listed.
   await db().transaction(async (tx) => {
-    const [row] = await tx.update(plates).set({ ...set, progress: 1, finishedAt }).where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId))).returning({ id: plates.id });
+    const [row] = await tx
+      .update(plates)
+      .set({ ...set, progress: 1, finishedAt })
+      .where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)))
+      .returning({ id: plates.id });
     if (!row || !files.length) return;
     await tx
       .insert(plateFiles)
       .values(files.map((f) => ({ plateId, ...f })))
-      .onConflictDoUpdate({ target: [plateFiles.plateId, plateFiles.format], set: { blobKey: sql`excluded.blob_key`, bytes: sql`excluded.bytes`, sha256: sql`excluded.sha256` } });
+      .onConflictDoUpdate({
+        target: [plateFiles.plateId, plateFiles.format],
+        set: { blobKey: sql`excluded.blob_key`, bytes: sql`excluded.bytes`, sha256: sql`excluded.sha256` },
+      });
   });
 }
 

@@ -1,7 +1,18 @@
 import "server-only";
 import { and, asc, desc, eq, ilike, isNotNull, like, or, sql } from "drizzle-orm";
 import { db } from "@/db";
-import { FLOOR_STATES, floorEvents, inspections, kits, memberships, plates, users, type FloorState, type PieceCheck, type Plate } from "@/db/schema";
+import {
+  FLOOR_STATES,
+  floorEvents,
+  inspections,
+  kits,
+  memberships,
+  plates,
+  users,
+  type FloorState,
+  type PieceCheck,
+  type Plate,
+} from "@/db/schema";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import type { Tx } from "./tx";
 
@@ -16,7 +27,9 @@ const WAITING = new Set<FloorState>(["to_print", "printing", "to_inspect", "repr
  */
 export async function floorQueue(actor: WorkspaceActor, term?: string) {
   const ws = actor.workspaceId;
-  const match = term ? or(like(plates.id, `${term.toLowerCase()}%`), ilike(kits.name, `%${term}%`), ilike(plates.title, `%${term}%`)) : undefined;
+  const match = term
+    ? or(like(plates.id, `${term.toLowerCase()}%`), ilike(kits.name, `%${term}%`), ilike(plates.title, `%${term}%`))
+    : undefined;
   const last = db()
     .selectDistinctOn([floorEvents.plateId], { plateId: floorEvents.plateId, at: floorEvents.at, by: users.name, byEmail: users.email })
     .from(floorEvents)
@@ -34,7 +47,19 @@ export async function floorQueue(actor: WorkspaceActor, term?: string) {
     FLOOR_STATES.map(async (state) => {
       const since = sql`coalesce(${last.at}, ${plates.createdAt})`;
       const rows = await db()
-        .select({ id: plates.id, floorState: plates.floorState, title: plates.title, kitName: kits.name, pieceCount: plates.pieceCount, createdAt: plates.createdAt, reprintOf: plates.reprintOf, source: plates.source, movedAt: last.at, movedBy: last.by, movedByEmail: last.byEmail })
+        .select({
+          id: plates.id,
+          floorState: plates.floorState,
+          title: plates.title,
+          kitName: kits.name,
+          pieceCount: plates.pieceCount,
+          createdAt: plates.createdAt,
+          reprintOf: plates.reprintOf,
+          source: plates.source,
+          movedAt: last.at,
+          movedBy: last.by,
+          movedByEmail: last.byEmail,
+        })
         .from(plates)
         .leftJoin(kits, eq(kits.id, plates.kitId))
         .leftJoin(last, eq(last.plateId, plates.id))
@@ -44,7 +69,10 @@ export async function floorQueue(actor: WorkspaceActor, term?: string) {
       return [state, rows] as const;
     }),
   );
-  return { counts: Object.fromEntries(counts.map((c) => [c.state!, c.n])) as Partial<Record<FloorState, number>>, lists: Object.fromEntries(lists) as Record<FloorState, (typeof lists)[number][1]> };
+  return {
+    counts: Object.fromEntries(counts.map((c) => [c.state!, c.n])) as Partial<Record<FloorState, number>>,
+    lists: Object.fromEntries(lists) as Record<FloorState, (typeof lists)[number][1]>,
+  };
 }
 
 /** A plate's floor history: its moves and inspections (newest first), its reprints, and the plate it reprints. */
@@ -63,37 +91,85 @@ export async function floorHistory(actor: WorkspaceActor, plate: Plate) {
     .where(and(eq(inspections.plateId, plate.id), eq(inspections.workspaceId, ws)))
     .orderBy(desc(inspections.at));
   const reprints = await db()
-    .select({ id: plates.id, floorState: plates.floorState, jobState: plates.jobState, pieceCount: plates.pieceCount, createdAt: plates.createdAt })
+    .select({
+      id: plates.id,
+      floorState: plates.floorState,
+      jobState: plates.jobState,
+      pieceCount: plates.pieceCount,
+      createdAt: plates.createdAt,
+    })
     .from(plates)
     .where(and(eq(plates.workspaceId, ws), eq(plates.reprintOf, plate.id)))
     .orderBy(asc(plates.createdAt));
   const original = plate.reprintOf
-    ? ((await db().select({ id: plates.id, floorState: plates.floorState }).from(plates).where(and(eq(plates.id, plate.reprintOf), eq(plates.workspaceId, ws))))[0] ?? null)
+    ? ((
+        await db()
+          .select({ id: plates.id, floorState: plates.floorState })
+          .from(plates)
+          .where(and(eq(plates.id, plate.reprintOf), eq(plates.workspaceId, ws)))
+      )[0] ?? null)
     : null;
   return { events, inspections: checks, reprints, original };
 }
 
 /** Move a plate on the floor and record who moved it, inside the caller's transaction. */
-export async function setFloorState(tx: Tx, actor: WorkspaceActor, plateId: string, from: FloorState | null, to: FloorState, note: string | null): Promise<void> {
-  await tx.update(plates).set({ floorState: to }).where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
+export async function setFloorState(
+  tx: Tx,
+  actor: WorkspaceActor,
+  plateId: string,
+  from: FloorState | null,
+  to: FloorState,
+  note: string | null,
+): Promise<void> {
+  await tx
+    .update(plates)
+    .set({ floorState: to })
+    .where(and(eq(plates.id, plateId), eq(plates.workspaceId, actor.workspaceId)));
   await addFloorEvent(tx, actor, plateId, from, to, note);
 }
 
 /** A line in a plate's floor history without a move (a reprint made). */
-export async function addFloorEvent(tx: Tx, actor: WorkspaceActor, plateId: string, from: FloorState | null, to: FloorState, note: string | null): Promise<void> {
-  await tx.insert(floorEvents).values({ workspaceId: actor.workspaceId, plateId, fromState: from, toState: to, note, byUserId: actor.userId });
+export async function addFloorEvent(
+  tx: Tx,
+  actor: WorkspaceActor,
+  plateId: string,
+  from: FloorState | null,
+  to: FloorState,
+  note: string | null,
+): Promise<void> {
+  await tx
+    .insert(floorEvents)
+    .values({ workspaceId: actor.workspaceId, plateId, fromState: from, toState: to, note, byUserId: actor.userId });
 }
 
 /** Store an inspection; the first of a plate counts towards first-pass yield. */
-export async function insertInspection(tx: Tx, actor: WorkspaceActor, plateId: string, results: PieceCheck[], missing: number, defective: number) {
-  const [prior] = await tx.select({ n: sql<number>`count(*)::int` }).from(inspections).where(and(eq(inspections.plateId, plateId), eq(inspections.workspaceId, actor.workspaceId)));
-  const [row] = await tx.insert(inspections).values({ workspaceId: actor.workspaceId, plateId, results, first: prior!.n === 0, missing, defective, byUserId: actor.userId }).returning();
+export async function insertInspection(
+  tx: Tx,
+  actor: WorkspaceActor,
+  plateId: string,
+  results: PieceCheck[],
+  missing: number,
+  defective: number,
+) {
+  const [prior] = await tx
+    .select({ n: sql<number>`count(*)::int` })
+    .from(inspections)
+    .where(and(eq(inspections.plateId, plateId), eq(inspections.workspaceId, actor.workspaceId)));
+  const [row] = await tx
+    .insert(inspections)
+    .values({ workspaceId: actor.workspaceId, plateId, results, first: prior!.n === 0, missing, defective, byUserId: actor.userId })
+    .returning();
   return row!;
 }
 
 /** The newest inspection of a plate, if any. */
 export async function lastInspection(actor: WorkspaceActor, plateId: string) {
-  const [last] = await db().select().from(inspections).where(and(eq(inspections.plateId, plateId), eq(inspections.workspaceId, actor.workspaceId))).orderBy(desc(inspections.at)).limit(1);
+  const [last] = await db()
+    .select()
+    .from(inspections)
+    .where(and(eq(inspections.plateId, plateId), eq(inspections.workspaceId, actor.workspaceId)))
+    .orderBy(desc(inspections.at))
+    .limit(1);
   return last ?? null;
 }
 
@@ -101,16 +177,30 @@ export async function lastInspection(actor: WorkspaceActor, plateId: string) {
 export async function problemRecipients(p: Plate): Promise<string[]> {
   // A maker who has left the workspace hears nothing more of it; its owners do instead.
   const maker = p.createdBy
-    ? await db().select({ email: users.email }).from(users).innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.workspaceId, p.workspaceId))).where(eq(users.id, p.createdBy))
+    ? await db()
+        .select({ email: users.email })
+        .from(users)
+        .innerJoin(memberships, and(eq(memberships.userId, users.id), eq(memberships.workspaceId, p.workspaceId)))
+        .where(eq(users.id, p.createdBy))
     : [];
-  const rows = maker.length ? maker : await db().select({ email: users.email }).from(memberships).innerJoin(users, eq(users.id, memberships.userId)).where(and(eq(memberships.workspaceId, p.workspaceId), eq(memberships.role, "owner")));
+  const rows = maker.length
+    ? maker
+    : await db()
+        .select({ email: users.email })
+        .from(memberships)
+        .innerJoin(users, eq(users.id, memberships.userId))
+        .where(and(eq(memberships.workspaceId, p.workspaceId), eq(memberships.role, "owner")));
   return rows.map((r) => r.email);
 }
 
 /** First inspections by ISO week: how many, and how many found every piece present and none defective. */
 export async function firstInspectionsByWeek(actor: WorkspaceActor, kitId?: string) {
   return db()
-    .select({ week: sql<string>`to_char(date_trunc('week', ${inspections.at}), 'YYYY-MM-DD')`, inspected: sql<number>`count(*)::int`, passed: sql<number>`count(*) filter (where ${inspections.missing} = 0 and ${inspections.defective} = 0)::int` })
+    .select({
+      week: sql<string>`to_char(date_trunc('week', ${inspections.at}), 'YYYY-MM-DD')`,
+      inspected: sql<number>`count(*)::int`,
+      passed: sql<number>`count(*) filter (where ${inspections.missing} = 0 and ${inspections.defective} = 0)::int`,
+    })
     .from(inspections)
     .innerJoin(plates, eq(plates.id, inspections.plateId))
     .where(and(eq(inspections.workspaceId, actor.workspaceId), eq(inspections.first, true), kitId ? eq(plates.kitId, kitId) : undefined))

@@ -15,11 +15,22 @@ export async function revokePendingInvitations(tx: Tx, actor: WorkspaceActor, em
   await tx
     .update(invitations)
     .set({ revokedAt: new Date() })
-    .where(and(eq(invitations.workspaceId, actor.workspaceId), eq(invitations.email, email), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)));
+    .where(
+      and(
+        eq(invitations.workspaceId, actor.workspaceId),
+        eq(invitations.email, email),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    );
 }
 
 /** A new invitation from the actor; its id. */
-export async function insertInvitation(tx: Tx, actor: WorkspaceActor, values: { email: string; role: Role; tokenHash: string; invitedBy: string; expiresAt: Date }): Promise<string> {
+export async function insertInvitation(
+  tx: Tx,
+  actor: WorkspaceActor,
+  values: { email: string; role: Role; tokenHash: string; invitedBy: string; expiresAt: Date },
+): Promise<string> {
   const [row] = await tx
     .insert(invitations)
     .values({ workspaceId: actor.workspaceId, ...values })
@@ -29,15 +40,31 @@ export async function insertInvitation(tx: Tx, actor: WorkspaceActor, values: { 
 
 /** Take an invitation back at once (its mail could not be sent). */
 export async function withdrawInvitation(actor: WorkspaceActor, id: string): Promise<void> {
-  await db().update(invitations).set({ revokedAt: new Date() }).where(and(eq(invitations.id, id), eq(invitations.workspaceId, actor.workspaceId)));
+  await db()
+    .update(invitations)
+    .set({ revokedAt: new Date() })
+    .where(and(eq(invitations.id, id), eq(invitations.workspaceId, actor.workspaceId)));
 }
 
 /** The workspace's invitations still open (not accepted, withdrawn or expired), newest first. */
 export async function pendingInvitationRows(actor: WorkspaceActor) {
   return db()
-    .select({ id: invitations.id, email: invitations.email, role: invitations.role, createdAt: invitations.createdAt, expiresAt: invitations.expiresAt })
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      createdAt: invitations.createdAt,
+      expiresAt: invitations.expiresAt,
+    })
     .from(invitations)
-    .where(and(eq(invitations.workspaceId, actor.workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt), gt(invitations.expiresAt, new Date())))
+    .where(
+      and(
+        eq(invitations.workspaceId, actor.workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
+    )
     .orderBy(desc(invitations.createdAt));
 }
 
@@ -46,7 +73,14 @@ export async function revokeInvitationRow(tx: Tx, actor: WorkspaceActor, id: str
   const res = await tx
     .update(invitations)
     .set({ revokedAt: new Date() })
-    .where(and(eq(invitations.id, id), eq(invitations.workspaceId, actor.workspaceId), isNull(invitations.acceptedAt), isNull(invitations.revokedAt)))
+    .where(
+      and(
+        eq(invitations.id, id),
+        eq(invitations.workspaceId, actor.workspaceId),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+      ),
+    )
     .returning({ email: invitations.email });
   return res[0]?.email ?? null;
 }
@@ -54,22 +88,45 @@ export async function revokeInvitationRow(tx: Tx, actor: WorkspaceActor, id: str
 /** The invitation a link stands for, with its workspace's name, or null. */
 export async function invitationByTokenHash(tokenHash: string) {
   const [row] = await db()
-    .select({ id: invitations.id, email: invitations.email, role: invitations.role, expiresAt: invitations.expiresAt, acceptedAt: invitations.acceptedAt, revokedAt: invitations.revokedAt, workspaceId: invitations.workspaceId, workspaceName: workspaces.name })
+    .select({
+      id: invitations.id,
+      email: invitations.email,
+      role: invitations.role,
+      expiresAt: invitations.expiresAt,
+      acceptedAt: invitations.acceptedAt,
+      revokedAt: invitations.revokedAt,
+      workspaceId: invitations.workspaceId,
+      workspaceName: workspaces.name,
+    })
     .from(invitations)
     .innerJoin(workspaces, eq(workspaces.id, invitations.workspaceId))
     .where(eq(invitations.tokenHash, tokenHash));
   return row ?? null;
 }
 
-export type LockedInvitation = { id: string; email: string; role: Role; workspace_id: string; expires_at: Date; accepted_at: Date | null; revoked_at: Date | null };
+export type LockedInvitation = {
+  id: string;
+  email: string;
+  role: Role;
+  workspace_id: string;
+  expires_at: Date;
+  accepted_at: Date | null;
+  revoked_at: Date | null;
+};
 
 /** The invitation a link stands for, locked for the caller's transaction (it is used once), or null. */
 export async function lockInvitationByTokenHash(tx: Tx, tokenHash: string): Promise<LockedInvitation | null> {
-  const res = await tx.execute<LockedInvitation>(sql`select id, email, role, workspace_id, expires_at, accepted_at, revoked_at from invitations where token_hash = ${tokenHash} for update`);
+  const res = await tx.execute<LockedInvitation>(
+    sql`select id, email, role, workspace_id, expires_at, accepted_at, revoked_at from invitations where token_hash = ${tokenHash} ` +
+      `for update`,
+  );
   return res.rows[0] ?? null;
 }
 
 /** The invitation has been used, by `userId`. */
 export async function markInvitationAccepted(tx: Tx, actor: WorkspaceActor, id: string, userId: string): Promise<void> {
-  await tx.update(invitations).set({ acceptedAt: new Date(), acceptedBy: userId }).where(and(eq(invitations.id, id), eq(invitations.workspaceId, actor.workspaceId)));
+  await tx
+    .update(invitations)
+    .set({ acceptedAt: new Date(), acceptedBy: userId })
+    .where(and(eq(invitations.id, id), eq(invitations.workspaceId, actor.workspaceId)));
 }

@@ -9,10 +9,19 @@ import type { Tx } from "./tx";
 
 /** A kit of the actor's workspace with its lines (and their parts' names) in kit order, or null. */
 export async function getKit(actor: WorkspaceActor, id: string) {
-  const [kit] = await db().select().from(kits).where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)));
+  const [kit] = await db()
+    .select()
+    .from(kits)
+    .where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)));
   if (!kit) return null;
   const lines = await db()
-    .select({ partId: kitParts.partId, quantity: kitParts.quantity, rotation: kitParts.rotation, orientation: kitParts.orientation, name: parts.name })
+    .select({
+      partId: kitParts.partId,
+      quantity: kitParts.quantity,
+      rotation: kitParts.rotation,
+      orientation: kitParts.orientation,
+      name: parts.name,
+    })
     .from(kitParts)
     .innerJoin(parts, eq(parts.id, kitParts.partId))
     .where(and(eq(kitParts.kitId, kit.id), eq(parts.workspaceId, actor.workspaceId)))
@@ -22,12 +31,19 @@ export async function getKit(actor: WorkspaceActor, id: string) {
 
 /** The parts a kit line may use: the workspace's, by name. */
 export async function partChoices(actor: WorkspaceActor) {
-  return db().select({ id: parts.id, name: parts.name }).from(parts).where(eq(parts.workspaceId, actor.workspaceId)).orderBy(asc(parts.name));
+  return db()
+    .select({ id: parts.id, name: parts.name })
+    .from(parts)
+    .where(eq(parts.workspaceId, actor.workspaceId))
+    .orderBy(asc(parts.name));
 }
 
 /** How many of `ids` are parts of the actor's workspace. */
 export async function countWorkspaceParts(tx: Tx, actor: WorkspaceActor, ids: string[]): Promise<number> {
-  const found = await tx.select({ id: parts.id }).from(parts).where(and(inArray(parts.id, ids), eq(parts.workspaceId, actor.workspaceId)));
+  const found = await tx
+    .select({ id: parts.id })
+    .from(parts)
+    .where(and(inArray(parts.id, ids), eq(parts.workspaceId, actor.workspaceId)));
   return found.length;
 }
 
@@ -45,7 +61,10 @@ export async function updateKit(tx: Tx, actor: WorkspaceActor, id: string, value
 
 /** A new kit of the actor's workspace, made by the actor; its id. */
 export async function insertKit(tx: Tx, actor: WorkspaceActor, values: KitValues): Promise<string> {
-  const [row] = await tx.insert(kits).values({ workspaceId: actor.workspaceId, ...values, createdBy: actor.userId }).returning({ id: kits.id });
+  const [row] = await tx
+    .insert(kits)
+    .values({ workspaceId: actor.workspaceId, ...values, createdBy: actor.userId })
+    .returning({ id: kits.id });
   return row!.id;
 }
 
@@ -59,6 +78,10 @@ export async function replaceKitLines(tx: Tx, kitId: string, lines: KitLine[], o
 
 /** Archive a kit; false when the workspace has no such kit. */
 export async function archiveKitRow(actor: WorkspaceActor, id: string): Promise<boolean> {
-  const res = await db().update(kits).set({ archivedAt: new Date() }).where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId))).returning({ id: kits.id });
+  const res = await db()
+    .update(kits)
+    .set({ archivedAt: new Date() })
+    .where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)))
+    .returning({ id: kits.id });
   return Boolean(res[0]);
 }

@@ -51,7 +51,9 @@ export async function listPlates(actor: WorkspaceActor, filter: { kitId?: string
       findings: plates.findings,
       proofSummary: sql<string | null>`${plates.proof}->>'summary'`,
       proofOk: sql<boolean | null>`(${plates.proof}->>'ok')::boolean`,
-      files: sql<ExportFormatId[]>`coalesce((select array_agg(${plateFiles.format}) from ${plateFiles} where ${plateFiles.plateId} = ${plates.id}), '{}')`,
+      files: sql<
+        ExportFormatId[]
+      >`coalesce((select array_agg(${plateFiles.format}) from ${plateFiles} where ${plateFiles.plateId} = ${plates.id}), '{}')`,
       makerName: users.name,
       makerEmail: users.email,
       templateId: templates.id,

@@ -12,11 +12,21 @@ import type { Tx } from "./tx";
 
 type Db = ReturnType<typeof db> | Tx;
 
-export const PART_SORTS = { name: parts.name, triangles: parts.triangles, volume: parts.volume, contactArea: parts.contactArea, createdAt: parts.createdAt, sizeZ: parts.sizeZ } as const;
+export const PART_SORTS = {
+  name: parts.name,
+  triangles: parts.triangles,
+  volume: parts.volume,
+  contactArea: parts.contactArea,
+  createdAt: parts.createdAt,
+  sizeZ: parts.sizeZ,
+} as const;
 export type PartSort = keyof typeof PART_SORTS;
 
 /** The parts library: one page of the actor's workspace's parts, searched by name and sorted. */
-export async function searchParts(actor: WorkspaceActor, q: { search?: string; sort?: PartSort; dir?: "asc" | "desc"; page?: number; pageSize?: number }) {
+export async function searchParts(
+  actor: WorkspaceActor,
+  q: { search?: string; sort?: PartSort; dir?: "asc" | "desc"; page?: number; pageSize?: number },
+) {
   const pageSize = Math.min(100, Math.max(1, q.pageSize ?? 20));
   const page = Math.max(1, q.page ?? 1);
   const conds: SQL[] = [eq(parts.workspaceId, actor.workspaceId)];
@@ -55,18 +65,28 @@ export async function searchParts(actor: WorkspaceActor, q: { search?: string; s
 
 /** One part of the actor's workspace, or null. */
 export async function partById(actor: WorkspaceActor, id: string): Promise<Part | null> {
-  const [p] = await db().select().from(parts).where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId)));
+  const [p] = await db()
+    .select()
+    .from(parts)
+    .where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId)));
   return p ?? null;
 }
 
 /** The actor's workspace's parts among `ids` (in no particular order). */
 export async function partsByIds(actor: WorkspaceActor, ids: string[]): Promise<Part[]> {
-  return db().select().from(parts).where(and(inArray(parts.id, ids), eq(parts.workspaceId, actor.workspaceId)));
+  return db()
+    .select()
+    .from(parts)
+    .where(and(inArray(parts.id, ids), eq(parts.workspaceId, actor.workspaceId)));
 }
 
 /** Rename a part; null when the workspace has no such part. */
 export async function renamePart(actor: WorkspaceActor, id: string, name: string): Promise<Part | null> {
-  const [row] = await db().update(parts).set({ name, updatedAt: new Date() }).where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId))).returning();
+  const [row] = await db()
+    .update(parts)
+    .set({ name, updatedAt: new Date() })
+    .where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId)))
+    .returning();
   return row ?? null;
 }
 
@@ -88,13 +108,20 @@ export async function insertParts(tx: Tx, actor: WorkspaceActor, values: PartVal
 
 /** A part locked for the caller's transaction (a concurrent delete or split waits for it), or null. */
 export async function lockPart(tx: Tx, actor: WorkspaceActor, id: string): Promise<Part | null> {
-  const [part] = await tx.select().from(parts).where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId))).for("update");
+  const [part] = await tx
+    .select()
+    .from(parts)
+    .where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId)))
+    .for("update");
   return part ?? null;
 }
 
 /** A part read again: its new unit, lying and measures. */
 export async function setPartMeasures(tx: Tx, actor: WorkspaceActor, id: string, measured: Partial<PartValues>): Promise<void> {
-  await tx.update(parts).set({ ...measured, updatedAt: new Date() }).where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId)));
+  await tx
+    .update(parts)
+    .set({ ...measured, updatedAt: new Date() })
+    .where(and(eq(parts.id, id), eq(parts.workspaceId, actor.workspaceId)));
 }
 
 /** The names of the actor's workspace's kits that use any of the parts (each once). */
@@ -109,17 +136,26 @@ export async function kitsUsingParts(actor: WorkspaceActor, ids: string[], opts:
 
 // ---------------------------------------------------------------- uploads
 
-export type UploadValues = Omit<typeof partUploads.$inferInsert, "id" | "workspaceId" | "createdAt" | "state" | "partIds" | "error" | "finishedAt">;
+export type UploadValues = Omit<
+  typeof partUploads.$inferInsert,
+  "id" | "workspaceId" | "createdAt" | "state" | "partIds" | "error" | "finishedAt"
+>;
 
 /** Record an upload (`checking`) of the actor's workspace. */
 export async function insertUpload(actor: WorkspaceActor, values: UploadValues): Promise<PartUpload> {
-  const [row] = await db().insert(partUploads).values({ ...values, workspaceId: actor.workspaceId }).returning();
+  const [row] = await db()
+    .insert(partUploads)
+    .values({ ...values, workspaceId: actor.workspaceId })
+    .returning();
   return row!;
 }
 
 /** One upload of the actor's workspace, or null. */
 export async function uploadById(actor: WorkspaceActor, id: string): Promise<PartUpload | null> {
-  const [u] = await db().select().from(partUploads).where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, actor.workspaceId)));
+  const [u] = await db()
+    .select()
+    .from(partUploads)
+    .where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, actor.workspaceId)));
   return u ?? null;
 }
 
@@ -133,7 +169,11 @@ export async function uploadForImport(id: string): Promise<PartUpload | null> {
 export async function refuseUnqueuedUpload(actor: WorkspaceActor, id: string): Promise<void> {
   await db()
     .update(partUploads)
-    .set({ state: "refused", finishedAt: new Date(), error: { code: "queue_unavailable", message: "The import queue is not available; try again in a moment." } })
+    .set({
+      state: "refused",
+      finishedAt: new Date(),
+      error: { code: "queue_unavailable", message: "The import queue is not available; try again in a moment." },
+    })
     .where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, actor.workspaceId)));
 }
 
@@ -147,5 +187,8 @@ export async function refuseUpload(actor: WorkspaceActor, id: string, error: Non
 
 /** The upload's parts are stored: `ready`, with their ids, inside the transaction that stored them. */
 export async function finishUpload(tx: Tx, actor: WorkspaceActor, id: string, partIds: string[]): Promise<void> {
-  await tx.update(partUploads).set({ state: "ready", partIds, finishedAt: new Date() }).where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, actor.workspaceId)));
+  await tx
+    .update(partUploads)
+    .set({ state: "ready", partIds, finishedAt: new Date() })
+    .where(and(eq(partUploads.id, id), eq(partUploads.workspaceId, actor.workspaceId)));
 }

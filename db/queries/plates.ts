@@ -13,7 +13,10 @@ type Db = ReturnType<typeof db> | Tx;
 
 /** One plate of the actor's workspace, or NotFound (another workspace's plate is not found either). */
 export async function plateById(actor: WorkspaceActor, id: string, opts: { tx?: Db; lock?: boolean } = {}): Promise<Plate> {
-  const q = (opts.tx ?? db()).select().from(plates).where(and(eq(plates.id, id), eq(plates.workspaceId, actor.workspaceId)));
+  const q = (opts.tx ?? db())
+    .select()
+    .from(plates)
+    .where(and(eq(plates.id, id), eq(plates.workspaceId, actor.workspaceId)));
   const [p] = opts.lock ? await q.for("update") : await q;
   if (!p) throw notFound("plate");
   return p;
@@ -21,7 +24,10 @@ export async function plateById(actor: WorkspaceActor, id: string, opts: { tx?: 
 
 /** The plate a build job belongs to, in the actor's workspace. */
 export async function plateByJob(actor: WorkspaceActor, jobId: string): Promise<Plate> {
-  const [p] = await db().select().from(plates).where(and(eq(plates.jobId, jobId), eq(plates.workspaceId, actor.workspaceId)));
+  const [p] = await db()
+    .select()
+    .from(plates)
+    .where(and(eq(plates.jobId, jobId), eq(plates.workspaceId, actor.workspaceId)));
   if (!p) throw notFound("job");
   return p;
 }
@@ -40,19 +46,29 @@ export type PlateValues = Omit<typeof plates.$inferInsert, "id" | "workspaceId" 
 
 /** Insert a plate row for the actor's workspace, inside the caller's transaction (metering shares it). */
 export async function insertPlate(tx: Tx, actor: WorkspaceActor, values: PlateValues): Promise<Plate> {
-  const [row] = await tx.insert(plates).values({ ...values, workspaceId: actor.workspaceId }).returning();
+  const [row] = await tx
+    .insert(plates)
+    .values({ ...values, workspaceId: actor.workspaceId })
+    .returning();
   return row!;
 }
 
 /** Record the build job queued for a plate. */
 export async function setPlateJob(actor: WorkspaceActor, id: string, jobId: string): Promise<Plate> {
-  const [row] = await db().update(plates).set({ jobId }).where(and(eq(plates.id, id), eq(plates.workspaceId, actor.workspaceId))).returning();
+  const [row] = await db()
+    .update(plates)
+    .set({ jobId })
+    .where(and(eq(plates.id, id), eq(plates.workspaceId, actor.workspaceId)))
+    .returning();
   return row!;
 }
 
 /** A plate whose build could not be queued ends failed, so nothing waits for it forever. */
 export async function failPlate(actor: WorkspaceActor, id: string, error: { code: string; message: string }): Promise<void> {
-  await db().update(plates).set({ status: "failed", jobState: "failed", error }).where(and(eq(plates.id, id), eq(plates.workspaceId, actor.workspaceId)));
+  await db()
+    .update(plates)
+    .set({ status: "failed", jobState: "failed", error })
+    .where(and(eq(plates.id, id), eq(plates.workspaceId, actor.workspaceId)));
 }
 
 /** The plate an Idempotency-Key made in the last 24 hours, with the hash of the request that made it. */
@@ -61,19 +77,38 @@ export async function plateForIdempotencyKey(actor: WorkspaceActor, key: string)
     .select({ k: idempotencyKeys, p: plates })
     .from(idempotencyKeys)
     .innerJoin(plates, eq(plates.id, idempotencyKeys.plateId))
-    .where(and(eq(idempotencyKeys.workspaceId, actor.workspaceId), eq(idempotencyKeys.key, key), sql`${idempotencyKeys.createdAt} > now() - interval '24 hours'`));
+    .where(
+      and(
+        eq(idempotencyKeys.workspaceId, actor.workspaceId),
+        eq(idempotencyKeys.key, key),
+        sql`${idempotencyKeys.createdAt} > now() - interval '24 hours'`,
+      ),
+    );
   return row ? { requestHash: row.k.requestHash, plate: row.p } : null;
 }
 
 /** Claim an Idempotency-Key for a new plate; false when another request holds it already. */
-export async function claimIdempotencyKey(tx: Tx, actor: WorkspaceActor, key: string, requestHash: string, plateId: string): Promise<boolean> {
-  const ins = await tx.insert(idempotencyKeys).values({ workspaceId: actor.workspaceId, key, requestHash, plateId }).onConflictDoNothing().returning();
+export async function claimIdempotencyKey(
+  tx: Tx,
+  actor: WorkspaceActor,
+  key: string,
+  requestHash: string,
+  plateId: string,
+): Promise<boolean> {
+  const ins = await tx
+    .insert(idempotencyKeys)
+    .values({ workspaceId: actor.workspaceId, key, requestHash, plateId })
+    .onConflictDoNothing()
+    .returning();
   return ins.length > 0;
 }
 
 /** A kit of the actor's workspace with its lines and their parts, in kit order. */
 export async function kitForPlate(actor: WorkspaceActor, kitId: string) {
-  const [kit] = await db().select().from(kits).where(and(eq(kits.id, kitId), eq(kits.workspaceId, actor.workspaceId)));
+  const [kit] = await db()
+    .select()
+    .from(kits)
+    .where(and(eq(kits.id, kitId), eq(kits.workspaceId, actor.workspaceId)));
   if (!kit) throw notFound("kit");
   const lines = await db()
     .select({ kp: kitParts, part: parts })

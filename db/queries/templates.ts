@@ -36,19 +36,32 @@ export async function templateRows(actor: WorkspaceActor, filter: { q?: string; 
     .from(templates)
     .innerJoin(templateVersions, and(eq(templateVersions.templateId, templates.id), eq(templateVersions.version, templates.currentVersion)))
     .leftJoin(users, eq(users.id, templateVersions.createdBy))
-    .where(and(visible(actor), filter.archived ? sql`${templates.archivedAt} is not null` : isNull(templates.archivedAt), q ? or(ilike(templates.name, `%${q}%`), ilike(templates.description, `%${q}%`)) : undefined))
+    .where(
+      and(
+        visible(actor),
+        filter.archived ? sql`${templates.archivedAt} is not null` : isNull(templates.archivedAt),
+        q ? or(ilike(templates.name, `%${q}%`), ilike(templates.description, `%${q}%`)) : undefined,
+      ),
+    )
     .orderBy(sql`${templates.workspaceId} is null`, desc(templates.updatedAt), asc(templates.name));
 }
 
 /** A template the actor's workspace sees (its own or a starter), or null. */
 export async function templateById(actor: WorkspaceActor, id: string): Promise<Template | null> {
-  const [t] = await db().select().from(templates).where(and(eq(templates.id, id), visible(actor)));
+  const [t] = await db()
+    .select()
+    .from(templates)
+    .where(and(eq(templates.id, id), visible(actor)));
   return t ?? null;
 }
 
 /** A template the actor's workspace sees, locked for the caller's transaction (the service refuses starters). */
 export async function lockTemplate(tx: Tx, actor: WorkspaceActor, id: string): Promise<Template | null> {
-  const [t] = await tx.select().from(templates).where(and(eq(templates.id, id), visible(actor))).for("update");
+  const [t] = await tx
+    .select()
+    .from(templates)
+    .where(and(eq(templates.id, id), visible(actor)))
+    .for("update");
   return t ?? null;
 }
 
@@ -64,7 +77,12 @@ export async function templateVersionRows(actor: WorkspaceActor, templateId: str
 }
 
 /** Version `version` of a template the actor's workspace sees, or null. */
-export async function templateVersion(actor: WorkspaceActor, templateId: string, version: number, opts: { tx?: Db } = {}): Promise<TemplateVersion | null> {
+export async function templateVersion(
+  actor: WorkspaceActor,
+  templateId: string,
+  version: number,
+  opts: { tx?: Db } = {},
+): Promise<TemplateVersion | null> {
   const [row] = await (opts.tx ?? db())
     .select({ v: templateVersions })
     .from(templateVersions)
@@ -88,27 +106,42 @@ export type VersionValues = Omit<typeof templateVersions.$inferInsert, "id" | "t
 
 /** Insert a template of the actor's workspace, inside the caller's transaction. */
 export async function insertTemplate(tx: Tx, actor: WorkspaceActor, values: TemplateValues): Promise<Template> {
-  const [t] = await tx.insert(templates).values({ ...values, workspaceId: actor.workspaceId }).returning();
+  const [t] = await tx
+    .insert(templates)
+    .values({ ...values, workspaceId: actor.workspaceId })
+    .returning();
   return t!;
 }
 
 /** Insert a version of a template the caller has just inserted or locked (versions carry no workspace). */
 export async function insertTemplateVersion(tx: Tx, templateId: string, values: VersionValues): Promise<TemplateVersion> {
-  const [v] = await tx.insert(templateVersions).values({ ...values, templateId }).returning();
+  const [v] = await tx
+    .insert(templateVersions)
+    .values({ ...values, templateId })
+    .returning();
   return v!;
 }
 
 /** Make `version` a template's current one. */
 export async function setCurrentVersion(tx: Tx, actor: WorkspaceActor, id: string, version: number): Promise<void> {
-  await tx.update(templates).set({ currentVersion: version, updatedAt: new Date() }).where(and(eq(templates.id, id), eq(templates.workspaceId, actor.workspaceId)));
+  await tx
+    .update(templates)
+    .set({ currentVersion: version, updatedAt: new Date() })
+    .where(and(eq(templates.id, id), eq(templates.workspaceId, actor.workspaceId)));
 }
 
 export async function setTemplateArchived(tx: Tx, actor: WorkspaceActor, id: string, archived: boolean): Promise<void> {
-  await tx.update(templates).set({ archivedAt: archived ? new Date() : null, updatedAt: new Date() }).where(and(eq(templates.id, id), eq(templates.workspaceId, actor.workspaceId)));
+  await tx
+    .update(templates)
+    .set({ archivedAt: archived ? new Date() : null, updatedAt: new Date() })
+    .where(and(eq(templates.id, id), eq(templates.workspaceId, actor.workspaceId)));
 }
 
 export async function setTemplateName(tx: Tx, actor: WorkspaceActor, id: string, name: string, description: string): Promise<void> {
-  await tx.update(templates).set({ name, description, updatedAt: new Date() }).where(and(eq(templates.id, id), eq(templates.workspaceId, actor.workspaceId)));
+  await tx
+    .update(templates)
+    .set({ name, description, updatedAt: new Date() })
+    .where(and(eq(templates.id, id), eq(templates.workspaceId, actor.workspaceId)));
 }
 
 // ---------------------------------------------------------------- thumbnails (the worker, for every workspace and the starters)
@@ -119,7 +152,10 @@ export async function versionForThumbnail(versionId: string): Promise<TemplateVe
   return v ?? null;
 }
 
-export async function setThumbnail(versionId: string, set: Pick<typeof templateVersions.$inferInsert, "thumbnailState" | "thumbnailSvg" | "findings">): Promise<void> {
+export async function setThumbnail(
+  versionId: string,
+  set: Pick<typeof templateVersions.$inferInsert, "thumbnailState" | "thumbnailSvg" | "findings">,
+): Promise<void> {
   await db().update(templateVersions).set(set).where(eq(templateVersions.id, versionId));
 }
 

@@ -48,13 +48,20 @@ export async function lockUserByEmail(tx: Tx, email: string): Promise<User | nul
   return user ?? null;
 }
 
-export async function insertUser(tx: Tx, values: { email: string; name: string; passwordHash: string; emailVerified: Date }): Promise<User> {
+export async function insertUser(
+  tx: Tx,
+  values: { email: string; name: string; passwordHash: string; emailVerified: Date },
+): Promise<User> {
   const [user] = await tx.insert(users).values(values).returning();
   return user!;
 }
 
 /** Fill in what an account made by e-mailed link lacks (its first password, its name, its proven address). */
-export async function completeUser(tx: Tx, id: string, set: { passwordHash: string | null; name: string | null; emailVerified: Date }): Promise<User> {
+export async function completeUser(
+  tx: Tx,
+  id: string,
+  set: { passwordHash: string | null; name: string | null; emailVerified: Date },
+): Promise<User> {
   const [user] = await tx
     .update(users)
     .set({ ...set, updatedAt: new Date() })
@@ -70,13 +77,25 @@ export async function completeUser(tx: Tx, id: string, set: { passwordHash: stri
 export async function setPassword(tx: Tx, userId: string, passwordHash: string, opts: { verifyEmail?: boolean } = {}): Promise<void> {
   await tx
     .update(users)
-    .set(opts.verifyEmail ? { passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, emailVerified: sql`coalesce(${users.emailVerified}, now())`, updatedAt: new Date() } : { passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
+    .set(
+      opts.verifyEmail
+        ? {
+            passwordHash,
+            sessionVersion: sql`${users.sessionVersion} + 1`,
+            emailVerified: sql`coalesce(${users.emailVerified}, now())`,
+            updatedAt: new Date(),
+          }
+        : { passwordHash, sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() },
+    )
     .where(eq(users.id, userId));
 }
 
 /** End every session of a person: tokens issued before now stop working. */
 export async function endSessions(tx: Tx, userId: string): Promise<void> {
-  await tx.update(users).set({ sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() }).where(eq(users.id, userId));
+  await tx
+    .update(users)
+    .set({ sessionVersion: sql`${users.sessionVersion} + 1`, updatedAt: new Date() })
+    .where(eq(users.id, userId));
 }
 
 /** End one session (signing out): kept until the token would have expired on its own. */
@@ -88,7 +107,8 @@ export async function revokeSession(sid: string, userId: string | null, expiresA
 /** Whether a session token is still good: its person exists, its version is current and it was not signed out. */
 export async function sessionStillValid(userId: string, version: number, sid: string): Promise<boolean> {
   const res = await db().execute<{ ok: boolean }>(
-    sql`select (u.session_version = ${version} and not exists (select 1 from revoked_sessions r where r.sid = ${sid})) as ok from users u where u.id = ${userId}`,
+    sql`select (u.session_version = ${version} and not exists (select 1 from revoked_sessions r where r.sid = ${sid})) as ok from ` +
+      `users u where u.id = ${userId}`,
   );
   return res.rows[0]?.ok === true;
 }

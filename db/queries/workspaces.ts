@@ -42,7 +42,13 @@ export async function insertWorkspace(tx: Tx, name: string, slug: string): Promi
 }
 
 /** Make a person a member of the actor's workspace (`ifAbsent`: a member already keeps their role). */
-export async function insertMembership(tx: Tx, actor: WorkspaceActor, userId: string, role: Role, opts: { ifAbsent?: boolean } = {}): Promise<void> {
+export async function insertMembership(
+  tx: Tx,
+  actor: WorkspaceActor,
+  userId: string,
+  role: Role,
+  opts: { ifAbsent?: boolean } = {},
+): Promise<void> {
   const q = tx.insert(memberships).values({ workspaceId: actor.workspaceId, userId, role });
   await (opts.ifAbsent ? q.onConflictDoNothing() : q);
 }
@@ -59,12 +65,17 @@ export async function memberRows(actor: WorkspaceActor) {
 
 /** The workspace's memberships, locked for the caller's transaction (so two owners cannot demote each other at once). */
 export async function lockMemberships(tx: Tx, actor: WorkspaceActor): Promise<{ user_id: string; role: Role }[]> {
-  const rows = await tx.execute<{ user_id: string; role: Role }>(sql`select user_id, role from memberships where workspace_id = ${actor.workspaceId} for update`);
+  const rows = await tx.execute<{ user_id: string; role: Role }>(
+    sql`select user_id, role from memberships where workspace_id = ${actor.workspaceId} for update`,
+  );
   return rows.rows;
 }
 
 export async function setMemberRole(tx: Tx, actor: WorkspaceActor, userId: string, role: Role): Promise<void> {
-  await tx.update(memberships).set({ role }).where(and(eq(memberships.workspaceId, actor.workspaceId), eq(memberships.userId, userId)));
+  await tx
+    .update(memberships)
+    .set({ role })
+    .where(and(eq(memberships.workspaceId, actor.workspaceId), eq(memberships.userId, userId)));
 }
 
 export async function deleteMembership(tx: Tx, actor: WorkspaceActor, userId: string): Promise<void> {

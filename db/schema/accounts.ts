@@ -6,7 +6,9 @@ import { apiKeys, roleEnum, workspaces } from "./workspaces";
 export const invitations = pgTable(
   "invitations",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id")
       .notNull()
       .references(() => workspaces.id, { onDelete: "cascade" }),
@@ -27,7 +29,9 @@ export const invitations = pgTable(
 export const passwordResets = pgTable(
   "password_resets",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     userId: text("user_id")
       .notNull()
       .references(() => users.id, { onDelete: "cascade" }),
@@ -43,7 +47,9 @@ export const passwordResets = pgTable(
 export const auditEvents = pgTable(
   "audit_events",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id").references(() => workspaces.id, { onDelete: "cascade" }),
     actorUserId: text("actor_user_id").references(() => users.id, { onDelete: "set null" }),
     actorApiKeyId: text("actor_api_key_id").references(() => apiKeys.id, { onDelete: "set null" }),
@@ -55,7 +61,10 @@ export const auditEvents = pgTable(
     details: jsonb("details").$type<Record<string, unknown>>(),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [index("audit_events_workspace_idx").on(t.workspaceId, t.createdAt), index("audit_events_actor_idx").on(t.actorUserId, t.createdAt)],
+  (t) => [
+    index("audit_events_workspace_idx").on(t.workspaceId, t.createdAt),
+    index("audit_events_actor_idx").on(t.actorUserId, t.createdAt),
+  ],
 );
 
 /**
@@ -65,7 +74,9 @@ export const auditEvents = pgTable(
 export const devOutbox = pgTable(
   "dev_outbox",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     fromAddress: text("from_address"),
     /** The recipients' bare addresses, lower case, joined by ", ". */
     toAddresses: text("to_addresses").notNull(),

@@ -4,7 +4,9 @@ import { bigint, index, integer, pgTable, primaryKey, text, timestamp, uniqueInd
 export const users = pgTable(
   "users",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     name: text("name"),
     email: text("email").notNull(),
     emailVerified: timestamp("email_verified", { mode: "date", withTimezone: true }),
@@ -79,7 +81,9 @@ export const revokedSessions = pgTable(
 export const pendingSignUps = pgTable(
   "pending_sign_ups",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     email: text("email").notNull(),
     name: text("name").notNull(),
     passwordHash: text("password_hash").notNull(),

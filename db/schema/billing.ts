@@ -7,7 +7,9 @@ import { workspaces } from "./workspaces";
  * per billing period.
  */
 export const workspaceBilling = pgTable("workspace_billing", {
-  workspaceId: text("workspace_id").primaryKey().references(() => workspaces.id, { onDelete: "cascade" }),
+  workspaceId: text("workspace_id")
+    .primaryKey()
+    .references(() => workspaces.id, { onDelete: "cascade" }),
   plan: text("plan").$type<"bench" | "workshop" | "farm">().notNull().default("bench"),
   /** active; grace (a payment failed, the plan holds until grace_until); canceled. */
   status: text("status").$type<"active" | "grace" | "canceled">().notNull().default("active"),
@@ -29,7 +31,9 @@ export const checkoutSessions = pgTable(
   "checkout_sessions",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id").notNull().references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
     plan: text("plan").$type<"workshop" | "farm">().notNull(),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     /** When its completion was applied (once). */
@@ -56,7 +60,9 @@ export const invoices = pgTable(
   "invoices",
   {
     id: text("id").primaryKey(),
-    workspaceId: text("workspace_id").notNull().references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
     amountCents: integer("amount_cents").notNull(),
     currency: text("currency").notNull(),
     status: text("status").$type<"paid" | "failed">().notNull(),
@@ -70,7 +76,9 @@ export const invoices = pgTable(
 export const plateUsage = pgTable(
   "plate_usage",
   {
-    workspaceId: text("workspace_id").notNull().references(() => workspaces.id, { onDelete: "cascade" }),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
     periodStart: timestamp("period_start", { withTimezone: true }).notNull(),
     plates: integer("plates").notNull().default(0),
   },

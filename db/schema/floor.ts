@@ -13,9 +13,15 @@ export type FloorState = (typeof FLOOR_STATES)[number];
 export const floorEvents = pgTable(
   "floor_events",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id").notNull().references(() => workspaces.id, { onDelete: "cascade" }),
-    plateId: text("plate_id").notNull().references(() => plates.id, { onDelete: "cascade" }),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    plateId: text("plate_id")
+      .notNull()
+      .references(() => plates.id, { onDelete: "cascade" }),
     fromState: text("from_state").$type<FloorState | null>(),
     toState: text("to_state").$type<FloorState>().notNull(),
     note: text("note"),
@@ -30,9 +36,15 @@ export type PieceCheck = { number: number; state: "present" | "missing" | "defec
 export const inspections = pgTable(
   "inspections",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
-    workspaceId: text("workspace_id").notNull().references(() => workspaces.id, { onDelete: "cascade" }),
-    plateId: text("plate_id").notNull().references(() => plates.id, { onDelete: "cascade" }),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
+    workspaceId: text("workspace_id")
+      .notNull()
+      .references(() => workspaces.id, { onDelete: "cascade" }),
+    plateId: text("plate_id")
+      .notNull()
+      .references(() => plates.id, { onDelete: "cascade" }),
     results: jsonb("results").$type<PieceCheck[]>().notNull(),
     /** The plate's first inspection counts for first-pass yield. */
     first: boolean("first").notNull(),

@@ -1,18 +1,6 @@
 import { sql } from "drizzle-orm";
 import type { ImportFormatId } from "@/lib/geometry/formats";
-import {
-  boolean,
-  check,
-  doublePrecision,
-  index,
-  integer,
-  jsonb,
-  pgEnum,
-  pgTable,
-  real,
-  text,
-  timestamp,
-} from "drizzle-orm/pg-core";
+import { boolean, check, doublePrecision, index, integer, jsonb, pgEnum, pgTable, real, text, timestamp } from "drizzle-orm/pg-core";
 import { users } from "./auth";
 import { workspaces } from "./workspaces";
 
@@ -27,7 +15,9 @@ export const meshFormatEnum = pgEnum("mesh_format", MESH_FORMATS);
 export const parts = pgTable(
   "parts",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id")
       .notNull()
       .references(() => workspaces.id, { onDelete: "cascade" }),
@@ -44,9 +34,15 @@ export const parts = pgTable(
     volume: doublePrecision("volume").notNull(),
     /** mm², the footprint one layer above the base; known once the engine has measured it. */
     contactArea: doublePrecision("contact_area"),
-    repairs: jsonb("repairs").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    repairs: jsonb("repairs")
+      .$type<string[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     /** Import warnings still standing (e.g. a size that suggests other units). */
-    warnings: jsonb("warnings").$type<{ code: string; message: string; suggestion?: { unit: string; scale: number } }[]>().notNull().default(sql`'[]'::jsonb`),
+    warnings: jsonb("warnings")
+      .$type<{ code: string; message: string; suggestion?: { unit: string; scale: number } }[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     /** Length unit the file was read in (STL and OBJ have none of their own). */
     unit: text("unit").notNull().default("millimeter"),
     /** Stand the part on its largest flat face. */
@@ -76,7 +72,9 @@ export const partUploadStateEnum = pgEnum("part_upload_state", ["checking", "rea
 export const partUploads = pgTable(
   "part_uploads",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id")
       .notNull()
       .references(() => workspaces.id, { onDelete: "cascade" }),
@@ -84,10 +82,18 @@ export const partUploads = pgTable(
     fileName: text("file_name").notNull(),
     blobKey: text("blob_key").notNull(),
     byteSize: integer("byte_size").notNull(),
-    /** How to read it: split bodies into parts, the unit, lay flat; `replaces`: a stored part read again (its new unit or lying, or split). */
-    options: jsonb("options").$type<{ split?: boolean; unit?: string; layFlat?: boolean; replaces?: string }>().notNull().default(sql`'{}'::jsonb`),
+    /**
+     * How to read it: split bodies into parts, the unit, lay flat; `replaces`: a stored part read again (its new unit or lying, or split).
+     */
+    options: jsonb("options")
+      .$type<{ split?: boolean; unit?: string; layFlat?: boolean; replaces?: string }>()
+      .notNull()
+      .default(sql`'{}'::jsonb`),
     state: partUploadStateEnum("state").notNull().default("checking"),
-    partIds: jsonb("part_ids").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    partIds: jsonb("part_ids")
+      .$type<string[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     error: jsonb("error").$type<{ code: string; message: string; details?: Record<string, unknown> }>(),
     uploadedBy: text("uploaded_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
@@ -102,7 +108,9 @@ export const orientationEnum = pgEnum("piece_orientation", ["as-imported", "lay-
 export const kits = pgTable(
   "kits",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id")
       .notNull()
       .references(() => workspaces.id, { onDelete: "cascade" }),
@@ -120,7 +128,9 @@ export const kits = pgTable(
 export const kitParts = pgTable(
   "kit_parts",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     kitId: text("kit_id")
       .notNull()
       .references(() => kits.id, { onDelete: "cascade" }),

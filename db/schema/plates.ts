@@ -9,7 +9,9 @@ import { workspaces } from "./workspaces";
 export const templates = pgTable(
   "templates",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     /** null for the starter templates shipped with the product, shared by every workspace. */
     workspaceId: text("workspace_id").references(() => workspaces.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
@@ -30,22 +32,33 @@ export type TemplateVariable = { name: string; label?: string; default: string; 
 export const templateVersions = pgTable(
   "template_versions",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     templateId: text("template_id")
       .notNull()
       .references(() => templates.id, { onDelete: "cascade" }),
     version: integer("version").notNull(),
     /** The slab builder's canonical options. */
     options: jsonb("options").$type<Record<string, unknown>>().notNull(),
-    variables: jsonb("variables").$type<TemplateVariable[]>().notNull().default(sql`'[]'::jsonb`),
+    variables: jsonb("variables")
+      .$type<TemplateVariable[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     note: text("note"),
     /** What changed against the version before, in words ("text line 1: …"). */
-    changes: jsonb("changes").$type<string[]>().notNull().default(sql`'[]'::jsonb`),
+    changes: jsonb("changes")
+      .$type<string[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     /** Top view of the slab with the sample values, drawn by a worker: pending → done | failed. */
     thumbnailState: text("thumbnail_state").$type<"pending" | "done" | "failed">().notNull().default("pending"),
     thumbnailSvg: text("thumbnail_svg"),
     /** What the checks said of the sample build. */
-    findings: jsonb("findings").$type<unknown[]>().notNull().default(sql`'[]'::jsonb`),
+    findings: jsonb("findings")
+      .$type<unknown[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
   },
@@ -59,7 +72,9 @@ export const plateStatusEnum = pgEnum("plate_status", ["building", "ready", "fai
 export const plates = pgTable(
   "plates",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id")
       .notNull()
       .references(() => workspaces.id, { onDelete: "cascade" }),
@@ -69,8 +84,14 @@ export const plates = pgTable(
     source: plateSourceEnum("source").notNull(),
     status: plateStatusEnum("status").notNull().default("building"),
     options: jsonb("options").$type<Record<string, unknown>>().notNull(),
-    variables: jsonb("variables").$type<Record<string, string>>().notNull().default(sql`'{}'::jsonb`),
-    findings: jsonb("findings").$type<unknown[]>().notNull().default(sql`'[]'::jsonb`),
+    variables: jsonb("variables")
+      .$type<Record<string, string>>()
+      .notNull()
+      .default(sql`'{}'::jsonb`),
+    findings: jsonb("findings")
+      .$type<unknown[]>()
+      .notNull()
+      .default(sql`'[]'::jsonb`),
     estimates: jsonb("estimates").$type<Record<string, unknown>>(),
     stats: jsonb("stats").$type<Record<string, unknown>>(),
     pieceCount: integer("piece_count").notNull().default(0),
@@ -132,7 +153,16 @@ export type PlateProof = {
 };
 
 export type PlateInput = {
-  parts: { name: string; blobKey: string; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number; partId?: string }[];
+  parts: {
+    name: string;
+    blobKey: string;
+    quantity: number;
+    unit?: string;
+    layFlat?: boolean;
+    turned?: boolean;
+    rotation?: number;
+    partId?: string;
+  }[];
   kitId?: string;
   templateId?: string;
 };

@@ -8,7 +8,9 @@ export type Role = (typeof roleEnum.enumValues)[number];
 export const workspaces = pgTable(
   "workspaces",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     name: text("name").notNull(),
     slug: text("slug").notNull(),
     /** Signs the plate API's webhook calls (HMAC-SHA256); made on first use. */
@@ -40,7 +42,9 @@ export type ApiKeyScope = (typeof apiKeyScopes)[number];
 export const apiKeys = pgTable(
   "api_keys",
   {
-    id: text("id").primaryKey().$defaultFn(() => crypto.randomUUID()),
+    id: text("id")
+      .primaryKey()
+      .$defaultFn(() => crypto.randomUUID()),
     workspaceId: text("workspace_id")
       .notNull()
       .references(() => workspaces.id, { onDelete: "cascade" }),

@@ -9,11 +9,24 @@ import { NotFound } from "@/lib/errors";
 
 /** A workspace's API keys: made by a member (shown once), listed without their secret, revoked. */
 
-export async function createApiKey(actor: WorkspaceActor & { userId: string }, name: string, scopes: ApiKeyScope[]): Promise<{ id: string; key: string; prefix: string }> {
+export async function createApiKey(
+  actor: WorkspaceActor & { userId: string },
+  name: string,
+  scopes: ApiKeyScope[],
+): Promise<{ id: string; key: string; prefix: string }> {
   const k = generateApiKey();
   const id = await transaction(async (tx) => {
     const id = await insertApiKey(tx, actor, { name, prefix: k.prefix, keyHash: k.hash, scopes, createdBy: actor.userId });
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, action: "api_key_created", target: `${name} (swk_${k.prefix}…)`, details: { scopes } }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        action: "api_key_created",
+        target: `${name} (swk_${k.prefix}…)`,
+        details: { scopes },
+      },
+      tx,
+    );
     return id;
   });
   return { id, key: k.key, prefix: k.prefix };
@@ -27,6 +40,9 @@ export async function revokeApiKey(actor: WorkspaceActor, id: string): Promise<v
   await transaction(async (tx) => {
     const key = await revokeApiKeyRow(tx, actor, id);
     if (!key) throw new NotFound("not_found", "No such active key.");
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, action: "api_key_revoked", target: `${key.name} (swk_${key.prefix}…)` }, tx);
+    await audit(
+      { workspaceId: actor.workspaceId, actorUserId: actor.userId, action: "api_key_revoked", target: `${key.name} (swk_${key.prefix}…)` },
+      tx,
+    );
   });
 }

@@ -1,6 +1,15 @@
 import "server-only";
 import type { Role } from "@/db/schema";
-import { insertInvitation, invitationByTokenHash, lockInvitationByTokenHash, markInvitationAccepted, pendingInvitationRows, revokeInvitationRow, revokePendingInvitations, withdrawInvitation } from "@/db/queries/invitations";
+import {
+  insertInvitation,
+  invitationByTokenHash,
+  lockInvitationByTokenHash,
+  markInvitationAccepted,
+  pendingInvitationRows,
+  revokeInvitationRow,
+  revokePendingInvitations,
+  withdrawInvitation,
+} from "@/db/queries/invitations";
 import { transaction } from "@/db/queries/tx";
 import type { SessionUser } from "@/db/queries/users";
 import { insertMembership, isMemberByEmail } from "@/db/queries/workspaces";
@@ -22,15 +31,30 @@ export async function inviteMember(caller: Caller, email: string, role: Role): P
   if (!limit.ok) throw rateLimited(limit.retryAfter, "invitations from this workspace");
   const { token, hash } = newToken();
   const id = await transaction(async (tx) => {
-    if (await isMemberByEmail(tx, caller, email)) throw new Conflict("already_member", "That person is already a member.", undefined, "email");
+    if (await isMemberByEmail(tx, caller, email))
+      throw new Conflict("already_member", "That person is already a member.", undefined, "email");
     // A new invitation replaces any earlier one still pending for the same address.
     await revokePendingInvitations(tx, caller, email);
-    const id = await insertInvitation(tx, caller, { email, role, tokenHash: hash, invitedBy: caller.userId, expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000) });
-    await audit({ workspaceId: caller.workspaceId, actorUserId: caller.userId, action: "invitation_sent", target: email, details: { role } }, tx);
+    const id = await insertInvitation(tx, caller, {
+      email,
+      role,
+      tokenHash: hash,
+      invitedBy: caller.userId,
+      expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000),
+    });
+    await audit(
+      { workspaceId: caller.workspaceId, actorUserId: caller.userId, action: "invitation_sent", target: email, details: { role } },
+      tx,
+    );
     return id;
   });
   try {
-    await sendMail(invitationMessage({ email, role, token, days: INVITATION_DAYS }, { inviter: caller.user.name ?? caller.user.email, workspaceId: caller.workspace.id, workspaceName: caller.workspace.name }));
+    await sendMail(
+      invitationMessage(
+        { email, role, token, days: INVITATION_DAYS },
+        { inviter: caller.user.name ?? caller.user.email, workspaceId: caller.workspace.id, workspaceName: caller.workspace.name },
+      ),
+    );
   } catch (err) {
     // Without the message the invitation is useless: take it back rather than leave it half-done.
     await withdrawInvitation(caller, id);
@@ -57,7 +81,13 @@ export type InvitationState = "valid" | "expired" | "used" | "revoked" | "unknow
 export async function invitationByToken(token: string) {
   const row = await invitationByTokenHash(hashToken(token));
   if (!row) return { state: "unknown" as InvitationState, invitation: null };
-  const state: InvitationState = row.acceptedAt ? "used" : row.revokedAt ? "revoked" : row.expiresAt.getTime() < Date.now() ? "expired" : "valid";
+  const state: InvitationState = row.acceptedAt
+    ? "used"
+    : row.revokedAt
+      ? "revoked"
+      : row.expiresAt.getTime() < Date.now()
+        ? "expired"
+        : "valid";
   return { state, invitation: row };
 }
 
@@ -78,13 +108,25 @@ export async function acceptInvitation(user: SessionUser, token: string): Promis
     if (inv.revoked_at) throw new Invalid("invitation_revoked", INVITATION_MESSAGES.revoked);
     if (new Date(inv.expires_at).getTime() < Date.now()) throw new Invalid("invitation_expired", INVITATION_MESSAGES.expired);
     if (inv.email.toLowerCase() !== user.email.toLowerCase()) {
-      throw new Invalid("invitation_other_email", `This invitation was sent to ${inv.email}; you are signed in as ${user.email}. Sign in with the invited address.`);
+      throw new Invalid(
+        "invitation_other_email",
+        `This invitation was sent to ${inv.email}; you are signed in as ${user.email}. Sign in with the invited address.`,
+      );
     }
     // The invitee is not a member yet: the system adds them to the workspace the invitation names.
     const ws = systemActor(inv.workspace_id);
     await insertMembership(tx, ws, user.id, inv.role, { ifAbsent: true });
     await markInvitationAccepted(tx, ws, inv.id, user.id);
-    await audit({ workspaceId: inv.workspace_id, actorUserId: user.id, action: "invitation_accepted", target: inv.email, details: { role: inv.role } }, tx);
+    await audit(
+      {
+        workspaceId: inv.workspace_id,
+        actorUserId: user.id,
+        action: "invitation_accepted",
+        target: inv.email,
+        details: { role: inv.role },
+      },
+      tx,
+    );
     return { workspaceId: inv.workspace_id };
   });
 }

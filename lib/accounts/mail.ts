@@ -20,7 +20,8 @@ export function existingAccountMessage(email: string): Message {
   return linksMessage(
     email,
     "Someone tried to create a Slabwright account with your address",
-    "Someone (perhaps you) tried to create a new Slabwright account with this e-mail address, which already has one. Nothing was changed and nobody was signed in.",
+    "Someone (perhaps you) tried to create a new Slabwright account with this e-mail address, which already has one. Nothing was " +
+      "changed and nobody was signed in.",
     [
       { action: "Sign in", url: appUrl("/sign-in") },
       { action: "Choose a password (forgotten, or never set one)", url: appUrl("/reset-password") },
@@ -29,13 +30,17 @@ export function existingAccountMessage(email: string): Message {
   );
 }
 
-export function invitationMessage(invitation: { email: string; role: Role; token: string; days: number }, from: { inviter: string; workspaceId: string; workspaceName: string }): Message {
+export function invitationMessage(
+  invitation: { email: string; role: Role; token: string; days: number },
+  from: { inviter: string; workspaceId: string; workspaceName: string },
+): Message {
   return {
     workspaceId: from.workspaceId,
     ...linkMessage(
       invitation.email,
       `${from.inviter} invited you to ${from.workspaceName} on Slabwright`,
-      `${from.inviter} invited you to join ${from.workspaceName} on Slabwright as ${invitation.role === "owner" ? "an owner" : `a ${invitation.role}`}.`,
+      `${from.inviter} invited you to join ${from.workspaceName} on Slabwright as ` +
+        `${invitation.role === "owner" ? "an owner" : `a ${invitation.role}`}.`,
       "Accept the invitation",
       appUrl(`/invite/${invitation.token}`),
       `The link works once and expires in ${invitation.days} days.`,
@@ -44,10 +49,25 @@ export function invitationMessage(invitation: { email: string; role: Role; token
 }
 
 export function passwordResetMessage(email: string, token: string, minutes: number): Message {
-  return linkMessage(email, "Reset your Slabwright password", "Someone (we hope you) asked to reset the password for this address.", "Choose a new password", appUrl(`/reset-password/${token}`), `The link works once, for ${minutes} minutes. If you did not ask, ignore this message; your password stays as it is.`);
+  return linkMessage(
+    email,
+    "Reset your Slabwright password",
+    "Someone (we hope you) asked to reset the password for this address.",
+    "Choose a new password",
+    appUrl(`/reset-password/${token}`),
+    `The link works once, for ${minutes} minutes. If you did not ask, ignore this message; your password stays as it is.`,
+  );
 }
 
 /** A reset asked for an address without an account: the same one mail, saying so. */
 export function noAccountResetMessage(email: string): Message {
-  return linkMessage(email, "About your Slabwright password", "Someone (we hope you) asked to reset the Slabwright password for this address, but no account uses it. Perhaps you signed up with another address?", "Create an account", appUrl("/sign-up"), "If you did not ask, ignore this message.");
+  return linkMessage(
+    email,
+    "About your Slabwright password",
+    "Someone (we hope you) asked to reset the Slabwright password for this address, but no account uses it. Perhaps you signed up " +
+      "with another address?",
+    "Create an account",
+    appUrl("/sign-up"),
+    "If you did not ask, ignore this message.",
+  );
 }

@@ -1,7 +1,15 @@
 import "server-only";
 import type { Role } from "@/db/schema";
 import { transaction, type Tx } from "@/db/queries/tx";
-import { deleteMembership, insertMembership, insertWorkspace, lockMemberships, memberRows, setMemberRole, slugTaken } from "@/db/queries/workspaces";
+import {
+  deleteMembership,
+  insertMembership,
+  insertWorkspace,
+  lockMemberships,
+  memberRows,
+  setMemberRole,
+  slugTaken,
+} from "@/db/queries/workspaces";
 import type { SessionUser } from "@/db/queries/users";
 import { systemActor, type WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
@@ -11,7 +19,12 @@ import { Conflict, NotFound } from "@/lib/errors";
 
 /** A new workspace with `userId` as its owner, inside the caller's transaction; its id. */
 export async function createWorkspaceIn(tx: Tx, userId: string, name: string): Promise<string> {
-  const base = name.toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 40) || "workshop";
+  const base =
+    name
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, "-")
+      .replace(/^-|-$/g, "")
+      .slice(0, 40) || "workshop";
   let slug = base;
   for (let i = 2; ; i++) {
     if (!(await slugTaken(tx, slug))) break;
@@ -46,7 +59,16 @@ export async function changeRole(actor: WorkspaceActor, userId: string, role: Ro
       throw new Conflict("last_owner", "This is the workspace's only owner. Make someone else an owner first.");
     }
     await setMemberRole(tx, actor, userId, role);
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, action: "role_changed", target: userId, details: { from: target.role, to: role } }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        action: "role_changed",
+        target: userId,
+        details: { from: target.role, to: role },
+      },
+      tx,
+    );
   });
 }
 
@@ -59,6 +81,15 @@ export async function removeMember(actor: WorkspaceActor, userId: string): Promi
       throw new Conflict("last_owner", "This is the workspace's only owner and cannot be removed.");
     }
     await deleteMembership(tx, actor, userId);
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, action: "member_removed", target: userId, details: { role: target.role } }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        action: "member_removed",
+        target: userId,
+        details: { role: target.role },
+      },
+      tx,
+    );
   });
 }

@@ -36,9 +36,11 @@ export async function resetPassword(token: string, email: string, password: stri
   const passwordHash = await hashPassword(password);
   await transaction(async (tx) => {
     const row = await lockPasswordReset(tx, hashToken(token));
-    if (!row || row.email.toLowerCase() !== email.toLowerCase()) throw new Invalid("reset_invalid", "This reset link is not valid for that address. Ask for a new one.");
+    if (!row || row.email.toLowerCase() !== email.toLowerCase())
+      throw new Invalid("reset_invalid", "This reset link is not valid for that address. Ask for a new one.");
     if (row.used_at) throw new Conflict("reset_used", "This reset link has already been used. Ask for a new one.");
-    if (new Date(row.expires_at).getTime() < Date.now()) throw new Invalid("reset_expired", "This reset link has expired. Ask for a new one.");
+    if (new Date(row.expires_at).getTime() < Date.now())
+      throw new Invalid("reset_expired", "This reset link has expired. Ask for a new one.");
     // A new password ends every session the account had (whoever held them).
     await setPassword(tx, row.user_id, passwordHash, { verifyEmail: true });
     await markResetsUsed(tx, row.user_id);
@@ -59,10 +61,18 @@ export async function endAllSessions(userId: string, ip: string): Promise<void> 
  * with the new password to keep this one.
  */
 export async function changePassword(user: SessionUser, current: string, password: string, ip: string): Promise<void> {
-  if (password.trim().toLowerCase() === user.email.toLowerCase()) throw new Invalid("invalid", "Your password must not be your e-mail address.", undefined, "password");
+  if (password.trim().toLowerCase() === user.email.toLowerCase())
+    throw new Invalid("invalid", "Your password must not be your e-mail address.", undefined, "password");
   const hash = await passwordHashOf(user.id);
-  if (!hash) throw new Invalid("no_password", "This account signs in by e-mailed link and has no password yet: choose one through “Forgot your password?” on the sign-in page.", undefined, "current");
-  if (!(await verifyPassword(current, hash))) throw new Invalid("wrong_password", "That is not your present password.", undefined, "current");
+  if (!hash)
+    throw new Invalid(
+      "no_password",
+      "This account signs in by e-mailed link and has no password yet: choose one through “Forgot your password?” on the sign-in page.",
+      undefined,
+      "current",
+    );
+  if (!(await verifyPassword(current, hash)))
+    throw new Invalid("wrong_password", "That is not your present password.", undefined, "current");
   const passwordHash = await hashPassword(password);
   await transaction(async (tx) => {
     await setPassword(tx, user.id, passwordHash);

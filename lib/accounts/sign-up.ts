@@ -1,5 +1,11 @@
 import "server-only";
-import { closePendingSignUps, insertPendingSignUp, lockPendingSignUp, markSignUpUsed, pendingSignUpByTokenHash } from "@/db/queries/account-links";
+import {
+  closePendingSignUps,
+  insertPendingSignUp,
+  lockPendingSignUp,
+  markSignUpUsed,
+  pendingSignUpByTokenHash,
+} from "@/db/queries/account-links";
 import { transaction } from "@/db/queries/tx";
 import { completeUser, insertUser, lockUserByEmail, userIdByEmail, type SessionUser } from "@/db/queries/users";
 import { hashPassword } from "@/lib/auth/password";
@@ -81,7 +87,11 @@ export async function finishSignUp(token: string, ip: string): Promise<SessionUs
     await markSignUpUsed(tx, p.id);
     const existing = await lockUserByEmail(tx, p.email);
     const user = existing
-      ? await completeUser(tx, existing.id, { passwordHash: existing.passwordHash ?? p.password_hash, name: existing.name ?? p.name, emailVerified: existing.emailVerified ?? new Date() })
+      ? await completeUser(tx, existing.id, {
+          passwordHash: existing.passwordHash ?? p.password_hash,
+          name: existing.name ?? p.name,
+          emailVerified: existing.emailVerified ?? new Date(),
+        })
       : await insertUser(tx, { email: p.email, name: p.name, passwordHash: p.password_hash, emailVerified: new Date() });
     await audit({ action: "sign_up", actorUserId: user.id, actorEmail: p.email, ip }, tx);
     if (p.workshop && !existing) await createWorkspaceIn(tx, user.id, p.workshop);

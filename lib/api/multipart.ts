@@ -16,7 +16,8 @@ export type StreamedForm = {
   files: StoredFile[];
 };
 
-const tooLarge = (max: number) => new TooLarge("file_too_large", `The request is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit.`, { limit: max });
+const tooLarge = (max: number) =>
+  new TooLarge("file_too_large", `The request is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit.`, { limit: max });
 
 /**
  * Read multipart/form-data with busboy as it arrives: the bytes of the whole body are counted as they
@@ -24,12 +25,18 @@ const tooLarge = (max: number) => new TooLarge("file_too_large", `The request is
  * (413), and each `part` file goes straight into the blob store, hashed on the way, never held in
  * memory. Text fields are capped (1 MB each, 100 in all) and so is the number of files.
  */
-export async function readMultipart(req: Request, opts: { maxBytes: number; maxFiles?: number; maxFieldBytes?: number }): Promise<StreamedForm> {
+export async function readMultipart(
+  req: Request,
+  opts: { maxBytes: number; maxFiles?: number; maxFieldBytes?: number },
+): Promise<StreamedForm> {
   const maxFiles = opts.maxFiles ?? 100;
   const maxFieldBytes = opts.maxFieldBytes ?? 1024 * 1024;
   let bb: busboy.Busboy;
   try {
-    bb = busboy({ headers: { "content-type": req.headers.get("content-type") ?? "" }, limits: { files: maxFiles, fields: 100, fieldSize: maxFieldBytes, parts: maxFiles + 100 } });
+    bb = busboy({
+      headers: { "content-type": req.headers.get("content-type") ?? "" },
+      limits: { files: maxFiles, fields: 100, fieldSize: maxFieldBytes, parts: maxFiles + 100 },
+    });
   } catch {
     throw new BadRequest("bad_request", "The multipart body could not be read (no boundary).");
   }
@@ -58,7 +65,10 @@ export async function readMultipart(req: Request, opts: { maxBytes: number; maxF
     stores.push(stored);
   });
   bb.on("field", (name, value, info) => {
-    if (info.valueTruncated) fail(new TooLarge("field_too_large", `The field ${name.slice(0, 40)} is longer than ${(maxFieldBytes / 1024 / 1024).toFixed(0)} MB.`));
+    if (info.valueTruncated)
+      fail(
+        new TooLarge("field_too_large", `The field ${name.slice(0, 40)} is longer than ${(maxFieldBytes / 1024 / 1024).toFixed(0)} MB.`),
+      );
     else if (name === "part") fileFields.add(name);
     else fields.set(name, value);
   });

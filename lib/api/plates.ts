@@ -37,8 +37,14 @@ function partUnits(form: StreamedForm, count: number): z.infer<typeof unitSchema
   const one = unitSchema.safeParse(raw);
   if (one.success) return Array.from({ length: count }, () => one.data);
   const list = raw.startsWith("[") ? json(form, unitsSchema, "units") : undefined;
-  if (!Array.isArray(list)) throw new Invalid("invalid_units", `units must be one of mm, cm, m, in, or a JSON array of them in part order; got ${JSON.stringify(raw.slice(0, 40))}.`, { field: "units" });
-  if (list.length !== count) throw new Invalid("invalid_units", `units has ${list.length} entries for ${count} part files.`, { field: "units" });
+  if (!Array.isArray(list))
+    throw new Invalid(
+      "invalid_units",
+      `units must be one of mm, cm, m, in, or a JSON array of them in part order; got ${JSON.stringify(raw.slice(0, 40))}.`,
+      { field: "units" },
+    );
+  if (list.length !== count)
+    throw new Invalid("invalid_units", `units has ${list.length} entries for ${count} part files.`, { field: "units" });
   return list;
 }
 
@@ -53,25 +59,47 @@ export function orderFromForm(form: StreamedForm, queryFormat: string | null): P
   if (form.fileFields.has("part")) throw new BadRequest("bad_request", "Each part must be a file.");
   if (form.fileFields.has("kit")) throw new BadRequest("bad_request", "kit must be an id.");
   if (files.length && kitId) throw new BadRequest("bad_request", "Send either part files or a kit, not both.");
-  if (kitId && form.get("units")) throw new BadRequest("bad_request", "units applies to part files; a kit's parts keep the unit they were stored with (change it in the parts library).");
+  if (kitId && form.get("units"))
+    throw new BadRequest(
+      "bad_request",
+      "units applies to part files; a kit's parts keep the unit they were stored with (change it in the parts library).",
+    );
   if (!files.length && !kitId) throw new BadRequest("bad_request", "Send one or more `part` files, or a `kit` id.");
   const options = json(form, z.record(z.string(), z.unknown()), "options") ?? {};
   const templateRef = form.get("template");
   const versionRaw = form.get("templateVersion");
   if (form.fileFields.has("template")) throw new BadRequest("bad_request", "template must be a template id.");
   const templateVersion = versionRaw === null || versionRaw === "" ? undefined : Number(versionRaw);
-  if (templateVersion !== undefined && !(Number.isInteger(templateVersion) && templateVersion >= 1)) throw new BadRequest("bad_request", "templateVersion must be a version number (1, 2, …).");
+  if (templateVersion !== undefined && !(Number.isInteger(templateVersion) && templateVersion >= 1))
+    throw new BadRequest("bad_request", "templateVersion must be a version number (1, 2, …).");
   if (templateVersion !== undefined && !templateRef) throw new BadRequest("bad_request", "templateVersion needs a template.");
   const variables = json(form, variablesSchema, "variables") ?? {};
   const fmt = formatSchema.safeParse(form.get("format") ?? queryFormat ?? "3mf");
   if (!fmt.success) throw new BadRequest("bad_request", "format must be stl, 3mf or json.");
   const callbackUrl = form.get("callbackUrl") || undefined;
-  const order: PlateOrder = { options, variables, format: fmt.data, ...(templateRef ? { template: { id: templateRef, ...(templateVersion ? { version: templateVersion } : {}) } } : {}), ...(callbackUrl ? { callbackUrl } : {}) };
+  const order: PlateOrder = {
+    options,
+    variables,
+    format: fmt.data,
+    ...(templateRef ? { template: { id: templateRef, ...(templateVersion ? { version: templateVersion } : {}) } } : {}),
+    ...(callbackUrl ? { callbackUrl } : {}),
+  };
   if (kitId) return { ...order, kitId };
   const quantity = json(form, quantitySchema, "quantity");
-  if (quantity && quantity.length !== files.length) throw new Invalid("invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
+  if (quantity && quantity.length !== files.length)
+    throw new Invalid("invalid", `quantity has ${quantity.length} entries for ${files.length} part files.`);
   const units = partUnits(form, files.length);
-  return { ...order, files: files.map((f, i) => ({ name: f.name, key: f.key, size: f.size, head: f.head, quantity: quantity?.[i] ?? 1, ...(units?.[i] ? { unit: units[i] } : {}) })) };
+  return {
+    ...order,
+    files: files.map((f, i) => ({
+      name: f.name,
+      key: f.key,
+      size: f.size,
+      head: f.head,
+      quantity: quantity?.[i] ?? 1,
+      ...(units?.[i] ? { unit: units[i] } : {}),
+    })),
+  };
 }
 
 export function jobView(p: Plate) {
@@ -90,7 +118,16 @@ export function plateView(p: Plate) {
   const stats = (p.stats ?? {}) as { pieces?: unknown; layout?: unknown; [k: string]: unknown };
   const { pieces, layout, ...rest } = stats;
   return {
-    plate: { id: p.id, status: p.status, job: jobView(p), kitId: p.kitId, pieceCount: p.pieceCount, createdAt: p.createdAt, finishedAt: p.finishedAt, title: p.title },
+    plate: {
+      id: p.id,
+      status: p.status,
+      job: jobView(p),
+      kitId: p.kitId,
+      pieceCount: p.pieceCount,
+      createdAt: p.createdAt,
+      finishedAt: p.finishedAt,
+      title: p.title,
+    },
     pieces: pieces ?? [],
     layout: layout ?? null,
     findings: p.findings,
@@ -108,7 +145,12 @@ export async function plateFile(actor: WorkspaceActor, plate: Plate, format: Exp
   const bytes = await blobStore().get(file.blobKey);
   const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
   // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.
-  const stem = (plate.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
+  const stem =
+    (plate.title ?? "plate")
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, "-")
+      .replace(/^-|-$/g, "")
+      .slice(0, 60) || "plate";
   const name = `${stem}-${plate.createdAt.toISOString().slice(0, 10)}-${plate.id.slice(0, 4)}${EXPORT_FORMATS[format].extension}`;
   return new Response(bytes as Uint8Array<ArrayBuffer>, {
     headers: {
@@ -122,4 +164,3 @@ export async function plateFile(actor: WorkspaceActor, plate: Plate, format: Exp
     },
   });
 }
-

@@ -50,17 +50,29 @@ export function apiRoute<C>(handler: (req: Request, ctx: C) => Promise<Response>
   return async (req: Request, ctx: C): Promise<Response> => {
     const crossSite = crossSiteProblem(req);
     if (crossSite) return crossSite;
-    if (hasNul(safeDecode(req.url))) return apiError(400, "bad_request", "The address holds a NUL character, which no name, id or search can contain.");
+    if (hasNul(safeDecode(req.url)))
+      return apiError(400, "bad_request", "The address holds a NUL character, which no name, id or search can contain.");
     try {
       return await handler(req, ctx);
     } catch (err) {
       if (err instanceof AppError) {
-        return apiError(httpStatus(err), err.code, err.message, err.details, err instanceof RateLimited ? { "Retry-After": String(err.retryAfterSeconds) } : undefined);
+        return apiError(
+          httpStatus(err),
+          err.code,
+          err.message,
+          err.details,
+          err instanceof RateLimited ? { "Retry-After": String(err.retryAfterSeconds) } : undefined,
+        );
       }
       if (err instanceof ZodError) return apiError(422, "invalid", "The request does not match the API's schema.", err.issues);
       // req.json() on a body that is not JSON.
       if (err instanceof SyntaxError) return apiError(400, "bad_json", "The request body is not valid JSON.");
-      if (isBadInputDbError(err)) return apiError(400, "bad_request", "The request holds a value that cannot be stored (a NUL character, or a number or text out of range).");
+      if (isBadInputDbError(err))
+        return apiError(
+          400,
+          "bad_request",
+          "The request holds a value that cannot be stored (a NUL character, or a number or text out of range).",
+        );
       console.error(`[api] ${req.method} ${new URL(req.url).pathname} failed`, err);
       return apiError(500, "internal", "Something went wrong on our side; nothing was changed.");
     }

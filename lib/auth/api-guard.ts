@@ -29,7 +29,12 @@ export async function requireApiKey(req: Request, scope: ApiKeyScope): Promise<A
   const actor: ApiCaller = { workspaceId: row.workspaceId, userId: null, apiKeyId: row.id, permissions: row.scopes };
   // The order API comes with the paid plans: a workspace moved to Bench keeps its keys, refused here.
   const plan = (await billingOf(actor)).effective;
-  if (plan.apiKeys === 0) throw new PlanLimit("plan_limit", `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`, { plan: plan.id });
+  if (plan.apiKeys === 0)
+    throw new PlanLimit(
+      "plan_limit",
+      `The ${plan.name} plan has no order API. An owner can upgrade under Settings → Billing; the workspace's keys work again at once.`,
+      { plan: plan.id },
+    );
   // Last-used time, at most once a minute per key (no write on every request).
   await touchApiKey(actor);
   return actor;

@@ -99,7 +99,14 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
       maxAge: MAGIC_LINK_MAX_AGE_S,
       async sendVerificationRequest({ identifier, url }) {
         await sendMail(
-          linkMessage(identifier, "Your Slabwright sign-in link", "Someone (we hope you) asked to sign in to Slabwright with this address.", "Sign in", url, "The link works once, for 15 minutes. If you did not ask for it, ignore this message."),
+          linkMessage(
+            identifier,
+            "Your Slabwright sign-in link",
+            "Someone (we hope you) asked to sign in to Slabwright with this address.",
+            "Sign in",
+            url,
+            "The link works once, for 15 minutes. If you did not ask for it, ignore this message.",
+          ),
         );
       },
     }),
@@ -130,7 +137,11 @@ export const { handlers, auth, signIn, signOut } = NextAuth({
     async signOut(message) {
       const token = "token" in message ? message.token : null;
       if (token && typeof token.sid === "string") {
-        await revokeSession(token.sid, token.sub ?? null, new Date((typeof token.exp === "number" ? token.exp : Date.now() / 1000 + SESSION_MAX_AGE_S) * 1000));
+        await revokeSession(
+          token.sid,
+          token.sub ?? null,
+          new Date((typeof token.exp === "number" ? token.exp : Date.now() / 1000 + SESSION_MAX_AGE_S) * 1000),
+        );
       }
     },
     async signIn({ user, account }) {

@@ -88,7 +88,12 @@ export async function authorize(permission: Permission, what: string): Promise<C
 
 /** Make a workspace the active one for this browser (the membership is still checked on every request). */
 export async function setActiveWorkspace(workspaceId: string): Promise<void> {
-  (await cookies()).set(WORKSPACE_COOKIE, workspaceId, { httpOnly: true, sameSite: "lax", path: "/", secure: env().AUTH_URL.startsWith("https://") });
+  (await cookies()).set(WORKSPACE_COOKIE, workspaceId, {
+    httpOnly: true,
+    sameSite: "lax",
+    path: "/",
+    secure: env().AUTH_URL.startsWith("https://"),
+  });
 }
 
 /** Membership check for one workspace by id, straight from the database. */
@@ -101,11 +106,20 @@ export async function roleIn(workspaceId: string, userId: string): Promise<Role 
  * permission, then act. Field errors come back per field; access problems and unexpected failures
  * come back as a message (unexpected ones are logged with their cause, never shown verbatim).
  */
-export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Permission | null, what: string, fn: (input: z.output<S>, caller: Caller) => Promise<ActionResult<R>>) {
+export function guardedAction<S extends z.ZodType, R>(
+  schema: S,
+  permission: Permission | null,
+  what: string,
+  fn: (input: z.output<S>, caller: Caller) => Promise<ActionResult<R>>,
+) {
   return async (input: z.input<S>): Promise<ActionResult<R>> => {
     const parsed = schema.safeParse(input);
     if (!parsed.success) {
-      return { ok: false, message: "Check the marked fields.", fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]> };
+      return {
+        ok: false,
+        message: "Check the marked fields.",
+        fieldErrors: z.flattenError(parsed.error).fieldErrors as Record<string, string[]>,
+      };
     }
     const caller = await loadCaller();
     if (!caller) return { ok: false, code: "unauthorized", message: "Your session has ended; sign in again." };
@@ -113,11 +127,21 @@ export function guardedAction<S extends z.ZodType, R>(schema: S, permission: Per
     try {
       return await fn(parsed.data, caller);
     } catch (err) {
-      if (err instanceof AppError) return { ok: false, code: err.code, message: formMessage(err), fieldErrors: err.field ? { [err.field]: [formMessage(err)] } : undefined };
-      if (isBadInputDbError(err)) return { ok: false, code: "bad_request", message: "Something you entered cannot be stored (a NUL character, or a number or text out of range). Nothing was changed." };
+      if (err instanceof AppError)
+        return {
+          ok: false,
+          code: err.code,
+          message: formMessage(err),
+          fieldErrors: err.field ? { [err.field]: [formMessage(err)] } : undefined,
+        };
+      if (isBadInputDbError(err))
+        return {
+          ok: false,
+          code: "bad_request",
+          message: "Something you entered cannot be stored (a NUL character, or a number or text out of range). Nothing was changed.",
+        };
       console.error(`[action] ${what} failed`, err);
       return { ok: false, code: "internal", message: "Something went wrong and nothing was changed. Try again." };
     }
   };
 }
-

@@ -20,9 +20,38 @@ export type Plan = {
 };
 
 export const PLANS: Record<PlanId, Plan> = {
-  bench: { id: "bench", name: "Bench", tagline: "For trying Slabwright on your own kits", monthlyCents: 0, platesPerPeriod: 30, apiKeys: 0, logos: false, buildPriority: 0 },
-  workshop: { id: "workshop", name: "Workshop", tagline: "For a shop selling kits: the order API and branded templates", monthlyCents: 1900, platesPerPeriod: 1500, apiKeys: 10, logos: true, buildPriority: 5, priceEnv: "STRIPE_PRICE_WORKSHOP" },
-  farm: { id: "farm", name: "Farm", tagline: "For print farms: high volume, its builds first in the queue", monthlyCents: 7900, platesPerPeriod: 50000, apiKeys: 1000, logos: true, buildPriority: 10, priceEnv: "STRIPE_PRICE_FARM" },
+  bench: {
+    id: "bench",
+    name: "Bench",
+    tagline: "For trying Slabwright on your own kits",
+    monthlyCents: 0,
+    platesPerPeriod: 30,
+    apiKeys: 0,
+    logos: false,
+    buildPriority: 0,
+  },
+  workshop: {
+    id: "workshop",
+    name: "Workshop",
+    tagline: "For a shop selling kits: the order API and branded templates",
+    monthlyCents: 1900,
+    platesPerPeriod: 1500,
+    apiKeys: 10,
+    logos: true,
+    buildPriority: 5,
+    priceEnv: "STRIPE_PRICE_WORKSHOP",
+  },
+  farm: {
+    id: "farm",
+    name: "Farm",
+    tagline: "For print farms: high volume, its builds first in the queue",
+    monthlyCents: 7900,
+    platesPerPeriod: 50000,
+    apiKeys: 1000,
+    logos: true,
+    buildPriority: 10,
+    priceEnv: "STRIPE_PRICE_FARM",
+  },
 };
 
 export const PLAN_ORDER: PlanId[] = ["bench", "workshop", "farm"];

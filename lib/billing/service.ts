@@ -34,7 +34,17 @@ export function payments(): Stripe {
   if (client) return client;
   const e = env();
   const base = e.STRIPE_API_BASE ? new URL(e.STRIPE_API_BASE) : null;
-  client = new Stripe(requireSecret("STRIPE_SECRET_KEY"), base ? { host: base.hostname, port: Number(base.port || (base.protocol === "https:" ? 443 : 80)), protocol: base.protocol === "https:" ? "https" : "http", maxNetworkRetries: 1 } : { maxNetworkRetries: 2 });
+  client = new Stripe(
+    requireSecret("STRIPE_SECRET_KEY"),
+    base
+      ? {
+          host: base.hostname,
+          port: Number(base.port || (base.protocol === "https:" ? 443 : 80)),
+          protocol: base.protocol === "https:" ? "https" : "http",
+          maxNetworkRetries: 1,
+        }
+      : { maxNetworkRetries: 2 },
+  );
   return client;
 }
 
@@ -48,7 +58,14 @@ export async function billingOf(actor: WorkspaceActor, tx?: Tx): Promise<Billing
   if (!b) b = (await insertBillingRow(actor, tx)) ?? (await billingRow(actor, tx))!;
   if (b.status === "grace" && b.graceUntil && b.graceUntil.getTime() < Date.now()) {
     b = await endGrace(actor, tx);
-    await audit({ workspaceId: actor.workspaceId, action: "plan_changed", details: { to: "bench", reason: "grace period ended after a failed payment" } }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        action: "plan_changed",
+        details: { to: "bench", reason: "grace period ended after a failed payment" },
+      },
+      tx,
+    );
   }
   return { ...b, effective: PLANS[b.plan] };
 }
@@ -80,12 +97,23 @@ export async function meterPlate(tx: Tx, workspace: ActorOrWorkspace, count = 1,
   await lockUsage(tx, actor);
   const b = await billingOf(actor, tx);
   if (engravesLogo(options) && !b.effective.logos) {
-    throw new PlanLimit("plan_limit", `Logos come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. Remove the logo, or an owner can upgrade under Settings → Billing.`, { plan: b.plan, limit: "logos" });
+    throw new PlanLimit(
+      "plan_limit",
+      `Logos come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. Remove the logo, or an owner can ` +
+        `upgrade under Settings → Billing.`,
+      { plan: b.plan, limit: "logos" },
+    );
   }
   const start = periodStart(b);
   const plates = await addPlates(tx, actor, start, count);
   if (plates > b.effective.platesPerPeriod) {
-    throw new PlanLimit("plan_limit", `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ${nextPeriod(b, start).toISOString().slice(0, 10)}.`, { plan: b.plan, limit: b.effective.platesPerPeriod, used: plates - count });
+    throw new PlanLimit(
+      "plan_limit",
+      `This workspace has made its ${b.effective.platesPerPeriod.toLocaleString("en-US")} plates for this billing period on the ` +
+        `${b.effective.name} plan. An owner can upgrade under Settings → Billing; the count starts again on ` +
+        `${nextPeriod(b, start).toISOString().slice(0, 10)}.`,
+      { plan: b.plan, limit: b.effective.platesPerPeriod, used: plates - count },
+    );
   }
   return b;
 }
@@ -123,7 +151,13 @@ export async function startCheckout(actor: WorkspaceActor & { email: string }, p
   });
   // Our own record of the session: the webhook applies a completed checkout only through it.
   await insertCheckoutSession(actor, session.id, plan);
-  await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "checkout_started", details: { plan } });
+  await audit({
+    workspaceId: actor.workspaceId,
+    actorUserId: actor.userId,
+    actorEmail: actor.email,
+    action: "checkout_started",
+    details: { plan },
+  });
   if (!session.url) throw new Error("the payment provider gave no checkout page");
   return session.url;
 }
@@ -131,15 +165,20 @@ export async function startCheckout(actor: WorkspaceActor & { email: string }, p
 export async function billingPortal(actor: WorkspaceActor): Promise<string> {
   const b = await billingOf(actor);
   if (!b.customerId) throw new Invalid("invalid", "There is nothing to manage yet: choose a paid plan first.");
-  const s = await payments().billingPortal.sessions.create({ customer: b.customerId, return_url: new URL("/settings/billing", env().AUTH_URL).toString() });
+  const s = await payments().billingPortal.sessions.create({
+    customer: b.customerId,
+    return_url: new URL("/settings/billing", env().AUTH_URL).toString(),
+  });
   return s.url;
 }
 
-const planOfPrice = (price: string | undefined): PlanId | null => (price === env().STRIPE_PRICE_WORKSHOP ? "workshop" : price === env().STRIPE_PRICE_FARM ? "farm" : null);
+const planOfPrice = (price: string | undefined): PlanId | null =>
+  price === env().STRIPE_PRICE_WORKSHOP ? "workshop" : price === env().STRIPE_PRICE_FARM ? "farm" : null;
 const at = (s: number | null | undefined) => (s ? new Date(s * 1000) : null);
 
 type Obj = Record<string, unknown> & { id?: string; customer?: string | null };
-type Outcome = "applied" | "duplicate" | "stale" | "ignored" | "unknown_customer" | "unknown_session" | "session_not_complete" | "session_mismatch";
+type Outcome =
+  "applied" | "duplicate" | "stale" | "ignored" | "unknown_customer" | "unknown_session" | "session_not_complete" | "session_mismatch";
 
 const idOf = (v: string | { id: string } | null | undefined): string | null => (typeof v === "string" ? v : (v?.id ?? null));
 
@@ -171,7 +210,8 @@ async function checkedCheckout(sessionId: string | undefined) {
  */
 export async function handleBillingEvent(raw: string, signature: string | null): Promise<Outcome> {
   const webhookSecret = env().STRIPE_WEBHOOK_SECRET;
-  if (!webhookSecret) throw new Unavailable("billing_not_configured", "This server has no STRIPE_WEBHOOK_SECRET: it cannot verify payment events.");
+  if (!webhookSecret)
+    throw new Unavailable("billing_not_configured", "This server has no STRIPE_WEBHOOK_SECRET: it cannot verify payment events.");
   let event: Stripe.Event;
   try {
     event = payments().webhooks.constructEvent(raw, signature ?? "", webhookSecret);
@@ -189,7 +229,8 @@ export async function handleBillingEvent(raw: string, signature: string | null):
     if (!(await insertBillingEvent(tx, { id: event.id, type: event.type, workspaceId, createdAt: created }))) return "duplicate";
     const done = async (outcome: Exclude<Outcome, "duplicate">) => {
       await setBillingEventOutcome(tx, event.id, outcome);
-      if (outcome.startsWith("session_") || outcome === "unknown_session") console.warn(`billing: event ${event.id} (${event.type}) not applied: ${outcome}`);
+      if (outcome.startsWith("session_") || outcome === "unknown_session")
+        console.warn(`billing: event ${event.id} (${event.type}) not applied: ${outcome}`);
       return outcome;
     };
     if (checkout && checkout.outcome !== "ok") return done(checkout.outcome);
@@ -206,14 +247,23 @@ export async function handleBillingEvent(raw: string, signature: string | null):
         if (checkout?.outcome !== "ok") return done("unknown_session");
         // The provider's session must belong to the customer we made for this workspace.
         if (b.customerId && checkout.customer !== b.customerId) return done("session_mismatch");
-        if (!(await completeCheckoutSession(tx, actor, checkout.record.id))) return done("ignored"); // this checkout was applied once already (another event id)
+        // this checkout was applied once already (another event id)
+        if (!(await completeCheckoutSession(tx, actor, checkout.record.id))) return done("ignored");
         to = checkout.record.plan;
-        Object.assign(set, { customerId: checkout.customer, subscriptionId: checkout.subscription, status: "active", graceUntil: null, plan: to });
+        Object.assign(set, {
+          customerId: checkout.customer,
+          subscriptionId: checkout.subscription,
+          status: "active",
+          graceUntil: null,
+          plan: to,
+        });
         break;
       }
       case "customer.subscription.created":
       case "customer.subscription.updated": {
-        const items = (obj.items as { data?: { price?: { id?: string }; current_period_start?: number; current_period_end?: number }[] } | undefined)?.data ?? [];
+        const items =
+          (obj.items as { data?: { price?: { id?: string }; current_period_start?: number; current_period_end?: number }[] } | undefined)
+            ?.data ?? [];
         to = planOfPrice(items[0]?.price?.id);
         const status = obj.status as string;
         Object.assign(set, {
@@ -227,13 +277,28 @@ export async function handleBillingEvent(raw: string, signature: string | null):
       }
       case "customer.subscription.deleted":
         to = "bench";
-        Object.assign(set, { plan: "bench", status: "canceled", subscriptionId: null, graceUntil: null, periodStart: null, periodEnd: null });
+        Object.assign(set, {
+          plan: "bench",
+          status: "canceled",
+          subscriptionId: null,
+          graceUntil: null,
+          periodStart: null,
+          periodEnd: null,
+        });
         break;
       case "invoice.paid":
       case "invoice.payment_failed": {
         const paid = event.type === "invoice.paid";
         const line = (obj.lines as { data?: { period?: { start?: number; end?: number } }[] } | undefined)?.data?.[0]?.period;
-        await upsertInvoice(tx, actor, { id: obj.id as string, amountCents: Number(paid ? obj.amount_paid : obj.amount_due) || 0, currency: String(obj.currency ?? "eur"), status: paid ? "paid" : "failed", periodStart: at(line?.start ?? (obj.period_start as number)), periodEnd: at(line?.end ?? (obj.period_end as number)), createdAt: created });
+        await upsertInvoice(tx, actor, {
+          id: obj.id as string,
+          amountCents: Number(paid ? obj.amount_paid : obj.amount_due) || 0,
+          currency: String(obj.currency ?? "eur"),
+          status: paid ? "paid" : "failed",
+          periodStart: at(line?.start ?? (obj.period_start as number)),
+          periodEnd: at(line?.end ?? (obj.period_end as number)),
+          createdAt: created,
+        });
         if (paid) Object.assign(set, { status: "active", graceUntil: null });
         else Object.assign(set, { status: "grace", graceUntil: new Date(Date.now() + env().SLAB_BILLING_GRACE_DAYS * 86_400_000) });
         break;
@@ -243,7 +308,14 @@ export async function handleBillingEvent(raw: string, signature: string | null):
         return done("ignored");
     }
     await setBilling(tx, actor, set);
-    await audit({ workspaceId, action: to && to !== b.plan ? "plan_changed" : "billing_event", details: { event: event.type, id: event.id, ...(to ? { from: b.plan, to } : {}), ...(set.status ? { status: set.status } : {}) } }, tx);
+    await audit(
+      {
+        workspaceId,
+        action: to && to !== b.plan ? "plan_changed" : "billing_event",
+        details: { event: event.type, id: event.id, ...(to ? { from: b.plan, to } : {}), ...(set.status ? { status: set.status } : {}) },
+      },
+      tx,
+    );
     return done("applied");
   });
 }

@@ -1,7 +1,16 @@
 import "server-only";
 import { transaction } from "@/db/queries/tx";
 import { type FloorState, type PieceCheck, type Plate } from "@/db/schema";
-import { addFloorEvent, firstInspectionsByWeek, floorHistory, floorQueue as queueRows, insertInspection, lastInspection, problemRecipients, setFloorState } from "@/db/queries/floor";
+import {
+  addFloorEvent,
+  firstInspectionsByWeek,
+  floorHistory,
+  floorQueue as queueRows,
+  insertInspection,
+  lastInspection,
+  problemRecipients,
+  setFloorState,
+} from "@/db/queries/floor";
 import { plateById } from "@/db/queries/plates";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import type { PlacedPiece } from "@/lib/geometry/build-plate";
@@ -15,7 +24,6 @@ import { Conflict, Invalid } from "@/lib/errors";
  * an inspection marks every piece present, missing or defective, and a plate with missing or
  * defective pieces waits for its reprint, which holds exactly those pieces.
  */
-
 
 export const STATE_LABEL: Record<FloorState, string> = {
   to_print: "to print",
@@ -37,7 +45,7 @@ const MOVES: Record<FloorState, FloorState[]> = {
 };
 export const nextMoves = (s: FloorState) => MOVES[s];
 
-export const piecesOf = (p: Plate) => ((p.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? []);
+export const piecesOf = (p: Plate) => (p.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? [];
 
 /** The floor by state (counts, and the first 50 plates of each); `q` finds a plate by id, kit or title. */
 export async function floorQueue(actor: WorkspaceActor, q?: string) {
@@ -53,7 +61,8 @@ export async function movePlate(actor: WorkspaceActor, id: string, to: FloorStat
   await transaction(async (tx) => {
     const p = await plateById(actor, id, { tx, lock: true });
     if (!p.floorState) throw new Conflict("not_on_floor", "This plate is not on the floor yet: its files are still being made.");
-    if (!MOVES[p.floorState].includes(to)) throw new Invalid("bad_move", `A plate that is ${STATE_LABEL[p.floorState]} cannot go to ${STATE_LABEL[to]}.`);
+    if (!MOVES[p.floorState].includes(to))
+      throw new Invalid("bad_move", `A plate that is ${STATE_LABEL[p.floorState]} cannot go to ${STATE_LABEL[to]}.`);
     await setFloorState(tx, actor, id, p.floorState, to, note ?? null);
   });
 }
@@ -70,27 +79,45 @@ export async function recordInspection(actor: WorkspaceActor, id: string, checks
     if (!p.floorState || pieces.length === 0) throw new Conflict("not_on_floor", "This plate has no finished slab to inspect yet.");
     const byNumber = new Map((checks === "all-present" ? [] : checks).map((c) => [c.number, c]));
     for (const n of byNumber.keys()) if (!pieces.some((x) => x.number === n)) throw new Invalid("invalid", `The plate has no piece ${n}.`);
-    for (const c of byNumber.values()) if (c.state === "defective" && !c.note?.trim()) throw new Invalid("invalid", `Say what is wrong with piece ${c.number}.`, undefined, `note-${c.number}`);
+    for (const c of byNumber.values())
+      if (c.state === "defective" && !c.note?.trim())
+        throw new Invalid("invalid", `Say what is wrong with piece ${c.number}.`, undefined, `note-${c.number}`);
     const results: PieceCheck[] = pieces.map((x) => byNumber.get(x.number) ?? { number: x.number, state: "present" });
-    const missing = results.filter((r) => r.state === "missing").length, defective = results.filter((r) => r.state === "defective").length;
+    const missing = results.filter((r) => r.state === "missing").length,
+      defective = results.filter((r) => r.state === "defective").length;
     const row = await insertInspection(tx, actor, id, results, missing, defective);
     const to: FloorState = missing || defective ? "reprint_needed" : "done";
-    await setFloorState(tx, actor, id, p.floorState, to, missing || defective ? `${missing} missing, ${defective} defective` : "all present");
+    await setFloorState(
+      tx,
+      actor,
+      id,
+      p.floorState,
+      to,
+      missing || defective ? `${missing} missing, ${defective} defective` : "all present",
+    );
     return { plate: p, inspection: row, results, missing, defective, to };
   });
-  if (out.missing || out.defective) await notifyProblem(out.plate, out.results).catch((err: unknown) => console.error("[floor] notification failed", err));
+  if (out.missing || out.defective)
+    await notifyProblem(out.plate, out.results).catch((err: unknown) => console.error("[floor] notification failed", err));
   return out;
 }
 
 async function notifyProblem(p: Plate, results: PieceCheck[]) {
   const pieces = piecesOf(p);
   const bad = results.filter((r) => r.state !== "present");
-  const list = bad.map((r) => `piece ${r.number} (${pieces.find((x) => x.number === r.number)?.partName ?? "?"}): ${r.state}${r.note ? ` — ${r.note}` : ""}`);
+  const list = bad.map(
+    (r) => `piece ${r.number} (${pieces.find((x) => x.number === r.number)?.partName ?? "?"}): ${r.state}${r.note ? ` — ${r.note}` : ""}`,
+  );
   // The plate's maker; an API plate has none, so the workspace's owners hear of it.
   const to = await problemRecipients(p);
   // Queued first: the worker delivers it (with its retries) whatever happens to the mail.
   if (p.callbackUrl) {
-    await enqueueCallback(p.workspaceId, p.callbackUrl, { event: "inspection", plate: { id: p.id, floorState: "reprint_needed" }, pieces: bad, at: new Date().toISOString() });
+    await enqueueCallback(p.workspaceId, p.callbackUrl, {
+      event: "inspection",
+      plate: { id: p.id, floorState: "reprint_needed" },
+      pieces: bad,
+      at: new Date().toISOString(),
+    });
   }
   const url = appUrl(`/floor/plates/${p.id}`);
   for (const email of to) {
@@ -98,7 +125,9 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
       to: email,
       workspaceId: p.workspaceId,
       subject: `Plate ${p.title ?? p.id.slice(0, 8)}: ${bad.length} piece${bad.length > 1 ? "s" : ""} to reprint`,
-      text: `The inspection of plate ${p.title ?? ""} (${p.id.slice(0, 8)}) found:\n\n${list.map((l) => `• ${l}`).join("\n")}\n\nMake the reprint from the plate's page: ${url}\n\n— Slabwright`,
+      text:
+        `The inspection of plate ${p.title ?? ""} (${p.id.slice(0, 8)}) ` +
+        `found:\n\n${list.map((l) => `• ${l}`).join("\n")}\n\nMake the reprint from the plate's page: ${url}\n\n— Slabwright`,
     });
   }
 }
@@ -107,13 +136,16 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
 export async function makeReprint(actor: WorkspaceActor, id: string): Promise<Plate> {
   const p = await plateById(actor, id);
   const last = await lastInspection(actor, id);
-  if (!last) throw new Conflict("not_inspected", "Inspect the plate first: the reprint holds the pieces the inspection found missing or defective.");
+  if (!last)
+    throw new Conflict("not_inspected", "Inspect the plate first: the reprint holds the pieces the inspection found missing or defective.");
   const wanted = last.results.filter((r) => r.state !== "present").map((r) => r.number);
   if (!wanted.length) throw new Conflict("nothing_to_reprint", "The last inspection found every piece present.");
   if (!p.input) throw new Conflict("not_remakeable", "This plate has no stored inputs to reprint from.");
   const pieces = piecesOf(p);
   // Pieces name their part as the build thread does: part-1, part-2, … in the input's order.
-  const byPart = p.input.parts.map((_, i) => wanted.filter((n) => pieces.find((x) => x.number === n)?.partId === `part-${i + 1}`).sort((a, b) => a - b));
+  const byPart = p.input.parts.map((_, i) =>
+    wanted.filter((n) => pieces.find((x) => x.number === n)?.partId === `part-${i + 1}`).sort((a, b) => a - b),
+  );
   const parts = p.input.parts.map((x, i) => ({ ...x, quantity: byPart[i]!.length })).filter((x) => x.quantity > 0);
   const opts = p.options as { layout?: Record<string, unknown> };
   const { placements: _drop, pieceNumbers: _old, ...layout } = (opts.layout ?? {}) as Record<string, unknown>;
@@ -121,10 +153,25 @@ export async function makeReprint(actor: WorkspaceActor, id: string): Promise<Pl
   const pieceNumbers = byPart.flat();
   const { plate: row } = await createPlate(
     actor,
-    { ...specOf(p), options: { ...p.options, layout: { ...layout, copies: 1, pieceNumbers } }, input: { ...p.input, parts }, pieceCount: wanted.length, callbackUrl: p.callbackUrl },
+    {
+      ...specOf(p),
+      options: { ...p.options, layout: { ...layout, copies: 1, pieceNumbers } },
+      input: { ...p.input, parts },
+      pieceCount: wanted.length,
+      callbackUrl: p.callbackUrl,
+    },
     { source: "reprint", reprintOf: p.id, createdBy: actor.userId ?? p.createdBy },
   );
-  await transaction((tx) => addFloorEvent(tx, actor, p.id, p.floorState, p.floorState ?? "reprint_needed", `reprint ${row.id.slice(0, 8)} made (${wanted.length} piece${wanted.length > 1 ? "s" : ""})`));
+  await transaction((tx) =>
+    addFloorEvent(
+      tx,
+      actor,
+      p.id,
+      p.floorState,
+      p.floorState ?? "reprint_needed",
+      `reprint ${row.id.slice(0, 8)} made (${wanted.length} piece${wanted.length > 1 ? "s" : ""})`,
+    ),
+  );
   return row;
 }
 
@@ -134,7 +181,8 @@ export async function makeReprint(actor: WorkspaceActor, id: string): Promise<Pl
  */
 export async function firstPassYield(actor: WorkspaceActor, kitId?: string) {
   const rows = await firstInspectionsByWeek(actor, kitId);
-  const inspected = rows.reduce((s, r) => s + r.inspected, 0), passed = rows.reduce((s, r) => s + r.passed, 0);
+  const inspected = rows.reduce((s, r) => s + r.inspected, 0),
+    passed = rows.reduce((s, r) => s + r.passed, 0);
   return { inspected, passed, yield: inspected ? passed / inspected : null, weeks: rows };
 }
 

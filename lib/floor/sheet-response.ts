@@ -11,10 +11,24 @@ import { BadRequest, Conflict } from "@/lib/errors";
 /** What the sheet needs of a plate, with its template's name and version. */
 export async function sheetPlate(p: Plate): Promise<SheetPlate> {
   const stats = p.stats as { layout?: PlateLayout; pieces?: PlacedPiece[] } | null;
-  if (p.jobState !== "done" || !stats?.layout || !stats.pieces) throw new Conflict("not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
+  if (p.jobState !== "done" || !stats?.layout || !stats.pieces)
+    throw new Conflict("not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
   // Within the plate's workspace: its template is that workspace's own or a starter.
   const t = p.templateVersionId ? await templateLabel(asActor(p.workspaceId), p.templateVersionId) : null;
-  return { id: p.id, title: p.title, createdAt: p.createdAt, options: p.options, variables: p.variables, findings: p.findings as SheetPlate["findings"], estimates: p.estimates as unknown as Estimates | null, layout: stats.layout, pieces: stats.pieces, templateName: t?.name ?? null, templateVersion: t?.version ?? null, proofSummary: p.proof?.summary ?? null };
+  return {
+    id: p.id,
+    title: p.title,
+    createdAt: p.createdAt,
+    options: p.options,
+    variables: p.variables,
+    findings: p.findings as SheetPlate["findings"],
+    estimates: p.estimates as unknown as Estimates | null,
+    layout: stats.layout,
+    pieces: stats.pieces,
+    templateName: t?.name ?? null,
+    templateVersion: t?.version ?? null,
+    proofSummary: p.proof?.summary ?? null,
+  };
 }
 
 /** The plate's page in the app, where the sheet's QR code leads (the inspection page). */
@@ -24,8 +38,18 @@ export async function sheetResponse(req: Request, p: Plate): Promise<Response> {
   const paper = (new URL(req.url).searchParams.get("paper") ?? "a4").toLowerCase();
   if (!(paper in PAPERS)) throw new BadRequest("bad_request", "paper must be a4 or letter.");
   const pdf = await plateMapPdf(await sheetPlate(p), platePageUrl(p.id), paper as Paper);
-  const stem = (p.title ?? "plate").toLowerCase().replace(/[^a-z0-9]+/g, "-").replace(/^-|-$/g, "").slice(0, 60) || "plate";
+  const stem =
+    (p.title ?? "plate")
+      .toLowerCase()
+      .replace(/[^a-z0-9]+/g, "-")
+      .replace(/^-|-$/g, "")
+      .slice(0, 60) || "plate";
   return new Response(pdf as Uint8Array<ArrayBuffer>, {
-    headers: { "Content-Type": "application/pdf", "Content-Disposition": `inline; filename="${stem}-${p.id.slice(0, 4)}-map-${paper}.pdf"`, "Content-Length": String(pdf.byteLength), "X-Plate-Id": p.id },
+    headers: {
+      "Content-Type": "application/pdf",
+      "Content-Disposition": `inline; filename="${stem}-${p.id.slice(0, 4)}-map-${paper}.pdf"`,
+      "Content-Length": String(pdf.byteLength),
+      "X-Plate-Id": p.id,
+    },
   });
 }

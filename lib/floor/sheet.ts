@@ -34,7 +34,11 @@ export type SheetPlate = {
 };
 
 const PT = 72 / 25.4; // points per mm
-const ink = rgb(0.12, 0.14, 0.16), muted = rgb(0.36, 0.39, 0.44), slabFill = rgb(0.94, 0.91, 0.86), markFill = rgb(0.54, 0.5, 0.42), pieceFill = rgb(0.29, 0.31, 0.34);
+const ink = rgb(0.12, 0.14, 0.16),
+  muted = rgb(0.36, 0.39, 0.44),
+  slabFill = rgb(0.94, 0.91, 0.86),
+  markFill = rgb(0.54, 0.5, 0.42),
+  pieceFill = rgb(0.29, 0.31, 0.34);
 
 let fonts: { regular: Uint8Array; bold: Uint8Array } | undefined;
 function fontBytes() {
@@ -51,8 +55,12 @@ export function sheetScale(slab: { width: number; depth: number }, box: { w: num
 export function cautionsFor(material: keyof typeof MATERIALS, findings: { code: string }[]): string[] {
   return [
     "Hot nozzle (about 190–260 °C) and bed (up to about 110 °C): let the bed cool before lifting the slab.",
-    ...(MATERIALS[material]?.styrene ? [`${material} gives off styrene and fine particles while printing: print in a ventilated room.`] : []),
-    ...(findings.some((f) => f.code === "small_part") ? ["Small parts: not for children under 3; follow the toy-safety rules where you sell."] : []),
+    ...(MATERIALS[material]?.styrene
+      ? [`${material} gives off styrene and fine particles while printing: print in a ventilated room.`]
+      : []),
+    ...(findings.some((f) => f.code === "small_part")
+      ? ["Small parts: not for children under 3; follow the toy-safety rules where you sell."]
+      : []),
   ];
 }
 
@@ -73,13 +81,21 @@ export async function plateMapPdf(plate: SheetPlate, url: string, paper: Paper =
   const page = doc.addPage([P.w * PT, P.h * PT]);
   const m = 12; // margin, mm
   // y runs up from the bottom edge, in mm; helpers take mm.
-  const text = (s: string, x: number, y: number, size = 3.2, font: PDFFont = regular, color = ink) => page.drawText(s, { x: x * PT, y: y * PT, size: size * PT, font, color });
+  const text = (s: string, x: number, y: number, size = 3.2, font: PDFFont = regular, color = ink) =>
+    page.drawText(s, { x: x * PT, y: y * PT, size: size * PT, font, color });
 
   // Header and the sheet's own QR code (the slab's QR keeps the customer's content).
   let y = P.h - m - 6;
   text("Plate map", m, y, 6, bold);
   text(plate.title ?? "Plate", m, y - 6.5, 4.2, bold, muted);
-  const meta = [`made ${plate.createdAt.toISOString().slice(0, 10)}`, `plate ${plate.id.slice(0, 8)}`, plate.templateName ? `template ${plate.templateName} v${plate.templateVersion}` : null, P.label].filter(Boolean).join(" · ");
+  const meta = [
+    `made ${plate.createdAt.toISOString().slice(0, 10)}`,
+    `plate ${plate.id.slice(0, 8)}`,
+    plate.templateName ? `template ${plate.templateName} v${plate.templateVersion}` : null,
+    P.label,
+  ]
+    .filter(Boolean)
+    .join(" · ");
   text(meta, m, y - 11.5, 2.8, regular, muted);
   const qrSide = 26;
   drawQr(page, url, P.w - m - qrSide, P.h - m - qrSide, qrSide);
@@ -90,24 +106,33 @@ export async function plateMapPdf(plate: SheetPlate, url: string, paper: Paper =
   const box = { w: P.w - 2 * m, h: 118 };
   const L = plate.layout;
   const s = sheetScale(L.slab, box);
-  const ox = m + (box.w - L.slab.width * s) / 2, oy = y - box.h + (box.h - L.slab.depth * s) / 2;
+  const ox = m + (box.w - L.slab.width * s) / 2,
+    oy = y - box.h + (box.h - L.slab.depth * s) / 2;
   const draw = (polys: [number, number][][], color: ReturnType<typeof rgb>, opacity = 1) => {
     if (!polys.length) return;
-    const d = polys.map((c) => `M${c.map(([px, py]) => `${((ox + px * s) * PT).toFixed(2)} ${(-(oy + py * s) * PT).toFixed(2)}`).join(" L")} Z`).join(" ");
+    const d = polys
+      .map((c) => `M${c.map(([px, py]) => `${((ox + px * s) * PT).toFixed(2)} ${(-(oy + py * s) * PT).toFixed(2)}`).join(" L")} Z`)
+      .join(" ");
     // drawSvgPath flips y (SVG is y-down from the given origin): draw from the page's bottom-left.
     page.drawSvgPath(d, { x: 0, y: 0, color, opacity, borderWidth: 0 });
   };
   draw(L.slab.outline, slabFill);
   draw(L.markOutlines ?? [], markFill);
-  draw(plate.pieces.flatMap((p) => p.outline), pieceFill, 0.85);
+  draw(
+    plate.pieces.flatMap((p) => p.outline),
+    pieceFill,
+    0.85,
+  );
   for (const p of plate.pieces) {
-    const cx = ox + ((p.bounds.minX + p.bounds.maxX) / 2) * s, cy = oy + ((p.bounds.minY + p.bounds.maxY) / 2) * s;
+    const cx = ox + ((p.bounds.minX + p.bounds.maxX) / 2) * s,
+      cy = oy + ((p.bounds.minY + p.bounds.maxY) / 2) * s;
     const label = String(p.number);
     const size = Math.max(2.2, Math.min(5, ((p.bounds.maxX - p.bounds.minX) * s) / 2.5));
     const w = bold.widthOfTextAtSize(label, size * PT) / PT;
     page.drawText(label, { x: (cx - w / 2) * PT, y: (cy - size * 0.36) * PT, size: size * PT, font: bold, color: rgb(1, 1, 1) });
   }
-  const scaleText = s >= 0.999 ? "Scale 1:1 — print at 100 % (no “fit to page”)" : `Scale 1:${(1 / s).toFixed(2)} — the slab is larger than the paper`;
+  const scaleText =
+    s >= 0.999 ? "Scale 1:1 — print at 100 % (no “fit to page”)" : `Scale 1:${(1 / s).toFixed(2)} — the slab is larger than the paper`;
   text(`${scaleText} · slab ${L.slab.width.toFixed(1)} × ${L.slab.depth.toFixed(1)} mm`, m, y - box.h - 4, 2.8, regular, muted);
   page.drawRectangle({ x: (P.w - m - 10 * s) * PT, y: (y - box.h - 3.6) * PT, width: 10 * s * PT, height: 1.2 * PT, color: ink });
   text("10 mm", P.w - m - 10 * s - 9, y - box.h - 4, 2.6, regular, muted);
@@ -130,14 +155,24 @@ export async function plateMapPdf(plate: SheetPlate, url: string, paper: Paper =
     text("OK", x + colW - 8, y, 2.8, bold, muted);
   }
   shown.forEach((p, i) => {
-    const c = Math.floor(i / rowsPerCol), r = i % rowsPerCol;
-    const x = m + c * colW, ry = y - (r + 1) * rowH;
+    const c = Math.floor(i / rowsPerCol),
+      r = i % rowsPerCol;
+    const x = m + c * colW,
+      ry = y - (r + 1) * rowH;
     text(String(p.number), x, ry, 3.2, bold);
     text(fit(p.partName, regular, 3.2, colW - 32), x + 9, ry, 3.2);
     text(String(p.copy), x + colW - 20, ry, 3.2);
-    page.drawRectangle({ x: (x + colW - 8) * PT, y: (ry - 0.4) * PT, width: 3.4 * PT, height: 3.4 * PT, borderColor: ink, borderWidth: 0.5 });
+    page.drawRectangle({
+      x: (x + colW - 8) * PT,
+      y: (ry - 0.4) * PT,
+      width: 3.4 * PT,
+      height: 3.4 * PT,
+      borderColor: ink,
+      borderWidth: 0.5,
+    });
   });
-  if (plate.pieces.length > shown.length) text(`… and ${plate.pieces.length - shown.length} more pieces: see the plate's page.`, m, bottomOfTable + 1, 2.8, regular, muted);
+  if (plate.pieces.length > shown.length)
+    text(`… and ${plate.pieces.length - shown.length} more pieces: see the plate's page.`, m, bottomOfTable + 1, 2.8, regular, muted);
 
   // Material, estimates, slicer settings, cautions.
   let by = 56;
@@ -145,8 +180,11 @@ export async function plateMapPdf(plate: SheetPlate, url: string, paper: Paper =
   text("Print", m, by, 3.6, bold);
   const lines = [
     `Material ${o.material} · nozzle ${o.nozzle} mm · layer height ${o.layerHeight} mm`,
-    e ? `Estimated ${e.totalMass.toFixed(1)} g · ${e.filamentLength.toFixed(2)} m of filament · cost ${e.cost.toFixed(2)}` : "Estimates: not recorded",
-    `Slab ${o.slab.thickness} mm thick; pieces stand ${o.slab.gap} mm above it. Keep that air gap in the slicer (its support / raft gap setting), or the pieces fuse to the slab.`,
+    e
+      ? `Estimated ${e.totalMass.toFixed(1)} g · ${e.filamentLength.toFixed(2)} m of filament · cost ${e.cost.toFixed(2)}`
+      : "Estimates: not recorded",
+    `Slab ${o.slab.thickness} mm thick; pieces stand ${o.slab.gap} mm above it. Keep that air gap in the slicer (its support / raft ` +
+      `gap setting), or the pieces fuse to the slab.`,
   ];
   for (const l of lines) {
     by -= 4.6;
@@ -183,7 +221,13 @@ function drawQr(page: PDFPage, value: string, x: number, y: number, side: number
   const mod = side / (n + 2 * QUIET_ZONE_MODULES);
   page.drawRectangle({ x: x * PT, y: y * PT, width: side * PT, height: side * PT, color: rgb(1, 1, 1) });
   for (const { row, start, end } of runs) {
-    page.drawRectangle({ x: (x + (QUIET_ZONE_MODULES + start) * mod) * PT, y: (y + side - (QUIET_ZONE_MODULES + row + 1) * mod) * PT, width: (end - start) * mod * PT + 0.01, height: mod * PT + 0.01, color: rgb(0, 0, 0) });
+    page.drawRectangle({
+      x: (x + (QUIET_ZONE_MODULES + start) * mod) * PT,
+      y: (y + side - (QUIET_ZONE_MODULES + row + 1) * mod) * PT,
+      width: (end - start) * mod * PT + 0.01,
+      height: mod * PT + 0.01,
+      color: rgb(0, 0, 0),
+    });
   }
 }
 

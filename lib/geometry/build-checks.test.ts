@@ -11,7 +11,8 @@ const VALUE = "HILL";
 
 /** The line laid out as a build lays it out, its template allowing `maxWidth` mm. */
 function line(maxWidth?: number): TextLine {
-  const mark = parseOptions({ marks: { text: [{ value: VALUE, size: 5, font: "mono-bold", ...(maxWidth ? { maxWidth } : {}) }] } }).marks.text[0]!;
+  const mark = parseOptions({ marks: { text: [{ value: VALUE, size: 5, font: "mono-bold", ...(maxWidth ? { maxWidth } : {}) }] } }).marks
+    .text[0]!;
   return { mark, value: mark.value, shape: layoutText(font, mark.value, mark.size) };
 }
 const tooLong = (findings: { code: string; message: string }[]) => findings.filter((f) => f.code === "text_too_long");

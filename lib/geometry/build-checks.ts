@@ -17,7 +17,14 @@ export function logoTooComplex(logo: Logo | null): Finding | undefined {
   if (!logo) return undefined;
   const points = logo.parts.reduce((n, p) => n + p.contours.reduce((m, c) => m + c.length, 0), 0);
   if (points <= LOGO_LIMITS.points) return undefined;
-  return { severity: "error", code: "logo_too_complex", field: ["marks", "logo", "paths"], message: `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.w} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")} are engraved. Simplify its curves.` };
+  return {
+    severity: "error",
+    code: "logo_too_complex",
+    field: ["marks", "logo", "paths"],
+    message:
+      `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.w} mm; at most ` +
+      `${LOGO_LIMITS.points.toLocaleString("en-US")} are engraved. Simplify its curves.`,
+  };
 }
 
 /** Room a template gives its filled values (a line's maxWidth, the QR's maxSize): too long is an error that says by how much. */
@@ -26,13 +33,21 @@ export function roomForValues(shapes: MarkShapes): Finding[] {
   for (const [i, t] of shapes.texts.entries()) {
     const width = lineWidth(t.shape);
     if (t.mark.maxWidth !== undefined && width > t.mark.maxWidth + 1e-9) {
-      out.push({ severity: "error", code: "text_too_long", field: ["marks", "text", i, "value"], message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.` });
+      out.push({
+        severity: "error",
+        code: "text_too_long",
+        field: ["marks", "text", i, "value"],
+        message:
+          `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ` +
+          `${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.`,
+      });
     }
   }
   const qr = shapes.qr;
   if (qr && qr.mark.maxSize !== undefined && qr.shape.sizeWithQuietZone > qr.mark.maxSize + 1e-9) {
     // The longest start of the value that still fits, found by halving.
-    let lo = 0, hi = qr.value.length;
+    let lo = 0,
+      hi = qr.value.length;
     while (lo < hi) {
       const mid = Math.ceil((lo + hi) / 2);
       if (qrShape(qr.value.slice(0, mid) || " ", qr.mark.module, qr.mark.level).sizeWithQuietZone <= qr.mark.maxSize) lo = mid;
@@ -42,7 +57,11 @@ export function roomForValues(shapes: MarkShapes): Finding[] {
       severity: "error",
       code: "qr_too_large",
       field: ["marks", "qr", "value"],
-      message: `The QR code for "${qr.value.length > 60 ? `${qr.value.slice(0, 57)}…` : qr.value}" needs ${qr.shape.modules} modules, ${qr.shape.sizeWithQuietZone.toFixed(1)} mm with its quiet zone; the template allows ${qr.mark.maxSize} mm: ${(qr.shape.sizeWithQuietZone - qr.mark.maxSize).toFixed(1)} mm too large. Shorten the value by ${qr.value.length - lo} characters (or use smaller modules or a lower error correction).`,
+      message:
+        `The QR code for "${qr.value.length > 60 ? `${qr.value.slice(0, 57)}…` : qr.value}" needs ${qr.shape.modules} ` +
+        `modules, ${qr.shape.sizeWithQuietZone.toFixed(1)} mm with its quiet zone; the template allows ${qr.mark.maxSize} mm: ` +
+        `${(qr.shape.sizeWithQuietZone - qr.mark.maxSize).toFixed(1)} mm too large. Shorten the value by ${qr.value.length - lo} ` +
+        `characters (or use smaller modules or a lower error correction).`,
     });
   }
   return out;
@@ -52,17 +71,28 @@ export function roomForValues(shapes: MarkShapes): Finding[] {
 export function doesNotFit(o: SlabOptions, room: { needW: number; maxW: number }, texts: TextLine[]): Finding[] {
   const { needW, maxW } = room;
   const m = o.slab.margin;
+  const widest = needW > maxW ? ` (the widest row needs ${needW.toFixed(1)} mm, ${(needW - maxW).toFixed(1)} mm more than there is)` : "";
   const out: Finding[] = [
     {
       severity: "error",
       code: "does_not_fit",
       field: ["layout", "bed"],
-      message: `The pieces and marks do not fit a ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed with ${m} mm margins${needW > maxW ? ` (the widest row needs ${needW.toFixed(1)} mm, ${(needW - maxW).toFixed(1)} mm more than there is)` : ""}. Use a bigger bed, fewer copies, or split the kit over two plates.`,
+      message:
+        `The pieces and marks do not fit a ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed with ${m} mm ` +
+        `margins${widest}. Use a bigger bed, fewer copies, or split the kit over two plates.`,
     },
   ];
   for (const [i, t] of texts.entries()) {
     const width = lineWidth(t.shape);
-    if (width > maxW) out.push({ severity: "error", code: "text_too_long", field: ["marks", "text", i, "value"], message: `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.` });
+    if (width > maxW)
+      out.push({
+        severity: "error",
+        code: "text_too_long",
+        field: ["marks", "text", i, "value"],
+        message:
+          `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ` +
+          `${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.`,
+      });
   }
   return out;
 }
@@ -76,7 +106,10 @@ export function pieceNumbersMismatch(given: number[] | undefined, pieces: number
     severity: "error",
     code: "piece_numbers_mismatch",
     field: ["layout", "pieceNumbers"],
-    message: dup !== undefined ? `Piece number ${dup} is given twice in layout.pieceNumbers; each piece needs its own.` : `layout.pieceNumbers lists ${given.length} numbers for ${pieces} pieces; give exactly one per piece, in kit order.`,
+    message:
+      dup !== undefined
+        ? `Piece number ${dup} is given twice in layout.pieceNumbers; each piece needs its own.`
+        : `layout.pieceNumbers lists ${given.length} numbers for ${pieces} pieces; give exactly one per piece, in kit order.`,
   };
 }
 
@@ -88,14 +121,20 @@ export function cornerFinding(o: SlabOptions, c: CornerFit): Finding {
       severity: "info",
       code: "corners_grow_slab",
       field: ["slab", "cornerRadius"],
-      message: `The ${c.asked} mm corners would cut into the pieces and marks, so the slab is ${(2 * c.grownBy).toFixed(1)} mm wider and deeper than they need (${mm(c.size)}). Choose a radius of ${c.largestFitting.toFixed(1)} mm or less (or a disc) to keep it at its smallest.`,
+      message:
+        `The ${c.asked} mm corners would cut into the pieces and marks, so the slab is ${(2 * c.grownBy).toFixed(1)} mm wider ` +
+        `and deeper than they need (${mm(c.size)}). Choose a radius of ${c.largestFitting.toFixed(1)} mm or less (or a disc) to keep ` +
+        `it at its smallest.`,
     };
   }
   return {
     severity: "warning",
     code: "corner_radius_limited",
     field: ["slab", "cornerRadius"],
-    message: `Corners of ${c.asked} mm would cut into the pieces and marks, and a slab grown to hold them (${mm(c.grownSize)}) would not fit the ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed; the corners are rounded to ${c.radius.toFixed(1)} mm instead. Choose ${(Math.floor(c.radius * 10 + 0.01) / 10).toFixed(1)} mm or less, or a disc.`,
+    message:
+      `Corners of ${c.asked} mm would cut into the pieces and marks, and a slab grown to hold them (${mm(c.grownSize)}) would ` +
+      `not fit the ${o.layout.bed.width} × ${o.layout.bed.depth} mm bed; the corners are rounded to ${c.radius.toFixed(1)} mm ` +
+      `instead. Choose ${(Math.floor(c.radius * 10 + 0.01) / 10).toFixed(1)} mm or less, or a disc.`,
   };
 }
 
@@ -117,7 +156,12 @@ export function markDepths(o: SlabOptions, places: MarkPlaces, logo: Logo | null
     // A refused depth still gets a number (the build stops at the finding before it is cut).
     if (relief === "emboss") {
       if (depth === "max") {
-        findings.push({ severity: "error", code: "emboss_needs_height", field, message: `The ${what} is embossed: give it a height in mm ("as deep as allowed" is for engraving).` });
+        findings.push({
+          severity: "error",
+          code: "emboss_needs_height",
+          field,
+          message: `The ${what} is embossed: give it a height in mm ("as deep as allowed" is for engraving).`,
+        });
         return 0.4;
       }
       return depth;
@@ -127,7 +171,10 @@ export function markDepths(o: SlabOptions, places: MarkPlaces, logo: Logo | null
         severity: "error",
         code: "slab_too_thin_to_engrave",
         field,
-        message: `The ${what} cannot be engraved in a ${o.slab.thickness} mm slab: every engraving must leave ${floor.toFixed(2)} mm under it (two ${o.layerHeight} mm layers, and never under 0.4 mm). Make the slab at least ${(floor + 0.2).toFixed(1)} mm thick, or emboss the mark.`,
+        message:
+          `The ${what} cannot be engraved in a ${o.slab.thickness} mm slab: every engraving must leave ${floor.toFixed(2)} mm ` +
+          `under it (two ${o.layerHeight} mm layers, and never under 0.4 mm). Make the slab at least ${(floor + 0.2).toFixed(1)} mm ` +
+          `thick, or emboss the mark.`,
       });
       return 0.1;
     }
@@ -137,20 +184,38 @@ export function markDepths(o: SlabOptions, places: MarkPlaces, logo: Logo | null
         severity: "error",
         code: "mark_too_deep",
         field,
-        message: `The ${what} is engraved ${depth} mm deep in a ${o.slab.thickness} mm slab, leaving ${Math.max(0, o.slab.thickness - depth).toFixed(2)} mm under it; every engraving must leave ${floor.toFixed(2)} mm (two ${o.layerHeight} mm layers, and never under 0.4 mm). Make it at most ${deepest.toFixed(2)} mm deep (${(depth - deepest).toFixed(2)} mm less), thicken the slab to ${(depth + floor).toFixed(1)} mm, or choose "as deep as allowed".`,
+        message:
+          `The ${what} is engraved ${depth} mm deep in a ${o.slab.thickness} mm slab, leaving ` +
+          `${Math.max(0, o.slab.thickness - depth).toFixed(2)} mm under it; every engraving must leave ${floor.toFixed(2)} mm (two ` +
+          `${o.layerHeight} mm layers, and never under 0.4 mm). Make it at most ${deepest.toFixed(2)} mm deep ` +
+          `(${(depth - deepest).toFixed(2)} mm less), thicken the slab to ${(depth + floor).toFixed(1)} mm, or choose "as deep as ` +
+          `allowed".`,
       });
     }
     return depth;
   };
   const { marks } = o;
-  const ring = marks.outlines === "none" ? 0 : depthOf("engrave", depthOrDefault(o, marks.ringStyle.depth), ["marks", "ringStyle", "depth"], marks.outlines === "pocket" ? "pocket under each piece" : "outline ring under each piece");
-  const number = marks.numbers ? depthOf("engrave", depthOrDefault(o, marks.numberStyle.depth), ["marks", "numberStyle", "depth"], "piece numbers") : 0;
+  const ring =
+    marks.outlines === "none"
+      ? 0
+      : depthOf(
+          "engrave",
+          depthOrDefault(o, marks.ringStyle.depth),
+          ["marks", "ringStyle", "depth"],
+          marks.outlines === "pocket" ? "pocket under each piece" : "outline ring under each piece",
+        );
+  const number = marks.numbers
+    ? depthOf("engrave", depthOrDefault(o, marks.numberStyle.depth), ["marks", "numberStyle", "depth"], "piece numbers")
+    : 0;
   const texts = places.texts.map((b) => {
     if (b.shape.contours.length === 0) return undefined;
     const line = marks.text.indexOf(b.mark);
     return depthOf(b.mark.relief, b.mark.depth, ["marks", "text", line, "depth"], `text line ${line + 1} ("${b.value}")`);
   });
   const qr = places.qr ? depthOf(places.qr.mark.relief, places.qr.mark.depth, ["marks", "qr", "depth"], "QR code") : undefined;
-  const lg = logo && places.logo && logo.parts.some((p) => p.contours.length) ? depthOf(logo.mark.relief, logo.mark.depth, ["marks", "logo", "depth"], `logo ${logo.mark.name}`) : undefined;
+  const lg =
+    logo && places.logo && logo.parts.some((p) => p.contours.length)
+      ? depthOf(logo.mark.relief, logo.mark.depth, ["marks", "logo", "depth"], `logo ${logo.mark.name}`)
+      : undefined;
   return { depths: { ring, number, texts, ...(qr !== undefined ? { qr } : {}), ...(lg !== undefined ? { logo: lg } : {}) }, findings };
 }

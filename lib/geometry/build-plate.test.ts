@@ -61,7 +61,7 @@ describe("areas and volumes against handbook formulas", () => {
     const formula = (w * h - (4 - Math.PI) * rr * rr) * 1.2;
     // Each quarter circle is N chords: it falls short of the arc by (r²/2)(π/2 − N·sin(π/2N)).
     const N = CORNER_SEGMENTS;
-    const shortfall = 4 * (rr * rr / 2) * (Math.PI / 2 - N * Math.sin(Math.PI / (2 * N))) * 1.2;
+    const shortfall = 4 * ((rr * rr) / 2) * (Math.PI / 2 - N * Math.sin(Math.PI / (2 * N))) * 1.2;
     expect(Math.abs(r.estimates!.slabVolume - (formula - shortfall))).toBeLessThan(1e-3 * formula * 1e-3 + 1e-3);
     expect(Math.abs(r.estimates!.slabVolume - formula)).toBeLessThanOrEqual(shortfall + 1e-3);
   });
@@ -72,12 +72,15 @@ describe("areas and volumes against handbook formulas", () => {
     const n = DISC_SEGMENTS;
     const polygon = (n / 2) * radius * radius * Math.sin((2 * Math.PI) / n);
     expect(r.estimates!.slabVolume).toBeCloseTo(polygon * 1.0, 3);
-    expect(Math.abs(r.estimates!.slabVolume - Math.PI * radius * radius) / (Math.PI * radius * radius)).toBeLessThan(2 * Math.PI ** 2 / (3 * n * n) + 1e-9);
+    expect(Math.abs(r.estimates!.slabVolume - Math.PI * radius * radius) / (Math.PI * radius * radius)).toBeLessThan(
+      (2 * Math.PI ** 2) / (3 * n * n) + 1e-9,
+    );
   });
 
   it("placed pieces keep their volume, and every body is closed", () => {
     const r = plate({ marks: { text: [{ value: "Kit 7" }] } }, undefined, { formats: ["stl"] });
-    const tileV = signedVolume(tile().mesh), pawnV = signedVolume(pawnPart().mesh);
+    const tileV = signedVolume(tile().mesh),
+      pawnV = signedVolume(pawnPart().mesh);
     const [, ...pieces] = r.bodies!;
     const vols = pieces.map((p) => signedVolume(p.mesh)).sort((a, b) => a - b);
     expect(vols.slice(0, 2).every((v) => Math.abs(v - pawnV) < 1e-6 * pawnV)).toBe(true);
@@ -108,7 +111,8 @@ describe("outlines", () => {
   const inside = (x: number, y: number, poly: [number, number][]) => {
     let c = false;
     for (let i = 0, j = poly.length - 1; i < poly.length; j = i++) {
-      const [xi, yi] = poly[i]!, [xj, yj] = poly[j]!;
+      const [xi, yi] = poly[i]!,
+        [xj, yj] = poly[j]!;
       if (yi > y !== yj > y && x < ((xj - xi) * (y - yi)) / (yj - yi) + xi) c = !c;
     }
     return c;
@@ -151,41 +155,52 @@ describe("layout", () => {
   /** Least distance between two polygons' outlines (independent of the kernel): point-to-segment. */
   function distance(a: [number, number][][], b: [number, number][][]): number {
     const seg = (p: [number, number], q: [number, number], r: [number, number]) => {
-      const dx = r[0] - q[0], dy = r[1] - q[1];
+      const dx = r[0] - q[0],
+        dy = r[1] - q[1];
       const t = Math.max(0, Math.min(1, ((p[0] - q[0]) * dx + (p[1] - q[1]) * dy) / (dx * dx + dy * dy || 1)));
       return Math.hypot(p[0] - q[0] - t * dx, p[1] - q[1] - t * dy);
     };
     let best = Infinity;
-    for (const [x, y] of [[a, b], [b, a]] as const)
-      for (const ca of x) for (const p of ca) for (const cb of y) for (let i = 0; i < cb.length; i++) best = Math.min(best, seg(p, cb[i]!, cb[(i + 1) % cb.length]!));
+    for (const [x, y] of [
+      [a, b],
+      [b, a],
+    ] as const)
+      for (const ca of x)
+        for (const p of ca)
+          for (const cb of y) for (let i = 0; i < cb.length; i++) best = Math.min(best, seg(p, cb[i]!, cb[(i + 1) % cb.length]!));
     return best;
   }
   const inside = (p: [number, number], poly: [number, number][]) => {
     let c = false;
     for (let i = 0, j = poly.length - 1; i < poly.length; j = i++) {
-      const [xi, yi] = poly[i]!, [xj, yj] = poly[j]!;
+      const [xi, yi] = poly[i]!,
+        [xj, yj] = poly[j]!;
       if (yi > p[1] !== yj > p[1] && p[0] < ((xj - xi) * (p[1] - yi)) / (yj - yi) + xi) c = !c;
     }
     return c;
   };
 
-  it.each(["rounded-rect", "disc", "contour"] as const)("%s: no two shadow footprints closer than the spacing; every piece inside the slab minus the margin", (shape) => {
-    const r = plate({ slab: { shape }, layout: { spacing: 3 }, marks: { text: [{ value: "ORDER 10482" }] } });
-    expect(codes(r).filter((c) => c !== "small_part")).toEqual([]);
-    const ps = r.pieces;
-    for (let i = 0; i < ps.length; i++) for (let j = i + 1; j < ps.length; j++) expect(distance(ps[i]!.outline, ps[j]!.outline)).toBeGreaterThanOrEqual(3 - 1e-3);
-    const slab = r.layout!.slab.outline;
-    for (const p of ps) {
-      for (const c of p.outline) {
-        for (const pt of c) {
-          expect(slab.some((s) => inside(pt, s))).toBe(true);
-          expect(distance([[pt]], slab)).toBeGreaterThanOrEqual(4 - 1e-3);
+  it.each(["rounded-rect", "disc", "contour"] as const)(
+    "%s: no two shadow footprints closer than the spacing; every piece inside the slab minus the margin",
+    (shape) => {
+      const r = plate({ slab: { shape }, layout: { spacing: 3 }, marks: { text: [{ value: "ORDER 10482" }] } });
+      expect(codes(r).filter((c) => c !== "small_part")).toEqual([]);
+      const ps = r.pieces;
+      for (let i = 0; i < ps.length; i++)
+        for (let j = i + 1; j < ps.length; j++) expect(distance(ps[i]!.outline, ps[j]!.outline)).toBeGreaterThanOrEqual(3 - 1e-3);
+      const slab = r.layout!.slab.outline;
+      for (const p of ps) {
+        for (const c of p.outline) {
+          for (const pt of c) {
+            expect(slab.some((s) => inside(pt, s))).toBe(true);
+            expect(distance([[pt]], slab)).toBeGreaterThanOrEqual(4 - 1e-3);
+          }
         }
       }
-    }
-    expect(r.layout!.utilisation).toBeGreaterThan(0.1);
-    expect(r.layout!.utilisation).toBeLessThan(1);
-  });
+      expect(r.layout!.utilisation).toBeGreaterThan(0.1);
+      expect(r.layout!.utilisation).toBeLessThan(1);
+    },
+  );
 
   it("is deterministic", () => {
     const a = plate({ marks: { text: [{ value: "A" }] } });
@@ -197,7 +212,8 @@ describe("layout", () => {
     const r = plate({}, [{ ...tile(), quantity: 6 }]);
     const ps = r.pieces;
     for (let i = 1; i < ps.length; i++) {
-      const prev = ps[i - 1]!, cur = ps[i]!;
+      const prev = ps[i - 1]!,
+        cur = ps[i]!;
       const sameRow = Math.abs(prev.bounds.maxY - cur.bounds.maxY) < 5;
       if (sameRow) expect(cur.bounds.minX).toBeGreaterThan(prev.bounds.minX);
       else expect(cur.bounds.maxY).toBeLessThan(prev.bounds.maxY);
@@ -207,7 +223,11 @@ describe("layout", () => {
   it("turns an elongated diagonal part to pack it", () => {
     const bar = orientMesh(box(60, 6, 4), { rotateZ: 30 });
     const r = plate(plain, [{ id: "bar", name: "Bar", mesh: bar, quantity: 2 }]);
-    expect(r.pieces.every((p) => Math.abs(((p.rotation % 90) + 90) % 90 - 60) < 0.5 || Math.abs(((p.rotation % 90) + 90) % 90 - 150 % 90) < 0.5)).toBe(true);
+    expect(
+      r.pieces.every(
+        (p) => Math.abs((((p.rotation % 90) + 90) % 90) - 60) < 0.5 || Math.abs((((p.rotation % 90) + 90) % 90) - (150 % 90)) < 0.5,
+      ),
+    ).toBe(true);
   });
 
   it("honours hand placements and checks them instead", () => {
@@ -216,7 +236,11 @@ describe("layout", () => {
     const same = plate({ ...plain, layout: { placements } }, [{ ...tile(), quantity: 2 }]);
     expect(same.findings.filter((f) => f.severity === "error")).toEqual([]);
     // Put piece 2 on top of piece 1: overlap is an error, and no file is made.
-    const clash = plate({ ...plain, layout: { placements: [placements[0]!, { ...placements[1]!, x: placements[0]!.x + 5, y: placements[0]!.y }] } }, [{ ...tile(), quantity: 2 }], { formats: ["stl"] });
+    const clash = plate(
+      { ...plain, layout: { placements: [placements[0]!, { ...placements[1]!, x: placements[0]!.x + 5, y: placements[0]!.y }] } },
+      [{ ...tile(), quantity: 2 }],
+      { formats: ["stl"] },
+    );
     expect(codes(clash)).toContain("pieces_overlap");
     expect(clash.stl).toBeUndefined();
   });
@@ -225,7 +249,10 @@ describe("layout", () => {
     const r = plate({ layout: { bed: { width: 60, depth: 60 } } }, undefined, { formats: ["stl"] });
     expect(r.findings[0]).toMatchObject({ severity: "error", code: "does_not_fit" });
     expect(r.stl).toBeUndefined();
-    const long = plate({ layout: { bed: { width: 100, depth: 200 } }, marks: { text: [{ value: "THIS LINE IS FAR TOO LONG FOR THE BED" }] } });
+    const long = plate({
+      layout: { bed: { width: 100, depth: 200 } },
+      marks: { text: [{ value: "THIS LINE IS FAR TOO LONG FOR THE BED" }] },
+    });
     expect(codes(long)).toContain("text_too_long");
     expect(long.findings.find((f) => f.code === "text_too_long")!.message).toMatch(/mm too long/);
   });
@@ -253,7 +280,9 @@ describe("QR code on the slab", () => {
     ["hello", "H", 1],
     ["order for sam quill at marrowby tabletop", "L", 3], // 40 bytes: over v2-L's 32, within v3-L's 53
   ] as const)("rasterised from the exported STL, %s decodes with jsQR and ZXing, also after print spread", (value, level, minVersion) => {
-    const r = plate({ ...plain, marks: { ...plain.marks, qr: { value, level, module: 1.2 } } }, [{ ...pawnPart(), quantity: 1 }], { formats: ["stl"] });
+    const r = plate({ ...plain, marks: { ...plain.marks, qr: { value, level, module: 1.2 } } }, [{ ...pawnPart(), quantity: 1 }], {
+      formats: ["stl"],
+    });
     const qr = r.layout!.marks.find((m) => m.kind === "qr")!;
     const map = rasterizeStl(r.stl!, 10, qr.bounds); // 10 px/mm over the code and its quiet zone
     const thickness = 1.0;
@@ -284,7 +313,8 @@ describe("QR code on the slab", () => {
         let d = dark(map.z[y * w + x]!);
         for (let dy = -px; d && dy <= px; dy++)
           for (let dx = -px; d && dx <= px; dx++) {
-            const X = x + dx, Y = y + dy;
+            const X = x + dx,
+              Y = y + dy;
             if (dx * dx + dy * dy > px * px) continue;
             if (X < 0 || Y < 0 || X >= w || Y >= h || !dark(map.z[Y * w + X]!)) d = false;
           }
@@ -296,8 +326,14 @@ describe("QR code on the slab", () => {
 
   /** Width of the symbol (first to last dark column through the finder patterns) in modules. */
   function countModules(map: ReturnType<typeof rasterizeStl>, dark: (z: number) => boolean, moduleMm: number): number {
-    let minX = Infinity, maxX = -Infinity;
-    for (let y = 0; y < map.height; y++) for (let x = 0; x < map.width; x++) if (dark(map.z[y * map.width + x]!)) { minX = Math.min(minX, x); maxX = Math.max(maxX, x); }
+    let minX = Infinity,
+      maxX = -Infinity;
+    for (let y = 0; y < map.height; y++)
+      for (let x = 0; x < map.width; x++)
+        if (dark(map.z[y * map.width + x]!)) {
+          minX = Math.min(minX, x);
+          maxX = Math.max(maxX, x);
+        }
     return Math.round((maxX - minX + 1) / map.pxPerMm / moduleMm);
   }
 });
@@ -310,33 +346,93 @@ describe("one fixture per finding code", () => {
     ["gap_below_layer", () => plate({ slab: { gap: 0.15 }, layerHeight: 0.2 }), () => plate({ slab: { gap: 0.2 }, layerHeight: 0.2 })],
     // Slicers cut each layer at its middle height (from memory): with a 0.25 mm first layer and 0.2 mm
     // layers the slab's last layer ends at 1.05 mm and a piece based at 1.1 mm starts in that same layer.
-    ["gap_sliced_away", () => plate({ slab: { gap: 0.1 }, firstLayerHeight: 0.25 }), () => plate({ slab: { gap: 0.2 }, firstLayerHeight: 0.25 })],
+    [
+      "gap_sliced_away",
+      () => plate({ slab: { gap: 0.1 }, firstLayerHeight: 0.25 }),
+      () => plate({ slab: { gap: 0.2 }, firstLayerHeight: 0.25 }),
+    ],
     ["thickness_sliced", () => plate({ slab: { thickness: 1.1 } }), () => plate({ slab: { thickness: 1.2 } })],
     ["gap_sliced", () => plate({ slab: { gap: 0.25 } }), () => plate({ slab: { gap: 0.2 } })],
-    ["mark_too_deep", () => plate({ slab: { thickness: 0.6 }, marks: { text: [{ value: "DEEP", depth: 0.8 }] } }), () => plate({ slab: { thickness: 1.2 }, marks: { text: [{ value: "DEEP", depth: 0.8 }] } })],
-    ["slab_too_thin_to_engrave", () => plate({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3 }), () => plate({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3, marks: { numbers: false, outlines: "none" } })],
-    ["emboss_needs_height", () => plate({ marks: { text: [{ value: "UP", relief: "emboss", depth: "max" }] } }), () => plate({ marks: { text: [{ value: "UP", relief: "engrave", depth: "max" }] } })],
-    ["ring_too_narrow", () => plate({ nozzle: 0.8, marks: { ringStyle: { width: 0.6 } } }), () => plate({ nozzle: 0.8, marks: { ringStyle: { width: 0.8 } } }), () => plate({ nozzle: 0.8, marks: { outlines: "pocket", ringStyle: { width: 0.6 } } })],
+    [
+      "mark_too_deep",
+      () => plate({ slab: { thickness: 0.6 }, marks: { text: [{ value: "DEEP", depth: 0.8 }] } }),
+      () => plate({ slab: { thickness: 1.2 }, marks: { text: [{ value: "DEEP", depth: 0.8 }] } }),
+    ],
+    [
+      "slab_too_thin_to_engrave",
+      () => plate({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3 }),
+      () => plate({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3, marks: { numbers: false, outlines: "none" } }),
+    ],
+    [
+      "emboss_needs_height",
+      () => plate({ marks: { text: [{ value: "UP", relief: "emboss", depth: "max" }] } }),
+      () => plate({ marks: { text: [{ value: "UP", relief: "engrave", depth: "max" }] } }),
+    ],
+    [
+      "ring_too_narrow",
+      () => plate({ nozzle: 0.8, marks: { ringStyle: { width: 0.6 } } }),
+      () => plate({ nozzle: 0.8, marks: { ringStyle: { width: 0.8 } } }),
+      () => plate({ nozzle: 0.8, marks: { outlines: "pocket", ringStyle: { width: 0.6 } } }),
+    ],
     ["corners_grow_slab", () => cubes(30, { slab: { cornerRadius: 20 } }), () => cubes(30, { slab: { cornerRadius: 4 } })],
-    ["corner_radius_limited", () => cubes(30, { slab: { cornerRadius: 40, margin: 2 }, layout: { bed: { width: 100, depth: 100 } } }), () => cubes(30, { slab: { cornerRadius: 40, margin: 2 } })],
-    ["piece_numbers_mismatch", () => plate({ layout: { pieceNumbers: [1, 2, 3] } }), () => plate({ layout: { pieceNumbers: [7, 8, 9, 10, 11, 12] } })],
-    ["qr_module_too_small", () => plate({ marks: { qr: { value: "x", module: 0.8 } } }), () => plate({ marks: { qr: { value: "x", module: 1.0 } } })],
-    ["stroke_too_thin", () => plate({ marks: { text: [{ value: "Tiny", size: 1.5 }] } }), () => plate({ marks: { text: [{ value: "Tiny", size: 5 }] } })],
-    ["tip_over_risk", () => plate({}, [{ id: "pin", name: "Pin", mesh: orientMesh(box(4, 4, 20)), quantity: 1 }]), () => plate({}, [{ id: "pin", name: "Pin", mesh: orientMesh(box(8, 8, 20)), quantity: 1 }])],
-    ["contact_too_small", () => plate({}, [{ id: "cone", name: "Cone", mesh: cone(0.3), quantity: 1 }]), () => plate({}, [{ id: "cone", name: "Cone", mesh: cone(3), quantity: 1 }])],
-    ["small_part", () => plate({}, [pawnPart()]), () => plate({}, [{ id: "big", name: "Board", mesh: orientMesh(box(80, 60, 3)), quantity: 1 }])],
-    ["does_not_fit", () => plate({ layout: { bed: { width: 50, depth: 50 } } }), () => plate({ layout: { bed: { width: 220, depth: 220 } } })],
-    ["unfilled_placeholder", () => plate({ marks: { text: [{ value: "Order {order}" }] } }), () => plate({ marks: { text: [{ value: "Order {order}" }] } }, undefined, { variables: { order: "7" } })],
+    [
+      "corner_radius_limited",
+      () => cubes(30, { slab: { cornerRadius: 40, margin: 2 }, layout: { bed: { width: 100, depth: 100 } } }),
+      () => cubes(30, { slab: { cornerRadius: 40, margin: 2 } }),
+    ],
+    [
+      "piece_numbers_mismatch",
+      () => plate({ layout: { pieceNumbers: [1, 2, 3] } }),
+      () => plate({ layout: { pieceNumbers: [7, 8, 9, 10, 11, 12] } }),
+    ],
+    [
+      "qr_module_too_small",
+      () => plate({ marks: { qr: { value: "x", module: 0.8 } } }),
+      () => plate({ marks: { qr: { value: "x", module: 1.0 } } }),
+    ],
+    [
+      "stroke_too_thin",
+      () => plate({ marks: { text: [{ value: "Tiny", size: 1.5 }] } }),
+      () => plate({ marks: { text: [{ value: "Tiny", size: 5 }] } }),
+    ],
+    [
+      "tip_over_risk",
+      () => plate({}, [{ id: "pin", name: "Pin", mesh: orientMesh(box(4, 4, 20)), quantity: 1 }]),
+      () => plate({}, [{ id: "pin", name: "Pin", mesh: orientMesh(box(8, 8, 20)), quantity: 1 }]),
+    ],
+    [
+      "contact_too_small",
+      () => plate({}, [{ id: "cone", name: "Cone", mesh: cone(0.3), quantity: 1 }]),
+      () => plate({}, [{ id: "cone", name: "Cone", mesh: cone(3), quantity: 1 }]),
+    ],
+    [
+      "small_part",
+      () => plate({}, [pawnPart()]),
+      () => plate({}, [{ id: "big", name: "Board", mesh: orientMesh(box(80, 60, 3)), quantity: 1 }]),
+    ],
+    [
+      "does_not_fit",
+      () => plate({ layout: { bed: { width: 50, depth: 50 } } }),
+      () => plate({ layout: { bed: { width: 220, depth: 220 } } }),
+    ],
+    [
+      "unfilled_placeholder",
+      () => plate({ marks: { text: [{ value: "Order {order}" }] } }),
+      () => plate({ marks: { text: [{ value: "Order {order}" }] } }, undefined, { variables: { order: "7" } }),
+    ],
     ["mark_collides", () => placedText(true), () => placedText(false)],
     ["pieces_overlap", () => twoAt(5), () => twoAt(45)],
     ["pieces_too_close", () => twoAt(32), () => twoAt(45)],
     ["pieces_fuse", () => twoAt(30.2), () => twoAt(32)],
     ["piece_outside_bed", () => offBed(true), () => offBed(false)],
     ["slab_outside_bed", () => offBed(true), () => offBed(false)],
-  ] as [string, ...(() => ReturnType<typeof plate>)[]][])("%s: triggered by its fixture and not by the near miss", (code, trigger, ...misses) => {
-    expect(codes(trigger())).toContain(code);
-    for (const miss of misses) expect(codes(miss())).not.toContain(code);
-  });
+  ] as [string, ...(() => ReturnType<typeof plate>)[]][])(
+    "%s: triggered by its fixture and not by the near miss",
+    (code, trigger, ...misses) => {
+      expect(codes(trigger())).toContain(code);
+      for (const miss of misses) expect(codes(miss())).not.toContain(code);
+    },
+  );
 
   /** n small cubes (6 mm), as an order of game counters might be. */
   function cubes(n: number, options: SlabOptionsInput) {
@@ -353,22 +449,49 @@ describe("one fixture per finding code", () => {
   /** Two 30 mm squares placed by hand, their centres dx apart. */
   function twoAt(dx: number) {
     const sq = { id: "sq", name: "Square", mesh: orientMesh(box(30, 30, 4)), quantity: 2 };
-    return plate({ ...plain, layout: { placements: [{ piece: 1, x: 30, y: 30, rotation: 0 }, { piece: 2, x: 30 + dx, y: 30, rotation: 0 }] } }, [sq]);
+    return plate(
+      {
+        ...plain,
+        layout: {
+          placements: [
+            { piece: 1, x: 30, y: 30, rotation: 0 },
+            { piece: 2, x: 30 + dx, y: 30, rotation: 0 },
+          ],
+        },
+      },
+      [sq],
+    );
   }
   function offBed(out: boolean) {
     const sq = { id: "sq", name: "Square", mesh: orientMesh(box(20, 20, 4)), quantity: 2 };
-    return plate({ ...plain, layout: { placements: [{ piece: 1, x: 30, y: 30, rotation: 0 }, { piece: 2, x: out ? 240 : 60, y: 30, rotation: 0 }] } }, [sq]);
+    return plate(
+      {
+        ...plain,
+        layout: {
+          placements: [
+            { piece: 1, x: 30, y: 30, rotation: 0 },
+            { piece: 2, x: out ? 240 : 60, y: 30, rotation: 0 },
+          ],
+        },
+      },
+      [sq],
+    );
   }
   /** A cone standing on its tip (radius `tip` mm at the base, 5 mm at 10 mm up). */
   function cone(tip: number) {
-    const ring = (z: number, r: number) => ({ z, points: [...Array(24).keys()].map((i) => [r * Math.cos((i * Math.PI) / 12), r * Math.sin((i * Math.PI) / 12)] as [number, number]) });
+    const ring = (z: number, r: number) => ({
+      z,
+      points: [...Array(24).keys()].map((i) => [r * Math.cos((i * Math.PI) / 12), r * Math.sin((i * Math.PI) / 12)] as [number, number]),
+    });
     return orientMesh(loft([ring(0, tip), ring(10, 5)]));
   }
 });
 
 describe("placeholders", () => {
   it("fills {date} with today's date unless given, and the caller's values otherwise", () => {
-    const r = plate({ marks: { text: [{ value: "{date}" }, { value: "{order} for {customer}" }] } }, undefined, { variables: { order: "10482", customer: "Sam" } });
+    const r = plate({ marks: { text: [{ value: "{date}" }, { value: "{order} for {customer}" }] } }, undefined, {
+      variables: { order: "10482", customer: "Sam" },
+    });
     expect(r.layout!.marks.map((m) => m.value)).toEqual([new Date().toISOString().slice(0, 10), "10482 for Sam"]);
     const fixed = plate({ marks: { text: [{ value: "{date}" }] } }, undefined, { variables: { date: "1 Dec" } });
     expect(fixed.layout!.marks[0]!.value).toBe("1 Dec");
@@ -378,7 +501,11 @@ describe("placeholders", () => {
 describe("files and memory", () => {
   it("writes STL and 3MF, checked as closed, and frees every kernel object", () => {
     const before = kernel.live();
-    const r = plate({ marks: { text: [{ value: "ORDER {order}" }], qr: { value: "{order}" } } }, undefined, { formats: ["stl", "3mf"], variables: { order: "10482" }, deflateRaw: zlibDeflate });
+    const r = plate({ marks: { text: [{ value: "ORDER {order}" }], qr: { value: "{order}" } } }, undefined, {
+      formats: ["stl", "3mf"],
+      variables: { order: "10482" },
+      deflateRaw: zlibDeflate,
+    });
     expect(r.stl!.byteLength).toBe(84 + 50 * r.stats.triangles);
     const back = importMesh(r.threeMf!, kernel, { fileName: "p.3mf" });
     expect(back.bodies.map((b) => b.name)[0]).toBe("Slab");

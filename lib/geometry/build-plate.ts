@@ -8,13 +8,38 @@ import { write3mf } from "./io/3mf-write";
 import { writeBinaryStl } from "./io/stl-write";
 import type { DeflateRaw } from "./io/zip-write";
 import { withScope, type Kernel } from "./kernel";
-import { bandFrame, markBands, markList, markShapes, moveMarks, numberGlyphs, numberWidth, placeMarks, type MarkPlaces } from "./mark-bands";
+import {
+  bandFrame,
+  markBands,
+  markList,
+  markShapes,
+  moveMarks,
+  numberGlyphs,
+  numberWidth,
+  placeMarks,
+  type MarkPlaces,
+} from "./mark-bands";
 import { allReliefs, markReliefs, reliefOutlines, type Reliefs } from "./mark-reliefs";
 import type { Contour } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
 import { parseOptions, slicedGap, type SlabOptions, type SlabOptionsInput } from "./options";
 import { numberPieces, pieceBoxes, pieceRoom, placePieces } from "./piece-layout";
-import { checkedPieces, kitPieces, measureParts, movePieces, pieceBounds, pieceInSlot, pieceLift, pieceMeshes, placedPieces, placedShadow, type PartCache, type Piece, type PlacedPiece, type PlatePart } from "./pieces";
+import {
+  checkedPieces,
+  kitPieces,
+  measureParts,
+  movePieces,
+  pieceBounds,
+  pieceInSlot,
+  pieceLift,
+  pieceMeshes,
+  placedPieces,
+  placedShadow,
+  type PartCache,
+  type Piece,
+  type PlacedPiece,
+  type PlatePart,
+} from "./pieces";
 import { Laps, type Box, type PlateContext } from "./plate-context";
 import type { SlabShape } from "./slab";
 import { slabAround, slabSolid } from "./slab-solid";
@@ -113,7 +138,10 @@ function build(ctx: BuildContext): PlateResult {
   if (!placing.fits) return refuse(...doesNotFit(o, placing, shapes.texts));
   const numbersAsked = pieceNumbersMismatch(o.layout.pieceNumbers, pieces.length);
   if (numbersAsked) return refuse(numbersAsked);
-  const numberOf = numberPieces(pieces.map((p) => ({ slot: p.slot, box: pieceBounds(p) })), o.layout.pieceNumbers);
+  const numberOf = numberPieces(
+    pieces.map((p) => ({ slot: p.slot, box: pieceBounds(p) })),
+    o.layout.pieceNumbers,
+  );
   const glyphs = numberGlyphs(ctx, pieces, numberOf, room);
 
   // 4. The bands below and above the pieces, the slab's outline round everything, all moved to sit from (0, 0).
@@ -159,16 +187,43 @@ function build(ctx: BuildContext): PlateResult {
   // 7. The slab solid, the pieces' meshes beside it, the files.
   const solid = slabSolid(ctx, slab.outline, reliefs, input.cache?.slabs, input.hooks?.beforeBooleans);
   laps.lap("slab booleans");
-  const bodies: NonNullable<PlateResult["bodies"]> = [{ name: "Slab", mesh: solid.mesh }, ...pieceMeshes(placed, pieces).map(({ piece, mesh }) => ({ name: `${piece.number} · ${piece.partName}`, mesh, piece: piece.number }))];
+  const bodies: NonNullable<PlateResult["bodies"]> = [
+    { name: "Slab", mesh: solid.mesh },
+    ...pieceMeshes(placed, pieces).map(({ piece, mesh }) => ({ name: `${piece.number} · ${piece.partName}`, mesh, piece: piece.number })),
+  ];
   laps.lap("pieces");
-  const { stl, "3mf": threeMf } = plateFiles(ctx, bodies, `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap`);
-  const estimates = estimate(o, solid.volume, placed.map((p) => ({ number: p.number, volume: measures[pieceInSlot(pieces, p.slot).partIndex]!.volume })));
+  const { stl, "3mf": threeMf } = plateFiles(
+    ctx,
+    bodies,
+    `${placed.length} pieces on a ${o.slab.thickness} mm slab, ${o.slab.gap} mm air gap`,
+  );
+  const estimates = estimate(
+    o,
+    solid.volume,
+    placed.map((p) => ({ number: p.number, volume: measures[pieceInSlot(pieces, p.slot).partIndex]!.volume })),
+  );
   const triangles = bodies.reduce((s, b) => s + b.mesh.triVerts.length / 3, 0);
-  return { stl, threeMf, pieces: placed, layout, findings, estimates, stats: { triangles, bodies: bodies.length, timings: laps.timings }, slicing, bodies };
+  return {
+    stl,
+    threeMf,
+    pieces: placed,
+    layout,
+    findings,
+    estimates,
+    stats: { triangles, bodies: bodies.length, timings: laps.timings },
+    slicing,
+    bodies,
+  };
 }
 
 /** The plate as laid out, for the plate map, previews and the API (kernel-free). */
-function plateLayout(o: SlabOptions, slab: { outline: CrossSection; width: number; depth: number }, pieces: Piece[], places: MarkPlaces, markOutlines?: Contour[]): PlateLayout {
+function plateLayout(
+  o: SlabOptions,
+  slab: { outline: CrossSection; width: number; depth: number },
+  pieces: Piece[],
+  places: MarkPlaces,
+  markOutlines?: Contour[],
+): PlateLayout {
   return {
     slab: { shape: o.slab.shape, width: slab.width, depth: slab.depth, outline: slab.outline.toPolygons(), thickness: o.slab.thickness },
     bed: o.layout.bed,
@@ -181,7 +236,13 @@ function plateLayout(o: SlabOptions, slab: { outline: CrossSection; width: numbe
 /** What a slicer makes of the slab and the gap (options.ts), and the floor left under the deepest engraving. */
 function slicingOf(o: SlabOptions, reliefs: Reliefs): NonNullable<PlateResult["slicing"]> {
   const sliced = slicedGap(o);
-  return { slabTop: sliced.slabTop, pieceBase: sliced.pieceBase, gap: sliced.gap, gapLayers: sliced.layers, minFloor: o.slab.thickness - Math.max(0, ...reliefs.engrave.keys()) };
+  return {
+    slabTop: sliced.slabTop,
+    pieceBase: sliced.pieceBase,
+    gap: sliced.gap,
+    gapLayers: sliced.layers,
+    minFloor: o.slab.thickness - Math.max(0, ...reliefs.engrave.keys()),
+  };
 }
 
 type FileBody = NonNullable<PlateResult["bodies"]>[number];

@@ -12,7 +12,9 @@ const hexArea = (r: number) => ((3 * Math.sqrt(3)) / 2) * r * r;
 
 describe("demo part shapes", () => {
   it("hex tile is closed, outward and has the volume of its frusta", () => {
-    const across = 30, height = 4, chamfer = 0.4;
+    const across = 30,
+      height = 4,
+      chamfer = 0.4;
     const mesh = hexTile(across, height, chamfer);
     expect(openOrMisorientedEdges(mesh)).toBe(0);
     const r = across / 2 / Math.cos(Math.PI / 6);
@@ -36,8 +38,16 @@ describe("demo part shapes", () => {
   });
 
   it("a reversed ring order gives a negative volume (inside out)", () => {
-    const sq: [number, number][] = [[0, 0], [0, 10], [10, 10], [10, 0]]; // clockwise
-    const mesh = loft([{ z: 0, points: sq }, { z: 5, points: sq }]);
+    const sq: [number, number][] = [
+      [0, 0],
+      [0, 10],
+      [10, 10],
+      [10, 0],
+    ]; // clockwise
+    const mesh = loft([
+      { z: 0, points: sq },
+      { z: 5, points: sq },
+    ]);
     expect(signedVolume(mesh)).toBeCloseTo(-500, 6);
   });
 });

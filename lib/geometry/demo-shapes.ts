@@ -14,8 +14,12 @@ export function loft(rings: Ring[]): IndexedMesh {
   const verts: number[] = [];
   for (const r of rings) for (const [x, y] of r.points) verts.push(x, y, r.z);
   const centroid = (r: Ring) => {
-    let cx = 0, cy = 0;
-    for (const [x, y] of r.points) { cx += x; cy += y; }
+    let cx = 0,
+      cy = 0;
+    for (const [x, y] of r.points) {
+      cx += x;
+      cy += y;
+    }
     return [cx / n, cy / n] as const;
   };
   const first = rings[0]!;

@@ -17,7 +17,6 @@ export function isEngravingFontId(id: string): id is EngravingFontId {
   return Object.hasOwn(ENGRAVING_FONTS, id);
 }
 
-
 export type FontBook = Record<EngravingFontId, opentype.Font>;
 
 /** Parse the engraving faces from their bytes (the caller reads or fetches the files in fonts/). */

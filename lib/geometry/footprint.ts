@@ -48,7 +48,8 @@ export function measureFootprint(kernel: Kernel, scope: Scope, solid: Manifold, 
 export function convexHull(points: [number, number][]): [number, number][] {
   const p = [...points].sort((a, b) => a[0] - b[0] || a[1] - b[1]);
   if (p.length < 3) return p;
-  const cross = (o: [number, number], a: [number, number], b: [number, number]) => (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0]);
+  const cross = (o: [number, number], a: [number, number], b: [number, number]) =>
+    (a[0] - o[0]) * (b[1] - o[1]) - (a[1] - o[1]) * (b[0] - o[0]);
   const lower: [number, number][] = [];
   for (const q of p) {
     while (lower.length >= 2 && cross(lower[lower.length - 2]!, lower[lower.length - 1]!, q) <= 0) lower.pop();
@@ -65,10 +66,16 @@ export function convexHull(points: [number, number][]): [number, number][] {
 
 /** Axis-aligned extent of points turned by `deg` about the origin. */
 export function rotatedBounds(points: [number, number][], deg: number) {
-  const r = (deg * Math.PI) / 180, c = Math.cos(r), s = Math.sin(r);
-  let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+  const r = (deg * Math.PI) / 180,
+    c = Math.cos(r),
+    s = Math.sin(r);
+  let minX = Infinity,
+    minY = Infinity,
+    maxX = -Infinity,
+    maxY = -Infinity;
   for (const [x, y] of points) {
-    const X = c * x - s * y, Y = s * x + c * y;
+    const X = c * x - s * y,
+      Y = s * x + c * y;
     if (X < minX) minX = X;
     if (X > maxX) maxX = X;
     if (Y < minY) minY = Y;
@@ -84,9 +91,11 @@ export function rotatedBounds(points: [number, number][], deg: number) {
  */
 export function bestPackingAngle(hull: [number, number][]): number {
   const base = rotatedBounds(hull, 0);
-  let best = 0, bestArea = base.w * base.h;
+  let best = 0,
+    bestArea = base.w * base.h;
   for (let i = 0; i < hull.length; i++) {
-    const a = hull[i]!, b = hull[(i + 1) % hull.length]!;
+    const a = hull[i]!,
+      b = hull[(i + 1) % hull.length]!;
     let deg = (-Math.atan2(b[1] - a[1], b[0] - a[0]) * 180) / Math.PI;
     deg = ((deg % 90) + 90) % 90;
     const r = rotatedBounds(hull, deg);

@@ -1,5 +1,14 @@
 import { describe, expect, it } from "vitest";
-import { ACCEPT_ATTRIBUTE, ACCEPTED_FORMATS, EXPORT_FORMAT_IDS, EXPORT_FORMATS, importFormatByName, isExportFormat, sniffImportFormat, stripImportExtension } from "./formats";
+import {
+  ACCEPT_ATTRIBUTE,
+  ACCEPTED_FORMATS,
+  EXPORT_FORMAT_IDS,
+  EXPORT_FORMATS,
+  importFormatByName,
+  isExportFormat,
+  sniffImportFormat,
+  stripImportExtension,
+} from "./formats";
 import { writeBinaryStl } from "./io/stl-write";
 
 describe("the format registry", () => {

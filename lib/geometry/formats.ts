@@ -14,7 +14,10 @@ export function isBinaryStl(bytes: Uint8Array): boolean {
 }
 
 export function looksLikeAsciiStl(bytes: Uint8Array): boolean {
-  const head = new TextDecoder("latin1").decode(bytes.subarray(0, Math.min(bytes.byteLength, 512))).trimStart().toLowerCase();
+  const head = new TextDecoder("latin1")
+    .decode(bytes.subarray(0, Math.min(bytes.byteLength, 512)))
+    .trimStart()
+    .toLowerCase();
   if (!head.startsWith("solid")) return false;
   // A binary file whose header begins with "solid" has control bytes soon after.
   for (let i = 0; i < Math.min(bytes.byteLength, 512); i++) {
@@ -47,7 +50,9 @@ export const IMPORT_FORMATS = {
     extensions: [".stl"],
     mime: ["model/stl"],
     sniff: (head, size) =>
-      (head.byteLength === size ? isBinaryStl(head) : head.byteLength >= 84 && size === 84 + 50 * new DataView(head.buffer, head.byteOffset, head.byteLength).getUint32(80, true)) ||
+      (head.byteLength === size
+        ? isBinaryStl(head)
+        : head.byteLength >= 84 && size === 84 + 50 * new DataView(head.buffer, head.byteOffset, head.byteLength).getUint32(80, true)) ||
       looksLikeAsciiStl(head),
   },
   // Wavefront OBJ: text with `v x y z` vertex lines.
@@ -78,7 +83,9 @@ export function importFormatByName(fileName: string): ImportFormatId | null {
 /** A file name without the extension of a format we read. */
 export function stripImportExtension(fileName: string): string {
   const f = importFormatByName(fileName);
-  return f ? fileName.slice(0, fileName.length - IMPORT_FORMATS[f].extensions.find((e) => fileName.toLowerCase().endsWith(e))!.length) : fileName;
+  return f
+    ? fileName.slice(0, fileName.length - IMPORT_FORMATS[f].extensions.find((e) => fileName.toLowerCase().endsWith(e))!.length)
+    : fileName;
 }
 
 type ExportFormatSpec = { label: string; extension: string; mime: string };

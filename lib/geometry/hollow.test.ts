@@ -56,7 +56,13 @@ describe("hollow parts", () => {
     const stl = writeBinaryStl([combineMeshes([box([0, 0, 0], [20, 20, 20]), box([5, 5, 5], [15, 15, 15], true)])]);
     const part = importMesh(stl, kernel, { fileName: "hollow.stl" });
     const options = parseOptions({ slab: { thickness: 1.2 }, layout: { bed: { width: 200, depth: 200 } } });
-    const r = buildPlate(kernel, { parts: [{ id: "part-1", name: "Lantern", mesh: part.bodies[0]!.mesh, quantity: 2 }], options, fonts, formats: ["stl", "3mf"], deflateRaw: zlibDeflate });
+    const r = buildPlate(kernel, {
+      parts: [{ id: "part-1", name: "Lantern", mesh: part.bodies[0]!.mesh, quantity: 2 }],
+      options,
+      fonts,
+      formats: ["stl", "3mf"],
+      deflateRaw: zlibDeflate,
+    });
     expect(r.findings.filter((f) => f.severity === "error")).toEqual([]);
     const proof = provePlate({
       stl: r.stl!,

@@ -45,7 +45,10 @@ describe("repairs", () => {
   });
 
   it("drops triangles that collapse to a line or point", () => {
-    const text = asciiStl(box(5, 5, 5)).replace("endsolid", "facet normal 0 0 0\nouter loop\nvertex 0 0 0\nvertex 0 0 0\nvertex 5 0 0\nendloop\nendfacet\nendsolid");
+    const text = asciiStl(box(5, 5, 5)).replace(
+      "endsolid",
+      "facet normal 0 0 0\nouter loop\nvertex 0 0 0\nvertex 0 0 0\nvertex 5 0 0\nendloop\nendfacet\nendsolid",
+    );
     const r = importMesh(bytes(text), kernel, { fileName: "needle.stl" });
     expect(r.triangles).toBe(12);
     expect(r.repairs).toEqual([expect.objectContaining({ code: "dropped_degenerate", count: 1 })]);
@@ -53,7 +56,10 @@ describe("repairs", () => {
 
   it("refuses a closed but flat, double-sided surface as zero volume", () => {
     // A tetrahedron squashed flat: every edge shared by two triangles, but no volume inside.
-    const sheet: IndexedMesh = { vertProperties: new Float32Array([0, 0, 0, 10, 0, 0, 0, 10, 0, 3, 3, 0]), triVerts: new Uint32Array([0, 2, 1, 0, 1, 3, 1, 2, 3, 0, 3, 2]) };
+    const sheet: IndexedMesh = {
+      vertProperties: new Float32Array([0, 0, 0, 10, 0, 0, 0, 10, 0, 3, 3, 0]),
+      triVerts: new Uint32Array([0, 2, 1, 0, 1, 3, 1, 2, 3, 0, 3, 2]),
+    };
     expect(() => importMesh(stl(sheet), kernel, { fileName: "sheet.stl" })).toThrow(expect.objectContaining({ code: "zero_volume" }));
   });
 

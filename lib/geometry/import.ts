@@ -73,7 +73,10 @@ export function importMesh(bytes: Uint8Array, kernel: Kernel, options: ImportOpt
   const file = options.fileName;
   const limits = { ...IMPORT_LIMITS, ...options.limits };
   if (bytes.byteLength > limits.maxBytes) {
-    throw new MeshImportError("file_too_large", file, `the file is ${mb(bytes.byteLength)} MB; the limit is ${mb(limits.maxBytes)} MB`, { bytes: bytes.byteLength, limit: limits.maxBytes });
+    throw new MeshImportError("file_too_large", file, `the file is ${mb(bytes.byteLength)} MB; the limit is ${mb(limits.maxBytes)} MB`, {
+      bytes: bytes.byteLength,
+      limit: limits.maxBytes,
+    });
   }
   const format = detectFormat(bytes, file);
   const raw = READERS[format](bytes, file, limits);
@@ -99,11 +102,34 @@ export function importMesh(bytes: Uint8Array, kernel: Kernel, options: ImportOpt
   const all = unionBounds(bodies.map((b) => b.bounds));
   const repairs: Repair[] = [];
   // STL is a triangle soup by definition: joining its corners is reading it, not repairing it.
-  if (counts.welded && format !== "stl") repairs.push({ code: "welded", count: counts.welded, message: `joined ${counts.welded.toLocaleString("en-US")} duplicate vertices` });
-  if (counts.degenerate) repairs.push({ code: "dropped_degenerate", count: counts.degenerate, message: `dropped ${counts.degenerate.toLocaleString("en-US")} triangles with no area` });
-  if (counts.tolerance) repairs.push({ code: "tolerance_welded", count: counts.tolerance, message: `closed gaps by joining ${counts.tolerance.toLocaleString("en-US")} vertices that were almost, but not exactly, in the same place` });
-  if (counts.reoriented) repairs.push({ code: "reoriented", count: counts.reoriented, message: `turned ${counts.reoriented.toLocaleString("en-US")} triangles that faced the wrong way` });
-  if (counts.flipped) repairs.push({ code: "flipped_inside_out", count: counts.flipped, message: `turned ${counts.flipped} inside-out ${counts.flipped === 1 ? "body" : "bodies"} right way out` });
+  if (counts.welded && format !== "stl")
+    repairs.push({ code: "welded", count: counts.welded, message: `joined ${counts.welded.toLocaleString("en-US")} duplicate vertices` });
+  if (counts.degenerate)
+    repairs.push({
+      code: "dropped_degenerate",
+      count: counts.degenerate,
+      message: `dropped ${counts.degenerate.toLocaleString("en-US")} triangles with no area`,
+    });
+  if (counts.tolerance)
+    repairs.push({
+      code: "tolerance_welded",
+      count: counts.tolerance,
+      message:
+        `closed gaps by joining ${counts.tolerance.toLocaleString("en-US")} vertices that were almost, but not exactly, in ` +
+        `the same place`,
+    });
+  if (counts.reoriented)
+    repairs.push({
+      code: "reoriented",
+      count: counts.reoriented,
+      message: `turned ${counts.reoriented.toLocaleString("en-US")} triangles that faced the wrong way`,
+    });
+  if (counts.flipped)
+    repairs.push({
+      code: "flipped_inside_out",
+      count: counts.flipped,
+      message: `turned ${counts.flipped} inside-out ${counts.flipped === 1 ? "body" : "bodies"} right way out`,
+    });
 
   return {
     file,
@@ -122,13 +148,18 @@ function checkFinite(obj: RawObject, file: string) {
   const p = obj.positions;
   for (let i = 0; i < p.length; i++) {
     if (!Number.isFinite(p[i]!)) {
-      throw new MeshImportError("non_finite", file, `vertex ${Math.floor(i / 3) + 1} of ${obj.name} has a coordinate that is not a finite number (${p[i]})`);
+      throw new MeshImportError(
+        "non_finite",
+        file,
+        `vertex ${Math.floor(i / 3) + 1} of ${obj.name} has a coordinate that is not a finite number (${p[i]})`,
+      );
     }
   }
   const nv = p.length / 3;
   const t = obj.triangles;
   for (let i = 0; i < t.length; i++) {
-    if (t[i]! >= nv) throw new MeshImportError("index_out_of_range", file, `a triangle of ${obj.name} refers to vertex ${t[i]}, but there are ${nv}`);
+    if (t[i]! >= nv)
+      throw new MeshImportError("index_out_of_range", file, `a triangle of ${obj.name} refers to vertex ${t[i]}, but there are ${nv}`);
   }
 }
 
@@ -157,14 +188,26 @@ function cleanObject(obj: RawObject, scale: number, kernel: Kernel, counts: Reco
     }
   }
   if (edges.open > 0) {
-    throw new MeshImportError("open_mesh", file, `${obj.name} is not closed: ${edges.open.toLocaleString("en-US")} open ${edges.open === 1 ? "edge" : "edges"} remain after repair (holes in the surface); close them in your modelling program`, {
-      openEdges: edges.open,
-    });
+    throw new MeshImportError(
+      "open_mesh",
+      file,
+      `${obj.name} is not closed: ${edges.open.toLocaleString("en-US")} open ${edges.open === 1 ? "edge" : "edges"} remain after ` +
+        `repair (holes in the surface); close them in your modelling program`,
+      {
+        openEdges: edges.open,
+      },
+    );
   }
   if (edges.nonManifold > 0) {
-    throw new MeshImportError("not_manifold", file, `${obj.name} has ${edges.nonManifold.toLocaleString("en-US")} ${edges.nonManifold === 1 ? "edge" : "edges"} shared by more than two triangles; it is not a single printable solid`, {
-      edges: edges.nonManifold,
-    });
+    throw new MeshImportError(
+      "not_manifold",
+      file,
+      `${obj.name} has ${edges.nonManifold.toLocaleString("en-US")} ${edges.nonManifold === 1 ? "edge" : "edges"} shared by more ` +
+        `than two triangles; it is not a single printable solid`,
+      {
+        edges: edges.nonManifold,
+      },
+    );
   }
   if (edges.misoriented > 0) counts.reoriented! += orientConsistently(mesh);
   return splitShells(mesh);
@@ -180,7 +223,12 @@ function toleranceWeld(mesh: IndexedMesh, kernel: Kernel): number {
   const b = bounds(mesh);
   const diag = Math.hypot(b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]);
   // A Mesh is a plain JS object on the kernel's side: nothing to delete.
-  const m = new kernel.wasm.Mesh({ numProp: 3, vertProperties: mesh.vertProperties, triVerts: mesh.triVerts, tolerance: Math.min(0.01, diag * 1e-4) });
+  const m = new kernel.wasm.Mesh({
+    numProp: 3,
+    vertProperties: mesh.vertProperties,
+    triVerts: mesh.triVerts,
+    tolerance: Math.min(0.01, diag * 1e-4),
+  });
   if (!m.merge()) return 0;
   applyMerge(mesh, m.mergeFromVert, m.mergeToVert);
   return m.mergeFromVert.length;
@@ -216,7 +264,13 @@ function withVoids(meshes: IndexedMesh[]): (IndexedMesh & { shells?: number })[]
   return kept.map((s) => (s.voids.length ? Object.assign(combineMeshes([s.mesh, ...s.voids]), { shells: 1 + s.voids.length }) : s.mesh));
 }
 
-function measure(mesh: IndexedMesh & { shells?: number }, name: string, kernel: Kernel, file: string, counts: Record<string, number>): ImportedBody {
+function measure(
+  mesh: IndexedMesh & { shells?: number },
+  name: string,
+  kernel: Kernel,
+  file: string,
+  counts: Record<string, number>,
+): ImportedBody {
   let volume = signedVolume(mesh);
   const b = bounds(mesh);
   const size = Math.max(b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]);
@@ -230,7 +284,7 @@ function measure(mesh: IndexedMesh & { shells?: number }, name: string, kernel: 
   }
   const scope = kernel.scope();
   try {
-    const m = (new kernel.wasm.Mesh({ numProp: 3, vertProperties: mesh.vertProperties, triVerts: mesh.triVerts }));
+    const m = new kernel.wasm.Mesh({ numProp: 3, vertProperties: mesh.vertProperties, triVerts: mesh.triVerts });
     let solid;
     try {
       solid = scope.track(new kernel.wasm.Manifold(m));
@@ -238,7 +292,15 @@ function measure(mesh: IndexedMesh & { shells?: number }, name: string, kernel: 
       const code = (err as { code?: string }).code ?? "unknown";
       throw new MeshImportError("not_manifold", file, `${name} is not a valid solid for the geometry kernel (${code})`, { kernel: code });
     }
-    return { name, mesh: { vertProperties: mesh.vertProperties, triVerts: mesh.triVerts }, triangles: mesh.triVerts.length / 3, volume, bounds: b, genus: solid.genus(), shells: mesh.shells ?? 1 };
+    return {
+      name,
+      mesh: { vertProperties: mesh.vertProperties, triVerts: mesh.triVerts },
+      triangles: mesh.triVerts.length / 3,
+      volume,
+      bounds: b,
+      genus: solid.genus(),
+      shells: mesh.shells ?? 1,
+    };
   } finally {
     scope.close();
   }
@@ -272,7 +334,9 @@ function unitWarnings(b: Bounds, unit: Unit, format: MeshFormat, chosen: boolean
       return [
         {
           code: "units_suspect",
-          message: `${declared} ${unit}s, the part is ${size.toPrecision(3)} mm across — ${size < 1 ? "smaller than a millimetre" : "over a metre"}. Read as ${u}s it would be ${s.toPrecision(3)} mm.`,
+          message:
+            `${declared} ${unit}s, the part is ${size.toPrecision(3)} mm across — ` +
+            `${size < 1 ? "smaller than a millimetre" : "over a metre"}. Read as ${u}s it would be ${s.toPrecision(3)} mm.`,
           suggestion: { unit: u, scale: UNIT_MM[u] / UNIT_MM[unit] },
         },
       ];

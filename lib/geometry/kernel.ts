@@ -6,7 +6,8 @@ import Module, { type CrossSection, type Manifold, type ManifoldToplevel } from 
  * workers can hold their own.
  *
  * Kernel objects live in WASM memory that JavaScript's garbage collector never frees, and the heap
- * never shrinks: every Manifold and CrossSection must be deleted (a `Mesh` is a plain JS object). `Scope` tracks them in one place; `live` counts
+ * never shrinks: every Manifold and CrossSection must be deleted (a `Mesh` is a plain JS object). `Scope` tracks them in one place; `live`
+ * counts
  * objects created through scopes and not yet deleted, so tests can assert it returns to zero.
  */
 export type Kernel = {
@@ -63,9 +64,7 @@ export class Scope {
 export type KernelOptions = { locateFile?: () => string; wasmBinary?: ArrayBuffer | Uint8Array };
 
 export async function loadKernel(options: KernelOptions = {}): Promise<Kernel> {
-  const wasm = await (Module as (config?: KernelOptions) => Promise<ManifoldToplevel>)(
-    Object.keys(options).length ? options : undefined,
-  );
+  const wasm = await (Module as (config?: KernelOptions) => Promise<ManifoldToplevel>)(Object.keys(options).length ? options : undefined);
   wasm.setup();
   const counter = { n: 0 };
   return { wasm, live: () => counter.n, scope: () => new Scope(counter) };

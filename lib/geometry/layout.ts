@@ -10,20 +10,29 @@ export type Packed = { key: number; x: number; y: number; w: number; h: number; 
 type Free = { x: number; y: number; w: number; h: number };
 
 export function maxRectsPack(items: PackItem[], binW: number, binH: number, spacing: number): Packed[] | null {
-  const W = binW + spacing, H = binH + spacing;
+  const W = binW + spacing,
+    H = binH + spacing;
   let free: Free[] = [{ x: 0, y: 0, w: W, h: H }];
   const out: Packed[] = [];
   // Largest first; ties broken by key so the order never depends on sort stability.
   const dims = (i: PackItem) => i.sizes[0]!;
-  const order = [...items].sort((a, b) => dims(b)[0] * dims(b)[1] - dims(a)[0] * dims(a)[1] || Math.max(...dims(b)) - Math.max(...dims(a)) || a.key - b.key);
+  const order = [...items].sort(
+    (a, b) => dims(b)[0] * dims(b)[1] - dims(a)[0] * dims(a)[1] || Math.max(...dims(b)) - Math.max(...dims(a)) || a.key - b.key,
+  );
   for (const it of order) {
     let best: { f: Free; w: number; h: number; choice: number; short: number; long: number } | null = null;
     const tryFit = (w: number, h: number, choice: number) => {
       for (const f of free) {
         if (w <= f.w + 1e-9 && h <= f.h + 1e-9) {
-          const short = Math.min(f.w - w, f.h - h), long = Math.max(f.w - w, f.h - h);
+          const short = Math.min(f.w - w, f.h - h),
+            long = Math.max(f.w - w, f.h - h);
           // Bottom-left tie break keeps layouts compact and stable.
-          if (!best || short < best.short - 1e-9 || (Math.abs(short - best.short) <= 1e-9 && (long < best.long - 1e-9 || (Math.abs(long - best.long) <= 1e-9 && (f.y < best.f.y || (f.y === best.f.y && f.x < best.f.x)))))) {
+          if (
+            !best ||
+            short < best.short - 1e-9 ||
+            (Math.abs(short - best.short) <= 1e-9 &&
+              (long < best.long - 1e-9 || (Math.abs(long - best.long) <= 1e-9 && (f.y < best.f.y || (f.y === best.f.y && f.x < best.f.x)))))
+          ) {
             best = { f, w, h, choice, short, long };
           }
         }
@@ -64,7 +73,13 @@ export type Arrangement = { packed: Packed[]; width: number; height: number };
  * better): the slab builder passes one that counts what else sits on the slab (text and QR bands) and
  * the slab's shape, so a disc asks for the smallest enclosing circle, not the smallest rectangle.
  */
-export function arrange(items: PackItem[], maxW: number, maxH: number, spacing: number, score: (width: number, height: number) => number = areaScore): Arrangement | null {
+export function arrange(
+  items: PackItem[],
+  maxW: number,
+  maxH: number,
+  spacing: number,
+  score: (width: number, height: number) => number = areaScore,
+): Arrangement | null {
   if (items.length === 0) return { packed: [], width: 0, height: 0 };
   const area = items.reduce((s, i) => s + (i.sizes[0]![0] + spacing) * (i.sizes[0]![1] + spacing), 0);
   const minSide = Math.max(...items.map((i) => Math.min(...i.sizes.map((d) => d[0]))));

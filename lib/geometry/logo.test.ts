@@ -14,14 +14,17 @@ beforeAll(async () => {
   ({ kernel, fonts } = await engine());
 });
 
-const svg = (body: string, attrs = 'viewBox="0 0 100 50"') => `<?xml version="1.0"?>\n<svg xmlns="http://www.w3.org/2000/svg" ${attrs}>${body}</svg>`;
+const svg = (body: string, attrs = 'viewBox="0 0 100 50"') =>
+  `<?xml version="1.0"?>\n<svg xmlns="http://www.w3.org/2000/svg" ${attrs}>${body}</svg>`;
 
 /** Area of the logo at `width` mm as the kernel fills it (each path with its rule, then the union). */
 function area(logo: ReturnType<typeof importSvgLogo>, width: number): number {
   const { CrossSection } = kernel.wasm;
   const scope = kernel.scope();
   try {
-    const parts = logoContours(logo, width).map((p) => scope.track(new CrossSection(p.contours, p.fillRule === "evenodd" ? "EvenOdd" : "NonZero")));
+    const parts = logoContours(logo, width).map((p) =>
+      scope.track(new CrossSection(p.contours, p.fillRule === "evenodd" ? "EvenOdd" : "NonZero")),
+    );
     return scope.track(CrossSection.union(parts)).area();
   } finally {
     scope.close();
@@ -43,7 +46,9 @@ const refused = (text: string, code: LogoErrorCode) => {
 
 describe("SVG logos: geometry in, areas as the handbook has them", () => {
   it("a rect in a translated group and a circle: w·h + πr², at the drawing's own scale", () => {
-    const logo = importSvgLogo(svg('<g transform="translate(10 0)"><rect x="0" y="0" width="40" height="50"/></g><circle cx="80" cy="25" r="20"/>'));
+    const logo = importSvgLogo(
+      svg('<g transform="translate(10 0)"><rect x="0" y="0" width="40" height="50"/></g><circle cx="80" cy="25" r="20"/>'),
+    );
     expect(logo.box).toEqual({ minX: 10, minY: -50, maxX: 100, maxY: 0 }); // y up
     // 90 units wide shown 90 mm wide: scale 1. Circle flattened with 0.01 mm chords falls short by < 0.1 %.
     const a = area(logo, 90);
@@ -71,7 +76,12 @@ describe("SVG logos: geometry in, areas as the handbook has them", () => {
   });
 
   it("ignores unfilled shapes, titles and metadata; refuses a drawing of strokes only and one with no shapes", () => {
-    const logo = importSvgLogo(svg('<title>Marrowby mark</title><metadata><x>1</x></metadata><rect width="10" height="10"/><line x1="0" y1="0" x2="50" y2="50" stroke="black"/><circle r="5" fill="none" stroke="black"/>'));
+    const logo = importSvgLogo(
+      svg(
+        '<title>Marrowby mark</title><metadata><x>1</x></metadata><rect width="10" height="10"/><line x1="0" y1="0" x2="50" y2="50" ' +
+          'stroke="black"/><circle r="5" fill="none" stroke="black"/>',
+      ),
+    );
     expect(logo.paths).toHaveLength(1);
     refused(svg('<line x1="0" y1="0" x2="50" y2="50" stroke="black"/>'), "svg_stroke_only");
     refused(svg("<g/>"), "svg_empty");
@@ -89,7 +99,10 @@ describe("SVG logos: what is not geometry is refused, with what to change", () =
     refused(svg('<image href="https://tracker.example/p.png" width="10" height="10"/>'), "svg_external");
     refused(svg('<rect width="10" height="10" fill="url(https://fonts.example/x.svg#g)"/>'), "svg_external");
     refused(svg('<defs><rect id="a" width="5" height="5"/></defs><use href="#a"/>'), "svg_external");
-    refused(`<?xml version="1.0"?><?xml-stylesheet href="https://x.example/s.css"?><svg xmlns="http://www.w3.org/2000/svg"><rect width="1" height="1"/></svg>`, "svg_external");
+    refused(
+      `<?xml version="1.0"?><?xml-stylesheet href="https://x.example/s.css"?><svg xmlns="http://www.w3.org/2000/svg"><rect width="1" height="1"/></svg>`,
+      "svg_external",
+    );
   });
 
   it("entity expansion and document types (a classic denial of service) are refused before any expansion", () => {
@@ -122,12 +135,18 @@ describe("a logo on the slab", () => {
   it("is engraved: the slab loses the logo's area × depth, and the logo sits inside the slab clear of the pieces", () => {
     const base = { marks: { numbers: false, outlines: "none" as const } };
     const without = buildPlate(kernel, { parts: tile(), fonts, options: base, formats: [] });
-    const withLogo = buildPlate(kernel, { parts: tile(), fonts, options: { marks: { ...base.marks, logo: { ...logo, width: 35, depth: 0.4 } } }, formats: [] });
+    const withLogo = buildPlate(kernel, {
+      parts: tile(),
+      fonts,
+      options: { marks: { ...base.marks, logo: { ...logo, width: 35, depth: 0.4 } } },
+      formats: [],
+    });
     expect(withLogo.findings.filter((f) => f.severity === "error")).toEqual([]);
     const mark = withLogo.layout!.marks.find((m) => m.kind === "logo")!;
     expect(mark.bounds.maxX - mark.bounds.minX).toBeCloseTo(35, 6);
     expect(mark.bounds.maxY - mark.bounds.minY).toBeCloseTo(10, 6); // 70 × 20 at 35 mm wide
-    for (const p of withLogo.pieces) expect(p.bounds.minY > mark.bounds.maxY || p.bounds.maxY < mark.bounds.minY || p.bounds.minX > mark.bounds.maxX).toBe(true);
+    for (const p of withLogo.pieces)
+      expect(p.bounds.minY > mark.bounds.maxY || p.bounds.maxY < mark.bounds.minY || p.bounds.minX > mark.bounds.maxX).toBe(true);
     // Engraved volume = area × depth: slab volume = outline area × thickness − logo area × depth,
     // the logo at half scale: (40·20 + π·10²)/4 mm² (rectangle and circle areas).
     const logoArea = (800 + Math.PI * 100) / 4;
@@ -152,11 +171,23 @@ describe("a logo on the slab", () => {
 describe("room for a template's values", () => {
   const tile = (): PlatePart[] => [{ id: "tile", name: "Harbour tile", mesh: orientMesh(hexTile()), quantity: 2 }];
   it("a text line longer than its maxWidth is an error that says by how much", () => {
-    const r = buildPlate(kernel, { parts: tile(), fonts, options: { marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 40 }] } }, variables: { customer: "Bartholomew Quennell-Ashdown" }, formats: [] });
+    const r = buildPlate(kernel, {
+      parts: tile(),
+      fonts,
+      options: { marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 40 }] } },
+      variables: { customer: "Bartholomew Quennell-Ashdown" },
+      formats: [],
+    });
     const f = r.findings.find((x) => x.code === "text_too_long")!;
     expect(f.severity).toBe("error");
     expect(f.message).toMatch(/allows 40 mm: \d+\.\d mm too long/);
-    const ok = buildPlate(kernel, { parts: tile(), fonts, options: { marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 80 }] } }, variables: { customer: "Sam" }, formats: [] });
+    const ok = buildPlate(kernel, {
+      parts: tile(),
+      fonts,
+      options: { marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 80 }] } },
+      variables: { customer: "Sam" },
+      formats: [],
+    });
     expect(ok.findings.map((x) => x.code)).not.toContain("text_too_long");
   });
 
@@ -166,9 +197,19 @@ describe("room for a template's values", () => {
     const f = r.findings.find((x) => x.code === "qr_too_large")!;
     const cut = Number(/by (\d+) characters/.exec(f.message)![1]);
     expect(cut).toBeGreaterThan(0);
-    const fits = buildPlate(kernel, { parts: tile(), fonts, options: { marks: { qr: { value: value.slice(0, value.length - cut), module: 1, maxSize: 35 } } }, formats: [] });
+    const fits = buildPlate(kernel, {
+      parts: tile(),
+      fonts,
+      options: { marks: { qr: { value: value.slice(0, value.length - cut), module: 1, maxSize: 35 } } },
+      formats: [],
+    });
     expect(fits.findings.map((x) => x.code)).not.toContain("qr_too_large");
-    const oneMore = buildPlate(kernel, { parts: tile(), fonts, options: { marks: { qr: { value: value.slice(0, value.length - cut + 1), module: 1, maxSize: 35 } } }, formats: [] });
+    const oneMore = buildPlate(kernel, {
+      parts: tile(),
+      fonts,
+      options: { marks: { qr: { value: value.slice(0, value.length - cut + 1), module: 1, maxSize: 35 } } },
+      formats: [],
+    });
     expect(oneMore.findings.map((x) => x.code)).toContain("qr_too_large");
   });
 });

@@ -54,7 +54,9 @@ function band(shapes: MarkShapes, where: "top" | "bottom", spacing: number): Ban
   const lines = shapes.texts.filter((t) => inBand(t.mark.position));
   const qr = shapes.qr && inBand(shapes.qr.mark.position) ? shapes.qr : null;
   const logo = shapes.logo && inBand(shapes.logo.mark.position) ? shapes.logo : null;
-  const textH = lines.reduce((s, t, i) => s + t.mark.size * (i === 0 ? 1 : LINE_PITCH), 0) + (lines.length ? DESCENT * lines[lines.length - 1]!.mark.size : 0);
+  const textH =
+    lines.reduce((s, t, i) => s + t.mark.size * (i === 0 ? 1 : LINE_PITCH), 0) +
+    (lines.length ? DESCENT * lines[lines.length - 1]!.mark.size : 0);
   const textW = Math.max(0, ...lines.map((t) => lineWidth(t.shape)));
   const qrSide = qr ? qr.shape.sizeWithQuietZone : 0;
   const h = Math.max(textH, qrSide, logo?.h ?? 0);
@@ -74,7 +76,12 @@ export function markBands(shapes: MarkShapes, spacing: number): Bands {
 export type NumberGlyphs = { shape: TextShape; x: number; y: number; box: Box };
 
 /** The numbers' glyphs, by slot (none without numbers): content the slab is built around, like the pieces and the bands. */
-export function numberGlyphs(ctx: PlateContext, pieces: Piece[], numberOf: Map<number, number>, room: PieceRoom): Map<number, NumberGlyphs> {
+export function numberGlyphs(
+  ctx: PlateContext,
+  pieces: Piece[],
+  numberOf: Map<number, number>,
+  room: PieceRoom,
+): Map<number, NumberGlyphs> {
   const out = new Map<number, NumberGlyphs>();
   const o = ctx.options;
   if (!o.marks.numbers) return out;
@@ -86,7 +93,12 @@ export function numberGlyphs(ctx: PlateContext, pieces: Piece[], numberOf: Map<n
     const shape = layoutText(font, String(numberOf.get(p.slot)!), size);
     const x = b.minX - ext - gutter - Math.min(0, shape.bounds.minX);
     const y = Math.max(b.maxY + ext, b.minY - ext + size + 2 * NUMBER_PAD) - size - NUMBER_PAD;
-    out.set(p.slot, { shape, x, y, box: { minX: x + shape.bounds.minX, minY: y + shape.bounds.minY, maxX: x + shape.bounds.maxX, maxY: y + shape.bounds.maxY } });
+    out.set(p.slot, {
+      shape,
+      x,
+      y,
+      box: { minX: x + shape.bounds.minX, minY: y + shape.bounds.minY, maxX: x + shape.bounds.maxX, maxY: y + shape.bounds.maxY },
+    });
   }
   return out;
 }
@@ -138,7 +150,10 @@ export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, fra
     const { mark, w, h } = shapes.logo;
     const pos = mark.position;
     const b = pos === "top" ? bands.top : bands.bottom;
-    logo = typeof pos === "object" ? { value: mark.name, x: pos.x, y: pos.y, w, h } : { value: mark.name, x: frame.minX, y: (pos === "top" ? frame.topY : frame.bottomY) + (b.h - h) / 2, w, h };
+    logo =
+      typeof pos === "object"
+        ? { value: mark.name, x: pos.x, y: pos.y, w, h }
+        : { value: mark.name, x: frame.minX, y: (pos === "top" ? frame.topY : frame.bottomY) + (b.h - h) / 2, w, h };
   }
   let qr: QrBlock | null = null;
   if (shapes.qr) {
@@ -155,9 +170,28 @@ export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, fra
 export function markList(places: MarkPlaces): { kind: "text" | "qr" | "logo"; value: string; bounds: Box }[] {
   const { texts, qr, logo } = places;
   return [
-    ...texts.map((b) => ({ kind: "text" as const, value: b.value, bounds: { minX: b.x + b.shape.bounds.minX, minY: b.y + b.shape.bounds.minY, maxX: b.x + b.shape.bounds.maxX, maxY: b.y + b.shape.bounds.maxY } })),
-    ...(qr ? [{ kind: "qr" as const, value: qr.value, bounds: { minX: qr.x, minY: qr.y, maxX: qr.x + qr.shape.sizeWithQuietZone, maxY: qr.y + qr.shape.sizeWithQuietZone } }] : []),
-    ...(logo ? [{ kind: "logo" as const, value: logo.value, bounds: { minX: logo.x, minY: logo.y, maxX: logo.x + logo.w, maxY: logo.y + logo.h } }] : []),
+    ...texts.map((b) => ({
+      kind: "text" as const,
+      value: b.value,
+      bounds: {
+        minX: b.x + b.shape.bounds.minX,
+        minY: b.y + b.shape.bounds.minY,
+        maxX: b.x + b.shape.bounds.maxX,
+        maxY: b.y + b.shape.bounds.maxY,
+      },
+    })),
+    ...(qr
+      ? [
+          {
+            kind: "qr" as const,
+            value: qr.value,
+            bounds: { minX: qr.x, minY: qr.y, maxX: qr.x + qr.shape.sizeWithQuietZone, maxY: qr.y + qr.shape.sizeWithQuietZone },
+          },
+        ]
+      : []),
+    ...(logo
+      ? [{ kind: "logo" as const, value: logo.value, bounds: { minX: logo.x, minY: logo.y, maxX: logo.x + logo.w, maxY: logo.y + logo.h } }]
+      : []),
   ];
 }
 

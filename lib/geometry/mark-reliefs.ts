@@ -30,7 +30,15 @@ export type Reliefs = {
  */
 export function markReliefs(
   ctx: PlateContext,
-  m: { places: MarkPlaces; logo: Logo | null; depths: MarkDepths; pieces: Piece[]; shadows: CrossSection[]; glyphs: Map<number, NumberGlyphs>; numberOf: Map<number, number> },
+  m: {
+    places: MarkPlaces;
+    logo: Logo | null;
+    depths: MarkDepths;
+    pieces: Piece[];
+    shadows: CrossSection[];
+    glyphs: Map<number, NumberGlyphs>;
+    numberOf: Map<number, number>;
+  },
 ): Reliefs {
   const { scope, options: o } = ctx;
   const { CrossSection } = ctx.kernel.wasm;
@@ -44,14 +52,21 @@ export function markReliefs(
     list.push(cs);
     map.set(depth, list);
   };
-  const glyphCs = (contours: Contour[], x: number, y: number) => scope.track(scope.track(new CrossSection(contours, "NonZero")).translate(x, y));
+  const glyphCs = (contours: Contour[], x: number, y: number) =>
+    scope.track(scope.track(new CrossSection(contours, "NonZero")).translate(x, y));
 
   places.texts.forEach((b, i) => {
     const depth = depths.texts[i];
     if (depth === undefined) return;
     const cs = glyphCs(b.shape.contours, b.x, b.y);
     add(b.mark.relief, depth, cs);
-    regions.push({ kind: "text", label: `"${b.value}"`, cs, relief: b.mark.relief, field: ["marks", "text", o.marks.text.indexOf(b.mark), "size"] });
+    regions.push({
+      kind: "text",
+      label: `"${b.value}"`,
+      cs,
+      relief: b.mark.relief,
+      field: ["marks", "text", o.marks.text.indexOf(b.mark), "size"],
+    });
   });
   const qr = places.qr;
   if (qr && depths.qr !== undefined) {
@@ -60,7 +75,9 @@ export function markReliefs(
   }
   const { logo } = m;
   if (logo && places.logo && depths.logo !== undefined) {
-    const parts = logo.parts.filter((p) => p.contours.length).map((p) => scope.track(new CrossSection(p.contours, p.fillRule === "evenodd" ? "EvenOdd" : "NonZero")));
+    const parts = logo.parts
+      .filter((p) => p.contours.length)
+      .map((p) => scope.track(new CrossSection(p.contours, p.fillRule === "evenodd" ? "EvenOdd" : "NonZero")));
     const cs = scope.track(scope.track(CrossSection.union(parts)).translate(places.logo.x, places.logo.y));
     add(logo.mark.relief, depths.logo, cs);
     regions.push({ kind: "logo", label: logo.mark.name, cs, relief: logo.mark.relief, field: ["marks", "logo", "width"] });
@@ -72,14 +89,24 @@ export function markReliefs(
     if (glyphs) {
       const cs = glyphCs(glyphs.shape.contours, glyphs.x, glyphs.y);
       add("engrave", depths.number, cs);
-      regions.push({ kind: "number", label: `number ${m.numberOf.get(p.slot)!}`, cs, relief: "engrave", field: ["marks", "numberStyle", "size"] });
+      regions.push({
+        kind: "number",
+        label: `number ${m.numberOf.get(p.slot)!}`,
+        cs,
+        relief: "engrave",
+        field: ["marks", "numberStyle", "size"],
+      });
     }
     if (o.marks.outlines === "ring") {
       const outer = scope.track(shadow.offset(ring.clearance + ring.width, "Round", 2, RING_SEGMENTS));
       const inner = scope.track(shadow.offset(ring.clearance, "Round", 2, RING_SEGMENTS));
       add("engrave", depths.ring, scope.track(scope.track(outer.subtract(inner)).simplify(RING_SIMPLIFY)));
     } else if (o.marks.outlines === "pocket") {
-      add("engrave", depths.ring, scope.track(scope.track(shadow.offset(ring.clearance, "Round", 2, RING_SEGMENTS)).simplify(RING_SIMPLIFY)));
+      add(
+        "engrave",
+        depths.ring,
+        scope.track(scope.track(shadow.offset(ring.clearance, "Round", 2, RING_SEGMENTS)).simplify(RING_SIMPLIFY)),
+      );
     }
   });
   return { engrave, emboss, regions };

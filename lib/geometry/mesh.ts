@@ -36,9 +36,15 @@ export function signedVolume(mesh: IndexedMesh): number {
     const a = t[i]! * 3;
     const b = t[i + 1]! * 3;
     const c = t[i + 2]! * 3;
-    const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!;
-    const bx = p[b]!, by = p[b + 1]!, bz = p[b + 2]!;
-    const cx = p[c]!, cy = p[c + 1]!, cz = p[c + 2]!;
+    const ax = p[a]!,
+      ay = p[a + 1]!,
+      az = p[a + 2]!;
+    const bx = p[b]!,
+      by = p[b + 1]!,
+      bz = p[b + 2]!;
+    const cx = p[c]!,
+      cy = p[c + 1]!,
+      cz = p[c + 2]!;
     six += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
   }
   return six / 6;
@@ -72,8 +78,10 @@ export function combineMeshes(meshes: IndexedMesh[]): IndexedMesh {
   if (meshes.length === 1) return meshes[0]!;
   const nv = meshes.reduce((s, m) => s + m.vertProperties.length, 0);
   const nt = meshes.reduce((s, m) => s + m.triVerts.length, 0);
-  const v = new Float32Array(nv), t = new Uint32Array(nt);
-  let vo = 0, to = 0;
+  const v = new Float32Array(nv),
+    t = new Uint32Array(nt);
+  let vo = 0,
+    to = 0;
   for (const m of meshes) {
     v.set(m.vertProperties, vo);
     for (let i = 0; i < m.triVerts.length; i++) t[to + i] = m.triVerts[i]! + vo / 3;
@@ -94,11 +102,21 @@ export function windingNumber(mesh: IndexedMesh, x: number, y: number, z: number
   const t = mesh.triVerts;
   let sum = 0;
   for (let i = 0; i < t.length; i += 3) {
-    const a = t[i]! * 3, b = t[i + 1]! * 3, c = t[i + 2]! * 3;
-    const ax = p[a]! - x, ay = p[a + 1]! - y, az = p[a + 2]! - z;
-    const bx = p[b]! - x, by = p[b + 1]! - y, bz = p[b + 2]! - z;
-    const cx = p[c]! - x, cy = p[c + 1]! - y, cz = p[c + 2]! - z;
-    const la = Math.hypot(ax, ay, az), lb = Math.hypot(bx, by, bz), lc = Math.hypot(cx, cy, cz);
+    const a = t[i]! * 3,
+      b = t[i + 1]! * 3,
+      c = t[i + 2]! * 3;
+    const ax = p[a]! - x,
+      ay = p[a + 1]! - y,
+      az = p[a + 2]! - z;
+    const bx = p[b]! - x,
+      by = p[b + 1]! - y,
+      bz = p[b + 2]! - z;
+    const cx = p[c]! - x,
+      cy = p[c + 1]! - y,
+      cz = p[c + 2]! - z;
+    const la = Math.hypot(ax, ay, az),
+      lb = Math.hypot(bx, by, bz),
+      lc = Math.hypot(cx, cy, cz);
     const det = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
     const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
     sum += 2 * Math.atan2(det, den);

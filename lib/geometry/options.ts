@@ -75,8 +75,14 @@ export type QrMark = z.infer<typeof qrMarkSchema>;
 export const logoMarkSchema = z
   .object({
     name: z.string().max(120).default("logo"),
-    paths: z.array(z.object({ d: z.string().min(1).max(1_500_000), fillRule: z.enum(["nonzero", "evenodd"]).default("nonzero") }).strict()).min(1).max(500),
-    box: z.object({ minX: z.number().finite(), minY: z.number().finite(), maxX: z.number().finite(), maxY: z.number().finite() }).strict().refine((b) => b.maxX > b.minX && b.maxY > b.minY, "The logo's box has no area."),
+    paths: z
+      .array(z.object({ d: z.string().min(1).max(1_500_000), fillRule: z.enum(["nonzero", "evenodd"]).default("nonzero") }).strict())
+      .min(1)
+      .max(500),
+    box: z
+      .object({ minX: z.number().finite(), minY: z.number().finite(), maxX: z.number().finite(), maxY: z.number().finite() })
+      .strict()
+      .refine((b) => b.maxX > b.minX && b.maxY > b.minY, "The logo's box has no area."),
     width: mm(3, 200).default(20),
     relief: reliefSchema.default("engrave"),
     depth: depthSchema.default(0.4),
@@ -135,7 +141,10 @@ export const slabOptionsSchema = z
     layout: z
       .object({
         spacing: mm(0, 50).default(3),
-        bed: z.object({ width: mm(20, 2000), depth: mm(20, 2000) }).strict().default({ width: 220, depth: 220 }),
+        bed: z
+          .object({ width: mm(20, 2000), depth: mm(20, 2000) })
+          .strict()
+          .default({ width: 220, depth: 220 }),
         copies: z.number().int().min(1).max(100).default(1),
         placements: z.array(placementSchema).max(2000).optional(),
         /**
@@ -209,8 +218,14 @@ export function depthOrDefault(o: Pick<SlabOptions, "layerHeight" | "slab">, dep
  * layer whose middle lies inside it. The slab's top is the top of its last layer, the pieces' base the
  * bottom of their first: the gap between them is whole layers, and zero when they fuse.
  */
-export function slicedGap(o: Pick<SlabOptions, "layerHeight" | "firstLayerHeight" | "slab">): { slabTop: number; pieceBase: number; gap: number; layers: number } {
-  const f = o.firstLayerHeight, h = o.layerHeight;
+export function slicedGap(o: Pick<SlabOptions, "layerHeight" | "firstLayerHeight" | "slab">): {
+  slabTop: number;
+  pieceBase: number;
+  gap: number;
+  layers: number;
+} {
+  const f = o.firstLayerHeight,
+    h = o.layerHeight;
   const top = (k: number) => (k <= 0 ? 0 : f + (k - 1) * h); // top of layer k (1-based)
   const mid = (k: number) => (k === 1 ? f / 2 : f + (k - 1.5) * h);
   const eps = 1e-9;
@@ -223,7 +238,8 @@ export function slicedGap(o: Pick<SlabOptions, "layerHeight" | "firstLayerHeight
   let b = a + 1;
   while (mid(b) < base - eps) b++;
   const round = (x: number) => Math.round(x * 1e6) / 1e6;
-  const slabTop = round(top(a)), pieceBase = round(top(b - 1));
+  const slabTop = round(top(a)),
+    pieceBase = round(top(b - 1));
   const gap = round(Math.max(0, pieceBase - slabTop));
   return { slabTop, pieceBase, gap, layers: b - 1 - a };
 }

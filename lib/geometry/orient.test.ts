@@ -53,7 +53,12 @@ describe("orientation", () => {
   });
 
   it("turns any direction to straight down", () => {
-    for (const v of [[1, 2, 3], [0, 0, 1], [0, 0, -1], [-3, 0.5, -0.1]] as [number, number, number][]) {
+    for (const v of [
+      [1, 2, 3],
+      [0, 0, 1],
+      [0, 0, -1],
+      [-3, 0.5, -0.1],
+    ] as [number, number, number][]) {
       const len = Math.hypot(...v);
       const n = v.map((x) => x / len) as [number, number, number];
       const m = rotationToDown(n);

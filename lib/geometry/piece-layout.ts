@@ -67,7 +67,8 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
   // Rate a candidate by the slab it leads to: the pieces' block with the bands above and below it;
   // for a disc, the diagonal of that whole block (the circle around it), else its area.
   const score = (w: number, h: number) => {
-    const W = Math.max(w + manualMaxX, bands.w), H = h + bands.h;
+    const W = Math.max(w + manualMaxX, bands.w),
+      H = h + bands.h;
     return SHAPE_RULES[o.slab.shape].packingScore(W, H);
   };
   const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, score);
@@ -98,11 +99,14 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
  */
 export function numberPieces(items: { slot: number; box: Box }[], given?: number[]): Map<number, number> {
   if (given) return new Map(items.map((it, i) => [it.slot, given[i]!]));
-  const cy = (b: Box) => (b.minY + b.maxY) / 2, cx = (b: Box) => (b.minX + b.maxX) / 2;
+  const cy = (b: Box) => (b.minY + b.maxY) / 2,
+    cx = (b: Box) => (b.minX + b.maxX) / 2;
   const order = [...items].sort((a, b) => cy(b.box) - cy(a.box) || cx(a.box) - cx(b.box) || a.slot - b.slot);
   const rows: { anchor: Box; members: typeof items }[] = [];
   for (const it of order) {
-    const row = rows.find((r) => (cy(it.box) >= r.anchor.minY && cy(it.box) <= r.anchor.maxY) || (cy(r.anchor) >= it.box.minY && cy(r.anchor) <= it.box.maxY));
+    const row = rows.find(
+      (r) => (cy(it.box) >= r.anchor.minY && cy(it.box) <= r.anchor.maxY) || (cy(r.anchor) >= it.box.minY && cy(r.anchor) <= it.box.maxY),
+    );
     if (row) row.members.push(it);
     else rows.push({ anchor: it.box, members: [it] });
   }
@@ -117,6 +121,13 @@ export function pieceBoxes(pieces: Piece[], room: PieceRoom, glyphs: Map<number,
     const b = pieceBounds(p);
     const box = { minX: b.minX - ext - gutter, minY: b.minY - ext, maxX: b.maxX + ext, maxY: b.maxY + ext };
     const g = glyphs.get(p.slot)?.box;
-    return g ? { minX: Math.min(box.minX, g.minX), minY: Math.min(box.minY, g.minY), maxX: Math.max(box.maxX, g.maxX), maxY: Math.max(box.maxY, g.maxY) } : box;
+    return g
+      ? {
+          minX: Math.min(box.minX, g.minX),
+          minY: Math.min(box.minY, g.minY),
+          maxX: Math.max(box.maxX, g.maxX),
+          maxY: Math.max(box.maxY, g.maxY),
+        }
+      : box;
   });
 }

@@ -67,7 +67,11 @@ function measurePart(kernel: Kernel, scope: Scope, mesh: IndexedMesh, layerHeigh
 }
 
 /** Every part measured once (or taken from the cache), its footprints as kernel cross-sections. */
-export function measureParts(ctx: PlateContext, parts: PlatePart[], cache?: PartCache): { measures: PartMeasure[]; footprints: PartFootprint[] } {
+export function measureParts(
+  ctx: PlateContext,
+  parts: PlatePart[],
+  cache?: PartCache,
+): { measures: PartMeasure[]; footprints: PartFootprint[] } {
   const { kernel, scope } = ctx;
   const { CrossSection } = kernel.wasm;
   const measures = parts.map((part) => measurePart(kernel, scope, part.mesh, ctx.options.layerHeight, cache));
@@ -124,7 +128,9 @@ export function pieceBounds(p: Piece): Box {
 
 /** The shadow's convex hull where the piece stands. */
 export function hullAt(p: Piece): [number, number][] {
-  const r = (p.angle * Math.PI) / 180, c = Math.cos(r), sn = Math.sin(r);
+  const r = (p.angle * Math.PI) / 180,
+    c = Math.cos(r),
+    sn = Math.sin(r);
   return p.fp.hull.map(([x, y]) => [c * x - sn * y + p.x, sn * x + c * y + p.y]);
 }
 
@@ -172,12 +178,29 @@ export type PlacedPiece = {
 };
 
 /** The pieces as the plate checks take them (checks.ts), in kit order. */
-export function checkedPieces(pieces: Piece[], numberOf: Map<number, number>, shadows: CrossSection[], ringExt: number): CheckInput["pieces"] {
-  return pieces.map((p, i) => ({ number: numberOf.get(p.slot)!, shadow: shadows[i]!, name: p.part.name, height: p.fp.height, contactArea: p.fp.contactArea, partId: p.part.id, bounds: pieceBounds(p), ringExt }));
+export function checkedPieces(
+  pieces: Piece[],
+  numberOf: Map<number, number>,
+  shadows: CrossSection[],
+  ringExt: number,
+): CheckInput["pieces"] {
+  return pieces.map((p, i) => ({
+    number: numberOf.get(p.slot)!,
+    shadow: shadows[i]!,
+    name: p.part.name,
+    height: p.fp.height,
+    contactArea: p.fp.contactArea,
+    partId: p.part.id,
+    bounds: pieceBounds(p),
+    ringExt,
+  }));
 }
 
 /** The pieces as the result lists them, by number (`shadows` in the pieces' order, `glyphs` by slot). */
-export function placedPieces(pieces: Piece[], at: { numberOf: Map<number, number>; shadows: CrossSection[]; glyphs: Map<number, NumberGlyphs>; z: number }): PlacedPiece[] {
+export function placedPieces(
+  pieces: Piece[],
+  at: { numberOf: Map<number, number>; shadows: CrossSection[]; glyphs: Map<number, NumberGlyphs>; z: number },
+): PlacedPiece[] {
   const placed = pieces.map((p, i): PlacedPiece => {
     const g = at.glyphs.get(p.slot);
     return {
@@ -208,11 +231,14 @@ export function pieceMeshes(placed: PlacedPiece[], pieces: Piece[]): { piece: Pl
 
 /** Turn a mesh about Z by `deg` and move it to (x, y, z). */
 export function placeMesh(mesh: IndexedMesh, deg: number, x: number, y: number, z: number): IndexedMesh {
-  const r = (deg * Math.PI) / 180, c = Math.cos(r), s = Math.sin(r);
+  const r = (deg * Math.PI) / 180,
+    c = Math.cos(r),
+    s = Math.sin(r);
   const p = mesh.vertProperties;
   const out = new Float32Array(p.length);
   for (let i = 0; i < p.length; i += 3) {
-    const px = p[i]!, py = p[i + 1]!;
+    const px = p[i]!,
+      py = p[i + 1]!;
     out[i] = c * px - s * py + x;
     out[i + 1] = s * px + c * py + y;
     out[i + 2] = p[i + 2]! + z;

@@ -31,12 +31,14 @@ function slabMap(slab: StlBody): HeightMap {
   return rasterizeStl(bodyStl(slab), 10, { minX: slab.min[0] - 1, minY: slab.min[1] - 1, maxX: slab.max[0] + 1, maxY: slab.max[1] + 1 });
 }
 const on = (map: HeightMap, x: number, y: number) => {
-  const px = Math.floor((x - map.originX) * map.pxPerMm), py = map.height - 1 - Math.floor((y - map.originY) * map.pxPerMm);
+  const px = Math.floor((x - map.originX) * map.pxPerMm),
+    py = map.height - 1 - Math.floor((y - map.originY) * map.pxPerMm);
   return px >= 0 && py >= 0 && px < map.width && py < map.height && map.z[py * map.width + px]! > 0;
 };
 /** Share of a piece's bottom vertices (its footprint on the gap) that have slab under them. */
 function support(piece: StlBody, map: HeightMap): number {
-  let n = 0, held = 0;
+  let n = 0,
+    held = 0;
   for (let i = 0; i < piece.tri.length; i += 3) {
     if (piece.tri[i + 2]! > piece.min[2] + 1e-4) continue;
     n++;
@@ -68,7 +70,18 @@ describe("engraving never cuts the slab apart (fault 1)", () => {
   });
 
   it('"as deep as allowed" engraves to the floor and no further, on every mark', () => {
-    const r = build({ slab: { thickness: 0.8 }, marks: { text: [{ value: "ORDER 7", depth: "max" }], qr: { value: "https://shop.example/o/7", depth: "max" }, numberStyle: { depth: "max" }, ringStyle: { depth: "max" } } }, tiles());
+    const r = build(
+      {
+        slab: { thickness: 0.8 },
+        marks: {
+          text: [{ value: "ORDER 7", depth: "max" }],
+          qr: { value: "https://shop.example/o/7", depth: "max" },
+          numberStyle: { depth: "max" },
+          ringStyle: { depth: "max" },
+        },
+      },
+      tiles(),
+    );
     expect(errors(r)).toEqual([]);
     expect(admesh(r.stl!).parts).toBe(r.pieces.length + 1);
     const floor = lowestTopSurface(slabAndPieces(r.stl!).slab);
@@ -96,7 +109,14 @@ describe("the slab holds everything on it (faults 2 and 3)", () => {
     const map = slabMap(slab);
     for (const p of pieces) expect(support(p, map)).toBe(1);
     // The text line's box and every number's corner lie on the slab, with the margin to spare.
-    for (const m of r.layout!.marks) for (const [x, y] of [[m.bounds.minX, m.bounds.minY], [m.bounds.maxX, m.bounds.minY], [m.bounds.minX, m.bounds.maxY], [m.bounds.maxX, m.bounds.maxY]]) expect([x, y, on(map, x!, y!)]).toEqual([x, y, true]);
+    for (const m of r.layout!.marks)
+      for (const [x, y] of [
+        [m.bounds.minX, m.bounds.minY],
+        [m.bounds.maxX, m.bounds.minY],
+        [m.bounds.minX, m.bounds.maxY],
+        [m.bounds.maxX, m.bounds.maxY],
+      ])
+        expect([x, y, on(map, x!, y!)]).toEqual([x, y, true]);
     for (const p of r.pieces) expect([p.number, p.numberAt, on(map, p.numberAt!.x, p.numberAt!.y)]).toEqual([p.number, p.numberAt, true]);
     // The corners are still the radius asked for: the slab grew instead (or says why not).
     expect(r.findings.some((f) => f.code === "corners_grow_slab" || f.code === "corner_radius_limited")).toBe(radius - margin > 5);
@@ -172,19 +192,42 @@ describe("numbers in reading order, stable (fault 8)", () => {
 
   it("a reprint's numbers are the ones asked for, in kit order", () => {
     const r = build({ layout: { pieceNumbers: [12, 5] } }, tiles(2));
-    expect(r.pieces.map((p) => [p.slot, p.number])).toEqual([[2, 5], [1, 12]]);
+    expect(r.pieces.map((p) => [p.slot, p.number])).toEqual([
+      [2, 5],
+      [1, 12],
+    ]);
   });
 });
 
 describe("the new rules' wording: what is wrong, where, by how much, what to change", () => {
   const fix = /\b(Make|make|Use|use|Choose|choose|Set|set|Give|give|thicken|Thicken|Move|move|Round|emboss)\b/;
   it.each([
-    ["mark_too_deep", () => build({ slab: { thickness: 0.6 }, marks: { text: [{ value: "ORDER 7", depth: 0.8 }] } }, tiles()), /text line 1/, /0\.60 mm less/],
-    ["slab_too_thin_to_engrave", () => build({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3 }, tiles()), /outline ring|piece numbers/, /0\.60 mm under it/],
-    ["emboss_needs_height", () => build({ marks: { text: [{ value: "UP", relief: "emboss", depth: "max" }] } }, tiles()), /text line 1/, /height in mm/],
+    [
+      "mark_too_deep",
+      () => build({ slab: { thickness: 0.6 }, marks: { text: [{ value: "ORDER 7", depth: 0.8 }] } }, tiles()),
+      /text line 1/,
+      /0\.60 mm less/,
+    ],
+    [
+      "slab_too_thin_to_engrave",
+      () => build({ slab: { thickness: 0.6 }, layerHeight: 0.3, firstLayerHeight: 0.3 }, tiles()),
+      /outline ring|piece numbers/,
+      /0\.60 mm under it/,
+    ],
+    [
+      "emboss_needs_height",
+      () => build({ marks: { text: [{ value: "UP", relief: "emboss", depth: "max" }] } }, tiles()),
+      /text line 1/,
+      /height in mm/,
+    ],
     ["ring_too_narrow", () => build({ nozzle: 0.8, marks: { ringStyle: { width: 0.6 } } }, tiles(1)), /Outline rings/, /0\.20 mm more/],
     ["corners_grow_slab", () => build({ slab: { cornerRadius: 20 } }, counters(30)), /corners/, /\d+\.\d mm wider/],
-    ["corner_radius_limited", () => build({ slab: { cornerRadius: 40, margin: 2 }, layout: { bed: { width: 100, depth: 100 } } }, counters(30)), /100 × 100 mm bed/, /rounded to \d+\.\d mm/],
+    [
+      "corner_radius_limited",
+      () => build({ slab: { cornerRadius: 40, margin: 2 }, layout: { bed: { width: 100, depth: 100 } } }, counters(30)),
+      /100 × 100 mm bed/,
+      /rounded to \d+\.\d mm/,
+    ],
     ["gap_sliced_away", () => build({ slab: { gap: 0.1 }, firstLayerHeight: 0.25 }, tiles()), /0\.10 mm gap/, /to nothing/],
     ["gap_below_layer", () => build({ slab: { gap: 0.15 } }, tiles()), /0\.15 mm gap/, /thinner than one 0\.20 mm layer/],
     ["gap_sliced", () => build({ slab: { gap: 0.3 } }, tiles()), /0\.30 mm gap/, /0\.20 mm \(1 layer\)/],

@@ -29,7 +29,9 @@ export function weldExact(positions: Float32Array, triangles: Uint32Array): { me
       f[0] = positions[v * 3]! + 0;
       f[1] = positions[v * 3 + 1]! + 0;
       f[2] = positions[v * 3 + 2]! + 0;
-      const a = bits[0]!, b = bits[1]!, c = bits[2]!;
+      const a = bits[0]!,
+        b = bits[1]!,
+        c = bits[2]!;
       let h = (Math.imul(a, 0x9e3779b1) ^ Math.imul(b, 0x85ebca77) ^ Math.imul(c, 0xc2b2ae3d)) >>> 0;
       h ^= h >>> 15;
       let slot = h & mask;
@@ -62,7 +64,9 @@ export function dropDegenerate(mesh: IndexedMesh): { mesh: IndexedMesh; dropped:
   let keep = 0;
   const out = new Uint32Array(t.length);
   for (let i = 0; i < t.length; i += 3) {
-    const a = t[i]!, b = t[i + 1]!, c = t[i + 2]!;
+    const a = t[i]!,
+      b = t[i + 1]!,
+      c = t[i + 2]!;
     if (a === b || b === c || a === c) continue;
     out[keep++] = a;
     out[keep++] = b;
@@ -85,7 +89,8 @@ function edgeIndex(mesh: IndexedMesh): EdgeIndex {
   const start = new Uint32Array(nv + 1);
   for (let i = 0; i < t.length; i += 3) {
     for (let e = 0; e < 3; e++) {
-      const a = t[i + e]!, b = t[i + ((e + 1) % 3)]!;
+      const a = t[i + e]!,
+        b = t[i + ((e + 1) % 3)]!;
       start[Math.min(a, b) + 1]!++;
     }
   }
@@ -96,7 +101,8 @@ function edgeIndex(mesh: IndexedMesh): EdgeIndex {
   const forward = new Uint8Array(t.length);
   for (let i = 0; i < t.length; i += 3) {
     for (let e = 0; e < 3; e++) {
-      const a = t[i + e]!, b = t[i + ((e + 1) % 3)]!;
+      const a = t[i + e]!,
+        b = t[i + ((e + 1) % 3)]!;
       const k = fill[Math.min(a, b)]!++;
       other[k] = Math.max(a, b);
       owner[k] = i / 3;
@@ -114,16 +120,28 @@ function edgeIndex(mesh: IndexedMesh): EdgeIndex {
 export function badEdges(mesh: IndexedMesh): { open: number; nonManifold: number; misoriented: number } {
   const { start, other, forward } = edgeIndex(mesh);
   const nv = mesh.vertProperties.length / 3;
-  let open = 0, nonManifold = 0, misoriented = 0;
+  let open = 0,
+    nonManifold = 0,
+    misoriented = 0;
   for (let lo = 0; lo < nv; lo++) {
-    const s = start[lo]!, e = start[lo + 1]!;
+    const s = start[lo]!,
+      e = start[lo + 1]!;
     for (let k = s; k < e; k++) {
       const hi = other[k]!;
       let first = true;
-      for (let j = s; j < k; j++) if (other[j] === hi) { first = false; break; }
+      for (let j = s; j < k; j++)
+        if (other[j] === hi) {
+          first = false;
+          break;
+        }
       if (!first) continue;
-      let n = 0, fwd = 0;
-      for (let j = k; j < e; j++) if (other[j] === hi) { n++; fwd += forward[j]!; }
+      let n = 0,
+        fwd = 0;
+      for (let j = k; j < e; j++)
+        if (other[j] === hi) {
+          n++;
+          fwd += forward[j]!;
+        }
       if (n === 1) open++;
       else if (n > 2) nonManifold++;
       else if (fwd !== 1) misoriented++;
@@ -152,14 +170,17 @@ export function orientConsistently(mesh: IndexedMesh): number {
   for (let seed = 0; seed < nt; seed++) {
     if (seen[seed]) continue;
     seen[seed] = 1;
-    let head = 0, tail = 0;
+    let head = 0,
+      tail = 0;
     queue[tail++] = seed;
     while (head < tail) {
       const tri = queue[head++]!;
       const i = tri * 3;
       for (let e = 0; e < 3; e++) {
-        const a = t[i + e]!, b = t[i + ((e + 1) % 3)]!;
-        const lo = Math.min(a, b), hi = Math.max(a, b);
+        const a = t[i + e]!,
+          b = t[i + ((e + 1) % 3)]!;
+        const lo = Math.min(a, b),
+          hi = Math.max(a, b);
         for (let k = start[lo]!; k < start[lo + 1]!; k++) {
           const n = owner[k]!;
           if (other[k] !== hi || n === tri || seen[n]) continue;
@@ -193,7 +214,9 @@ export function splitShells(mesh: IndexedMesh): IndexedMesh[] {
     return v;
   };
   for (let i = 0; i < t.length; i += 3) {
-    const a = find(t[i]!), b = find(t[i + 1]!), c = find(t[i + 2]!);
+    const a = find(t[i]!),
+      b = find(t[i + 1]!),
+      c = find(t[i + 2]!);
     parent[b] = a;
     parent[find(c)] = a;
   }

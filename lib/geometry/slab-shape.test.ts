@@ -20,14 +20,29 @@ const marks = { text: [{ value: "ORDER 10482" }, { value: "Thank you, Sam!", siz
 
 describe("smallest enclosing circle (Welzl)", () => {
   it("matches the handbook circles: a rectangle's half diagonal, an equilateral triangle's circumradius a/√3", () => {
-    const rect = enclosingCircle([[0, 0], [40, 0], [40, 30], [0, 30], [20, 15], [5, 25]]);
+    const rect = enclosingCircle([
+      [0, 0],
+      [40, 0],
+      [40, 30],
+      [0, 30],
+      [20, 15],
+      [5, 25],
+    ]);
     expect(rect.r).toBeCloseTo(25, 9); // half of the 3-4-5 diagonal, 50 mm
     expect([rect.x, rect.y]).toEqual([expect.closeTo(20, 9), expect.closeTo(15, 9)]);
     const a = 10;
-    const tri = enclosingCircle([[0, 0], [a, 0], [a / 2, (a * Math.sqrt(3)) / 2]]);
+    const tri = enclosingCircle([
+      [0, 0],
+      [a, 0],
+      [a / 2, (a * Math.sqrt(3)) / 2],
+    ]);
     expect(tri.r).toBeCloseTo(a / Math.sqrt(3), 9);
     // An obtuse triangle: the circle on its longest side (the third point is inside it).
-    const obtuse = enclosingCircle([[0, 0], [10, 0], [5, 1]]);
+    const obtuse = enclosingCircle([
+      [0, 0],
+      [10, 0],
+      [5, 1],
+    ]);
     expect(obtuse.r).toBeCloseTo(5, 9);
   });
 
@@ -47,14 +62,23 @@ describe("the slab's size is chosen with its marks and shape in view", () => {
     const r = buildPlate(kernel, { parts: parts(), fonts, options: { slab: { shape: "disc", margin: 4 }, marks }, formats: [] });
     const { layout } = r;
     const boxes = [...r.pieces.map((p) => p.bounds), ...layout!.marks.map((m) => m.bounds)];
-    const minX = Math.min(...boxes.map((b) => b.minX)), maxX = Math.max(...boxes.map((b) => b.maxX));
-    const minY = Math.min(...boxes.map((b) => b.minY)), maxY = Math.max(...boxes.map((b) => b.maxY));
+    const minX = Math.min(...boxes.map((b) => b.minX)),
+      maxX = Math.max(...boxes.map((b) => b.maxX));
+    const minY = Math.min(...boxes.map((b) => b.minY)),
+      maxY = Math.max(...boxes.map((b) => b.maxY));
     const R = layout!.slab.width / 2;
-    const cx = R, cy = R;
-    for (const b of boxes) for (const [x, y] of [[b.minX, b.minY], [b.maxX, b.minY], [b.minX, b.maxY], [b.maxX, b.maxY]] as const) {
-      // Margin kept (4 mm) from every corner of every piece and mark to the rim.
-      expect(R - Math.hypot(x - cx, y - cy)).toBeGreaterThanOrEqual(4 - 1e-6);
-    }
+    const cx = R,
+      cy = R;
+    for (const b of boxes)
+      for (const [x, y] of [
+        [b.minX, b.minY],
+        [b.maxX, b.minY],
+        [b.minX, b.maxY],
+        [b.maxX, b.maxY],
+      ] as const) {
+        // Margin kept (4 mm) from every corner of every piece and mark to the rim.
+        expect(R - Math.hypot(x - cx, y - cy)).toBeGreaterThanOrEqual(4 - 1e-6);
+      }
     // The smallest enclosing circle is never larger than the one through the bounding box's corners
     // (the shadows here leave out the rings, 1.4 mm, and the number column, about 3.2 mm: 6 mm covers both).
     expect(R).toBeLessThanOrEqual((Math.hypot(maxX - minX, maxY - minY) / 2 + 6 + 4) / Math.cos(Math.PI / DISC_SEGMENTS));
@@ -70,7 +94,14 @@ describe("the slab's size is chosen with its marks and shape in view", () => {
     const first = buildPlate(kernel, { parts: ps, fonts, options: opts, formats: ["stl"], cache, variables: { date: "2026-12-02" } });
     expect(cache.parts.get(ps[0]!.mesh)?.size).toBe(1);
     const before = kernel.live();
-    const second = buildPlate(kernel, { parts: ps, fonts, options: { ...opts, layout: { spacing: 4 } }, formats: ["stl"], cache, variables: { date: "2026-12-02" } });
+    const second = buildPlate(kernel, {
+      parts: ps,
+      fonts,
+      options: { ...opts, layout: { spacing: 4 } },
+      formats: ["stl"],
+      cache,
+      variables: { date: "2026-12-02" },
+    });
     expect(Buffer.from(first.stl!).equals(Buffer.from(plain.stl!))).toBe(true);
     expect(second.stl!.length).toBeGreaterThan(84);
     expect(second.stats.timings.footprints).toBeLessThan(first.stats.timings.footprints!);

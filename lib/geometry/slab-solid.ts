@@ -17,17 +17,33 @@ const CUT_OVERSHOOT = 0.01;
  * the positive quadrant from (0, 0): `dx`, `dy` is that move, for the pieces and the marks; `corners`
  * says when round corners made the slab grow or were limited.
  */
-export function slabAround(ctx: PlateContext, content: { pieces: Piece[]; pieceBoxes: Box[]; markBoxes: Box[]; ext: number }): { outline: CrossSection; width: number; depth: number; dx: number; dy: number; corners?: CornerFit } {
+export function slabAround(
+  ctx: PlateContext,
+  content: { pieces: Piece[]; pieceBoxes: Box[]; markBoxes: Box[]; ext: number },
+): { outline: CrossSection; width: number; depth: number; dx: number; dy: number; corners?: CornerFit } {
   const { kernel, scope, options: o } = ctx;
   const boxes = [...content.pieceBoxes, ...content.markBoxes];
   // What the slab must hold with its margin: each piece's hull grown by its ring, every box's corners.
   const points: ContentPoint[] = [
     ...content.pieces.flatMap((p) => hullAt(p).map(([x, y]) => ({ x, y, clearance: content.ext }))),
-    ...boxes.flatMap((b) => [[b.minX, b.minY], [b.maxX, b.minY], [b.minX, b.maxY], [b.maxX, b.maxY]].map(([x, y]) => ({ x: x!, y: y!, clearance: 0 }))),
+    ...boxes.flatMap((b) =>
+      [
+        [b.minX, b.minY],
+        [b.maxX, b.minY],
+        [b.minX, b.maxY],
+        [b.maxX, b.maxY],
+      ].map(([x, y]) => ({ x: x!, y: y!, clearance: 0 })),
+    ),
   ];
-  const shaped = SHAPE_RULES[o.slab.shape].outline(kernel, scope, o, { boxes, points, pieceShadows: content.pieces.map((p) => placedShadow(scope, p)), ext: content.ext });
+  const shaped = SHAPE_RULES[o.slab.shape].outline(kernel, scope, o, {
+    boxes,
+    points,
+    pieceShadows: content.pieces.map((p) => placedShadow(scope, p)),
+    ext: content.ext,
+  });
   const ob = shaped.outline.bounds();
-  const dx = -ob.min[0], dy = -ob.min[1];
+  const dx = -ob.min[0],
+    dy = -ob.min[1];
   return {
     outline: scope.track(shaped.outline.translate(dx, dy)),
     width: ob.max[0] - ob.min[0],
@@ -40,8 +56,10 @@ export function slabAround(ctx: PlateContext, content: { pieces: Piece[]; pieceB
 
 /** A 2 × 32-bit hash of a stream of numbers (their float64 bits), for cache keys. */
 function fingerprint(feed: (add: (x: number) => void) => void): string {
-  const f = new Float64Array(1), u = new Uint32Array(f.buffer);
-  let h1 = 0x811c9dc5, h2 = 0x01000193;
+  const f = new Float64Array(1),
+    u = new Uint32Array(f.buffer);
+  let h1 = 0x811c9dc5,
+    h2 = 0x01000193;
   feed((x) => {
     f[0] = x;
     h1 = Math.imul(h1 ^ u[0]!, 0x01000193) ^ Math.imul(h2, 31);
@@ -64,7 +82,10 @@ function slabKey(thickness: number, outline: CrossSection, reliefs: Reliefs): st
       }
     };
     polys(outline);
-    for (const [tag, map] of [[1, reliefs.engrave], [2, reliefs.emboss]] as const) {
+    for (const [tag, map] of [
+      [1, reliefs.engrave],
+      [2, reliefs.emboss],
+    ] as const) {
       for (const [depth, list] of map) {
         add(tag);
         add(depth);
@@ -94,7 +115,8 @@ export function slabSolid(
   const thickness = ctx.options.slab.thickness;
   const key = cache ? slabKey(thickness, outline, reliefs) : undefined;
   const kept = cache && key ? cache.get(key) : undefined;
-  if (kept) return { mesh: { vertProperties: kept.mesh.vertProperties.slice(), triVerts: kept.mesh.triVerts.slice() }, volume: kept.volume };
+  if (kept)
+    return { mesh: { vertProperties: kept.mesh.vertProperties.slice(), triVerts: kept.mesh.triVerts.slice() }, volume: kept.volume };
 
   const base = scope.track(outline.extrude(thickness));
   const cutters: Manifold[] = [];

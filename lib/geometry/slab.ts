@@ -18,7 +18,8 @@ export type ContentPoint = { x: number; y: number; clearance: number };
  * r > c, within r − c of the rectangle's core (the rectangle shrunk by r).
  */
 function holds(b: Box, r: number, m: number, points: ContentPoint[]): boolean {
-  const w = b.maxX - b.minX, h = b.maxY - b.minY;
+  const w = b.maxX - b.minX,
+    h = b.maxY - b.minY;
   const rr = Math.max(0, Math.min(r, w / 2, h / 2));
   const eps = 1e-7;
   for (const p of points) {
@@ -84,7 +85,8 @@ export function roundedSlab(o: SlabOptions, b: Box, points: ContentPoint[]): { b
 function maxRadius(tight: Box, m: number, points: ContentPoint[]): number {
   const top = Math.min(tight.maxX - tight.minX, tight.maxY - tight.minY) / 2;
   if (holds(tight, top, m, points)) return top;
-  let lo = 0, hi = top;
+  let lo = 0,
+    hi = top;
   while (hi - lo > 1e-3) {
     const mid = (lo + hi) / 2;
     if (holds(tight, mid, m, points)) lo = mid;
@@ -100,7 +102,13 @@ export const DISC_SEGMENTS = 256;
 /** A rectangle with rounded corners, counter-clockwise, corners sampled with `perQuarter` segments. */
 export function roundedRect(x0: number, y0: number, w: number, h: number, r: number, perQuarter = CORNER_SEGMENTS): Contour {
   const rr = Math.max(0, Math.min(r, w / 2, h / 2));
-  if (rr === 0) return [[x0, y0], [x0 + w, y0], [x0 + w, y0 + h], [x0, y0 + h]];
+  if (rr === 0)
+    return [
+      [x0, y0],
+      [x0 + w, y0],
+      [x0 + w, y0 + h],
+      [x0, y0 + h],
+    ];
   const pts: Contour = [];
   const corners: [number, number, number][] = [
     [x0 + w - rr, y0 + rr, -90],
@@ -132,13 +140,26 @@ export type OutlineResult = { outline: CrossSection; corners?: CornerFit };
 
 const boxOf = (boxes: Box[]) =>
   boxes.reduce(
-    (acc, x) => ({ minX: Math.min(acc.minX, x.minX), minY: Math.min(acc.minY, x.minY), maxX: Math.max(acc.maxX, x.maxX), maxY: Math.max(acc.maxY, x.maxY) }),
+    (acc, x) => ({
+      minX: Math.min(acc.minX, x.minX),
+      minY: Math.min(acc.minY, x.minY),
+      maxX: Math.max(acc.maxX, x.maxX),
+      maxY: Math.max(acc.maxY, x.maxY),
+    }),
     { minX: Infinity, minY: Infinity, maxX: -Infinity, maxY: -Infinity },
   );
 
 /** A disc round every content box, the smallest that holds them with the margin. */
 export function discOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent): OutlineResult {
-  const pts = content.boxes.flatMap((x) => [[x.minX, x.minY], [x.maxX, x.minY], [x.minX, x.maxY], [x.maxX, x.maxY]] as [number, number][]);
+  const pts = content.boxes.flatMap(
+    (x) =>
+      [
+        [x.minX, x.minY],
+        [x.maxX, x.minY],
+        [x.minX, x.maxY],
+        [x.maxX, x.maxY],
+      ] as [number, number][],
+  );
   const c = enclosingCircle(pts);
   // Grow by the margin, and by the polygon's inset so the inscribed edges keep the full margin.
   const radius = (c.r + o.slab.margin) / Math.cos(Math.PI / DISC_SEGMENTS);
@@ -152,7 +173,15 @@ export function contourOutline(kernel: Kernel, scope: Scope, o: SlabOptions, con
   // may then shave the outline, never the content.
   const slack = o.slab.margin + 0.02;
   const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + slack, "Round", 2, 48)));
-  const rects = content.boxes.map((x) => [[x.minX - slack, x.minY - slack], [x.maxX + slack, x.minY - slack], [x.maxX + slack, x.maxY + slack], [x.minX - slack, x.maxY + slack]] as Contour);
+  const rects = content.boxes.map(
+    (x) =>
+      [
+        [x.minX - slack, x.minY - slack],
+        [x.maxX + slack, x.minY - slack],
+        [x.maxX + slack, x.maxY + slack],
+        [x.minX - slack, x.maxY + slack],
+      ] as Contour,
+  );
   let cs = scope.track(CrossSection.union([...grown, ...rects.map((r) => scope.track(new CrossSection([r])))]));
   // Close the gaps between neighbours (grow, then shrink by the same amount).
   const close = Math.max(o.layout.spacing, 2) + o.slab.margin;
@@ -165,7 +194,9 @@ export function contourOutline(kernel: Kernel, scope: Scope, o: SlabOptions, con
 /** A rounded rectangle round the content, grown (or its radius limited) so every content point keeps the margin. */
 export function roundedRectOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent): OutlineResult {
   const r = roundedSlab(o, boxOf(content.boxes), content.points);
-  const outline = scope.track(new kernel.wasm.CrossSection([roundedRect(r.box.minX, r.box.minY, r.box.maxX - r.box.minX, r.box.maxY - r.box.minY, r.radius)]));
+  const outline = scope.track(
+    new kernel.wasm.CrossSection([roundedRect(r.box.minX, r.box.minY, r.box.maxX - r.box.minX, r.box.maxY - r.box.minY, r.radius)]),
+  );
   return r.corners ? { outline, corners: r.corners } : { outline };
 }
 
@@ -204,7 +235,11 @@ export function enclosingCircle(points: [number, number][]): Circle {
   }
   const eps = 1e-7;
   const inside = (c: Circle, q: [number, number]) => Math.hypot(q[0] - c.x, q[1] - c.y) <= c.r + eps;
-  const two = (a: [number, number], b: [number, number]): Circle => ({ x: (a[0] + b[0]) / 2, y: (a[1] + b[1]) / 2, r: Math.hypot(a[0] - b[0], a[1] - b[1]) / 2 });
+  const two = (a: [number, number], b: [number, number]): Circle => ({
+    x: (a[0] + b[0]) / 2,
+    y: (a[1] + b[1]) / 2,
+    r: Math.hypot(a[0] - b[0], a[1] - b[1]) / 2,
+  });
   const three = (a: [number, number], b: [number, number], c: [number, number]): Circle => {
     const d = 2 * (a[0] * (b[1] - c[1]) + b[0] * (c[1] - a[1]) + c[0] * (a[1] - b[1]));
     if (Math.abs(d) < 1e-12) {
@@ -212,7 +247,9 @@ export function enclosingCircle(points: [number, number][]): Circle {
       const cands = [two(a, b), two(a, c), two(b, c)];
       return cands.reduce((x, y) => (y.r > x.r ? y : x));
     }
-    const a2 = a[0] ** 2 + a[1] ** 2, b2 = b[0] ** 2 + b[1] ** 2, c2 = c[0] ** 2 + c[1] ** 2;
+    const a2 = a[0] ** 2 + a[1] ** 2,
+      b2 = b[0] ** 2 + b[1] ** 2,
+      c2 = c[0] ** 2 + c[1] ** 2;
     const x = (a2 * (b[1] - c[1]) + b2 * (c[1] - a[1]) + c2 * (a[1] - b[1])) / d;
     const y = (a2 * (c[0] - b[0]) + b2 * (a[0] - c[0]) + c2 * (b[0] - a[0])) / d;
     return { x, y, r: Math.hypot(a[0] - x, a[1] - y) };

@@ -3,12 +3,17 @@ import { CYLINDER_LONGEST, SMALL_PARTS_CYLINDER, smallPartsFit, type CylinderFit
 
 // The fixture of 16 CFR 1501.4, Figure 1, in its English dimensions: 1.25 in across, the floor
 // falling from 1.00 in deep on one side to 2.25 in on the other (a 45° floor: 1.25 in over 1.25 in).
-const D = 1.25 * 25.4, R = D / 2, SHALLOW = 1.0 * 25.4, DEEP = 2.25 * 25.4;
+const D = 1.25 * 25.4,
+  R = D / 2,
+  SHALLOW = 1.0 * 25.4,
+  DEEP = 2.25 * 25.4;
 
 /** Every vertex of a placement inside the fixture, checked with the figure's dimensions directly. */
 function inside(positions: ArrayLike<number>, fit: CylinderFit): boolean {
   if (fit.verdict !== "fits") return false;
-  const m = fit.rotation, c = fit.center, t = fit.offset;
+  const m = fit.rotation,
+    c = fit.center,
+    t = fit.offset;
   for (let i = 0; i < positions.length; i += 3) {
     const v = [positions[i]! - c[0], positions[i + 1]! - c[1], positions[i + 2]! - c[2]];
     const x = m[0]! * v[0]! + m[1]! * v[1]! + m[2]! * v[2]! + t[0];
@@ -28,9 +33,22 @@ function box(w: number, d: number, h: number): Float32Array {
 
 function turned(p: Float32Array, axis: [number, number, number], deg: number): Float32Array {
   const [ax, ay, az] = axis.map((v) => v / Math.hypot(...axis)) as [number, number, number];
-  const a = (deg * Math.PI) / 180, c = Math.cos(a), s = Math.sin(a), k = 1 - c;
+  const a = (deg * Math.PI) / 180,
+    c = Math.cos(a),
+    s = Math.sin(a),
+    k = 1 - c;
   // Rodrigues' rotation formula.
-  const m = [c + ax * ax * k, ax * ay * k - az * s, ax * az * k + ay * s, ay * ax * k + az * s, c + ay * ay * k, ay * az * k - ax * s, az * ax * k - ay * s, az * ay * k + ax * s, c + az * az * k];
+  const m = [
+    c + ax * ax * k,
+    ax * ay * k - az * s,
+    ax * az * k + ay * s,
+    ay * ax * k + az * s,
+    c + ay * ay * k,
+    ay * az * k - ax * s,
+    az * ax * k - ay * s,
+    az * ay * k + ax * s,
+    c + az * az * k,
+  ];
   const out = new Float32Array(p.length);
   for (let i = 0; i < p.length; i += 3) {
     for (let r = 0; r < 3; r++) out[i + r] = m[r * 3]! * p[i]! + m[r * 3 + 1]! * p[i + 1]! + m[r * 3 + 2]! * p[i + 2]!;
@@ -60,7 +78,8 @@ function slantCut(diameter: number, top: number, segments = 96): Float32Array {
   const out: number[] = [];
   for (let j = 0; j < segments; j++) {
     const th = (2 * Math.PI * j) / segments;
-    const x = r * Math.cos(th), y = r * Math.sin(th);
+    const x = r * Math.cos(th),
+      y = r * Math.sin(th);
     out.push(x, y, top, x, y, r + x);
   }
   return new Float32Array(out);
@@ -157,10 +176,14 @@ describe("the small-parts cylinder (16 CFR 1501.4)", () => {
 
 /** The rod's eight corners in the fixture frame (x across, y across, h down), laid at angle θ below the rim. */
 function handPlacement(length: number, side: number, theta: number): number[][] {
-  const d = [Math.cos(theta), Math.sin(theta)], n = [-Math.sin(theta), Math.cos(theta)];
-  const corners = [-1, 1].flatMap((a) => [-1, 1].map((b) => [(a * length * d[0]!) / 2 + (b * side * n[0]!) / 2, (a * length * d[1]!) / 2 + (b * side * n[1]!) / 2]));
+  const d = [Math.cos(theta), Math.sin(theta)],
+    n = [-Math.sin(theta), Math.cos(theta)];
+  const corners = [-1, 1].flatMap((a) =>
+    [-1, 1].map((b) => [(a * length * d[0]!) / 2 + (b * side * n[0]!) / 2, (a * length * d[1]!) / 2 + (b * side * n[1]!) / 2]),
+  );
   // Centred across, then lowered until its top corner meets the rim.
-  const minX = Math.min(...corners.map((c) => c[0]!)), maxX = Math.max(...corners.map((c) => c[0]!));
+  const minX = Math.min(...corners.map((c) => c[0]!)),
+    maxX = Math.max(...corners.map((c) => c[0]!));
   const minH = Math.min(...corners.map((c) => c[1]!));
   const tx = -(minX + maxX) / 2;
   return corners.flatMap(([x, h]) => [-1, 1].map((s) => [x! + tx, (s * side) / 2, h! - minH]));

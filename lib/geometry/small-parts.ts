@@ -73,7 +73,8 @@ export function smallPartsFit(positions: ArrayLike<number>, options: CylinderSea
   const budget = options.budget ?? 2e6;
   const n = Math.floor(positions.length / 3);
   if (n === 0) return { verdict: "does_not_fit", reason: "excluded", evaluations: 0 };
-  const lo = [Infinity, Infinity, Infinity], hi = [-Infinity, -Infinity, -Infinity];
+  const lo = [Infinity, Infinity, Infinity],
+    hi = [-Infinity, -Infinity, -Infinity];
   for (let i = 0; i < n; i++) {
     for (let a = 0; a < 3; a++) {
       const v = positions[i * 3 + a]!;
@@ -90,7 +91,11 @@ export function smallPartsFit(positions: ArrayLike<number>, options: CylinderSea
 
   // The bounding box holds the part: if the box fits standing on one of its faces, so does the part.
   const corners = pointSet(
-    [0, 1, 2, 3, 4, 5, 6, 7].flatMap((c) => [(c & 1 ? 0.5 : -0.5) * size[0]!, (c & 2 ? 0.5 : -0.5) * size[1]!, (c & 4 ? 0.5 : -0.5) * size[2]!]),
+    [0, 1, 2, 3, 4, 5, 6, 7].flatMap((c) => [
+      (c & 1 ? 0.5 : -0.5) * size[0]!,
+      (c & 2 ? 0.5 : -0.5) * size[1]!,
+      (c & 4 ? 0.5 : -0.5) * size[2]!,
+    ]),
     0,
   );
   for (const m of AXIS_TURNS) {
@@ -100,7 +105,8 @@ export function smallPartsFit(positions: ArrayLike<number>, options: CylinderSea
 
   // ρ: how far any vertex lies from the centre we turn about (the box centre); a turn by angle θ moves it at most 2ρ·sin(θ/2).
   let rho = 0;
-  for (let i = 0; i < n; i++) rho = Math.max(rho, Math.hypot(positions[i * 3]! - center[0], positions[i * 3 + 1]! - center[1], positions[i * 3 + 2]! - center[2]));
+  for (let i = 0; i < n; i++)
+    rho = Math.max(rho, Math.hypot(positions[i * 3]! - center[0], positions[i * 3 + 1]! - center[1], positions[i * 3 + 2]! - center[2]));
   const sets = new LazySets(positions, n, center, rho);
   // Its kept vertices are points of the part: two of them farther apart than the longest segment inside rule it out.
   const span = farthest(sets.get(0));
@@ -142,11 +148,23 @@ class Search {
       this.px = new Float64Array(n);
       this.py = new Float64Array(n);
     }
-    const px = this.px, py = this.py;
-    let hMin = Infinity, floorMax = -Infinity;
-    const m0 = m[0]!, m1 = m[1]!, m2 = m[2]!, m3 = m[3]!, m4 = m[4]!, m5 = m[5]!, m6 = m[6]!, m7 = m[7]!, m8 = m[8]!;
+    const px = this.px,
+      py = this.py;
+    let hMin = Infinity,
+      floorMax = -Infinity;
+    const m0 = m[0]!,
+      m1 = m[1]!,
+      m2 = m[2]!,
+      m3 = m[3]!,
+      m4 = m[4]!,
+      m5 = m[5]!,
+      m6 = m[6]!,
+      m7 = m[7]!,
+      m8 = m[8]!;
     for (let i = 0; i < n; i++) {
-      const x = p.x[i]!, y = p.y[i]!, z = p.z[i]!;
+      const x = p.x[i]!,
+        y = p.y[i]!,
+        z = p.z[i]!;
       const X = m0 * x + m1 * y + m2 * z;
       const h = m6 * x + m7 * y + m8 * z;
       px[i] = X;
@@ -162,7 +180,8 @@ class Search {
     const disc = minDisc(px, py, n, p.order);
     this.spent += 2 * n;
     let c: [number, number] = [disc.cx, disc.cy];
-    let r = disc.r, rLow = disc.r;
+    let r = disc.r,
+      rLow = disc.r;
     if (disc.cx > X + TOL && disc.r <= R + grow + TOL) {
       // The best centre is on the line c.x = X (the radius needed is convex in c, its free minimum lies beyond).
       const line = onLine(px, py, n, X, p.order);
@@ -177,8 +196,10 @@ class Search {
   found(m: ArrayLike<number>, center: [number, number, number], e: Eval): CylinderFit {
     // Depth: halfway between the rim and the floor's limit (the test left room between them).
     const g = e.grow;
-    const tx = -e.c[0], ty = -e.c[1];
-    const tLow = -g - e.hMin, tHigh = A + g * S + B * tx - e.floorMax;
+    const tx = -e.c[0],
+      ty = -e.c[1];
+    const tLow = -g - e.hMin,
+      tHigh = A + g * S + B * tx - e.floorMax;
     return { verdict: "fits", rotation: Array.from(m), center, offset: [tx, ty, (tLow + tHigh) / 2], evaluations: this.spent };
   }
 
@@ -207,11 +228,13 @@ class Search {
     }
     const s0 = 1 / 4; // s0·√3 < 1, as the bound needs
     for (let face = 0; face < 4; face++) {
-      for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++) for (let k = 0; k < 4; k++) {
-        const c = make(face, [-1 + (2 * i + 1) * s0, -1 + (2 * j + 1) * s0, -1 + (2 * k + 1) * s0], s0);
-        if (c && "fit" in c) return c.fit;
-        if (c) heap.push(c);
-      }
+      for (let i = 0; i < 4; i++)
+        for (let j = 0; j < 4; j++)
+          for (let k = 0; k < 4; k++) {
+            const c = make(face, [-1 + (2 * i + 1) * s0, -1 + (2 * j + 1) * s0, -1 + (2 * k + 1) * s0], s0);
+            if (c && "fit" in c) return c.fit;
+            if (c) heap.push(c);
+          }
     }
     for (const start of heap.peekBest(6)) {
       const hit = this.polish(start.m, sets, 0.4);
@@ -253,7 +276,7 @@ class Search {
     if (first.e.fits) return this.found(first.m, sets.center, first.e);
     if (first.e.excess > 3 * mid.delta) return null;
     const fine = sets.finest();
-    const second = this.descend(first.m, fine, 4 * mid.delta / Math.max(1, sets.rho), 1e-5);
+    const second = this.descend(first.m, fine, (4 * mid.delta) / Math.max(1, sets.rho), 1e-5);
     return second.e.fits ? this.found(second.m, sets.center, second.e) : null;
   }
 
@@ -294,21 +317,28 @@ type Eval = { fits: boolean; excess: number; excessLow: number; c: [number, numb
 
 /** Smallest disc around the points (Welzl's incremental algorithm over a fixed shuffled order). */
 function minDisc(px: Float64Array, py: Float64Array, n: number, order: Uint32Array): { cx: number; cy: number; r: number } {
-  let cx = px[order[0]!]!, cy = py[order[0]!]!, r2 = 0;
+  let cx = px[order[0]!]!,
+    cy = py[order[0]!]!,
+    r2 = 0;
   for (let a = 1; a < n; a++) {
     const i = order[a]!;
     if ((px[i]! - cx) ** 2 + (py[i]! - cy) ** 2 <= r2 + 1e-12) continue;
-    cx = px[i]!; cy = py[i]!; r2 = 0;
+    cx = px[i]!;
+    cy = py[i]!;
+    r2 = 0;
     for (let b = 0; b < a; b++) {
       const j = order[b]!;
       if ((px[j]! - cx) ** 2 + (py[j]! - cy) ** 2 <= r2 + 1e-12) continue;
-      cx = (px[i]! + px[j]!) / 2; cy = (py[i]! + py[j]!) / 2;
+      cx = (px[i]! + px[j]!) / 2;
+      cy = (py[i]! + py[j]!) / 2;
       r2 = (px[i]! - cx) ** 2 + (py[i]! - cy) ** 2;
       for (let c = 0; c < b; c++) {
         const k = order[c]!;
         if ((px[k]! - cx) ** 2 + (py[k]! - cy) ** 2 <= r2 + 1e-12) continue;
         const circ = circumcircle(px[i]!, py[i]!, px[j]!, py[j]!, px[k]!, py[k]!);
-        cx = circ[0]; cy = circ[1]; r2 = circ[2];
+        cx = circ[0];
+        cy = circ[1];
+        r2 = circ[2];
       }
     }
   }
@@ -319,7 +349,11 @@ function circumcircle(ax: number, ay: number, bx: number, by: number, cx: number
   const d = 2 * (ax * (by - cy) + bx * (cy - ay) + cx * (ay - by));
   if (Math.abs(d) < 1e-12) {
     // Collinear: the disc on the farthest pair.
-    const pairs: [number, number, number, number][] = [[ax, ay, bx, by], [ax, ay, cx, cy], [bx, by, cx, cy]];
+    const pairs: [number, number, number, number][] = [
+      [ax, ay, bx, by],
+      [ax, ay, cx, cy],
+      [bx, by, cx, cy],
+    ];
     let best: [number, number, number] = [ax, ay, 0];
     for (const [x1, y1, x2, y2] of pairs) {
       const r2 = ((x1 - x2) ** 2 + (y1 - y2) ** 2) / 4;
@@ -327,7 +361,9 @@ function circumcircle(ax: number, ay: number, bx: number, by: number, cx: number
     }
     return best;
   }
-  const a2 = ax * ax + ay * ay, b2 = bx * bx + by * by, c2 = cx * cx + cy * cy;
+  const a2 = ax * ax + ay * ay,
+    b2 = bx * bx + by * by,
+    c2 = cx * cx + cy * cy;
   const ux = (a2 * (by - cy) + b2 * (cy - ay) + c2 * (ay - by)) / d;
   const uy = (a2 * (cx - bx) + b2 * (ax - cx) + c2 * (bx - ax)) / d;
   const r2 = Math.max((ax - ux) ** 2 + (ay - uy) ** 2, (bx - ux) ** 2 + (by - uy) ** 2, (cx - ux) ** 2 + (cy - uy) ** 2);
@@ -342,7 +378,8 @@ function circumcircle(ax: number, ay: number, bx: number, by: number, cx: number
 function onLine(px: Float64Array, py: Float64Array, n: number, X: number, order: Uint32Array): { y: number; r: number } {
   const d2 = (i: number, y: number) => (X - px[i]!) ** 2 + (y - py[i]!) ** 2;
   const first = order[0]!;
-  let y = py[first]!, r2 = d2(first, y);
+  let y = py[first]!,
+    r2 = d2(first, y);
   for (let a = 1; a < n; a++) {
     const i = order[a]!;
     if (d2(i, y) <= r2 + 1e-12) continue;
@@ -366,12 +403,20 @@ function onLine(px: Float64Array, py: Float64Array, n: number, X: number, order:
  */
 class LazySets {
   private sets: (PointSet | undefined)[] = [];
-  constructor(private positions: ArrayLike<number>, private n: number, readonly center: [number, number, number], readonly rho: number) {}
+  constructor(
+    private positions: ArrayLike<number>,
+    private n: number,
+    readonly center: [number, number, number],
+    readonly rho: number,
+  ) {}
 
   get(level: number): PointSet {
     let s = this.sets[level];
     if (!s) {
-      s = level < GRID.length ? hullSet(this.positions, this.n, this.center, GRID[level]! * this.rho) : allVertices(this.positions, this.n, this.center);
+      s =
+        level < GRID.length
+          ? hullSet(this.positions, this.n, this.center, GRID[level]! * this.rho)
+          : allVertices(this.positions, this.n, this.center);
       this.sets[level] = s;
     }
     return s;
@@ -405,8 +450,11 @@ function hullSet(positions: ArrayLike<number>, n: number, center: [number, numbe
   const span = 1 << 17; // three 17-bit cell indices stay within a double's exact integers (2^51)
   let delta = 0;
   for (let i = 0; i < n; i++) {
-    const x = positions[i * 3]! - center[0], y = positions[i * 3 + 1]! - center[1], z = positions[i * 3 + 2]! - center[2];
-    const key = (Math.floor(x / grid) + span / 2) * span * span + (Math.floor(y / grid) + span / 2) * span + (Math.floor(z / grid) + span / 2);
+    const x = positions[i * 3]! - center[0],
+      y = positions[i * 3 + 1]! - center[1],
+      z = positions[i * 3 + 2]! - center[2];
+    const key =
+      (Math.floor(x / grid) + span / 2) * span * span + (Math.floor(y / grid) + span / 2) * span + (Math.floor(z / grid) + span / 2);
     const k = kept.get(key);
     if (k === undefined) {
       kept.set(key, picked.length);
@@ -424,7 +472,10 @@ function hullSet(positions: ArrayLike<number>, n: number, center: [number, numbe
     faces = quickhull(picked);
     keep = [...new Set(faces.flat())];
   }
-  const set = pointSet(keep.flatMap((i) => picked[i]!), delta);
+  const set = pointSet(
+    keep.flatMap((i) => picked[i]!),
+    delta,
+  );
   set.faces = faces.map((f) => f.map((i) => picked[i]!));
   return set;
 }
@@ -432,7 +483,9 @@ function hullSet(positions: ArrayLike<number>, n: number, center: [number, numbe
 /** Radius of a ball about the hull's vertex centroid that lies inside the hull (its distance to the nearest face plane). */
 function insideBall(p: PointSet): number {
   if (!p.faces?.length) return 0;
-  let cx = 0, cy = 0, cz = 0;
+  let cx = 0,
+    cy = 0,
+    cz = 0;
   for (let i = 0; i < p.n; i++) {
     cx += p.x[i]!;
     cy += p.y[i]!;
@@ -444,8 +497,11 @@ function insideBall(p: PointSet): number {
   let r = Infinity;
   for (const f of p.faces) {
     const [a, b, c] = f as [[number, number, number], [number, number, number], [number, number, number]];
-    const u = [b[0] - a[0], b[1] - a[1], b[2] - a[2]], v = [c[0] - a[0], c[1] - a[1], c[2] - a[2]];
-    const nx = u[1]! * v[2]! - u[2]! * v[1]!, ny = u[2]! * v[0]! - u[0]! * v[2]!, nz = u[0]! * v[1]! - u[1]! * v[0]!;
+    const u = [b[0] - a[0], b[1] - a[1], b[2] - a[2]],
+      v = [c[0] - a[0], c[1] - a[1], c[2] - a[2]];
+    const nx = u[1]! * v[2]! - u[2]! * v[1]!,
+      ny = u[2]! * v[0]! - u[0]! * v[2]!,
+      nz = u[0]! * v[1]! - u[1]! * v[0]!;
     const len = Math.hypot(nx, ny, nz);
     if (len < 1e-12) continue;
     r = Math.min(r, Math.abs((cx - a[0]) * nx + (cy - a[1]) * ny + (cz - a[2]) * nz) / len);
@@ -455,7 +511,9 @@ function insideBall(p: PointSet): number {
 
 function pointSet(flat: number[], delta: number): PointSet {
   const n = flat.length / 3;
-  const x = new Float64Array(n), y = new Float64Array(n), z = new Float64Array(n);
+  const x = new Float64Array(n),
+    y = new Float64Array(n),
+    z = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     x[i] = flat[i * 3]!;
     y[i] = flat[i * 3 + 1]!;
@@ -476,7 +534,9 @@ function pointSet(flat: number[], delta: number): PointSet {
 
 /** The farthest pair of the set: its length and its direction (unit). */
 function farthest(p: PointSet): { length: number; axis: [number, number, number] } {
-  let d = 0, a = 0, b = 0;
+  let d = 0,
+    a = 0,
+    b = 0;
   for (let i = 0; i < p.n; i++) {
     for (let j = i + 1; j < p.n; j++) {
       const e = (p.x[i]! - p.x[j]!) ** 2 + (p.y[i]! - p.y[j]!) ** 2 + (p.z[i]! - p.z[j]!) ** 2;
@@ -494,7 +554,8 @@ function farthest(p: PointSet): { length: number; axis: [number, number, number]
 /** A turn taking unit vector a onto unit vector b (about their common normal). */
 function turnOnto(a: number[], b: number[]): number[] {
   const w = [a[1]! * b[2]! - a[2]! * b[1]!, a[2]! * b[0]! - a[0]! * b[2]!, a[0]! * b[1]! - a[1]! * b[0]!];
-  const sin = Math.hypot(w[0]!, w[1]!, w[2]!), cos = a[0]! * b[0]! + a[1]! * b[1]! + a[2]! * b[2]!;
+  const sin = Math.hypot(w[0]!, w[1]!, w[2]!),
+    cos = a[0]! * b[0]! + a[1]! * b[1]! + a[2]! * b[2]!;
   if (sin < 1e-12) return cos > 0 ? turnOf([0, 0, 0]) : turnOf(Math.abs(a[0]!) < 0.9 ? [Math.PI, 0, 0] : [0, Math.PI, 0]);
   const angle = Math.atan2(sin, cos);
   return turnOf(w.map((v) => (v / sin) * angle));
@@ -506,7 +567,17 @@ function rotationOf(face: number, u: [number, number, number]): number[] {
   for (let i = 0; i < 4; i++) q[i] = i === face ? 1 : u[o++]!;
   const len = Math.hypot(q[0]!, q[1]!, q[2]!, q[3]!);
   const [w, x, y, z] = q.map((v) => v / len) as [number, number, number, number];
-  return [1 - 2 * (y * y + z * z), 2 * (x * y - w * z), 2 * (x * z + w * y), 2 * (x * y + w * z), 1 - 2 * (x * x + z * z), 2 * (y * z - w * x), 2 * (x * z - w * y), 2 * (y * z + w * x), 1 - 2 * (x * x + y * y)];
+  return [
+    1 - 2 * (y * y + z * z),
+    2 * (x * y - w * z),
+    2 * (x * z + w * y),
+    2 * (x * y + w * z),
+    1 - 2 * (x * x + z * z),
+    2 * (y * z - w * x),
+    2 * (x * z - w * y),
+    2 * (y * z + w * x),
+    1 - 2 * (x * x + y * y),
+  ];
 }
 
 /** The turn by |w| radians about w (Rodrigues' formula). */
@@ -514,25 +585,46 @@ function turnOf(w: number[]): number[] {
   const a = Math.hypot(w[0]!, w[1]!, w[2]!);
   if (a < 1e-15) return [1, 0, 0, 0, 1, 0, 0, 0, 1];
   const [x, y, z] = [w[0]! / a, w[1]! / a, w[2]! / a];
-  const c = Math.cos(a), s = Math.sin(a), k = 1 - c;
-  return [c + x * x * k, x * y * k - z * s, x * z * k + y * s, y * x * k + z * s, c + y * y * k, y * z * k - x * s, z * x * k - y * s, z * y * k + x * s, c + z * z * k];
+  const c = Math.cos(a),
+    s = Math.sin(a),
+    k = 1 - c;
+  return [
+    c + x * x * k,
+    x * y * k - z * s,
+    x * z * k + y * s,
+    y * x * k + z * s,
+    c + y * y * k,
+    y * z * k - x * s,
+    z * x * k - y * s,
+    z * y * k + x * s,
+    c + z * z * k,
+  ];
 }
 
 function matMul(a: number[], b: number[]): number[] {
   const out = new Array<number>(9);
-  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) out[i * 3 + j] = a[i * 3]! * b[j]! + a[i * 3 + 1]! * b[3 + j]! + a[i * 3 + 2]! * b[6 + j]!;
+  for (let i = 0; i < 3; i++)
+    for (let j = 0; j < 3; j++) out[i * 3 + j] = a[i * 3]! * b[j]! + a[i * 3 + 1]! * b[3 + j]! + a[i * 3 + 2]! * b[6 + j]!;
   return out;
 }
 
 /** The 24 turns that take the axes onto the axes (signed permutation matrices of determinant +1). */
 const AXIS_TURNS: number[][] = (() => {
   const out: number[][] = [];
-  const perms = [[0, 1, 2], [0, 2, 1], [1, 0, 2], [1, 2, 0], [2, 0, 1], [2, 1, 0]];
+  const perms = [
+    [0, 1, 2],
+    [0, 2, 1],
+    [1, 0, 2],
+    [1, 2, 0],
+    [2, 0, 1],
+    [2, 1, 0],
+  ];
   for (const p of perms) {
     for (let signs = 0; signs < 8; signs++) {
       const m = new Array<number>(9).fill(0);
       for (let r = 0; r < 3; r++) m[r * 3 + p[r]!] = signs & (1 << r) ? -1 : 1;
-      const det = m[0]! * (m[4]! * m[8]! - m[5]! * m[7]!) - m[1]! * (m[3]! * m[8]! - m[5]! * m[6]!) + m[2]! * (m[3]! * m[7]! - m[4]! * m[6]!);
+      const det =
+        m[0]! * (m[4]! * m[8]! - m[5]! * m[7]!) - m[1]! * (m[3]! * m[8]! - m[5]! * m[6]!) + m[2]! * (m[3]! * m[7]! - m[4]! * m[6]!);
       if (det > 0) out.push(m);
     }
   }
@@ -562,7 +654,8 @@ class CellHeap {
       a[0] = last;
       let i = 0;
       for (;;) {
-        const l = 2 * i + 1, r = l + 1;
+        const l = 2 * i + 1,
+          r = l + 1;
         let m = i;
         if (l < a.length && a[l]!.key < a[m]!.key) m = l;
         if (r < a.length && a[r]!.key < a[m]!.key) m = r;
@@ -577,4 +670,3 @@ class CellHeap {
     return [...this.a].sort((x, y) => x.key - y.key).slice(0, k);
   }
 }
-

@@ -1,5 +1,13 @@
 import { describe, expect, it } from "vitest";
-import { describeChanges, mergeOptions, resolveValues, sampleValues, templateBodySchema, TemplateValueError, usedPlaceholders } from "./template";
+import {
+  describeChanges,
+  mergeOptions,
+  resolveValues,
+  sampleValues,
+  templateBodySchema,
+  TemplateValueError,
+  usedPlaceholders,
+} from "./template";
 
 const defs = [
   { name: "order", default: "", sample: "10482" },
@@ -11,19 +19,30 @@ describe("template variables", () => {
     const bad = templateBodySchema.safeParse({ options: { marks: { text: [{ value: "Thanks {customr} · {date}" }] } }, variables: defs });
     expect(bad.success).toBe(false);
     expect(bad.error!.issues[0]!.message).toMatch(/uses \{customr\}, which is not defined/);
-    const ok = templateBodySchema.safeParse({ options: { marks: { text: [{ value: "ORDER {order} · {kit} · {date}" }], qr: { value: "https://shop.example/o/{order}" } } }, variables: defs });
+    const ok = templateBodySchema.safeParse({
+      options: { marks: { text: [{ value: "ORDER {order} · {kit} · {date}" }], qr: { value: "https://shop.example/o/{order}" } } },
+      variables: defs,
+    });
     expect(ok.success).toBe(true);
     expect(usedPlaceholders(ok.data!.options)).toEqual(["order", "kit", "date"]);
   });
 
   it("names: defined twice, or taking a built-in's name, is refused", () => {
     const r = templateBodySchema.safeParse({ options: {}, variables: [...defs, { name: "order" }, { name: "date" }] });
-    expect(r.error!.issues.map((i) => i.message)).toEqual([expect.stringMatching(/defined twice/), expect.stringMatching(/filled by Slabwright itself/)]);
+    expect(r.error!.issues.map((i) => i.message)).toEqual([
+      expect.stringMatching(/defined twice/),
+      expect.stringMatching(/filled by Slabwright itself/),
+    ]);
     expect(templateBodySchema.safeParse({ options: {}, variables: [{ name: "Order No" }] }).success).toBe(false);
   });
 
   it("substitution: given values win, defaults fill the rest, {date} and {kit} are filled", () => {
-    expect(resolveValues(defs, { order: "20931" }, { date: "2026-12-02", kit: "Harbour Run" })).toEqual({ date: "2026-12-02", kit: "Harbour Run", order: "20931", customer: "friend" });
+    expect(resolveValues(defs, { order: "20931" }, { date: "2026-12-02", kit: "Harbour Run" })).toEqual({
+      date: "2026-12-02",
+      kit: "Harbour Run",
+      order: "20931",
+      customer: "friend",
+    });
     // A caller may fix the date (a remade plate keeps its day).
     expect(resolveValues(defs, { order: "1", date: "2026-11-30" }, { date: "2026-12-02" }).date).toBe("2026-11-30");
   });
@@ -46,19 +65,37 @@ describe("template variables", () => {
   });
 
   it("sample values for previews", () => {
-    expect(sampleValues(defs, "Harbour Run", "2026-12-02")).toEqual({ date: "2026-12-02", kit: "Harbour Run", order: "10482", customer: "Sam" });
+    expect(sampleValues(defs, "Harbour Run", "2026-12-02")).toEqual({
+      date: "2026-12-02",
+      kit: "Harbour Run",
+      order: "10482",
+      customer: "Sam",
+    });
   });
 
   it("options over a template's merge key by key; text lines replace as a whole", () => {
     const base = { slab: { shape: "disc" as const, thickness: 1.2 }, marks: { text: [{ value: "A" }, { value: "B" }], numbers: true } };
-    expect(mergeOptions(base, { slab: { thickness: 1 }, marks: { text: [{ value: "C" }] } })).toEqual({ slab: { shape: "disc", thickness: 1 }, marks: { text: [{ value: "C" }], numbers: true } });
+    expect(mergeOptions(base, { slab: { thickness: 1 }, marks: { text: [{ value: "C" }] } })).toEqual({
+      slab: { shape: "disc", thickness: 1 },
+      marks: { text: [{ value: "C" }], numbers: true },
+    });
   });
 
   it("the version history says what changed", () => {
     const v1 = { options: { slab: { shape: "disc" as const }, marks: { text: [{ value: "Thanks {customer}" }] } }, variables: defs };
-    const v2 = { options: { slab: { shape: "disc" as const, cornerRadius: 8 }, marks: { text: [{ value: "Thank you, {customer}!" }], qr: { value: "https://shop.example/{order}" } } }, variables: defs };
+    const v2 = {
+      options: {
+        slab: { shape: "disc" as const, cornerRadius: 8 },
+        marks: { text: [{ value: "Thank you, {customer}!" }], qr: { value: "https://shop.example/{order}" } },
+      },
+      variables: defs,
+    };
     expect(describeChanges(null, v1)).toEqual(["first version"]);
-    expect(describeChanges(v1, v2)).toEqual(["cornerRadius: 5 → 8", 'text line 1: "Thanks {customer}" → "Thank you, {customer}!"', 'QR code added: "https://shop.example/{order}"']);
+    expect(describeChanges(v1, v2)).toEqual([
+      "cornerRadius: 5 → 8",
+      'text line 1: "Thanks {customer}" → "Thank you, {customer}!"',
+      'QR code added: "https://shop.example/{order}"',
+    ]);
     expect(describeChanges(v1, v1)).toEqual(["no change to the options"]);
   });
 });

@@ -9,12 +9,16 @@ import { placeholders } from "./variables";
  * server checks it again when it is saved and when a plate uses it.
  */
 
+const braced = (names: string[]) => names.map((n) => `{${n}}`).join(", ");
+
 export const BUILT_IN_VARIABLES = ["date", "kit"] as const;
 const NAME = /^[a-z][a-z0-9_]*$/;
 
 export const templateVariableSchema = z
   .object({
-    name: z.string().regex(NAME, "A variable's name is lower-case letters, digits and _ , starting with a letter (like order or customer_name)."),
+    name: z
+      .string()
+      .regex(NAME, "A variable's name is lower-case letters, digits and _ , starting with a letter (like order or customer_name)."),
     label: z.string().max(60).optional(),
     default: z.string().max(500).default(""),
     sample: z.string().max(500).default(""),
@@ -37,13 +41,24 @@ export const templateBodySchema = z
   .superRefine((t, ctx) => {
     const names = new Set<string>();
     t.variables.forEach((v, i) => {
-      if ((BUILT_IN_VARIABLES as readonly string[]).includes(v.name)) ctx.addIssue({ code: "custom", path: ["variables", i, "name"], message: `{${v.name}} is filled by Slabwright itself; choose another name.` });
+      if ((BUILT_IN_VARIABLES as readonly string[]).includes(v.name))
+        ctx.addIssue({
+          code: "custom",
+          path: ["variables", i, "name"],
+          message: `{${v.name}} is filled by Slabwright itself; choose another name.`,
+        });
       if (names.has(v.name)) ctx.addIssue({ code: "custom", path: ["variables", i, "name"], message: `{${v.name}} is defined twice.` });
       names.add(v.name);
     });
     for (const name of usedPlaceholders(t.options)) {
       if (!names.has(name) && !(BUILT_IN_VARIABLES as readonly string[]).includes(name)) {
-        ctx.addIssue({ code: "custom", path: ["variables"], message: `The template uses {${name}}, which is not defined: add it as a variable (with a default and a sample value) or take it out of the text.` });
+        ctx.addIssue({
+          code: "custom",
+          path: ["variables"],
+          message:
+            `The template uses {${name}}, which is not defined: add it as a variable (with a default and a sample value) or ` +
+            `take it out of the text.`,
+        });
       }
     }
   });
@@ -65,25 +80,45 @@ export class TemplateValueError extends Error {
  * `{kit}` filled. A value for a variable the template does not have is refused (a typo would
  * otherwise be silently ignored), and so is a variable with neither a value nor a default.
  */
-export function resolveValues(defs: TemplateVariableDef[], given: Record<string, string>, builtIns: { date: string; kit?: string }): Record<string, string> {
+export function resolveValues(
+  defs: TemplateVariableDef[],
+  given: Record<string, string>,
+  builtIns: { date: string; kit?: string },
+): Record<string, string> {
   const known = new Set([...defs.map((d) => d.name), ...BUILT_IN_VARIABLES]);
   const extra = Object.keys(given).filter((k) => !known.has(k));
   if (extra.length) {
-    throw new TemplateValueError("unknown_variable", `The template has no variable${extra.length > 1 ? "s" : ""} ${extra.map((n) => `{${n}}`).join(", ")}; it has ${[...known].map((n) => `{${n}}`).join(", ")}.`, extra);
+    throw new TemplateValueError(
+      "unknown_variable",
+      `The template has no variable${extra.length > 1 ? "s" : ""} ${braced(extra)}; it has ${braced([...known])}.`,
+      extra,
+    );
   }
-  const out: Record<string, string> = { date: given.date ?? builtIns.date, ...(builtIns.kit !== undefined || given.kit !== undefined ? { kit: given.kit ?? builtIns.kit! } : {}) };
+  const out: Record<string, string> = {
+    date: given.date ?? builtIns.date,
+    ...(builtIns.kit !== undefined || given.kit !== undefined ? { kit: given.kit ?? builtIns.kit! } : {}),
+  };
   const missing: string[] = [];
   for (const d of defs) {
     const v = given[d.name] ?? d.default;
     if (v === "") missing.push(d.name);
     else out[d.name] = v;
   }
-  if (missing.length) throw new TemplateValueError("missing_variable", `Give a value for ${missing.map((n) => `{${n}}`).join(", ")}: the template has no default for ${missing.length > 1 ? "them" : "it"}.`, missing);
+  if (missing.length)
+    throw new TemplateValueError(
+      "missing_variable",
+      `Give a value for ${missing.map((n) => `{${n}}`).join(", ")}: the template has no default for ${missing.length > 1 ? "them" : "it"}.`,
+      missing,
+    );
   return out;
 }
 
 /** Sample values for previews and thumbnails: each variable's sample, else its default. */
-export function sampleValues(defs: TemplateVariableDef[], kit = "Sample kit", date = new Date().toISOString().slice(0, 10)): Record<string, string> {
+export function sampleValues(
+  defs: TemplateVariableDef[],
+  kit = "Sample kit",
+  date = new Date().toISOString().slice(0, 10),
+): Record<string, string> {
   return { date, kit, ...Object.fromEntries(defs.map((d) => [d.name, d.sample || d.default || d.name])) };
 }
 
@@ -104,17 +139,23 @@ export function mergeOptions(base: SlabOptionsInput, over: SlabOptionsInput): Sl
 }
 
 /** What changed between two versions' options and variables, in words, for the version history. */
-export function describeChanges(before: { options: SlabOptionsInput; variables: TemplateVariableInput[] } | null, after: { options: SlabOptionsInput; variables: TemplateVariableInput[] }): string[] {
+export function describeChanges(
+  before: { options: SlabOptionsInput; variables: TemplateVariableInput[] } | null,
+  after: { options: SlabOptionsInput; variables: TemplateVariableInput[] },
+): string[] {
   if (!before) return ["first version"];
-  const a = slabOptionsSchema.parse(before.options), b = slabOptionsSchema.parse(after.options);
+  const a = slabOptionsSchema.parse(before.options),
+    b = slabOptionsSchema.parse(after.options);
   const out: string[] = [];
   const flat = (o: unknown, prefix = ""): Record<string, string> => {
-    if (o && typeof o === "object" && !Array.isArray(o)) return Object.assign({}, ...Object.entries(o).map(([k, v]) => flat(v, prefix ? `${prefix}.${k}` : k)));
+    if (o && typeof o === "object" && !Array.isArray(o))
+      return Object.assign({}, ...Object.entries(o).map(([k, v]) => flat(v, prefix ? `${prefix}.${k}` : k)));
     return { [prefix]: JSON.stringify(o) };
   };
   const { text: ta, logo: la, qr: qa, ...ma } = a.marks;
   const { text: tb, logo: lb, qr: qb, ...mb } = b.marks;
-  const fa = flat({ ...a, marks: ma }), fb = flat({ ...b, marks: mb });
+  const fa = flat({ ...a, marks: ma }),
+    fb = flat({ ...b, marks: mb });
   for (const k of new Set([...Object.keys(fa), ...Object.keys(fb)])) {
     if (fa[k] !== fb[k]) out.push(`${k.replace(/^layout\.|^slab\./, "")}: ${fa[k] ?? "—"} → ${fb[k] ?? "—"}`);
   }
@@ -123,11 +164,35 @@ export function describeChanges(before: { options: SlabOptionsInput; variables: 
     if (JSON.stringify(ta[i]) === JSON.stringify(tb[i])) continue;
     if (!ta[i]) out.push(`text line ${i + 1} added: "${tb[i]!.value}"`);
     else if (!tb[i]) out.push(`text line ${i + 1} removed: "${ta[i]!.value}"`);
-    else out.push(ta[i]!.value !== tb[i]!.value ? `text line ${i + 1}: "${ta[i]!.value}" → "${tb[i]!.value}"` : `text line ${i + 1}: size, face, relief or place changed`);
+    else
+      out.push(
+        ta[i]!.value !== tb[i]!.value
+          ? `text line ${i + 1}: "${ta[i]!.value}" → "${tb[i]!.value}"`
+          : `text line ${i + 1}: size, face, relief or place changed`,
+      );
   }
-  if (JSON.stringify(qa) !== JSON.stringify(qb)) out.push(!qa ? `QR code added: "${qb!.value}"` : !qb ? "QR code removed" : qa.value !== qb.value ? `QR code: "${qa.value}" → "${qb.value}"` : "QR code: size, level or place changed");
-  if (JSON.stringify(la) !== JSON.stringify(lb)) out.push(!la ? `logo added (${lb!.name})` : !lb ? "logo removed" : la.name !== lb.name || JSON.stringify(la.paths) !== JSON.stringify(lb.paths) ? `logo replaced (${lb.name})` : "logo: size, relief or place changed");
-  const va = JSON.stringify(before.variables.map((v) => templateVariableSchema.parse(v))), vb = JSON.stringify(after.variables.map((v) => templateVariableSchema.parse(v)));
+  if (JSON.stringify(qa) !== JSON.stringify(qb))
+    out.push(
+      !qa
+        ? `QR code added: "${qb!.value}"`
+        : !qb
+          ? "QR code removed"
+          : qa.value !== qb.value
+            ? `QR code: "${qa.value}" → "${qb.value}"`
+            : "QR code: size, level or place changed",
+    );
+  if (JSON.stringify(la) !== JSON.stringify(lb))
+    out.push(
+      !la
+        ? `logo added (${lb!.name})`
+        : !lb
+          ? "logo removed"
+          : la.name !== lb.name || JSON.stringify(la.paths) !== JSON.stringify(lb.paths)
+            ? `logo replaced (${lb.name})`
+            : "logo: size, relief or place changed",
+    );
+  const va = JSON.stringify(before.variables.map((v) => templateVariableSchema.parse(v))),
+    vb = JSON.stringify(after.variables.map((v) => templateVariableSchema.parse(v)));
   if (va !== vb) out.push(`variables: ${after.variables.map((v) => `{${v.name}}`).join(", ") || "none"}`);
   return out.length ? out : ["no change to the options"];
 }

@@ -6,7 +6,14 @@ import { UNIT_MM, type Unit } from "./io/raw";
 export const API_UNITS = { mm: "millimeter", cm: "centimeter", m: "meter", in: "inch" } as const satisfies Record<string, Unit>;
 export type ApiUnit = keyof typeof API_UNITS;
 const API_NAME: Partial<Record<Unit, ApiUnit>> = Object.fromEntries(Object.entries(API_UNITS).map(([k, v]) => [v, k]));
-const PLURAL: Record<Unit, string> = { micron: "microns", millimeter: "millimetres", centimeter: "centimetres", inch: "inches", foot: "feet", meter: "metres" };
+const PLURAL: Record<Unit, string> = {
+  micron: "microns",
+  millimeter: "millimetres",
+  centimeter: "centimetres",
+  inch: "inches",
+  foot: "feet",
+  meter: "metres",
+};
 
 /** A part as the build read it: which one, in which unit, with what the importer noticed and its size as it will stand. */
 export type ReadPart = {
@@ -36,14 +43,32 @@ export function unitFindings(part: ReadPart, bed: { width: number; depth: number
   if (largest >= 1 && !offBed) return out;
   // The unit that brings it to a plausible size: the importer's suggestion when it made one, else
   // (too large for the bed, under a metre) millimetres when it was read in a larger unit.
-  const suggested = part.warnings.find((x) => x.code === "units_suspect")?.suggestion.unit ?? (largest >= 1 && UNIT_MM[part.unit] > 1 ? "millimeter" : undefined);
+  const suggested =
+    part.warnings.find((x) => x.code === "units_suspect")?.suggestion.unit ??
+    (largest >= 1 && UNIT_MM[part.unit] > 1 ? "millimeter" : undefined);
   const as = suggested ? ` (${(largest * (UNIT_MM[suggested] / UNIT_MM[part.unit])).toFixed(1)} mm)` : "";
   const question = suggested ? ` Is it in ${PLURAL[suggested]}?` : "";
-  const fix = !suggested ? " Scale it in your modelling program." : part.source === "upload" ? (API_NAME[suggested] ? ` Send units: "${API_NAME[suggested]}" for it${as}.` : ` Scale it in your modelling program${as}.`) : ` Read it again in ${PLURAL[suggested]} in the parts library${as}.`;
+  const fix = !suggested
+    ? " Scale it in your modelling program."
+    : part.source === "upload"
+      ? API_NAME[suggested]
+        ? ` Send units: "${API_NAME[suggested]}" for it${as}.`
+        : ` Scale it in your modelling program${as}.`
+      : ` Read it again in ${PLURAL[suggested]} in the parts library${as}.`;
   if (largest < 1) {
-    out.push({ severity: "error", code: "part_too_small", message: `${who} is ${largest.toPrecision(2)} mm across, read as ${PLURAL[part.unit]}: too small to print.${question}${fix}` });
+    out.push({
+      severity: "error",
+      code: "part_too_small",
+      message: `${who} is ${largest.toPrecision(2)} mm across, read as ${PLURAL[part.unit]}: too small to print.${question}${fix}`,
+    });
   } else {
-    out.push({ severity: "error", code: "part_larger_than_bed", message: `${who} is ${w.toFixed(1)} × ${d.toFixed(1)} mm, read as ${PLURAL[part.unit]}: larger than the ${bed.width} × ${bed.depth} mm bed.${question}${fix}` });
+    out.push({
+      severity: "error",
+      code: "part_larger_than_bed",
+      message:
+        `${who} is ${w.toFixed(1)} × ${d.toFixed(1)} mm, read as ${PLURAL[part.unit]}: larger than the ${bed.width} × ` +
+        `${bed.depth} mm bed.${question}${fix}`,
+    });
   }
   return out;
 }

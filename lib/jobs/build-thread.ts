@@ -26,7 +26,17 @@ import { blobStore } from "@/lib/storage";
 
 export type BuildTask = {
   /** Parts by blob key; `bytes` may be left out, and the thread reads the blob itself unless it holds the part already. */
-  parts: { name: string; blobKey: string; bytes?: Uint8Array; quantity: number; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number; partId?: string }[];
+  parts: {
+    name: string;
+    blobKey: string;
+    bytes?: Uint8Array;
+    quantity: number;
+    unit?: string;
+    layFlat?: boolean;
+    turned?: boolean;
+    rotation?: number;
+    partId?: string;
+  }[];
   options: SlabOptionsInput;
   variables: Record<string, string>;
   title: string;
@@ -35,8 +45,7 @@ export type BuildTask = {
 };
 
 export type BuildOutcome =
-  | { ok: true; result: Omit<PlateResult, "bodies">; proof?: Proof }
-  | { ok: false; code: string; message: string; details?: unknown };
+  { ok: true; result: Omit<PlateResult, "bodies">; proof?: Proof } | { ok: false; code: string; message: string; details?: unknown };
 
 // Builds and imports are batch work: on Linux a thread's nice value is its own, so each pool thread
 // lowers its own priority and the web process (and the worker's queue loop) keep the CPU they need
@@ -62,10 +71,12 @@ const partCache = newPartCache();
 
 function loadFonts() {
   const dir = path.join(process.cwd(), "fonts");
-  const bytes = Object.fromEntries(Object.entries(ENGRAVING_FONTS).map(([id, f]) => [id, readFileSync(path.join(dir, f.file))])) as Record<EngravingFontId, Buffer>;
+  const bytes = Object.fromEntries(Object.entries(ENGRAVING_FONTS).map(([id, f]) => [id, readFileSync(path.join(dir, f.file))])) as Record<
+    EngravingFontId,
+    Buffer
+  >;
   return parseFontBook(bytes);
 }
-
 
 /** Stand-in pieces for a template's top view: four of the demo hex tiles (our own invented shape). */
 let sample: IndexedMesh | undefined;
@@ -97,8 +108,7 @@ function retire() {
 }
 
 export type PartUploadOutcome =
-  | { ok: true; drafts: PartDraft[]; blobs: string[] }
-  | { ok: false; code: string; message: string; details?: Record<string, unknown> };
+  { ok: true; drafts: PartDraft[]; blobs: string[] } | { ok: false; code: string; message: string; details?: Record<string, unknown> };
 
 /**
  * An uploaded file read into library parts (piscina's `importPart` task): the import runs here,
@@ -114,7 +124,11 @@ export async function importPart(task: PartUploadTask): Promise<PartUploadOutcom
     if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.plain, details: err.details };
     if (err instanceof WebAssembly.RuntimeError || (err instanceof RangeError && /memory/i.test(err.message))) {
       retire();
-      return { ok: false, code: "out_of_memory", message: "The file is too large to check in one go (the geometry kernel ran out of memory); simplify the mesh first." };
+      return {
+        ok: false,
+        code: "out_of_memory",
+        message: "The file is too large to check in one go (the geometry kernel ran out of memory); simplify the mesh first.",
+      };
     }
     throw err;
   } finally {
@@ -128,7 +142,15 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
   const k = await kernel;
   try {
     if (task.sample) {
-      const { bodies: _b, ...result } = buildPlate(k, { parts: samplePieces(), options: task.options, fonts, variables: task.variables, formats: [], cache: partCache, markOutlines: true });
+      const { bodies: _b, ...result } = buildPlate(k, {
+        parts: samplePieces(),
+        options: task.options,
+        fonts,
+        variables: task.variables,
+        formats: [],
+        cache: partCache,
+        markOutlines: true,
+      });
       return { ok: true, result };
     }
     const parts = [];
@@ -143,9 +165,17 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       if (!held) {
         const bytes = p.bytes ?? (await blobStore().get(p.blobKey));
         const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
-        const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), { layFlat: p.layFlat, turnX: p.turned ? 2 : 0, rotateZ: p.rotation ?? 0 });
+        const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), {
+          layFlat: p.layFlat,
+          turnX: p.turned ? 2 : 0,
+          rotateZ: p.rotation ?? 0,
+        });
         const b = bounds(mesh);
-        held = { mesh, shells: imported.bodies.reduce((s, x) => s + x.shells, 0), read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] } };
+        held = {
+          mesh,
+          shells: imported.bodies.reduce((s, x) => s + x.shells, 0),
+          read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] },
+        };
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
         meshCache.set(cacheKey, held);
       }
@@ -156,9 +186,22 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
     }
     if (unitNotes.some((f) => f.severity === "error")) {
       // Refused before building: a plate of wrongly scaled parts is not worth its booleans.
-      return { ok: true, result: { pieces: [], layout: null, findings: unitNotes, estimates: null, stats: { triangles: 0, bodies: 0, timings: {} } } };
+      return {
+        ok: true,
+        result: { pieces: [], layout: null, findings: unitNotes, estimates: null, stats: { triangles: 0, bodies: 0, timings: {} } },
+      };
     }
-    const { bodies: _bodies, ...result } = buildPlate(k, { parts, options: task.options, fonts, variables: task.variables, formats: ["stl", "3mf"], cache: partCache, markOutlines: true, title: task.title, deflateRaw: (d) => deflateRawSync(d, { level: 1 }) });
+    const { bodies: _bodies, ...result } = buildPlate(k, {
+      parts,
+      options: task.options,
+      fonts,
+      variables: task.variables,
+      formats: ["stl", "3mf"],
+      cache: partCache,
+      markOutlines: true,
+      title: task.title,
+      deflateRaw: (d) => deflateRawSync(d, { level: 1 }),
+    });
     if (unitNotes.length) result.findings = [...unitNotes, ...result.findings];
     if (!result.stl || !result.threeMf) return { ok: true, result };
     // The proof reads the files exactly as they will be stored, here in the thread (the worker's main
@@ -172,11 +215,14 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       stl: result.stl,
       threeMf: result.threeMf,
       inflateRaw: (d, size) => inflateRawSync(d, chunk(size)),
-      inflateRawAsync: (d, size) => new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),
+      inflateRawAsync: (d, size) =>
+        new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),
       options,
       pieces: result.pieces.length,
       // The value asked for: the option with the plate's values filled ({date} as the build fills it).
-      qrValue: options.marks.qr ? fillValue(options.marks.qr.value, { date: new Date().toISOString().slice(0, 10), ...task.variables }) : undefined,
+      qrValue: options.marks.qr
+        ? fillValue(options.marks.qr.value, { date: new Date().toISOString().slice(0, 10), ...task.variables })
+        : undefined,
       marks: result.layout?.marks,
       labels: result.pieces.map((p) => ({ number: p.number, bounds: p.bounds })),
       shells: result.pieces.map((p) => shellsOf.get(p.partId) ?? 1),
@@ -186,7 +232,11 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
     if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.message, details: err.details };
     if (err instanceof WebAssembly.RuntimeError || (err instanceof RangeError && /memory/i.test(err.message))) {
       retire();
-      return { ok: false, code: "out_of_memory", message: "The plate is too large to build in one go (the geometry kernel ran out of memory). Split the kit over more plates." };
+      return {
+        ok: false,
+        code: "out_of_memory",
+        message: "The plate is too large to build in one go (the geometry kernel ran out of memory). Split the kit over more plates.",
+      };
     }
     if (err instanceof Error && err.name === "ZodError") return { ok: false, code: "invalid_options", message: err.message };
     throw err;

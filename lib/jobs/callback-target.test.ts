@@ -106,7 +106,12 @@ describe("callback address verdicts (ASVS 4.0 V12.6.1, V5.2.6)", () => {
   });
 
   it("refuses what is not an http(s) URL", async () => {
-    for (const [raw, reason] of [["not a url", "notAUrl"], ["ftp://8.8.8.8/", "scheme"], ["file:///etc/passwd", "scheme"], ["gopher://8.8.8.8/", "scheme"]] as const) {
+    for (const [raw, reason] of [
+      ["not a url", "notAUrl"],
+      ["ftp://8.8.8.8/", "scheme"],
+      ["file:///etc/passwd", "scheme"],
+      ["gopher://8.8.8.8/", "scheme"],
+    ] as const) {
       const r = await resolveCallback(raw, { resolver: fakeResolver({}) });
       expect(r.ok ? "ok" : r.refusal.reason).toBe(reason);
     }
@@ -143,12 +148,20 @@ describe("callback address verdicts (ASVS 4.0 V12.6.1, V5.2.6)", () => {
 
 describe("the allow-list of SLAB_WEBHOOK_ALLOW_HOSTS (ASVS 4.0 V12.6.1)", () => {
   it("is read as lower-case hosts, brackets dropped", () => {
-    expect(allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: " 127.0.0.1, LocalHost ,[::1],", NODE_ENV: "test" })).toEqual(["127.0.0.1", "localhost", "::1"]);
+    expect(allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: " 127.0.0.1, LocalHost ,[::1],", NODE_ENV: "test" })).toEqual([
+      "127.0.0.1",
+      "localhost",
+      "::1",
+    ]);
   });
   it("is ignored in production unless SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION=1", () => {
     expect(allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1", NODE_ENV: "production" })).toEqual([]);
-    expect(allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1", NODE_ENV: "production", SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION: "true" })).toEqual([]);
-    expect(allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1", NODE_ENV: "production", SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION: "1" })).toEqual(["127.0.0.1"]);
+    expect(
+      allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1", NODE_ENV: "production", SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION: "true" }),
+    ).toEqual([]);
+    expect(
+      allowedHosts({ SLAB_WEBHOOK_ALLOW_HOSTS: "127.0.0.1", NODE_ENV: "production", SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION: "1" }),
+    ).toEqual(["127.0.0.1"]);
     expect(allowedHosts({ NODE_ENV: "test" })).toEqual([]);
   });
 });

@@ -69,7 +69,9 @@ function judgeV6(a: ipaddr.IPv6, shown: string): AddressVerdict {
     case "rfc6145": // ::ffff:0:a.b.c.d (RFC 6145)
       return embedded(part(6), part(7), "IPv4-translated form");
     case "rfc6052": // 64:ff9b::a.b.c.d is the well-known NAT64 prefix; 64:ff9b:1::/48 is for local use only
-      return part(2) === 0 && part(3) === 0 && part(4) === 0 && part(5) === 0 ? embedded(part(6), part(7), "NAT64 form") : refuse("localNat64", shown);
+      return part(2) === 0 && part(3) === 0 && part(4) === 0 && part(5) === 0
+        ? embedded(part(6), part(7), "NAT64 form")
+        : refuse("localNat64", shown);
     case "6to4": // 2002:AABB:CCDD::/48 (RFC 3056)
       return embedded(part(1), part(2), "6to4 form");
     case "teredo": {
@@ -105,10 +107,21 @@ let warnedProduction = false;
  * NODE_ENV=production the list is ignored unless SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION=1 says it is
  * meant (e.g. a receiver on the same private network as a self-hosted install).
  */
-export function allowedHosts(env: { SLAB_WEBHOOK_ALLOW_HOSTS?: string; SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION?: string; NODE_ENV?: string } = appEnv()): string[] {
-  const list = (env.SLAB_WEBHOOK_ALLOW_HOSTS ?? "").split(",").map((h) => h.trim().toLowerCase().replace(/^\[|\]$/g, "")).filter(Boolean);
+export function allowedHosts(
+  env: { SLAB_WEBHOOK_ALLOW_HOSTS?: string; SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION?: string; NODE_ENV?: string } = appEnv(),
+): string[] {
+  const list = (env.SLAB_WEBHOOK_ALLOW_HOSTS ?? "")
+    .split(",")
+    .map((h) =>
+      h
+        .trim()
+        .toLowerCase()
+        .replace(/^\[|\]$/g, ""),
+    )
+    .filter(Boolean);
   if (list.length && env.NODE_ENV === "production" && env.SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION !== "1") {
-    if (!warnedProduction) console.warn("[webhook] SLAB_WEBHOOK_ALLOW_HOSTS is ignored in production; set SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION=1 to keep it");
+    if (!warnedProduction)
+      console.warn("[webhook] SLAB_WEBHOOK_ALLOW_HOSTS is ignored in production; set SLAB_WEBHOOK_ALLOW_HOSTS_IN_PRODUCTION=1 to keep it");
     warnedProduction = true;
     return [];
   }
@@ -133,14 +146,20 @@ export type CallbackTarget = {
 export type CallbackRefusal = { code: "invalid_callback"; reason: string; message: string; address?: string };
 export type TargetResult = { ok: true; target: CallbackTarget } | { ok: false; refusal: CallbackRefusal };
 
-const refused = (reason: string, message: string, address?: string): TargetResult => ({ ok: false, refusal: { code: "invalid_callback", reason, message: `callbackUrl: ${message}`, ...(address ? { address } : {}) } });
+const refused = (reason: string, message: string, address?: string): TargetResult => ({
+  ok: false,
+  refusal: { code: "invalid_callback", reason, message: `callbackUrl: ${message}`, ...(address ? { address } : {}) },
+});
 
 /**
  * Check a callback URL and settle the one address it will be called at. WHATWG URL parsing has
  * already turned decimal, hex, octal and short IPv4 spellings (2130706433, 0x7f.1, 127.1) into the
  * dotted quad, and IPv6 into its compressed form, so the address judged is the address connected to.
  */
-export async function resolveCallback(raw: string, opts: { resolver?: Resolver; allowHosts?: readonly string[] } = {}): Promise<TargetResult> {
+export async function resolveCallback(
+  raw: string,
+  opts: { resolver?: Resolver; allowHosts?: readonly string[] } = {},
+): Promise<TargetResult> {
   let url: URL;
   try {
     url = new URL(raw);
@@ -184,7 +203,12 @@ export type PostOutcome = { ok: true; status: number } | { ok: false; status?: n
  * are not followed (a 3xx is a failure), the body of the answer is not read, and the whole attempt
  * is bounded by `timeoutMs`.
  */
-export function postToTarget(target: CallbackTarget, headers: Record<string, string>, body: string, timeoutMs: number): Promise<PostOutcome> {
+export function postToTarget(
+  target: CallbackTarget,
+  headers: Record<string, string>,
+  body: string,
+  timeoutMs: number,
+): Promise<PostOutcome> {
   const lib = target.url.protocol === "https:" ? https : http;
   return new Promise((resolve) => {
     let settled = false;

@@ -36,7 +36,9 @@ export function boss(): Promise<PgBoss> {
 
 /** Queue a plate's build; a higher `priority` (the Farm plan's) is fetched first when workers are busy. */
 export async function enqueueBuild(plateId: string, priority = 0): Promise<string> {
-  const id = await (await boss()).send(BUILD_QUEUE, { plateId }, { retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds(), priority });
+  const id = await (
+    await boss()
+  ).send(BUILD_QUEUE, { plateId }, { retryLimit: 3, retryDelay: 1, expireInSeconds: jobExpirySeconds(), priority });
   if (!id) throw new Error("the queue did not accept the build");
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;
@@ -44,12 +46,13 @@ export async function enqueueBuild(plateId: string, priority = 0): Promise<strin
 
 /** A template version's top view is drawn by a worker too (the app never runs the kernel). */
 export async function enqueueThumbnail(templateVersionId: string): Promise<string> {
-  const id = await (await boss()).send(BUILD_QUEUE, { templateVersionId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
+  const id = await (
+    await boss()
+  ).send(BUILD_QUEUE, { templateVersionId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
   if (!id) throw new Error("the queue did not accept the thumbnail");
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;
 }
-
 
 /**
  * A delivery's schedule: 1 + `retryLimit` attempts, each given `timeoutMs`; pg-boss's backoff waits
@@ -58,7 +61,12 @@ export async function enqueueThumbnail(templateVersionId: string): Promise<strin
  */
 export function callbackRetry(): { retryLimit: number; retryDelay: number; retryBackoff: true; expireInSeconds: number } {
   const timeoutS = Math.ceil(callbackTimeoutMs() / 1000);
-  return { retryLimit: env().SLAB_CALLBACK_RETRY_LIMIT, retryDelay: env().SLAB_CALLBACK_RETRY_DELAY_S, retryBackoff: true, expireInSeconds: Math.max(30, 3 * timeoutS) };
+  return {
+    retryLimit: env().SLAB_CALLBACK_RETRY_LIMIT,
+    retryDelay: env().SLAB_CALLBACK_RETRY_DELAY_S,
+    retryBackoff: true,
+    expireInSeconds: Math.max(30, 3 * timeoutS),
+  };
 }
 
 /** How long one delivery attempt may take (connect, send, status line) before it counts as failed. */
@@ -76,7 +84,9 @@ export async function enqueueCallback(workspaceId: string, url: string, event: R
 
 /** An uploaded part file is imported by a worker too (the web process never parses a mesh). */
 export async function enqueuePartUpload(partUploadId: string): Promise<string> {
-  const id = await (await boss()).send(BUILD_QUEUE, { partUploadId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
+  const id = await (
+    await boss()
+  ).send(BUILD_QUEUE, { partUploadId }, { retryLimit: 2, retryDelay: 1, expireInSeconds: jobExpirySeconds() });
   if (!id) throw new Error("the queue did not accept the upload");
   await pool().query(`select pg_notify('${JOB_CHANNEL}', $1)`, [id]);
   return id;

@@ -30,18 +30,32 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
   };
   const outcome = (await pool.run(task)) as BuildOutcome;
   if (!outcome.ok) {
-    await finish(plate, { jobState: "failed", status: "failed", error: { code: outcome.code, message: outcome.message, details: outcome.details } });
+    await finish(plate, {
+      jobState: "failed",
+      status: "failed",
+      error: { code: outcome.code, message: outcome.message, details: outcome.details },
+    });
     return;
   }
   const r = outcome.result;
   if (errorFindings(r.findings).length || !r.stl || !r.threeMf) {
-    await finish(plate, { jobState: "failed", status: "failed", findings: r.findings, error: { code: "findings", message: "The plate has findings of severity error.", details: errorFindings(r.findings) } });
+    await finish(plate, {
+      jobState: "failed",
+      status: "failed",
+      findings: r.findings,
+      error: { code: "findings", message: "The plate has findings of severity error.", details: errorFindings(r.findings) },
+    });
     return;
   }
   // Every stored plate carries its proof; a plate whose files fail it is never ready.
   const proof = outcome.proof;
   if (!proof) {
-    await finish(plate, { jobState: "failed", status: "failed", findings: r.findings, error: { code: "proof_failed", message: "The plate's files were not proven (no proof came back from the build)." } });
+    await finish(plate, {
+      jobState: "failed",
+      status: "failed",
+      findings: r.findings,
+      error: { code: "proof_failed", message: "The plate's files were not proven (no proof came back from the build)." },
+    });
     return;
   }
   if (!proof.ok) {
@@ -51,23 +65,36 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
       status: "failed",
       findings: r.findings,
       proof,
-      error: { code: "proof_failed", message: `The plate's files failed their proof (${failed?.rule ?? proof.failed}): ${failed?.message ?? proof.summary}`, details: { rule: proof.failed, figure: failed?.figure ?? null, summary: proof.summary } },
+      error: {
+        code: "proof_failed",
+        message: `The plate's files failed their proof (${failed?.rule ?? proof.failed}): ${failed?.message ?? proof.summary}`,
+        details: { rule: proof.failed, figure: failed?.figure ?? null, summary: proof.summary },
+      },
     });
     return;
   }
   await setBuildProgress(actor, plateId, 0.9);
-  const written: [ExportFormatId, Uint8Array][] = [["stl", r.stl], ["3mf", r.threeMf]];
-  const files = await Promise.all(written.map(async ([format, bytes]) => ({ format, ...(await blobStore().put(bytes)), bytes: bytes.byteLength })));
-  await finish(plate, {
-    jobState: "done",
-    status: "ready",
-    floorState: "to_print",
-    findings: r.findings,
-    estimates: r.estimates as unknown as Record<string, unknown>,
-    stats: { ...r.stats, layout: r.layout, pieces: r.pieces } as unknown as Record<string, unknown>,
-    pieceCount: r.pieces.length,
-    proof,
-  }, files.map((f) => ({ format: f.format, blobKey: f.key, bytes: f.bytes, sha256: f.key })));
+  const written: [ExportFormatId, Uint8Array][] = [
+    ["stl", r.stl],
+    ["3mf", r.threeMf],
+  ];
+  const files = await Promise.all(
+    written.map(async ([format, bytes]) => ({ format, ...(await blobStore().put(bytes)), bytes: bytes.byteLength })),
+  );
+  await finish(
+    plate,
+    {
+      jobState: "done",
+      status: "ready",
+      floorState: "to_print",
+      findings: r.findings,
+      estimates: r.estimates as unknown as Record<string, unknown>,
+      stats: { ...r.stats, layout: r.layout, pieces: r.pieces } as unknown as Record<string, unknown>,
+      pieceCount: r.pieces.length,
+      proof,
+    },
+    files.map((f) => ({ format: f.format, blobKey: f.key, bytes: f.bytes, sha256: f.key })),
+  );
 }
 
 async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>, files?: Parameters<typeof finishBuild>[4]) {
@@ -82,6 +109,8 @@ async function finish(plate: Plate, set: Partial<typeof plates.$inferInsert>, fi
       at: finishedAt.toISOString(),
     };
     // The plate is stored and final: a queue hiccup loses the event (logged), not the build.
-    await enqueueCallback(plate.workspaceId, plate.callbackUrl, event).catch((err: unknown) => console.error(`[worker] callback for plate ${plate.id} not queued`, err));
+    await enqueueCallback(plate.workspaceId, plate.callbackUrl, event).catch((err: unknown) =>
+      console.error(`[worker] callback for plate ${plate.id} not queued`, err),
+    );
   }
 }

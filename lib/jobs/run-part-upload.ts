@@ -29,7 +29,13 @@ export async function runPartUploadJob(pool: Piscina, uploadId: string): Promise
   const u = await uploadForImport(uploadId);
   if (!u || u.state !== "checking") return; // finished by an earlier delivery of this job
   const actor = systemActor(u.workspaceId);
-  const task: PartUploadTask = { blobKey: u.blobKey, fileName: u.fileName, split: u.options.split, unit: u.options.unit as Unit | undefined, layFlat: u.options.layFlat };
+  const task: PartUploadTask = {
+    blobKey: u.blobKey,
+    fileName: u.fileName,
+    split: u.options.split,
+    unit: u.options.unit as Unit | undefined,
+    layFlat: u.options.layFlat,
+  };
   const outcome = (await pool.run(task, { name: "importPart" })) as PartUploadOutcome;
   if (!outcome.ok) return refuse(u, outcome.code, outcome.message, outcome.details);
   try {

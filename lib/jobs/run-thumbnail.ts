@@ -11,12 +11,25 @@ import type { BuildOutcome, BuildTask } from "./build-thread";
 export async function runThumbnailJob(pool: Piscina, versionId: string): Promise<void> {
   const v = await versionForThumbnail(versionId);
   if (!v || v.thumbnailState === "done") return;
-  const task: BuildTask = { parts: [], options: v.options, variables: sampleValues(v.variables as TemplateVariableDef[], "Sample kit", v.createdAt.toISOString().slice(0, 10)), title: "template", sample: true };
+  const task: BuildTask = {
+    parts: [],
+    options: v.options,
+    variables: sampleValues(v.variables as TemplateVariableDef[], "Sample kit", v.createdAt.toISOString().slice(0, 10)),
+    title: "template",
+    sample: true,
+  };
   const outcome = (await pool.run(task)) as BuildOutcome;
   if (!outcome.ok) {
-    await setThumbnail(versionId, { thumbnailState: "failed", findings: [{ severity: "error", code: outcome.code, message: outcome.message }] });
+    await setThumbnail(versionId, {
+      thumbnailState: "failed",
+      findings: [{ severity: "error", code: outcome.code, message: outcome.message }],
+    });
     return;
   }
   const r = outcome.result;
-  await setThumbnail(versionId, { thumbnailState: r.layout ? "done" : "failed", thumbnailSvg: r.layout ? slabTopSvg(r.layout, r.pieces) : null, findings: r.findings });
+  await setThumbnail(versionId, {
+    thumbnailState: r.layout ? "done" : "failed",
+    thumbnailSvg: r.layout ? slabTopSvg(r.layout, r.pieces) : null,
+    findings: r.findings,
+  });
 }

@@ -33,7 +33,10 @@ export async function callbackProblem(raw: string, resolver?: Resolver): Promise
 
 export type CallbackJob = { workspaceId: string; url: string; body: string };
 
-export type DeliveryOutcome = { delivered: true; status: number } | { delivered: false; refused: CallbackRefusal } | { delivered: false; error: string; status?: number };
+export type DeliveryOutcome =
+  | { delivered: true; status: number }
+  | { delivered: false; refused: CallbackRefusal }
+  | { delivered: false; error: string; status?: number };
 
 /**
  * One delivery attempt: resolve the host once, check every address, connect to the checked one, sign
@@ -43,6 +46,11 @@ export async function deliverOnce(job: CallbackJob, opts: { timeoutMs: number; r
   const r = await resolveCallback(job.url, { resolver: opts.resolver, allowHosts: allowedHosts() });
   if (!r.ok) return { delivered: false, refused: r.refusal };
   const secret = await webhookSecret(systemActor(job.workspaceId));
-  const out: PostOutcome = await postToTarget(r.target, { "content-type": "application/json", [SIGNATURE_HEADER]: sign(secret, job.body) }, job.body, opts.timeoutMs);
+  const out: PostOutcome = await postToTarget(
+    r.target,
+    { "content-type": "application/json", [SIGNATURE_HEADER]: sign(secret, job.body) },
+    job.body,
+    opts.timeoutMs,
+  );
   return out.ok ? { delivered: true, status: out.status } : { delivered: false, error: out.error, status: out.status };
 }

@@ -12,7 +12,8 @@ type KitData = z.output<typeof kitSchema>;
 export async function saveKit(actor: WorkspaceActor, data: KitData): Promise<string> {
   return transaction(async (tx) => {
     const ids = [...new Set(data.lines.map((l) => l.partId))];
-    if ((await countWorkspaceParts(tx, actor, ids)) !== ids.length) throw new Invalid("unknown_part", "One of the chosen parts no longer exists.", undefined, "lines");
+    if ((await countWorkspaceParts(tx, actor, ids)) !== ids.length)
+      throw new Invalid("unknown_part", "One of the chosen parts no longer exists.", undefined, "lines");
     const values = { name: data.name, description: data.description || null };
     let kitId = data.id;
     if (kitId) {

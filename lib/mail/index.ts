@@ -31,7 +31,11 @@ function transporter(): Transporter {
 }
 
 export async function sendMail({ workspaceId, ...message }: Message): Promise<void> {
-  await transporter().sendMail({ from: env().MAIL_FROM, ...message, headers: workspaceId ? { [WORKSPACE_HEADER]: workspaceId } : undefined });
+  await transporter().sendMail({
+    from: env().MAIL_FROM,
+    ...message,
+    headers: workspaceId ? { [WORKSPACE_HEADER]: workspaceId } : undefined,
+  });
 }
 
 export function appUrl(path: string): string {
@@ -51,6 +55,8 @@ export function linksMessage(to: string, subject: string, lead: string, links: {
     to,
     subject,
     text: `${lead}\n\n${links.map((l) => `${l.action}: ${l.url}`).join("\n")}\n\n${foot}\n\n— Slabwright`,
-    html: `<p>${esc(lead)}</p>${links.map((l) => `<p><a href="${esc(l.url)}">${esc(l.action)}</a></p>`).join("")}<p style="color:#5c6370">${esc(foot)}</p><p>— Slabwright</p>`,
+    html:
+      `<p>${esc(lead)}</p>${links.map((l) => `<p><a href="${esc(l.url)}">${esc(l.action)}</a></p>`).join("")}<p ` +
+      `style="color:#5c6370">${esc(foot)}</p><p>— Slabwright</p>`,
   };
 }

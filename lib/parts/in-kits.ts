@@ -11,5 +11,8 @@ export async function inKitsRefusal(actor: WorkspaceActor, ids: string[], verb: 
   const using = await kitsUsingParts(actor, ids, opts);
   if (!using.length) return null;
   const names = using.map((name) => `“${name}”`).join(", ");
-  return `This part is used by ${using.length === 1 ? "the kit" : "the kits"} ${names}; take it out of ${using.length === 1 ? "that kit" : "those kits"} before you ${verb} it.`;
+  return (
+    `This part is used by ${using.length === 1 ? "the kit" : "the kits"} ${names}; take it out of ` +
+    `${using.length === 1 ? "that kit" : "those kits"} before you ${verb} it.`
+  );
 }

@@ -21,7 +21,14 @@ export type UploadView = {
   error?: { code: string; message: string; details?: Record<string, unknown> };
 };
 
-const storedPart = (p: Part): StoredPart => ({ id: p.id, name: p.name, triangles: p.triangles, bodies: p.bodies, warnings: p.warnings, repairs: p.repairs });
+const storedPart = (p: Part): StoredPart => ({
+  id: p.id,
+  name: p.name,
+  triangles: p.triangles,
+  bodies: p.bodies,
+  warnings: p.warnings,
+  repairs: p.repairs,
+});
 
 /** What the library (and its upload list) is told about an upload: its state, then its parts or the refusal. */
 export async function uploadView(actor: WorkspaceActor, u: PartUpload): Promise<UploadView> {
@@ -39,8 +46,19 @@ export async function uploadView(actor: WorkspaceActor, u: PartUpload): Promise<
  * Accept a stored upload: record it as `checking` and queue its import for a build worker. The bytes
  * are already in the blob store (content-addressed, so a retry reuses them).
  */
-export async function queueUpload(caller: Caller, stored: StoredBlob, fileName: string, opts: { split?: boolean; unit?: Unit; layFlat?: boolean } = {}): Promise<PartUpload> {
-  const row = await insertUpload(caller, { fileName: fileName.slice(0, 200), blobKey: stored.key, byteSize: stored.size, options: { split: Boolean(opts.split), unit: opts.unit, layFlat: Boolean(opts.layFlat) }, uploadedBy: caller.user.id });
+export async function queueUpload(
+  caller: Caller,
+  stored: StoredBlob,
+  fileName: string,
+  opts: { split?: boolean; unit?: Unit; layFlat?: boolean } = {},
+): Promise<PartUpload> {
+  const row = await insertUpload(caller, {
+    fileName: fileName.slice(0, 200),
+    blobKey: stored.key,
+    byteSize: stored.size,
+    options: { split: Boolean(opts.split), unit: opts.unit, layFlat: Boolean(opts.layFlat) },
+    uploadedBy: caller.user.id,
+  });
   try {
     await enqueuePartUpload(row.id);
   } catch (err) {
@@ -63,7 +81,13 @@ const EXT: Record<Part["format"], string> = { stl: "stl", "3mf": "3mf", obj: "ob
 
 /** Queue a stored part to be read again by a build worker: in another unit, laid flat, or split into its bodies. */
 async function queueRework(caller: Caller, part: Part, options: { split?: boolean; unit?: Unit; layFlat?: boolean }): Promise<PartUpload> {
-  const row = await insertUpload(caller, { fileName: `${part.name}.${EXT[part.format]}`, blobKey: part.blobKey, byteSize: part.byteSize, options: { ...options, replaces: part.id }, uploadedBy: caller.user.id });
+  const row = await insertUpload(caller, {
+    fileName: `${part.name}.${EXT[part.format]}`,
+    blobKey: part.blobKey,
+    byteSize: part.byteSize,
+    options: { ...options, replaces: part.id },
+    uploadedBy: caller.user.id,
+  });
   try {
     await enqueuePartUpload(row.id);
   } catch (err) {
@@ -77,7 +101,11 @@ async function queueRework(caller: Caller, part: Part, options: { split?: boolea
  * Rename (at once), or read in another unit (inch → mm) or lay flat: those re-read the mesh, which
  * the web process never does, so they are queued for a build worker and `upload` follows them.
  */
-export async function updatePart(caller: Caller, id: string, change: { name?: string; unit?: Unit; layFlat?: boolean }): Promise<{ part: Part; upload?: PartUpload }> {
+export async function updatePart(
+  caller: Caller,
+  id: string,
+  change: { name?: string; unit?: Unit; layFlat?: boolean },
+): Promise<{ part: Part; upload?: PartUpload }> {
   let part = await getPart(caller, id);
   if (!part) throw new NotFound("not_found", "No such part.");
   if (change.name !== undefined && change.name !== part.name) {

@@ -49,10 +49,18 @@ export type PartDraft = {
  * per body (each stored as its own STL, already in millimetres). Import errors are thrown as
  * MeshImportError for the caller to record. `blobs` lists blobs this call created.
  */
-export async function draftParts(kernel: Kernel, bytes: Uint8Array, task: PartUploadTask, put: (bytes: Uint8Array) => Promise<{ key: string; created: boolean }>): Promise<{ drafts: PartDraft[]; blobs: string[] }> {
+export async function draftParts(
+  kernel: Kernel,
+  bytes: Uint8Array,
+  task: PartUploadTask,
+  put: (bytes: Uint8Array) => Promise<{ key: string; created: boolean }>,
+): Promise<{ drafts: PartDraft[]; blobs: string[] }> {
   const result = importMesh(bytes, kernel, { fileName: task.fileName, unit: task.unit });
   const layFlat = Boolean(task.layFlat);
-  const groups = task.split && result.bodies.length > 1 ? result.bodies.map((b) => ({ name: b.name, meshes: [b.mesh], own: true })) : [{ name: stem(task.fileName) || "part", meshes: result.bodies.map((b) => b.mesh), own: false }];
+  const groups =
+    task.split && result.bodies.length > 1
+      ? result.bodies.map((b) => ({ name: b.name, meshes: [b.mesh], own: true }))
+      : [{ name: stem(task.fileName) || "part", meshes: result.bodies.map((b) => b.mesh), own: false }];
   const drafts: PartDraft[] = [];
   const blobs: string[] = [];
   for (const g of groups) {

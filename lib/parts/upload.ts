@@ -10,7 +10,8 @@ export function maxUploadBytes(): number {
   return env().SLAB_MAX_UPLOAD_BYTES;
 }
 
-export const tooLarge = (max: number, what = "The file") => new TooLarge("file_too_large", `${what} is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });
+export const tooLarge = (max: number, what = "The file") =>
+  new TooLarge("file_too_large", `${what} is larger than the ${(max / 1024 / 1024).toFixed(0)} MB limit for one upload.`, { limit: max });
 
 /** How many of a stream's first bytes are kept to tell its format (sniffHead). */
 export const HEAD_BYTES = 4096;
@@ -83,5 +84,9 @@ export function plainRefusal(upload: StoredUpload, fileName: string): Invalid | 
   if (upload.size === 0) return new Invalid("empty", "the file is empty", details);
   if (sniffHead(upload.head, upload.size)) return null;
   if (upload.size >= 84 && /\.stl$/i.test(fileName)) return null;
-  return new UnsupportedMedia("not_a_mesh", `this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.`, details);
+  return new UnsupportedMedia(
+    "not_a_mesh",
+    `this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.`,
+    details,
+  );
 }

@@ -54,7 +54,8 @@ export async function createPlate(actor: WorkspaceActor, spec: NewPlate, how: Cr
       reprintOf: how.reprintOf ?? null,
       createdBy: how.createdBy !== undefined ? how.createdBy : actor.userId,
     });
-    if (idem && !(await claimIdempotencyKey(tx, actor, idem.key, idem.requestHash, row.id))) return null; // another request with this key won the race
+    // another request with this key won the race
+    if (idem && !(await claimIdempotencyKey(tx, actor, idem.key, idem.requestHash, row.id))) return null;
     return row;
   });
   if (!plate) {
@@ -74,14 +75,24 @@ export async function createPlate(actor: WorkspaceActor, spec: NewPlate, how: Cr
 async function priorPlate(actor: WorkspaceActor, key: string, requestHash: string): Promise<Plate | null> {
   const row = await plateForIdempotencyKey(actor, key);
   if (!row) return null;
-  if (row.requestHash !== requestHash) throw new Conflict("idempotency_conflict", "This Idempotency-Key was used with a different request in the last 24 hours.");
+  if (row.requestHash !== requestHash)
+    throw new Conflict("idempotency_conflict", "This Idempotency-Key was used with a different request in the last 24 hours.");
   return row.plate;
 }
 
 /** A plate's own record as the spec of a new one (make again, reprint). */
 export function specOf(p: Plate): NewPlate {
   if (!p.input) throw new Conflict("not_remakeable", "This plate has no stored inputs to make it from.");
-  return { kitId: p.kitId, templateVersionId: p.templateVersionId, options: p.options as Record<string, unknown>, variables: p.variables as Record<string, string>, input: p.input, title: p.title, pieceCount: p.pieceCount, callbackUrl: null };
+  return {
+    kitId: p.kitId,
+    templateVersionId: p.templateVersionId,
+    options: p.options as Record<string, unknown>,
+    variables: p.variables as Record<string, string>,
+    input: p.input,
+    title: p.title,
+    pieceCount: p.pieceCount,
+    callbackUrl: null,
+  };
 }
 
 /**

@@ -49,12 +49,23 @@ export type PlateRequest = {
  */
 export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrder): Promise<PlateRequest> {
   const version = order.template ? await versionForPlate(actor.workspaceId, order.template.id, order.template.version) : null;
-  const storedOptions = version ? mergeOptions(version.options as SlabOptionsInput, order.options as SlabOptionsInput) : (order.options as SlabOptionsInput);
+  const storedOptions = version
+    ? mergeOptions(version.options as SlabOptionsInput, order.options as SlabOptionsInput)
+    : (order.options as SlabOptionsInput);
   const parsed = slabOptionsSchema.safeParse(storedOptions);
-  if (!parsed.success) throw new Invalid("invalid_options", version ? "options over the template do not match the slab builder's options." : "options do not match the slab builder's options.", parsed.error.issues);
+  if (!parsed.success)
+    throw new Invalid(
+      "invalid_options",
+      version ? "options over the template do not match the slab builder's options." : "options do not match the slab builder's options.",
+      parsed.error.issues,
+    );
   if (order.callbackUrl) {
     const problem = await callbackProblem(order.callbackUrl);
-    if (problem) throw new Invalid(problem.code, problem.message, { reason: problem.reason, ...(problem.address ? { address: problem.address } : {}) });
+    if (problem)
+      throw new Invalid(problem.code, problem.message, {
+        reason: problem.reason,
+        ...(problem.address ? { address: problem.address } : {}),
+      });
   }
 
   const input: PlateInput = { parts: [] };
@@ -77,16 +88,27 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
     for (const [i, f] of (order.files ?? []).entries()) {
       if (f.size === 0) throw new Invalid("empty", `${f.name}: the file is empty.`);
       if (!sniffHead(f.head, f.size) && !(f.size >= 84 && /\.stl$/i.test(f.name))) {
-        throw new UnsupportedMedia("not_a_mesh", `${f.name}: this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.`);
+        throw new UnsupportedMedia(
+          "not_a_mesh",
+          `${f.name}: this is not a mesh file we recognise. Slabwright reads ${ACCEPTED_FORMATS.join(", ")}.`,
+        );
       }
-      input.parts.push({ name: f.name || `part-${i + 1}.stl`, blobKey: f.key, quantity: f.quantity, ...(f.unit ? { unit: API_UNITS[f.unit] } : {}) });
+      input.parts.push({
+        name: f.name || `part-${i + 1}.stl`,
+        blobKey: f.key,
+        quantity: f.quantity,
+        ...(f.unit ? { unit: API_UNITS[f.unit] } : {}),
+      });
     }
   }
   const today = new Date().toISOString().slice(0, 10);
   let variables: Record<string, string>;
   if (version) {
     try {
-      variables = resolveValues(version.variables as TemplateVariableDef[], order.variables, { date: today, kit: order.kitId ? title : undefined });
+      variables = resolveValues(version.variables as TemplateVariableDef[], order.variables, {
+        date: today,
+        kit: order.kitId ? title : undefined,
+      });
     } catch (err) {
       if (err instanceof TemplateValueError) throw new Invalid(err.code, err.message, { variables: err.names });
       throw err;
@@ -95,7 +117,12 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
   } else {
     variables = { date: today, ...(order.kitId ? { kit: title } : {}), ...order.variables };
   }
-  const sent = { options: order.options, template: order.template?.id ?? null, templateVersion: order.template?.version ?? null, variables: order.variables };
+  const sent = {
+    options: order.options,
+    template: order.template?.id ?? null,
+    templateVersion: order.template?.version ?? null,
+    variables: order.variables,
+  };
   return {
     spec: {
       kitId: input.kitId ?? null,
@@ -109,6 +136,8 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
     },
     options: parsed.data,
     format: order.format,
-    requestHash: createHash("sha256").update(JSON.stringify({ input, request: sent, callbackUrl: order.callbackUrl ?? null })).digest("hex"),
+    requestHash: createHash("sha256")
+      .update(JSON.stringify({ input, request: sent, callbackUrl: order.callbackUrl ?? null }))
+      .digest("hex"),
   };
 }

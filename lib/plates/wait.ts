@@ -48,4 +48,3 @@ export async function waitForPlate(actor: WorkspaceActor, id: string, ms: number
     });
   }
 }
-

@@ -15,7 +15,14 @@ const options: SlabOptionsInput = { marks: { text: [{ value: "ORDER {order}" }],
 let r: PlateResult;
 beforeAll(async () => {
   const { kernel, fonts } = await engine();
-  r = buildPlate(kernel, { parts: [{ id: "tile", name: "Harbour tile", mesh: orientMesh(hexTile()), quantity: 3 }], options, fonts, formats: ["stl", "3mf"], variables: { order: "10482" }, deflateRaw: zlibDeflate });
+  r = buildPlate(kernel, {
+    parts: [{ id: "tile", name: "Harbour tile", mesh: orientMesh(hexTile()), quantity: 3 }],
+    options,
+    fonts,
+    formats: ["stl", "3mf"],
+    variables: { order: "10482" },
+    deflateRaw: zlibDeflate,
+  });
 });
 const chunk = (size?: number) => (size ? { chunkSize: Math.max(64, size + 1) } : {});
 function input(threeMf = r.threeMf!): ProofInput {

@@ -5,9 +5,13 @@ import type { MultiPolygon, Ring } from "polygon-clipping";
 export type Box2 = { minX: number; minY: number; maxX: number; maxY: number };
 
 export function boxOf(xy: ArrayLike<number>): Box2 {
-  let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+  let minX = Infinity,
+    minY = Infinity,
+    maxX = -Infinity,
+    maxY = -Infinity;
   for (let i = 0; i < xy.length; i += 2) {
-    const x = xy[i]!, y = xy[i + 1]!;
+    const x = xy[i]!,
+      y = xy[i + 1]!;
     if (x < minX) minX = x;
     if (x > maxX) maxX = x;
     if (y < minY) minY = y;
@@ -16,7 +20,8 @@ export function boxOf(xy: ArrayLike<number>): Box2 {
   return { minX, minY, maxX, maxY };
 }
 
-export const boxesOverlap = (a: Box2, b: Box2, eps = 0) => a.minX < b.maxX - eps && b.minX < a.maxX - eps && a.minY < b.maxY - eps && b.minY < a.maxY - eps;
+export const boxesOverlap = (a: Box2, b: Box2, eps = 0) =>
+  a.minX < b.maxX - eps && b.minX < a.maxX - eps && a.minY < b.maxY - eps && b.minY < a.maxY - eps;
 
 /**
  * Do two convex polygons (flat x, y lists, either winding) overlap by more than `eps` (mm)?
@@ -31,12 +36,16 @@ function separatedOnEdgesOf(p: ArrayLike<number>, a: ArrayLike<number>, b: Array
   const n = p.length;
   for (let i = 0; i < n; i += 2) {
     const j = (i + 2) % n;
-    let nx = -(p[j + 1]! - p[i + 1]!), ny = p[j]! - p[i]!;
+    let nx = -(p[j + 1]! - p[i + 1]!),
+      ny = p[j]! - p[i]!;
     const len = Math.hypot(nx, ny);
     if (len < 1e-12) continue;
     nx /= len;
     ny /= len;
-    let aMin = Infinity, aMax = -Infinity, bMin = Infinity, bMax = -Infinity;
+    let aMin = Infinity,
+      aMax = -Infinity,
+      bMin = Infinity,
+      bMax = -Infinity;
     for (let k = 0; k < a.length; k += 2) {
       const d = a[k]! * nx + a[k + 1]! * ny;
       if (d < aMin) aMin = d;
@@ -65,11 +74,13 @@ export class ConvexShape {
     const axes: number[] = [];
     // The extremes on successive edge normals turn with the edges: each is walked on from the last
     // (rotating calipers), so the whole table costs O(n), not O(n²).
-    let lo = -1, hi = -1;
+    let lo = -1,
+      hi = -1;
     const proj = (k: number, nx: number, ny: number) => xy[k]! * nx + xy[k + 1]! * ny;
     for (let i = 0; i < n; i += 2) {
       const j = (i + 2) % n;
-      let nx = -(xy[j + 1]! - xy[i + 1]!), ny = xy[j]! - xy[i]!;
+      let nx = -(xy[j + 1]! - xy[i + 1]!),
+        ny = xy[j]! - xy[i]!;
       const len = Math.hypot(nx, ny);
       if (len < 1e-12) continue;
       nx /= len;
@@ -93,8 +104,10 @@ export class ConvexShape {
     if (separatedOnEdgesOf(poly, poly, this.xy, eps)) return false;
     const ax = this.axes;
     for (let i = 0; i < ax.length; i += 4) {
-      const nx = ax[i]!, ny = ax[i + 1]!;
-      let aMin = Infinity, aMax = -Infinity;
+      const nx = ax[i]!,
+        ny = ax[i + 1]!;
+      let aMin = Infinity,
+        aMax = -Infinity;
       for (let k = 0; k < poly.length; k += 2) {
         const d = poly[k]! * nx + poly[k + 1]! * ny;
         if (d < aMin) aMin = d;
@@ -114,24 +127,64 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
   const n = xy.length / 2;
   if (n === 0) return new Float64Array(0);
   // The eight extremes: min/max of x, y, x + y, x − y (the first point reaching each).
-  let e0 = 0, e1 = 0, e2 = 0, e3 = 0, e4 = 0, e5 = 0, e6 = 0, e7 = 0;
-  let b0 = -Infinity, b1 = -Infinity, b2 = -Infinity, b3 = -Infinity, b4 = -Infinity, b5 = -Infinity, b6 = -Infinity, b7 = -Infinity;
+  let e0 = 0,
+    e1 = 0,
+    e2 = 0,
+    e3 = 0,
+    e4 = 0,
+    e5 = 0,
+    e6 = 0,
+    e7 = 0;
+  let b0 = -Infinity,
+    b1 = -Infinity,
+    b2 = -Infinity,
+    b3 = -Infinity,
+    b4 = -Infinity,
+    b5 = -Infinity,
+    b6 = -Infinity,
+    b7 = -Infinity;
   for (let i = 0; i < n; i++) {
-    const x = xy[2 * i]!, y = xy[2 * i + 1]!;
-    if (-x > b0) (b0 = -x), (e0 = i);
-    if (x > b1) (b1 = x), (e1 = i);
-    if (-y > b2) (b2 = -y), (e2 = i);
-    if (y > b3) (b3 = y), (e3 = i);
-    if (x + y > b4) (b4 = x + y), (e4 = i);
-    if (-x - y > b5) (b5 = -x - y), (e5 = i);
-    if (x - y > b6) (b6 = x - y), (e6 = i);
-    if (y - x > b7) (b7 = y - x), (e7 = i);
+    const x = xy[2 * i]!,
+      y = xy[2 * i + 1]!;
+    if (-x > b0) {
+      b0 = -x;
+      e0 = i;
+    }
+    if (x > b1) {
+      b1 = x;
+      e1 = i;
+    }
+    if (-y > b2) {
+      b2 = -y;
+      e2 = i;
+    }
+    if (y > b3) {
+      b3 = y;
+      e3 = i;
+    }
+    if (x + y > b4) {
+      b4 = x + y;
+      e4 = i;
+    }
+    if (-x - y > b5) {
+      b5 = -x - y;
+      e5 = i;
+    }
+    if (x - y > b6) {
+      b6 = x - y;
+      e6 = i;
+    }
+    if (y - x > b7) {
+      b7 = y - x;
+      e7 = i;
+    }
   }
   // Octagon in counter-clockwise order: left, bottom-left, bottom, bottom-right, right, top-right, top, top-left.
   const ring = [e0, e5, e2, e6, e1, e4, e3, e7];
   const oct: number[] = [];
   for (const i of ring) {
-    const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+    const x = xy[2 * i]!,
+      y = xy[2 * i + 1]!;
     const l = oct.length;
     if (l >= 2 && oct[l - 2] === x && oct[l - 1] === y) continue;
     oct.push(x, y);
@@ -149,7 +202,8 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
   const kept = new Uint32Array(n);
   let nk = 0;
   for (let i = 0; i < n; i++) {
-    const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+    const x = xy[2 * i]!,
+      y = xy[2 * i + 1]!;
     let inside = m >= 6;
     for (let k = 0; inside && k < 2 * m; k += 4) {
       if (edge[k + 2]! * (y - edge[k + 1]!) - edge[k + 3]! * (x - edge[k]!) <= 0) inside = false;
@@ -158,12 +212,14 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
   }
   const keep = kept.subarray(0, nk).sort((i, j) => xy[2 * i]! - xy[2 * j]! || xy[2 * i + 1]! - xy[2 * j + 1]!);
   // Monotone chain: the lower hull left to right, then the upper right to left.
-  const hx = new Float64Array(2 * nk + 2), hy = new Float64Array(2 * nk + 2);
+  const hx = new Float64Array(2 * nk + 2),
+    hy = new Float64Array(2 * nk + 2);
   let h = 0;
   const chain = (from: number, to: number, step: number, floor: number) => {
     for (let k = from; k !== to; k += step) {
       const i = keep[k]!;
-      const x = xy[2 * i]!, y = xy[2 * i + 1]!;
+      const x = xy[2 * i]!,
+        y = xy[2 * i + 1]!;
       while (h >= floor + 2 && (hx[h - 1]! - hx[h - 2]!) * (y - hy[h - 2]!) - (hy[h - 1]! - hy[h - 2]!) * (x - hx[h - 2]!) <= 0) h--;
       hx[h] = x;
       hy[h] = y;
@@ -174,7 +230,10 @@ export function convexHull(xy: ArrayLike<number>): Float64Array {
   if (nk > 1) chain(nk - 2, -1, -1, h - 1);
   h--;
   const out = new Float64Array(2 * Math.max(0, h));
-  for (let k = 0; k < h; k++) (out[2 * k] = hx[k]!), (out[2 * k + 1] = hy[k]!);
+  for (let k = 0; k < h; k++) {
+    out[2 * k] = hx[k]!;
+    out[2 * k + 1] = hy[k]!;
+  }
   return out;
 }
 
@@ -183,11 +242,14 @@ export function halfPlanes(r: Ring): Float64Array {
   const ccw = ringArea(r) > 0 ? 1 : -1;
   const out: number[] = [];
   for (let i = 0; i < r.length; i++) {
-    const a = r[i]!, b = r[(i + 1) % r.length]!;
-    const ex = b[0] - a[0], ey = b[1] - a[1];
+    const a = r[i]!,
+      b = r[(i + 1) % r.length]!;
+    const ex = b[0] - a[0],
+      ey = b[1] - a[1];
     const len = Math.hypot(ex, ey);
     if (len < 1e-12) continue;
-    const nx = (ccw * ey) / len, ny = (-ccw * ex) / len;
+    const nx = (ccw * ey) / len,
+      ny = (-ccw * ex) / len;
     out.push(nx, ny, nx * a[0] + ny * a[1]);
   }
   return Float64Array.from(out);
@@ -197,7 +259,8 @@ export function halfPlanes(r: Ring): Float64Array {
 export function outsideBy(planes: Float64Array, xy: ArrayLike<number>): number {
   let worst = -Infinity;
   for (let k = 0; k < xy.length; k += 2) {
-    const x = xy[k]!, y = xy[k + 1]!;
+    const x = xy[k]!,
+      y = xy[k + 1]!;
     for (let p = 0; p < planes.length; p += 3) {
       const d = planes[p]! * x + planes[p + 1]! * y - planes[p + 2]!;
       if (d > worst) worst = d;
@@ -233,7 +296,8 @@ export class TriGrid {
   }
   private build() {
     const n = this.tri.length / 6;
-    const w = this.box.maxX - this.box.minX || 1, h = this.box.maxY - this.box.minY || 1;
+    const w = this.box.maxX - this.box.minX || 1,
+      h = this.box.maxY - this.box.minY || 1;
     let cell = Math.max(Math.sqrt((w * h) / Math.max(1, n)) * 2, 1e-3);
     const cols = Math.min(4096, Math.ceil(w / cell) + 1);
     const rows = Math.min(4096, Math.ceil(h / cell) + 1);
@@ -303,10 +367,13 @@ export class TriGrid {
  */
 export function withinPlanes(planes: Float64Array, xy: ArrayLike<number>, tol: number): boolean {
   const b = boxOf(xy);
-  const cx = (b.minX + b.maxX) / 2, cy = (b.minY + b.maxY) / 2;
+  const cx = (b.minX + b.maxX) / 2,
+    cy = (b.minY + b.maxY) / 2;
   const r = Math.hypot(b.maxX - b.minX, b.maxY - b.minY) / 2;
   for (let p = 0; p < planes.length; p += 3) {
-    const nx = planes[p]!, ny = planes[p + 1]!, c = planes[p + 2]!;
+    const nx = planes[p]!,
+      ny = planes[p + 1]!,
+      c = planes[p + 2]!;
     if (nx * cx + ny * cy - c + r < tol - 1e-9) continue;
     for (let k = 0; k < xy.length; k += 2) if (nx * xy[k]! + ny * xy[k + 1]! - c > tol) return false;
   }
@@ -318,14 +385,19 @@ export function withinPlanes(planes: Float64Array, xy: ArrayLike<number>, tol: n
  * reverse is not in the set. Interior edges cancel. Loops come out in any winding; read them with
  * an even-odd rule (see `evenOdd`).
  */
-export function boundaryLoops(tris: ArrayLike<number>, positions: Float32Array, cornersOf: (t: number) => [number, number, number]): Ring[] {
+export function boundaryLoops(
+  tris: ArrayLike<number>,
+  positions: Float32Array,
+  cornersOf: (t: number) => [number, number, number],
+): Ring[] {
   const nv = positions.length / 3;
   const key = (a: number, b: number) => a * nv + b;
   const edges = new Set<number>();
   for (let i = 0; i < tris.length; i++) {
     const [a, b, c] = cornersOf(tris[i]!);
     for (let e = 0; e < 3; e++) {
-      const u = e === 0 ? a : e === 1 ? b : c, v = e === 0 ? b : e === 1 ? c : a;
+      const u = e === 0 ? a : e === 1 ? b : c,
+        v = e === 0 ? b : e === 1 ? c : a;
       const back = key(v, u);
       if (edges.has(back)) edges.delete(back);
       else edges.add(key(u, v));
@@ -333,7 +405,8 @@ export function boundaryLoops(tris: ArrayLike<number>, positions: Float32Array, 
   }
   const next = new Map<number, number[]>();
   for (const e of edges) {
-    const u = Math.floor(e / nv), v = e - u * nv;
+    const u = Math.floor(e / nv),
+      v = e - u * nv;
     const list = next.get(u);
     if (list) list.push(v);
     else next.set(u, [v]);
@@ -374,7 +447,9 @@ export function multiArea(mp: MultiPolygon): number {
 
 export function multiPerimeter(mp: MultiPolygon): number {
   let s = 0;
-  for (const poly of mp) for (const r of poly) for (let i = 0, j = r.length - 1; i < r.length; j = i++) s += Math.hypot(r[i]![0] - r[j]![0], r[i]![1] - r[j]![1]);
+  for (const poly of mp)
+    for (const r of poly)
+      for (let i = 0, j = r.length - 1; i < r.length; j = i++) s += Math.hypot(r[i]![0] - r[j]![0], r[i]![1] - r[j]![1]);
   return s;
 }
 
@@ -382,7 +457,9 @@ export function multiPerimeter(mp: MultiPolygon): number {
 export function isConvex(r: Ring): boolean {
   let sign = 0;
   for (let i = 0; i < r.length; i++) {
-    const a = r[i]!, b = r[(i + 1) % r.length]!, c = r[(i + 2) % r.length]!;
+    const a = r[i]!,
+      b = r[(i + 1) % r.length]!,
+      c = r[(i + 2) % r.length]!;
     const z = (b[0] - a[0]) * (c[1] - b[1]) - (b[1] - a[1]) * (c[0] - b[0]);
     if (Math.abs(z) < 1e-9) continue;
     if (sign === 0) sign = Math.sign(z);
@@ -390,4 +467,3 @@ export function isConvex(r: Ring): boolean {
   }
   return true;
 }
-

@@ -163,10 +163,16 @@ describe("tampered files fail the rule they break", () => {
 
   it("QR modules flipped (the finder pattern at the top left filled in): qr", () => {
     const q = r.layout!.marks.find((k) => k.kind === "qr")!.bounds;
-    const mod = 1, quiet = 4 * mod;
+    const mod = 1,
+      quiet = 4 * mod;
     // The top-left finder: 7 × 7 modules inside the quiet zone (ISO/IEC 18004 §6.3.3).
-    const fx0 = q.minX + quiet - 0.01, fx1 = fx0 + 7 * mod + 0.02, fy1 = q.maxY - quiet + 0.01, fy0 = fy1 - 7 * mod - 0.02;
-    const stl = moveCorners(r.stl!, facetsOf(r, 0), (x, y, z) => (x > fx0 && x < fx1 && y > fy0 && y < fy1 && Math.abs(z - 0.6) < 1e-4 ? [x, y, 0.99] : [x, y, z]));
+    const fx0 = q.minX + quiet - 0.01,
+      fx1 = fx0 + 7 * mod + 0.02,
+      fy1 = q.maxY - quiet + 0.01,
+      fy0 = fy1 - 7 * mod - 0.02;
+    const stl = moveCorners(r.stl!, facetsOf(r, 0), (x, y, z) =>
+      x > fx0 && x < fx1 && y > fy0 && y < fy1 && Math.abs(z - 0.6) < 1e-4 ? [x, y, 0.99] : [x, y, z],
+    );
     const p = prove(r, withMarks, { stl });
     expect(rule(p, "closed")!.pass).toBe(true);
     expect(p.failed).toBe("qr");
@@ -191,7 +197,10 @@ describe("tampered files fail the rule they break", () => {
 
   it("a 3MF body moved: three_mf, naming the STL body it no longer matches", () => {
     const files = unzipSync(r.threeMf!);
-    const model = strFromU8(files["3D/3dmodel.model"]!).replace('<component objectid="3"/>', '<component objectid="3" transform="1 0 0 0 1 0 0 0 1 0.01 0 0"/>');
+    const model = strFromU8(files["3D/3dmodel.model"]!).replace(
+      '<component objectid="3"/>',
+      '<component objectid="3" transform="1 0 0 0 1 0 0 0 1 0.01 0 0"/>',
+    );
     const p = prove(r, withMarks, { threeMf: zipSync({ ...files, "3D/3dmodel.model": strToU8(model) }) });
     expect(p.failed).toBe("three_mf");
     expect(rule(p, "three_mf")!.message).toMatch(/^No 3MF body matches the STL body at/);
@@ -220,7 +229,12 @@ function admesh(stl: Uint8Array) {
   const res = spawnSync("admesh", [file], { encoding: "utf8" });
   if (res.error) throw new Error(`admesh is not installed (scripts/setup.mjs installs Debian's admesh): ${res.error.message}`);
   const num = (label: string) => Number(new RegExp(`${label}\\s*:\\s*(-?[\\d.]+)`).exec(res.stdout)?.[1]);
-  return { parts: num("Number of parts"), edgesFixed: num("Edges fixed"), facetsAdded: num("Facets added"), facetsReversed: num("Facets reversed") };
+  return {
+    parts: num("Number of parts"),
+    edgesFixed: num("Edges fixed"),
+    facetsAdded: num("Facets added"),
+    facetsReversed: num("Facets reversed"),
+  };
 }
 
 describe("the proof's counts agree with admesh", () => {

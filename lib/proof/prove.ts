@@ -1,9 +1,28 @@
 import polygonClipping, { type MultiPolygon, type Ring } from "polygon-clipping";
 import { deepestEngraving, floorUnderMarks, type SlabOptions } from "@/lib/geometry/options";
-import { boundaryLoops, boxesOverlap, convexHull, ConvexShape, halfPlanes, isConvex, multiArea, multiPerimeter, TriGrid, withinPlanes, type Box2 } from "./planar";
+import {
+  boundaryLoops,
+  boxesOverlap,
+  convexHull,
+  ConvexShape,
+  halfPlanes,
+  isConvex,
+  multiArea,
+  multiPerimeter,
+  TriGrid,
+  withinPlanes,
+  type Box2,
+} from "./planar";
 import { decodeRaster, heightRaster } from "./qr-read";
 import { readWeldedStl, StlProofError, type WeldedStl } from "./stl";
-import { readThreeMfBodies, readThreeMfBodiesAsync, ThreeMfProofError, type InflateRaw, type InflateRawAsync, type ThreeMfRead } from "./three-mf";
+import {
+  readThreeMfBodies,
+  readThreeMfBodiesAsync,
+  ThreeMfProofError,
+  type InflateRaw,
+  type InflateRawAsync,
+  type ThreeMfRead,
+} from "./three-mf";
 import { connectedBodies, edgeReport, hollows, type Body } from "./topology";
 
 /**
@@ -12,8 +31,22 @@ import { connectedBodies, edgeReport, hollows, type Body } from "./topology";
  */
 export type ProofRuleId = "stl" | "closed" | "oriented" | "volume" | "bodies" | "on_slab" | "apart" | "gap" | "floor" | "qr" | "three_mf";
 export type ProofRule = { rule: ProofRuleId; pass: boolean; figure?: number | string; message: string };
-export type ProofFigures = { bodies: number; openEdges: number; minFloor: number | null; worstSupport: number | null; qrText: string | null };
-export type Proof = { ok: boolean; failed?: ProofRuleId; rules: ProofRule[]; figures: ProofFigures; ms: number; summary: string; timings: Record<string, number> };
+export type ProofFigures = {
+  bodies: number;
+  openEdges: number;
+  minFloor: number | null;
+  worstSupport: number | null;
+  qrText: string | null;
+};
+export type Proof = {
+  ok: boolean;
+  failed?: ProofRuleId;
+  rules: ProofRule[];
+  figures: ProofFigures;
+  ms: number;
+  summary: string;
+  timings: Record<string, number>;
+};
 
 export type ProofInput = {
   stl: Uint8Array;
@@ -134,7 +167,8 @@ function stlRules(input: ProofInput, t0: number): StlDone {
     const ms = Math.round((performance.now() - t0) * 10) / 10;
     const summary = failed
       ? `Not proven: ${failed.message}`
-      : `Checked: closed, ${figures.bodies} bodies, every piece on the slab${figures.qrText !== null ? ", QR reads back" : ""}, 3MF matches`;
+      : `Checked: closed, ${figures.bodies} bodies, every piece on the slab${figures.qrText !== null ? ", QR reads back" : ""}, 3MF ` +
+        `matches`;
     lap("3mf");
     return { ok: !failed, ...(failed ? { failed: failed.rule } : {}), rules, figures, ms, summary, timings };
   };
@@ -147,7 +181,12 @@ function stlRules(input: ProofInput, t0: number): StlDone {
     rules.push({ rule: "stl", pass: false, message: err.message });
     return { proof: done() };
   }
-  rules.push({ rule: "stl", pass: true, figure: m.triangles, message: `${m.triangles.toLocaleString("en-US")} triangles, ${m.positions.length / 3} corners after welding.` });
+  rules.push({
+    rule: "stl",
+    pass: true,
+    figure: m.triangles,
+    message: `${m.triangles.toLocaleString("en-US")} triangles, ${m.positions.length / 3} corners after welding.`,
+  });
 
   lap("read");
   // 1. Closed and oriented: every undirected edge in exactly two triangles, each directed edge once.
@@ -156,13 +195,32 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   const where = e.firstBad ? ` (first at ${at(e.firstBad.at[0], e.firstBad.at[1])}, z ${fmt(e.firstBad.at[2])} mm)` : "";
   rules.push(
     e.open + e.nonManifold + e.degenerate === 0
-      ? { rule: "closed", pass: true, figure: 0, message: `All ${e.edges.toLocaleString("en-US")} edges are shared by exactly two triangles.` }
-      : { rule: "closed", pass: false, figure: e.open + e.nonManifold, message: `The STL is not closed: ${e.open} open edges, ${e.nonManifold} edges in more than two triangles${e.degenerate ? `, ${e.degenerate} triangles with a repeated corner` : ""}${where}.` },
+      ? {
+          rule: "closed",
+          pass: true,
+          figure: 0,
+          message: `All ${e.edges.toLocaleString("en-US")} edges are shared by exactly two triangles.`,
+        }
+      : {
+          rule: "closed",
+          pass: false,
+          figure: e.open + e.nonManifold,
+          message:
+            `The STL is not closed: ${e.open} open edges, ${e.nonManifold} edges in more than two ` +
+            `triangles${e.degenerate ? `, ${e.degenerate} triangles with a repeated corner` : ""}${where}.`,
+        },
   );
   rules.push(
     e.misoriented === 0
       ? { rule: "oriented", pass: true, figure: 0, message: "Every edge is used once in each direction." }
-      : { rule: "oriented", pass: false, figure: e.misoriented, message: `${e.misoriented} edges run the same way in both their triangles: a triangle is turned over${e.firstBad?.kind === "misoriented" ? where : ""}.` },
+      : {
+          rule: "oriented",
+          pass: false,
+          figure: e.misoriented,
+          message:
+            `${e.misoriented} edges run the same way in both their triangles: a triangle is turned ` +
+            `over${e.firstBad?.kind === "misoriented" ? where : ""}.`,
+        },
   );
 
   lap("edges");
@@ -175,8 +233,22 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   const inverted = bodies.filter((b) => b.volume <= 0 && !inner.has(b));
   rules.push(
     inverted.length === 0
-      ? { rule: "volume", pass: true, message: inner.size ? `Every body has a positive volume, but for ${inner.size} inside-out ${inner.size === 1 ? "shell" : "shells"} each inside one (a hollow).` : "Every body has a positive volume." }
-      : { rule: "volume", pass: false, figure: inverted[0]!.volume, message: `${inverted.length} bodies have no positive volume (inside out or flat), the first at ${at(...centre(inverted[0]!))}: ${fmt(inverted[0]!.volume, 3)} mm³.` },
+      ? {
+          rule: "volume",
+          pass: true,
+          message: inner.size
+            ? `Every body has a positive volume, but for ${inner.size} inside-out ${inner.size === 1 ? "shell" : "shells"} each ` +
+              `inside one (a hollow).`
+            : "Every body has a positive volume.",
+        }
+      : {
+          rule: "volume",
+          pass: false,
+          figure: inverted[0]!.volume,
+          message:
+            `${inverted.length} bodies have no positive volume (inside out or flat), the first at ` +
+            `${at(...centre(inverted[0]!))}: ${fmt(inverted[0]!.volume, 3)} mm³.`,
+        },
   );
   const onBed = bodies.filter((b) => Math.abs(b.min[2]) <= tol);
   const below = bodies.filter((b) => b.min[2] < -tol);
@@ -194,20 +266,39 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   const groupOf = pieceGroups(outerBodies, labels, shellsOf);
   {
     const problems: string[] = [];
-    if (bodies.length !== want) problems.push(shellTotal === input.pieces ? `${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}` : `${bodies.length} bodies where ${input.pieces} pieces of ${shellTotal} shells and the slab make ${want}`);
+    if (bodies.length !== want)
+      problems.push(
+        shellTotal === input.pieces
+          ? `${bodies.length} bodies where ${input.pieces} pieces and the slab make ${want}`
+          : `${bodies.length} bodies where ${input.pieces} pieces of ${shellTotal} shells and the slab make ${want}`,
+      );
     if (onBed.length === 0) problems.push("no body stands on z = 0 (no slab)");
-    if (onBed.length > 1) problems.push(`the slab is in ${onBed.length} loose parts on z = 0 (the smallest at ${at(...centre(onBed.reduce((a, b) => (b.volume < a.volume ? b : a))))})`);
-    if (below.length) problems.push(`${below.length} bodies reach below the bed (lowest z ${fmt(Math.min(...below.map((b) => b.min[2])))} mm)`);
+    if (onBed.length > 1)
+      problems.push(
+        `the slab is in ${onBed.length} loose parts on z = 0 (the smallest at ` +
+          `${at(...centre(onBed.reduce((a, b) => (b.volume < a.volume ? b : a))))})`,
+      );
+    if (below.length)
+      problems.push(`${below.length} bodies reach below the bed (lowest z ${fmt(Math.min(...below.map((b) => b.min[2])))} mm)`);
     if (input.shells && labels.length) {
       // Shell for shell, piece by piece: the outer bodies each piece was given, and the hollows inside them.
       const count = new Uint32Array(labels.length);
       for (const b of outerBodies) if (groupOf.get(b)! >= 0) count[groupOf.get(b)!]!++;
       for (const [, around] of inner) if ((groupOf.get(around) ?? -1) >= 0) count[groupOf.get(around)!]!++;
       const off = labels.map((l, i) => ({ l, i })).filter(({ i }) => i < input.pieces && count[i] !== shellsOf(i));
-      if (off.length) problems.push(`piece ${off[0]!.l.number} has ${count[off[0]!.i]} shells where its part has ${shellsOf(off[0]!.i)}${off.length > 1 ? ` (${off.length} pieces differ)` : ""}`);
+      if (off.length)
+        problems.push(
+          `piece ${off[0]!.l.number} has ${count[off[0]!.i]} shells where its part has ` +
+            `${shellsOf(off[0]!.i)}${off.length > 1 ? ` (${off.length} pieces differ)` : ""}`,
+        );
     }
-    const what = shellTotal === input.pieces ? `the slab and ${input.pieces} pieces` : `the slab and ${input.pieces} pieces of ${shellTotal} shells`;
-    rules.push(problems.length ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` } : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: ${what}.` });
+    const what =
+      shellTotal === input.pieces ? `the slab and ${input.pieces} pieces` : `the slab and ${input.pieces} pieces of ${shellTotal} shells`;
+    rules.push(
+      problems.length
+        ? { rule: "bodies", pass: false, figure: bodies.length, message: `${cap(problems.join("; "))}.` }
+        : { rule: "bodies", pass: true, figure: bodies.length, message: `${bodies.length} bodies: ${what}.` },
+    );
   }
   if (!slab) {
     rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
@@ -215,11 +306,14 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   }
 
   lap("bodies");
-  const P = m.positions, T = m.tris;
+  const P = m.positions,
+    T = m.tris;
   const zOf = (v: number) => P[3 * v + 2]!;
   const corners = (t: number): [number, number, number] => [T[3 * t]!, T[3 * t + 1]!, T[3 * t + 2]!];
   const tri2d = (t: number) => {
-    const a = 3 * T[3 * t]!, b = 3 * T[3 * t + 1]!, c = 3 * T[3 * t + 2]!;
+    const a = 3 * T[3 * t]!,
+      b = 3 * T[3 * t + 1]!,
+      c = 3 * T[3 * t + 2]!;
     return Float64Array.of(P[a]!, P[a + 1]!, P[b]!, P[b + 1]!, P[c]!, P[c + 1]!);
   };
   const split = (tris: Uint32Array) => splitFacing(tris, facing);
@@ -239,7 +333,17 @@ function stlRules(input: ProofInput, t0: number): StlDone {
     const { up, down } = split(body.tris);
     const hull = convexHull(shadowPoints(body.verts, P, scratch));
     const group = groupOf.get(body)!;
-    return { body, group, label: labelOf(labels, group, body), base: body.min[2], box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] }, hull, convex: new ConvexShape(hull), up, down };
+    return {
+      body,
+      group,
+      label: labelOf(labels, group, body),
+      base: body.min[2],
+      box: { minX: body.min[0], minY: body.min[1], maxX: body.max[0], maxY: body.max[1] },
+      hull,
+      convex: new ConvexShape(hull),
+      up,
+      down,
+    };
   });
   lap("pieces");
   const shadowGrid = (p: Piece) => (p.grid ??= new TriGrid(flat(p.up, P, T)));
@@ -253,7 +357,8 @@ function stlRules(input: ProofInput, t0: number): StlDone {
     const flatBottom = flatAt(p.down, p.base + tol, P, T);
     const nb = flatBottom.length;
     p.bottom = nb ? new TriGrid(flat(flatBottom, P, T)) : null;
-    let pct = 100, out = 0;
+    let pct = 100,
+      out = 0;
     // A piece whose whole outline (its hull) lies inside a convex slab has its lowest layer on it too.
     if (planes && withinPlanes(planes, p.hull, tol)) {
       // on the slab
@@ -262,8 +367,16 @@ function stlRules(input: ProofInput, t0: number): StlDone {
       const band: Ring[] = [];
       for (const t of p.down) {
         const [a, b, c] = corners(t);
-        const za = zOf(a), zb = zOf(b), zc = zOf(c);
-        if (Math.max(za, zb, zc) > p.base + tol && Math.min(za, zb, zc) < top) band.push(clipBelow([a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]), top));
+        const za = zOf(a),
+          zb = zOf(b),
+          zc = zOf(c);
+        if (Math.max(za, zb, zc) > p.base + tol && Math.min(za, zb, zc) < top)
+          band.push(
+            clipBelow(
+              [a, b, c].map((v) => [P[3 * v]!, P[3 * v + 1]!, zOf(v)] as [number, number, number]),
+              top,
+            ),
+          );
       }
       const loopsPart = boundaryLoops(flatBottom, P, corners);
       let fp: MultiPolygon = loopsPart.length ? xorRings(loopsPart) : [];
@@ -282,8 +395,22 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   figures.worstSupport = pieces.length ? Math.round(worst * 100) / 100 : null;
   rules.push(
     worst >= 100
-      ? { rule: "on_slab", pass: true, figure: worst, message: `Every piece's lowest layer lies on the slab (${pieces.length === input.pieces ? `${pieces.length} pieces` : `${input.pieces} pieces, ${pieces.length} bodies`}).` }
-      : { rule: "on_slab", pass: false, figure: figures.worstSupport ?? 0, message: `${cap(worstPiece!.p.label)} stands ${fmt(100 - worst, 1)} % off the slab: only ${fmt(worst, 1)} % of its lowest layer is over the slab's outline.` },
+      ? {
+          rule: "on_slab",
+          pass: true,
+          figure: worst,
+          message:
+            `Every piece's lowest layer lies on the slab ` +
+            `(${pieces.length === input.pieces ? `${pieces.length} pieces` : `${input.pieces} pieces, ${pieces.length} bodies`}).`,
+        }
+      : {
+          rule: "on_slab",
+          pass: false,
+          figure: figures.worstSupport ?? 0,
+          message:
+            `${cap(worstPiece!.p.label)} stands ${fmt(100 - worst, 1)} % off the slab: only ${fmt(worst, 1)} % of its lowest ` +
+            `layer is over the slab's outline.`,
+        },
   );
 
   lap("on_slab");
@@ -291,7 +418,8 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   let clash: string | null = null;
   for (let i = 0; i < pieces.length && !clash; i++) {
     for (let j = i + 1; j < pieces.length && !clash; j++) {
-      const a = pieces[i]!, b = pieces[j]!;
+      const a = pieces[i]!,
+        b = pieces[j]!;
       if (a.group === b.group) continue; // one part's own bodies
       if (a.body.max[2] <= b.base || b.body.max[2] <= a.base) continue;
       if (!boxesOverlap(a.box, b.box, 1e-3) || !b.convex.overlaps(a.hull, 1e-3)) continue;
@@ -325,12 +453,26 @@ function stlRules(input: ProofInput, t0: number): StlDone {
     }
     const g = p.base - under;
     if (Math.abs(g - gap) > Math.abs(worstGap - gap)) worstGap = g;
-    if (g < -tol) gapProblem ??= `${cap(p.label)} sits ${fmt(-g)} mm into the slab (its base at z ${fmt(p.base)} mm, the slab under it reaches z ${fmt(under)} mm).`;
-    else if (g < gap - tol) gapProblem ??= `${cap(p.label)} is only ${fmt(g)} mm above the slab where ${fmt(gap)} mm was asked: the slab rises to z ${fmt(under)} mm under it.`;
-    else if (g > gap + tol) gapProblem ??= `${cap(p.label)} floats ${fmt(g)} mm above the slab where ${fmt(gap)} mm was asked (its base at z ${fmt(p.base)} mm).`;
-    else if (!pocket && Math.abs(p.base - (thickness + gap)) > tol) gapProblem ??= `${cap(p.label)} stands at z ${fmt(p.base)} mm, not on the slab's top at ${fmt(thickness + gap)} mm (${fmt(thickness)} mm slab + ${fmt(gap)} mm gap).`;
+    if (g < -tol)
+      gapProblem ??=
+        `${cap(p.label)} sits ${fmt(-g)} mm into the slab (its base at z ${fmt(p.base)} mm, the slab under it reaches z ` +
+        `${fmt(under)} mm).`;
+    else if (g < gap - tol)
+      gapProblem ??=
+        `${cap(p.label)} is only ${fmt(g)} mm above the slab where ${fmt(gap)} mm was asked: the slab rises to z ` +
+        `${fmt(under)} mm under it.`;
+    else if (g > gap + tol)
+      gapProblem ??= `${cap(p.label)} floats ${fmt(g)} mm above the slab where ${fmt(gap)} mm was asked (its base at z ${fmt(p.base)} mm).`;
+    else if (!pocket && Math.abs(p.base - (thickness + gap)) > tol)
+      gapProblem ??=
+        `${cap(p.label)} stands at z ${fmt(p.base)} mm, not on the slab's top at ${fmt(thickness + gap)} mm ` +
+        `(${fmt(thickness)} mm slab + ${fmt(gap)} mm gap).`;
   }
-  rules.push(gapProblem ? { rule: "gap", pass: false, figure: Math.round(worstGap * 1000) / 1000, message: gapProblem } : { rule: "gap", pass: true, figure: gap, message: `Every piece floats ${fmt(gap)} mm above the slab.` });
+  rules.push(
+    gapProblem
+      ? { rule: "gap", pass: false, figure: Math.round(worstGap * 1000) / 1000, message: gapProblem }
+      : { rule: "gap", pass: true, figure: gap, message: `Every piece floats ${fmt(gap)} mm above the slab.` },
+  );
 
   lap("gap");
   // 6. Floors: the lowest upward-facing surface of the slab, and no hole through it.
@@ -342,12 +484,22 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   figures.minFloor = Number.isFinite(minFloor) ? Math.round(minFloor * 1000) / 1000 : null;
   rules.push(
     minFloor >= need - 1e-4
-      ? { rule: "floor", pass: true, figure: figures.minFloor ?? 0, message: `The thinnest floor under a mark is ${fmt(minFloor)} mm (at least ${fmt(need)} mm).` }
+      ? {
+          rule: "floor",
+          pass: true,
+          figure: figures.minFloor ?? 0,
+          message: `The thinnest floor under a mark is ${fmt(minFloor)} mm (at least ${fmt(need)} mm).`,
+        }
       : {
           rule: "floor",
           pass: false,
           figure: figures.minFloor ?? 0,
-          message: holes > 0 ? `A mark cuts right through the slab (${holes} holes in its bottom face); at least ${fmt(need)} mm must stay under every mark.` : `The floor under a mark is ${fmt(minFloor)} mm at ${at(...floorAt)}: ${fmt(need - minFloor)} mm short of the ${fmt(need)} mm (2 layers of ${fmt(layer)} mm, never under 0.40 mm) that must stay.`,
+          message:
+            holes > 0
+              ? `A mark cuts right through the slab (${holes} holes in its bottom face); at least ${fmt(need)} mm must stay under ` +
+                `every mark.`
+              : `The floor under a mark is ${fmt(minFloor)} mm at ${at(...floorAt)}: ${fmt(need - minFloor)} mm short of the ` +
+                `${fmt(need)} mm (2 layers of ${fmt(layer)} mm, never under 0.40 mm) that must stay.`,
         },
   );
 
@@ -357,20 +509,31 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   if (qr) {
     const box = input.marks?.find((k) => k.kind === "qr")?.bounds;
     const margin = qr.module;
-    const region = box ? { minX: box.minX - margin, minY: box.minY - margin, maxX: box.maxX + margin, maxY: box.maxY + margin } : { minX: slab.min[0], minY: slab.min[1], maxX: slab.max[0], maxY: slab.max[1] };
+    const region = box
+      ? { minX: box.minX - margin, minY: box.minY - margin, maxX: box.maxX + margin, maxY: box.maxY + margin }
+      : { minX: slab.min[0], minY: slab.min[1], maxX: slab.max[0], maxY: slab.max[1] };
     // Six pixels a module: enough for jsQR's sampling grid, small enough to stay cheap.
     const ppm = Math.min(25, Math.max(3, 6 / qr.module));
     const raster = heightRaster(P, T, slabUp, region, ppm);
     // "As deep as allowed": the slab less the floor every engraving keeps (the option's own rule).
     const depth = qr.depth === "max" ? deepestEngraving(o) : qr.depth;
-    const dark = qr.relief === "engrave" ? (z: number) => z > -Infinity && z < thickness - depth / 2 : (z: number) => z > thickness + depth / 2;
+    const dark =
+      qr.relief === "engrave" ? (z: number) => z > -Infinity && z < thickness - depth / 2 : (z: number) => z > thickness + depth / 2;
     const text = decodeRaster(raster, dark);
     figures.qrText = text;
     const asked = input.qrValue;
     rules.push(
       asked !== undefined && text === asked
         ? { rule: "qr", pass: true, figure: text, message: `The QR code reads back "${short(text)}".` }
-        : { rule: "qr", pass: false, figure: text ?? "", message: text === null ? `The QR code does not decode from a top view of the slab (${raster.width} × ${raster.height} px at ${fmt(ppm, 1)} px/mm).` : `The QR code reads "${short(text)}", not "${short(asked ?? "")}" as asked.` },
+        : {
+            rule: "qr",
+            pass: false,
+            figure: text ?? "",
+            message:
+              text === null
+                ? `The QR code does not decode from a top view of the slab (${raster.width} × ${raster.height} px at ${fmt(ppm, 1)} px/mm).`
+                : `The QR code reads "${short(text)}", not "${short(asked ?? "")}" as asked.`,
+          },
     );
     if (text !== asked) figures.qrText = text;
   }
@@ -391,7 +554,12 @@ function threeMfRule(read: ThreeMfRead | ThreeMfProofError, bodies: Body[], rule
   // Shell for shell: the 3MF's meshes split where their triangles share no vertex, as the STL's bodies are.
   const shells = read.shells;
   if (shells.length !== bodies.length) {
-    rules.push({ rule: "three_mf", pass: false, figure: shells.length, message: `The 3MF holds ${shells.length} bodies, the STL ${bodies.length}.` });
+    rules.push({
+      rule: "three_mf",
+      pass: false,
+      figure: shells.length,
+      message: `The 3MF holds ${shells.length} bodies, the STL ${bodies.length}.`,
+    });
     return done();
   }
   const byCount = new Map<number, typeof shells>();
@@ -403,12 +571,23 @@ function threeMfRule(read: ThreeMfRead | ThreeMfProofError, bodies: Body[], rule
     // √3·1e-3 mm × its area: the volume's first variation is the normal displacement over the surface.
     const i = list.findIndex((x) => close(x.min, b.min) && close(x.max, b.max) && Math.abs(x.volume - b.volume) <= 2e-3 * b.area + 1e-9);
     if (i < 0) {
-      rules.push({ rule: "three_mf", pass: false, message: `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm, ${fmt(b.volume, 1)} mm³).` });
+      rules.push({
+        rule: "three_mf",
+        pass: false,
+        message:
+          `No 3MF body matches the STL body at ${at(...centre(b))} (${b.tris.length} triangles, ${fmt(b.max[0] - b.min[0])} × ` +
+          `${fmt(b.max[1] - b.min[1])} × ${fmt(b.max[2] - b.min[2])} mm, ${fmt(b.volume, 1)} mm³).`,
+      });
       return done();
     }
     list.splice(i, 1);
   }
-  rules.push({ rule: "three_mf", pass: true, figure: shells.length, message: `The 3MF holds the same ${shells.length} bodies (triangles, bounds and volume).` });
+  rules.push({
+    rule: "three_mf",
+    pass: true,
+    figure: shells.length,
+    message: `The 3MF holds the same ${shells.length} bodies (triangles, bounds and volume).`,
+  });
   return done();
 }
 
@@ -422,8 +601,10 @@ function xorRings(loops: Ring[]): MultiPolygon {
 function clipBelow(tri: [number, number, number][], top: number): Ring {
   const out: Ring = [];
   for (let i = 0; i < 3; i++) {
-    const a = tri[i]!, b = tri[(i + 1) % 3]!;
-    const ina = a[2] <= top, inb = b[2] <= top;
+    const a = tri[i]!,
+      b = tri[(i + 1) % 3]!;
+    const ina = a[2] <= top,
+      inb = b[2] <= top;
     if (ina) out.push([a[0], a[1]]);
     if (ina !== inb) {
       const s = (top - a[2]) / (b[2] - a[2]);
@@ -462,11 +643,15 @@ function pieceGroups(outer: Body[], labels: NonNullable<ProofInput["labels"]>, s
   const centreOf = (l: Box2) => [(l.minX + l.maxX) / 2, (l.minY + l.maxY) / 2] as const;
   for (const b of outer) {
     const [x, y] = centre(b);
-    let best = -1, bestD = 1;
+    let best = -1,
+      bestD = 1;
     labels.forEach((l, i) => {
       const [lx, ly] = centreOf(l.bounds);
       const d = Math.hypot(lx - x, ly - y);
-      if (d < bestD) (best = i), (bestD = d);
+      if (d < bestD) {
+        best = i;
+        bestD = d;
+      }
     });
     if (best >= 0 && taken[best]! < shellsOf(best)) {
       out.set(b, best);
@@ -476,13 +661,17 @@ function pieceGroups(outer: Body[], labels: NonNullable<ProofInput["labels"]>, s
   const margin = 0.05; // the layout's bounds come from the part's hull: the same corners, rounded apart at most by float32
   outer.forEach((b, k) => {
     if (out.has(b)) return;
-    let best = -1, bestArea = Infinity;
+    let best = -1,
+      bestArea = Infinity;
     labels.forEach((l, i) => {
       const r = l.bounds;
       if (shellsOf(i) < 2 || taken[i]! >= shellsOf(i)) return;
       if (b.min[0] < r.minX - margin || b.min[1] < r.minY - margin || b.max[0] > r.maxX + margin || b.max[1] > r.maxY + margin) return;
       const area = (r.maxX - r.minX) * (r.maxY - r.minY);
-      if (area < bestArea) (best = i), (bestArea = area);
+      if (area < bestArea) {
+        best = i;
+        bestArea = area;
+      }
     });
     if (best >= 0) taken[best]!++;
     out.set(b, best >= 0 ? best : -1 - k);
@@ -536,7 +725,13 @@ function highestUnder(p: Piece, top: SlabTop, asked: number, floor: number, shad
   for (let k = 0; k < zs.length; k++) {
     const z = zs[k]!;
     if (z < floor) break;
-    if (box[4 * k]! >= p.box.maxX - 1e-3 || box[4 * k + 2]! <= p.box.minX + 1e-3 || box[4 * k + 1]! >= p.box.maxY - 1e-3 || box[4 * k + 3]! <= p.box.minY + 1e-3) continue;
+    if (
+      box[4 * k]! >= p.box.maxX - 1e-3 ||
+      box[4 * k + 2]! <= p.box.minX + 1e-3 ||
+      box[4 * k + 1]! >= p.box.maxY - 1e-3 ||
+      box[4 * k + 3]! <= p.box.minY + 1e-3
+    )
+      continue;
     const tri = xy.subarray(6 * k, 6 * k + 6);
     if (!p.convex.overlaps(tri, 1e-3)) continue;
     const hit = z > asked || !p.bottom ? shadowGrid(p).overlaps(tri, 1e-3) : p.bottom.overlaps(tri, 1e-3);
@@ -547,13 +742,19 @@ function highestUnder(p: Piece, top: SlabTop, asked: number, floor: number, shad
 
 /** The lowest flat upward face (floors are flat: a wall a hair off vertical also faces up a little, and is not one). */
 function lowestFlat(up: Uint32Array, tol: number, P: Float32Array, T: Uint32Array): { z: number; at: [number, number] } {
-  let minFloor = Infinity, at: [number, number] = [0, 0];
+  let minFloor = Infinity,
+    at: [number, number] = [0, 0];
   for (let i = 0; i < up.length; i++) {
     const t = up[i]!;
-    const za = P[3 * T[3 * t]! + 2]!, zb = P[3 * T[3 * t + 1]! + 2]!, zc = P[3 * T[3 * t + 2]! + 2]!;
+    const za = P[3 * T[3 * t]! + 2]!,
+      zb = P[3 * T[3 * t + 1]! + 2]!,
+      zc = P[3 * T[3 * t + 2]! + 2]!;
     if (Math.max(za, zb, zc) - Math.min(za, zb, zc) > tol) continue;
     const z = Math.min(za, zb, zc);
-    if (z < minFloor) (minFloor = z), (at = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!]);
+    if (z < minFloor) {
+      minFloor = z;
+      at = [P[3 * T[3 * t]!]!, P[3 * T[3 * t]! + 1]!];
+    }
   }
   return { z: minFloor, at };
 }
@@ -562,7 +763,8 @@ function lowestFlat(up: Uint32Array, tol: number, P: Float32Array, T: Uint32Arra
 function splitFacing(tris: Uint32Array, facing: Int8Array): { up: Uint32Array; down: Uint32Array } {
   // Up-facing from the front of one buffer, down-facing from its back (then put back in order).
   const buf = new Uint32Array(tris.length);
-  let nu = 0, nd = 0;
+  let nu = 0,
+    nd = 0;
   for (let i = 0; i < tris.length; i++) {
     const t = tris[i]!;
     const f = facing[t]!;

@@ -8,18 +8,38 @@ import type { Box2 } from "./planar";
  */
 export type HeightRaster = { width: number; height: number; pxPerMm: number; z: Float32Array };
 
-export function heightRaster(positions: Float32Array, tris: Uint32Array, triIds: ArrayLike<number>, region: Box2, pxPerMm: number): HeightRaster {
+export function heightRaster(
+  positions: Float32Array,
+  tris: Uint32Array,
+  triIds: ArrayLike<number>,
+  region: Box2,
+  pxPerMm: number,
+): HeightRaster {
   const width = Math.max(1, Math.ceil((region.maxX - region.minX) * pxPerMm));
   const height = Math.max(1, Math.ceil((region.maxY - region.minY) * pxPerMm));
   const z = new Float32Array(width * height).fill(-Infinity);
   const P = positions;
   for (let k = 0; k < triIds.length; k++) {
     const t = triIds[k]!;
-    const a = 3 * tris[3 * t]!, b = 3 * tris[3 * t + 1]!, c = 3 * tris[3 * t + 2]!;
-    const ax = P[a]!, ay = P[a + 1]!, az = P[a + 2]!;
-    const bx = P[b]!, by = P[b + 1]!, bz = P[b + 2]!;
-    const cx = P[c]!, cy = P[c + 1]!, cz = P[c + 2]!;
-    if (Math.max(ax, bx, cx) < region.minX || Math.min(ax, bx, cx) > region.maxX || Math.max(ay, by, cy) < region.minY || Math.min(ay, by, cy) > region.maxY) continue;
+    const a = 3 * tris[3 * t]!,
+      b = 3 * tris[3 * t + 1]!,
+      c = 3 * tris[3 * t + 2]!;
+    const ax = P[a]!,
+      ay = P[a + 1]!,
+      az = P[a + 2]!;
+    const bx = P[b]!,
+      by = P[b + 1]!,
+      bz = P[b + 2]!;
+    const cx = P[c]!,
+      cy = P[c + 1]!,
+      cz = P[c + 2]!;
+    if (
+      Math.max(ax, bx, cx) < region.minX ||
+      Math.min(ax, bx, cx) > region.maxX ||
+      Math.max(ay, by, cy) < region.minY ||
+      Math.min(ay, by, cy) > region.maxY
+    )
+      continue;
     const det = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
     if (Math.abs(det) < 1e-12) continue; // seen edge-on: covers no pixel centre
     // The triangle's plane z = z0 + gx·(x − ax) + gy·(y − ay).
@@ -30,10 +50,13 @@ export function heightRaster(positions: Float32Array, tris: Uint32Array, triIds:
     for (let r = r0; r <= r1; r++) {
       const y = region.minY + (r + 0.5) / pxPerMm;
       // Where the scanline crosses the three edges.
-      let x0 = Infinity, x1 = -Infinity;
+      let x0 = Infinity,
+        x1 = -Infinity;
       for (let e = 0; e < 3; e++) {
-        const px = e === 0 ? ax : e === 1 ? bx : cx, py = e === 0 ? ay : e === 1 ? by : cy;
-        const qx = e === 0 ? bx : e === 1 ? cx : ax, qy = e === 0 ? by : e === 1 ? cy : ay;
+        const px = e === 0 ? ax : e === 1 ? bx : cx,
+          py = e === 0 ? ay : e === 1 ? by : cy;
+        const qx = e === 0 ? bx : e === 1 ? cx : ax,
+          qy = e === 0 ? by : e === 1 ? cy : ay;
         if ((py <= y && y <= qy) || (qy <= y && y <= py)) {
           const x = py === qy ? Math.min(px, qx) : px + ((y - py) / (qy - py)) * (qx - px);
           const xe = py === qy ? Math.max(px, qx) : x;

@@ -29,8 +29,30 @@ function stlOf(tris: number[][]): Uint8Array {
 }
 /** A box's 12 triangles, facing out (or in), as corner coordinates. */
 function boxTris([x0, y0, z0]: number[], [x1, y1, z1]: number[], inward = false): number[][] {
-  const v = [[x0, y0, z0], [x1, y0, z0], [x1, y1, z0], [x0, y1, z0], [x0, y0, z1], [x1, y0, z1], [x1, y1, z1], [x0, y1, z1]] as [number, number, number][];
-  const f = [[0, 2, 1], [0, 3, 2], [4, 5, 6], [4, 6, 7], [0, 1, 5], [0, 5, 4], [1, 2, 6], [1, 6, 5], [2, 3, 7], [2, 7, 6], [3, 0, 4], [3, 4, 7]];
+  const v = [
+    [x0, y0, z0],
+    [x1, y0, z0],
+    [x1, y1, z0],
+    [x0, y1, z0],
+    [x0, y0, z1],
+    [x1, y0, z1],
+    [x1, y1, z1],
+    [x0, y1, z1],
+  ] as [number, number, number][];
+  const f = [
+    [0, 2, 1],
+    [0, 3, 2],
+    [4, 5, 6],
+    [4, 6, 7],
+    [0, 1, 5],
+    [0, 5, 4],
+    [1, 2, 6],
+    [1, 6, 5],
+    [2, 3, 7],
+    [2, 7, 6],
+    [3, 0, 4],
+    [3, 4, 7],
+  ];
   return f.map(([a, b, c]) => (inward ? [a, c, b] : [a, b, c]).flatMap((k) => v[k!]!));
 }
 
@@ -82,7 +104,8 @@ describe("winding numbers and hollows", () => {
 
 describe("2D helpers against the plain separating-axis test", () => {
   const r = rng(7);
-  const polygon = (n: number, cx: number, cy: number, s: number) => convexHull(Float64Array.from({ length: 2 * n }, (_, i) => (i % 2 ? cy : cx) + (r() - 0.5) * s));
+  const polygon = (n: number, cx: number, cy: number, s: number) =>
+    convexHull(Float64Array.from({ length: 2 * n }, (_, i) => (i % 2 ? cy : cx) + (r() - 0.5) * s));
 
   it("ConvexShape.overlaps(p) is convexOverlap(p, shape) for random hulls and triangles", () => {
     let overlaps = 0;
@@ -130,22 +153,59 @@ describe("2D helpers against the plain separating-axis test", () => {
 /** A 3MF core model: mesh objects (vertices, triangles) and one build item each. */
 function modelXml(objects: { vertices: number[][]; triangles: number[][] }[], form: (v: number[], t: boolean) => string): string {
   const body = objects
-    .map((o, i) => `<object id="${i + 1}" type="model"><mesh><vertices>\n${o.vertices.map((v) => form(v, false)).join("\n")}\n</vertices><triangles>\n${o.triangles.map((t) => form(t, true)).join("\n")}\n</triangles></mesh></object>`)
+    .map(
+      (o, i) =>
+        `<object id="${i + 1}" ` +
+        `type="model"><mesh><vertices>\n${o.vertices.map((v) => form(v, false)).join("\n")}\n</vertices><triangles>\n` +
+        `${o.triangles.map((t) => form(t, true)).join("\n")}\n</triangles></mesh></object>`,
+    )
     .join("\n");
   return `<?xml version="1.0" encoding="UTF-8"?>\n<model unit="millimeter" xmlns="http://schemas.microsoft.com/3dmanufacturing/core/2015/02"><resources>\n${body}\n</resources><build>${objects.map((_, i) => `<item objectid="${i + 1}"/>`).join("")}</build></model>`;
 }
 const cube = (x0: number, s: number, inward = false) => {
-  const v = [[0, 0, 0], [1, 0, 0], [1, 1, 0], [0, 1, 0], [0, 0, 1], [1, 0, 1], [1, 1, 1], [0, 1, 1]].map((p) => p.map((c) => x0 + c * s));
-  const f = [[0, 2, 1], [0, 3, 2], [4, 5, 6], [4, 6, 7], [0, 1, 5], [0, 5, 4], [1, 2, 6], [1, 6, 5], [2, 3, 7], [2, 7, 6], [3, 0, 4], [3, 4, 7]];
+  const v = [
+    [0, 0, 0],
+    [1, 0, 0],
+    [1, 1, 0],
+    [0, 1, 0],
+    [0, 0, 1],
+    [1, 0, 1],
+    [1, 1, 1],
+    [0, 1, 1],
+  ].map((p) => p.map((c) => x0 + c * s));
+  const f = [
+    [0, 2, 1],
+    [0, 3, 2],
+    [4, 5, 6],
+    [4, 6, 7],
+    [0, 1, 5],
+    [0, 5, 4],
+    [1, 2, 6],
+    [1, 6, 5],
+    [2, 3, 7],
+    [2, 7, 6],
+    [3, 0, 4],
+    [3, 4, 7],
+  ];
   return { vertices: v, triangles: inward ? f.map(([a, b, c]) => [a!, c!, b!]) : f };
 };
-const plain = (v: number[], t: boolean) => (t ? `<triangle v1="${v[0]}" v2="${v[1]}" v3="${v[2]}"/>` : `<vertex x="${v[0]}" y="${v[1]}" z="${v[2]}"/>`);
+const plain = (v: number[], t: boolean) =>
+  t ? `<triangle v1="${v[0]}" v2="${v[1]}" v3="${v[2]}"/>` : `<vertex x="${v[0]}" y="${v[1]}" z="${v[2]}"/>`;
 /** The same values as the XML grammar also allows: other spacing and attribute order, exponents, a sign. */
-const odd = (v: number[], t: boolean) => (t ? `<triangle  v3="${v[2]}"\tv1='${v[0]}' v2="${v[1]}" />` : `<vertex z="${v[2]!.toExponential()}"  x="+${v[0]}" y = "${v[1]}"></vertex>`);
+const odd = (v: number[], t: boolean) =>
+  t
+    ? `<triangle  v3="${v[2]}"\tv1='${v[0]}' v2="${v[1]}" />`
+    : `<vertex z="${v[2]!.toExponential()}"  x="+${v[0]}" y = "${v[1]}"></vertex>`;
 
 describe("the 3MF reader", () => {
   // One object of two shells (a 4 mm cube holding an inside-out 2 mm one) and a 1.5 mm cube.
-  const objects = [{ vertices: [...cube(0, 4).vertices, ...cube(1, 2).vertices], triangles: [...cube(0, 4).triangles, ...cube(1, 2, true).triangles.map((t) => t.map((k) => k + 8))] }, cube(10, 1.5)];
+  const objects = [
+    {
+      vertices: [...cube(0, 4).vertices, ...cube(1, 2).vertices],
+      triangles: [...cube(0, 4).triangles, ...cube(1, 2, true).triangles.map((t) => t.map((k) => k + 8))],
+    },
+    cube(10, 1.5),
+  ];
 
   it("reads each mesh's shells, triangles, bounds and signed volume (V = a³: 64, −8, 3.375 mm³)", () => {
     const read = readModel(strToU8(modelXml(objects, plain)));
@@ -163,21 +223,26 @@ describe("the 3MF reader", () => {
   it("reads a zip through its directory (zlib) as fflate's unzip reads it, and refuses a size the directory misstates", async () => {
     const files = {
       "[Content_Types].xml": strToU8('<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"/>'),
-      "_rels/.rels": strToU8('<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Target="/3D/3dmodel.model" Id="rel0" Type="http://schemas.microsoft.com/3dmanufacturing/2013/01/3dmodel"/></Relationships>'),
+      "_rels/.rels": strToU8(
+        '<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Target="/3D/3dmodel.model" Id="rel0" Type="http://schemas.microsoft.com/3dmanufacturing/2013/01/3dmodel"/></Relationships>',
+      ),
       "3D/3dmodel.model": strToU8(modelXml(objects, plain)),
     };
     const zip = zipSync(files, { level: 6 });
     const sync = (d: Uint8Array, size?: number) => inflateRawSync(d, size ? { chunkSize: Math.max(64, size + 1) } : {});
     const byFflate = readThreeMfBodies(zip);
     expect(readThreeMfBodies(zip, sync)).toEqual(byFflate);
-    expect(await readThreeMfBodiesAsync(zip, (d) => new Promise((res, rej) => inflateRaw(d, (e, out) => (e ? rej(e) : res(out)))), sync)).toEqual(byFflate);
+    expect(
+      await readThreeMfBodiesAsync(zip, (d) => new Promise((res, rej) => inflateRaw(d, (e, out) => (e ? rej(e) : res(out)))), sync),
+    ).toEqual(byFflate);
     // APPNOTE §4.3.12: the uncompressed size at offset 24 of the model's central directory header.
     const lying = zip.slice();
     const v = new DataView(lying.buffer);
     const name = strToU8("3D/3dmodel.model");
     for (let at = 0; at < lying.length - 46; at++) {
       if (v.getUint32(at, true) !== 0x02014b50 || v.getUint16(at + 28, true) !== name.length) continue;
-      if (lying.subarray(at + 46, at + 46 + name.length).every((c, k) => c === name[k])) v.setUint32(at + 24, v.getUint32(at + 24, true) + 1, true);
+      if (lying.subarray(at + 46, at + 46 + name.length).every((c, k) => c === name[k]))
+        v.setUint32(at + 24, v.getUint32(at + 24, true) + 1, true);
     }
     expect(() => readThreeMfBodies(lying, sync)).toThrow(ThreeMfProofError);
     expect(() => readThreeMfBodies(lying, sync)).toThrow(/expands to \d+ bytes where the directory says \d+/);

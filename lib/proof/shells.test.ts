@@ -33,7 +33,13 @@ const splitInAir = () => combineMeshes([box([0, 0, 0], [12, 12, 8]), box([2, 2, 
 
 const options: SlabOptionsInput = { marks: { text: [{ value: "KIT 7" }] } };
 function plate(mesh: IndexedMesh, quantity = 2): PlateResult {
-  return buildPlate(kernel, { parts: [{ id: "p", name: "Shell part", mesh: orientMesh(mesh), quantity }], options, fonts, formats: ["stl", "3mf"], deflateRaw: zlibDeflate });
+  return buildPlate(kernel, {
+    parts: [{ id: "p", name: "Shell part", mesh: orientMesh(mesh), quantity }],
+    options,
+    fonts,
+    formats: ["stl", "3mf"],
+    deflateRaw: zlibDeflate,
+  });
 }
 function prove(r: PlateResult, shells?: number[], stl?: Uint8Array): Proof {
   return provePlate({
@@ -51,7 +57,8 @@ const rule = (p: Proof, id: string) => p.rules.find((x) => x.rule === id)!;
 function raise(stl: Uint8Array, from: number, to: number, dz: number): Uint8Array {
   const out = stl.slice();
   const v = new DataView(out.buffer);
-  for (let t = from; t < to; t++) for (let c = 0; c < 3; c++) v.setFloat32(84 + 50 * t + 12 + 12 * c + 8, v.getFloat32(84 + 50 * t + 12 + 12 * c + 8, true) + dz, true);
+  for (let t = from; t < to; t++)
+    for (let c = 0; c < 3; c++) v.setFloat32(84 + 50 * t + 12 + 12 * c + 8, v.getFloat32(84 + 50 * t + 12 + 12 * c + 8, true) + dz, true);
   return out;
 }
 /** The first facet of piece `i`'s mesh in the STL (the writer puts the slab, then each piece in turn). */
@@ -77,7 +84,10 @@ describe("a hollow part: an outer shell and an inside-out inner one", () => {
 
   it("reads the 3MF's shells back at the boxes' volumes, the cavity negative (V = a³: 20³ and −10³ mm³)", () => {
     // The boxes' shells: 12 triangles each (two a face); the slab has many more.
-    const volumes = readThreeMfBodies(r.threeMf!).shells.filter((s) => s.triangles === 12).map((s) => s.volume).sort((a, b) => a - b);
+    const volumes = readThreeMfBodies(r.threeMf!)
+      .shells.filter((s) => s.triangles === 12)
+      .map((s) => s.volume)
+      .sort((a, b) => a - b);
     expect(volumes).toHaveLength(4);
     [-1000, -1000, 8000, 8000].forEach((want, i) => expect(volumes[i]).toBeCloseTo(want, 2));
   });

@@ -28,7 +28,8 @@ export function readWeldedStl(bytes: Uint8Array): WeldedStl {
   if (bytes.byteLength < 84) throw new StlProofError(`The STL has ${bytes.byteLength} bytes; a binary STL has at least 84.`);
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const n = view.getUint32(80, true);
-  if (bytes.byteLength !== 84 + 50 * n) throw new StlProofError(`The STL says ${n} facets, which take ${84 + 50 * n} bytes; the file has ${bytes.byteLength}.`);
+  if (bytes.byteLength !== 84 + 50 * n)
+    throw new StlProofError(`The STL says ${n} facets, which take ${84 + 50 * n} bytes; the file has ${bytes.byteLength}.`);
   // An open-addressing table of corner bits → vertex index (+1; 0 is empty), kept under half full.
   // A closed mesh has about half as many corners as triangles, so the table starts at about four
   // slots a corner (small enough to stay in cache) and doubles when a file has more.
@@ -48,7 +49,9 @@ export function readWeldedStl(bytes: Uint8Array): WeldedStl {
     const base = 84 + 50 * t + 12;
     for (let c = 0; c < 3; c++) {
       const o = base + 12 * c;
-      let x = view.getUint32(o, true), y = view.getUint32(o + 4, true), z = view.getUint32(o + 8, true);
+      let x = view.getUint32(o, true),
+        y = view.getUint32(o + 4, true),
+        z = view.getUint32(o + 8, true);
       if (x === 0x80000000) x = 0;
       if (y === 0x80000000) y = 0;
       if (z === 0x80000000) z = 0;
@@ -99,4 +102,3 @@ export function readWeldedStl(bytes: Uint8Array): WeldedStl {
   const positions = new Float32Array(store.buffer, 0, 3 * count);
   return { triangles: n, positions, tris };
 }
-

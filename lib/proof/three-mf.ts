@@ -14,13 +14,25 @@ const REL_MODEL = "http://schemas.microsoft.com/3dmanufacturing/2013/01/3dmodel"
 /** 3MF core §3.4.1: the model's unit attribute, millimetre by default. */
 const UNIT_MM: Record<string, number> = { micron: 0.001, millimeter: 1, centimeter: 10, inch: 25.4, foot: 304.8, meter: 1000 };
 
-export type ThreeMfBody = { objectId: string; name: string; triangles: number; min: [number, number, number]; max: [number, number, number] };
+export type ThreeMfBody = {
+  objectId: string;
+  name: string;
+  triangles: number;
+  min: [number, number, number];
+  max: [number, number, number];
+};
 /**
  * One connected shell of a placed mesh (triangles that share a vertex index), in millimetres: a mesh
  * object may hold several (a part made of several bodies, a hollow part's outer and inner shell).
  * `volume` is signed: an inside-out shell (a void) counts negative.
  */
-export type ThreeMfShell = { objectId: string; triangles: number; min: [number, number, number]; max: [number, number, number]; volume: number };
+export type ThreeMfShell = {
+  objectId: string;
+  triangles: number;
+  min: [number, number, number];
+  max: [number, number, number];
+  volume: number;
+};
 export type ThreeMfRead = { unit: string; bodies: ThreeMfBody[]; shells: ThreeMfShell[]; problems: string[] };
 
 export class ThreeMfProofError extends Error {
@@ -137,30 +149,55 @@ function find(b: Uint8Array, s: string, from: number): number {
 
 const ENTITIES: Record<string, string> = { amp: "&", lt: "<", gt: ">", quot: '"', apos: "'" };
 function text(b: Uint8Array, a: Attr): string {
-  return utf8.decode(b.subarray(a.start, a.end)).replace(/&(#x[0-9a-f]+|#\d+|[a-z]+);/gi, (whole, e: string) =>
-    e[0] === "#" ? String.fromCodePoint(e[1] === "x" || e[1] === "X" ? parseInt(e.slice(2), 16) : Number(e.slice(1))) : (ENTITIES[e] ?? whole),
-  );
+  return utf8
+    .decode(b.subarray(a.start, a.end))
+    .replace(/&(#x[0-9a-f]+|#\d+|[a-z]+);/gi, (whole, e: string) =>
+      e[0] === "#"
+        ? String.fromCodePoint(e[1] === "x" || e[1] === "X" ? parseInt(e.slice(2), 16) : Number(e.slice(1)))
+        : (ENTITIES[e] ?? whole),
+    );
 }
 
 /** A decimal number (ST_Number: optional sign, digits, fraction, exponent) from bytes; NaN if malformed. */
 function num(b: Uint8Array, start: number, end: number): number {
   let i = start;
   let sign = 1;
-  if (b[i] === 45) (sign = -1), i++;
-  else if (b[i] === 43) i++;
-  let mant = 0, digits = 0, scale = 0;
-  while (i < end && b[i]! >= 48 && b[i]! <= 57) (mant = mant * 10 + (b[i]! - 48)), i++, digits++;
+  if (b[i] === 45) {
+    sign = -1;
+    i++;
+  } else if (b[i] === 43) i++;
+  let mant = 0,
+    digits = 0,
+    scale = 0;
+  while (i < end && b[i]! >= 48 && b[i]! <= 57) {
+    mant = mant * 10 + (b[i]! - 48);
+    i++;
+    digits++;
+  }
   if (b[i] === 46) {
     i++;
-    while (i < end && b[i]! >= 48 && b[i]! <= 57) (mant = mant * 10 + (b[i]! - 48)), i++, scale--, digits++;
+    while (i < end && b[i]! >= 48 && b[i]! <= 57) {
+      mant = mant * 10 + (b[i]! - 48);
+      i++;
+      scale--;
+      digits++;
+    }
   }
   if (digits === 0) return NaN;
   if (b[i] === 101 || b[i] === 69) {
     i++;
-    let es = 1, e = 0, ed = 0;
-    if (b[i] === 45) (es = -1), i++;
-    else if (b[i] === 43) i++;
-    while (i < end && b[i]! >= 48 && b[i]! <= 57) (e = e * 10 + (b[i]! - 48)), i++, ed++;
+    let es = 1,
+      e = 0,
+      ed = 0;
+    if (b[i] === 45) {
+      es = -1;
+      i++;
+    } else if (b[i] === 43) i++;
+    while (i < end && b[i]! >= 48 && b[i]! <= 57) {
+      e = e * 10 + (b[i]! - 48);
+      i++;
+      ed++;
+    }
     if (ed === 0) return NaN;
     scale += es * e;
   }
@@ -231,8 +268,11 @@ function zipDirectory(bytes: Uint8Array): Map<string, ZipEntryRef> | null {
     if (at + 46 > bytes.length || v.getUint32(at, true) !== 0x02014b50) return null;
     const flags = v.getUint16(at + 8, true);
     const method = v.getUint16(at + 10, true);
-    const compressed = v.getUint32(at + 20, true), size = v.getUint32(at + 24, true);
-    const nameLen = v.getUint16(at + 28, true), extraLen = v.getUint16(at + 30, true), commentLen = v.getUint16(at + 32, true);
+    const compressed = v.getUint32(at + 20, true),
+      size = v.getUint32(at + 24, true);
+    const nameLen = v.getUint16(at + 28, true),
+      extraLen = v.getUint16(at + 30, true),
+      commentLen = v.getUint16(at + 32, true);
     const offset = v.getUint32(at + 42, true);
     if (flags & 1 || compressed === 0xffffffff || size === 0xffffffff || offset === 0xffffffff) return null;
     const name = (flags & 0x800 ? utf8 : latin1).decode(bytes.subarray(at + 46, at + 46 + nameLen));
@@ -268,14 +308,20 @@ function expanded(e: StoredEntry, out: Uint8Array): Uint8Array {
   return out;
 }
 
-const notZip = (err: unknown) => new ThreeMfProofError(`The 3MF is not a readable zip package (${err instanceof Error ? err.message : String(err)}).`);
+const notZip = (err: unknown) =>
+  new ThreeMfProofError(`The 3MF is not a readable zip package (${err instanceof Error ? err.message : String(err)}).`);
 
 /**
  * Entries of a zip package by name: found through the central directory and expanded straight from
  * the package's bytes (by `inflateRaw` when given, else by fflate); a package this reader leaves
  * alone is read by fflate's unzip.
  */
-function unzipEntry(bytes: Uint8Array, dir: Map<string, ZipEntryRef> | null, name: string, inflateRaw?: InflateRaw): Uint8Array | undefined {
+function unzipEntry(
+  bytes: Uint8Array,
+  dir: Map<string, ZipEntryRef> | null,
+  name: string,
+  inflateRaw?: InflateRaw,
+): Uint8Array | undefined {
   try {
     if (!dir) return unzipSync(bytes, { filter: (f) => f.name === name })[name];
     const ref = dir.get(name);
@@ -381,7 +427,7 @@ export function readModel(b: Uint8Array): ThreeMfRead {
     return m;
   };
   const n = b.length;
-  for (let i = b.indexOf(60); i >= 0 && i < n; ) {
+  for (let i = b.indexOf(60); i >= 0 && i < n;) {
     const c1 = b[i + 1];
     if (c1 === 118 && isWord(b, i + 1, VERTEX)) {
       i = vertexRun(b, i, run ?? newRun(), run !== null, problems, object?.id ?? "");
@@ -491,7 +537,16 @@ function isWord(b: Uint8Array, at: number, word: Uint8Array): boolean {
 /** The next `<` from `j`: mostly the next line's first byte. */
 const onward = (b: Uint8Array, j: number) => (b[j] === 60 ? j : b[j] === 10 && b[j + 1] === 60 ? j + 1 : b.indexOf(60, j));
 const NUMS = new Float64Array(3);
-const newRun = (): MeshRun => ({ verts: new Float64Array(3 * 1024), nv: 0, tris: new Uint32Array(3 * 2048), nt: 0, triangles: 0, parent: undefined, joins: 0, volume6: 0 });
+const newRun = (): MeshRun => ({
+  verts: new Float64Array(3 * 1024),
+  nv: 0,
+  tris: new Uint32Array(3 * 2048),
+  nt: 0,
+  triangles: 0,
+  parent: undefined,
+  joins: 0,
+  volume6: 0,
+});
 
 /**
  * `<vertex>` elements one after another from `i` (a `<`), into the mesh (outside a mesh they are
@@ -499,13 +554,16 @@ const newRun = (): MeshRun => ({ verts: new Float64Array(3 * 1024), nv: 0, tris:
  */
 function vertexRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, problems: string[], id: string): number {
   const nums = NUMS;
-  let verts = run.verts, nv = run.nv;
+  let verts = run.verts,
+    nv = run.nv;
   while (i >= 0 && b[i + 1] === 118 && isWord(b, i + 1, VERTEX)) {
     let j = fastNumbers(b, i + 7, nums, 1);
     if (j < 0) j = numbersAt(b, i + 7, nums);
     i = onward(b, j);
     if (!keep) continue;
-    const x = nums[0]!, y = nums[1]!, z = nums[2]!;
+    const x = nums[0]!,
+      y = nums[1]!,
+      z = nums[2]!;
     if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) {
       if (problems.length < 20) problems.push(`Object ${id}: vertex ${nv + 1} is not three numbers.`);
       continue;
@@ -531,7 +589,11 @@ function vertexRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, proble
  */
 function triangleRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, problems: string[], id: string): number {
   const nums = NUMS;
-  let tris = run.tris, nt = run.nt, triangles = run.triangles, joins = run.joins, vol = run.volume6;
+  let tris = run.tris,
+    nt = run.nt,
+    triangles = run.triangles,
+    joins = run.joins,
+    vol = run.volume6;
   const nv = run.nv;
   const p = run.verts;
   let parent = run.parent;
@@ -548,10 +610,24 @@ function triangleRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, prob
     if (j < 0) j = numbersAt(b, i + 9, nums);
     i = onward(b, j);
     if (!keep) continue;
-    const v1 = nums[0]!, v2 = nums[1]!, v3 = nums[2]!;
+    const v1 = nums[0]!,
+      v2 = nums[1]!,
+      v3 = nums[2]!;
     triangles++;
     // 3MF core §4.1.2: three distinct indices of vertices of this mesh.
-    const ok = Number.isInteger(v1) && Number.isInteger(v2) && Number.isInteger(v3) && v1 >= 0 && v2 >= 0 && v3 >= 0 && v1 < nv && v2 < nv && v3 < nv && v1 !== v2 && v2 !== v3 && v1 !== v3;
+    const ok =
+      Number.isInteger(v1) &&
+      Number.isInteger(v2) &&
+      Number.isInteger(v3) &&
+      v1 >= 0 &&
+      v2 >= 0 &&
+      v3 >= 0 &&
+      v1 < nv &&
+      v2 < nv &&
+      v3 < nv &&
+      v1 !== v2 &&
+      v2 !== v3 &&
+      v1 !== v3;
     if (!ok) {
       if (problems.length < 20) problems.push(`Object ${id}: triangle ${triangles} has indices ${v1}, ${v2}, ${v3} (of ${nv} vertices).`);
       continue;
@@ -566,8 +642,18 @@ function triangleRun(b: Uint8Array, i: number, run: MeshRun, keep: boolean, prob
     tris[3 * nt + 2] = v3;
     nt++;
     joins += join(up, v1, v2) + join(up, v1, v3);
-    const a = 3 * v1, c = 3 * v2, d = 3 * v3;
-    const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!, bx = p[c]!, by = p[c + 1]!, bz = p[c + 2]!, cx = p[d]!, cy = p[d + 1]!, cz = p[d + 2]!;
+    const a = 3 * v1,
+      c = 3 * v2,
+      d = 3 * v3;
+    const ax = p[a]!,
+      ay = p[a + 1]!,
+      az = p[a + 2]!,
+      bx = p[c]!,
+      by = p[c + 1]!,
+      bz = p[c + 2]!,
+      cx = p[d]!,
+      cy = p[d + 1]!,
+      cz = p[d + 2]!;
     vol += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
   }
   run.tris = tris;
@@ -590,7 +676,8 @@ function root(parent: Int32Array, x: number): number {
 }
 /** Join two vertices' sets under the smaller root: 1 if they were apart. */
 function join(parent: Int32Array, a: number, b: number): number {
-  const ra = root(parent, a), rb = root(parent, b);
+  const ra = root(parent, a),
+    rb = root(parent, b);
   if (ra === rb) return 0;
   if (ra < rb) parent[rb] = ra;
   else parent[ra] = rb;
@@ -604,7 +691,9 @@ function join(parent: Int32Array, a: number, b: number): number {
  * One shell using every vertex, the usual case, needs no second pass.
  */
 function withShells(me: MeshObject & Partial<MeshRun>): MeshObject {
-  const nv = me.nv, t = me.tris, p = me.verts;
+  const nv = me.nv,
+    t = me.tris,
+    p = me.verts;
   let parent = me.parent;
   if (!parent || parent.length !== nv) {
     parent = new Int32Array(nv);
@@ -624,8 +713,18 @@ function withShells(me: MeshObject & Partial<MeshRun>): MeshObject {
     const r = root(parent, t[i]!);
     let s = shellOfRoot[r]!;
     if (s < 0) s = shellOfRoot[r] = shells.push({ triangles: 0, volume: 0 }) - 1;
-    const a = 3 * t[i]!, b = 3 * t[i + 1]!, c = 3 * t[i + 2]!;
-    const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!, bx = p[b]!, by = p[b + 1]!, bz = p[b + 2]!, cx = p[c]!, cy = p[c + 1]!, cz = p[c + 2]!;
+    const a = 3 * t[i]!,
+      b = 3 * t[i + 1]!,
+      c = 3 * t[i + 2]!;
+    const ax = p[a]!,
+      ay = p[a + 1]!,
+      az = p[a + 2]!,
+      bx = p[b]!,
+      by = p[b + 1]!,
+      bz = p[b + 2]!,
+      cx = p[c]!,
+      cy = p[c + 1]!,
+      cz = p[c + 2]!;
     const sh = shells[s]!;
     sh.triangles++;
     sh.volume += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
@@ -649,12 +748,32 @@ function bodyOf(me: MeshObject, m: Matrix, scale: number, into: ThreeMfShell[]):
   // Per shell: min x, y, z, max x, y, z.
   const box = new Float64Array(6 * shells.length);
   for (let k = 0; k < shells.length; k++) box.fill(Infinity, 6 * k, 6 * k + 3).fill(-Infinity, 6 * k + 3, 6 * k + 6);
-  let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
+  let x0 = Infinity,
+    y0 = Infinity,
+    z0 = Infinity,
+    x1 = -Infinity,
+    y1 = -Infinity,
+    z1 = -Infinity;
   const v = me.verts;
-  const m00 = m[0]!, m01 = m[1]!, m02 = m[2]!, m10 = m[3]!, m11 = m[4]!, m12 = m[5]!, m20 = m[6]!, m21 = m[7]!, m22 = m[8]!, m30 = m[9]!, m31 = m[10]!, m32 = m[11]!;
+  const m00 = m[0]!,
+    m01 = m[1]!,
+    m02 = m[2]!,
+    m10 = m[3]!,
+    m11 = m[4]!,
+    m12 = m[5]!,
+    m20 = m[6]!,
+    m21 = m[7]!,
+    m22 = m[8]!,
+    m30 = m[9]!,
+    m31 = m[10]!,
+    m32 = m[11]!;
   for (let i = 0; i < me.nv; i++) {
-    const x = v[3 * i]!, y = v[3 * i + 1]!, z = v[3 * i + 2]!;
-    const wx = (x * m00 + y * m10 + z * m20 + m30) * scale, wy = (x * m01 + y * m11 + z * m21 + m31) * scale, wz = (x * m02 + y * m12 + z * m22 + m32) * scale;
+    const x = v[3 * i]!,
+      y = v[3 * i + 1]!,
+      z = v[3 * i + 2]!;
+    const wx = (x * m00 + y * m10 + z * m20 + m30) * scale,
+      wy = (x * m01 + y * m11 + z * m21 + m31) * scale,
+      wz = (x * m02 + y * m12 + z * m22 + m32) * scale;
     if (wx < x0) x0 = wx;
     if (wx > x1) x1 = wx;
     if (wy < y0) y0 = wy;
@@ -673,9 +792,16 @@ function bodyOf(me: MeshObject, m: Matrix, scale: number, into: ThreeMfShell[]):
   }
   shells.forEach((sh, k) => {
     const o = 6 * k;
-    into.push({ objectId: me.id, triangles: sh.triangles, min: [box[o]!, box[o + 1]!, box[o + 2]!], max: [box[o + 3]!, box[o + 4]!, box[o + 5]!], volume: sh.volume * det * scale ** 3 });
+    into.push({
+      objectId: me.id,
+      triangles: sh.triangles,
+      min: [box[o]!, box[o + 1]!, box[o + 2]!],
+      max: [box[o + 3]!, box[o + 4]!, box[o + 5]!],
+      volume: sh.volume * det * scale ** 3,
+    });
   });
-  const min: [number, number, number] = [x0, y0, z0], max: [number, number, number] = [x1, y1, z1];
+  const min: [number, number, number] = [x0, y0, z0],
+    max: [number, number, number] = [x1, y1, z1];
   return { objectId: me.id, name: me.name, triangles: me.triangles, min, max };
 }
 
@@ -704,7 +830,9 @@ function fastNumbers(b: Uint8Array, j: number, out: Float64Array, nameLen: 1 | 2
     let c = b[j];
     const neg = c === 45;
     if (neg) c = b[++j];
-    let mant = 0, digits = 0, frac = 0;
+    let mant = 0,
+      digits = 0,
+      frac = 0;
     while (c !== undefined && c >= 48 && c <= 57) {
       mant = mant * 10 + (c - 48);
       digits++;

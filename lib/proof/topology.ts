@@ -33,7 +33,9 @@ export function edgeReport(m: WeldedStl): EdgeReport {
   const start = new Uint32Array(nv + 1);
   let degenerate = 0;
   for (let i = 0; i < 3 * n; i += 3) {
-    const a = t[i]!, b = t[i + 1]!, c = t[i + 2]!;
+    const a = t[i]!,
+      b = t[i + 1]!,
+      c = t[i + 2]!;
     if (a === b || b === c || a === c) {
       degenerate++;
       continue;
@@ -47,7 +49,9 @@ export function edgeReport(m: WeldedStl): EdgeReport {
   const row = new Uint32Array(start[nv]!);
   const fill = start.slice(0, nv);
   for (let i = 0; i < 3 * n; i += 3) {
-    const a = t[i]!, b = t[i + 1]!, c = t[i + 2]!;
+    const a = t[i]!,
+      b = t[i + 1]!,
+      c = t[i + 2]!;
     if (a === b || b === c || a === c) continue;
     if (a < b) row[fill[a]!++] = 2 * b;
     else row[fill[b]!++] = 2 * a + 1;
@@ -57,16 +61,22 @@ export function edgeReport(m: WeldedStl): EdgeReport {
     else row[fill[a]!++] = 2 * c + 1;
   }
   const mark = new Int32Array(nv);
-  const up = new Uint32Array(nv), down = new Uint32Array(nv);
-  let edges = 0, open = 0, nonManifold = 0, misoriented = 0;
+  const up = new Uint32Array(nv),
+    down = new Uint32Array(nv);
+  let edges = 0,
+    open = 0,
+    nonManifold = 0,
+    misoriented = 0;
   // The first bad edge as a scan by start corner finds it: the corner an edge runs from.
   let badAt = nv;
   let badKind: BadKind = "open";
   for (let u = 0; u < nv; u++) {
-    const s = start[u]!, e = start[u + 1]!;
+    const s = start[u]!,
+      e = start[u + 1]!;
     const stamp = u + 1;
     for (let i = s; i < e; i++) {
-      const w = row[i]!, v = w >>> 1;
+      const w = row[i]!,
+        v = w >>> 1;
       if (mark[v] !== stamp) {
         mark[v] = stamp;
         up[v] = 0;
@@ -80,19 +90,32 @@ export function edgeReport(m: WeldedStl): EdgeReport {
       if (mark[v] !== stamp) continue; // tallied already
       mark[v] = -stamp;
       edges++;
-      const f = up[v]!, b = down[v]!, total = f + b;
+      const f = up[v]!,
+        b = down[v]!,
+        total = f + b;
       let kind: BadKind | null = null;
-      if (total === 1) (open++, (kind = "open"));
-      else if (total > 2) (nonManifold++, (kind = "non_manifold"));
-      else if (f !== 1) (misoriented++, (kind = "misoriented"));
+      if (total === 1) {
+        open++;
+        kind = "open";
+      } else if (total > 2) {
+        nonManifold++;
+        kind = "non_manifold";
+      } else if (f !== 1) {
+        misoriented++;
+        kind = "misoriented";
+      }
       if (kind) {
         const from = f > 0 ? u : v;
-        if (from < badAt) (badAt = from), (badKind = kind);
+        if (from < badAt) {
+          badAt = from;
+          badKind = kind;
+        }
       }
     }
   }
   const p = m.positions;
-  const firstBad = badAt < nv ? { kind: badKind, at: [p[3 * badAt]!, p[3 * badAt + 1]!, p[3 * badAt + 2]!] as [number, number, number] } : undefined;
+  const firstBad =
+    badAt < nv ? { kind: badKind, at: [p[3 * badAt]!, p[3 * badAt + 1]!, p[3 * badAt + 2]!] as [number, number, number] } : undefined;
   return { edges, open, nonManifold, misoriented, degenerate, firstBad };
 }
 
@@ -131,10 +154,14 @@ export function connectedBodies(m: WeldedStl, facing?: Int8Array): Body[] {
     return x;
   };
   for (let i = 0; i < 3 * n; i += 3) {
-    let a = find(t[i]!), b = find(t[i + 1]!);
+    let a = find(t[i]!),
+      b = find(t[i + 1]!);
     if (a !== b) {
       if (a < b) parent[b] = a;
-      else (parent[a] = b), (a = b);
+      else {
+        parent[a] = b;
+        a = b;
+      }
     }
     b = find(t[i + 2]!);
     if (a !== b) {
@@ -152,18 +179,34 @@ export function connectedBodies(m: WeldedStl, facing?: Int8Array): Body[] {
     bodyOfTri[i] = b;
   }
   const counts = new Uint32Array(bodies + 1);
-  const vol = new Float64Array(bodies), area = new Float64Array(bodies);
+  const vol = new Float64Array(bodies),
+    area = new Float64Array(bodies);
   for (let i = 0; i < n; i++) {
     const b = bodyOfTri[i]!;
     counts[b + 1]!++;
-    const a3 = 3 * t[3 * i]!, b3 = 3 * t[3 * i + 1]!, c3 = 3 * t[3 * i + 2]!;
-    const ax = p[a3]!, ay = p[a3 + 1]!, az = p[a3 + 2]!;
-    const bx = p[b3]!, by = p[b3 + 1]!, bz = p[b3 + 2]!;
-    const cx = p[c3]!, cy = p[c3 + 1]!, cz = p[c3 + 2]!;
+    const a3 = 3 * t[3 * i]!,
+      b3 = 3 * t[3 * i + 1]!,
+      c3 = 3 * t[3 * i + 2]!;
+    const ax = p[a3]!,
+      ay = p[a3 + 1]!,
+      az = p[a3 + 2]!;
+    const bx = p[b3]!,
+      by = p[b3 + 1]!,
+      bz = p[b3 + 2]!;
+    const cx = p[c3]!,
+      cy = p[c3 + 1]!,
+      cz = p[c3 + 2]!;
     // Signed volume of the tetrahedron from the origin (divergence theorem), summed.
     vol[b]! += ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
-    const ux = bx - ax, uy = by - ay, uz = bz - az, wx = cx - ax, wy = cy - ay, wz = cz - az;
-    const nx = uy * wz - uz * wy, ny = uz * wx - ux * wz, nz = ux * wy - uy * wx;
+    const ux = bx - ax,
+      uy = by - ay,
+      uz = bz - az,
+      wx = cx - ax,
+      wy = cy - ay,
+      wz = cz - az;
+    const nx = uy * wz - uz * wy,
+      ny = uz * wx - ux * wz,
+      nz = ux * wy - uy * wx;
     area[b]! += Math.sqrt(nx * nx + ny * ny + nz * nz);
     if (facing) facing[i] = nz > 1e-10 ? 1 : nz < -1e-10 ? -1 : 0;
   }
@@ -178,7 +221,9 @@ export function connectedBodies(m: WeldedStl, facing?: Int8Array): Body[] {
     const r = find(v);
     parent[v] = r; // every corner straight under its root from here on
     const o = 6 * bodyOfRoot[r]!;
-    const x = p[3 * v]!, y = p[3 * v + 1]!, z = p[3 * v + 2]!;
+    const x = p[3 * v]!,
+      y = p[3 * v + 1]!,
+      z = p[3 * v + 2]!;
     if (x < box[o]!) box[o] = x;
     if (y < box[o + 1]!) box[o + 1] = y;
     if (z < box[o + 2]!) box[o + 2] = z;
@@ -196,7 +241,14 @@ export function connectedBodies(m: WeldedStl, facing?: Int8Array): Body[] {
   const out: Body[] = [];
   for (let b = 0; b < bodies; b++) {
     const o = 6 * b;
-    out.push({ tris: order.subarray(counts[b]!, counts[b + 1]!), min: [box[o]!, box[o + 1]!, box[o + 2]!], max: [box[o + 3]!, box[o + 4]!, box[o + 5]!], volume: vol[b]! / 6, area: area[b]! / 2, verts: vorder.subarray(vstart[b]!, vstart[b + 1]!) });
+    out.push({
+      tris: order.subarray(counts[b]!, counts[b + 1]!),
+      min: [box[o]!, box[o + 1]!, box[o + 2]!],
+      max: [box[o + 3]!, box[o + 4]!, box[o + 5]!],
+      volume: vol[b]! / 6,
+      area: area[b]! / 2,
+      verts: vorder.subarray(vstart[b]!, vstart[b + 1]!),
+    });
   }
   return out;
 }
@@ -208,15 +260,26 @@ export function connectedBodies(m: WeldedStl, facing?: Int8Array): Body[] {
  * 1 inside a closed outward-facing surface, 0 outside, whatever its shape.
  */
 export function windingNumber(m: WeldedStl, tris: Uint32Array, x: number, y: number, z: number): number {
-  const p = m.positions, t = m.tris;
+  const p = m.positions,
+    t = m.tris;
   let sum = 0;
   for (let i = 0; i < tris.length; i++) {
     const k = 3 * tris[i]!;
-    const a = 3 * t[k]!, b = 3 * t[k + 1]!, c = 3 * t[k + 2]!;
-    const ax = p[a]! - x, ay = p[a + 1]! - y, az = p[a + 2]! - z;
-    const bx = p[b]! - x, by = p[b + 1]! - y, bz = p[b + 2]! - z;
-    const cx = p[c]! - x, cy = p[c + 1]! - y, cz = p[c + 2]! - z;
-    const la = Math.hypot(ax, ay, az), lb = Math.hypot(bx, by, bz), lc = Math.hypot(cx, cy, cz);
+    const a = 3 * t[k]!,
+      b = 3 * t[k + 1]!,
+      c = 3 * t[k + 2]!;
+    const ax = p[a]! - x,
+      ay = p[a + 1]! - y,
+      az = p[a + 2]! - z;
+    const bx = p[b]! - x,
+      by = p[b + 1]! - y,
+      bz = p[b + 2]! - z;
+    const cx = p[c]! - x,
+      cy = p[c + 1]! - y,
+      cz = p[c + 2]! - z;
+    const la = Math.hypot(ax, ay, az),
+      lb = Math.hypot(bx, by, bz),
+      lc = Math.hypot(cx, cy, cz);
     const num = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
     const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
     sum += 2 * Math.atan2(num, den);
@@ -238,10 +301,20 @@ export function hollows(m: WeldedStl, bodies: Body[], most = 4096): Map<Body, Bo
   for (const v of bodies) {
     if (!(v.volume < 0)) continue;
     const corner = 3 * v.verts[0]!;
-    const x = m.positions[corner]!, y = m.positions[corner + 1]!, z = m.positions[corner + 2]!;
+    const x = m.positions[corner]!,
+      y = m.positions[corner + 1]!,
+      z = m.positions[corner + 2]!;
     for (const s of solids) {
       if (s.volume <= -v.volume) continue;
-      if (!(s.min[0] < v.min[0] && s.min[1] < v.min[1] && s.min[2] < v.min[2] && v.max[0] < s.max[0] && v.max[1] < s.max[1] && v.max[2] < s.max[2])) continue;
+      if (!(
+        s.min[0] < v.min[0] &&
+        s.min[1] < v.min[1] &&
+        s.min[2] < v.min[2] &&
+        v.max[0] < s.max[0] &&
+        v.max[1] < s.max[1] &&
+        v.max[2] < s.max[2]
+      ))
+        continue;
       if (windingNumber(m, s.tris, x, y, z) > 0.5) {
         out.set(v, s);
         break;

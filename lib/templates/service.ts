@@ -1,6 +1,17 @@
 import "server-only";
 import type { TemplateVersion } from "@/db/schema";
-import { insertTemplate, insertTemplateVersion, lockTemplate, setCurrentVersion, setTemplateArchived, setTemplateName, templateById, templateRows, templateVersion, templateVersionRows } from "@/db/queries/templates";
+import {
+  insertTemplate,
+  insertTemplateVersion,
+  lockTemplate,
+  setCurrentVersion,
+  setTemplateArchived,
+  setTemplateName,
+  templateById,
+  templateRows,
+  templateVersion,
+  templateVersionRows,
+} from "@/db/queries/templates";
 import { transaction, type Tx } from "@/db/queries/tx";
 import { asActor, type ActorOrWorkspace, type WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
@@ -30,7 +41,14 @@ export function checkBody(input: unknown): TemplateBody {
   const logo = r.data.options.marks.logo;
   if (logo) {
     const points = logoContours(logo, logo.width).reduce((n, p) => n + p.contours.reduce((m, c) => m + c.length, 0), 0);
-    if (points > LOGO_LIMITS.points) throw new Invalid("invalid_template", `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.width} mm; at most ${LOGO_LIMITS.points.toLocaleString("en-US")}.`, undefined, "options.marks.logo");
+    if (points > LOGO_LIMITS.points)
+      throw new Invalid(
+        "invalid_template",
+        `The logo flattens to ${points.toLocaleString("en-US")} points at ${logo.width} mm; at most ` +
+          `${LOGO_LIMITS.points.toLocaleString("en-US")}.`,
+        undefined,
+        "options.marks.logo",
+      );
   }
   return r.data;
 }
@@ -44,11 +62,19 @@ export async function getTemplate(actor: WorkspaceActor, id: string) {
   const t = await templateById(actor, id);
   if (!t) throw new NotFound("not_found", "No such template.");
   const versions = await templateVersionRows(actor, t.id);
-  return { template: t, versions: versions.map((r) => ({ ...r.v, by: r.by ?? r.byEmail ?? (t.workspaceId ? "—" : "Slabwright") })), current: versions.find((r) => r.v.version === t.currentVersion)!.v };
+  return {
+    template: t,
+    versions: versions.map((r) => ({ ...r.v, by: r.by ?? r.byEmail ?? (t.workspaceId ? "—" : "Slabwright") })),
+    current: versions.find((r) => r.v.version === t.currentVersion)!.v,
+  };
 }
 
 /** A template version a plate will use: the current one, or the one asked for. */
-export async function versionForPlate(actor: ActorOrWorkspace, templateId: string, version?: number): Promise<TemplateVersion & { templateName: string }> {
+export async function versionForPlate(
+  actor: ActorOrWorkspace,
+  templateId: string,
+  version?: number,
+): Promise<TemplateVersion & { templateName: string }> {
   const a = asActor(actor);
   const t = await templateById(a, templateId);
   if (!t) throw new NotFound("not_found", "No such template.");
@@ -68,33 +94,88 @@ async function writable(tx: Tx, actor: Actor, id: string) {
 async function checkPlan(actor: Actor, body: TemplateBody) {
   if (!body.options.marks.logo) return;
   const b = await billingOf(actor);
-  if (!b.effective.logos) throw new PlanLimit("plan_limit", `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade under Settings → Billing.`, undefined, "options.marks.logo");
+  if (!b.effective.logos)
+    throw new PlanLimit(
+      "plan_limit",
+      `Logos on templates come with the Workshop and Farm plans; this workspace is on ${b.effective.name}. An owner can upgrade ` +
+        `under Settings → Billing.`,
+      undefined,
+      "options.marks.logo",
+    );
 }
 
-export async function createTemplate(actor: Actor, input: { name: string; description?: string; body: unknown; note?: string }): Promise<{ id: string; versionId: string }> {
+export async function createTemplate(
+  actor: Actor,
+  input: { name: string; description?: string; body: unknown; note?: string },
+): Promise<{ id: string; versionId: string }> {
   const body = checkBody(input.body);
   await checkPlan(actor, body);
   const out = await transaction(async (tx) => {
-    const t = await insertTemplate(tx, actor, { name: input.name.trim(), description: input.description?.trim() ?? "", createdBy: actor.userId });
-    const v = await insertTemplateVersion(tx, t.id, { version: 1, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? null, changes: describeChanges(null, body), createdBy: actor.userId });
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_created", target: t.id, details: { name: t.name } }, tx);
+    const t = await insertTemplate(tx, actor, {
+      name: input.name.trim(),
+      description: input.description?.trim() ?? "",
+      createdBy: actor.userId,
+    });
+    const v = await insertTemplateVersion(tx, t.id, {
+      version: 1,
+      options: body.options as Record<string, unknown>,
+      variables: body.variables,
+      note: input.note ?? null,
+      changes: describeChanges(null, body),
+      createdBy: actor.userId,
+    });
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        actorEmail: actor.email,
+        action: "template_created",
+        target: t.id,
+        details: { name: t.name },
+      },
+      tx,
+    );
     return { id: t.id, versionId: v.id };
   });
   await enqueueThumbnail(out.versionId);
   return out;
 }
 
-export async function saveVersion(actor: Actor, id: string, input: { body: unknown; note?: string; restoredFrom?: number }): Promise<{ version: number; versionId: string }> {
+export async function saveVersion(
+  actor: Actor,
+  id: string,
+  input: { body: unknown; note?: string; restoredFrom?: number },
+): Promise<{ version: number; versionId: string }> {
   const body = checkBody(input.body);
   await checkPlan(actor, body);
   const out = await transaction(async (tx) => {
     const t = await writable(tx, actor, id);
     const prev = await templateVersion(actor, id, t.currentVersion, { tx });
     const version = t.currentVersion + 1;
-    const changes = describeChanges(prev ? { options: prev.options as SlabOptionsInput, variables: prev.variables as TemplateVariableDef[] } : null, body);
-    const v = await insertTemplateVersion(tx, id, { version, options: body.options as Record<string, unknown>, variables: body.variables, note: input.note ?? (input.restoredFrom ? `restored from version ${input.restoredFrom}` : null), changes, createdBy: actor.userId });
+    const changes = describeChanges(
+      prev ? { options: prev.options as SlabOptionsInput, variables: prev.variables as TemplateVariableDef[] } : null,
+      body,
+    );
+    const v = await insertTemplateVersion(tx, id, {
+      version,
+      options: body.options as Record<string, unknown>,
+      variables: body.variables,
+      note: input.note ?? (input.restoredFrom ? `restored from version ${input.restoredFrom}` : null),
+      changes,
+      createdBy: actor.userId,
+    });
     await setCurrentVersion(tx, actor, id, version);
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: input.restoredFrom ? "template_version_restored" : "template_version_saved", target: id, details: { version, ...(input.restoredFrom ? { restoredFrom: input.restoredFrom } : {}) } }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        actorEmail: actor.email,
+        action: input.restoredFrom ? "template_version_restored" : "template_version_saved",
+        target: id,
+        details: { version, ...(input.restoredFrom ? { restoredFrom: input.restoredFrom } : {}) },
+      },
+      tx,
+    );
     return { version, versionId: v.id };
   });
   await enqueueThumbnail(out.versionId);
@@ -110,8 +191,20 @@ export async function restoreVersion(actor: Actor, id: string, version: number) 
 
 export async function duplicateTemplate(actor: Actor, id: string): Promise<{ id: string; versionId: string }> {
   const { template, current } = await getTemplate(actor, id);
-  const out = await createTemplate(actor, { name: `${template.name} (copy)`, description: template.description, body: { options: current.options, variables: current.variables }, note: `copied from ${template.name}, version ${current.version}` });
-  await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_duplicated", target: out.id, details: { from: id } });
+  const out = await createTemplate(actor, {
+    name: `${template.name} (copy)`,
+    description: template.description,
+    body: { options: current.options, variables: current.variables },
+    note: `copied from ${template.name}, version ${current.version}`,
+  });
+  await audit({
+    workspaceId: actor.workspaceId,
+    actorUserId: actor.userId,
+    actorEmail: actor.email,
+    action: "template_duplicated",
+    target: out.id,
+    details: { from: id },
+  });
   return out;
 }
 
@@ -119,7 +212,16 @@ export async function setArchived(actor: Actor, id: string, archived: boolean) {
   await transaction(async (tx) => {
     await writable(tx, actor, id);
     await setTemplateArchived(tx, actor, id, archived);
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: archived ? "template_archived" : "template_unarchived", target: id }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        actorEmail: actor.email,
+        action: archived ? "template_archived" : "template_unarchived",
+        target: id,
+      },
+      tx,
+    );
   });
 }
 
@@ -127,6 +229,16 @@ export async function renameTemplate(actor: Actor, id: string, name: string, des
   await transaction(async (tx) => {
     await writable(tx, actor, id);
     await setTemplateName(tx, actor, id, name.trim(), description.trim());
-    await audit({ workspaceId: actor.workspaceId, actorUserId: actor.userId, actorEmail: actor.email, action: "template_renamed", target: id, details: { name } }, tx);
+    await audit(
+      {
+        workspaceId: actor.workspaceId,
+        actorUserId: actor.userId,
+        actorEmail: actor.email,
+        action: "template_renamed",
+        target: id,
+        details: { name },
+      },
+      tx,
+    );
   });
 }

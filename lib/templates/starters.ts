@@ -12,10 +12,19 @@ export const STARTERS: Starter[] = [
   {
     key: "round-thanks",
     name: "Round thank-you slab",
-    description: "A disc under the set with a thank-you line for the customer and the kit's name. Numbers and outline rings show a missing piece at a glance.",
+    description:
+      "A disc under the set with a thank-you line for the customer and the kit's name. Numbers and outline rings show a missing " +
+      "piece at a glance.",
     options: {
       slab: { shape: "disc", thickness: 1, gap: 0.2, margin: 5 },
-      marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 90 }, { value: "{kit}", size: 3.5, font: "sans-bold" }], numbers: true, outlines: "ring" },
+      marks: {
+        text: [
+          { value: "Thank you, {customer}!", size: 5, maxWidth: 90 },
+          { value: "{kit}", size: 3.5, font: "sans-bold" },
+        ],
+        numbers: true,
+        outlines: "ring",
+      },
     },
     variables: [{ name: "customer", label: "Customer's first name", default: "friend", sample: "Sam" }],
   },
@@ -36,7 +45,10 @@ export const STARTERS: Starter[] = [
     options: {
       slab: { shape: "rounded-rect", cornerRadius: 5 },
       marks: {
-        text: [{ value: "ORDER {order}", size: 6, maxWidth: 80 }, { value: "{customer}", size: 4, maxWidth: 80 }],
+        text: [
+          { value: "ORDER {order}", size: 6, maxWidth: 80 },
+          { value: "{customer}", size: 4, maxWidth: 80 },
+        ],
         qr: { value: "https://shop.example/o/{order}", module: 1, level: "M", maxSize: 40 },
         numbers: true,
         outlines: "ring",
@@ -66,7 +78,10 @@ export function demoTemplate(): Starter {
     options: {
       slab: { shape: "rounded-rect", cornerRadius: 6 },
       marks: {
-        text: [{ value: "ORDER {order}", size: 5 }, { value: "Thank you, {customer}!", size: 4, maxWidth: 70 }],
+        text: [
+          { value: "ORDER {order}", size: 5 },
+          { value: "Thank you, {customer}!", size: 4, maxWidth: 70 },
+        ],
         logo: { name: "Marrowby mark", ...logo, width: 16, relief: "engrave", depth: 0.4 },
         numbers: true,
         outlines: "ring",

@@ -11,7 +11,8 @@ export const passwordField = z
   .min(PASSWORD_MIN, `Use at least ${PASSWORD_MIN} characters.`)
   .max(200, "Use at most 200 characters.");
 
-const notTheEmail = <T extends { email: string; password: string }>(v: T) => v.password.trim().toLowerCase() !== v.email.trim().toLowerCase();
+const notTheEmail = <T extends { email: string; password: string }>(v: T) =>
+  v.password.trim().toLowerCase() !== v.email.trim().toLowerCase();
 
 export const signInSchema = z.object({ email: emailField, password: z.string().min(1, "Enter your password.") });
 export const magicLinkSchema = z.object({ email: emailField });
@@ -30,7 +31,10 @@ export const resetConfirmSchema = z
   .object({ token: z.string().min(20).max(200), email: emailField, password: passwordField })
   .refine(notTheEmail, { path: ["password"], message: "Your password must not be your e-mail address." });
 
-export const changePasswordSchema = z.object({ current: z.string().min(1, "Enter your present password.").max(200), password: passwordField });
+export const changePasswordSchema = z.object({
+  current: z.string().min(1, "Enter your present password.").max(200),
+  password: passwordField,
+});
 
 export const roleField = z.enum(["owner", "designer", "operator", "viewer"]);
 export const inviteSchema = z.object({ email: emailField, role: roleField });
@@ -46,4 +50,5 @@ export const apiKeySchema = z.object({
 });
 
 export type FieldErrors = Record<string, string[] | undefined>;
-export type ActionResult<T = undefined> = { ok: true; data: T; message?: string } | { ok: false; message: string; fieldErrors?: FieldErrors; code?: string };
+export type ActionResult<T = undefined> =
+  { ok: true; data: T; message?: string } | { ok: false; message: string; fieldErrors?: FieldErrors; code?: string };

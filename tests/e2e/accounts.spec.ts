@@ -15,7 +15,10 @@ async function signIn(page: Page, email: string, password: string) {
   await expect(page).toHaveURL(/\/parts$/);
 }
 
-test("an invited person signs up from the e-mailed link, joins the demo workspace and sees what an operator may do", async ({ page, browser }) => {
+test("an invited person signs up from the e-mailed link, joins the demo workspace and sees what an operator may do", async ({
+  page,
+  browser,
+}) => {
   test.setTimeout(90_000); // a sign-up now goes through its mailed link
   const owner = user("owner");
   const email = `new-operator-${Date.now()}@example.com`;

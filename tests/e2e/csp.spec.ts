@@ -15,7 +15,10 @@ test("pages, the slab editor's worker and its WASM run under the nonce policy wi
   await expect(page.getByRole("link", { name: "Sign in" }).first()).toBeVisible();
   await signInAs(page, "designer");
   await page.goto("/kits");
-  await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await page
+    .getByRole("row", { name: /Harbour Run token set/ })
+    .getByRole("link", { name: "Slab editor →" })
+    .click();
   // The plate map is drawn from the engine's answer in the browser's Web Worker (WASM kernel).
   await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   await expect(page.getByTestId("map-piece-1")).toBeVisible();

@@ -9,11 +9,16 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   const designer = await browser.newPage({ viewport: { width: 1440, height: 1000 } });
   await signInAs(designer, "designer");
   await designer.goto("/kits");
-  await designer.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await designer
+    .getByRole("row", { name: /Harbour Run token set/ })
+    .getByRole("link", { name: "Slab editor →" })
+    .click();
   await expect(designer.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   await designer.getByRole("button", { name: "Make the plate" }).click();
   await expect(designer.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
-  const plateId = /\/api\/plates\/([^/]+)\/download/.exec((await designer.getByRole("link", { name: "Download STL" }).getAttribute("href"))!)![1]!;
+  const plateId = /\/api\/plates\/([^/]+)\/download/.exec(
+    (await designer.getByRole("link", { name: "Download STL" }).getAttribute("href"))!,
+  )![1]!;
   await designer.close();
 
   // A phone that scans the sheet's QR code while signed out comes back to the plate after signing in.
@@ -29,11 +34,24 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   await page.goto("/floor");
   await page.getByLabel("Find a plate").fill(plateId.slice(0, 8));
   await page.getByRole("button", { name: "Find" }).click();
-  const row = page.getByRole("list", { name: "to print" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) });
+  const row = page
+    .getByRole("list", { name: "to print" })
+    .getByTestId("floor-row")
+    .filter({ hasText: plateId.slice(0, 8) });
   await expect(row).toBeVisible();
   await row.getByRole("button", { name: "Printing" }).click();
-  await expect(page.getByRole("list", { name: "printing" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) })).toBeVisible();
-  await page.getByRole("list", { name: "printing" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) }).getByRole("link").click();
+  await expect(
+    page
+      .getByRole("list", { name: "printing" })
+      .getByTestId("floor-row")
+      .filter({ hasText: plateId.slice(0, 8) }),
+  ).toBeVisible();
+  await page
+    .getByRole("list", { name: "printing" })
+    .getByTestId("floor-row")
+    .filter({ hasText: plateId.slice(0, 8) })
+    .getByRole("link")
+    .click();
   await expect(page.getByTestId("floor-state")).toContainText("printing");
   await expect(page.getByRole("link", { name: "Plate map (PDF, A4)" })).toBeVisible();
 
@@ -48,11 +66,18 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   const db = new pg.Client({ connectionString: process.env.DATABASE_URL });
   await db.connect();
   const usage = async (plates: number) => {
-    const { rows } = await db.query(`select b.workspace_id, b.plan, b.period_start from workspace_billing b join workspaces w on w.id = b.workspace_id where w.slug = 'marrowby'`);
+    const { rows } = await db.query(
+      `select b.workspace_id, b.plan, b.period_start from workspace_billing b join workspaces w on w.id = b.workspace_id where ` +
+        `w.slug = 'marrowby'`,
+    );
     const b = rows[0] as { workspace_id: string; plan: string; period_start: Date | null };
     const now = new Date();
     const start = b.plan !== "bench" && b.period_start ? b.period_start : new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), 1));
-    await db.query(`insert into plate_usage (workspace_id, period_start, plates) values ($1, $2, $3) on conflict (workspace_id, period_start) do update set plates = excluded.plates`, [b.workspace_id, start, plates]);
+    await db.query(
+      `insert into plate_usage (workspace_id, period_start, plates) values ($1, $2, $3) on conflict (workspace_id, period_start) do ` +
+        `update set plates = excluded.plates`,
+      [b.workspace_id, start, plates],
+    );
   };
   try {
     await usage(1_000_000);
@@ -71,12 +96,25 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   // The reprint's page: it names the original and its status; the original lists the reprint.
   await expect(page.getByTestId("floor-state")).toContainText("reprint of", { timeout: 15_000 });
   await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
-  await expect.poll(async () => { await page.reload(); return page.getByTestId("floor-state").textContent(); }, { timeout: 30_000 }).toMatch(/Status: to print/);
+  await expect
+    .poll(
+      async () => {
+        await page.reload();
+        return page.getByTestId("floor-state").textContent();
+      },
+      { timeout: 30_000 },
+    )
+    .toMatch(/Status: to print/);
   await page.getByRole("link", { name: plateId.slice(0, 8) }).click();
   await expect(page.getByTestId("reprint-row")).toContainText("1 piece");
   await expect(page.getByTestId("reprint-row")).toContainText("to print");
   await page.goto(`/floor?q=${plateId.slice(0, 8)}`);
-  await expect(page.getByRole("list", { name: "reprint needed" }).getByTestId("floor-row").filter({ hasText: plateId.slice(0, 8) })).toBeVisible();
+  await expect(
+    page
+      .getByRole("list", { name: "reprint needed" })
+      .getByTestId("floor-row")
+      .filter({ hasText: plateId.slice(0, 8) }),
+  ).toBeVisible();
   await page.close();
 
   // The maker's e-mail, read by the owner in the demo outbox.

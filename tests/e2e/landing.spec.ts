@@ -44,7 +44,12 @@ test("the demo owner signs in, sees the demo parts and kit, and signs out", asyn
   await expect(page.getByTestId("part-Beacon pawn")).toBeVisible();
   await page.getByRole("link", { name: "Kits" }).click();
   await expect(page.getByRole("cell", { name: /Harbour Run token set/ })).toBeVisible();
-  await expect(page.getByRole("row", { name: /Harbour Run/ }).getByRole("cell").nth(1)).toHaveText("6");
+  await expect(
+    page
+      .getByRole("row", { name: /Harbour Run/ })
+      .getByRole("cell")
+      .nth(1),
+  ).toHaveText("6");
   await page.getByRole("button", { name: "Sign out" }).click();
   await expect(page).toHaveURL(/\/$/);
   await page.goto("/parts");

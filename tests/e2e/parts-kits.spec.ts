@@ -6,8 +6,9 @@ import { signInAs } from "./helpers";
 import { pawn } from "@/lib/geometry/demo-shapes";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 
-
-test("the demo designer uploads three files (one broken), sees progress and the refusal, and makes a kit of two parts × 3", async ({ page }) => {
+test("the demo designer uploads three files (one broken), sees progress and the refusal, and makes a kit of two parts × 3", async ({
+  page,
+}) => {
   const tag = Date.now().toString(36);
   const dir = mkdtempSync(path.join(tmpdir(), "slab-e2e-"));
   // A 3 MB turned piece, so the progress bar has time to show on a throttled connection.
@@ -22,7 +23,12 @@ test("the demo designer uploads three files (one broken), sees progress and the 
 
   const cdp = await page.context().newCDPSession(page);
   await cdp.send("Network.enable");
-  await cdp.send("Network.emulateNetworkConditions", { offline: false, latency: 20, downloadThroughput: -1, uploadThroughput: 1.5 * 1024 * 1024 });
+  await cdp.send("Network.emulateNetworkConditions", {
+    offline: false,
+    latency: 20,
+    downloadThroughput: -1,
+    uploadThroughput: 1.5 * 1024 * 1024,
+  });
   await page.getByLabel("Mesh files").setInputFiles([big, gear, broken]);
   const first = page.getByTestId(`upload-rook-${tag}.stl`);
   await expect(first.getByRole("progressbar")).toBeVisible();

@@ -1,11 +1,13 @@
 import { expect, test } from "@playwright/test";
 import { signInAs } from "./helpers";
 
-
 test("a designer tunes the demo kit's slab live, places a piece by hand, and makes the plate", async ({ page }) => {
   await signInAs(page, "designer");
   await page.goto("/kits");
-  await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await page
+    .getByRole("row", { name: /Harbour Run token set/ })
+    .getByRole("link", { name: "Slab editor →" })
+    .click();
 
   // The engine starts in the browser and draws the plate map: six numbered pieces.
   const map = page.getByTestId("plate-map");
@@ -56,7 +58,10 @@ test("disc outline, a text line and a QR code change the preview; the downloaded
   await page.setViewportSize({ width: 1440, height: 1000 });
   await signInAs(page, "designer");
   await page.goto("/kits");
-  await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await page
+    .getByRole("row", { name: /Harbour Run token set/ })
+    .getByRole("link", { name: "Slab editor →" })
+    .click();
   await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   await expect(page.getByTestId("preview-ms")).toContainText("frame");
   const canvas = page.getByTestId("view-3d");
@@ -115,7 +120,10 @@ test("disc outline, a text line and a QR code change the preview; the downloaded
   await expect.poll(async () => Math.abs((await mid()) - atMid)).toBeLessThan(1);
   // Per-line options: the second line embossed at 0.6 mm still builds.
   await page.getByLabel("Relief").nth(1).selectOption("emboss");
-  await page.getByLabel(/^Height/).first().fill("0.6");
+  await page
+    .getByLabel(/^Height/)
+    .first()
+    .fill("0.6");
   await changed();
   await expect(page.getByTestId("findings")).not.toContainText("error");
 

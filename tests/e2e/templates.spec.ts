@@ -6,7 +6,9 @@ import { signInAs } from "./helpers";
 // from it with real values, downloaded, and the same plate through the API, byte for byte.
 const LOGO = `<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 40 30"><path d="M2 28 L20 2 L38 28 Z M14 24 L26 24 L20 14 Z" fill-rule="evenodd"/></svg>`;
 
-test("a designer makes a branded template with a logo and two variables, sees its thumbnail, and makes a plate from it", async ({ page }) => {
+test("a designer makes a branded template with a logo and two variables, sees its thumbnail, and makes a plate from it", async ({
+  page,
+}) => {
   test.setTimeout(120_000);
   await page.setViewportSize({ width: 1440, height: 1000 });
   mkdirSync(".data/test-results", { recursive: true });
@@ -15,7 +17,10 @@ test("a designer makes a branded template with a logo and two variables, sees it
 
   await signInAs(page, "designer");
   await page.goto("/kits");
-  await page.getByRole("row", { name: /Harbour Run token set/ }).getByRole("link", { name: "Slab editor →" }).click();
+  await page
+    .getByRole("row", { name: /Harbour Run token set/ })
+    .getByRole("link", { name: "Slab editor →" })
+    .click();
   await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   await page.getByLabel("Text line 1").fill("ORDER {order}");
   await page.getByLabel("Text line 2").fill("Thanks, {customer}!");
@@ -37,10 +42,13 @@ test("a designer makes a branded template with a logo and two variables, sees it
   const tile = page.getByTestId("template-tile").filter({ hasText: name });
   await expect(tile).toHaveCount(1);
   await expect
-    .poll(async () => {
-      await page.reload();
-      return tile.getByTestId("template-thumb").count();
-    }, { timeout: 30_000 })
+    .poll(
+      async () => {
+        await page.reload();
+        return tile.getByTestId("template-thumb").count();
+      },
+      { timeout: 30_000 },
+    )
     .toBe(1);
   await expect(tile.locator("svg path")).toHaveCount(3); // slab, marks (text, logo, numbers, rings), pieces
   await expect(tile).toContainText("{order}");
@@ -66,8 +74,12 @@ test("a designer makes a branded template with a logo and two variables, sees it
 
   // The same template, kit and values through the API: the same bytes.
   const templateId = new URL(page.url()).searchParams.get("template")!;
-  const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
-  const kits = (await (await page.request.get("/api/v1/kits", { headers: { authorization: `Bearer ${creds.apiKey}` } })).json()) as { kits: { id: string; name: string }[] };
+  const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+    apiKey: string;
+  };
+  const kits = (await (await page.request.get("/api/v1/kits", { headers: { authorization: `Bearer ${creds.apiKey}` } })).json()) as {
+    kits: { id: string; name: string }[];
+  };
   const kitId = kits.kits.find((k) => k.name === "Harbour Run token set")!.id;
   const api = await page.request.post("/api/v1/plates", {
     headers: { authorization: `Bearer ${creds.apiKey}` },

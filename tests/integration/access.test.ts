@@ -36,7 +36,9 @@ import { GET as listKitsRoute } from "@/app/api/v1/kits/route";
 const logged: string[] = [];
 const spies = (["log", "info", "warn", "error"] as const).map((level) =>
   vi.spyOn(console, level).mockImplementation((...args: unknown[]) => {
-    logged.push(args.map((a) => (a instanceof Error ? `${a.message} ${a.stack}` : typeof a === "string" ? a : JSON.stringify(a))).join(" "));
+    logged.push(
+      args.map((a) => (a instanceof Error ? `${a.message} ${a.stack}` : typeof a === "string" ? a : JSON.stringify(a))).join(" "),
+    );
   }),
 );
 
@@ -52,7 +54,7 @@ async function userId(email: string) {
   return u!.id;
 }
 function as(role: Role | string | null) {
-  session.userId = role === null ? null : (ids as Record<string, string>)[role] ?? role;
+  session.userId = role === null ? null : ((ids as Record<string, string>)[role] ?? role);
   session.cookie = undefined;
 }
 async function callerAs(role: Role): Promise<Caller> {
@@ -65,9 +67,15 @@ beforeAll(async () => {
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
   demoWs = ws!.id;
   // A second, unrelated workspace with its own owner and kit.
-  const [o] = await db().insert(users).values({ email: `other-${Date.now()}@example.com`, name: "Other Owner", passwordHash: await hashPassword("another-password-1") }).returning();
+  const [o] = await db()
+    .insert(users)
+    .values({ email: `other-${Date.now()}@example.com`, name: "Other Owner", passwordHash: await hashPassword("another-password-1") })
+    .returning();
   otherOwner = o!.id;
-  const [w] = await db().insert(workspaces).values({ name: "Other Farm", slug: `other-${Date.now()}` }).returning();
+  const [w] = await db()
+    .insert(workspaces)
+    .values({ name: "Other Farm", slug: `other-${Date.now()}` })
+    .returning();
   otherWs = w!.id;
   await db().insert(memberships).values({ workspaceId: otherWs, userId: otherOwner, role: "owner" });
   const [k] = await db().insert(kits).values({ workspaceId: otherWs, name: "Their kit" }).returning();
@@ -118,12 +126,16 @@ describe("the role table, role × action", () => {
   it("owner-only actions refuse every other role and leave nothing changed", async () => {
     for (const role of ["designer", "operator", "viewer"] as Role[]) {
       as(role);
-      const before = await db().select({ n: sql<number>`count(*)::int` }).from(invitations);
+      const before = await db()
+        .select({ n: sql<number>`count(*)::int` })
+        .from(invitations);
       expect(await sendInvitation({ email: `x-${role}@example.com`, role: "viewer" })).toMatchObject({ ok: false, code: "forbidden" });
       expect(await setMemberRole({ userId: ids.viewer, role: "owner" })).toMatchObject({ ok: false, code: "forbidden" });
       expect(await dropMember({ userId: ids.viewer })).toMatchObject({ ok: false, code: "forbidden" });
       expect(await makeApiKey({ name: "sneaky", scopes: ["plates:read"] })).toMatchObject({ ok: false, code: "forbidden" });
-      const after = await db().select({ n: sql<number>`count(*)::int` }).from(invitations);
+      const after = await db()
+        .select({ n: sql<number>`count(*)::int` })
+        .from(invitations);
       expect(after).toEqual(before);
     }
     const [viewer] = await db().select().from(memberships).where(eq(memberships.userId, ids.viewer));
@@ -166,7 +178,10 @@ describe("members and the last owner", () => {
   });
 
   it("a removed member's next request is refused, whatever their session says", async () => {
-    const [temp] = await db().insert(users).values({ email: `temp-${Date.now()}@example.com`, name: "Temp" }).returning();
+    const [temp] = await db()
+      .insert(users)
+      .values({ email: `temp-${Date.now()}@example.com`, name: "Temp" })
+      .returning();
     await db().insert(memberships).values({ workspaceId: demoWs, userId: temp!.id, role: "designer" });
     as(temp!.id);
     await expect(authorize("parts:write", "uploading")).resolves.toBeTruthy();
@@ -188,7 +203,12 @@ describe("members and the last owner", () => {
 
 describe("invitations", () => {
   const latestToken = async (to: string) => {
-    const mail = await db().select().from(devOutbox).where(sql`${devOutbox.toAddresses} like ${"%" + to + "%"}`).orderBy(sql`received_at desc`).limit(1);
+    const mail = await db()
+      .select()
+      .from(devOutbox)
+      .where(sql`${devOutbox.toAddresses} like ${"%" + to + "%"}`)
+      .orderBy(sql`received_at desc`)
+      .limit(1);
     const m = /\/invite\/([A-Za-z0-9_-]+)/.exec(mail[0]?.text ?? "");
     return m?.[1];
   };
@@ -211,13 +231,21 @@ describe("invitations", () => {
     expect(row!.tokenHash).not.toContain(token);
     expect(JSON.stringify(row)).not.toContain(token);
 
-    const [wrong] = await db().insert(users).values({ email: `wrong-${Date.now()}@example.com` }).returning();
-    await expect(acceptInvitation({ id: wrong!.id, email: wrong!.email, name: null }, token)).rejects.toMatchObject({ code: "invitation_other_email" });
+    const [wrong] = await db()
+      .insert(users)
+      .values({ email: `wrong-${Date.now()}@example.com` })
+      .returning();
+    await expect(acceptInvitation({ id: wrong!.id, email: wrong!.email, name: null }, token)).rejects.toMatchObject({
+      code: "invitation_other_email",
+    });
     const [invitee] = await db().insert(users).values({ email }).returning();
     await acceptInvitation({ id: invitee!.id, email, name: null }, token);
     const caller = await callerFor({ id: invitee!.id, email, name: null });
     expect(caller).toMatchObject({ role: "operator", workspace: { id: demoWs } });
-    await expect(acceptInvitation({ id: invitee!.id, email, name: null }, token)).rejects.toMatchObject({ code: "invitation_used", message: expect.stringMatching(/already been used/) });
+    await expect(acceptInvitation({ id: invitee!.id, email, name: null }, token)).rejects.toMatchObject({
+      code: "invitation_used",
+      message: expect.stringMatching(/already been used/),
+    });
     await db().delete(users).where(eq(users.id, invitee!.id));
     await db().delete(users).where(eq(users.id, wrong!.id));
   });
@@ -227,9 +255,15 @@ describe("invitations", () => {
     const email = `late-${Date.now()}@example.com`;
     await inviteMember(owner, email, "viewer");
     const token = await waitForToken(email);
-    await db().update(invitations).set({ expiresAt: new Date(Date.now() - 1000) }).where(eq(invitations.email, email));
+    await db()
+      .update(invitations)
+      .set({ expiresAt: new Date(Date.now() - 1000) })
+      .where(eq(invitations.email, email));
     const [u] = await db().insert(users).values({ email }).returning();
-    await expect(acceptInvitation({ id: u!.id, email, name: null }, token)).rejects.toMatchObject({ code: "invitation_expired", message: expect.stringMatching(/expired/) });
+    await expect(acceptInvitation({ id: u!.id, email, name: null }, token)).rejects.toMatchObject({
+      code: "invitation_expired",
+      message: expect.stringMatching(/expired/),
+    });
 
     const email2 = `withdrawn-${Date.now()}@example.com`;
     await inviteMember(owner, email2, "viewer");
@@ -259,7 +293,10 @@ describe("API keys and cross-workspace access", () => {
     expect(made.ok).toBe(true);
     const key = made.ok ? made.data.key : "";
     secrets.push(key);
-    const [row] = await db().select().from(apiKeys).where(eq(apiKeys.prefix, made.ok ? made.data.prefix : ""));
+    const [row] = await db()
+      .select()
+      .from(apiKeys)
+      .where(eq(apiKeys.prefix, made.ok ? made.data.prefix : ""));
     expect(JSON.stringify(row)).not.toContain(key);
 
     const list = await call(listKitsRoute as never, key, "/api/v1/kits");
@@ -328,7 +365,10 @@ describe("API keys and cross-workspace access", () => {
 describe("secrets", () => {
   it("never appear in logs or in the database in clear (outside the dev outbox)", async () => {
     const everything = JSON.stringify(
-      await db().execute(sql`select (select json_agg(u) from users u) as u, (select json_agg(k) from api_keys k) as k, (select json_agg(i) from invitations i) as i, (select json_agg(a) from audit_events a) as a, (select json_agg(v) from verification_tokens v) as v`),
+      await db().execute(
+        sql`select (select json_agg(u) from users u) as u, (select json_agg(k) from api_keys k) as k, (select json_agg(i) from ` +
+          `invitations i) as i, (select json_agg(a) from audit_events a) as a, (select json_agg(v) from verification_tokens v) as v`,
+      ),
     );
     expect(secrets.length).toBeGreaterThan(5);
     for (const s of secrets) {

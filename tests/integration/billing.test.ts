@@ -2,7 +2,18 @@ import { createHmac } from "node:crypto";
 import { eq, like, sql } from "drizzle-orm";
 import { beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
-import { apiKeys, auditEvents, billingEvents, invoices, kits, memberships, plateUsage, users, workspaceBilling, workspaces } from "@/db/schema";
+import {
+  apiKeys,
+  auditEvents,
+  billingEvents,
+  invoices,
+  kits,
+  memberships,
+  plateUsage,
+  users,
+  workspaceBilling,
+  workspaces,
+} from "@/db/schema";
 import { permissionsOf, systemActor } from "@/lib/auth/actor";
 import { generateApiKey } from "@/lib/auth/api-keys";
 import { PLANS } from "@/lib/billing/plans";
@@ -25,7 +36,12 @@ beforeAll(async () => {
   // A shop and an owner of their own, so no demo member gains a second workspace.
   await db().delete(workspaces).where(like(workspaces.name, "Billing test shop%"));
   await db().delete(users).where(like(users.email, "billing-owner-%@example.test"));
-  ws = (await db().insert(workspaces).values({ name: "Billing test shop", slug: `billing-${Date.now()}` }).returning())[0]!;
+  ws = (
+    await db()
+      .insert(workspaces)
+      .values({ name: "Billing test shop", slug: `billing-${Date.now()}` })
+      .returning()
+  )[0]!;
   ownerEmail = `billing-owner-${Date.now()}@example.test`;
   const [owner] = await db().insert(users).values({ email: ownerEmail, name: "Bea Ledger" }).returning();
   ownerId = owner!.id;
@@ -34,8 +50,14 @@ beforeAll(async () => {
 
 const actor = () => ({ workspaceId: ws.id, userId: ownerId, apiKeyId: null, permissions: permissionsOf("owner"), email: ownerEmail });
 /** Sign like the provider (HMAC-SHA256 of "t.body"), independently of the SDK the app verifies with. */
-const sign = (body: string, t = Math.floor(Date.now() / 1000), key = secret) => `t=${t},v1=${createHmac("sha256", key).update(`${t}.${body}`).digest("hex")}`;
-const hook = (body: string, sig: string) => fetch(`${baseUrl()}/api/billing/webhook`, { method: "POST", body, headers: { "content-type": "application/json", "stripe-signature": sig } });
+const sign = (body: string, t = Math.floor(Date.now() / 1000), key = secret) =>
+  `t=${t},v1=${createHmac("sha256", key).update(`${t}.${body}`).digest("hex")}`;
+const hook = (body: string, sig: string) =>
+  fetch(`${baseUrl()}/api/billing/webhook`, {
+    method: "POST",
+    body,
+    headers: { "content-type": "application/json", "stripe-signature": sig },
+  });
 
 async function payOnHostedPage(url: string) {
   // The hosted page's form, submitted as a browser would.
@@ -63,7 +85,11 @@ describe("checkout", () => {
   });
 
   it("an event delivered twice changes nothing the second time", async () => {
-    const events = ((await (await fetch(`${fake}/_control/events`)).json()) as { events: { id: string; type: string; data: { object: { customer?: string } } }[] }).events;
+    const events = (
+      (await (await fetch(`${fake}/_control/events`)).json()) as {
+        events: { id: string; type: string; data: { object: { customer?: string } } }[];
+      }
+    ).events;
     const customer = (await billingOf(systemActor(ws.id))).customerId;
     const paid = events.filter((e) => e.type === "invoice.paid" && e.data.object.customer === customer).at(-1)!;
     const before = await db().select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, ws.id));
@@ -77,15 +103,33 @@ describe("checkout", () => {
 
   it("an older event arriving after a newer one is recorded as stale and changes nothing", async () => {
     const b = await billingOf(systemActor(ws.id));
-    const late = { type: "customer.subscription.deleted", object: { id: b.subscriptionId, object: "subscription", customer: b.customerId, status: "canceled", metadata: { workspaceId: ws.id } }, created: Math.floor(b.lastEventAt!.getTime() / 1000) - 3600 };
-    const { event } = (await (await fetch(`${fake}/_control/send`, { method: "POST", body: JSON.stringify(late) })).json()) as { event: string };
+    const late = {
+      type: "customer.subscription.deleted",
+      object: {
+        id: b.subscriptionId,
+        object: "subscription",
+        customer: b.customerId,
+        status: "canceled",
+        metadata: { workspaceId: ws.id },
+      },
+      created: Math.floor(b.lastEventAt!.getTime() / 1000) - 3600,
+    };
+    const { event } = (await (await fetch(`${fake}/_control/send`, { method: "POST", body: JSON.stringify(late) })).json()) as {
+      event: string;
+    };
     const [row] = await db().select().from(billingEvents).where(eq(billingEvents.id, event));
     expect(row!.outcome).toBe("stale");
     expect((await billingOf(systemActor(ws.id))).plan).toBe("workshop");
   });
 
   it("a bad signature is a 400 and changes nothing", async () => {
-    const body = JSON.stringify({ id: "evt_forged", object: "event", type: "customer.subscription.deleted", created: Math.floor(Date.now() / 1000), data: { object: { id: "sub_x", customer: (await billingOf(systemActor(ws.id))).customerId, metadata: { workspaceId: ws.id } } } });
+    const body = JSON.stringify({
+      id: "evt_forged",
+      object: "event",
+      type: "customer.subscription.deleted",
+      created: Math.floor(Date.now() / 1000),
+      data: { object: { id: "sub_x", customer: (await billingOf(systemActor(ws.id))).customerId, metadata: { workspaceId: ws.id } } },
+    });
     const r = await hook(body, sign(body, undefined, "whsec_someone_else"));
     expect(r.status).toBe(400);
     expect(((await r.json()) as { error: { code: string } }).error.code).toBe("bad_signature");
@@ -101,7 +145,22 @@ describe("forged and foreign checkout events", () => {
   it("a checkout.session.completed signed with the old in-source secret is refused (400) and changes nothing", async () => {
     const before = await billingOf(systemActor(ws.id));
     const id = `evt_legacy_${Date.now()}`;
-    const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: "cs_forged_legacy", object: "checkout.session", customer: before.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: ws.id, plan: "farm" } } } });
+    const body = JSON.stringify({
+      id,
+      object: "event",
+      type: "checkout.session.completed",
+      created: Math.floor(Date.now() / 1000),
+      data: {
+        object: {
+          id: "cs_forged_legacy",
+          object: "checkout.session",
+          customer: before.customerId,
+          status: "complete",
+          subscription: "sub_forged",
+          metadata: { workspaceId: ws.id, plan: "farm" },
+        },
+      },
+    });
     const r = await hook(body, sign(body, undefined, LEGACY_SECRET));
     expect(r.status).toBe(400);
     expect(((await r.json()) as { error: { code: string } }).error.code).toBe("bad_signature");
@@ -115,7 +174,22 @@ describe("forged and foreign checkout events", () => {
   it("a correctly signed event for a checkout session we never created is recorded and not applied", async () => {
     const before = await billingOf(systemActor(ws.id));
     const id = `evt_unknown_session_${Date.now()}`;
-    const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: `cs_never_made_${Date.now()}`, object: "checkout.session", customer: before.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: ws.id, plan: "farm" } } } });
+    const body = JSON.stringify({
+      id,
+      object: "event",
+      type: "checkout.session.completed",
+      created: Math.floor(Date.now() / 1000),
+      data: {
+        object: {
+          id: `cs_never_made_${Date.now()}`,
+          object: "checkout.session",
+          customer: before.customerId,
+          status: "complete",
+          subscription: "sub_forged",
+          metadata: { workspaceId: ws.id, plan: "farm" },
+        },
+      },
+    });
     const r = await hook(body, sign(body));
     expect(r.status).toBe(200);
     expect(((await r.json()) as { outcome: string }).outcome).toBe("unknown_session");
@@ -129,7 +203,10 @@ describe("forged and foreign checkout events", () => {
   // the workspace and plan come from our record of the session, never from the event's metadata.
   it("a checkout session created for workspace A cannot upgrade workspace B through its metadata", async () => {
     await db().delete(workspaces).where(like(workspaces.name, "Billing other shop%"));
-    const [other] = await db().insert(workspaces).values({ name: "Billing other shop", slug: `billing-other-${Date.now()}` }).returning();
+    const [other] = await db()
+      .insert(workspaces)
+      .values({ name: "Billing other shop", slug: `billing-other-${Date.now()}` })
+      .returning();
     const otherId = other?.id ?? "";
     expect((await billingOf(systemActor(otherId))).plan).toBe("bench");
     const aBefore = await billingOf(systemActor(ws.id));
@@ -137,7 +214,22 @@ describe("forged and foreign checkout events", () => {
     const sessionId = new URL(url).pathname.split("/").at(-1) ?? "";
     expect(sessionId).toMatch(/^cs_/);
     const id = `evt_cross_${Date.now()}`;
-    const body = JSON.stringify({ id, object: "event", type: "checkout.session.completed", created: Math.floor(Date.now() / 1000), data: { object: { id: sessionId, object: "checkout.session", customer: aBefore.customerId, status: "complete", subscription: "sub_forged", metadata: { workspaceId: otherId, plan: "farm" } } } });
+    const body = JSON.stringify({
+      id,
+      object: "event",
+      type: "checkout.session.completed",
+      created: Math.floor(Date.now() / 1000),
+      data: {
+        object: {
+          id: sessionId,
+          object: "checkout.session",
+          customer: aBefore.customerId,
+          status: "complete",
+          subscription: "sub_forged",
+          metadata: { workspaceId: otherId, plan: "farm" },
+        },
+      },
+    });
     const r = await hook(body, sign(body));
     expect(r.status).toBe(200);
     expect((await billingOf(systemActor(otherId))).plan).toBe("bench");
@@ -154,10 +246,15 @@ describe("quota and failed payments", () => {
     // The shop's kit and key; the usage counter set just under the Workshop quota.
     const [kit] = await db().insert(kits).values({ workspaceId: ws.id, name: "Empty test kit" }).returning();
     const k = generateApiKey();
-    await db().insert(apiKeys).values({ workspaceId: ws.id, name: "quota test", prefix: k.prefix, keyHash: k.hash, scopes: ["plates:write", "plates:read"] });
+    await db()
+      .insert(apiKeys)
+      .values({ workspaceId: ws.id, name: "quota test", prefix: k.prefix, keyHash: k.hash, scopes: ["plates:write", "plates:read"] });
     const b = await billingOf(systemActor(ws.id));
     const start = b.periodStart!;
-    await db().insert(plateUsage).values({ workspaceId: ws.id, periodStart: start, plates: PLANS.workshop.platesPerPeriod }).onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: PLANS.workshop.platesPerPeriod } });
+    await db()
+      .insert(plateUsage)
+      .values({ workspaceId: ws.id, periodStart: start, plates: PLANS.workshop.platesPerPeriod })
+      .onConflictDoUpdate({ target: [plateUsage.workspaceId, plateUsage.periodStart], set: { plates: PLANS.workshop.platesPerPeriod } });
     const f = new FormData();
     f.append("kit", kit!.id);
     const r = await fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", body: f, headers: { authorization: `Bearer ${k.key}` } });
@@ -178,17 +275,27 @@ describe("quota and failed payments", () => {
     const g = await billingOf(systemActor(ws.id));
     expect(g.plan).toBe("workshop"); // still the paid plan while the grace period lasts
     expect(g.graceUntil!.getTime()).toBeGreaterThan(Date.now() + 6 * 86_400_000);
-    expect((await db().select().from(invoices).where(eq(invoices.workspaceId, ws.id))).map((i) => i.status).sort()).toEqual(["failed", "paid"]);
+    expect((await db().select().from(invoices).where(eq(invoices.workspaceId, ws.id))).map((i) => i.status).sort()).toEqual([
+      "failed",
+      "paid",
+    ]);
     // The grace period runs out.
-    await db().update(workspaceBilling).set({ graceUntil: new Date(Date.now() - 1000) }).where(eq(workspaceBilling.workspaceId, ws.id));
+    await db()
+      .update(workspaceBilling)
+      .set({ graceUntil: new Date(Date.now() - 1000) })
+      .where(eq(workspaceBilling.workspaceId, ws.id));
     const down = await billingOf(systemActor(ws.id));
     expect([down.plan, down.status, down.effective.apiKeys]).toEqual(["bench", "canceled", 0]);
     // The shop's key, made on Workshop, now meets the Bench plan's refusal.
     const [key] = await db().select().from(apiKeys).where(eq(apiKeys.workspaceId, ws.id));
     expect(key).toBeDefined();
     const k = generateApiKey();
-    await db().insert(apiKeys).values({ workspaceId: ws.id, name: "after downgrade", prefix: k.prefix, keyHash: k.hash, scopes: ["plates:read"] });
-    const r2 = await fetch(`${baseUrl()}/api/v1/plates/${"0".repeat(8)}-0000-0000-0000-000000000000`, { headers: { authorization: `Bearer ${k.key}` } });
+    await db()
+      .insert(apiKeys)
+      .values({ workspaceId: ws.id, name: "after downgrade", prefix: k.prefix, keyHash: k.hash, scopes: ["plates:read"] });
+    const r2 = await fetch(`${baseUrl()}/api/v1/plates/${"0".repeat(8)}-0000-0000-0000-000000000000`, {
+      headers: { authorization: `Bearer ${k.key}` },
+    });
     expect(r2.status).toBe(402);
     expect(((await r2.json()) as { error: { code: string } }).error.code).toBe("plan_limit");
   });
@@ -196,7 +303,9 @@ describe("quota and failed payments", () => {
   it("a plate's build is queued with its plan's priority (Farm first when the workers are busy)", async () => {
     const [demo] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
     const [b] = await db().select().from(workspaceBilling).where(eq(workspaceBilling.workspaceId, demo!.id));
-    const creds = JSON.parse((await import("node:fs")).readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+    const creds = JSON.parse(
+      (await import("node:fs")).readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"),
+    ) as { apiKey: string };
     const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo!.id));
     const f = new FormData();
     f.append("kit", kit!.id);

@@ -15,14 +15,19 @@ import { baseUrl, startReceiver, type Received } from "../support/http";
 
 // The print floor against the started app and worker: the plate map PDF read back by pdf.js and its
 // QR code decoded from a raster made by poppler's pdftoppm; an inspection with a missing piece; yield.
-const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+  apiKey: string;
+};
 const auth = { authorization: `Bearer ${creds.apiKey}` };
 let kitId: string, workspaceId: string, designerId: string, operatorId: string;
 
 beforeAll(async () => {
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
   workspaceId = ws!.id;
-  const [k] = await db().select().from(kits).where(and(eq(kits.workspaceId, ws!.id), eq(kits.name, "Harbour Run token set")));
+  const [k] = await db()
+    .select()
+    .from(kits)
+    .where(and(eq(kits.workspaceId, ws!.id), eq(kits.name, "Harbour Run token set")));
   kitId = k!.id;
   designerId = (await db().select().from(users).where(eq(users.email, "dario@marrowby.example")))[0]!.id;
   operatorId = (await db().select().from(users).where(eq(users.email, "opal@marrowby.example")))[0]!.id;
@@ -106,7 +111,7 @@ describe("inspection", () => {
   });
   afterAll(() => receiver.close());
 
-  it("one missing piece: the status follows, the maker is e-mailed, the callback is signed, the reprint holds exactly that piece", async () => {
+  it("one missing piece: the status follows, the maker is told, the callback is signed, the reprint holds only that piece", async () => {
     const id = await makePlate({ callbackUrl: receiver.url("/slab-events") });
     await db().update(plates).set({ createdBy: designerId }).where(eq(plates.id, id)); // made by the demo designer
     const [p] = await db().select().from(plates).where(eq(plates.id, id));
@@ -114,7 +119,9 @@ describe("inspection", () => {
     const piece3 = piecesOf(p!).find((x) => x.number === 3)!;
     received.length = 0;
 
-    const r = await recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [{ number: 3, state: "missing" }]);
+    const r = await recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [
+      { number: 3, state: "missing" },
+    ]);
     expect(r.to).toBe("reprint_needed");
     const [after] = await db().select().from(plates).where(eq(plates.id, id));
     expect(after!.floorState).toBe("reprint_needed");
@@ -124,7 +131,18 @@ describe("inspection", () => {
 
     // The maker's mail, caught by the fake SMTP server.
     await expect
-      .poll(async () => (await db().select().from(devOutbox).where(sql`${devOutbox.toAddresses} like ${"%dario@marrowby.example%"}`).orderBy(desc(devOutbox.receivedAt)).limit(1))[0]?.subject ?? "", { timeout: 10_000 })
+      .poll(
+        async () =>
+          (
+            await db()
+              .select()
+              .from(devOutbox)
+              .where(sql`${devOutbox.toAddresses} like ${"%dario@marrowby.example%"}`)
+              .orderBy(desc(devOutbox.receivedAt))
+              .limit(1)
+          )[0]?.subject ?? "",
+        { timeout: 10_000 },
+      )
       .toMatch(/1 piece to reprint/);
     // The signed inspection event (HMAC-SHA256 of "<t>.<body>", RFC 2104, checked independently).
     await expect.poll(() => received.filter((x) => x.body.includes('"inspection"')).length, { timeout: 10_000 }).toBe(1);
@@ -135,7 +153,12 @@ describe("inspection", () => {
     expect(JSON.parse(ev.body)).toMatchObject({ event: "inspection", plate: { id }, pieces: [{ number: 3, state: "missing" }] });
 
     const reprint = await makeReprint({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id);
-    expect([reprint.reprintOf, reprint.source, reprint.pieceCount, reprint.templateVersionId]).toEqual([id, "reprint", 1, p!.templateVersionId]);
+    expect([reprint.reprintOf, reprint.source, reprint.pieceCount, reprint.templateVersionId]).toEqual([
+      id,
+      "reprint",
+      1,
+      p!.templateVersionId,
+    ]);
     for (let i = 0; i < 100; i++) {
       const [x] = await db().select().from(plates).where(eq(plates.id, reprint.id));
       if (x!.jobState === "done" || x!.jobState === "failed") break;
@@ -153,9 +176,21 @@ describe("inspection", () => {
 
   it("a defective piece needs a note; a piece the plate does not have is refused", async () => {
     const id = await makePlate();
-    await expect(recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [{ number: 2, state: "defective" }])).rejects.toThrow(/Say what is wrong with piece 2/);
-    await expect(recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [{ number: 99, state: "missing" }])).rejects.toThrow(/no piece 99/);
-    const ok = await recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, "all-present");
+    await expect(
+      recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [
+        { number: 2, state: "defective" },
+      ]),
+    ).rejects.toThrow(/Say what is wrong with piece 2/);
+    await expect(
+      recordInspection({ workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") }, id, [
+        { number: 99, state: "missing" },
+      ]),
+    ).rejects.toThrow(/no piece 99/);
+    const ok = await recordInspection(
+      { workspaceId, userId: operatorId, apiKeyId: null, permissions: permissionsOf("operator") },
+      id,
+      "all-present",
+    );
     expect(ok.to).toBe("done");
   });
 });
@@ -163,14 +198,33 @@ describe("inspection", () => {
 describe("first-pass yield", () => {
   it("counts only each plate's first inspection: 3 of 5 first inspections complete → 60 %; per kit apart", async () => {
     // A workspace of its own so the count is exactly this seeded history.
-    const [ws] = await db().insert(workspaces).values({ name: "Yield test", slug: `yield-${Date.now()}` }).returning();
+    const [ws] = await db()
+      .insert(workspaces)
+      .values({ name: "Yield test", slug: `yield-${Date.now()}` })
+      .returning();
     const [kitA] = await db().insert(kits).values({ workspaceId: ws!.id, name: "Kit A" }).returning();
     const [kitB] = await db().insert(kits).values({ workspaceId: ws!.id, name: "Kit B" }).returning();
     const seed = async (kit: string, first: [number, number], second?: [number, number]) => {
-      const [p] = await db().insert(plates).values({ workspaceId: ws!.id, kitId: kit, source: "api", options: {}, status: "ready", jobState: "done", floorState: "done" }).returning();
+      const [p] = await db()
+        .insert(plates)
+        .values({ workspaceId: ws!.id, kitId: kit, source: "api", options: {}, status: "ready", jobState: "done", floorState: "done" })
+        .returning();
       const at = new Date("2026-11-16T10:00:00Z");
-      await db().insert(inspections).values({ workspaceId: ws!.id, plateId: p!.id, results: [], first: true, missing: first[0], defective: first[1], at });
-      if (second) await db().insert(inspections).values({ workspaceId: ws!.id, plateId: p!.id, results: [], first: false, missing: second[0], defective: second[1], at: new Date("2026-11-24T10:00:00Z") });
+      await db()
+        .insert(inspections)
+        .values({ workspaceId: ws!.id, plateId: p!.id, results: [], first: true, missing: first[0], defective: first[1], at });
+      if (second)
+        await db()
+          .insert(inspections)
+          .values({
+            workspaceId: ws!.id,
+            plateId: p!.id,
+            results: [],
+            first: false,
+            missing: second[0],
+            defective: second[1],
+            at: new Date("2026-11-24T10:00:00Z"),
+          });
     };
     await seed(kitA!.id, [0, 0]);
     await seed(kitA!.id, [0, 0]);

@@ -19,14 +19,30 @@ afterAll(async () => {
 });
 
 const tables = async () =>
-  (await pool.query<{ table_name: string }>("select table_name from information_schema.tables where table_schema = 'public' order by 1")).rows.map((r) => r.table_name);
+  (
+    await pool.query<{ table_name: string }>("select table_name from information_schema.tables where table_schema = 'public' order by 1")
+  ).rows.map((r) => r.table_name);
 
 describe("migrations", () => {
   it("apply to an empty database and create every area's tables", async () => {
     expect(await tables()).toEqual([]);
     await applyMigrations(pool);
     const names = await tables();
-    for (const t of ["users", "accounts", "sessions", "verification_tokens", "workspaces", "memberships", "api_keys", "parts", "kits", "kit_parts", "templates", "template_versions", "plates"]) {
+    for (const t of [
+      "users",
+      "accounts",
+      "sessions",
+      "verification_tokens",
+      "workspaces",
+      "memberships",
+      "api_keys",
+      "parts",
+      "kits",
+      "kit_parts",
+      "templates",
+      "template_versions",
+      "plates",
+    ]) {
       expect(names).toContain(t);
     }
     const files = readdirSync(path.join(process.cwd(), "db", "migrations")).filter((f) => f.endsWith(".sql"));
@@ -36,11 +52,15 @@ describe("migrations", () => {
 
   it("re-run as a no-op", async () => {
     const before = await pool.query("select id, hash, created_at from drizzle.__drizzle_migrations order by id");
-    const schemaBefore = await pool.query("select table_name, column_name, data_type from information_schema.columns where table_schema = 'public' order by 1, 2");
+    const schemaBefore = await pool.query(
+      "select table_name, column_name, data_type from information_schema.columns where table_schema = 'public' order by 1, 2",
+    );
     await applyMigrations(pool);
     await applyMigrations(pool);
     const after = await pool.query("select id, hash, created_at from drizzle.__drizzle_migrations order by id");
-    const schemaAfter = await pool.query("select table_name, column_name, data_type from information_schema.columns where table_schema = 'public' order by 1, 2");
+    const schemaAfter = await pool.query(
+      "select table_name, column_name, data_type from information_schema.columns where table_schema = 'public' order by 1, 2",
+    );
     expect(after.rows).toEqual(before.rows);
     expect(schemaAfter.rows).toEqual(schemaBefore.rows);
   });
@@ -49,13 +69,16 @@ describe("migrations", () => {
     const ws = await pool.query("insert into workspaces (id, name, slug) values ('w1', 'W', 'w') returning id");
     expect(ws.rowCount).toBe(1);
     await pool.query(
-      "insert into parts (id, workspace_id, name, format, blob_key, byte_size, triangles, size_x, size_y, size_z, volume) values ('p1', 'w1', 'P', 'stl', $1, 1, 4, 1, 1, 1, 1)",
+      "insert into parts (id, workspace_id, name, format, blob_key, byte_size, triangles, size_x, size_y, size_z, volume) values " +
+        "('p1', 'w1', 'P', 'stl', $1, 1, 4, 1, 1, 1, 1)",
       ["0".repeat(64)],
     );
     await pool.query("insert into kits (id, workspace_id, name) values ('k1', 'w1', 'K')");
     await pool.query("insert into kit_parts (id, kit_id, part_id, quantity) values ('kp1', 'k1', 'p1', 2)");
     await expect(pool.query("delete from parts where id = 'p1'")).rejects.toThrow(/foreign key/);
-    await expect(pool.query("insert into kit_parts (id, kit_id, part_id, quantity) values ('kp2', 'k1', 'p1', 0)")).rejects.toThrow(/check constraint/);
+    await expect(pool.query("insert into kit_parts (id, kit_id, part_id, quantity) values ('kp2', 'k1', 'p1', 0)")).rejects.toThrow(
+      /check constraint/,
+    );
     await pool.query("delete from kits where id = 'k1'");
     await pool.query("delete from workspaces where id = 'w1'");
     const left = await pool.query("select (select count(*) from parts)::int as parts, (select count(*) from kit_parts)::int as lines");

@@ -28,7 +28,11 @@ afterAll(async () => {
 });
 
 const upload = (s: HttpSession, name: string, body: Uint8Array, query = "") =>
-  s.fetch(`/api/parts?name=${encodeURIComponent(name)}${query}`, { method: "POST", body: new Uint8Array(body), headers: { "content-type": "application/octet-stream" } });
+  s.fetch(`/api/parts?name=${encodeURIComponent(name)}${query}`, {
+    method: "POST",
+    body: new Uint8Array(body),
+    headers: { "content-type": "application/octet-stream" },
+  });
 
 const blobPath = (bytes: Uint8Array) => {
   const key = createHash("sha256").update(bytes).digest("hex");
@@ -39,7 +43,9 @@ describe("uploading parts", () => {
   it("a batch with one broken file stores the good ones and names the broken one's problem", async () => {
     const gear = new Uint8Array(readFileSync(path.join(MODELS, "objects/gearwheel.bin.stl")));
     // The stl-models package's tetrahedron with a face missing, made unique to this run.
-    const broken = new TextEncoder().encode(readFileSync(path.join(MODELS, "broken/missingFace.ascii.stl"), "utf8").replace("solid tetrahedron", `solid tetrahedron-${tag}`));
+    const broken = new TextEncoder().encode(
+      readFileSync(path.join(MODELS, "broken/missingFace.ascii.stl"), "utf8").replace("solid tetrahedron", `solid tetrahedron-${tag}`),
+    );
     const blocks = writeBinaryStl([box(10, 10, 10), box(8, 8, 5, [20, 0, 0]), box(6, 12, 4, [0, 20, 0])]);
 
     // Each upload is answered at once (202, checking); a build worker imports it, never the web process.
@@ -58,13 +64,19 @@ describe("uploading parts", () => {
     made.push(...a.parts!.map((p) => p.id), c.parts![0]!.id);
 
     // The refused file left no row and no stored bytes.
-    const rows = await db().select().from(parts).where(eq(parts.name, `broken-${tag}`));
+    const rows = await db()
+      .select()
+      .from(parts)
+      .where(eq(parts.name, `broken-${tag}`));
     expect(rows).toEqual([]);
     expect(existsSync(blobPath(broken))).toBe(false);
     expect(existsSync(blobPath(gear))).toBe(true);
 
     // The library lists the good ones, searchable, with measurements and a thumbnail.
-    const list = (await (await designer.fetch(`/api/parts?search=${tag}&sort=name&dir=asc`)).json()) as { rows: { name: string; triangles: number; contactArea: number; thumbnail: string }[]; total: number };
+    const list = (await (await designer.fetch(`/api/parts?search=${tag}&sort=name&dir=asc`)).json()) as {
+      rows: { name: string; triangles: number; contactArea: number; thumbnail: string }[];
+      total: number;
+    };
     expect(list.rows.map((r) => r.name)).toEqual([`blocks-${tag}`, `gear-${tag}`]);
     expect(list.rows[1]!.triangles).toBe(2444);
     expect(list.rows[1]!.contactArea).toBeGreaterThan(100);
@@ -87,17 +99,34 @@ describe("uploading parts", () => {
     expect(split.parts.every((p) => p.bodies === 1 && p.triangles === 12)).toBe(true);
     made.push(...split.parts.map((p) => p.id));
     expect((await designer.fetch(`/api/parts/${id}`)).status).toBe(404);
-    const vols = await db().select({ v: parts.volume }).from(parts).where(inArray(parts.id, split.parts.map((p) => p.id)));
+    const vols = await db()
+      .select({ v: parts.volume })
+      .from(parts)
+      .where(
+        inArray(
+          parts.id,
+          split.parts.map((p) => p.id),
+        ),
+      );
     expect(vols.map((r) => Math.round(r.v)).sort((x, y) => x - y)).toEqual([288, 405, 1000]);
   });
 
   it("refuses a declared over-limit body with 413 before reading any of it", async () => {
     const url = new URL(`${baseUrl()}/api/parts?name=huge.stl`);
     const status = await new Promise<number>((resolve, reject) => {
-      const req = http.request({ host: url.hostname, port: url.port, path: `${url.pathname}${url.search}`, method: "POST", headers: { "content-length": String(300 * 1024 * 1024), "content-type": "application/octet-stream", cookie: designer.cookie() } }, (res) => {
-        resolve(res.statusCode ?? 0);
-        req.destroy();
-      });
+      const req = http.request(
+        {
+          host: url.hostname,
+          port: url.port,
+          path: `${url.pathname}${url.search}`,
+          method: "POST",
+          headers: { "content-length": String(300 * 1024 * 1024), "content-type": "application/octet-stream", cookie: designer.cookie() },
+        },
+        (res) => {
+          resolve(res.statusCode ?? 0);
+          req.destroy();
+        },
+      );
       req.on("error", reject);
       req.flushHeaders(); // headers only: not a byte of the 300 MB is sent
     });
@@ -136,8 +165,18 @@ describe("uploading parts", () => {
     const p = up.parts![0]!;
     made.push(p.id);
     expect(p.warnings[0]).toMatchObject({ code: "units_suspect", suggestion: { unit: "inch" } });
-    const patch = (body: unknown) => designer.fetch(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify(body), headers: { "content-type": "application/json" } });
-    const part = async () => ((await (await designer.fetch(`/api/parts/${p.id}`)).json()) as { part: { sizeX: number; sizeZ: number; layFlat: boolean; unit: string; warnings: unknown[] } }).part;
+    const patch = (body: unknown) =>
+      designer.fetch(`/api/parts/${p.id}`, {
+        method: "PATCH",
+        body: JSON.stringify(body),
+        headers: { "content-type": "application/json" },
+      });
+    const part = async () =>
+      (
+        (await (await designer.fetch(`/api/parts/${p.id}`)).json()) as {
+          part: { sizeX: number; sizeZ: number; layFlat: boolean; unit: string; warnings: unknown[] };
+        }
+      ).part;
     // Reading in another unit re-reads the mesh: queued for a worker (202), the same part id afterwards.
     const fixing = await patch({ unit: "inch" });
     expect(fixing.status).toBe(202);
@@ -153,7 +192,10 @@ describe("uploading parts", () => {
     // A rename alone needs no worker: answered at once.
     const renamed = await patch({ name: `inchy-renamed-${tag}` });
     expect(renamed.status).toBe(200);
-    expect(((await renamed.json()) as { part: { name: string; unit: string } }).part).toMatchObject({ name: `inchy-renamed-${tag}`, unit: "inch" });
+    expect(((await renamed.json()) as { part: { name: string; unit: string } }).part).toMatchObject({
+      name: `inchy-renamed-${tag}`,
+      unit: "inch",
+    });
   });
 
   it("refuses a viewer's upload (403) and a signed-out one (401)", async () => {

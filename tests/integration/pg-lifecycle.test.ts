@@ -103,7 +103,10 @@ async function makeItATrustCluster() {
 /** psql with no password at all (-w: never prompt; no PGPASSWORD): the server's own answer. */
 function psqlWithoutPassword(): string {
   const { PGPASSWORD: _ignored, ...rest } = process.env;
-  const r = spawnSync("psql", ["-w", "-X", "-h", "127.0.0.1", "-p", String(port), "-U", "postgres", "-d", "postgres", "-tAc", "select 1"], { env: rest, encoding: "utf8" });
+  const r = spawnSync("psql", ["-w", "-X", "-h", "127.0.0.1", "-p", String(port), "-U", "postgres", "-d", "postgres", "-tAc", "select 1"], {
+    env: rest,
+    encoding: "utf8",
+  });
   return r.status === 0 ? r.stdout.trim() : r.stderr;
 }
 

@@ -5,7 +5,9 @@ import { baseUrl } from "../support/http";
 import { box } from "../support/meshes";
 
 // Parts saved in metres or inches, posted to the plate API over HTTP (the started app and build worker).
-const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+  apiKey: string;
+};
 
 /** A 20 × 20 × 3 mm token with its coordinates written in `perMm` units per mm (0.001: metres; 1/25.4: inches). */
 const token = (perMm: number) => new Blob([new Uint8Array(writeBinaryStl([box(20 * perMm, 20 * perMm, 3 * perMm)]))]);
@@ -31,9 +33,13 @@ describe("POST /api/v1/plates with parts in other units", () => {
     expect(e.code).toBe("findings");
     expect(e.details.findings.find((f) => f.code === "part_too_small")?.message).toBe(`Part 1 (token.stl) is ${fix}`);
     // The plate keeps all its findings, the importer's named warning among them (the error lists only errors).
-    const stored = await fetch(`${baseUrl()}/api/v1/plates/${refused.headers.get("x-plate-id")}`, { headers: { authorization: `Bearer ${creds.apiKey}` } });
+    const stored = await fetch(`${baseUrl()}/api/v1/plates/${refused.headers.get("x-plate-id")}`, {
+      headers: { authorization: `Bearer ${creds.apiKey}` },
+    });
     const findings = ((await stored.json()) as { findings: Finding[] }).findings;
-    expect(findings.some((f) => f.code === "units_suspect" && f.severity === "warning" && f.message.startsWith("Part 1 (token.stl): "))).toBe(true);
+    expect(
+      findings.some((f) => f.code === "units_suspect" && f.severity === "warning" && f.message.startsWith("Part 1 (token.stl): ")),
+    ).toBe(true);
 
     // The plain form and the JSON array form of the field.
     for (const units of [unit, JSON.stringify([unit])]) {

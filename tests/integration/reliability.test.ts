@@ -8,7 +8,9 @@ import { plateFiles, kits, plates, workspaces } from "@/db/schema";
 import { baseUrl } from "../support/http";
 
 // Under load and through a worker crash, over HTTP against the started app and worker.
-const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+  apiKey: string;
+};
 const auth = { authorization: `Bearer ${creds.apiKey}` };
 let kitId: string;
 let replacement: ChildProcess | undefined;
@@ -40,7 +42,11 @@ describe("reliability", () => {
     await Promise.all(
       Array.from({ length: 8 }, async (_, client) => {
         for (let i = 0; i < 5; i++) {
-          const r = await fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", headers: auth, body: plateForm({ format: "json", variables: JSON.stringify({ order: `${client}-${i}` }) }) });
+          const r = await fetch(`${baseUrl()}/api/v1/plates`, {
+            method: "POST",
+            headers: auth,
+            body: plateForm({ format: "json", variables: JSON.stringify({ order: `${client}-${i}` }) }),
+          });
           statuses.push(r.status);
           const body = (await r.json()) as { plate?: { id: string; status: string }; pieces?: unknown[] };
           if (r.status === 200) {
@@ -59,7 +65,11 @@ describe("reliability", () => {
   it("survives the worker being killed mid-job: the job is handed out again and completes once", async () => {
     const pid = Number(process.env.SLAB_TEST_WORKER_PID);
     expect(pid).toBeGreaterThan(0);
-    const r = await fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", headers: { ...auth, prefer: "respond-async", "idempotency-key": `crash-${Date.now()}` }, body: plateForm({ options: JSON.stringify({ layout: { copies: 12, bed: { width: 400, depth: 400 } } }) }) });
+    const r = await fetch(`${baseUrl()}/api/v1/plates`, {
+      method: "POST",
+      headers: { ...auth, prefer: "respond-async", "idempotency-key": `crash-${Date.now()}` },
+      body: plateForm({ options: JSON.stringify({ layout: { copies: 12, bed: { width: 400, depth: 400 } } }) }),
+    });
     expect(r.status).toBe(202);
     const plateId = r.headers.get("x-plate-id")!;
     // Wait until the worker has started on it, then kill the worker outright.
@@ -69,7 +79,12 @@ describe("reliability", () => {
       await new Promise((res) => setTimeout(res, 50));
     }
     process.kill(pid, "SIGKILL");
-    replacement = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], { cwd: process.cwd(), env: process.env, stdio: "ignore", detached: false });
+    replacement = spawn(process.execPath, ["--import", "tsx", "scripts/worker.ts"], {
+      cwd: process.cwd(),
+      env: process.env,
+      stdio: "ignore",
+      detached: false,
+    });
     let state = "";
     for (let i = 0; i < 300 && state !== "done" && state !== "failed"; i++) {
       await new Promise((res) => setTimeout(res, 200));
@@ -79,7 +94,9 @@ describe("reliability", () => {
     expect(state).toBe("done");
     const [p] = await db().select().from(plates).where(eq(plates.id, plateId));
     expect((await db().select().from(plateFiles).where(eq(plateFiles.plateId, plateId))).map((f) => f.format)).toContain("stl");
-    const job = await db().execute<{ state: string; retry_count: number }>(sql`select state, retry_count from pgboss.job where id = ${p!.jobId}`);
+    const job = await db().execute<{ state: string; retry_count: number }>(
+      sql`select state, retry_count from pgboss.job where id = ${p!.jobId}`,
+    );
     expect(job.rows[0]).toMatchObject({ state: "completed" });
     expect(job.rows[0]!.retry_count).toBeGreaterThanOrEqual(1); // it was handed out again after the crash
     const file = await fetch(`${baseUrl()}/api/v1/plates/${plateId}/file?format=stl`, { headers: auth });

@@ -26,7 +26,11 @@ describe("Content-Security-Policy on pages: a fresh nonce instead of 'unsafe-inl
   it("has a 'nonce-…' in script-src, no 'unsafe-inline', and the nonce on every script tag", async () => {
     const owner = demoUser("owner");
     const session = await signInOverHttp(owner.email, owner.password);
-    for (const [path, cookie] of [["/", undefined], ["/sign-in", undefined], ["/kits", session.cookie()]] as const) {
+    for (const [path, cookie] of [
+      ["/", undefined],
+      ["/sign-in", undefined],
+      ["/kits", session.cookie()],
+    ] as const) {
       const { csp, html } = await page(path, cookie);
       const script = directive(csp, "script-src");
       const nonce = /'nonce-([A-Za-z0-9+/=_-]+)'/.exec(script)?.[1];

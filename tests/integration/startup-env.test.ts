@@ -9,7 +9,10 @@ const port = Number(process.env.SLAB_TEST_PORT ?? 3100) + 7;
 function startWithout(names: string[]): Promise<{ code: number | null; output: string; killed: boolean }> {
   const env: NodeJS.ProcessEnv = { ...process.env, NODE_ENV: "production" };
   for (const n of names) delete env[n];
-  const child = spawn(path.resolve("node_modules/.bin/next"), ["start", "-H", "127.0.0.1", "-p", String(port)], { env, stdio: ["ignore", "pipe", "pipe"] });
+  const child = spawn(path.resolve("node_modules/.bin/next"), ["start", "-H", "127.0.0.1", "-p", String(port)], {
+    env,
+    stdio: ["ignore", "pipe", "pipe"],
+  });
   let output = "";
   child.stdout.on("data", (c) => (output += String(c)));
   child.stderr.on("data", (c) => (output += String(c)));

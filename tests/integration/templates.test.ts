@@ -10,7 +10,9 @@ import { baseUrl } from "../support/http";
 
 // Templates through the plate API against the started app and worker: starters listed, values
 // checked, version pinning byte for byte.
-const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+  apiKey: string;
+};
 const auth = { authorization: `Bearer ${creds.apiKey}` };
 let kitId: string;
 let workspaceId: string;
@@ -19,7 +21,10 @@ let designerId: string;
 beforeAll(async () => {
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
   workspaceId = ws!.id;
-  const [k] = await db().select().from(kits).where(and(eq(kits.workspaceId, ws!.id), eq(kits.name, "Harbour Run token set")));
+  const [k] = await db()
+    .select()
+    .from(kits)
+    .where(and(eq(kits.workspaceId, ws!.id), eq(kits.name, "Harbour Run token set")));
   kitId = k!.id;
   const [u] = await db().select().from(users).where(eq(users.email, "dario@marrowby.example"));
   designerId = u!.id;
@@ -51,8 +56,13 @@ describe("GET /api/v1/templates", () => {
   it("lists the workspace's templates and the three starters, with versions, variables and placeholders", async () => {
     const r = await fetch(`${baseUrl()}/api/v1/templates`, { headers: auth });
     expect(r.status).toBe(200);
-    const body = (await r.json()) as { templates: { id: string; name: string; starter: boolean; version: number; variables: { name: string }[]; placeholders: string[] }[] };
-    const starters = body.templates.filter((t) => t.starter).map((t) => t.name).sort();
+    const body = (await r.json()) as {
+      templates: { id: string; name: string; starter: boolean; version: number; variables: { name: string }[]; placeholders: string[] }[];
+    };
+    const starters = body.templates
+      .filter((t) => t.starter)
+      .map((t) => t.name)
+      .sort();
     expect(starters).toEqual(["Numbered set with outlines", "Order label with QR", "Round thank-you slab"]);
     const label = body.templates.find((t) => t.name === "Order label with QR")!;
     expect(label.variables.map((v) => v.name)).toEqual(["order", "customer"]);
@@ -67,7 +77,13 @@ describe("GET /api/v1/templates", () => {
 });
 
 describe("plates from a template", () => {
-  const starter = async (key: string) => (await db().select().from(templates).where(and(eq(templates.starterKey, key), isNull(templates.workspaceId))))[0]!;
+  const starter = async (key: string) =>
+    (
+      await db()
+        .select()
+        .from(templates)
+        .where(and(eq(templates.starterKey, key), isNull(templates.workspaceId)))
+    )[0]!;
 
   it("missing, unknown and too-long values are 422s that name the variable or say by how much", async () => {
     const label = await starter("order-label");
@@ -75,11 +91,21 @@ describe("plates from a template", () => {
     expect(missing.status).toBe(422);
     const m = await errorOf(missing);
     expect([m.code, m.details]).toEqual(["missing_variable", { variables: ["order"] }]);
-    const extra = await post({ kit: kitId, template: label.id, format: "stl", variables: JSON.stringify({ order: "1", customer: "Sam", cutomer: "typo" }) });
+    const extra = await post({
+      kit: kitId,
+      template: label.id,
+      format: "stl",
+      variables: JSON.stringify({ order: "1", customer: "Sam", cutomer: "typo" }),
+    });
     expect(extra.status).toBe(422);
     expect((await errorOf(extra)).code).toBe("unknown_variable");
     // The order label's text lines may be at most 80 mm: a very long customer name does not fit.
-    const long = await post({ kit: kitId, template: label.id, format: "stl", variables: JSON.stringify({ order: "10482", customer: "Maximiliana Featherstonehaugh-Abernethy of Lower Marrowby" }) });
+    const long = await post({
+      kit: kitId,
+      template: label.id,
+      format: "stl",
+      variables: JSON.stringify({ order: "10482", customer: "Maximiliana Featherstonehaugh-Abernethy of Lower Marrowby" }),
+    });
     expect(long.status).toBe(422);
     const l = await errorOf(long);
     expect(l.code).toBe("findings");
@@ -90,16 +116,28 @@ describe("plates from a template", () => {
 
   it("a plate made with version 1 is made again byte for byte after version 2 is saved", async () => {
     const actor = designer();
-    const t = await createTemplate(actor, { name: `Pinning ${Date.now()}`, body: { options: { marks: { text: [{ value: "ORDER {order}" }] } }, variables: [{ name: "order", default: "", sample: "1" }] } });
+    const t = await createTemplate(actor, {
+      name: `Pinning ${Date.now()}`,
+      body: { options: { marks: { text: [{ value: "ORDER {order}" }] } }, variables: [{ name: "order", default: "", sample: "1" }] },
+    });
     const v1 = await post({ kit: kitId, template: t.id, format: "stl", variables: JSON.stringify({ order: "20931" }) });
     expect(v1.status).toBe(200);
     const v1Bytes = await bytes(v1);
     const v1Plate = v1.headers.get("x-plate-id")!;
     const [row] = await db().select().from(plates).where(eq(plates.id, v1Plate));
     expect(row!.templateVersionId).toBe(t.versionId);
-    expect(row!.variables).toMatchObject({ order: "20931", date: expect.stringMatching(/^\d{4}-\d{2}-\d{2}$/), kit: "Harbour Run token set" });
+    expect(row!.variables).toMatchObject({
+      order: "20931",
+      date: expect.stringMatching(/^\d{4}-\d{2}-\d{2}$/),
+      kit: "Harbour Run token set",
+    });
 
-    await saveVersion(actor, t.id, { body: { options: { slab: { shape: "disc" }, marks: { text: [{ value: "No. {order}", size: 6 }] } }, variables: [{ name: "order", default: "", sample: "1" }] } });
+    await saveVersion(actor, t.id, {
+      body: {
+        options: { slab: { shape: "disc" }, marks: { text: [{ value: "No. {order}", size: 6 }] } },
+        variables: [{ name: "order", default: "", sample: "1" }],
+      },
+    });
     const v2 = await post({ kit: kitId, template: t.id, format: "stl", variables: JSON.stringify({ order: "20931" }) });
     expect(v2.status).toBe(200);
     expect((await bytes(v2)).equals(v1Bytes)).toBe(false); // the newest version is another slab
@@ -109,14 +147,31 @@ describe("plates from a template", () => {
     // 3MF too (dated by the plate's {date}, so remaking on another day gives the same bytes).
     expect((await fileOf(again.id, "3mf")).equals(await fileOf(v1Plate, "3mf"))).toBe(true);
     // And the API can ask for version 1 by number.
-    const pinned = await post({ kit: kitId, template: t.id, templateVersion: "1", format: "stl", variables: JSON.stringify({ order: "20931" }) });
+    const pinned = await post({
+      kit: kitId,
+      template: t.id,
+      templateVersion: "1",
+      format: "stl",
+      variables: JSON.stringify({ order: "20931" }),
+    });
     expect((await bytes(pinned)).equals(v1Bytes)).toBe(true);
-    const noSuch = await post({ kit: kitId, template: t.id, templateVersion: "9", format: "stl", variables: JSON.stringify({ order: "1" }) });
+    const noSuch = await post({
+      kit: kitId,
+      template: t.id,
+      templateVersion: "9",
+      format: "stl",
+      variables: JSON.stringify({ order: "1" }),
+    });
     expect(noSuch.status).toBe(404);
   });
 
   it("a template using an undefined variable cannot be saved", async () => {
-    await expect(createTemplate(designer(), { name: "Broken", body: { options: { marks: { text: [{ value: "Hi {nmae}" }] } }, variables: [{ name: "name" }] } })).rejects.toThrow(/uses \{nmae\}, which is not defined/);
+    await expect(
+      createTemplate(designer(), {
+        name: "Broken",
+        body: { options: { marks: { text: [{ value: "Hi {nmae}" }] } }, variables: [{ name: "name" }] },
+      }),
+    ).rejects.toThrow(/uses \{nmae\}, which is not defined/);
   });
 
   it("starter templates cannot be changed", async () => {

@@ -49,14 +49,23 @@ export function blobStoreContract(getStore: () => BlobStore) {
     expect(streamed).toMatchObject({ key: createHash("sha256").update(whole).digest("hex"), size: whole.length });
     expect(await store.put(whole)).toEqual({ key: streamed.key, size: whole.length, created: false });
     expect((await store.putStream(chunks(whole.length, 10_000))).created).toBe(false);
-    expect(createHash("sha256").update(await store.get(streamed.key)).digest("hex")).toBe(streamed.key);
+    expect(
+      createHash("sha256")
+        .update(await store.get(streamed.key))
+        .digest("hex"),
+    ).toBe(streamed.key);
   });
 
   it("stops a stream past its limit, reading no further and storing nothing", async () => {
     // ASVS 4.0 V12.1.1: the size limit holds for a body of unknown length too.
     const store = getStore();
     let pulled = 0;
-    await expect(store.putStream(chunks(10_000_000, 100_000, (n) => (pulled = n)), { maxBytes: 1_000_000 })).rejects.toBeInstanceOf(BlobTooLargeError);
+    await expect(
+      store.putStream(
+        chunks(10_000_000, 100_000, (n) => (pulled = n)),
+        { maxBytes: 1_000_000 },
+      ),
+    ).rejects.toBeInstanceOf(BlobTooLargeError);
     expect(pulled).toBeLessThanOrEqual(1_100_000);
     const firstMb = new Uint8Array(1_000_000);
     let o = 0;

@@ -11,18 +11,23 @@ const RELS = `<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlf
 const TYPES = '<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"/>';
 
 function pack(model: Uint8Array, deflate: (d: Uint8Array) => Uint8Array = (d) => deflateRawSync(d, { level: 9 })) {
-  return writeZip([
-    { name: "[Content_Types].xml", data: enc.encode(TYPES) },
-    { name: "_rels/.rels", data: enc.encode(RELS) },
-    { name: "3D/3dmodel.model", data: model },
-  ], deflate);
+  return writeZip(
+    [
+      { name: "[Content_Types].xml", data: enc.encode(TYPES) },
+      { name: "_rels/.rels", data: enc.encode(RELS) },
+      { name: "3D/3dmodel.model", data: model },
+    ],
+    deflate,
+  );
 }
 
 const CUBE_VERTS = [0, 0, 0, 10, 0, 0, 0, 10, 0, 10, 10, 0, 0, 0, 10, 10, 0, 10, 0, 10, 10, 10, 10, 10];
 // prettier-ignore
 const CUBE_TRIS = [0,2,1, 1,2,3, 4,5,6, 5,7,6, 0,1,4, 1,5,4, 2,6,3, 3,6,7, 0,4,2, 2,4,6, 1,3,5, 3,7,5];
-const vertsXml = (v: number[]) => Array.from({ length: v.length / 3 }, (_, i) => `<vertex x="${v[i * 3]}" y="${v[i * 3 + 1]}" z="${v[i * 3 + 2]}"/>`).join("");
-const trisXml = (t: number[]) => Array.from({ length: t.length / 3 }, (_, i) => `<triangle v1="${t[i * 3]}" v2="${t[i * 3 + 1]}" v3="${t[i * 3 + 2]}"/>`).join("");
+const vertsXml = (v: number[]) =>
+  Array.from({ length: v.length / 3 }, (_, i) => `<vertex x="${v[i * 3]}" y="${v[i * 3 + 1]}" z="${v[i * 3 + 2]}"/>`).join("");
+const trisXml = (t: number[]) =>
+  Array.from({ length: t.length / 3 }, (_, i) => `<triangle v1="${t[i * 3]}" v2="${t[i * 3 + 1]}" v3="${t[i * 3 + 2]}"/>`).join("");
 const head = (tag = "") => `<?xml version="1.0" encoding="UTF-8"?><model unit="millimeter" xmlns="${NS_CORE}">${tag}`;
 
 /**
@@ -30,9 +35,15 @@ const head = (tag = "") => `<?xml version="1.0" encoding="UTF-8"?><model unit="m
  * below; the build item names the top. depth 12, fanout 2 → 2^12 = 4 096 cubes from about 1.2 kB.
  */
 export function componentBomb(depth = 12, fanout = 2): Uint8Array {
-  const objs = [`<object id="1" name="leaf" type="model"><mesh><vertices>${vertsXml(CUBE_VERTS)}</vertices><triangles>${trisXml(CUBE_TRIS)}</triangles></mesh></object>`];
+  const objs = [
+    `<object id="1" name="leaf" ` +
+      `type="model"><mesh><vertices>${vertsXml(CUBE_VERTS)}</vertices><triangles>${trisXml(CUBE_TRIS)}</triangles></mesh></object>`,
+  ];
   for (let level = 1; level <= depth; level++) {
-    const comps = Array.from({ length: fanout }, (_, i) => `<component objectid="${level}" transform="1 0 0 0 1 0 0 0 1 ${i * 11} 0 0"/>`).join("");
+    const comps = Array.from(
+      { length: fanout },
+      (_, i) => `<component objectid="${level}" transform="1 0 0 0 1 0 0 0 1 ${i * 11} 0 0"/>`,
+    ).join("");
     objs.push(`<object id="${level + 1}" type="model"><components>${comps}</components></object>`);
   }
   return pack(enc.encode(`${head()}<resources>${objs.join("")}</resources><build><item objectid="${depth + 1}"/></build></model>`));
@@ -41,7 +52,13 @@ export function componentBomb(depth = 12, fanout = 2): Uint8Array {
 /** A cube whose object also lists `count` vertices no triangle uses (they compress to almost nothing). */
 export function millionVertexFile(count = 1_000_000): Uint8Array {
   const extra = '<vertex x="0" y="0" z="0"/>'.repeat(count);
-  return pack(enc.encode(`${head()}<resources><object id="1" name="cube" type="model"><mesh><vertices>${vertsXml(CUBE_VERTS)}${extra}</vertices><triangles>${trisXml(CUBE_TRIS)}</triangles></mesh></object></resources><build><item objectid="1"/></build></model>`));
+  return pack(
+    enc.encode(
+      `${head()}<resources><object id="1" name="cube" ` +
+        `type="model"><mesh><vertices>${vertsXml(CUBE_VERTS)}${extra}</vertices><triangles>${trisXml(CUBE_TRIS)}` +
+        `</triangles></mesh></object></resources><build><item objectid="1"/></build></model>`,
+    ),
+  );
 }
 
 /**
@@ -51,7 +68,11 @@ export function millionVertexFile(count = 1_000_000): Uint8Array {
  * the cube model alone, so only counting the inflated bytes catches it.
  */
 export function inflateBomb(inflatedMb = 400, honest = false): Uint8Array {
-  const model = enc.encode(`${head()}<resources><object id="1" name="cube" type="model"><mesh><vertices>${vertsXml(CUBE_VERTS)}</vertices><triangles>${trisXml(CUBE_TRIS)}</triangles></mesh></object></resources>`);
+  const model = enc.encode(
+    `${head()}<resources><object id="1" name="cube" ` +
+      `type="model"><mesh><vertices>${vertsXml(CUBE_VERTS)}</vertices><triangles>${trisXml(CUBE_TRIS)}` +
+      `</triangles></mesh></object></resources>`,
+  );
   const tail = enc.encode(`<build><item objectid="1"/></build></model>`);
   const sync = { level: 9, finishFlush: constants.Z_SYNC_FLUSH };
   const pad = deflateRawSync(new Uint8Array(1024 * 1024).fill(0x20), sync);

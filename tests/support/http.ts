@@ -8,7 +8,9 @@ export function baseUrl(): string {
 }
 
 export function demoUser(role: string): { email: string; password: string } {
-  const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { users: { email: string; password: string; role: string }[] };
+  const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+    users: { email: string; password: string; role: string }[];
+  };
   return creds.users.find((u) => u.role === role)!;
 }
 
@@ -38,14 +40,17 @@ export async function signInOverHttp(email: string, password: string): Promise<H
   if (![...jar.keys()].some((k) => k.includes("session-token"))) throw new Error(`sign-in as ${email} failed (HTTP ${res.status})`);
   return {
     cookie,
-    fetch: (path, init = {}) => fetch(`${baseUrl()}${path}`, { ...init, headers: { ...(init.headers as Record<string, string>), cookie: cookie() } }),
+    fetch: (path, init = {}) =>
+      fetch(`${baseUrl()}${path}`, { ...init, headers: { ...(init.headers as Record<string, string>), cookie: cookie() } }),
   };
 }
 
 export type Received = { headers: import("node:http").IncomingHttpHeaders; body: string };
 
 /** A webhook receiver on loopback that keeps every request it gets; answers `status`. */
-export async function startReceiver(status = 204): Promise<{ url: (path?: string) => string; received: Received[]; close: () => Promise<void> }> {
+export async function startReceiver(
+  status = 204,
+): Promise<{ url: (path?: string) => string; received: Received[]; close: () => Promise<void> }> {
   const http = await import("node:http");
   const received: Received[] = [];
   const server = http.createServer((req, res) => {
@@ -58,7 +63,11 @@ export async function startReceiver(status = 204): Promise<{ url: (path?: string
   });
   await new Promise<void>((r) => server.listen(0, "127.0.0.1", () => r()));
   const port = (server.address() as { port: number }).port;
-  return { url: (path = "/") => `http://127.0.0.1:${port}${path}`, received, close: () => new Promise<void>((r) => server.close(() => r())) };
+  return {
+    url: (path = "/") => `http://127.0.0.1:${port}${path}`,
+    received,
+    close: () => new Promise<void>((r) => server.close(() => r())),
+  };
 }
 
 export type Held = { path: string; at: number };

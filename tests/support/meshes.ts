@@ -12,7 +12,8 @@ export function box(sx: number, sy: number, sz: number, at: [number, number, num
 
 /** Triangle soup of a mesh, as an ASCII STL string. */
 export function asciiStl(mesh: IndexedMesh, name = "fixture"): string {
-  const p = mesh.vertProperties, t = mesh.triVerts;
+  const p = mesh.vertProperties,
+    t = mesh.triVerts;
   const lines = [`solid ${name}`];
   for (let i = 0; i < t.length; i += 3) {
     lines.push("  facet normal 0 0 0", "    outer loop");

@@ -6,12 +6,19 @@ import { PNG } from "pngjs";
  */
 export type HeightMap = { width: number; height: number; pxPerMm: number; originX: number; originY: number; z: Float32Array };
 
-export function rasterizeStl(stl: Uint8Array, pxPerMm: number, region?: { minX: number; minY: number; maxX: number; maxY: number }): HeightMap {
+export function rasterizeStl(
+  stl: Uint8Array,
+  pxPerMm: number,
+  region?: { minX: number; minY: number; maxX: number; maxY: number },
+): HeightMap {
   const view = new DataView(stl.buffer, stl.byteOffset, stl.byteLength);
   const n = view.getUint32(80, true);
   const tri = new Float32Array(n * 9);
   for (let t = 0; t < n; t++) for (let j = 0; j < 9; j++) tri[t * 9 + j] = view.getFloat32(84 + 50 * t + 12 + 4 * j, true);
-  let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+  let minX = Infinity,
+    minY = Infinity,
+    maxX = -Infinity,
+    maxY = -Infinity;
   for (let i = 0; i < tri.length; i += 3) {
     minX = Math.min(minX, tri[i]!);
     maxX = Math.max(maxX, tri[i]!);
@@ -24,9 +31,15 @@ export function rasterizeStl(stl: Uint8Array, pxPerMm: number, region?: { minX: 
   const z = new Float32Array(width * height).fill(-Infinity);
   for (let t = 0; t < n; t++) {
     const o = t * 9;
-    const ax = tri[o]!, ay = tri[o + 1]!, az = tri[o + 2]!;
-    const bx = tri[o + 3]!, by = tri[o + 4]!, bz = tri[o + 5]!;
-    const cx = tri[o + 6]!, cy = tri[o + 7]!, cz = tri[o + 8]!;
+    const ax = tri[o]!,
+      ay = tri[o + 1]!,
+      az = tri[o + 2]!;
+    const bx = tri[o + 3]!,
+      by = tri[o + 4]!,
+      bz = tri[o + 5]!;
+    const cx = tri[o + 6]!,
+      cy = tri[o + 7]!,
+      cz = tri[o + 8]!;
     const det = (by - cy) * (ax - cx) + (cx - bx) * (ay - cy);
     if (Math.abs(det) < 1e-12) continue; // vertical faces cover no pixel centres
     const x0 = Math.max(0, Math.floor((Math.min(ax, bx, cx) - r.minX) * pxPerMm));
@@ -65,8 +78,13 @@ export function toRgba(map: HeightMap, dark: (z: number) => boolean): Uint8Clamp
 /** Shade heights for a person to look at (debugging and screenshots). */
 export function heightPng(map: HeightMap): Buffer {
   const png = new PNG({ width: map.width, height: map.height });
-  let lo = Infinity, hi = -Infinity;
-  for (const v of map.z) if (Number.isFinite(v)) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
+  let lo = Infinity,
+    hi = -Infinity;
+  for (const v of map.z)
+    if (Number.isFinite(v)) {
+      lo = Math.min(lo, v);
+      hi = Math.max(hi, v);
+    }
   for (let i = 0; i < map.z.length; i++) {
     const v = map.z[i]!;
     const g = Number.isFinite(v) ? 40 + Math.round((200 * (v - lo)) / Math.max(1e-9, hi - lo)) : 255;

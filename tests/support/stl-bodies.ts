@@ -41,7 +41,8 @@ export function stlBodies(stl: Uint8Array): StlBody[] {
   }
   return [...groups.values()].map((tris) => {
     const out = new Float32Array(tris.length * 9);
-    const min: [number, number, number] = [Infinity, Infinity, Infinity], max: [number, number, number] = [-Infinity, -Infinity, -Infinity];
+    const min: [number, number, number] = [Infinity, Infinity, Infinity],
+      max: [number, number, number] = [-Infinity, -Infinity, -Infinity];
     tris.forEach((t, i) => {
       for (let j = 0; j < 9; j++) {
         const v = tri[t * 9 + j]!;
@@ -77,7 +78,10 @@ export function lowestTopSurface(body: StlBody): number {
   let low = Infinity;
   const t = body.tri;
   for (let i = 0; i < t.length; i += 9) {
-    const ux = t[i + 3]! - t[i]!, uy = t[i + 4]! - t[i + 1]!, vx = t[i + 6]! - t[i]!, vy = t[i + 7]! - t[i + 1]!;
+    const ux = t[i + 3]! - t[i]!,
+      uy = t[i + 4]! - t[i + 1]!,
+      vx = t[i + 6]! - t[i]!,
+      vy = t[i + 7]! - t[i + 1]!;
     const nz = ux * vy - uy * vx; // z of the facet's normal (counter-clockwise seen from outside)
     const z = Math.max(t[i + 2]!, t[i + 5]!, t[i + 8]!);
     if (nz > 1e-9 && z > body.min[2] + 1e-6) low = Math.min(low, z);
@@ -85,7 +89,15 @@ export function lowestTopSurface(body: StlBody): number {
   return low;
 }
 
-export type AdmeshReport = { facets: number; disconnected: number; parts: number; edgesFixed: number; facetsReversed: number; backwardsEdges: number; volume: number };
+export type AdmeshReport = {
+  facets: number;
+  disconnected: number;
+  parts: number;
+  edgesFixed: number;
+  facetsReversed: number;
+  backwardsEdges: number;
+  volume: number;
+};
 
 /**
  * Debian's admesh on the bytes: it repairs by default and always exits 0, so its report is parsed

@@ -10,7 +10,11 @@ export type UploadState = {
 };
 
 export const sendPart = (s: HttpSession, name: string, body: Uint8Array, query = "") =>
-  s.fetch(`/api/parts?name=${encodeURIComponent(name)}${query}`, { method: "POST", body: new Uint8Array(body), headers: { "content-type": "application/octet-stream" } });
+  s.fetch(`/api/parts?name=${encodeURIComponent(name)}${query}`, {
+    method: "POST",
+    body: new Uint8Array(body),
+    headers: { "content-type": "application/octet-stream" },
+  });
 
 /** Follow a 202 upload answer until the worker has checked the file (bounded: 60 s). */
 export async function settled(s: HttpSession, res: Response): Promise<UploadState> {

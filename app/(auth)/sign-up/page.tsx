@@ -11,7 +11,8 @@ export default async function SignUpPage({ searchParams }: { searchParams: Promi
     <div>
       <h1 className="text-xl">Create your Slabwright account</h1>
       <p className="mt-2 text-sm text-muted">
-        {invited ? "After this you will be taken back to your invitation." : "You get a workshop of your own to lay out kits in."} Already have an account?{" "}
+        {invited ? "After this you will be taken back to your invitation." : "You get a workshop of your own to lay out kits in."} Already
+        have an account?{" "}
         <Link href={`/sign-in${next ? `?next=${encodeURIComponent(next)}` : ""}`} className="text-accent hover:underline">
           Sign in
         </Link>

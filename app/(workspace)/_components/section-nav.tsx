@@ -25,7 +25,10 @@ export function SectionNav() {
               <Link
                 href={s.href}
                 aria-current={active ? "page" : undefined}
-                className={`block whitespace-nowrap border-b-2 px-3 py-2 ${active ? "border-accent font-bold text-ink" : "border-transparent text-muted hover:text-ink"}`}
+                className={
+                  `block whitespace-nowrap border-b-2 px-3 py-2 ` +
+                  `${active ? "border-accent font-bold text-ink" : "border-transparent text-muted hover:text-ink"}`
+                }
               >
                 {s.label}
               </Link>

@@ -12,7 +12,12 @@ export function TopBar({ caller }: { caller: Caller }) {
           <label htmlFor="workspace" className="sr-only">
             Workspace
           </label>
-          <select id="workspace" name="workspaceId" defaultValue={caller.workspace.id} className="rounded-card border border-hairline bg-surface px-2 py-1">
+          <select
+            id="workspace"
+            name="workspaceId"
+            defaultValue={caller.workspace.id}
+            className="rounded-card border border-hairline bg-surface px-2 py-1"
+          >
             {caller.workspaces.map((w) => (
               <option key={w.id} value={w.id}>
                 {w.name}

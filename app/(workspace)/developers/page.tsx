@@ -55,7 +55,10 @@ function verify(raw, header, secret) {
 }`;
   return (
     <>
-      <PageHeader title="API" lead="Order systems make plates with the same engine: post meshes or name a kit, get a print-ready file back." />
+      <PageHeader
+        title="API"
+        lead="Order systems make plates with the same engine: post meshes or name a kit, get a print-ready file back."
+      />
       <div className="space-y-6 text-sm">
         <p>
           Keys are made by owners under{" "}
@@ -72,10 +75,16 @@ function verify(raw, header, secret) {
           <h2 className="text-lg">Make a plate with curl</h2>
           <Code>{curl}</Code>
           <p className="text-sm text-muted">
-            With a template: its options apply (options you send override them), and variables fill its placeholders. A variable the template does not have, or one without a value or a default, is a 422 that names it; add <code className="font-mono">templateVersion</code> to use an earlier version.
+            With a template: its options apply (options you send override them), and variables fill its placeholders. A variable the
+            template does not have, or one without a value or a default, is a 422 that names it; add{" "}
+            <code className="font-mono">templateVersion</code> to use an earlier version.
           </p>
           <Code>{curlTemplate}</Code>
-          <p className="text-muted">A build that takes longer than 20 s answers 202 with a job to poll; send <code className="font-mono">Prefer: respond-async</code> to get the 202 at once. Errors are JSON: <code className="font-mono">{'{ "error": { "code", "message", "details" } }'}</code>.</p>
+          <p className="text-muted">
+            A build that takes longer than 20 s answers 202 with a job to poll; send{" "}
+            <code className="font-mono">Prefer: respond-async</code> to get the 202 at once. Errors are JSON:{" "}
+            <code className="font-mono">{'{ "error": { "code", "message", "details" } }'}</code>.
+          </p>
         </section>
         <section className="space-y-2">
           <h2 className="text-lg">With fetch</h2>
@@ -83,11 +92,18 @@ function verify(raw, header, secret) {
         </section>
         <section className="space-y-2">
           <h2 className="text-lg">Webhooks</h2>
-          <p className="text-muted">Send <code className="font-mono">callbackUrl</code> with the request; when the build ends we post a signed event, retrying five times with growing pauses (about five minutes in all). It must be a public address: private, loopback, link-local and other special addresses are refused.</p>
+          <p className="text-muted">
+            Send <code className="font-mono">callbackUrl</code> with the request; when the build ends we post a signed event, retrying five
+            times with growing pauses (about five minutes in all). It must be a public address: private, loopback, link-local and other
+            special addresses are refused.
+          </p>
           <Code>{verify}</Code>
           {secret ? (
             <p>
-              This workspace&apos;s signing secret: <code className="break-all font-mono" data-testid="webhook-secret">{secret}</code>
+              This workspace&apos;s signing secret:{" "}
+              <code className="break-all font-mono" data-testid="webhook-secret">
+                {secret}
+              </code>
             </p>
           ) : (
             <p className="text-muted">Owners see the workspace&apos;s signing secret here.</p>

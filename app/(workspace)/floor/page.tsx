@@ -20,12 +20,23 @@ export default async function FloorPage({ searchParams }: { searchParams: Promis
   const mayMove = can(caller.role, "inspections:record");
   return (
     <>
-      <PageHeader title="Floor" lead="Every ready plate from the printer to the packing bench. Scan a plate map's QR code to open its inspection. Let the bed cool before lifting a slab." />
+      <PageHeader
+        title="Floor"
+        lead={
+          "Every ready plate from the printer to the packing bench. Scan a plate map's QR code to open its inspection. Let the " +
+          "bed cool before lifting a slab."
+        }
+      />
       <div className="mb-4 flex flex-wrap items-end gap-3">
         <form role="search" action="/floor" className="flex items-end gap-2">
           <label className="text-sm">
             <span className="block text-xs text-muted">Find a plate</span>
-            <input name="q" defaultValue={q} className="field-input mt-0.5 w-64 py-1" placeholder="plate number (first characters) or kit" />
+            <input
+              name="q"
+              defaultValue={q}
+              className="field-input mt-0.5 w-64 py-1"
+              placeholder="plate number (first characters) or kit"
+            />
           </label>
           <button type="submit" className="btn-quiet px-3 py-1.5 text-sm">
             Find
@@ -40,7 +51,13 @@ export default async function FloorPage({ searchParams }: { searchParams: Promis
           First-pass yield and inspection history →
         </Link>
       </div>
-      {total === 0 ? <EmptyState message={q ? `No plate on the floor matches “${q}”.` : "Nothing on the floor yet: plates appear here as soon as their files are made."} /> : null}
+      {total === 0 ? (
+        <EmptyState
+          message={
+            q ? `No plate on the floor matches “${q}”.` : "Nothing on the floor yet: plates appear here as soon as their files are made."
+          }
+        />
+      ) : null}
       <div className="space-y-6">
         {ORDER.map((state) => {
           const list = lists[state].slice(0, state === "done" ? 15 : 50);
@@ -59,13 +76,19 @@ export default async function FloorPage({ searchParams }: { searchParams: Promis
                     </Link>
                     <span className="text-muted">{r.pieceCount} pieces</span>
                     {r.source === "reprint" ? <span className="rounded-card bg-paper px-1.5 text-xs">reprint</span> : null}
-                    <span className="text-xs text-muted">{r.movedAt ? `moved ${when(r.movedAt)} by ${r.movedBy ?? r.movedByEmail ?? "—"}` : `made ${when(r.createdAt)}`}</span>
+                    <span className="text-xs text-muted">
+                      {r.movedAt ? `moved ${when(r.movedAt)} by ${r.movedBy ?? r.movedByEmail ?? "—"}` : `made ${when(r.createdAt)}`}
+                    </span>
                     <span className="ml-auto" />
                     {mayMove ? <MoveButtons id={r.id} from={state} moves={nextMoves(state)} /> : null}
                   </li>
                 ))}
               </ul>
-              {count > list.length ? <p className="mt-1 text-xs text-muted">{state === "done" ? `the newest ${list.length} of ${count}` : `the ${list.length} waiting longest of ${count}`}</p> : null}
+              {count > list.length ? (
+                <p className="mt-1 text-xs text-muted">
+                  {state === "done" ? `the newest ${list.length} of ${count}` : `the ${list.length} waiting longest of ${count}`}
+                </p>
+              ) : null}
             </section>
           );
         })}

@@ -27,20 +27,39 @@ export const archiveKitAction = guardedAction(idSchema, "kits:write", "archiving
   return { ok: true, data: undefined, message: "Kit archived." };
 });
 
-const makePlateSchema = z.object({ kitId: z.string().min(1), options: z.record(z.string(), z.unknown()), variables: z.record(z.string(), z.string()), templateId: z.string().optional(), templateVersion: z.number().int().min(1).optional() });
+const makePlateSchema = z.object({
+  kitId: z.string().min(1),
+  options: z.record(z.string(), z.unknown()),
+  variables: z.record(z.string(), z.string()),
+  templateId: z.string().optional(),
+  templateVersion: z.number().int().min(1).optional(),
+});
 
 /** "Make the plate" in the slab editor: the same plate path, queue and worker as the API. */
 export const makePlateAction = guardedAction(makePlateSchema, "plates:make", "making plates", async (input, caller) => {
-  const template = input.templateId ? { id: input.templateId, ...(input.templateVersion ? { version: input.templateVersion } : {}) } : undefined;
-  const request = await resolvePlateRequest(caller, { kitId: input.kitId, options: input.options, variables: input.variables, format: "3mf", ...(template ? { template } : {}) });
+  const template = input.templateId
+    ? { id: input.templateId, ...(input.templateVersion ? { version: input.templateVersion } : {}) }
+    : undefined;
+  const request = await resolvePlateRequest(caller, {
+    kitId: input.kitId,
+    options: input.options,
+    variables: input.variables,
+    format: "3mf",
+    ...(template ? { template } : {}),
+  });
   const { plate } = await createPlate(caller, request.spec, { source: "editor" });
   revalidatePath("/plates");
   return { ok: true, data: { plateId: plate.id } };
 });
 
 /** "Make again": the same parts, options, values and template version; the same bytes. */
-export const remakePlateAction = guardedAction(z.object({ plateId: z.string().min(1) }), "plates:make", "making plates", async (input, caller) => {
-  const plate = await remakePlate(caller, input.plateId);
-  revalidatePath("/plates");
-  return { ok: true, data: { plateId: plate.id }, message: "Making the plate again: it appears in the list when it is built." };
-});
+export const remakePlateAction = guardedAction(
+  z.object({ plateId: z.string().min(1) }),
+  "plates:make",
+  "making plates",
+  async (input, caller) => {
+    const plate = await remakePlate(caller, input.plateId);
+    revalidatePath("/plates");
+    return { ok: true, data: { plateId: plate.id }, message: "Making the plate again: it appears in the list when it is built." };
+  },
+);

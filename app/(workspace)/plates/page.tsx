@@ -13,7 +13,12 @@ export default async function PlatesPage() {
   return (
     <>
       <PageHeader title="Plates" lead="Every print-ready file made in this workspace, newest first." />
-      <PlatesTable canMake={can(caller.role, "plates:make")} rows={rows} label="Plates" empty="No plates yet: open a kit in the slab editor and make its first plate." />
+      <PlatesTable
+        canMake={can(caller.role, "plates:make")}
+        rows={rows}
+        label="Plates"
+        empty="No plates yet: open a kit in the slab editor and make its first plate."
+      />
     </>
   );
 }

@@ -37,7 +37,15 @@ export const makeApiKey = guardedAction(apiKeySchema, "api-keys:manage", "creati
   // API keys come with the plan: the Bench plan has none, the paid plans a number each.
   const billing = await billingOf(caller);
   if ((await activeApiKeyCount(caller)) >= billing.effective.apiKeys) {
-    return { ok: false, code: "plan_limit", message: billing.effective.apiKeys === 0 ? `The ${billing.effective.name} plan has no API access. Upgrade under Settings → Billing to connect an order system.` : `The ${billing.effective.name} plan allows ${billing.effective.apiKeys} API keys; revoke one or upgrade under Settings → Billing.` };
+    return {
+      ok: false,
+      code: "plan_limit",
+      message:
+        billing.effective.apiKeys === 0
+          ? `The ${billing.effective.name} plan has no API access. Upgrade under Settings → Billing to connect an order system.`
+          : `The ${billing.effective.name} plan allows ${billing.effective.apiKeys} API keys; revoke one or upgrade under Settings → ` +
+            `Billing.`,
+    };
   }
   const created = await createApiKey(caller, input.name, input.scopes);
   revalidatePath("/settings/api-keys");

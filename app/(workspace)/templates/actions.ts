@@ -3,7 +3,15 @@
 import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { guardedAction, type Caller } from "@/lib/auth/guards";
-import { createTemplate, duplicateTemplate, renameTemplate, restoreVersion, saveVersion, setArchived, type Actor } from "@/lib/templates/service";
+import {
+  createTemplate,
+  duplicateTemplate,
+  renameTemplate,
+  restoreVersion,
+  saveVersion,
+  setArchived,
+  type Actor,
+} from "@/lib/templates/service";
 
 const actor = (c: Caller): Actor => ({ ...c, email: c.user.email });
 const body = z.object({ options: z.record(z.string(), z.unknown()), variables: z.array(z.record(z.string(), z.unknown())).max(20) });
@@ -16,39 +24,69 @@ const refresh = (id?: string) => {
 };
 
 /** "Save these options as a template" in the slab editor. */
-export const createTemplateAction = guardedAction(z.object({ name, description, body }), "templates:write", "saving templates", async (input, caller) => {
-  const t = await createTemplate(actor(caller), { name: input.name, description: input.description, body: input.body });
-  refresh(t.id);
-  return { ok: true, data: { id: t.id, version: 1 }, message: `Template “${input.name}” saved as version 1.` };
-});
+export const createTemplateAction = guardedAction(
+  z.object({ name, description, body }),
+  "templates:write",
+  "saving templates",
+  async (input, caller) => {
+    const t = await createTemplate(actor(caller), { name: input.name, description: input.description, body: input.body });
+    refresh(t.id);
+    return { ok: true, data: { id: t.id, version: 1 }, message: `Template “${input.name}” saved as version 1.` };
+  },
+);
 
 /** Editing a template adds a version; the old ones stay as they were. */
-export const saveTemplateVersionAction = guardedAction(z.object({ id: z.string().min(1), body, note: z.string().trim().max(200).optional() }), "templates:write", "saving templates", async (input, caller) => {
-  const v = await saveVersion(actor(caller), input.id, { body: input.body, note: input.note || undefined });
-  refresh(input.id);
-  return { ok: true, data: { id: input.id, version: v.version }, message: `Saved as version ${v.version}.` };
-});
+export const saveTemplateVersionAction = guardedAction(
+  z.object({ id: z.string().min(1), body, note: z.string().trim().max(200).optional() }),
+  "templates:write",
+  "saving templates",
+  async (input, caller) => {
+    const v = await saveVersion(actor(caller), input.id, { body: input.body, note: input.note || undefined });
+    refresh(input.id);
+    return { ok: true, data: { id: input.id, version: v.version }, message: `Saved as version ${v.version}.` };
+  },
+);
 
-export const restoreTemplateVersionAction = guardedAction(z.object({ id: z.string().min(1), version: z.number().int().min(1) }), "templates:write", "restoring template versions", async (input, caller) => {
-  const v = await restoreVersion(actor(caller), input.id, input.version);
-  refresh(input.id);
-  return { ok: true, data: { version: v.version }, message: `Version ${input.version} restored as version ${v.version}.` };
-});
+export const restoreTemplateVersionAction = guardedAction(
+  z.object({ id: z.string().min(1), version: z.number().int().min(1) }),
+  "templates:write",
+  "restoring template versions",
+  async (input, caller) => {
+    const v = await restoreVersion(actor(caller), input.id, input.version);
+    refresh(input.id);
+    return { ok: true, data: { version: v.version }, message: `Version ${input.version} restored as version ${v.version}.` };
+  },
+);
 
-export const duplicateTemplateAction = guardedAction(z.object({ id: z.string().min(1) }), "templates:write", "duplicating templates", async (input, caller) => {
-  const t = await duplicateTemplate(actor(caller), input.id);
-  refresh(t.id);
-  return { ok: true, data: { id: t.id }, message: "Template duplicated." };
-});
+export const duplicateTemplateAction = guardedAction(
+  z.object({ id: z.string().min(1) }),
+  "templates:write",
+  "duplicating templates",
+  async (input, caller) => {
+    const t = await duplicateTemplate(actor(caller), input.id);
+    refresh(t.id);
+    return { ok: true, data: { id: t.id }, message: "Template duplicated." };
+  },
+);
 
-export const archiveTemplateAction = guardedAction(z.object({ id: z.string().min(1), archived: z.boolean() }), "templates:write", "archiving templates", async (input, caller) => {
-  await setArchived(actor(caller), input.id, input.archived);
-  refresh(input.id);
-  return { ok: true, data: undefined, message: input.archived ? "Template archived." : "Template back in the gallery." };
-});
+export const archiveTemplateAction = guardedAction(
+  z.object({ id: z.string().min(1), archived: z.boolean() }),
+  "templates:write",
+  "archiving templates",
+  async (input, caller) => {
+    await setArchived(actor(caller), input.id, input.archived);
+    refresh(input.id);
+    return { ok: true, data: undefined, message: input.archived ? "Template archived." : "Template back in the gallery." };
+  },
+);
 
-export const renameTemplateAction = guardedAction(z.object({ id: z.string().min(1), name, description }), "templates:write", "renaming templates", async (input, caller) => {
-  await renameTemplate(actor(caller), input.id, input.name, input.description);
-  refresh(input.id);
-  return { ok: true, data: undefined, message: "Template renamed." };
-});
+export const renameTemplateAction = guardedAction(
+  z.object({ id: z.string().min(1), name, description }),
+  "templates:write",
+  "renaming templates",
+  async (input, caller) => {
+    await renameTemplate(actor(caller), input.id, input.name, input.description);
+    refresh(input.id);
+    return { ok: true, data: undefined, message: "Template renamed." };
+  },
+);

@@ -19,7 +19,13 @@ export default async function TemplatesPage({ searchParams }: { searchParams: Pr
   const mayEdit = can(caller.role, "templates:write");
   return (
     <>
-      <PageHeader title="Templates" lead="Reusable slab recipes: options, a logo and {placeholders} such as {order} and {customer}, filled for each plate. Apply one in the slab editor, or name it in the API." />
+      <PageHeader
+        title="Templates"
+        lead={
+          "Reusable slab recipes: options, a logo and {placeholders} such as {order} and {customer}, filled for each plate. Apply " +
+          "one in the slab editor, or name it in the API."
+        }
+      />
       <form className="mb-4 flex flex-wrap items-end gap-2" role="search" action="/templates">
         <label className="text-sm">
           <span className="block text-xs text-muted">Search templates</span>
@@ -34,7 +40,15 @@ export default async function TemplatesPage({ searchParams }: { searchParams: Pr
         </Link>
       </form>
       {rows.length === 0 ? (
-        <EmptyState message={q ? `No template matches “${q}”.` : showArchived ? "Nothing archived." : "No templates yet: in the slab editor, choose “Save as a template” to reuse a slab on every order."} />
+        <EmptyState
+          message={
+            q
+              ? `No template matches “${q}”.`
+              : showArchived
+                ? "Nothing archived."
+                : "No templates yet: in the slab editor, choose “Save as a template” to reuse a slab on every order."
+          }
+        />
       ) : (
         <ul className="grid gap-4 sm:grid-cols-2 lg:grid-cols-3" aria-label="Template gallery">
           {rows.map((t) => {
@@ -52,10 +66,20 @@ export default async function TemplatesPage({ searchParams }: { searchParams: Pr
                 </div>
                 {t.description ? <p className="text-xs text-muted">{t.description}</p> : null}
                 <p className="text-xs">
-                  {vars.length ? vars.map((v) => <code key={v.name} className="mr-1 rounded bg-paper px-1 font-mono">{`{${v.name}}`}</code>) : <span className="text-muted">no variables</span>}
+                  {vars.length ? (
+                    vars.map((v) => <code key={v.name} className="mr-1 rounded bg-paper px-1 font-mono">{`{${v.name}}`}</code>)
+                  ) : (
+                    <span className="text-muted">no variables</span>
+                  )}
                 </p>
-                {problems ? <p className="text-xs text-finding-warning">⚠ {problems} finding{problems > 1 ? "s" : ""} with the sample values</p> : null}
-                <p className="mt-auto pt-1 text-xs text-muted">{t.starter ? "shipped with Slabwright" : `${when(t.updatedAt)}${t.updatedBy ? ` · ${t.updatedBy}` : ""}`}</p>
+                {problems ? (
+                  <p className="text-xs text-finding-warning">
+                    ⚠ {problems} finding{problems > 1 ? "s" : ""} with the sample values
+                  </p>
+                ) : null}
+                <p className="mt-auto pt-1 text-xs text-muted">
+                  {t.starter ? "shipped with Slabwright" : `${when(t.updatedAt)}${t.updatedBy ? ` · ${t.updatedBy}` : ""}`}
+                </p>
                 <div className="flex flex-wrap items-center gap-2">
                   <Link href={`/templates/${t.id}`} className="btn-quiet px-2 py-1 text-xs" aria-label={`Open ${t.name}`}>
                     Open

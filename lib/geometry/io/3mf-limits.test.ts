@@ -91,6 +91,8 @@ describe("OBJ vertex limits", () => {
     const dots = new TextEncoder().encode("v 0 0 0\n".repeat(70_000) + "f 1 2 3\n");
     expect(() => readObj(dots, "dots.obj", IMPORT_LIMITS)).toThrow(expect.objectContaining({ code: "too_many_vertices" }));
     const many = new TextEncoder().encode("v 0 0 0\n".repeat(2_000) + "f 1 2 3\n");
-    expect(() => readObj(many, "many.obj", { ...IMPORT_LIMITS, maxVertices: 1_000 })).toThrow(expect.objectContaining({ code: "too_many_vertices", details: expect.objectContaining({ vertices: 1_001 }) }));
+    expect(() => readObj(many, "many.obj", { ...IMPORT_LIMITS, maxVertices: 1_000 })).toThrow(
+      expect.objectContaining({ code: "too_many_vertices", details: expect.objectContaining({ vertices: 1_001 }) }),
+    );
   });
 });

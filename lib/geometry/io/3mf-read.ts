@@ -26,7 +26,13 @@ type MeshObj = { kind: "mesh"; id: string; name: string; type: string; positions
 type CompObj = { kind: "components"; id: string; name: string; type: string; components: { objectId: string; transform: Mat }[] };
 type Obj = MeshObj | CompObj;
 
-export type ThreeMfLimits = { maxInflatedBytes: number; maxTriangles: number; maxVertices: number; maxBodies: number; maxComponents: number };
+export type ThreeMfLimits = {
+  maxInflatedBytes: number;
+  maxTriangles: number;
+  maxVertices: number;
+  maxBodies: number;
+  maxComponents: number;
+};
 
 export function read3mf(bytes: Uint8Array, file: string, limits: ThreeMfLimits): RawModel {
   const entries = readZipDirectory(bytes, file, { maxInflatedBytes: limits.maxInflatedBytes });
@@ -81,7 +87,10 @@ export function parseModel(xml: string, file: string, limits: Pick<ThreeMfLimits
  * can use), then bodies, placed triangles and component references of the build are counted over the
  * component graph before a single mesh is placed.
  */
-export function modelParser(file: string, limits: Omit<ThreeMfLimits, "maxInflatedBytes">): { write(text: string): void; close(): RawModel } {
+export function modelParser(
+  file: string,
+  limits: Omit<ThreeMfLimits, "maxInflatedBytes">,
+): { write(text: string): void; close(): RawModel } {
   const { maxTriangles, maxVertices } = limits;
   const objects = new Map<string, Obj>();
   const items: { objectId: string; transform: Mat }[] = [];
@@ -104,7 +113,11 @@ export function modelParser(file: string, limits: Omit<ThreeMfLimits, "maxInflat
   const refusePath = (tag: SaxesTagNS) => {
     for (const a of Object.values(tag.attributes)) {
       if (a.local === "path" && a.uri === NS_PRODUCTION) {
-        fail("unsupported_extension", `<${tag.local}> refers to geometry in another part (p:path="${a.value.slice(0, 60)}"), from the 3MF production extension, which Slabwright does not read; export the model without the production extension`);
+        fail(
+          "unsupported_extension",
+          `<${tag.local}> refers to geometry in another part (p:path="${a.value.slice(0, 60)}"), from the 3MF production extension, ` +
+            `which Slabwright does not read; export the model without the production extension`,
+        );
       }
     }
   };
@@ -126,7 +139,10 @@ export function modelParser(file: string, limits: Omit<ThreeMfLimits, "maxInflat
         for (const prefix of required) {
           const uri = tag.ns?.[prefix];
           if (!uri || !IGNORABLE_REQUIRED.has(uri)) {
-            fail("unsupported_extension", `the model requires the 3MF extension "${prefix}"${uri ? ` (${uri})` : ""}, which Slabwright does not read`);
+            fail(
+              "unsupported_extension",
+              `the model requires the 3MF extension "${prefix}"${uri ? ` (${uri})` : ""}, which Slabwright does not read`,
+            );
           }
         }
         break;
@@ -134,15 +150,25 @@ export function modelParser(file: string, limits: Omit<ThreeMfLimits, "maxInflat
       case "object": {
         const id = tag.attributes.id?.value;
         if (!id) fail("malformed", "<object> is missing its id");
-        current = { kind: "mesh", id: id!, name: tag.attributes.name?.value ?? "", type: tag.attributes.type?.value ?? "model", positions: [], triangles: [] };
+        current = {
+          kind: "mesh",
+          id: id!,
+          name: tag.attributes.name?.value ?? "",
+          type: tag.attributes.type?.value ?? "model",
+          positions: [],
+          triangles: [],
+        };
         break;
       }
       case "vertex": {
         if (current?.kind !== "mesh") fail("malformed", "<vertex> outside a mesh");
         const m = current as MeshObj;
-        const x = num(tag, "x"), y = num(tag, "y"), z = num(tag, "z");
+        const x = num(tag, "x"),
+          y = num(tag, "y"),
+          z = num(tag, "z");
         if (!Number.isFinite(x) || !Number.isFinite(y) || !Number.isFinite(z)) fail("non_finite", "a vertex coordinate is not finite");
-        if (++vertices > maxVertices) throw tooManyVertices(file, vertices, maxVertices, `more than the limit of ${maxVertices.toLocaleString("en-US")} per file`);
+        if (++vertices > maxVertices)
+          throw tooManyVertices(file, vertices, maxVertices, `more than the limit of ${maxVertices.toLocaleString("en-US")} per file`);
         m.positions.push(x, y, z);
         break;
       }
@@ -150,9 +176,12 @@ export function modelParser(file: string, limits: Omit<ThreeMfLimits, "maxInflat
         if (current?.kind !== "mesh") fail("malformed", "<triangle> outside a mesh");
         const m = current as MeshObj;
         const nv = m.positions.length / 3;
-        const v1 = num(tag, "v1"), v2 = num(tag, "v2"), v3 = num(tag, "v3");
+        const v1 = num(tag, "v1"),
+          v2 = num(tag, "v2"),
+          v3 = num(tag, "v3");
         for (const v of [v1, v2, v3]) {
-          if (!Number.isInteger(v) || v < 0 || v >= nv) fail("index_out_of_range", `a triangle refers to vertex ${v}, but object ${m.id} has ${nv} vertices`);
+          if (!Number.isInteger(v) || v < 0 || v >= nv)
+            fail("index_out_of_range", `a triangle refers to vertex ${v}, but object ${m.id} has ${nv} vertices`);
         }
         m.triangles.push(v1, v2, v3);
         if (++triangles > maxTriangles) throw tooMany(file, triangles, maxTriangles);
@@ -206,12 +235,23 @@ function unusedVertices(m: MeshObj, file: string) {
   const nv = m.positions.length / 3;
   const nt = m.triangles.length / 3;
   if (nv > Math.max(3 * nt, 65_536)) {
-    throw tooManyVertices(file, nv, Math.max(3 * nt, 65_536), `for ${nt.toLocaleString("en-US")} triangles in object ${m.id}: no triangle uses most of them`, nt);
+    throw tooManyVertices(
+      file,
+      nv,
+      Math.max(3 * nt, 65_536),
+      `for ${nt.toLocaleString("en-US")} triangles in object ${m.id}: no triangle uses most of them`,
+      nt,
+    );
   }
 }
 
 function tooManyVertices(file: string, n: number, limit: number, why: string, triangles?: number) {
-  return new MeshImportError("too_many_vertices", file, `${n.toLocaleString("en-US")} vertices is ${why}`, triangles === undefined ? { vertices: n, limit } : { vertices: n, limit, triangles });
+  return new MeshImportError(
+    "too_many_vertices",
+    file,
+    `${n.toLocaleString("en-US")} vertices is ${why}`,
+    triangles === undefined ? { vertices: n, limit } : { vertices: n, limit, triangles },
+  );
 }
 
 type Tally = { bodies: number; triangles: number; components: number };
@@ -221,7 +261,13 @@ type Tally = { bodies: number; triangles: number; components: number };
  * once per object (memoised), so a package of nested references that would expand to millions of
  * bodies is refused from a few hundred objects' worth of arithmetic, before any mesh is placed.
  */
-function flatten(objects: Map<string, Obj>, items: { objectId: string; transform: Mat }[], unit: Unit, file: string, limits: Omit<ThreeMfLimits, "maxInflatedBytes">): RawModel {
+function flatten(
+  objects: Map<string, Obj>,
+  items: { objectId: string; transform: Mat }[],
+  unit: Unit,
+  file: string,
+  limits: Omit<ThreeMfLimits, "maxInflatedBytes">,
+): RawModel {
   const tallies = new Map<string, Tally>();
   const onPath = new Set<string>();
   const tally = (id: string): Tally => {
@@ -256,10 +302,22 @@ function flatten(objects: Map<string, Obj>, items: { objectId: string; transform
   }
   const n = (v: number) => (Number.isSafeInteger(v) ? v.toLocaleString("en-US") : "astronomically many");
   if (total.bodies > limits.maxBodies) {
-    throw new MeshImportError("too_many_bodies", file, `the build places ${n(total.bodies)} bodies (components nested inside components), more than the limit of ${limits.maxBodies.toLocaleString("en-US")} per file`, { bodies: total.bodies, limit: limits.maxBodies });
+    throw new MeshImportError(
+      "too_many_bodies",
+      file,
+      `the build places ${n(total.bodies)} bodies (components nested inside components), more than the limit of ` +
+        `${limits.maxBodies.toLocaleString("en-US")} per file`,
+      { bodies: total.bodies, limit: limits.maxBodies },
+    );
   }
   if (total.components > limits.maxComponents) {
-    throw new MeshImportError("too_many_components", file, `the build expands through ${n(total.components)} component references, more than the limit of ${limits.maxComponents.toLocaleString("en-US")}`, { components: total.components, limit: limits.maxComponents });
+    throw new MeshImportError(
+      "too_many_components",
+      file,
+      `the build expands through ${n(total.components)} component references, more than the limit of ` +
+        `${limits.maxComponents.toLocaleString("en-US")}`,
+      { components: total.components, limit: limits.maxComponents },
+    );
   }
   if (total.triangles > limits.maxTriangles) throw tooMany(file, total.triangles, limits.maxTriangles);
 
@@ -287,7 +345,9 @@ function placeMesh(obj: MeshObj, m: Mat, name: string): RawObject {
   const src = obj.positions;
   const positions = new Float32Array(src.length);
   for (let i = 0; i < src.length; i += 3) {
-    const x = src[i]!, y = src[i + 1]!, z = src[i + 2]!;
+    const x = src[i]!,
+      y = src[i + 1]!,
+      z = src[i + 2]!;
     // 3MF transforms act on row vectors: [x y z 1] · M, M given as m00 m01 m02 m10 … m32.
     positions[i] = x * m[0] + y * m[3] + z * m[6] + m[9];
     positions[i + 1] = x * m[1] + y * m[4] + z * m[7] + m[10];

@@ -35,22 +35,38 @@ function smallPlate(): { name: string; mesh: IndexedMesh; partNumber: string }[]
 
 const model3mf = (xml: string, extra: { name: string; data: Uint8Array }[] = []) =>
   writeZip([
-    { name: "[Content_Types].xml", data: bytes('<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"/>') },
-    { name: "_rels/.rels", data: bytes(`<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="r" Target="/3D/3dmodel.model" Type="${REL_START_PART}"/></Relationships>`) },
+    {
+      name: "[Content_Types].xml",
+      data: bytes('<?xml version="1.0"?><Types xmlns="http://schemas.openxmlformats.org/package/2006/content-types"/>'),
+    },
+    {
+      name: "_rels/.rels",
+      data: bytes(
+        `<?xml version="1.0"?><Relationships xmlns="http://schemas.openxmlformats.org/package/2006/relationships"><Relationship Id="r" Target="/3D/3dmodel.model" Type="${REL_START_PART}"/></Relationships>`,
+      ),
+    },
     { name: "3D/3dmodel.model", data: bytes(xml) },
     ...extra,
   ]);
 
 const cubeObject = (id: number, name: string, size = 10) => {
   const m = box(size, size, size);
-  const v = [...Array(8).keys()].map((i) => `<vertex x="${m.vertProperties[i * 3]}" y="${m.vertProperties[i * 3 + 1]}" z="${m.vertProperties[i * 3 + 2]}"/>`).join("");
-  const t = [...Array(12).keys()].map((i) => `<triangle v1="${m.triVerts[i * 3]}" v2="${m.triVerts[i * 3 + 1]}" v3="${m.triVerts[i * 3 + 2]}"/>`).join("");
+  const v = [...Array(8).keys()]
+    .map((i) => `<vertex x="${m.vertProperties[i * 3]}" y="${m.vertProperties[i * 3 + 1]}" z="${m.vertProperties[i * 3 + 2]}"/>`)
+    .join("");
+  const t = [...Array(12).keys()]
+    .map((i) => `<triangle v1="${m.triVerts[i * 3]}" v2="${m.triVerts[i * 3 + 1]}" v3="${m.triVerts[i * 3 + 2]}"/>`)
+    .join("");
   return `<object id="${id}" name="${name}" type="model"><mesh><vertices>${v}</vertices><triangles>${t}</triangles></mesh></object>`;
 };
-const modelXml = (resources: string, build: string, attrs = "") => `<?xml version="1.0" encoding="UTF-8"?><model unit="millimeter" xmlns="${NS_CORE}" ${attrs}><resources>${resources}</resources><build>${build}</build></model>`;
+const modelXml = (resources: string, build: string, attrs = "") =>
+  `<?xml version="1.0" encoding="UTF-8"?><model unit="millimeter" xmlns="${NS_CORE}" ` +
+  `${attrs}><resources>${resources}</resources><build>${build}</build></model>`;
 
 describe("3MF export (3MF Core Specification 1.4.0)", () => {
-  const file = write3mf(smallPlate(), { title: "Test plate", creationDate: new Date("2026-12-01T00:00:00Z") }, (d) => deflateRawSync(d, { level: 1 }));
+  const file = write3mf(smallPlate(), { title: "Test plate", creationDate: new Date("2026-12-01T00:00:00Z") }, (d) =>
+    deflateRawSync(d, { level: 1 }),
+  );
 
   it("is a package with content types, the start-part relationship and the model part, and no directory entries", () => {
     const entries = unzipSync(file);
@@ -109,7 +125,10 @@ describe("3MF export (3MF Core Specification 1.4.0)", () => {
   });
 
   it("writes numbers rounded to 0.0001 mm without exponents or negative zero", () => {
-    const tiny: IndexedMesh = { vertProperties: new Float32Array([1e-7, -0, 123.456789, 0.00007, 2, 3, 4, 5, 6]), triVerts: new Uint32Array([0, 1, 2]) };
+    const tiny: IndexedMesh = {
+      vertProperties: new Float32Array([1e-7, -0, 123.456789, 0.00007, 2, 3, 4, 5, 6]),
+      triVerts: new Uint32Array([0, 1, 2]),
+    };
     const xml = build3mfModel([{ name: "t", mesh: tiny }], { title: "t" });
     expect(xml).toContain('<vertex x="0" y="0" z="123.4568"/>');
     expect(xml).toContain('<vertex x="0.0001" y="2" z="3"/>');
@@ -119,7 +138,9 @@ describe("3MF export (3MF Core Specification 1.4.0)", () => {
 describe("3MF import", () => {
   it("applies component and build-item transforms, and every unit", () => {
     const xml = modelXml(
-      cubeObject(1, "Cube") + `<object id="2" name="Pair" type="model"><components><component objectid="1"/><component objectid="1" transform="1 0 0 0 1 0 0 0 1 20 0 0"/></components></object>`,
+      cubeObject(1, "Cube") +
+        `<object id="2" name="Pair" type="model"><components><component objectid="1"/><component objectid="1" transform="1 0 0 0 1 0 ` +
+        `0 0 1 20 0 0"/></components></object>`,
       `<item objectid="2" transform="1 0 0 0 1 0 0 0 1 5 5 0"/>`,
     );
     const r = importMesh(model3mf(xml), kernel, { fileName: "pair.3mf" });
@@ -144,22 +165,42 @@ describe("3MF import", () => {
       `<item objectid="2"/>`,
       `xmlns:p="http://schemas.microsoft.com/3dmanufacturing/production/2015/06"`,
     );
-    expect(() => importMesh(model3mf(xml), kernel, { fileName: "prod.3mf" })).toThrow(expect.objectContaining({ code: "unsupported_extension" }));
+    expect(() => importMesh(model3mf(xml), kernel, { fileName: "prod.3mf" })).toThrow(
+      expect.objectContaining({ code: "unsupported_extension" }),
+    );
   });
 
   it("refuses a required extension it does not read", () => {
-    const xml = modelXml(cubeObject(1, "Cube"), `<item objectid="1"/>`, `xmlns:b="http://schemas.microsoft.com/3dmanufacturing/beamlattice/2017/02" requiredextensions="b"`);
-    expect(() => importMesh(model3mf(xml), kernel, { fileName: "beam.3mf" })).toThrow(expect.objectContaining({ code: "unsupported_extension" }));
+    const xml = modelXml(
+      cubeObject(1, "Cube"),
+      `<item objectid="1"/>`,
+      `xmlns:b="http://schemas.microsoft.com/3dmanufacturing/beamlattice/2017/02" requiredextensions="b"`,
+    );
+    expect(() => importMesh(model3mf(xml), kernel, { fileName: "beam.3mf" })).toThrow(
+      expect.objectContaining({ code: "unsupported_extension" }),
+    );
   });
 
   it("refuses XML with a DTD or entities", () => {
-    const xml = `<?xml version="1.0"?><!DOCTYPE model [<!ENTITY a "aaaaaaaaaa"><!ENTITY b "&a;&a;&a;&a;&a;">]>` + modelXml(cubeObject(1, "&b;"), `<item objectid="1"/>`).replace(/^<\?xml[^>]*>/, "");
-    expect(() => importMesh(model3mf(xml), kernel, { fileName: "dtd.3mf" })).toThrow(expect.objectContaining({ code: "xml_dtd_forbidden" }));
+    const xml =
+      `<?xml version="1.0"?><!DOCTYPE model [<!ENTITY a "aaaaaaaaaa"><!ENTITY b "&a;&a;&a;&a;&a;">]>` +
+      modelXml(cubeObject(1, "&b;"), `<item objectid="1"/>`).replace(/^<\?xml[^>]*>/, "");
+    expect(() => importMesh(model3mf(xml), kernel, { fileName: "dtd.3mf" })).toThrow(
+      expect.objectContaining({ code: "xml_dtd_forbidden" }),
+    );
   });
 
   it.each([
-    ["a triangle index out of range", modelXml(cubeObject(1, "C").replace('v3="1"', 'v3="99"'), `<item objectid="1"/>`), "index_out_of_range"],
-    ["a NaN-free but non-numeric coordinate", modelXml(cubeObject(1, "C").replace('x="10"', 'x="ten"'), `<item objectid="1"/>`), "malformed"],
+    [
+      "a triangle index out of range",
+      modelXml(cubeObject(1, "C").replace('v3="1"', 'v3="99"'), `<item objectid="1"/>`),
+      "index_out_of_range",
+    ],
+    [
+      "a NaN-free but non-numeric coordinate",
+      modelXml(cubeObject(1, "C").replace('x="10"', 'x="ten"'), `<item objectid="1"/>`),
+      "malformed",
+    ],
     ["a build item naming a missing object", modelXml(cubeObject(1, "C"), `<item objectid="7"/>`), "malformed"],
     ["no build items", modelXml(cubeObject(1, "C"), ""), "empty"],
     ["broken XML", modelXml(cubeObject(1, "C"), `<item objectid="1">`), "malformed"],
@@ -169,7 +210,9 @@ describe("3MF import", () => {
 
   it("refuses a package cut short", () => {
     const file = model3mf(modelXml(cubeObject(1, "C"), `<item objectid="1"/>`));
-    expect(() => importMesh(file.slice(0, file.length - 30), kernel, { fileName: "cut.3mf" })).toThrow(expect.objectContaining({ code: "truncated" }));
+    expect(() => importMesh(file.slice(0, file.length - 30), kernel, { fileName: "cut.3mf" })).toThrow(
+      expect.objectContaining({ code: "truncated" }),
+    );
   });
 
   it("refuses a large zip bomb from its directory, without inflating it", () => {
@@ -177,7 +220,11 @@ describe("3MF import", () => {
     const file = model3mf(modelXml(cubeObject(1, "C"), `<item objectid="1"/>`));
     const view = new DataView(file.buffer);
     let cd = -1;
-    for (let i = file.length - 22; i >= 0; i--) if (view.getUint32(i, true) === 0x06054b50) { cd = view.getUint32(i + 16, true); break; }
+    for (let i = file.length - 22; i >= 0; i--)
+      if (view.getUint32(i, true) === 0x06054b50) {
+        cd = view.getUint32(i + 16, true);
+        break;
+      }
     view.setUint32(cd + 24, 1_500_000_000, true); // first entry's uncompressed size
     const started = performance.now();
     expect(() => importMesh(file, kernel, { fileName: "bomb.3mf" })).toThrow(expect.objectContaining({ code: "archive_too_large" }));
@@ -190,8 +237,14 @@ describe("3MF import", () => {
     const file = writeZip([{ name: "_rels/.rels", data: zeros }], (d) => deflateRawSync(d, { level: 9 }));
     const view = new DataView(file.buffer);
     let cd = -1;
-    for (let i = file.length - 22; i >= 0; i--) if (view.getUint32(i, true) === 0x06054b50) { cd = view.getUint32(i + 16, true); break; }
+    for (let i = file.length - 22; i >= 0; i--)
+      if (view.getUint32(i, true) === 0x06054b50) {
+        cd = view.getUint32(i + 16, true);
+        break;
+      }
     view.setUint32(cd + 24, 1000, true);
-    expect(() => importMesh(file, kernel, { fileName: "liar.3mf", limits: { maxInflatedBytes: 10_000_000 } })).toThrow(expect.objectContaining({ code: "archive_too_large" }));
+    expect(() => importMesh(file, kernel, { fileName: "liar.3mf", limits: { maxInflatedBytes: 10_000_000 } })).toThrow(
+      expect.objectContaining({ code: "archive_too_large" }),
+    );
   });
 });

@@ -32,7 +32,14 @@ f 4 1 5 8
 
 /** An L-shaped (concave) prism: the bottom and top are one 6-corner polygon each. */
 const lObj = (() => {
-  const ring: [number, number][] = [[0, 0], [20, 0], [20, 8], [8, 8], [8, 20], [0, 20]];
+  const ring: [number, number][] = [
+    [0, 0],
+    [20, 0],
+    [20, 8],
+    [8, 8],
+    [8, 20],
+    [0, 20],
+  ];
   const lines = ["g ell"];
   for (const [x, y] of ring) lines.push(`v ${x} ${y} 0`);
   for (const [x, y] of ring) lines.push(`v ${x} ${y} 5`);
@@ -40,7 +47,8 @@ const lObj = (() => {
   lines.push(`f ${[-7, -8, -9, -10, -11, -12].join(" ")}`); // bottom, clockwise from above = facing down
   lines.push(`f ${[-6, -5, -4, -3, -2, -1].join(" ")}`); // top
   for (let i = 0; i < 6; i++) {
-    const a = i + 1, b = ((i + 1) % 6) + 1;
+    const a = i + 1,
+      b = ((i + 1) % 6) + 1;
     lines.push(`f ${a} ${b} ${b + 6} ${a + 6}`);
   }
   return lines.join("\n");
@@ -65,7 +73,17 @@ describe("OBJ import", () => {
   });
 
   it("keeps o/g groups as separate objects", () => {
-    const two = `${cubeObj}\n${cubeObj.replace("o Die", "o Die two").replace(/^v (\d+) (\d+) (\d+)$/gm, (_, x, y, z) => `v ${Number(x) + 30} ${y} ${z}`).replace(/f (\S+) (\S+) (\S+) (\S+)/g, (_m, ...refs: string[]) => `f ${refs.slice(0, 4).map((s) => String(Number(s.split("/")[0]) + 8)).join(" ")}`)}`;
+    const two = `${cubeObj}\n${cubeObj
+      .replace("o Die", "o Die two")
+      .replace(/^v (\d+) (\d+) (\d+)$/gm, (_, x, y, z) => `v ${Number(x) + 30} ${y} ${z}`)
+      .replace(
+        /f (\S+) (\S+) (\S+) (\S+)/g,
+        (_m, ...refs: string[]) =>
+          `f ${refs
+            .slice(0, 4)
+            .map((s) => String(Number(s.split("/")[0]) + 8))
+            .join(" ")}`,
+      )}`;
     const raw = readObj(bytes(two), "two.obj", { maxTriangles: 1000, maxVertices: 1000 });
     expect(raw.objects.map((o) => o.name)).toEqual(["Die", "Die two"]);
     const r = importMesh(bytes(two), kernel, { fileName: "two.obj" });
@@ -84,6 +102,8 @@ describe("OBJ import", () => {
   });
 
   it("refuses a file with vertices but no faces", () => {
-    expect(() => importMesh(bytes("v 0 0 0\nv 1 0 0\nv 0 1 0\n"), kernel, { fileName: "pts.obj" })).toThrow(expect.objectContaining({ code: "empty" }));
+    expect(() => importMesh(bytes("v 0 0 0\nv 1 0 0\nv 0 1 0\n"), kernel, { fileName: "pts.obj" })).toThrow(
+      expect.objectContaining({ code: "empty" }),
+    );
   });
 });

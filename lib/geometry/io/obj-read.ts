@@ -46,10 +46,17 @@ export function readObj(bytes: Uint8Array, file: string, limits: { maxTriangles:
     const kw = parts[0]!;
     if (kw === "v") {
       if (parts.length < 4) throw malformed(file, lineNo, "a vertex needs x, y and z");
-      if (verts.length / 3 >= maxVertices) throw tooManyVertices(file, verts.length / 3 + 1, maxVertices, `more than the limit of ${maxVertices.toLocaleString("en-US")} per file`);
+      if (verts.length / 3 >= maxVertices)
+        throw tooManyVertices(
+          file,
+          verts.length / 3 + 1,
+          maxVertices,
+          `more than the limit of ${maxVertices.toLocaleString("en-US")} per file`,
+        );
       for (let a = 1; a <= 3; a++) {
         const v = Number(parts[a]);
-        if (Number.isNaN(v) && !/^[+-]?(nan|inf)/i.test(parts[a]!)) throw malformed(file, lineNo, `"${parts[a]!.slice(0, 20)}" is not a number`);
+        if (Number.isNaN(v) && !/^[+-]?(nan|inf)/i.test(parts[a]!))
+          throw malformed(file, lineNo, `"${parts[a]!.slice(0, 20)}" is not a number`);
         verts.push(v);
       }
     } else if (kw === "f") {
@@ -61,7 +68,12 @@ export function readObj(bytes: Uint8Array, file: string, limits: { maxTriangles:
         if (!/^[+-]?\d+$/.test(ref) || k === 0) throw malformed(file, lineNo, `"${parts[i]!.slice(0, 20)}" is not a vertex reference`);
         const at = k > 0 ? k - 1 : nv + k;
         if (at < 0 || at >= nv) {
-          throw new MeshImportError("index_out_of_range", file, `line ${lineNo}: face refers to vertex ${k}, but only ${nv} vertices are defined so far`, { line: lineNo, index: k, vertices: nv });
+          throw new MeshImportError(
+            "index_out_of_range",
+            file,
+            `line ${lineNo}: face refers to vertex ${k}, but only ${nv} vertices are defined so far`,
+            { line: lineNo, index: k, vertices: nv },
+          );
         }
         idx.push(at);
       }
@@ -76,11 +88,18 @@ export function readObj(bytes: Uint8Array, file: string, limits: { maxTriangles:
     // vt, vn, vp, s, usemtl, mtllib, l, p and the rest carry nothing we print.
   }
   if (current.tris.length > 0) groups.push(current);
-  if (groups.length === 0) throw new MeshImportError("empty", file, verts.length ? "the file has vertices but no faces" : "the file holds no faces");
+  if (groups.length === 0)
+    throw new MeshImportError("empty", file, verts.length ? "the file has vertices but no faces" : "the file holds no faces");
   // Each vertex serves at least one triangle, so at most three per triangle can be used (the floor
   // lets a few stray points through).
   const nv = verts.length / 3;
-  if (nv > Math.max(3 * triangles, 65_536)) throw tooManyVertices(file, nv, Math.max(3 * triangles, 65_536), `for ${triangles.toLocaleString("en-US")} triangles: no face uses most of them`);
+  if (nv > Math.max(3 * triangles, 65_536))
+    throw tooManyVertices(
+      file,
+      nv,
+      Math.max(3 * triangles, 65_536),
+      `for ${triangles.toLocaleString("en-US")} triangles: no face uses most of them`,
+    );
   const positions = Float32Array.from(verts);
   // Each object shares the file's vertex list; the weld step drops the ones it does not use.
   const objects: RawObject[] = groups.map((g) => ({ name: g.name, positions, triangles: Uint32Array.from(g.tris) }));
@@ -89,27 +108,37 @@ export function readObj(bytes: Uint8Array, file: string, limits: { maxTriangles:
 
 function triangulatePolygon(verts: number[], idx: number[], out: number[]): void {
   // Newell's method: a robust normal for a planar (or nearly planar) polygon.
-  let nx = 0, ny = 0, nz = 0;
+  let nx = 0,
+    ny = 0,
+    nz = 0;
   for (let i = 0; i < idx.length; i++) {
-    const a = idx[i]! * 3, b = idx[(i + 1) % idx.length]! * 3;
+    const a = idx[i]! * 3,
+      b = idx[(i + 1) % idx.length]! * 3;
     nx += (verts[a + 1]! - verts[b + 1]!) * (verts[a + 2]! + verts[b + 2]!);
     ny += (verts[a + 2]! - verts[b + 2]!) * (verts[a]! + verts[b]!);
     nz += (verts[a]! - verts[b]!) * (verts[a + 1]! + verts[b + 1]!);
   }
   // Project onto the plane of the two axes other than the normal's largest component, keeping winding.
-  const ax = Math.abs(nx), ay = Math.abs(ny), az = Math.abs(nz);
+  const ax = Math.abs(nx),
+    ay = Math.abs(ny),
+    az = Math.abs(nz);
   const [u, v, sign] = az >= ax && az >= ay ? [0, 1, Math.sign(nz)] : ax >= ay ? [1, 2, Math.sign(nx)] : [2, 0, Math.sign(ny)];
   const flat: number[] = [];
   for (const i of idx) flat.push(verts[i * 3 + u]!, sign < 0 ? -verts[i * 3 + v]! : verts[i * 3 + v]!);
   const tri = earcut(flat);
   if (tri.length === 0) {
-    for (let i = 1; i + 1 < idx.length; i++) out.push(idx[0]!, idx[i]!, idx[i + 1]!); // degenerate polygon: the weld step drops what is empty
+    // degenerate polygon: the weld step drops what is empty
+    for (let i = 1; i + 1 < idx.length; i++) out.push(idx[0]!, idx[i]!, idx[i + 1]!);
     return;
   }
   // earcut's output winding does not follow the input; restore the polygon's own orientation.
   for (let t = 0; t < tri.length; t += 3) {
-    const a = tri[t]!, b = tri[t + 1]!, c = tri[t + 2]!;
-    const cross = (flat[b * 2]! - flat[a * 2]!) * (flat[c * 2 + 1]! - flat[a * 2 + 1]!) - (flat[b * 2 + 1]! - flat[a * 2 + 1]!) * (flat[c * 2]! - flat[a * 2]!);
+    const a = tri[t]!,
+      b = tri[t + 1]!,
+      c = tri[t + 2]!;
+    const cross =
+      (flat[b * 2]! - flat[a * 2]!) * (flat[c * 2 + 1]! - flat[a * 2 + 1]!) -
+      (flat[b * 2 + 1]! - flat[a * 2 + 1]!) * (flat[c * 2]! - flat[a * 2]!);
     if (cross >= 0) out.push(idx[a]!, idx[b]!, idx[c]!);
     else out.push(idx[a]!, idx[c]!, idx[b]!);
   }

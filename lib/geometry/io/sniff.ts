@@ -59,4 +59,3 @@ export function detectFormat(bytes: Uint8Array, fileName: string): MeshFormat {
   if (bytes.byteLength === 0) throw new MeshImportError("empty", fileName, "the file is empty");
   throw new UnsupportedFormatError(fileName, "this is not a mesh file we recognise");
 }
-

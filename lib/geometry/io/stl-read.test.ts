@@ -111,9 +111,11 @@ describe("STL refusals from tiny hand-built fixtures", () => {
     expect(codeOf(inf, "inf.stl")).toBe("non_finite");
     expect(codeOf(bytes(asciiStl(box(1, 1, 1)).replace("vertex 0 0 0", "vertex nan 0 0")), "nan-ascii.stl")).toBe("non_finite");
   });
-  it("a garbled number", () => expect(codeOf(bytes(asciiStl(box(1, 1, 1)).replace("vertex 0 0 0", "vertex 0 zero 0")), "g.stl")).toBe("malformed"));
+  it("a garbled number", () =>
+    expect(codeOf(bytes(asciiStl(box(1, 1, 1)).replace("vertex 0 0 0", "vertex 0 zero 0")), "g.stl")).toBe("malformed"));
   it("more triangles than the limit", () => expect(codeOf(cube, "big.stl", { maxTriangles: 11 })).toBe("too_many_triangles"));
-  it("a file over the size limit, refused before it is read", () => expect(codeOf(cube, "huge.stl", { maxBytes: 100 })).toBe("file_too_large"));
+  it("a file over the size limit, refused before it is read", () =>
+    expect(codeOf(cube, "huge.stl", { maxBytes: 100 })).toBe("file_too_large"));
   it("a file ending inside a facet", () => expect(codeOf(bytes(asciiStl(box(1, 1, 1)).split("endloop")[0]!), "end.stl")).toBe("truncated"));
   it("something that is not a mesh at all", () => expect(codeOf(bytes("%PDF-1.7 hello"), "notes.pdf")).toBe("not_a_mesh"));
 

@@ -12,7 +12,11 @@ export { isBinaryStl, looksLikeAsciiStl };
 export function readBinaryStl(bytes: Uint8Array, file: string, maxTriangles: number): RawModel {
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   if (bytes.byteLength < 84) {
-    throw new MeshImportError("truncated", file, `the file is ${bytes.byteLength} bytes; a binary STL needs at least 84 (header and triangle count)`);
+    throw new MeshImportError(
+      "truncated",
+      file,
+      `the file is ${bytes.byteLength} bytes; a binary STL needs at least 84 (header and triangle count)`,
+    );
   }
   const n = view.getUint32(80, true);
   const room = Math.floor((bytes.byteLength - 84) / 50);
@@ -22,11 +26,18 @@ export function readBinaryStl(bytes: Uint8Array, file: string, maxTriangles: num
     const why =
       diff < 0
         ? `it is ${(-diff).toLocaleString("en-US")} bytes short: the file is cut off or its triangle count is wrong`
-        : `it has ${diff.toLocaleString("en-US")} bytes too many: its triangle count is wrong or the file was damaged (for example saved as text)`;
-    throw new MeshImportError("bad_triangle_count", file, `the header says ${n.toLocaleString("en-US")} triangles, which need ${expected.toLocaleString("en-US")} bytes (84 + 50 × ${n}), but the file is ${bytes.byteLength.toLocaleString("en-US")} bytes; ${why}`, {
-      declared: n,
-      room,
-    });
+        : `it has ${diff.toLocaleString("en-US")} bytes too many: its triangle count is wrong or the file was damaged (for example ` +
+          `saved as text)`;
+    throw new MeshImportError(
+      "bad_triangle_count",
+      file,
+      `the header says ${n.toLocaleString("en-US")} triangles, which need ${expected.toLocaleString("en-US")} bytes (84 + 50 × ` +
+        `${n}), but the file is ${bytes.byteLength.toLocaleString("en-US")} bytes; ${why}`,
+      {
+        declared: n,
+        room,
+      },
+    );
   }
   if (n === 0) throw new MeshImportError("empty", file, "the file holds no triangles");
   if (n > maxTriangles) throw tooMany(file, n, maxTriangles);
@@ -117,7 +128,8 @@ export function readStl(bytes: Uint8Array, file: string, maxTriangles: number): 
   if (bytes.byteLength === 0) throw new MeshImportError("empty", file, "the file is empty");
   if (isBinaryStl(bytes)) return readBinaryStl(bytes, file, maxTriangles);
   if (looksLikeAsciiStl(bytes)) return readAsciiStl(bytes, file, maxTriangles);
-  if (bytes.byteLength < 84) throw new UnsupportedFormatError(file, `${bytes.byteLength} bytes is too short for a binary STL and it is not ASCII STL`);
+  if (bytes.byteLength < 84)
+    throw new UnsupportedFormatError(file, `${bytes.byteLength} bytes is too short for a binary STL and it is not ASCII STL`);
   return readBinaryStl(bytes, file, maxTriangles); // reports the lying or truncated count
 }
 
@@ -133,10 +145,15 @@ function malformed(file: string, line: number, what: string) {
 }
 
 export function tooMany(file: string, n: number, max: number) {
-  return new MeshImportError("too_many_triangles", file, `${n.toLocaleString("en-US")} triangles is more than the limit of ${max.toLocaleString("en-US")} per file; simplify the mesh first`, {
-    triangles: n,
-    limit: max,
-  });
+  return new MeshImportError(
+    "too_many_triangles",
+    file,
+    `${n.toLocaleString("en-US")} triangles is more than the limit of ${max.toLocaleString("en-US")} per file; simplify the mesh first`,
+    {
+      triangles: n,
+      limit: max,
+    },
+  );
 }
 
 export function stem(file: string): string {

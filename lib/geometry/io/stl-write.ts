@@ -29,22 +29,44 @@ export function writeBinaryStl(meshes: IndexedMesh[]): Uint8Array {
     const p = m.vertProperties;
     const t = m.triVerts;
     for (let i = 0; i < t.length; i += 3, facet++) {
-      const a = t[i]! * 3, b = t[i + 1]! * 3, c = t[i + 2]! * 3;
-      const ax = p[a]!, ay = p[a + 1]!, az = p[a + 2]!;
-      const bx = p[b]!, by = p[b + 1]!, bz = p[b + 2]!;
-      const cx = p[c]!, cy = p[c + 1]!, cz = p[c + 2]!;
-      const ux = bx - ax, uy = by - ay, uz = bz - az;
-      const vx = cx - ax, vy = cy - ay, vz = cz - az;
-      const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
+      const a = t[i]! * 3,
+        b = t[i + 1]! * 3,
+        c = t[i + 2]! * 3;
+      const ax = p[a]!,
+        ay = p[a + 1]!,
+        az = p[a + 2]!;
+      const bx = p[b]!,
+        by = p[b + 1]!,
+        bz = p[b + 2]!;
+      const cx = p[c]!,
+        cy = p[c + 1]!,
+        cz = p[c + 2]!;
+      const ux = bx - ax,
+        uy = by - ay,
+        uz = bz - az;
+      const vx = cx - ax,
+        vy = cy - ay,
+        vz = cz - az;
+      const nx = uy * vz - uz * vy,
+        ny = uz * vx - ux * vz,
+        nz = ux * vy - uy * vx;
       const inv = 1 / (Math.sqrt(nx * nx + ny * ny + nz * nz) || 1);
       // Even facet 2k starts at word 21 + 25k; odd facet 2k+1 starts in the upper half of word 33 + 25k.
       const even = (facet & 1) === 0;
       const f = even ? of32 : scratch;
       const k = even ? 21 + 25 * (facet >>> 1) : 0;
-      f[k] = nx * inv; f[k + 1] = ny * inv; f[k + 2] = nz * inv;
-      f[k + 3] = ax; f[k + 4] = ay; f[k + 5] = az;
-      f[k + 6] = bx; f[k + 7] = by; f[k + 8] = bz;
-      f[k + 9] = cx; f[k + 10] = cy; f[k + 11] = cz;
+      f[k] = nx * inv;
+      f[k + 1] = ny * inv;
+      f[k + 2] = nz * inv;
+      f[k + 3] = ax;
+      f[k + 4] = ay;
+      f[k + 5] = az;
+      f[k + 6] = bx;
+      f[k + 7] = by;
+      f[k + 8] = bz;
+      f[k + 9] = cx;
+      f[k + 10] = cy;
+      f[k + 11] = cz;
       if (!even) {
         const w = 33 + 25 * (facet >>> 1);
         o32[w] = s32[0]! << 16; // low half: the previous facet's zero attribute

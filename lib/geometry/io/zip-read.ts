@@ -25,14 +25,19 @@ export function readZipDirectory(bytes: Uint8Array, file: string, limits: ZipLim
   const cdSize = view.getUint32(eocd + 12, true);
   const cdOffset = view.getUint32(eocd + 16, true);
   if (count === 0xffff || cdOffset === 0xffffffff || cdSize === 0xffffffff) {
-    throw new MeshImportError("unsupported_archive", file, "the 3MF package uses ZIP64, which is only needed past 4 GB; that is over our limits anyway");
+    throw new MeshImportError(
+      "unsupported_archive",
+      file,
+      "the 3MF package uses ZIP64, which is only needed past 4 GB; that is over our limits anyway",
+    );
   }
   if (cdOffset + cdSize > eocd) throw new MeshImportError("truncated", file, "the 3MF package's directory points past its end");
   const entries = new Map<string, ZipEntry>();
   let declared = 0;
   let p = cdOffset;
   for (let i = 0; i < count; i++) {
-    if (p + 46 > len || view.getUint32(p, true) !== 0x02014b50) throw new MeshImportError("truncated", file, "the 3MF package's directory is damaged");
+    if (p + 46 > len || view.getUint32(p, true) !== 0x02014b50)
+      throw new MeshImportError("truncated", file, "the 3MF package's directory is damaged");
     const flags = view.getUint16(p + 8, true);
     const method = view.getUint16(p + 10, true);
     const compressedSize = view.getUint32(p + 20, true);
@@ -46,7 +51,8 @@ export function readZipDirectory(bytes: Uint8Array, file: string, limits: ZipLim
     if (flags & 1) throw new MeshImportError("unsupported_archive", file, `the entry ${name} is encrypted`);
     declared += size;
     if (declared > limits.maxInflatedBytes) throw archiveTooLarge(file, limits.maxInflatedBytes, "its directory declares");
-    if (local + 30 > len || view.getUint32(local, true) !== 0x04034b50) throw new MeshImportError("truncated", file, `the entry ${name} is missing from the package`);
+    if (local + 30 > len || view.getUint32(local, true) !== 0x04034b50)
+      throw new MeshImportError("truncated", file, `the entry ${name} is missing from the package`);
     const dataStart = local + 30 + view.getUint16(local + 26, true) + view.getUint16(local + 28, true);
     if (dataStart + compressedSize > len) throw new MeshImportError("truncated", file, `the entry ${name} is cut short`);
     // OPC part names are case-insensitive; keep a leading-slash-free, lower-case key.
@@ -76,14 +82,26 @@ export function inflateEntry(bytes: Uint8Array, entry: ZipEntry, file: string, b
  * Returns the bytes produced. `packageLimit` is the limit named in the refusal (the budget is what is
  * left of it after the entries read before).
  */
-export function inflateEntryTo(bytes: Uint8Array, entry: ZipEntry, file: string, budget: number, sink: (chunk: Uint8Array) => void, packageLimit = budget): number {
+export function inflateEntryTo(
+  bytes: Uint8Array,
+  entry: ZipEntry,
+  file: string,
+  budget: number,
+  sink: (chunk: Uint8Array) => void,
+  packageLimit = budget,
+): number {
   const data = bytes.subarray(entry.dataStart, entry.dataStart + entry.compressedSize);
   if (entry.method === 0) {
     if (data.byteLength > budget) throw archiveTooLarge(file, packageLimit, "the package holds");
     sink(data);
     return data.byteLength;
   }
-  if (entry.method !== 8) throw new MeshImportError("unsupported_archive", file, `the entry ${entry.name} uses ZIP compression method ${entry.method}; only stored and deflated entries are read`);
+  if (entry.method !== 8)
+    throw new MeshImportError(
+      "unsupported_archive",
+      file,
+      `the entry ${entry.name} uses ZIP compression method ${entry.method}; only stored and deflated entries are read`,
+    );
   let produced = 0;
   let over = false;
   const inflater = new Inflate((chunk) => {
@@ -106,5 +124,10 @@ export function inflateEntryTo(bytes: Uint8Array, entry: ZipEntry, file: string,
 }
 
 function archiveTooLarge(file: string, limit: number, how: string) {
-  return new MeshImportError("archive_too_large", file, `${how} more than ${(limit / 1e6).toLocaleString("en-US")} MB of content, past the limit for one package`, { limit });
+  return new MeshImportError(
+    "archive_too_large",
+    file,
+    `${how} more than ${(limit / 1e6).toLocaleString("en-US")} MB of content, past the limit for one package`,
+    { limit },
+  );
 }

@@ -36,8 +36,14 @@ export function crc32(data: Uint8Array): number {
     const lo = (data[i]! | (data[i + 1]! << 8) | (data[i + 2]! << 16) | (data[i + 3]! << 24)) ^ c;
     const hi = data[i + 4]! | (data[i + 5]! << 8) | (data[i + 6]! << 16) | (data[i + 7]! << 24);
     c =
-      t[1792 + (lo & 0xff)]! ^ t[1536 + ((lo >>> 8) & 0xff)]! ^ t[1280 + ((lo >>> 16) & 0xff)]! ^ t[1024 + (lo >>> 24)]! ^
-      t[768 + (hi & 0xff)]! ^ t[512 + ((hi >>> 8) & 0xff)]! ^ t[256 + ((hi >>> 16) & 0xff)]! ^ t[hi >>> 24]!;
+      t[1792 + (lo & 0xff)]! ^
+      t[1536 + ((lo >>> 8) & 0xff)]! ^
+      t[1280 + ((lo >>> 16) & 0xff)]! ^
+      t[1024 + (lo >>> 24)]! ^
+      t[768 + (hi & 0xff)]! ^
+      t[512 + ((hi >>> 8) & 0xff)]! ^
+      t[256 + ((hi >>> 16) & 0xff)]! ^
+      t[hi >>> 24]!;
   }
   for (; i < data.length; i++) c = t[(c ^ data[i]!) & 0xff]! ^ (c >>> 8);
   return (c ^ -1) >>> 0;

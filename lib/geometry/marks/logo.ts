@@ -12,7 +12,16 @@ import { flattenPath, TEXT_TOLERANCE, type Contour, type PathCommand } from "./t
  * text.
  */
 
-export type LogoErrorCode = "svg_invalid" | "svg_script" | "svg_external" | "svg_image" | "svg_not_geometry" | "svg_too_large" | "svg_too_complex" | "svg_empty" | "svg_stroke_only";
+export type LogoErrorCode =
+  | "svg_invalid"
+  | "svg_script"
+  | "svg_external"
+  | "svg_image"
+  | "svg_not_geometry"
+  | "svg_too_large"
+  | "svg_too_complex"
+  | "svg_empty"
+  | "svg_stroke_only";
 
 export class LogoError extends Error {
   constructor(
@@ -26,7 +35,10 @@ export class LogoError extends Error {
 
 export const LOGO_LIMITS = { bytes: 1024 * 1024, elements: 5000, paths: 500, pathChars: 900_000, points: 60_000 } as const;
 
-export type LogoPaths = { paths: { d: string; fillRule: "nonzero" | "evenodd" }[]; box: { minX: number; minY: number; maxX: number; maxY: number } };
+export type LogoPaths = {
+  paths: { d: string; fillRule: "nonzero" | "evenodd" }[];
+  box: { minX: number; minY: number; maxX: number; maxY: number };
+};
 
 const SHAPES = new Set(["path", "rect", "circle", "ellipse", "polygon", "polyline", "line"]);
 const CONTAINERS = new Set(["svg", "g"]);
@@ -34,11 +46,23 @@ const CONTAINERS = new Set(["svg", "g"]);
 const SKIPPED = new Set(["title", "desc", "metadata"]);
 const REFUSED: Record<string, [LogoErrorCode, string]> = {
   script: ["svg_script", "The drawing contains a script. Logos are geometry only: export it again without scripts."],
-  image: ["svg_image", "The drawing contains an embedded picture (<image>). Only outlines can be engraved: trace the picture into paths first."],
+  image: [
+    "svg_image",
+    "The drawing contains an embedded picture (<image>). Only outlines can be engraved: trace the picture into paths first.",
+  ],
   foreignObject: ["svg_not_geometry", "The drawing embeds other content (<foreignObject>). Only outlines can be engraved."],
-  use: ["svg_external", "The drawing reuses shapes by reference (<use>). Expand the references into plain shapes (\"unlink clones\") and export again."],
-  text: ["svg_not_geometry", "The drawing holds live text (<text>). Convert the text to outlines (paths) in your drawing program and export again."],
-  style: ["svg_not_geometry", "The drawing holds a style sheet (<style>). Export it with presentation attributes (fill, fill-rule) instead of CSS."],
+  use: [
+    "svg_external",
+    'The drawing reuses shapes by reference (<use>). Expand the references into plain shapes ("unlink clones") and export again.',
+  ],
+  text: [
+    "svg_not_geometry",
+    "The drawing holds live text (<text>). Convert the text to outlines (paths) in your drawing program and export again.",
+  ],
+  style: [
+    "svg_not_geometry",
+    "The drawing holds a style sheet (<style>). Export it with presentation attributes (fill, fill-rule) instead of CSS.",
+  ],
 };
 
 const num = (v: string | undefined, what: string, fallback?: number): number => {
@@ -51,26 +75,39 @@ const num = (v: string | undefined, what: string, fallback?: number): number => 
   return Number(m[1]);
 };
 
-const points = (v: string | undefined): number[] => (v ?? "").trim().split(/[\s,]+/).filter(Boolean).map((p) => num(p, "points"));
+const points = (v: string | undefined): number[] =>
+  (v ?? "")
+    .trim()
+    .split(/[\s,]+/)
+    .filter(Boolean)
+    .map((p) => num(p, "points"));
 
 function shapeToPath(name: string, a: Record<string, string>): string | null {
   switch (name) {
     case "path":
       return a.d ?? "";
     case "rect": {
-      const x = num(a.x, "x", 0), y = num(a.y, "y", 0), w = num(a.width, "width"), h = num(a.height, "height");
+      const x = num(a.x, "x", 0),
+        y = num(a.y, "y", 0),
+        w = num(a.width, "width"),
+        h = num(a.height, "height");
       if (w <= 0 || h <= 0) return null;
       let rx = a.rx !== undefined ? num(a.rx, "rx") : a.ry !== undefined ? num(a.ry, "ry") : 0;
       let ry = a.ry !== undefined ? num(a.ry, "ry") : rx;
       rx = Math.min(rx, w / 2);
       ry = Math.min(ry, h / 2);
       if (rx <= 0 || ry <= 0) return `M${x} ${y}H${x + w}V${y + h}H${x}Z`;
-      return `M${x + rx} ${y}H${x + w - rx}A${rx} ${ry} 0 0 1 ${x + w} ${y + ry}V${y + h - ry}A${rx} ${ry} 0 0 1 ${x + w - rx} ${y + h}H${x + rx}A${rx} ${ry} 0 0 1 ${x} ${y + h - ry}V${y + ry}A${rx} ${ry} 0 0 1 ${x + rx} ${y}Z`;
+      return (
+        `M${x + rx} ${y}H${x + w - rx}A${rx} ${ry} 0 0 1 ${x + w} ${y + ry}V${y + h - ry}A${rx} ${ry} 0 0 1 ${x + w - rx} ` +
+        `${y + h}H${x + rx}A${rx} ${ry} 0 0 1 ${x} ${y + h - ry}V${y + ry}A${rx} ${ry} 0 0 1 ${x + rx} ${y}Z`
+      );
     }
     case "circle":
     case "ellipse": {
-      const cx = num(a.cx, "cx", 0), cy = num(a.cy, "cy", 0);
-      const rx = name === "circle" ? num(a.r, "r") : num(a.rx, "rx"), ry = name === "circle" ? rx : num(a.ry, "ry");
+      const cx = num(a.cx, "cx", 0),
+        cy = num(a.cy, "cy", 0);
+      const rx = name === "circle" ? num(a.r, "r") : num(a.rx, "rx"),
+        ry = name === "circle" ? rx : num(a.ry, "ry");
       if (rx <= 0 || ry <= 0) return null;
       return `M${cx - rx} ${cy}A${rx} ${ry} 0 1 0 ${cx + rx} ${cy}A${rx} ${ry} 0 1 0 ${cx - rx} ${cy}Z`;
     }
@@ -90,10 +127,22 @@ function shapeToPath(name: string, a: Record<string, string>): string | null {
 /** Read and check an SVG logo. Throws a LogoError that says what to change. */
 export function importSvgLogo(svg: string | Uint8Array): LogoPaths {
   const bytes = typeof svg === "string" ? new TextEncoder().encode(svg).byteLength : svg.byteLength;
-  if (bytes > LOGO_LIMITS.bytes) throw new LogoError("svg_too_large", `The drawing is ${(bytes / 1024 / 1024).toFixed(1)} MB; a logo may be at most ${LOGO_LIMITS.bytes / 1024 / 1024} MB. Simplify it or remove hidden layers.`);
+  if (bytes > LOGO_LIMITS.bytes)
+    throw new LogoError(
+      "svg_too_large",
+      `The drawing is ${(bytes / 1024 / 1024).toFixed(1)} MB; a logo may be at most ${LOGO_LIMITS.bytes / 1024 / 1024} MB. Simplify ` +
+        `it or remove hidden layers.`,
+    );
   const text = typeof svg === "string" ? svg : new TextDecoder().decode(svg);
   const parser = new SaxesParser({ xmlns: true });
-  const stack: { name: string; transform: string; fill: string | undefined; fillRule: string | undefined; stroke: string | undefined; skip: boolean }[] = [];
+  const stack: {
+    name: string;
+    transform: string;
+    fill: string | undefined;
+    fillRule: string | undefined;
+    stroke: string | undefined;
+    skip: boolean;
+  }[] = [];
   const paths: LogoPaths["paths"] = [];
   let elements = 0;
   let chars = 0;
@@ -103,22 +152,43 @@ export function importSvgLogo(svg: string | Uint8Array): LogoPaths {
   const refuse = (e: LogoError) => {
     problem ??= e;
   };
-  parser.on("doctype", () => refuse(new LogoError("svg_invalid", "The file declares a document type (DTD); logos must be plain SVG without one.")));
+  parser.on("doctype", () =>
+    refuse(new LogoError("svg_invalid", "The file declares a document type (DTD); logos must be plain SVG without one.")),
+  );
   parser.on("processinginstruction", (pi) => {
-    if (pi.target !== "xml") refuse(new LogoError("svg_external", `The file holds a processing instruction (<?${pi.target} …?>) that could pull in other files.`));
+    if (pi.target !== "xml")
+      refuse(new LogoError("svg_external", `The file holds a processing instruction (<?${pi.target} …?>) that could pull in other files.`));
   });
   parser.on("opentag", (tag: SaxesTagNS) => {
     if (problem) return;
     elements++;
-    if (elements > LOGO_LIMITS.elements) return refuse(new LogoError("svg_too_complex", `The drawing has more than ${LOGO_LIMITS.elements} elements. Simplify it or merge shapes.`));
+    if (elements > LOGO_LIMITS.elements)
+      return refuse(
+        new LogoError("svg_too_complex", `The drawing has more than ${LOGO_LIMITS.elements} elements. Simplify it or merge shapes.`),
+      );
     const parent = stack[stack.length - 1];
     const name = tag.local;
     const attrs: Record<string, string> = {};
     for (const a of Object.values(tag.attributes)) {
       const local = a.local;
-      if (/^on/i.test(local)) return refuse(new LogoError("svg_script", `The drawing has an event handler (${a.name}), which is script. Export it again without scripts.`));
-      if (local === "href" && !a.value.startsWith("#") && !a.value.startsWith("data:")) return refuse(new LogoError("svg_external", `The drawing refers to another file or address (${a.value.slice(0, 60)}). Logos must hold every shape themselves.`));
-      if (/url\(\s*['"]?(?!#)/i.test(a.value)) return refuse(new LogoError("svg_external", `The drawing refers to another file or address in ${a.name}. Logos must hold every shape themselves.`));
+      if (/^on/i.test(local))
+        return refuse(
+          new LogoError("svg_script", `The drawing has an event handler (${a.name}), which is script. Export it again without scripts.`),
+        );
+      if (local === "href" && !a.value.startsWith("#") && !a.value.startsWith("data:"))
+        return refuse(
+          new LogoError(
+            "svg_external",
+            `The drawing refers to another file or address (${a.value.slice(0, 60)}). Logos must hold every shape themselves.`,
+          ),
+        );
+      if (/url\(\s*['"]?(?!#)/i.test(a.value))
+        return refuse(
+          new LogoError(
+            "svg_external",
+            `The drawing refers to another file or address in ${a.name}. Logos must hold every shape themselves.`,
+          ),
+        );
       attrs[local] = a.value;
     }
     if (!sawRoot) {
@@ -129,10 +199,21 @@ export function importSvgLogo(svg: string | Uint8Array): LogoPaths {
     const refused = REFUSED[name];
     if (refused && !(parent?.skip && name !== "script")) return refuse(new LogoError(refused[0], refused[1]));
     if (!skip && !SHAPES.has(name) && !CONTAINERS.has(name)) {
-      return refuse(new LogoError("svg_not_geometry", `<${name}> is not geometry a slab can carry. Logos may hold paths, rect, circle, ellipse, polygon and polyline in groups; remove or flatten the rest.`));
+      return refuse(
+        new LogoError(
+          "svg_not_geometry",
+          `<${name}> is not geometry a slab can carry. Logos may hold paths, rect, circle, ellipse, polygon and polyline in groups; ` +
+            `remove or flatten the rest.`,
+        ),
+      );
     }
     // Presentation attributes, and the same properties in a style="" attribute, inherit from groups.
-    const style = Object.fromEntries((attrs.style ?? "").split(";").map((d) => d.split(":").map((s) => s.trim())).filter((p) => p.length === 2 && p[0]) as [string, string][]);
+    const style = Object.fromEntries(
+      (attrs.style ?? "")
+        .split(";")
+        .map((d) => d.split(":").map((s) => s.trim()))
+        .filter((p) => p.length === 2 && p[0]) as [string, string][],
+    );
     const fill = style.fill ?? attrs.fill ?? parent?.fill;
     const fillRule = style["fill-rule"] ?? attrs["fill-rule"] ?? parent?.fillRule;
     const stroke = style.stroke ?? attrs.stroke ?? parent?.stroke;
@@ -147,7 +228,14 @@ export function importSvgLogo(svg: string | Uint8Array): LogoPaths {
       const d = shapeToPath(name, attrs);
       if (!d) return;
       chars += d.length;
-      if (chars > LOGO_LIMITS.pathChars || paths.length >= LOGO_LIMITS.paths) return refuse(new LogoError("svg_too_complex", `The drawing's outlines are too detailed (over ${LOGO_LIMITS.paths} shapes or ${LOGO_LIMITS.pathChars.toLocaleString("en-US")} characters of path data). Simplify it.`));
+      if (chars > LOGO_LIMITS.pathChars || paths.length >= LOGO_LIMITS.paths)
+        return refuse(
+          new LogoError(
+            "svg_too_complex",
+            `The drawing's outlines are too detailed (over ${LOGO_LIMITS.paths} shapes or ` +
+              `${LOGO_LIMITS.pathChars.toLocaleString("en-US")} characters of path data). Simplify it.`,
+          ),
+        );
       // Into the root's user units, arcs as cubic curves, y up (the slab's axes).
       const abs = svgpath(d).transform(transform).abs().unshort().unarc().scale(1, -1).round(4).toString();
       paths.push({ d: abs, fillRule: fillRule === "evenodd" ? "evenodd" : "nonzero" });
@@ -168,10 +256,17 @@ export function importSvgLogo(svg: string | Uint8Array): LogoPaths {
   if (problem) throw problem;
   if (!sawRoot) throw new LogoError("svg_invalid", "The file is empty or not SVG.");
   if (paths.length === 0) {
-    if (strokeOnly) throw new LogoError("svg_stroke_only", "The drawing has only strokes (lines without a fill). Convert the strokes to outlines (\"stroke to path\") and export again.");
+    if (strokeOnly)
+      throw new LogoError(
+        "svg_stroke_only",
+        'The drawing has only strokes (lines without a fill). Convert the strokes to outlines ("stroke to path") and export again.',
+      );
     throw new LogoError("svg_empty", "The drawing has no filled shapes to engrave.");
   }
-  let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+  let minX = Infinity,
+    minY = Infinity,
+    maxX = -Infinity,
+    maxY = -Infinity;
   for (const p of paths) {
     for (const c of toCommands(p.d)) {
       for (const [x, y] of cmdPoints(c)) {
@@ -186,13 +281,19 @@ export function importSvgLogo(svg: string | Uint8Array): LogoPaths {
   const box = { minX, minY, maxX, maxY };
   // Refuse what would flatten into too many points at the largest logo size.
   const pts = logoContours({ paths, box }, 200).reduce((s, x) => s + x.contours.reduce((t, c) => t + c.length, 0), 0);
-  if (pts > LOGO_LIMITS.points) throw new LogoError("svg_too_complex", `The drawing flattens to ${pts.toLocaleString("en-US")} points; a logo may have at most ${LOGO_LIMITS.points.toLocaleString("en-US")}. Simplify its curves.`);
+  if (pts > LOGO_LIMITS.points)
+    throw new LogoError(
+      "svg_too_complex",
+      `The drawing flattens to ${pts.toLocaleString("en-US")} points; a logo may have at most ` +
+        `${LOGO_LIMITS.points.toLocaleString("en-US")}. Simplify its curves.`,
+    );
   return { paths, box };
 }
 
 function toCommands(d: string): PathCommand[] {
   const out: PathCommand[] = [];
-  let x = 0, y = 0;
+  let x = 0,
+    y = 0;
   svgpath(d).iterate((seg) => {
     const [t, ...v] = seg as [string, ...number[]];
     switch (t) {
@@ -225,8 +326,17 @@ function toCommands(d: string): PathCommand[] {
 
 function cmdPoints(c: PathCommand): [number, number][] {
   if (c.type === "Z") return [];
-  if (c.type === "C") return [[c.x1, c.y1], [c.x2, c.y2], [c.x, c.y]];
-  if (c.type === "Q") return [[c.x1, c.y1], [c.x, c.y]];
+  if (c.type === "C")
+    return [
+      [c.x1, c.y1],
+      [c.x2, c.y2],
+      [c.x, c.y],
+    ];
+  if (c.type === "Q")
+    return [
+      [c.x1, c.y1],
+      [c.x, c.y],
+    ];
   return [[c.x, c.y]];
 }
 
@@ -234,7 +344,11 @@ function cmdPoints(c: PathCommand): [number, number][] {
  * The logo's outlines in millimetres at `width` mm wide, from (0, 0), flattened to the text chord
  * tolerance; one contour set per path with its fill rule (the kernel unions them).
  */
-export function logoContours(logo: Pick<LogoMark, "paths" | "box">, width: number, tolerance = TEXT_TOLERANCE): { contours: Contour[]; fillRule: "nonzero" | "evenodd" }[] {
+export function logoContours(
+  logo: Pick<LogoMark, "paths" | "box">,
+  width: number,
+  tolerance = TEXT_TOLERANCE,
+): { contours: Contour[]; fillRule: "nonzero" | "evenodd" }[] {
   const scale = width / (logo.box.maxX - logo.box.minX);
   return logo.paths.map((p) => {
     const contours: Contour[] = [];

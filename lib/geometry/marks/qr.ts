@@ -23,7 +23,10 @@ export const QUIET_ZONE_MODULES = 4;
 const GROW = 0.005;
 
 /** The symbol's dark modules as horizontal runs (row 0 at the top), with its size in modules and version. */
-export function qrRuns(value: string, level: "L" | "M" | "Q" | "H"): { modules: number; version: number; runs: { row: number; start: number; end: number }[] } {
+export function qrRuns(
+  value: string,
+  level: "L" | "M" | "Q" | "H",
+): { modules: number; version: number; runs: { row: number; start: number; end: number }[] } {
   const qr = QRCode.create(value, { errorCorrectionLevel: level });
   const n = qr.modules.size;
   const runs: { row: number; start: number; end: number }[] = [];
@@ -46,9 +49,16 @@ export function qrShape(value: string, moduleMm: number, level: "L" | "M" | "Q" 
   const { modules: n, version, runs } = qrRuns(value, level);
   // Row 0 is the top of the symbol; y runs up on the slab.
   const contours: Contour[] = runs.map(({ row, start, end }) => {
-    const x0 = start * moduleMm - GROW, x1 = end * moduleMm + GROW;
-    const y1 = (n - row) * moduleMm + GROW, y0 = (n - row - 1) * moduleMm - GROW;
-    return [[x0, y0], [x1, y0], [x1, y1], [x0, y1]];
+    const x0 = start * moduleMm - GROW,
+      x1 = end * moduleMm + GROW;
+    const y1 = (n - row) * moduleMm + GROW,
+      y0 = (n - row - 1) * moduleMm - GROW;
+    return [
+      [x0, y0],
+      [x1, y0],
+      [x1, y1],
+      [x0, y1],
+    ];
   });
   const size = n * moduleMm;
   return { contours, modules: n, version, size, sizeWithQuietZone: size + 2 * QUIET_ZONE_MODULES * moduleMm };

@@ -43,7 +43,10 @@ describe("text layout", () => {
     const normal = layoutText(fonts["sans-bold"], "oeB84", 5);
     const a = new CrossSection(fine.contours, "NonZero");
     const b = new CrossSection(normal.contours, "NonZero");
-    const solid = new CrossSection(fine.contours.map((c) => [...c]), "EvenOdd");
+    const solid = new CrossSection(
+      fine.contours.map((c) => [...c]),
+      "EvenOdd",
+    );
     try {
       // Holes are cut out: NonZero and EvenOdd agree when every hole runs against its outline.
       expect(a.area()).toBeCloseTo(solid.area(), 6);

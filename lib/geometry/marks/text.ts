@@ -70,7 +70,10 @@ export function layoutText(font: opentype.Font, text: string, capHeightMm: numbe
     const next = glyphs[i + 1];
     if (next) pen += kern(font, g, next);
   });
-  let minX = Infinity, minY = Infinity, maxX = -Infinity, maxY = -Infinity;
+  let minX = Infinity,
+    minY = Infinity,
+    maxX = -Infinity,
+    maxY = -Infinity;
   for (const c of contours) {
     for (const [x, y] of c) {
       if (x < minX) minX = x;
@@ -93,7 +96,10 @@ export type PathCommand =
 /** Flatten outline commands (in their own units, shifted by dx) to polylines within `tol` of those units, scaled to mm. */
 export function flattenPath(commands: PathCommand[], dx: number, tol: number, out: Contour[], scale: number) {
   let cur: Contour = [];
-  let x = 0, y = 0, sx = 0, sy = 0;
+  let x = 0,
+    y = 0,
+    sx = 0,
+    sy = 0;
   const push = (px: number, py: number) => cur.push([(px + dx) * scale, py * scale]);
   const close = () => {
     if (cur.length >= 3) {
@@ -122,7 +128,8 @@ export function flattenPath(commands: PathCommand[], dx: number, tol: number, ou
         const d = Math.hypot(x - 2 * c.x1 + c.x, y - 2 * c.y1 + c.y);
         const n = Math.max(1, Math.ceil(Math.sqrt(d / (8 * tol))));
         for (let i = 1; i <= n; i++) {
-          const t = i / n, u = 1 - t;
+          const t = i / n,
+            u = 1 - t;
           push(u * u * x + 2 * u * t * c.x1 + t * t * c.x, u * u * y + 2 * u * t * c.y1 + t * t * c.y);
         }
         x = c.x;
@@ -134,7 +141,8 @@ export function flattenPath(commands: PathCommand[], dx: number, tol: number, ou
         const m = Math.max(Math.hypot(x - 2 * c.x1 + c.x2, y - 2 * c.y1 + c.y2), Math.hypot(c.x1 - 2 * c.x2 + c.x, c.y1 - 2 * c.y2 + c.y));
         const n = Math.max(1, Math.ceil(Math.sqrt((3 * m) / (4 * tol))));
         for (let i = 1; i <= n; i++) {
-          const t = i / n, u = 1 - t;
+          const t = i / n,
+            u = 1 - t;
           push(
             u * u * u * x + 3 * u * u * t * c.x1 + 3 * u * t * t * c.x2 + t * t * t * c.x,
             u * u * u * y + 3 * u * u * t * c.y1 + 3 * u * t * t * c.y2 + t * t * t * c.y,

@@ -29,14 +29,24 @@ async function linkOnlyUser(email: string): Promise<string> {
 }
 
 async function passwordUser(email: string, password: string): Promise<string> {
-  const [u] = await db().insert(users).values({ email, name: "Has Password", passwordHash: await hashPassword(password), emailVerified: new Date() }).returning({ id: users.id });
+  const [u] = await db()
+    .insert(users)
+    .values({ email, name: "Has Password", passwordHash: await hashPassword(password), emailVerified: new Date() })
+    .returning({ id: users.id });
   return u!.id;
 }
 
 /** Sign in with e-mail + password the way the sign-in form's callback does; the answer's redirect says how it went. */
-async function tryPassword(email: string, password: string, headers: Record<string, string> = {}): Promise<{ ok: boolean; code: string | null; ms: number }> {
+async function tryPassword(
+  email: string,
+  password: string,
+  headers: Record<string, string> = {},
+): Promise<{ ok: boolean; code: string | null; ms: number }> {
   const csrf = await fetch(`${baseUrl()}/api/auth/csrf`);
-  const cookie = csrf.headers.getSetCookie().map((c) => c.split(";")[0]).join("; ");
+  const cookie = csrf.headers
+    .getSetCookie()
+    .map((c) => c.split(";")[0])
+    .join("; ");
   const { csrfToken } = (await csrf.json()) as { csrfToken: string };
   const t0 = performance.now();
   const res = await fetch(`${baseUrl()}/api/auth/callback/credentials`, {
@@ -114,7 +124,9 @@ describe("sign-up cannot claim an existing account", () => {
     await callAction("/reset-password", AUTH, "askPasswordReset", [{ email }]);
     const link = (await mailTo(email, { since, subject: /Reset your Slabwright password/ })).links[0]!;
     const token = link.split("/").pop()!;
-    const done = await callAction(new URL(link).pathname, AUTH, "confirmPasswordReset", [{ token, email, password: "chosen-by-the-owner" }]);
+    const done = await callAction(new URL(link).pathname, AUTH, "confirmPasswordReset", [
+      { token, email, password: "chosen-by-the-owner" },
+    ]);
     expect(done.redirect).toBe("/parts");
     expect((await tryPassword(email, "chosen-by-the-owner")).ok).toBe(true);
   });
@@ -150,7 +162,12 @@ describe("sessions end when they should", () => {
     expect(await stillIn(cookie)).toBe(200);
     const csrf = await s.fetch("/api/auth/csrf");
     const { csrfToken } = (await csrf.json()) as { csrfToken: string };
-    const out = await s.fetch("/api/auth/signout", { method: "POST", redirect: "manual", headers: { "content-type": "application/x-www-form-urlencoded" }, body: new URLSearchParams({ csrfToken, callbackUrl: baseUrl() }) });
+    const out = await s.fetch("/api/auth/signout", {
+      method: "POST",
+      redirect: "manual",
+      headers: { "content-type": "application/x-www-form-urlencoded" },
+      body: new URLSearchParams({ csrfToken, callbackUrl: baseUrl() }),
+    });
     expect(out.status).toBe(302);
     expect(await stillIn(cookie)).toBe(401);
   });
@@ -173,10 +190,23 @@ describe("sessions end when they should", () => {
     const a = await signInOverHttp(email, "first-password-here");
     const b = await signInOverHttp(email, "first-password-here");
     // Change the password from session a: b ends, a goes on with the cookie the change sets.
-    const changed = await callAction("/settings/account", ACCOUNT, "changeMyPassword", [{ current: "first-password-here", password: "second-password-here" }], { cookie: a.cookie() });
+    const changed = await callAction(
+      "/settings/account",
+      ACCOUNT,
+      "changeMyPassword",
+      [{ current: "first-password-here", password: "second-password-here" }],
+      { cookie: a.cookie() },
+    );
     expect(changed.body).toContain("Password changed");
     expect(await stillIn(b.cookie())).toBe(401);
-    const aNow = new Jar().take(a.cookie().split("; ").map((c) => `${c}; Path=/`)).take(changed.setCookies);
+    const aNow = new Jar()
+      .take(
+        a
+          .cookie()
+          .split("; ")
+          .map((c) => `${c}; Path=/`),
+      )
+      .take(changed.setCookies);
     expect(await stillIn(aNow.header())).toBe(200);
     const c = await signInOverHttp(email, "second-password-here");
     const out = await callAction("/settings/account", ACCOUNT, "signOutEverywhere", [], { cookie: c.cookie() });
@@ -234,31 +264,37 @@ describe("abuse limits", () => {
   // ASVS 4.0 V2.2.1 (soft lockout and rate limiting, not a hard lock of the real owner), V11.1.4 (anti-automation).
   it("take the client's address from the socket: a forged X-Forwarded-For buys no fresh tries", async () => {
     const email = `forged-${stamp()}@example.com`;
-    for (let i = 0; i < 4; i++) await tryPassword(email, `guess-${i}`, { "x-forwarded-for": `198.51.100.${i + 1}`, "x-real-ip": `198.51.100.${i + 1}` });
-    const rows = await db().execute<{ key: string; points: number }>(sql`select key, points from abuse_counters where key like 'signInFailuresPerIp:%'`);
+    for (let i = 0; i < 4; i++)
+      await tryPassword(email, `guess-${i}`, { "x-forwarded-for": `198.51.100.${i + 1}`, "x-real-ip": `198.51.100.${i + 1}` });
+    const rows = await db().execute<{ key: string; points: number }>(
+      sql`select key, points from abuse_counters where key like 'signInFailuresPerIp:%'`,
+    );
     expect(rows.rows).toEqual([{ key: "signInFailuresPerIp:127.0.0.1", points: 4 }]);
     const logged = await db().select({ ip: auditEvents.ip }).from(auditEvents).where(eq(auditEvents.actorEmail, email));
     expect(new Set(logged.map((l) => l.ip))).toEqual(new Set(["127.0.0.1"]));
   });
 
-  it("slow an account after its free wrong passwords (1 s, then 2 s …) rather than lock it, and a mailed link still signs its owner in", async () => {
-    const email = `slowed-${stamp()}@example.com`;
-    await passwordUser(email, "the-owners-password");
-    for (let i = 0; i < FREE_SIGN_IN_FAILURES; i++) expect((await tryPassword(email, `guess-${i}`)).code).toBe("bad_credentials");
-    expect((await tryPassword(email, "guess-x")).code).toBe("bad_credentials"); // the 11th: a wait of 1 s begins
-    const held = await tryPassword(email, "the-owners-password");
-    expect(held.ok).toBe(false);
-    expect(held.code).toMatch(/^rate_limited:[12]$/);
-    // The e-mailed link is never held back.
-    const since = new Date();
-    await callAction("/sign-in", AUTH, "sendSignInLink", [{ email }]);
-    const link = (await mailTo(email, { since, subject: /sign-in link/ })).links[0]!;
-    const res = await fetch(link, { redirect: "manual" });
-    expect(res.headers.getSetCookie().some((c) => c.includes("session-token="))).toBe(true);
-    // After the short wait the owner's own password works again.
-    await new Promise((r) => setTimeout(r, 2100));
-    expect((await tryPassword(email, "the-owners-password")).ok).toBe(true);
-  });
+  it(
+    "slow an account after its free wrong passwords (1 s, then 2 s …) rather than lock it, and a mailed link still signs its owner " + "in",
+    async () => {
+      const email = `slowed-${stamp()}@example.com`;
+      await passwordUser(email, "the-owners-password");
+      for (let i = 0; i < FREE_SIGN_IN_FAILURES; i++) expect((await tryPassword(email, `guess-${i}`)).code).toBe("bad_credentials");
+      expect((await tryPassword(email, "guess-x")).code).toBe("bad_credentials"); // the 11th: a wait of 1 s begins
+      const held = await tryPassword(email, "the-owners-password");
+      expect(held.ok).toBe(false);
+      expect(held.code).toMatch(/^rate_limited:[12]$/);
+      // The e-mailed link is never held back.
+      const since = new Date();
+      await callAction("/sign-in", AUTH, "sendSignInLink", [{ email }]);
+      const link = (await mailTo(email, { since, subject: /sign-in link/ })).links[0]!;
+      const res = await fetch(link, { redirect: "manual" });
+      expect(res.headers.getSetCookie().some((c) => c.includes("session-token="))).toBe(true);
+      // After the short wait the owner's own password works again.
+      await new Promise((r) => setTimeout(r, 2100));
+      expect((await tryPassword(email, "the-owners-password")).ok).toBe(true);
+    },
+  );
 
   it("throttle sign-in link mail per address", async () => {
     const email = `flood-${stamp()}@example.com`;
@@ -276,14 +312,22 @@ describe("cookie-authenticated route handlers refuse other sites", () => {
   it("a state-changing request with a foreign Origin or Sec-Fetch-Site is 403 cross_site", async () => {
     const s = await signInOverHttp(demoUser("designer").email, demoUser("designer").password);
     const body = new Uint8Array(84);
-    const foreign: Record<string, string>[] = [{ origin: "https://evil.example" }, { "sec-fetch-site": "cross-site", origin: "https://evil.example" }, { "sec-fetch-site": "same-site" }];
+    const foreign: Record<string, string>[] = [
+      { origin: "https://evil.example" },
+      { "sec-fetch-site": "cross-site", origin: "https://evil.example" },
+      { "sec-fetch-site": "same-site" },
+    ];
     for (const headers of foreign) {
       const res = await s.fetch("/api/parts?name=x.stl", { method: "POST", headers, body });
       expect(res.status).toBe(403);
       expect(((await res.json()) as { error: { code: string } }).error.code).toBe("cross_site");
     }
     // The same request from our own pages gets past the check (and is judged on its content).
-    const own = await s.fetch("/api/parts?name=x.stl", { method: "POST", headers: { origin: baseUrl(), "sec-fetch-site": "same-origin" }, body });
+    const own = await s.fetch("/api/parts?name=x.stl", {
+      method: "POST",
+      headers: { origin: baseUrl(), "sec-fetch-site": "same-origin" },
+      body,
+    });
     expect(own.status).not.toBe(403);
   });
 });

@@ -18,7 +18,15 @@ beforeAll(async () => {
   kitId = k!.id;
   // A key of its own, so these requests do not count against the demo key's rate limit.
   const made = generateApiKey();
-  await db().insert(apiKeys).values({ workspaceId: ws!.id, name: "callbacks test", prefix: made.prefix, keyHash: made.hash, scopes: ["plates:write", "plates:read"] });
+  await db()
+    .insert(apiKeys)
+    .values({
+      workspaceId: ws!.id,
+      name: "callbacks test",
+      prefix: made.prefix,
+      keyHash: made.hash,
+      scopes: ["plates:write", "plates:read"],
+    });
   key = made.key;
 });
 
@@ -30,7 +38,8 @@ function form(fields: Record<string, string | Blob>) {
   }
   return f;
 }
-const post = (body: FormData, headers: Record<string, string> = {}) => fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", body, headers: { authorization: `Bearer ${key}`, ...headers } });
+const post = (body: FormData, headers: Record<string, string> = {}) =>
+  fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", body, headers: { authorization: `Bearer ${key}`, ...headers } });
 const cube = (s = 10) => new Blob([new Uint8Array(writeBinaryStl([box(s, s, s)]))]);
 
 async function jobStateOf(id: string) {
@@ -96,38 +105,46 @@ describe("a callback host that never answers holds no build slot", () => {
     await receiver.close();
   });
 
-  it("4 plates with a holding callback, then a normal plate: the normal one is built promptly, and the held deliveries are retried on their schedule", { timeout: 60_000 }, async () => {
-    const held: string[] = [];
-    for (let i = 0; i < 4; i++) {
-      const r = await post(form({ part: cube(8 + i), callbackUrl: holder.url(`/hold/${i}`) }), { prefer: "respond-async" });
+  it(
+    "4 plates with a holding callback, then a normal plate: the normal one is built promptly, and the held deliveries are retried on " +
+      "their schedule",
+    { timeout: 60_000 },
+    async () => {
+      const held: string[] = [];
+      for (let i = 0; i < 4; i++) {
+        const r = await post(form({ part: cube(8 + i), callbackUrl: holder.url(`/hold/${i}`) }), { prefer: "respond-async" });
+        expect(r.status).toBe(202);
+        held.push(r.headers.get("x-plate-id")!);
+      }
+      // Every held plate's build ends and its delivery is under way (the receiver has the request).
+      await expect.poll(() => holder.held.length, { timeout: 20_000, interval: 100 }).toBeGreaterThanOrEqual(4);
+      const t0 = Date.now();
+      const r = await post(form({ part: cube(12), callbackUrl: receiver.url("/normal") }), { prefer: "respond-async" });
       expect(r.status).toBe(202);
-      held.push(r.headers.get("x-plate-id")!);
-    }
-    // Every held plate's build ends and its delivery is under way (the receiver has the request).
-    await expect.poll(() => holder.held.length, { timeout: 20_000, interval: 100 }).toBeGreaterThanOrEqual(4);
-    const t0 = Date.now();
-    const r = await post(form({ part: cube(12), callbackUrl: receiver.url("/normal") }), { prefer: "respond-async" });
-    expect(r.status).toBe(202);
-    const normal = r.headers.get("x-plate-id")!;
-    await expect.poll(() => jobStateOf(normal), { timeout: 10_000, interval: 100 }).toBe("done");
-    const builtIn = Date.now() - t0;
-    console.log(`[callbacks] normal plate built ${builtIn} ms after it was posted, with 4 deliveries held`);
-    // Its own callback is not stuck behind the held ones either.
-    await expect.poll(() => receiver.received.filter((x) => x.body.includes(normal)).length, { timeout: 10_000, interval: 100 }).toBe(1);
-    for (const id of held) expect(await jobStateOf(id)).toBe("done");
+      const normal = r.headers.get("x-plate-id")!;
+      await expect.poll(() => jobStateOf(normal), { timeout: 10_000, interval: 100 }).toBe("done");
+      const builtIn = Date.now() - t0;
+      console.log(`[callbacks] normal plate built ${builtIn} ms after it was posted, with 4 deliveries held`);
+      // Its own callback is not stuck behind the held ones either.
+      await expect.poll(() => receiver.received.filter((x) => x.body.includes(normal)).length, { timeout: 10_000, interval: 100 }).toBe(1);
+      for (const id of held) expect(await jobStateOf(id)).toBe("done");
 
-    // The held deliveries are retried: a second attempt on the same path after at least one attempt's timeout.
-    const timeoutMs = Number(process.env.SLAB_CALLBACK_TIMEOUT_MS ?? 10_000);
-    await expect.poll(() => holder.held.filter((h) => h.path === "/hold/0").length, { timeout: 40_000, interval: 200 }).toBeGreaterThanOrEqual(2);
-    const [a1, a2] = holder.held.filter((h) => h.path === "/hold/0");
-    expect(a2!.at - a1!.at).toBeGreaterThanOrEqual(timeoutMs - 100);
-    console.log(`[callbacks] /hold/0 attempts ${a2!.at - a1!.at} ms apart (attempt timeout ${timeoutMs} ms)`);
-    // The queue's record of it: its own queue, 5 retries with backoff.
-    const rows = await db().execute<{ retry_limit: number; retry_backoff: boolean; retry_count: number; state: string }>(
-      sql`select retry_limit, retry_backoff, retry_count, state from pgboss.job where name = 'plate-callback' and data->>'url' = ${holder.url("/hold/0")}`,
-    );
-    expect(rows.rows).toHaveLength(1);
-    expect(rows.rows[0]).toMatchObject({ retry_limit: 5, retry_backoff: true });
-    expect(rows.rows[0]!.retry_count).toBeGreaterThanOrEqual(1);
-  });
+      // The held deliveries are retried: a second attempt on the same path after at least one attempt's timeout.
+      const timeoutMs = Number(process.env.SLAB_CALLBACK_TIMEOUT_MS ?? 10_000);
+      await expect
+        .poll(() => holder.held.filter((h) => h.path === "/hold/0").length, { timeout: 40_000, interval: 200 })
+        .toBeGreaterThanOrEqual(2);
+      const [a1, a2] = holder.held.filter((h) => h.path === "/hold/0");
+      expect(a2!.at - a1!.at).toBeGreaterThanOrEqual(timeoutMs - 100);
+      console.log(`[callbacks] /hold/0 attempts ${a2!.at - a1!.at} ms apart (attempt timeout ${timeoutMs} ms)`);
+      // The queue's record of it: its own queue, 5 retries with backoff.
+      const rows = await db().execute<{ retry_limit: number; retry_backoff: boolean; retry_count: number; state: string }>(
+        sql`select retry_limit, retry_backoff, retry_count, state from pgboss.job where name = 'plate-callback' and data->>'url' = ` +
+          `${holder.url("/hold/0")}`,
+      );
+      expect(rows.rows).toHaveLength(1);
+      expect(rows.rows[0]).toMatchObject({ retry_limit: 5, retry_backoff: true });
+      expect(rows.rows[0]!.retry_count).toBeGreaterThanOrEqual(1);
+    },
+  );
 });

@@ -24,7 +24,9 @@ function routes(): { template: string; methods: string[] }[] {
       if (statSync(full).isDirectory()) walk(full);
       else if (name === "route.ts") {
         const src = readFileSync(full, "utf8");
-        const methods = METHODS.filter((m) => new RegExp(`export (const|function|async function) ${m}\\b|export const \\{[^}]*\\b${m}\\b`).test(src));
+        const methods = METHODS.filter((m) =>
+          new RegExp(`export (const|function|async function) ${m}\\b|export const \\{[^}]*\\b${m}\\b`).test(src),
+        );
         out.push({ template: `/${path.relative(path.join(ROOT, "app"), path.dirname(full)).split(path.sep).join("/")}`, methods });
       }
     }
@@ -36,17 +38,53 @@ function routes(): { template: string; methods: string[] }[] {
 const nasty = fc.oneof(
   fc.string({ maxLength: 40 }),
   fc.string({ unit: "binary", maxLength: 40 }),
-  fc.constantFrom("\u0000", "a\u0000b", "%00", "..", "../../etc/passwd", "😀", "' or 1=1 --", "x".repeat(3000), "00000000-0000-0000-0000-000000000000", "-1", "1e309", "[]", "{}", "null"),
+  fc.constantFrom(
+    "\u0000",
+    "a\u0000b",
+    "%00",
+    "..",
+    "../../etc/passwd",
+    "😀",
+    "' or 1=1 --",
+    "x".repeat(3000),
+    "00000000-0000-0000-0000-000000000000",
+    "-1",
+    "1e309",
+    "[]",
+    "{}",
+    "null",
+  ),
 );
-const query = fc.dictionary(fc.constantFrom("name", "search", "sort", "dir", "page", "pageSize", "format", "wait", "split", "unit", "layFlat", "paper", "kitId"), nasty, { maxKeys: 4 });
+const query = fc.dictionary(
+  fc.constantFrom("name", "search", "sort", "dir", "page", "pageSize", "format", "wait", "split", "unit", "layFlat", "paper", "kitId"),
+  nasty,
+  { maxKeys: 4 },
+);
 const body = fc.oneof(
   fc.constant(""),
   fc.string({ maxLength: 200 }),
   fc.json({ maxDepth: 3 }),
-  fc.constantFrom("{", "[1,", '{"name":"a\\u0000b"}', '{"name":null}', '{"name":"' + "n".repeat(5000) + '"}', "null", "[]", '{"quantity":1e400}'),
+  fc.constantFrom(
+    "{",
+    "[1,",
+    '{"name":"a\\u0000b"}',
+    '{"name":null}',
+    '{"name":"' + "n".repeat(5000) + '"}',
+    "null",
+    "[]",
+    '{"quantity":1e400}',
+  ),
   fc.uint8Array({ maxLength: 600 }).map((b) => Buffer.from(b).toString("latin1")),
 );
-const contentType = fc.constantFrom("application/json", "text/plain", "application/octet-stream", "multipart/form-data; boundary=zz", "multipart/form-data", "application/x-www-form-urlencoded", "");
+const contentType = fc.constantFrom(
+  "application/json",
+  "text/plain",
+  "application/octet-stream",
+  "multipart/form-data; boundary=zz",
+  "multipart/form-data",
+  "application/x-www-form-urlencoded",
+  "",
+);
 
 let stranger: Jar;
 let apiKey: string;
@@ -58,8 +96,11 @@ beforeAll(async () => {
   await callAction("/sign-up", "app/(auth)/actions.ts", "signUp", [{ name: "Fuzz", email, password: "fuzzing-password-1" }]);
   const link = (await mailTo(email, { since, subject: /Finish creating/ })).links[0]!;
   const token = link.split("/").pop()!;
-  stranger = new Jar().take((await callAction(new URL(link).pathname, "app/(auth)/actions.ts", "finishSignUpFromLink", [{ token }])).setCookies);
-  apiKey = (JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string }).apiKey;
+  stranger = new Jar().take(
+    (await callAction(new URL(link).pathname, "app/(auth)/actions.ts", "finishSignUpFromLink", [{ token }])).setCookies,
+  );
+  apiKey = (JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string })
+    .apiKey;
 });
 afterAll(async () => {
   await db().execute(sql`delete from abuse_counters`);
@@ -74,57 +115,94 @@ describe("no route handler answers bad input with a 5xx", () => {
 
   it.each(table.map((r) => [r.template, r] as const))("%s", async (_t, route) => {
     await fc.assert(
-      fc.asyncProperty(fc.constantFrom(...route.methods), nasty, nasty, query, body, contentType, fc.constantFrom("session", "key", "none"), async (method, seg1, seg2, q, b, type, who) => {
-        // [id] and the like take a generated segment; Auth.js's catch-all takes one or two.
-        const url = route.template.replace(/\[\.\.\.[^\]]+\]/, `${encodeURIComponent(seg1)}/${encodeURIComponent(seg2)}`).replace(/\[[^\]]+\]/g, () => encodeURIComponent(seg1) || "x");
-        const qs = new URLSearchParams(q).toString();
-        const headers: Record<string, string> = { origin: baseUrl(), "sec-fetch-site": "same-origin" };
-        if (type) headers["content-type"] = type;
-        if (who === "session") headers.cookie = stranger.header();
-        if (who === "key") headers.authorization = `Bearer ${apiKey}`;
-        const res = await fetch(`${baseUrl()}${url}${qs ? `?${qs}` : ""}`, { method, headers, body: method === "GET" || method === "DELETE" ? undefined : b, redirect: "manual" });
-        const text = await res.text();
-        if (res.status >= 500) throw new Error(`${method} ${url}?${qs} (${who}, ${type}) → ${res.status}: ${text.slice(0, 300)}`);
-        // Our JSON errors carry a code; nothing leaks a stack.
-        expect(text).not.toMatch(/at .+\.(ts|js):\d+/);
-      }),
+      fc.asyncProperty(
+        fc.constantFrom(...route.methods),
+        nasty,
+        nasty,
+        query,
+        body,
+        contentType,
+        fc.constantFrom("session", "key", "none"),
+        async (method, seg1, seg2, q, b, type, who) => {
+          // [id] and the like take a generated segment; Auth.js's catch-all takes one or two.
+          const url = route.template
+            .replace(/\[\.\.\.[^\]]+\]/, `${encodeURIComponent(seg1)}/${encodeURIComponent(seg2)}`)
+            .replace(/\[[^\]]+\]/g, () => encodeURIComponent(seg1) || "x");
+          const qs = new URLSearchParams(q).toString();
+          const headers: Record<string, string> = { origin: baseUrl(), "sec-fetch-site": "same-origin" };
+          if (type) headers["content-type"] = type;
+          if (who === "session") headers.cookie = stranger.header();
+          if (who === "key") headers.authorization = `Bearer ${apiKey}`;
+          const res = await fetch(`${baseUrl()}${url}${qs ? `?${qs}` : ""}`, {
+            method,
+            headers,
+            body: method === "GET" || method === "DELETE" ? undefined : b,
+            redirect: "manual",
+          });
+          const text = await res.text();
+          if (res.status >= 500) throw new Error(`${method} ${url}?${qs} (${who}, ${type}) → ${res.status}: ${text.slice(0, 300)}`);
+          // Our JSON errors carry a code; nothing leaks a stack.
+          expect(text).not.toMatch(/at .+\.(ts|js):\d+/);
+        },
+      ),
       { numRuns: 25, seed: 20261202 },
     );
   });
 });
 
 describe("no server action answers a malformed body with a 5xx", () => {
-  const manifest = JSON.parse(readFileSync(path.join(ROOT, ".next/server/server-reference-manifest.json"), "utf8")) as { node: Record<string, { filename?: string; exportedName?: string; workers: Record<string, unknown> }> };
+  const manifest = JSON.parse(readFileSync(path.join(ROOT, ".next/server/server-reference-manifest.json"), "utf8")) as {
+    node: Record<string, { filename?: string; exportedName?: string; workers: Record<string, unknown> }>;
+  };
   const actions = Object.values(manifest.node).filter((a) => a.filename && a.exportedName);
   it("finds the app's server actions", () => expect(actions.length).toBeGreaterThan(15));
 
   it("every action, fed garbage, answers 4xx (or its own refusal), never 5xx", async () => {
     await fc.assert(
-      fc.asyncProperty(fc.constantFrom(...actions), body, fc.constantFrom("text/plain;charset=UTF-8", "multipart/form-data; boundary=zz", "application/json"), async (a, b, type) => {
-        // Never the actions that end this throwaway session: the rest of the run needs it.
-        if (/signOut/.test(a.exportedName!)) return;
-        const page = `/${Object.keys(a.workers)[0]!.replace(/^app\//, "").replace(/\/page$/, "").replace(/\([^)]+\)\/?/g, "").replace(/\[[^\]]+\]/g, "x")}`;
-        const res = await fetch(`${baseUrl()}${page}`, {
-          method: "POST",
-          redirect: "manual",
-          headers: { "next-action": Object.entries(manifest.node).find(([, v]) => v === a)![0], "content-type": type, origin: baseUrl(), cookie: stranger.header() },
-          body: b,
-        });
-        if (res.status >= 500) throw new Error(`${a.filename} ${a.exportedName} (${type}) → ${res.status}: ${(await res.text()).slice(0, 300)}`);
-      }),
+      fc.asyncProperty(
+        fc.constantFrom(...actions),
+        body,
+        fc.constantFrom("text/plain;charset=UTF-8", "multipart/form-data; boundary=zz", "application/json"),
+        async (a, b, type) => {
+          // Never the actions that end this throwaway session: the rest of the run needs it.
+          if (/signOut/.test(a.exportedName!)) return;
+          const page = `/${Object.keys(a.workers)[0]!
+            .replace(/^app\//, "")
+            .replace(/\/page$/, "")
+            .replace(/\([^)]+\)\/?/g, "")
+            .replace(/\[[^\]]+\]/g, "x")}`;
+          const res = await fetch(`${baseUrl()}${page}`, {
+            method: "POST",
+            redirect: "manual",
+            headers: {
+              "next-action": Object.entries(manifest.node).find(([, v]) => v === a)![0],
+              "content-type": type,
+              origin: baseUrl(),
+              cookie: stranger.header(),
+            },
+            body: b,
+          });
+          if (res.status >= 500)
+            throw new Error(`${a.filename} ${a.exportedName} (${type}) → ${res.status}: ${(await res.text()).slice(0, 300)}`);
+        },
+      ),
       { numRuns: 120, seed: 20261202 },
     );
   });
 
   it("a kit of 10 000 lines is refused at the field, not stored and not a 5xx", async () => {
     const lines = Array.from({ length: 10_000 }, () => ({ partId: "p", quantity: 1, rotation: 0, orientation: "as-imported" }));
-    const res = await callAction("/kits/new", "app/(workspace)/kits/actions.ts", "saveKitAction", [{ name: "Too many", lines }], { cookie: stranger.header() });
+    const res = await callAction("/kits/new", "app/(workspace)/kits/actions.ts", "saveKitAction", [{ name: "Too many", lines }], {
+      cookie: stranger.header(),
+    });
     expect(res.status).toBeLessThan(500);
     expect(res.body).toMatch(/at most 300 lines|more than 1 MB/);
   });
 
   it("a NUL byte in a form field is a message, not a 5xx", async () => {
-    const res = await callAction("/welcome", "app/(auth)/actions.ts", "createFirstWorkspace", [{ name: "Nul\u0000Shop" }], { cookie: stranger.header() });
+    const res = await callAction("/welcome", "app/(auth)/actions.ts", "createFirstWorkspace", [{ name: "Nul\u0000Shop" }], {
+      cookie: stranger.header(),
+    });
     expect(res.status).toBeLessThan(500);
     expect(res.body).toMatch(/NUL character|cannot be stored|Check the marked fields/);
   });

@@ -23,7 +23,10 @@ beforeAll(async () => {
   await db().delete(plateUsage).where(eq(plateUsage.workspaceId, demo));
 });
 afterAll(async () => {
-  await db().update(workspaceBilling).set({ plan: plan as "bench" }).where(eq(workspaceBilling.workspaceId, demo));
+  await db()
+    .update(workspaceBilling)
+    .set({ plan: plan as "bench" })
+    .where(eq(workspaceBilling.workspaceId, demo));
   await db().execute(sql`delete from abuse_counters`);
 });
 
@@ -32,13 +35,30 @@ describe("plan limits on every plate path", () => {
     const s = await signInOverHttp(demoUser("designer").email, demoUser("designer").password);
     const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo)).limit(1);
     const before = (await db().select({ n: count() }).from(plates).where(eq(plates.workspaceId, demo)))[0]!.n;
-    const res = await callAction(`/kits/${kit!.id}/slab`, "app/(workspace)/kits/actions.ts", "makePlateAction", [{ kitId: kit!.id, options: { marks: { logo: LOGO } }, variables: {} }], { cookie: s.cookie() });
+    const res = await callAction(
+      `/kits/${kit!.id}/slab`,
+      "app/(workspace)/kits/actions.ts",
+      "makePlateAction",
+      [{ kitId: kit!.id, options: { marks: { logo: LOGO } }, variables: {} }],
+      { cookie: s.cookie() },
+    );
     expect(res.body).toContain("plan_limit");
     expect(res.body).toMatch(/Logos come with the Workshop and Farm plans/);
-    const after = (await db().select({ n: count() }).from(plates).where(and(eq(plates.workspaceId, demo))))[0]!.n;
+    const after = (
+      await db()
+        .select({ n: count() })
+        .from(plates)
+        .where(and(eq(plates.workspaceId, demo)))
+    )[0]!.n;
     expect(after).toBe(before);
     // Without the logo the same request makes its plate (the refusal was the logo, not the plan's quota).
-    const ok = await callAction(`/kits/${kit!.id}/slab`, "app/(workspace)/kits/actions.ts", "makePlateAction", [{ kitId: kit!.id, options: {}, variables: {} }], { cookie: s.cookie() });
+    const ok = await callAction(
+      `/kits/${kit!.id}/slab`,
+      "app/(workspace)/kits/actions.ts",
+      "makePlateAction",
+      [{ kitId: kit!.id, options: {}, variables: {} }],
+      { cookie: s.cookie() },
+    );
     expect(ok.body).toContain('"ok":true');
   });
 });

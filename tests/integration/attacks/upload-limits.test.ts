@@ -11,7 +11,9 @@ import { box } from "../../support/meshes";
 import { sendPart, settled, uploadPart } from "../../support/uploads";
 
 // Hostile uploads over HTTP against the app npm test started (upload limit 20 MB) and its build worker.
-const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as { apiKey: string };
+const creds = JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8")) as {
+  apiKey: string;
+};
 let designer: HttpSession;
 const made: string[] = [];
 
@@ -41,7 +43,12 @@ function appRssKb(): number | null {
  * server reads; resolve with the status as soon as it answers, the bytes sent by then, the time taken
  * and the app's peak RSS growth measured while sending.
  */
-function sendChunked(path: string, headers: Record<string, string>, prefix: Uint8Array, total: number): Promise<{ status: number; body: string; sent: number; ms: number; rssGrowthKb: number | null }> {
+function sendChunked(
+  path: string,
+  headers: Record<string, string>,
+  prefix: Uint8Array,
+  total: number,
+): Promise<{ status: number; body: string; sent: number; ms: number; rssGrowthKb: number | null }> {
   const url = new URL(`${baseUrl()}${path}`);
   const started = Date.now();
   const rss0 = appRssKb();
@@ -49,15 +56,30 @@ function sendChunked(path: string, headers: Record<string, string>, prefix: Uint
   return new Promise((resolve, reject) => {
     let sent = 0;
     let answered = false;
-    const req = http.request({ host: url.hostname, port: url.port, path: `${url.pathname}${url.search}`, method: "POST", headers: { ...headers, "transfer-encoding": "chunked" } }, (res) => {
-      answered = true;
-      let body = "";
-      res.on("data", (c: Buffer) => (body += c.toString()));
-      res.on("end", () => {
-        resolve({ status: res.statusCode ?? 0, body, sent, ms: Date.now() - started, rssGrowthKb: rss0 === null || peak === null ? null : peak - rss0 });
-        req.destroy();
-      });
-    });
+    const req = http.request(
+      {
+        host: url.hostname,
+        port: url.port,
+        path: `${url.pathname}${url.search}`,
+        method: "POST",
+        headers: { ...headers, "transfer-encoding": "chunked" },
+      },
+      (res) => {
+        answered = true;
+        let body = "";
+        res.on("data", (c: Buffer) => (body += c.toString()));
+        res.on("end", () => {
+          resolve({
+            status: res.statusCode ?? 0,
+            body,
+            sent,
+            ms: Date.now() - started,
+            rssGrowthKb: rss0 === null || peak === null ? null : peak - rss0,
+          });
+          req.destroy();
+        });
+      },
+    );
     req.on("error", (err) => {
       if (!answered) reject(err);
     });
@@ -83,10 +105,20 @@ describe("chunked bodies cannot dodge the size limit", () => {
     // Warm the route first (a small refused request), so loading its code is not counted as holding the body.
     const warm = new FormData();
     warm.append("part", new Blob(["just some notes"]), "notes.stl");
-    expect((await fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", body: warm, headers: { authorization: `Bearer ${creds.apiKey}` } })).status).toBe(415);
+    expect(
+      (await fetch(`${baseUrl()}/api/v1/plates`, { method: "POST", body: warm, headers: { authorization: `Bearer ${creds.apiKey}` } }))
+        .status,
+    ).toBe(415);
     const boundary = "slabwright-test-boundary";
-    const prefix = new TextEncoder().encode(`--${boundary}\r\nContent-Disposition: form-data; name="part"; filename="huge.stl"\r\nContent-Type: application/octet-stream\r\n\r\n`);
-    const r = await sendChunked("/api/v1/plates", { authorization: `Bearer ${creds.apiKey}`, "content-type": `multipart/form-data; boundary=${boundary}` }, prefix, 210 * 1024 * 1024);
+    const prefix = new TextEncoder().encode(
+      `--${boundary}\r\nContent-Disposition: form-data; name="part"; filename="huge.stl"\r\nContent-Type: application/octet-stream\r\n\r\n`,
+    );
+    const r = await sendChunked(
+      "/api/v1/plates",
+      { authorization: `Bearer ${creds.apiKey}`, "content-type": `multipart/form-data; boundary=${boundary}` },
+      prefix,
+      210 * 1024 * 1024,
+    );
     expect(r.status).toBe(413);
     expect((JSON.parse(r.body) as { error: { code: string } }).error.code).toBe("file_too_large");
     // Cut near the 20 MB limit: what was sent by the answer is the limit plus what sat in socket buffers.
@@ -98,7 +130,12 @@ describe("chunked bodies cannot dodge the size limit", () => {
   });
 
   it("POST /api/parts: a chunked raw body past the limit is cut off the same way, without the app holding it", async () => {
-    const r = await sendChunked("/api/parts?name=endless.stl", { cookie: designer.cookie(), "content-type": "application/octet-stream" }, new Uint8Array(1024 * 1024), 210 * 1024 * 1024);
+    const r = await sendChunked(
+      "/api/parts?name=endless.stl",
+      { cookie: designer.cookie(), "content-type": "application/octet-stream" },
+      new Uint8Array(1024 * 1024),
+      210 * 1024 * 1024,
+    );
     expect(r.status).toBe(413);
     expect(r.sent).toBeLessThan(120 * 1024 * 1024);
     if (r.rssGrowthKb !== null) expect(r.rssGrowthKb).toBeLessThan(64 * 1024);

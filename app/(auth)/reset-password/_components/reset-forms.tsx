@@ -23,7 +23,14 @@ export function ResetConfirmForm({ token }: { token: string }) {
     <form onSubmit={f.onSubmit} className="card space-y-4 p-6" noValidate aria-label="Choose a new password">
       <FormMessage message={f.message} />
       <Field form={f.form} name="email" label="E-mail" type="email" autoComplete="email" />
-      <Field form={f.form} name="password" label="New password" type="password" autoComplete="new-password" hint={`At least ${PASSWORD_MIN} characters, and not your e-mail address.`} />
+      <Field
+        form={f.form}
+        name="password"
+        label="New password"
+        type="password"
+        autoComplete="new-password"
+        hint={`At least ${PASSWORD_MIN} characters, and not your e-mail address.`}
+      />
       <Submit pending={f.pending} pendingText="Saving…">
         Save and sign in
       </Submit>

@@ -11,8 +11,22 @@ export function SignUpForm({ next, email, invited }: { next?: string; email?: st
       <FormMessage message={f.message} />
       <Field form={f.form} name="name" label="Your name" autoComplete="name" />
       <Field form={f.form} name="email" label="E-mail" type="email" autoComplete="email" />
-      <Field form={f.form} name="password" label="Password" type="password" autoComplete="new-password" hint={`At least ${PASSWORD_MIN} characters, and not your e-mail address.`} />
-      {invited ? null : <Field form={f.form} name="workshop" label="Workshop name (optional)" hint="Your shop or print farm; you can invite people into it later." />}
+      <Field
+        form={f.form}
+        name="password"
+        label="Password"
+        type="password"
+        autoComplete="new-password"
+        hint={`At least ${PASSWORD_MIN} characters, and not your e-mail address.`}
+      />
+      {invited ? null : (
+        <Field
+          form={f.form}
+          name="workshop"
+          label="Workshop name (optional)"
+          hint="Your shop or print farm; you can invite people into it later."
+        />
+      )}
       <Submit pending={f.pending} pendingText="Creating your account…">
         Create account
       </Submit>

@@ -6,7 +6,22 @@ import { useToast } from "@/app/_components/toasts";
 import type { FloorState, PieceCheck } from "@/db/schema";
 import { inspectAction, movePlateAction, reprintAction } from "../actions";
 
-const LABEL: Record<FloorState, string> = { to_print: "Back to print", printing: "Printing", print_failed: "Print failed", to_inspect: "Printed: to inspect", reprint_needed: "Reprint needed", done: "Done" };
+const LABEL: Record<FloorState, string> = {
+  to_print: "Back to print",
+  printing: "Printing",
+  print_failed: "Print failed",
+  to_inspect: "Printed: to inspect",
+  reprint_needed: "Reprint needed",
+  done: "Done",
+};
+
+const CHOICE = "flex-1 cursor-pointer rounded-card border px-2 py-2 text-center text-sm";
+/** How a chosen state looks: present quietly marked, a problem loudly. */
+const CHOSEN = {
+  present: "border-accent bg-accent/10",
+  missing: "border-finding-error bg-finding-error/10 font-bold",
+  defective: "border-finding-error bg-finding-error/10 font-bold",
+} as const;
 
 function useRun() {
   const toast = useToast();
@@ -27,7 +42,13 @@ export function MoveButtons({ id, from, moves }: { id: string; from: FloorState;
   return (
     <span className="inline-flex flex-wrap gap-1">
       {moves.map((to) => (
-        <button key={to} type="button" className="btn-quiet px-2 py-1 text-xs" disabled={pending} onClick={() => run(() => movePlateAction({ id, to }))}>
+        <button
+          key={to}
+          type="button"
+          className="btn-quiet px-2 py-1 text-xs"
+          disabled={pending}
+          onClick={() => run(() => movePlateAction({ id, to }))}
+        >
           {to === "to_inspect" && (from === "reprint_needed" || from === "done") ? "Inspect again" : LABEL[to]}
         </button>
       ))}
@@ -46,7 +67,12 @@ export function InspectionForm({ id, pieces, canInspect }: { id: string; pieces:
   if (!canInspect) return <p className="text-sm text-muted">Your role can look at plates but not record inspections.</p>;
   return (
     <div className="space-y-3">
-      <button type="button" className="btn-primary w-full py-3 text-base" disabled={pending || marked.length > 0} onClick={() => run(() => inspectAction({ id, checks: "all-present" }))}>
+      <button
+        type="button"
+        className="btn-primary w-full py-3 text-base"
+        disabled={pending || marked.length > 0}
+        onClick={() => run(() => inspectAction({ id, checks: "all-present" }))}
+      >
         All {pieces.length} pieces present
       </button>
       <p className="text-center text-xs text-muted">or mark what is wrong, then record:</p>
@@ -64,8 +90,15 @@ export function InspectionForm({ id, pieces, canInspect }: { id: string; pieces:
               </div>
               <fieldset className="flex gap-1" aria-label={`Piece ${p.number}`}>
                 {(["present", "missing", "defective"] as const).map((s) => (
-                  <label key={s} className={`flex-1 cursor-pointer rounded-card border px-2 py-2 text-center text-sm ${c === s ? (s === "present" ? "border-accent bg-accent/10" : "border-finding-error bg-finding-error/10 font-bold") : "border-hairline"}`}>
-                    <input type="radio" className="sr-only" name={`piece-${p.number}`} checked={c === s} onChange={() => set(p.number, s)} aria-label={`Piece ${p.number} ${s}`} />
+                  <label key={s} className={`${CHOICE} ${c === s ? CHOSEN[s] : "border-hairline"}`}>
+                    <input
+                      type="radio"
+                      className="sr-only"
+                      name={`piece-${p.number}`}
+                      checked={c === s}
+                      onChange={() => set(p.number, s)}
+                      aria-label={`Piece ${p.number} ${s}`}
+                    />
                     {s}
                   </label>
                 ))}
@@ -83,7 +116,12 @@ export function InspectionForm({ id, pieces, canInspect }: { id: string; pieces:
           );
         })}
       </ul>
-      <button type="button" className="btn-quiet w-full py-2" disabled={pending} onClick={() => run(() => inspectAction({ id, checks: Object.values(checks) }))}>
+      <button
+        type="button"
+        className="btn-quiet w-full py-2"
+        disabled={pending}
+        onClick={() => run(() => inspectAction({ id, checks: Object.values(checks) }))}
+      >
         Record the inspection{marked.length ? ` (${marked.length} to reprint)` : ""}
       </button>
     </div>
@@ -94,7 +132,17 @@ export function ReprintButton({ id, count }: { id: string; count: number }) {
   const { run, pending } = useRun();
   const router = useRouter();
   return (
-    <button type="button" className="btn-primary w-full py-2" disabled={pending} onClick={() => run(() => reprintAction({ id }), (d) => router.push(`/floor/plates/${(d as { plateId: string }).plateId}`))}>
+    <button
+      type="button"
+      className="btn-primary w-full py-2"
+      disabled={pending}
+      onClick={() =>
+        run(
+          () => reprintAction({ id }),
+          (d) => router.push(`/floor/plates/${(d as { plateId: string }).plateId}`),
+        )
+      }
+    >
       Make the reprint ({count} piece{count > 1 ? "s" : ""})
     </button>
   );

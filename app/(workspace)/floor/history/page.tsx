@@ -11,7 +11,9 @@ const pct = (y: number | null) => (y === null ? "—" : `${(y * 100).toFixed(0)}
 /** Week-by-week first-pass yield as bars (height = yield), with the counts under each bar. */
 function YieldChart({ weeks, label }: { weeks: { week: string; inspected: number; passed: number }[]; label: string }) {
   if (!weeks.length) return <p className="text-sm text-muted">No inspections yet.</p>;
-  const w = 36, h = 120, gap = 10;
+  const w = 36,
+    h = 120,
+    gap = 10;
   return (
     <svg viewBox={`0 0 ${weeks.length * (w + gap) + 40} ${h + 40}`} className="h-48 w-full max-w-2xl" role="img" aria-label={label}>
       {[0, 0.5, 1].map((t) => (
@@ -50,7 +52,10 @@ export default async function HistoryPage() {
   const perKit = await Promise.all(kits.map(async (k) => ({ kit: k, y: await firstPassYield(caller, k.id) })));
   return (
     <>
-      <PageHeader title="Inspection history" lead="First-pass yield: plates whose first inspection found every piece present and none defective, over plates inspected." />
+      <PageHeader
+        title="Inspection history"
+        lead="First-pass yield: plates whose first inspection found every piece present and none defective, over plates inspected."
+      />
       <p className="mb-4 text-sm">
         <a className="text-accent underline" href="/api/floor/inspections.csv">
           Export every inspection (CSV)
@@ -62,14 +67,20 @@ export default async function HistoryPage() {
       </p>
       <section className="card mb-4 space-y-2 p-4">
         <h2 className="text-base">
-          This workspace: <span data-testid="workspace-yield">{pct(all.yield)}</span> <span className="text-sm font-normal text-muted">({all.passed} of {all.inspected} plates)</span>
+          This workspace: <span data-testid="workspace-yield">{pct(all.yield)}</span>{" "}
+          <span className="text-sm font-normal text-muted">
+            ({all.passed} of {all.inspected} plates)
+          </span>
         </h2>
         <YieldChart weeks={all.weeks} label="First-pass yield by week, whole workspace" />
       </section>
       {perKit.map(({ kit, y }) => (
         <section key={kit.id} className="card mb-4 space-y-2 p-4">
           <h2 className="text-base">
-            {kit.name}: {pct(y.yield)} <span className="text-sm font-normal text-muted">({y.passed} of {y.inspected} plates)</span>
+            {kit.name}: {pct(y.yield)}{" "}
+            <span className="text-sm font-normal text-muted">
+              ({y.passed} of {y.inspected} plates)
+            </span>
           </h2>
           <YieldChart weeks={y.weeks} label={`First-pass yield by week, ${kit.name}`} />
         </section>

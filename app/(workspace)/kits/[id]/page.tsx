@@ -31,7 +31,10 @@ export default async function KitPage({ params }: { params: Promise<{ id: string
   return (
     <>
       <PageHeader title={`Edit ${kit.name}`} />
-      <KitForm parts={await partChoices(caller)} initial={{ id: kit.id, name: kit.name, description: kit.description ?? "", lines: kit.lines.map(({ name: _n, ...l }) => l) }} />
+      <KitForm
+        parts={await partChoices(caller)}
+        initial={{ id: kit.id, name: kit.name, description: kit.description ?? "", lines: kit.lines.map(({ name: _n, ...l }) => l) }}
+      />
     </>
   );
 }

@@ -32,7 +32,8 @@ export function KitForm({ initial, parts }: { initial: Values; parts: { id: stri
     router.refresh();
   });
 
-  if (parts.length === 0) return <p className="card p-6 text-sm text-muted">Upload parts first: a kit is made of parts from the library.</p>;
+  if (parts.length === 0)
+    return <p className="card p-6 text-sm text-muted">Upload parts first: a kit is made of parts from the library.</p>;
   return (
     <form onSubmit={onSubmit} className="card space-y-5 p-6" noValidate aria-label="Kit">
       <FormMessage message={message} />
@@ -52,10 +53,16 @@ export function KitForm({ initial, parts }: { initial: Values; parts: { id: stri
         </div>
       </div>
       <fieldset>
-        <legend className="text-sm font-bold">Parts in the kit · {pieces} {pieces === 1 ? "piece" : "pieces"} a set</legend>
+        <legend className="text-sm font-bold">
+          Parts in the kit · {pieces} {pieces === 1 ? "piece" : "pieces"} a set
+        </legend>
         <div className="mt-2 space-y-2">
           {lines.fields.map((f, i) => (
-            <div key={f.id} className="grid grid-cols-2 gap-2 rounded-card border border-hairline p-2 sm:grid-cols-[2fr_1fr_1fr_1.3fr_auto]" data-testid={`kit-line-${i}`}>
+            <div
+              key={f.id}
+              className="grid grid-cols-2 gap-2 rounded-card border border-hairline p-2 sm:grid-cols-[2fr_1fr_1fr_1.3fr_auto]"
+              data-testid={`kit-line-${i}`}
+            >
               <label className="text-xs text-muted">
                 Part
                 <select className="field-input mt-1" {...form.register(`lines.${i}.partId`)} aria-label={`Part of line ${i + 1}`}>
@@ -69,15 +76,31 @@ export function KitForm({ initial, parts }: { initial: Values; parts: { id: stri
               </label>
               <label className="text-xs text-muted">
                 Quantity
-                <input type="number" min={1} className="field-input mt-1" {...form.register(`lines.${i}.quantity`)} aria-label={`Quantity of line ${i + 1}`} />
+                <input
+                  type="number"
+                  min={1}
+                  className="field-input mt-1"
+                  {...form.register(`lines.${i}.quantity`)}
+                  aria-label={`Quantity of line ${i + 1}`}
+                />
               </label>
               <label className="text-xs text-muted">
                 Rotation (°)
-                <input type="number" step="any" className="field-input mt-1" {...form.register(`lines.${i}.rotation`)} aria-label={`Rotation of line ${i + 1}`} />
+                <input
+                  type="number"
+                  step="any"
+                  className="field-input mt-1"
+                  {...form.register(`lines.${i}.rotation`)}
+                  aria-label={`Rotation of line ${i + 1}`}
+                />
               </label>
               <label className="text-xs text-muted">
                 Orientation
-                <select className="field-input mt-1" {...form.register(`lines.${i}.orientation`)} aria-label={`Orientation of line ${i + 1}`}>
+                <select
+                  className="field-input mt-1"
+                  {...form.register(`lines.${i}.orientation`)}
+                  aria-label={`Orientation of line ${i + 1}`}
+                >
                   {ORIENTATIONS.map((o) => (
                     <option key={o} value={o}>
                       {ORIENTATION_LABEL[o]}
@@ -85,17 +108,33 @@ export function KitForm({ initial, parts }: { initial: Values; parts: { id: stri
                   ))}
                 </select>
               </label>
-              <button type="button" className="btn-quiet self-end px-2 py-2" onClick={() => lines.remove(i)} aria-label={`Remove line ${i + 1}`}>
+              <button
+                type="button"
+                className="btn-quiet self-end px-2 py-2"
+                onClick={() => lines.remove(i)}
+                aria-label={`Remove line ${i + 1}`}
+              >
                 Remove
               </button>
               {errors.lines?.[i] ? (
-                <p className="col-span-full text-sm text-finding-error">{Object.values(errors.lines[i] ?? {}).map((e) => (e as { message?: string })?.message).filter(Boolean).join(" ")}</p>
+                <p className="col-span-full text-sm text-finding-error">
+                  {Object.values(errors.lines[i] ?? {})
+                    .map((e) => (e as { message?: string })?.message)
+                    .filter(Boolean)
+                    .join(" ")}
+                </p>
               ) : null}
             </div>
           ))}
         </div>
-        {errors.lines?.message || errors.lines?.root?.message ? <p className="mt-1 text-sm text-finding-error">{errors.lines.message ?? errors.lines.root?.message}</p> : null}
-        <button type="button" className="btn-quiet mt-2" onClick={() => lines.append({ partId: "", quantity: 1, rotation: 0, orientation: "as-imported" })}>
+        {errors.lines?.message || errors.lines?.root?.message ? (
+          <p className="mt-1 text-sm text-finding-error">{errors.lines.message ?? errors.lines.root?.message}</p>
+        ) : null}
+        <button
+          type="button"
+          className="btn-quiet mt-2"
+          onClick={() => lines.append({ partId: "", quantity: 1, rotation: 0, orientation: "as-imported" })}
+        >
           Add a part
         </button>
       </fieldset>

@@ -9,7 +9,17 @@ export function KitRowActions({ id, name }: { id: string; name: string }) {
   const [busy, start] = useTransition();
   return (
     <span className="space-x-1">
-      <button type="button" className="btn-quiet px-2 py-1" disabled={busy} onClick={() => start(async () => { await duplicateKitAction({ id }); router.refresh(); })}>
+      <button
+        type="button"
+        className="btn-quiet px-2 py-1"
+        disabled={busy}
+        onClick={() =>
+          start(async () => {
+            await duplicateKitAction({ id });
+            router.refresh();
+          })
+        }
+      >
         Duplicate
       </button>
       <button
@@ -17,7 +27,11 @@ export function KitRowActions({ id, name }: { id: string; name: string }) {
         className="btn-quiet px-2 py-1"
         disabled={busy}
         onClick={() => {
-          if (confirm(`Archive ${name}? Its plates stay.`)) start(async () => { await archiveKitAction({ id }); router.refresh(); });
+          if (confirm(`Archive ${name}? Its plates stay.`))
+            start(async () => {
+              await archiveKitAction({ id });
+              router.refresh();
+            });
         }}
       >
         Archive

@@ -12,7 +12,10 @@ export default async function NewKitPage() {
   return (
     <>
       <PageHeader title="New kit" lead="A set of parts with how many of each go on a slab." />
-      <KitForm parts={await partChoices(caller)} initial={{ name: "", description: "", lines: [{ partId: "", quantity: 1, rotation: 0, orientation: "as-imported" }] }} />
+      <KitForm
+        parts={await partChoices(caller)}
+        initial={{ name: "", description: "", lines: [{ partId: "", quantity: 1, rotation: 0, orientation: "as-imported" }] }}
+      />
     </>
   );
 }

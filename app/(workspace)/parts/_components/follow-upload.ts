@@ -1,7 +1,21 @@
 /** A part as an upload (or a part read again) reports it once a build worker has checked it. */
-export type UploadedPart = { id: string; name: string; bodies: number; warnings: { code: string; message: string; suggestion?: { unit: string } }[] };
+export type UploadedPart = {
+  id: string;
+  name: string;
+  bodies: number;
+  warnings: { code: string; message: string; suggestion?: { unit: string } }[];
+};
 
-export type UploadBody = { upload?: { id: string; state: "checking" | "ready" | "refused"; url: string; parts?: UploadedPart[]; error?: { code: string; message: string } }; error?: { code: string; message: string } } | null;
+export type UploadBody = {
+  upload?: {
+    id: string;
+    state: "checking" | "ready" | "refused";
+    url: string;
+    parts?: UploadedPart[];
+    error?: { code: string; message: string };
+  };
+  error?: { code: string; message: string };
+} | null;
 
 const sleep = (ms: number) => new Promise((r) => setTimeout(r, ms));
 
@@ -24,4 +38,3 @@ export async function follow(url: string): Promise<UploadBody> {
   }
   return { error: { code: "timeout", message: "The file is still being checked; look for it in the library later." } };
 }
-

@@ -29,7 +29,8 @@ type Sort = "name" | "triangles" | "volume" | "contactArea" | "createdAt" | "siz
 
 const fetcher = async (url: string) => {
   const r = await fetch(url);
-  if (!r.ok) throw new Error(((await r.json().catch(() => null)) as { error?: { message?: string } } | null)?.error?.message ?? `HTTP ${r.status}`);
+  if (!r.ok)
+    throw new Error(((await r.json().catch(() => null)) as { error?: { message?: string } } | null)?.error?.message ?? `HTTP ${r.status}`);
   return (await r.json()) as Page;
 };
 
@@ -101,17 +102,27 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
             setPage(1);
           }}
         />
-        <span className="text-sm text-muted">{data ? `${data.total} ${data.total === 1 ? "part" : "parts"}` : isLoading ? "loading…" : ""}</span>
+        <span className="text-sm text-muted">
+          {data ? `${data.total} ${data.total === 1 ? "part" : "parts"}` : isLoading ? "loading…" : ""}
+        </span>
       </div>
       {notice ? (
-        <p data-testid="parts-notice" className={`mb-3 rounded-card border px-3 py-2 text-sm ${notice.ok ? "border-accent/40 bg-accent-soft" : "border-finding-error/40 text-finding-error"}`}>
+        <p
+          data-testid="parts-notice"
+          className={
+            `mb-3 rounded-card border px-3 py-2 text-sm ` +
+            `${notice.ok ? "border-accent/40 bg-accent-soft" : "border-finding-error/40 text-finding-error"}`
+          }
+        >
           {notice.ok ? "✓ " : "✕ "}
           {notice.text}
         </p>
       ) : null}
       {error ? <p className="text-sm text-finding-error">✕ {String(error.message)}</p> : null}
       {data && data.rows.length === 0 ? (
-        <div className="card px-6 py-10 text-center text-sm text-muted">{search ? "No part matches that name." : "No parts yet: drop the STL, 3MF or OBJ files of a kit above."}</div>
+        <div className="card px-6 py-10 text-center text-sm text-muted">
+          {search ? "No part matches that name." : "No parts yet: drop the STL, 3MF or OBJ files of a kit above."}
+        </div>
       ) : null}
       {data && data.rows.length > 0 ? (
         <div className="card overflow-x-auto">
@@ -134,7 +145,13 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
                 <tr key={p.id} data-testid={`part-${p.name}`}>
                   <td className="px-3 py-1">
                     {/* eslint-disable-next-line @next/next/no-img-element */}
-                    <img src={p.thumbnail} alt={`Top view of ${p.name}`} width={48} height={48} className="h-12 w-12 min-w-12 max-w-none rounded bg-paper" />
+                    <img
+                      src={p.thumbnail}
+                      alt={`Top view of ${p.name}`}
+                      width={48}
+                      height={48}
+                      className="h-12 w-12 min-w-12 max-w-none rounded bg-paper"
+                    />
                   </td>
                   <td className="px-3 py-2">
                     <span className="font-bold">{p.name}</span>
@@ -164,33 +181,48 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
                   {canWrite ? (
                     <td className="px-3 py-2">
                       <div className="flex min-w-48 flex-wrap justify-end gap-1 whitespace-normal">
-                      <button
-                        type="button"
-                        className="btn-quiet px-2 py-0.5 text-xs"
-                        onClick={() => {
-                          const name = prompt("New name for the part", p.name);
-                          if (name && name.trim() && name !== p.name) void act(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ name: name.trim() }) }, "Renamed.");
-                        }}
-                      >
-                        Rename
-                      </button>
-                      <button type="button" className="btn-quiet px-2 py-0.5 text-xs" onClick={() => void act(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ layFlat: !p.layFlat }) }, p.layFlat ? "Back as imported." : "Laid flat on its largest face.")}>
-                        {p.layFlat ? "As imported" : "Lay flat"}
-                      </button>
-                      {p.bodies > 1 ? (
-                        <button type="button" className="btn-quiet px-2 py-0.5 text-xs" onClick={() => void act(`/api/parts/${p.id}/split`, { method: "POST" }, `Split into ${p.bodies} parts.`)}>
-                          Split into {p.bodies}
+                        <button
+                          type="button"
+                          className="btn-quiet px-2 py-0.5 text-xs"
+                          onClick={() => {
+                            const name = prompt("New name for the part", p.name);
+                            if (name && name.trim() && name !== p.name)
+                              void act(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ name: name.trim() }) }, "Renamed.");
+                          }}
+                        >
+                          Rename
                         </button>
-                      ) : null}
-                      <button
-                        type="button"
-                        className="btn-quiet px-2 py-0.5 text-xs text-finding-error"
-                        onClick={() => {
-                          if (confirm(`Delete ${p.name}?`)) void act(`/api/parts/${p.id}`, { method: "DELETE" }, "Deleted.");
-                        }}
-                      >
-                        Delete
-                      </button>
+                        <button
+                          type="button"
+                          className="btn-quiet px-2 py-0.5 text-xs"
+                          onClick={() =>
+                            void act(
+                              `/api/parts/${p.id}`,
+                              { method: "PATCH", body: JSON.stringify({ layFlat: !p.layFlat }) },
+                              p.layFlat ? "Back as imported." : "Laid flat on its largest face.",
+                            )
+                          }
+                        >
+                          {p.layFlat ? "As imported" : "Lay flat"}
+                        </button>
+                        {p.bodies > 1 ? (
+                          <button
+                            type="button"
+                            className="btn-quiet px-2 py-0.5 text-xs"
+                            onClick={() => void act(`/api/parts/${p.id}/split`, { method: "POST" }, `Split into ${p.bodies} parts.`)}
+                          >
+                            Split into {p.bodies}
+                          </button>
+                        ) : null}
+                        <button
+                          type="button"
+                          className="btn-quiet px-2 py-0.5 text-xs text-finding-error"
+                          onClick={() => {
+                            if (confirm(`Delete ${p.name}?`)) void act(`/api/parts/${p.id}`, { method: "DELETE" }, "Deleted.");
+                          }}
+                        >
+                          Delete
+                        </button>
                       </div>
                     </td>
                   ) : null}

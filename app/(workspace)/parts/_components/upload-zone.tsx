@@ -39,7 +39,13 @@ function send(file: File, onProgress: (sent: number) => void, onSent: () => void
   });
 }
 
-export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; onAction: (url: string, init: RequestInit) => Promise<void> }) {
+export function UploadZone({
+  onUploaded,
+  onAction,
+}: {
+  onUploaded: () => void;
+  onAction: (url: string, init: RequestInit) => Promise<void>;
+}) {
   const [items, setItems] = useState<Item[]>([]);
   const [over, setOver] = useState(false);
   const input = useRef<HTMLInputElement>(null);
@@ -47,14 +53,24 @@ export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; o
 
   const add = useCallback(
     async (files: FileList | File[]) => {
-      const fresh: Item[] = [...files].map((f, i) => ({ key: `${Date.now()}-${i}-${f.name}`, name: f.name, size: f.size, state: "waiting", sent: 0 }));
+      const fresh: Item[] = [...files].map((f, i) => ({
+        key: `${Date.now()}-${i}-${f.name}`,
+        name: f.name,
+        size: f.size,
+        state: "waiting",
+        sent: 0,
+      }));
       setItems((list) => [...fresh, ...list]);
       // Sent one at a time, so order stays readable; each is then checked by a build worker while the
       // next one is sent, and its row follows the check until it is added or refused.
       for (const [i, f] of [...files].entries()) {
         const key = fresh[i]!.key;
         update(key, { state: "sending" });
-        const res = await send(f, (sent) => update(key, { sent }), () => update(key, { state: "checking", sent: f.size }));
+        const res = await send(
+          f,
+          (sent) => update(key, { sent }),
+          () => update(key, { state: "checking", sent: f.size }),
+        );
         const body = res.body as UploadBody;
         const settle = (b: UploadBody) => {
           if (b?.upload?.state === "ready") update(key, { state: "done", parts: b.upload.parts ?? [] });
@@ -87,13 +103,24 @@ export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; o
           setOver(false);
           if (e.dataTransfer.files.length) void add(e.dataTransfer.files);
         }}
-        className={`card flex flex-col items-center gap-2 border-2 border-dashed px-6 py-8 text-center ${over ? "border-accent bg-accent-soft" : "border-hairline"}`}
+        className={
+          `card flex flex-col items-center gap-2 border-2 border-dashed px-6 py-8 text-center ` +
+          `${over ? "border-accent bg-accent-soft" : "border-hairline"}`
+        }
       >
         <p className="text-sm">Drop STL, 3MF or OBJ files here — as many as you like.</p>
         <button type="button" className="btn-primary" onClick={() => input.current?.click()}>
           Choose files
         </button>
-        <input ref={input} type="file" multiple accept={ACCEPT} className="sr-only" aria-label="Mesh files" onChange={(e) => e.target.files && void add(e.target.files)} />
+        <input
+          ref={input}
+          type="file"
+          multiple
+          accept={ACCEPT}
+          className="sr-only"
+          aria-label="Mesh files"
+          onChange={(e) => e.target.files && void add(e.target.files)}
+        />
         <p className="text-xs text-muted">Each file is checked: welded where safe, refused with the reason when it cannot print.</p>
       </div>
       {items.length ? (
@@ -111,7 +138,12 @@ export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; o
                 </span>
               </div>
               {i.state === "sending" || i.state === "checking" || i.state === "waiting" ? (
-                <progress className="mt-1 h-1.5 w-full accent-[#6d4aff]" max={Math.max(1, i.size)} value={i.state === "checking" ? undefined : i.sent} aria-label={`Progress of ${i.name}`} />
+                <progress
+                  className="mt-1 h-1.5 w-full accent-[#6d4aff]"
+                  max={Math.max(1, i.size)}
+                  value={i.state === "checking" ? undefined : i.sent}
+                  aria-label={`Progress of ${i.name}`}
+                />
               ) : null}
               {i.state === "failed" ? (
                 <p className="mt-1 text-finding-error" data-testid="upload-error">
@@ -123,7 +155,13 @@ export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; o
                   {p.bodies > 1 ? (
                     <p>
                       This file holds {p.bodies} separate bodies.{" "}
-                      <button type="button" className="btn-quiet px-2 py-0.5" onClick={() => void onAction(`/api/parts/${p.id}/split`, { method: "POST" }).then(() => update(i.key, { parts: [] }))}>
+                      <button
+                        type="button"
+                        className="btn-quiet px-2 py-0.5"
+                        onClick={() =>
+                          void onAction(`/api/parts/${p.id}/split`, { method: "POST" }).then(() => update(i.key, { parts: [] }))
+                        }
+                      >
                         Split into {p.bodies} parts
                       </button>
                     </p>
@@ -132,7 +170,16 @@ export function UploadZone({ onUploaded, onAction }: { onUploaded: () => void; o
                     <p key={w.code} className="text-finding-warning">
                       ⚠ {w.message}{" "}
                       {w.suggestion ? (
-                        <button type="button" className="btn-quiet px-2 py-0.5" onClick={() => void onAction(`/api/parts/${p.id}`, { method: "PATCH", body: JSON.stringify({ unit: w.suggestion!.unit }) }).then(() => update(i.key, { parts: i.parts?.map((x) => (x.id === p.id ? { ...x, warnings: [] } : x)) }))}>
+                        <button
+                          type="button"
+                          className="btn-quiet px-2 py-0.5"
+                          onClick={() =>
+                            void onAction(`/api/parts/${p.id}`, {
+                              method: "PATCH",
+                              body: JSON.stringify({ unit: w.suggestion!.unit }),
+                            }).then(() => update(i.key, { parts: i.parts?.map((x) => (x.id === p.id ? { ...x, warnings: [] } : x)) }))
+                          }
+                        >
                           Read as {w.suggestion.unit}s
                         </button>
                       ) : null}

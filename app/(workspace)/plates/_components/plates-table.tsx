@@ -9,7 +9,19 @@ const sourceLabel = { editor: "slab editor", api: "API", reprint: "reprint" } as
 const stateLabel = { queued: "waiting for a worker", running: "building", done: "ready", failed: "failed" } as const;
 
 /** Plates as a table: when, what, who, how it went, and the files. Used for the workspace and per kit. */
-export function PlatesTable({ rows, label, showKit = true, empty, canMake = false }: { rows: PlateRow[]; label: string; showKit?: boolean; empty: string; canMake?: boolean }) {
+export function PlatesTable({
+  rows,
+  label,
+  showKit = true,
+  empty,
+  canMake = false,
+}: {
+  rows: PlateRow[];
+  label: string;
+  showKit?: boolean;
+  empty: string;
+  canMake?: boolean;
+}) {
   if (rows.length === 0) return <EmptyState message={empty} />;
   return (
     <DataTable label={label} head={["Made", ...(showKit ? ["Kit"] : []), "Template", "Pieces", "Mass", "From", "By", "Status", "Files"]}>
@@ -20,11 +32,29 @@ export function PlatesTable({ rows, label, showKit = true, empty, canMake = fals
           <tr key={p.id} data-testid="plate-row">
             <td className="px-3 py-2 text-muted">{when(p.createdAt)}</td>
             {showKit ? (
-              <td className="px-3 py-2 font-bold">{p.kitId && p.kitName ? <Link href={`/kits/${p.kitId}/slab`} className="hover:underline">{p.kitName}</Link> : (p.title ?? "posted parts")}</td>
+              <td className="px-3 py-2 font-bold">
+                {p.kitId && p.kitName ? (
+                  <Link href={`/kits/${p.kitId}/slab`} className="hover:underline">
+                    {p.kitName}
+                  </Link>
+                ) : (
+                  (p.title ?? "posted parts")
+                )}
+              </td>
             ) : null}
-            <td className="px-3 py-2">{p.templateId ? <Link href={`/templates/${p.templateId}`} className="hover:underline">{p.templateName} <span className="font-mono text-xs text-muted">v{p.templateVersion}</span></Link> : <span className="text-muted">—</span>}</td>
+            <td className="px-3 py-2">
+              {p.templateId ? (
+                <Link href={`/templates/${p.templateId}`} className="hover:underline">
+                  {p.templateName} <span className="font-mono text-xs text-muted">v{p.templateVersion}</span>
+                </Link>
+              ) : (
+                <span className="text-muted">—</span>
+              )}
+            </td>
             <td className="px-3 py-2 font-mono">{p.pieceCount}</td>
-            <td className="px-3 py-2 font-mono">{est?.totalMass !== undefined ? `${est.totalMass.toFixed(1)} g ${est.material ?? ""}` : "—"}</td>
+            <td className="px-3 py-2 font-mono">
+              {est?.totalMass !== undefined ? `${est.totalMass.toFixed(1)} g ${est.material ?? ""}` : "—"}
+            </td>
             <td className="px-3 py-2">{sourceLabel[p.source]}</td>
             <td className="px-3 py-2 text-muted">{p.makerName ?? p.makerEmail ?? (p.source === "api" ? "API key" : "—")}</td>
             <td className={`px-3 py-2 ${p.jobState === "failed" ? "text-finding-error" : ""}`}>

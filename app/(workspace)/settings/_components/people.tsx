@@ -21,7 +21,9 @@ export function People({ members, pending, manage, me }: { members: Member[]; pe
       setMessage({ ok: r.ok, text: r.message ?? (r.ok ? "Done." : "That did not work.") });
       setVersion((v) => v + 1);
     });
-  const invite = useServerForm(inviteSchema, sendInvitation, { email: "", role: "designer" }, (_r, form) => form.reset({ email: "", role: form.getValues("role") }));
+  const invite = useServerForm(inviteSchema, sendInvitation, { email: "", role: "designer" }, (_r, form) =>
+    form.reset({ email: "", role: form.getValues("role") }),
+  );
 
   return (
     <div className="space-y-8">
@@ -35,7 +37,11 @@ export function People({ members, pending, manage, me }: { members: Member[]; pe
                 <th className="px-3 py-2">Person</th>
                 <th className="px-3 py-2">Role</th>
                 <th className="px-3 py-2">Member since</th>
-                {manage ? <th className="px-3 py-2"><span className="sr-only">Actions</span></th> : null}
+                {manage ? (
+                  <th className="px-3 py-2">
+                    <span className="sr-only">Actions</span>
+                  </th>
+                ) : null}
               </tr>
             </thead>
             <tbody className="divide-y divide-hairline">
@@ -73,7 +79,8 @@ export function People({ members, pending, manage, me }: { members: Member[]; pe
                         className="btn-quiet px-2 py-1 text-finding-error"
                         disabled={busy}
                         onClick={() => {
-                          if (confirm(`Remove ${m.email} from this workspace?${m.userId === me ? " That is you." : ""}`)) run(dropMember({ userId: m.userId }));
+                          if (confirm(`Remove ${m.email} from this workspace?${m.userId === me ? " That is you." : ""}`))
+                            run(dropMember({ userId: m.userId }));
                         }}
                       >
                         Remove
@@ -122,7 +129,12 @@ export function People({ members, pending, manage, me }: { members: Member[]; pe
                       {p.email} · <span className="capitalize">{p.role}</span>
                       <span className="block text-xs text-muted">expires {p.expiresAt.slice(0, 10)}</span>
                     </span>
-                    <button type="button" className="btn-quiet px-2 py-1" disabled={busy} onClick={() => run(withdrawInvitation({ id: p.id }))}>
+                    <button
+                      type="button"
+                      className="btn-quiet px-2 py-1"
+                      disabled={busy}
+                      onClick={() => run(withdrawInvitation({ id: p.id }))}
+                    >
                       Withdraw
                     </button>
                   </li>

@@ -8,7 +8,15 @@ export function SettingsNav({ items }: { items: { href: string; label: string }[
   return (
     <nav aria-label="Settings" className="mb-6 flex flex-wrap gap-2 text-sm">
       {items.map((i) => (
-        <Link key={i.href} href={i.href} aria-current={path === i.href ? "page" : undefined} className={`rounded-card border px-3 py-1 ${path === i.href ? "border-accent bg-accent-soft font-bold" : "border-hairline bg-surface hover:border-accent"}`}>
+        <Link
+          key={i.href}
+          href={i.href}
+          aria-current={path === i.href ? "page" : undefined}
+          className={
+            `rounded-card border px-3 py-1 ` +
+            `${path === i.href ? "border-accent bg-accent-soft font-bold" : "border-hairline bg-surface hover:border-accent"}`
+          }
+        >
           {i.label}
         </Link>
       ))}

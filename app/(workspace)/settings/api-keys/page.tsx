@@ -11,7 +11,12 @@ export default async function ApiKeysPage() {
   const keys = await listApiKeys(caller);
   return (
     <ApiKeys
-      keys={keys.map((k) => ({ ...k, createdAt: k.createdAt.toISOString(), lastUsedAt: k.lastUsedAt?.toISOString() ?? null, revokedAt: k.revokedAt?.toISOString() ?? null }))}
+      keys={keys.map((k) => ({
+        ...k,
+        createdAt: k.createdAt.toISOString(),
+        lastUsedAt: k.lastUsedAt?.toISOString() ?? null,
+        revokedAt: k.revokedAt?.toISOString() ?? null,
+      }))}
     />
   );
 }

@@ -59,11 +59,19 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
         ))}
       </DataTable>
       <nav className="flex items-center gap-3 text-sm" aria-label="Pages">
-        {page > 1 ? <Link className="btn-quiet px-3 py-1" href={`?page=${page - 1}`}>Newer</Link> : null}
+        {page > 1 ? (
+          <Link className="btn-quiet px-3 py-1" href={`?page=${page - 1}`}>
+            Newer
+          </Link>
+        ) : null}
         <span className="text-muted">
           Page {page} of {pages}
         </span>
-        {page < pages ? <Link className="btn-quiet px-3 py-1" href={`?page=${page + 1}`}>Older</Link> : null}
+        {page < pages ? (
+          <Link className="btn-quiet px-3 py-1" href={`?page=${page + 1}`}>
+            Older
+          </Link>
+        ) : null}
       </nav>
     </div>
   );

@@ -18,14 +18,22 @@ export default async function BillingPage({ searchParams }: { searchParams: Prom
   const plan = b.effective;
   return (
     <div className="space-y-4">
-      {checkout === "done" ? <p className="card border-l-4 border-l-accent p-3 text-sm">Thank you: the payment went through. The plan below changes as soon as the payment provider confirms it.</p> : null}
+      {checkout === "done" ? (
+        <p className="card border-l-4 border-l-accent p-3 text-sm">
+          Thank you: the payment went through. The plan below changes as soon as the payment provider confirms it.
+        </p>
+      ) : null}
       {checkout === "cancelled" ? <p className="card p-3 text-sm text-muted">Checkout cancelled: nothing was charged.</p> : null}
       <section className="card space-y-2 p-4" aria-labelledby="plan-now">
         <h2 id="plan-now" className="text-lg">
           Plan: <span data-testid="current-plan">{plan.name}</span>
-          {b.status === "grace" ? <span className="ml-2 text-sm text-finding-error">payment failed — the plan holds until {when(b.graceUntil)}</span> : null}
+          {b.status === "grace" ? (
+            <span className="ml-2 text-sm text-finding-error">payment failed — the plan holds until {when(b.graceUntil)}</span>
+          ) : null}
         </h2>
-        <p className="text-sm text-muted">{plan.tagline} · {money(plan.monthlyCents)}</p>
+        <p className="text-sm text-muted">
+          {plan.tagline} · {money(plan.monthlyCents)}
+        </p>
         <dl className="grid max-w-md grid-cols-2 gap-y-1 text-sm" data-testid="plan-limits">
           <dt className="text-muted">Plates this period</dt>
           <dd className="font-mono">
@@ -38,12 +46,23 @@ export default async function BillingPage({ searchParams }: { searchParams: Prom
           <dt className="text-muted">Logos on templates</dt>
           <dd>{plan.logos ? "yes" : "no"}</dd>
         </dl>
-        <progress className="h-1.5 w-full max-w-md" max={plan.platesPerPeriod} value={Math.min(used, plan.platesPerPeriod)} aria-label="Plates used this period" />
+        <progress
+          className="h-1.5 w-full max-w-md"
+          max={plan.platesPerPeriod}
+          value={Math.min(used, plan.platesPerPeriod)}
+          aria-label="Plates used this period"
+        />
         <div className="flex flex-wrap gap-2 pt-1">
           {/* With a subscription running, plan changes and cancelling go through the provider's billing portal. */}
-          {b.subscriptionId ? null : PLAN_ORDER.filter((id) => id !== "bench" && id !== b.plan).map((id) => (
-            <UpgradeButton key={id} plan={id as "workshop" | "farm"} label={`Move to ${PLANS[id].name} · ${money(PLANS[id].monthlyCents)}`} />
-          ))}
+          {b.subscriptionId
+            ? null
+            : PLAN_ORDER.filter((id) => id !== "bench" && id !== b.plan).map((id) => (
+                <UpgradeButton
+                  key={id}
+                  plan={id as "workshop" | "farm"}
+                  label={`Move to ${PLANS[id].name} · ${money(PLANS[id].monthlyCents)}`}
+                />
+              ))}
           {b.customerId ? <PortalButton /> : null}
         </div>
       </section>
@@ -59,9 +78,13 @@ export default async function BillingPage({ searchParams }: { searchParams: Prom
               {invoices.map((i) => (
                 <tr key={i.id} className="border-b border-hairline">
                   <td className="px-3 py-2 text-muted">{when(i.createdAt)}</td>
-                  <td className="px-3 py-2 font-mono">{(i.amountCents / 100).toFixed(2)} {i.currency.toUpperCase()}</td>
+                  <td className="px-3 py-2 font-mono">
+                    {(i.amountCents / 100).toFixed(2)} {i.currency.toUpperCase()}
+                  </td>
                   <td className={`px-3 py-2 ${i.status === "failed" ? "text-finding-error" : ""}`}>{i.status}</td>
-                  <td className="px-3 py-2 text-muted">{i.periodStart ? `${i.periodStart.toISOString().slice(0, 10)} – ${i.periodEnd?.toISOString().slice(0, 10) ?? ""}` : ""}</td>
+                  <td className="px-3 py-2 text-muted">
+                    {i.periodStart ? `${i.periodStart.toISOString().slice(0, 10)} – ${i.periodEnd?.toISOString().slice(0, 10) ?? ""}` : ""}
+                  </td>
                 </tr>
               ))}
             </tbody>

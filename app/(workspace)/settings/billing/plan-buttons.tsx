@@ -5,7 +5,15 @@ import { useToast } from "@/app/_components/toasts";
 import { checkoutAction, portalAction } from "./actions";
 
 /** Off to the payment provider's hosted page: checkout for a plan, or the billing portal. */
-function ProviderButton({ go, label, primary }: { go: () => Promise<{ ok: true; data: { url: string } } | { ok: false; message: string }>; label: string; primary?: boolean }) {
+function ProviderButton({
+  go,
+  label,
+  primary,
+}: {
+  go: () => Promise<{ ok: true; data: { url: string } } | { ok: false; message: string }>;
+  label: string;
+  primary?: boolean;
+}) {
   const toast = useToast();
   const [pending, start] = useTransition();
   return (

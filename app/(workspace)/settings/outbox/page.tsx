@@ -14,7 +14,11 @@ export default async function OutboxPage() {
   const mail = await listOutbox(caller);
   return (
     <div className="space-y-3">
-      <p className="text-sm text-muted">Mail caught by the local fake mail server (this demo sends nothing out): what was sent to you{caller.role === "owner" ? ", and what this workspace sent (its invitations and notes to its plates' makers)" : ""}. Newest first. Whoever runs the demo reads all of it with <code className="font-mono">npm run outbox</code>.</p>
+      <p className="text-sm text-muted">
+        Mail caught by the local fake mail server (this demo sends nothing out): what was sent to you
+        {caller.role === "owner" ? ", and what this workspace sent (its invitations and notes to its plates' makers)" : ""}. Newest first.
+        Whoever runs the demo reads all of it with <code className="font-mono">npm run outbox</code>.
+      </p>
       {mail.length === 0 ? <p className="card p-4 text-sm text-muted">No mail for you yet.</p> : null}
       {mail.map((m) => (
         <article key={m.id} className="card p-4 text-sm" data-testid="outbox-message">

@@ -31,27 +31,42 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
   const findings = current.findings as { severity: string; message: string; code: string }[];
   return (
     <>
-      <PageHeader title={template.name} lead={template.description || (starter ? "A starter template shipped with Slabwright." : "A template of this workspace.")} />
+      <PageHeader
+        title={template.name}
+        lead={template.description || (starter ? "A starter template shipped with Slabwright." : "A template of this workspace.")}
+      />
       <div className="grid gap-4 lg:grid-cols-[minmax(0,1fr)_20rem]">
         <section className="card space-y-3 p-4">
           <TemplateThumb svg={current.thumbnailSvg} state={current.thumbnailState} name={template.name} large />
           <p className="text-xs text-muted">
-            Version {current.version} with the sample values on four stand-in pieces. {starter ? "Starters cannot be changed: duplicate one to make it yours." : "Editing in the slab editor saves a new version; plates keep the version they were made with."}
+            Version {current.version} with the sample values on four stand-in pieces.{" "}
+            {starter
+              ? "Starters cannot be changed: duplicate one to make it yours."
+              : "Editing in the slab editor saves a new version; plates keep the version they were made with."}
           </p>
-          {findings.filter((f) => f.severity !== "info").map((f, i) => (
-            <p key={i} className={f.severity === "error" ? "text-sm text-finding-error" : "text-sm text-finding-warning"}>
-              {f.severity === "error" ? "✕" : "⚠"} {f.message} <code className="text-xs text-muted">{f.code}</code>
-            </p>
-          ))}
+          {findings
+            .filter((f) => f.severity !== "info")
+            .map((f, i) => (
+              <p key={i} className={f.severity === "error" ? "text-sm text-finding-error" : "text-sm text-finding-warning"}>
+                {f.severity === "error" ? "✕" : "⚠"} {f.message} <code className="text-xs text-muted">{f.code}</code>
+              </p>
+            ))}
         </section>
         <aside className="space-y-3">
           <section className="card p-4 text-sm">
             <h2 className="text-base">Variables</h2>
-            {vars.length === 0 ? <p className="text-muted">None besides {"{date}"} and {"{kit}"}.</p> : null}
+            {vars.length === 0 ? (
+              <p className="text-muted">
+                None besides {"{date}"} and {"{kit}"}.
+              </p>
+            ) : null}
             <dl className="mt-1 space-y-1">
               {vars.map((v) => (
                 <div key={v.name}>
-                  <dt className="font-mono">{`{${v.name}}`}{v.label ? <span className="ml-1 font-sans text-muted">{v.label}</span> : null}</dt>
+                  <dt className="font-mono">
+                    {`{${v.name}}`}
+                    {v.label ? <span className="ml-1 font-sans text-muted">{v.label}</span> : null}
+                  </dt>
                   <dd className="text-xs text-muted">
                     default {v.default ? `“${v.default}”` : "none (a value is required)"} · sample “{v.sample}”
                   </dd>
@@ -95,7 +110,11 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
                 </ul>
                 {v.note ? <p className="mt-1 text-muted">{v.note}</p> : null}
               </td>
-              <td className="px-3 py-2">{mayEdit && !starter && v.version !== template.currentVersion ? <RestoreButton id={template.id} version={v.version} /> : null}</td>
+              <td className="px-3 py-2">
+                {mayEdit && !starter && v.version !== template.currentVersion ? (
+                  <RestoreButton id={template.id} version={v.version} />
+                ) : null}
+              </td>
             </tr>
           ))}
         </DataTable>

@@ -27,7 +27,18 @@ export function DuplicateButton({ id, name }: { id: string; name: string }) {
   const { run, pending } = useRun();
   const router = useRouter();
   return (
-    <button type="button" className="btn-quiet px-2 py-1 text-xs" disabled={pending} aria-label={`Duplicate ${name}`} onClick={() => run(() => duplicateTemplateAction({ id }), (r) => r.ok && router.push(`/templates/${(r.data as { id: string }).id}`))}>
+    <button
+      type="button"
+      className="btn-quiet px-2 py-1 text-xs"
+      disabled={pending}
+      aria-label={`Duplicate ${name}`}
+      onClick={() =>
+        run(
+          () => duplicateTemplateAction({ id }),
+          (r) => r.ok && router.push(`/templates/${(r.data as { id: string }).id}`),
+        )
+      }
+    >
       Duplicate
     </button>
   );
@@ -36,7 +47,13 @@ export function DuplicateButton({ id, name }: { id: string; name: string }) {
 export function ArchiveButton({ id, name, archived }: { id: string; name: string; archived: boolean }) {
   const { run, pending } = useRun();
   return (
-    <button type="button" className="btn-quiet px-2 py-1 text-xs" disabled={pending} aria-label={`${archived ? "Unarchive" : "Archive"} ${name}`} onClick={() => run(() => archiveTemplateAction({ id, archived: !archived }))}>
+    <button
+      type="button"
+      className="btn-quiet px-2 py-1 text-xs"
+      disabled={pending}
+      aria-label={`${archived ? "Unarchive" : "Archive"} ${name}`}
+      onClick={() => run(() => archiveTemplateAction({ id, archived: !archived }))}
+    >
       {archived ? "Unarchive" : "Archive"}
     </button>
   );
@@ -45,7 +62,12 @@ export function ArchiveButton({ id, name, archived }: { id: string; name: string
 export function RestoreButton({ id, version }: { id: string; version: number }) {
   const { run, pending } = useRun();
   return (
-    <button type="button" className="btn-quiet px-2 py-1 text-xs" disabled={pending} onClick={() => run(() => restoreTemplateVersionAction({ id, version }))}>
+    <button
+      type="button"
+      className="btn-quiet px-2 py-1 text-xs"
+      disabled={pending}
+      onClick={() => run(() => restoreTemplateVersionAction({ id, version }))}
+    >
       Restore this version
     </button>
   );

@@ -19,10 +19,30 @@ export const GET = apiRoute(async () => {
   const rows = await inspectionRows(caller);
   const lines = [["inspected_at", "plate_id", "plate", "kit", "inspector", "first_inspection", "piece", "part", "state", "note"].join(",")];
   for (const r of rows) {
-    const pieces = ((r.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? []);
+    const pieces = (r.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? [];
     for (const c of r.i.results) {
-      lines.push([r.i.at.toISOString(), r.i.plateId, r.title, r.kitName, r.by ?? r.byEmail, r.i.first ? "yes" : "no", c.number, pieces.find((p) => p.number === c.number)?.partName, c.state, c.note].map(cell).join(","));
+      lines.push(
+        [
+          r.i.at.toISOString(),
+          r.i.plateId,
+          r.title,
+          r.kitName,
+          r.by ?? r.byEmail,
+          r.i.first ? "yes" : "no",
+          c.number,
+          pieces.find((p) => p.number === c.number)?.partName,
+          c.state,
+          c.note,
+        ]
+          .map(cell)
+          .join(","),
+      );
     }
   }
-  return new Response(`${lines.join("\r\n")}\r\n`, { headers: { "Content-Type": "text/csv; charset=utf-8", "Content-Disposition": `attachment; filename="inspections-${new Date().toISOString().slice(0, 10)}.csv"` } });
+  return new Response(`${lines.join("\r\n")}\r\n`, {
+    headers: {
+      "Content-Type": "text/csv; charset=utf-8",
+      "Content-Disposition": `attachment; filename="inspections-${new Date().toISOString().slice(0, 10)}.csv"`,
+    },
+  });
 });

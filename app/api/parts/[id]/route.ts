@@ -36,7 +36,10 @@ export const PATCH = apiRoute(async (req: Request, ctx: Ctx) => {
   const { part, upload } = await updatePart(caller, (await ctx.params).id, change);
   const { thumbnailSvg: _svg, ...rest } = part;
   if (!upload) return Response.json({ part: rest });
-  return Response.json({ part: rest, upload: await uploadView(caller, upload) }, { status: 202, headers: { Location: `/api/parts/uploads/${upload.id}` } });
+  return Response.json(
+    { part: rest, upload: await uploadView(caller, upload) },
+    { status: 202, headers: { Location: `/api/parts/uploads/${upload.id}` } },
+  );
 });
 
 /** DELETE /api/parts/{id} — refused (409) while a kit uses the part, naming the kits. */

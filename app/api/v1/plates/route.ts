@@ -25,10 +25,12 @@ const syncWaitMs = () => env().SLAB_SYNC_WAIT_MS;
 export const POST = apiRoute(async (req: Request) => {
   const caller = await requireApiKey(req, "plates:write");
   const type = req.headers.get("content-type") ?? "";
-  if (!type.startsWith("multipart/form-data")) throw new UnsupportedMedia("unsupported_media_type", "Send multipart/form-data with `part` files or a `kit` id.");
+  if (!type.startsWith("multipart/form-data"))
+    throw new UnsupportedMedia("unsupported_media_type", "Send multipart/form-data with `part` files or a `kit` id.");
   const limit = maxUploadBytes();
   const declared = Number(req.headers.get("content-length"));
-  if (Number.isFinite(declared) && declared > limit) throw new TooLarge("file_too_large", `The request is larger than the ${(limit / 1024 / 1024).toFixed(0)} MB limit.`, { limit });
+  if (Number.isFinite(declared) && declared > limit)
+    throw new TooLarge("file_too_large", `The request is larger than the ${(limit / 1024 / 1024).toFixed(0)} MB limit.`, { limit });
   // Streamed: counted as it arrives (a chunked body declares no length), each part file stored on the way.
   const form = await readMultipart(req, { maxBytes: limit });
   let request;
@@ -40,16 +42,29 @@ export const POST = apiRoute(async (req: Request) => {
     throw err;
   }
   const idem = req.headers.get("idempotency-key");
-  if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem)) throw new BadRequest("bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
-  const { plate } = await createPlate(caller, request.spec, { source: "api", ...(idem !== null ? { idempotency: { key: idem, requestHash: request.requestHash } } : {}) });
+  if (idem !== null && !/^[\x21-\x7e]{1,200}$/.test(idem))
+    throw new BadRequest("bad_request", "Idempotency-Key must be 1–200 visible ASCII characters.");
+  const { plate } = await createPlate(caller, request.spec, {
+    source: "api",
+    ...(idem !== null ? { idempotency: { key: idem, requestHash: request.requestHash } } : {}),
+  });
   const asyncOnly = /respond-async/i.test(req.headers.get("prefer") ?? "");
   const done = asyncOnly ? plate : await waitForPlate(caller, plate.id, syncWaitMs());
   if (done.jobState === "failed") {
     const e = done.error ?? { code: "build_failed", message: "The build failed." };
-    return apiError(422, e.code, e.message, { plate: { id: done.id }, ...(e.code === "findings" ? { findings: e.details } : e.details ? { details: e.details } : {}) }, { "X-Plate-Id": done.id });
+    return apiError(
+      422,
+      e.code,
+      e.message,
+      { plate: { id: done.id }, ...(e.code === "findings" ? { findings: e.details } : e.details ? { details: e.details } : {}) },
+      { "X-Plate-Id": done.id },
+    );
   }
   if (done.jobState !== "done") {
-    return Response.json({ job: jobView(done) }, { status: 202, headers: { Location: `/api/v1/jobs/${done.jobId}`, "X-Plate-Id": done.id } });
+    return Response.json(
+      { job: jobView(done) },
+      { status: 202, headers: { Location: `/api/v1/jobs/${done.jobId}`, "X-Plate-Id": done.id } },
+    );
   }
   if (request.format === "json") return Response.json(plateView(done), { headers: { "X-Plate-Id": done.id } });
   return plateFile(caller, done, request.format);

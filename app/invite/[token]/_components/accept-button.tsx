@@ -6,5 +6,12 @@ import { acceptInvite } from "@/app/(auth)/actions";
 
 export function AcceptButton({ token, workspace }: { token: string; workspace: string }) {
   const router = useRouter();
-  return <ActionButton label={`Join ${workspace}`} pendingLabel="Joining…" run={() => acceptInvite({ token })} onOk={() => router.push("/parts")} />;
+  return (
+    <ActionButton
+      label={`Join ${workspace}`}
+      pendingLabel="Joining…"
+      run={() => acceptInvite({ token })}
+      onOk={() => router.push("/parts")}
+    />
+  );
 }

@@ -19,7 +19,8 @@ export default async function FinishSignUpPage({ params }: { params: Promise<{ t
       {pending.state === "valid" ? (
         <>
           <p className="mt-2 text-sm text-muted">
-            The account for <strong className="text-ink">{pending.email}</strong> is made when you press the button, with the name and password you chose.
+            The account for <strong className="text-ink">{pending.email}</strong> is made when you press the button, with the name and
+            password you chose.
           </p>
           <div className="mt-4">
             <FinishButton token={token} />

@@ -63,7 +63,12 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
       </header>
       {layout ? (
         <section className="card space-y-2 p-3">
-          <div className="flex justify-center [&>svg]:h-auto [&>svg]:max-h-72 [&>svg]:w-full" dangerouslySetInnerHTML={{ __html: slabTopSvg(layout, pieces, 480, 320, new Set(state === "reprint_needed" ? toReprint.map((r) => r.number) : [])) }} />
+          <div
+            className="flex justify-center [&>svg]:h-auto [&>svg]:max-h-72 [&>svg]:w-full"
+            dangerouslySetInnerHTML={{
+              __html: slabTopSvg(layout, pieces, 480, 320, new Set(state === "reprint_needed" ? toReprint.map((r) => r.number) : [])),
+            }}
+          />
           <p className="flex flex-wrap gap-3 text-sm">
             <a className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=a4`}>
               Plate map (PDF, A4)
@@ -77,7 +82,9 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
           </p>
         </section>
       ) : (
-        <p className="card p-3 text-sm text-muted">The plate&apos;s files are still being made; its map and inspection appear when they are ready.</p>
+        <p className="card p-3 text-sm text-muted">
+          The plate&apos;s files are still being made; its map and inspection appear when they are ready.
+        </p>
       )}
       {state === "reprint_needed" && toReprint.length ? (
         <section className="card space-y-2 border-l-4 border-l-finding-error p-3">
@@ -102,7 +109,8 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
                 <Link className="text-accent underline" href={`/floor/plates/${r.id}`}>
                   {r.id.slice(0, 8)}
                 </Link>{" "}
-                · {r.pieceCount} piece{r.pieceCount > 1 ? "s" : ""} · {r.floorState ? STATE_LABEL[r.floorState] : r.jobState === "done" ? "ready" : `files ${r.jobState}`}
+                · {r.pieceCount} piece{r.pieceCount > 1 ? "s" : ""} ·{" "}
+                {r.floorState ? STATE_LABEL[r.floorState] : r.jobState === "done" ? "ready" : `files ${r.jobState}`}
               </li>
             ))}
           </ul>
@@ -111,7 +119,11 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
       {layout && state && state !== "done" && state !== "reprint_needed" ? (
         <section className="card space-y-2 p-3">
           <h2 className="text-base">Inspect the slab</h2>
-          <InspectionForm id={plate.id} pieces={pieces.map((p) => ({ number: p.number, partName: p.partName, copy: p.copy }))} canInspect={mayInspect} />
+          <InspectionForm
+            id={plate.id}
+            pieces={pieces.map((p) => ({ number: p.number, partName: p.partName, copy: p.copy }))}
+            canInspect={mayInspect}
+          />
         </section>
       ) : null}
       <section className="card p-3 text-sm">
@@ -119,7 +131,8 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
         <ul className="space-y-1">
           {inspections.map(({ i, by, byEmail }) => (
             <li key={i.id}>
-              {when(i.at)} · inspected by {by ?? byEmail ?? "—"}: {i.missing || i.defective ? `${i.missing} missing, ${i.defective} defective` : "every piece present"}
+              {when(i.at)} · inspected by {by ?? byEmail ?? "—"}:{" "}
+              {i.missing || i.defective ? `${i.missing} missing, ${i.defective} defective` : "every piece present"}
               {i.first ? <span className="text-muted"> (first inspection)</span> : null}
             </li>
           ))}

@@ -13,23 +13,59 @@ import { SlabEditor } from "./_components/slab-editor";
 
 export const metadata: Metadata = { title: "Slab editor" };
 
-export default async function SlabEditorPage({ params, searchParams }: { params: Promise<{ id: string }>; searchParams: Promise<{ template?: string }> }) {
+export default async function SlabEditorPage({
+  params,
+  searchParams,
+}: {
+  params: Promise<{ id: string }>;
+  searchParams: Promise<{ template?: string }>;
+}) {
   const caller = await requireCaller();
   const kit = await getKit(caller, (await params).id);
   if (!kit) notFound();
   const plates = await listPlates(caller, { kitId: kit.id, limit: 20 });
-  const templates = (await listTemplates(caller.workspace.id)).map((t) => ({ id: t.id, name: t.name, version: t.version, starter: t.starter, options: t.options as SlabOptionsInput, variables: t.variables as TemplateVariableDef[] }));
+  const templates = (await listTemplates(caller.workspace.id)).map((t) => ({
+    id: t.id,
+    name: t.name,
+    version: t.version,
+    starter: t.starter,
+    options: t.options as SlabOptionsInput,
+    variables: t.variables as TemplateVariableDef[],
+  }));
   const { template } = await searchParams;
-  const parts = kit.lines.map((l) => ({ id: l.partId, name: l.name, quantity: l.quantity, rotation: l.rotation, orientation: l.orientation }));
+  const parts = kit.lines.map((l) => ({
+    id: l.partId,
+    name: l.name,
+    quantity: l.quantity,
+    rotation: l.rotation,
+    orientation: l.orientation,
+  }));
   return (
     <>
-      <PageHeader title={`Slab editor · ${kit.name}`} lead="Every change rebuilds the preview in your browser with the same engine that makes the plate." />
-      <SlabEditor kitId={kit.id} kitName={kit.name} parts={parts} canMake={can(caller.role, "plates:make")} canSaveTemplates={can(caller.role, "templates:write")} templates={templates} initialTemplateId={template} />
+      <PageHeader
+        title={`Slab editor · ${kit.name}`}
+        lead="Every change rebuilds the preview in your browser with the same engine that makes the plate."
+      />
+      <SlabEditor
+        kitId={kit.id}
+        kitName={kit.name}
+        parts={parts}
+        canMake={can(caller.role, "plates:make")}
+        canSaveTemplates={can(caller.role, "templates:write")}
+        templates={templates}
+        initialTemplateId={template}
+      />
       <section className="mt-6 space-y-2" aria-labelledby="kit-plates">
         <h2 id="kit-plates" className="text-lg">
           Plates of this kit
         </h2>
-        <PlatesTable canMake={can(caller.role, "plates:make")} rows={plates} label="Plates of this kit" showKit={false} empty="No plate made from this kit yet: tune the slab above, then make the plate." />
+        <PlatesTable
+          canMake={can(caller.role, "plates:make")}
+          rows={plates}
+          label="Plates of this kit"
+          showKit={false}
+          empty="No plate made from this kit yet: tune the slab above, then make the plate."
+        />
       </section>
     </>
   );

@@ -6,7 +6,15 @@ import { apiKeyScopes } from "@/db/schema/workspaces";
 import { apiKeySchema } from "@/lib/validation/accounts";
 import { dropApiKey, makeApiKey } from "../../actions";
 
-type Key = { id: string; name: string; prefix: string; scopes: string[]; createdAt: string; lastUsedAt: string | null; revokedAt: string | null };
+type Key = {
+  id: string;
+  name: string;
+  prefix: string;
+  scopes: string[];
+  createdAt: string;
+  lastUsedAt: string | null;
+  revokedAt: string | null;
+};
 
 const SCOPE_HELP: Record<(typeof apiKeyScopes)[number], string> = {
   "plates:write": "make plates",
@@ -39,7 +47,11 @@ export function ApiKeys({ keys }: { keys: Key[] }) {
                 <code className="font-mono">{s}</code> <span className="text-muted">— {SCOPE_HELP[s]}</span>
               </label>
             ))}
-            {scopeError ? <p className="mt-1 text-sm text-finding-error" data-testid="scopes-error">{String(scopeError)}</p> : null}
+            {scopeError ? (
+              <p className="mt-1 text-sm text-finding-error" data-testid="scopes-error">
+                {String(scopeError)}
+              </p>
+            ) : null}
           </fieldset>
           <Submit pending={f.pending} pendingText="Creating…">
             Create key
@@ -49,7 +61,9 @@ export function ApiKeys({ keys }: { keys: Key[] }) {
           <div className="card border-accent p-4" data-testid="new-key">
             <p className="text-sm font-bold">Copy this key now: it is shown only once.</p>
             <code className="mt-2 block break-all rounded-card bg-paper p-2 font-mono text-sm">{shown}</code>
-            <p className="mt-2 text-xs text-muted">Send it as <code className="font-mono">Authorization: Bearer &lt;key&gt;</code>. We keep only a hash of it.</p>
+            <p className="mt-2 text-xs text-muted">
+              Send it as <code className="font-mono">Authorization: Bearer &lt;key&gt;</code>. We keep only a hash of it.
+            </p>
           </div>
         ) : null}
       </div>

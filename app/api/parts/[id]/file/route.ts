@@ -14,6 +14,12 @@ export const GET = apiRoute(async (_req: Request, ctx: { params: Promise<{ id: s
   if (!part) throw notFound("part");
   const bytes = await blobStore().get(part.blobKey);
   return new Response(new Uint8Array(bytes), {
-    headers: { "Content-Type": "application/octet-stream", "X-Part-Unit": part.unit, "X-Part-Lay-Flat": part.layFlat ? "1" : "0", "X-Part-Format": part.format, "Cache-Control": "private, max-age=60" },
+    headers: {
+      "Content-Type": "application/octet-stream",
+      "X-Part-Unit": part.unit,
+      "X-Part-Lay-Flat": part.layFlat ? "1" : "0",
+      "X-Part-Format": part.format,
+      "Cache-Control": "private, max-age=60",
+    },
   });
 });

@@ -12,5 +12,8 @@ export const dynamic = "force-dynamic";
 export const POST = apiRoute(async (_req: Request, ctx: { params: Promise<{ id: string }> }) => {
   const caller = await authorize("parts:write", "splitting parts");
   const upload = await splitPart(caller, (await ctx.params).id);
-  return Response.json({ upload: await uploadView(caller, upload) }, { status: 202, headers: { Location: `/api/parts/uploads/${upload.id}` } });
+  return Response.json(
+    { upload: await uploadView(caller, upload) },
+    { status: 202, headers: { Location: `/api/parts/uploads/${upload.id}` } },
+  );
 });

@@ -12,6 +12,10 @@ export const GET = apiRoute(async (_req: Request, ctx: { params: Promise<{ id: s
   const part = await getPart(caller, (await ctx.params).id);
   if (!part?.thumbnailSvg) throw notFound("thumbnail");
   return new Response(part.thumbnailSvg, {
-    headers: { "Content-Type": "image/svg+xml", "Cache-Control": "private, max-age=300", "Content-Security-Policy": "default-src 'none'; style-src 'unsafe-inline'; sandbox" },
+    headers: {
+      "Content-Type": "image/svg+xml",
+      "Cache-Control": "private, max-age=300",
+      "Content-Security-Policy": "default-src 'none'; style-src 'unsafe-inline'; sandbox",
+    },
   });
 });

@@ -9,9 +9,15 @@ import { parseOptions } from "@/lib/geometry/options";
 import { PrintButton } from "./print-button";
 import { AppError } from "@/lib/errors";
 
+const SCALE_NOTE = {
+  fits: "Scale 1:1 — print at 100 % (turn off “fit to page”).",
+  smaller: "The slab is larger than the paper: drawn smaller than life.",
+};
+
 export const metadata: Metadata = { title: "Plate map" };
 
-const path = (polys: [number, number][][], D: number) => polys.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${(D - y).toFixed(2)}`).join("L")}Z`).join("");
+const path = (polys: [number, number][][], D: number) =>
+  polys.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${(D - y).toFixed(2)}`).join("L")}Z`).join("");
 
 /** The plate map as a printable page: the top view in real millimetres (print at 100 %). */
 export default async function SheetPage({ params }: { params: Promise<{ id: string }> }) {
@@ -47,20 +53,34 @@ export default async function SheetPage({ params }: { params: Promise<{ id: stri
           Scan to inspect
         </div>
       </header>
-      <svg viewBox={`-1 -1 ${W + 2} ${D + 2}`} style={fits ? { width: `${W + 2}mm`, height: `${D + 2}mm` } : { width: "100%" }} className="mx-auto block" role="img" aria-label={`Top view, ${W.toFixed(0)} × ${D.toFixed(0)} mm`}>
+      <svg
+        viewBox={`-1 -1 ${W + 2} ${D + 2}`}
+        style={fits ? { width: `${W + 2}mm`, height: `${D + 2}mm` } : { width: "100%" }}
+        className="mx-auto block"
+        role="img"
+        aria-label={`Top view, ${W.toFixed(0)} × ${D.toFixed(0)} mm`}
+      >
         <path d={path(s.layout.slab.outline, D)} fill="#efe8dc" stroke="#c9bfae" strokeWidth={0.3} />
         {s.layout.markOutlines ? <path d={path(s.layout.markOutlines, D)} fill="#8a7f6c" /> : null}
         {s.pieces.map((p) => (
           <g key={p.number}>
             <path d={path(p.outline, D)} fill="#4a4f57" fillOpacity={0.85} />
-            <text x={(p.bounds.minX + p.bounds.maxX) / 2} y={D - (p.bounds.minY + p.bounds.maxY) / 2} fontSize={Math.max(2.5, Math.min(6, (p.bounds.maxX - p.bounds.minX) / 2.5))} textAnchor="middle" dominantBaseline="central" fill="#fff" fontWeight="bold">
+            <text
+              x={(p.bounds.minX + p.bounds.maxX) / 2}
+              y={D - (p.bounds.minY + p.bounds.maxY) / 2}
+              fontSize={Math.max(2.5, Math.min(6, (p.bounds.maxX - p.bounds.minX) / 2.5))}
+              textAnchor="middle"
+              dominantBaseline="central"
+              fill="#fff"
+              fontWeight="bold"
+            >
               {p.number}
             </text>
           </g>
         ))}
       </svg>
       <p className="text-xs text-muted">
-        {fits ? "Scale 1:1 — print at 100 % (turn off “fit to page”)." : "The slab is larger than the paper: drawn smaller than life."} Slab {W.toFixed(1)} × {D.toFixed(1)} mm.
+        {fits ? SCALE_NOTE.fits : SCALE_NOTE.smaller} Slab {W.toFixed(1)} × {D.toFixed(1)} mm.
       </p>
       <table className="w-full text-left text-xs" aria-label="Pieces on the plate">
         <thead>
@@ -89,7 +109,8 @@ export default async function SheetPage({ params }: { params: Promise<{ id: stri
           {s.estimates ? ` · about ${s.estimates.totalMass.toFixed(1)} g, ${s.estimates.filamentLength.toFixed(2)} m of filament` : ""}
         </p>
         <p>
-          Slab {o.slab.thickness} mm; pieces stand {o.slab.gap} mm above it. Keep that air gap in the slicer (its support or raft gap setting), or the pieces fuse to the slab.
+          Slab {o.slab.thickness} mm; pieces stand {o.slab.gap} mm above it. Keep that air gap in the slicer (its support or raft gap
+          setting), or the pieces fuse to the slab.
         </p>
         <h2 className="mt-2 text-sm">Cautions</h2>
         <ul className="list-disc pl-4">

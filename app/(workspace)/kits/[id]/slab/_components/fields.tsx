@@ -12,8 +12,16 @@ export type Form = UseFormReturn<FormValues>;
 /** The engine's findings that name an option, by form field (see `fieldNotes`). */
 export const FieldNotesContext = createContext<FieldNotes>(new Map());
 
-export const WHERE: [Where, string][] = [["auto", "auto"], ["top", "above"], ["bottom", "below"], ["at", "at x / y"]];
-export const RELIEF: [Relief, string][] = [["engrave", "engraved"], ["emboss", "embossed"]];
+export const WHERE: [Where, string][] = [
+  ["auto", "auto"],
+  ["top", "above"],
+  ["bottom", "below"],
+  ["at", "at x / y"],
+];
+export const RELIEF: [Relief, string][] = [
+  ["engrave", "engraved"],
+  ["emboss", "embossed"],
+];
 export const FACES = Object.entries(ENGRAVING_FONTS).map(([id, f]) => [id, f.label] as [string, string]);
 
 const input = "field-input mt-0.5 py-1 text-sm";
@@ -26,7 +34,12 @@ function Notes({ name, id }: { name: string; id: string }) {
   return (
     <>
       {notes.map((n) => (
-        <span key={n.code} id={`${id}-n-${n.code}`} data-testid={`field-note-${n.code}`} className={`mt-0.5 block whitespace-normal ${n.severity === "error" ? "text-finding-error" : "text-finding-warning"}`}>
+        <span
+          key={n.code}
+          id={`${id}-n-${n.code}`}
+          data-testid={`field-note-${n.code}`}
+          className={`mt-0.5 block whitespace-normal ${n.severity === "error" ? "text-finding-error" : "text-finding-warning"}`}
+        >
           {n.severity === "error" ? "✕ " : "⚠ "}
           {n.message}
         </span>
@@ -35,7 +48,21 @@ function Notes({ name, id }: { name: string; id: string }) {
   );
 }
 
-export function Num({ form, name, label, unit, step, testId }: { form: Form; name: Path<FormValues>; label: string; unit?: string; step: number; testId?: string }) {
+export function Num({
+  form,
+  name,
+  label,
+  unit,
+  step,
+  testId,
+}: {
+  form: Form;
+  name: Path<FormValues>;
+  label: string;
+  unit?: string;
+  step: number;
+  testId?: string;
+}) {
   const id = `${useId()}-${name}`;
   const error = errorAt(form, name);
   return (
@@ -44,7 +71,17 @@ export function Num({ form, name, label, unit, step, testId }: { form: Form; nam
         {label}
         {unit ? <span className="ml-1">({unit})</span> : null}
       </label>
-      <input id={id} type="number" inputMode="decimal" step={step} className={input} aria-invalid={Boolean(error)} aria-describedby={error ? `${id}-e` : undefined} data-testid={testId} {...form.register(name, { valueAsNumber: true })} />
+      <input
+        id={id}
+        type="number"
+        inputMode="decimal"
+        step={step}
+        className={input}
+        aria-invalid={Boolean(error)}
+        aria-describedby={error ? `${id}-e` : undefined}
+        data-testid={testId}
+        {...form.register(name, { valueAsNumber: true })}
+      />
       {error ? (
         <span id={`${id}-e`} className="mt-0.5 block text-finding-error">
           {error}
@@ -56,7 +93,19 @@ export function Num({ form, name, label, unit, step, testId }: { form: Form; nam
   );
 }
 
-export function Pick({ form, name, label, options, aria }: { form: Form; name: Path<FormValues>; label: string; options: [string, string][]; aria?: string }) {
+export function Pick({
+  form,
+  name,
+  label,
+  options,
+  aria,
+}: {
+  form: Form;
+  name: Path<FormValues>;
+  label: string;
+  options: [string, string][];
+  aria?: string;
+}) {
   const id = `${useId()}-${name}`;
   return (
     <div className="text-xs text-muted">
@@ -73,7 +122,19 @@ export function Pick({ form, name, label, options, aria }: { form: Form; name: P
   );
 }
 
-export function Text({ form, name, label, placeholder, aria }: { form: Form; name: Path<FormValues>; label: string; placeholder?: string; aria?: string }) {
+export function Text({
+  form,
+  name,
+  label,
+  placeholder,
+  aria,
+}: {
+  form: Form;
+  name: Path<FormValues>;
+  label: string;
+  placeholder?: string;
+  aria?: string;
+}) {
   const id = `${useId()}-${name}`;
   const error = errorAt(form, name);
   return (

@@ -2,7 +2,24 @@ import { describe, expect, it } from "vitest";
 import type { Finding } from "@/lib/geometry/checks";
 import { DEFAULT_OPTIONS, slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
 import { demoTemplate, STARTERS } from "@/lib/templates/starters";
-import { BEDS, bedChoice, bedSize, DEFAULT_VALUES, fieldNotes, fieldPath, formDepth, formPath, formProblems, formToOptions, fromPosition, newLine, optionsToForm, toPosition, valuePlaceholders, type FormValues } from "./form-model";
+import {
+  BEDS,
+  bedChoice,
+  bedSize,
+  DEFAULT_VALUES,
+  fieldNotes,
+  fieldPath,
+  formDepth,
+  formPath,
+  formProblems,
+  formToOptions,
+  fromPosition,
+  newLine,
+  optionsToForm,
+  toPosition,
+  valuePlaceholders,
+  type FormValues,
+} from "./form-model";
 
 const parse = (o: SlabOptionsInput) => slabOptionsSchema.parse(o);
 
@@ -10,14 +27,28 @@ const parse = (o: SlabOptionsInput) => slabOptionsSchema.parse(o);
 // the form does not hold (hand placements and piece numbers, which belong to a kit's plates).
 const FULL: SlabOptionsInput = {
   slab: { shape: "contour", thickness: 1.4, gap: 0.25, cornerRadius: 3, margin: 6 },
-  layout: { spacing: 4.5, bed: { width: 330, depth: 240 }, copies: 2, placements: [{ piece: 1, x: 20, y: 30, rotation: 15 }], pieceNumbers: [4, 5, 6] },
+  layout: {
+    spacing: 4.5,
+    bed: { width: 330, depth: 240 },
+    copies: 2,
+    placements: [{ piece: 1, x: 20, y: 30, rotation: 15 }],
+    pieceNumbers: [4, 5, 6],
+  },
   marks: {
     text: [
       { value: "ORDER {order}", size: 6, font: "mono-bold", relief: "emboss", depth: 0.6, position: { x: 12, y: 8 }, maxWidth: 80 },
       { value: "Thanks, {customer}", position: "bottom" },
     ],
     qr: { value: "https://shop.example/o/{order}", module: 0.9, level: "Q", depth: "max", position: "top", maxSize: 40 },
-    logo: { name: "Sail", paths: [{ d: "M0 0 L10 0 L5 8 Z", fillRule: "evenodd" }], box: { minX: 0, minY: 0, maxX: 10, maxY: 8 }, width: 18, relief: "engrave", depth: 0.5, position: { x: -20, y: 5 } },
+    logo: {
+      name: "Sail",
+      paths: [{ d: "M0 0 L10 0 L5 8 Z", fillRule: "evenodd" }],
+      box: { minX: 0, minY: 0, maxX: 10, maxY: 8 },
+      width: 18,
+      relief: "engrave",
+      depth: 0.5,
+      position: { x: -20, y: 5 },
+    },
     numbers: false,
     numberStyle: { size: 5, font: "sans-bold" },
     ringStyle: { width: 1.2, clearance: 0.6, depth: "max" },
@@ -63,7 +94,14 @@ describe("round trips", () => {
     expect(f.qr).toEqual(DEFAULT_VALUES.qr);
     expect(f.logo).toBeNull();
     // A depth left out is the engine's 0.4 mm (the 1 mm default slab allows 1 − 0.4 = 0.6).
-    expect(parse(formToOptions(f))).toEqual({ ...DEFAULT_OPTIONS, marks: { ...DEFAULT_OPTIONS.marks, numberStyle: { ...DEFAULT_OPTIONS.marks.numberStyle, depth: 0.4 }, ringStyle: { ...DEFAULT_OPTIONS.marks.ringStyle, depth: 0.4 } } });
+    expect(parse(formToOptions(f))).toEqual({
+      ...DEFAULT_OPTIONS,
+      marks: {
+        ...DEFAULT_OPTIONS.marks,
+        numberStyle: { ...DEFAULT_OPTIONS.marks.numberStyle, depth: 0.4 },
+        ringStyle: { ...DEFAULT_OPTIONS.marks.ringStyle, depth: 0.4 },
+      },
+    });
   });
 
   it("a full template: options → form holds every field as people see it", () => {
@@ -83,10 +121,40 @@ describe("round trips", () => {
       text: [
         { value: "ORDER {order}", size: 6, font: "mono-bold", relief: "emboss", depth: 0.6, where: "at", x: 12, y: 8, maxWidth: 80 },
         // The second line's left-out options come back as the engine's defaults.
-        { value: "Thanks, {customer}", size: 5, font: "sans-bold", relief: "engrave", depth: 0.4, where: "bottom", x: 0, y: 0, maxWidth: NaN },
+        {
+          value: "Thanks, {customer}",
+          size: 5,
+          font: "sans-bold",
+          relief: "engrave",
+          depth: 0.4,
+          where: "bottom",
+          x: 0,
+          y: 0,
+          maxWidth: NaN,
+        },
       ],
-      qr: { value: "https://shop.example/o/{order}", module: 0.9, level: "Q", relief: "engrave", depth: FULL_DEEPEST, where: "top", x: 0, y: 0, maxSize: 40 },
-      logo: { name: "Sail", paths: [{ d: "M0 0 L10 0 L5 8 Z", fillRule: "evenodd" }], box: { minX: 0, minY: 0, maxX: 10, maxY: 8 }, width: 18, relief: "engrave", depth: 0.5, where: "at", x: -20, y: 5 },
+      qr: {
+        value: "https://shop.example/o/{order}",
+        module: 0.9,
+        level: "Q",
+        relief: "engrave",
+        depth: FULL_DEEPEST,
+        where: "top",
+        x: 0,
+        y: 0,
+        maxSize: 40,
+      },
+      logo: {
+        name: "Sail",
+        paths: [{ d: "M0 0 L10 0 L5 8 Z", fillRule: "evenodd" }],
+        box: { minX: 0, minY: 0, maxX: 10, maxY: 8 },
+        width: 18,
+        relief: "engrave",
+        depth: 0.5,
+        where: "at",
+        x: -20,
+        y: 5,
+      },
       numbers: false,
       numberStyle: { size: 5, font: "sans-bold", depth: 0.4 },
       outlines: "pocket",
@@ -95,7 +163,7 @@ describe("round trips", () => {
     } satisfies FormValues);
   });
 
-  it("a full template: options → form → options is the same plate, depths \"max\" made numbers, kit-only options left out", () => {
+  it('a full template: options → form → options is the same plate, depths "max" made numbers, kit-only options left out', () => {
     const expected = parse(FULL);
     const { placements: _p, pieceNumbers: _n, ...layout } = expected.layout;
     const back = parse(formToOptions(optionsToForm(FULL)));
@@ -110,7 +178,9 @@ describe("round trips", () => {
       },
     });
     // Hand placements travel beside the form values, not in them.
-    expect(parse(formToOptions(optionsToForm(FULL), [{ piece: 1, x: 20, y: 30, rotation: 15 }])).layout.placements).toEqual([{ piece: 1, x: 20, y: 30, rotation: 15 }]);
+    expect(parse(formToOptions(optionsToForm(FULL), [{ piece: 1, x: 20, y: 30, rotation: 15 }])).layout.placements).toEqual([
+      { piece: 1, x: 20, y: 30, rotation: 15 },
+    ]);
   });
 
   it("every shipped template is a fixed point of form → options → form", () => {
@@ -139,13 +209,17 @@ describe("each field's conversion", () => {
     const empty = formToOptions(values({ text: [newLine("A", 4)], qr: { ...DEFAULT_VALUES.qr, value: "Q", maxSize: NaN } }));
     expect(empty.marks?.text?.[0]).not.toHaveProperty("maxWidth");
     expect(empty.marks?.qr).not.toHaveProperty("maxSize");
-    const set = formToOptions(values({ text: [{ ...newLine("A", 4), maxWidth: 60 }], qr: { ...DEFAULT_VALUES.qr, value: "Q", maxSize: 25 } }));
+    const set = formToOptions(
+      values({ text: [{ ...newLine("A", 4), maxWidth: 60 }], qr: { ...DEFAULT_VALUES.qr, value: "Q", maxSize: 25 } }),
+    );
     expect(set.marks?.text?.[0]?.maxWidth).toBe(60);
     expect(set.marks?.qr?.maxSize).toBe(25);
   });
 
-  it("required numbers: an empty field is refused at that field as \"Enter a number.\"", () => {
-    const problems = formProblems(values({ slab: { ...DEFAULT_VALUES.slab, thickness: NaN }, bed: "custom", bedWidth: NaN, bedDepth: 300 }));
+  it('required numbers: an empty field is refused at that field as "Enter a number."', () => {
+    const problems = formProblems(
+      values({ slab: { ...DEFAULT_VALUES.slab, thickness: NaN }, bed: "custom", bedWidth: NaN, bedDepth: 300 }),
+    );
     expect(problems).toContainEqual({ path: "slab.thickness", type: "invalid_type", message: "Enter a number." });
     expect(problems).toContainEqual({ path: "bedWidth", type: "invalid_type", message: "Enter a number." });
     expect(problems.map((p) => p.path)).not.toContain("bedDepth");
@@ -170,14 +244,16 @@ describe("each field's conversion", () => {
   it("the QR code: an empty or blank value means no code", () => {
     expect(formToOptions(values({ qr: { ...DEFAULT_VALUES.qr, value: "" } })).marks).not.toHaveProperty("qr");
     expect(formToOptions(values({ qr: { ...DEFAULT_VALUES.qr, value: "  " } })).marks).not.toHaveProperty("qr");
-    expect(formToOptions(values({ qr: { ...DEFAULT_VALUES.qr, value: "https://shop.example/o/1", where: "at", x: 5, y: 6 } })).marks?.qr).toMatchObject({ value: "https://shop.example/o/1", position: { x: 5, y: 6 } });
+    expect(
+      formToOptions(values({ qr: { ...DEFAULT_VALUES.qr, value: "https://shop.example/o/1", where: "at", x: 5, y: 6 } })).marks?.qr,
+    ).toMatchObject({ value: "https://shop.example/o/1", position: { x: 5, y: 6 } });
   });
 
   it("the logo: none leaves the option out", () => {
     expect(formToOptions(DEFAULT_VALUES).marks).not.toHaveProperty("logo");
   });
 
-  it("depths: \"max\" shows as the deepest allowed, a left-out depth as 0.4 mm or the deepest when less", () => {
+  it('depths: "max" shows as the deepest allowed, a left-out depth as 0.4 mm or the deepest when less', () => {
     // 1 mm slab, 0.2 mm layers: floor max(2 × 0.2, 0.4) = 0.4, deepest 0.6.
     const standard = { layerHeight: 0.2, slab: { ...DEFAULT_OPTIONS.slab, thickness: 1 } };
     expect(formDepth("max", standard)).toBe(0.6);
@@ -205,7 +281,7 @@ describe("each field's conversion", () => {
     expect(formToOptions(values({ bed: "custom", bedWidth: 410, bedDepth: 305 })).layout?.bed).toEqual({ width: 410, depth: 305 });
   });
 
-  it("positions: named places as they are, \"at\" as x / y, and back", () => {
+  it('positions: named places as they are, "at" as x / y, and back', () => {
     expect(toPosition("top", 3, 4)).toBe("top");
     expect(toPosition("at", 3, 4)).toEqual({ x: 3, y: 4 });
     expect(fromPosition({ x: -2, y: 7.5 })).toEqual({ where: "at", x: -2, y: 7.5 });
@@ -213,7 +289,10 @@ describe("each field's conversion", () => {
   });
 
   it("placeholders to fill: in order of first use, without {date} and {kit}, not from emptied lines", () => {
-    const f = { text: [newLine("{kit} for {customer}", 4), newLine("", 4), newLine("{date} {order} {customer}", 4)], qr: { ...DEFAULT_VALUES.qr, value: "https://shop.example/{ref}" } };
+    const f = {
+      text: [newLine("{kit} for {customer}", 4), newLine("", 4), newLine("{date} {order} {customer}", 4)],
+      qr: { ...DEFAULT_VALUES.qr, value: "https://shop.example/{ref}" },
+    };
     expect(valuePlaceholders(f)).toEqual(["customer", "order", "ref"]);
     expect(valuePlaceholders(DEFAULT_VALUES)).toEqual(["order", "customer"]);
   });

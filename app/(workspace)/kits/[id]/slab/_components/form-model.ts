@@ -1,6 +1,19 @@
 import type { Finding } from "@/lib/geometry/checks";
 import type { EngravingFontId } from "@/lib/geometry/fonts";
-import { DEFAULT_OPTIONS, deepestEngraving, slabOptionsSchema, type Depth, type LogoMark, type MarkPosition, type Material, type Placement, type QrMark, type SlabOptions, type SlabOptionsInput, type TextMark } from "@/lib/geometry/options";
+import {
+  DEFAULT_OPTIONS,
+  deepestEngraving,
+  slabOptionsSchema,
+  type Depth,
+  type LogoMark,
+  type MarkPosition,
+  type Material,
+  type Placement,
+  type QrMark,
+  type SlabOptions,
+  type SlabOptionsInput,
+  type TextMark,
+} from "@/lib/geometry/options";
 import type { SlabShape } from "@/lib/geometry/slab";
 import { BUILT_IN_VARIABLES, usedPlaceholders } from "@/lib/geometry/template";
 
@@ -15,16 +28,55 @@ import { BUILT_IN_VARIABLES, usedPlaceholders } from "@/lib/geometry/template";
  */
 
 /** Bed presets, width × depth in mm; any other size is "custom". */
-export const BEDS = [[180, 180], [220, 220], [235, 235], [250, 210], [256, 256], [300, 300], [350, 350], [400, 400]] as const;
+export const BEDS = [
+  [180, 180],
+  [220, 220],
+  [235, 235],
+  [250, 210],
+  [256, 256],
+  [300, 300],
+  [350, 350],
+  [400, 400],
+] as const;
 
 /** Where a mark goes: the engine's named positions, or "at" with the x / y fields. */
 export type Where = Extract<MarkPosition, string> | "at";
 export type Relief = TextMark["relief"];
 
 /** `maxWidth` and `maxSize` are NaN when not set (an empty number field). */
-export type LineForm = { value: string; size: number; font: EngravingFontId; relief: Relief; depth: number; where: Where; x: number; y: number; maxWidth: number };
-export type QrForm = { value: string; module: number; level: QrMark["level"]; relief: Relief; depth: number; where: Where; x: number; y: number; maxSize: number };
-export type LogoForm = { name: string; paths: LogoMark["paths"]; box: LogoMark["box"]; width: number; relief: Relief; depth: number; where: Where; x: number; y: number };
+export type LineForm = {
+  value: string;
+  size: number;
+  font: EngravingFontId;
+  relief: Relief;
+  depth: number;
+  where: Where;
+  x: number;
+  y: number;
+  maxWidth: number;
+};
+export type QrForm = {
+  value: string;
+  module: number;
+  level: QrMark["level"];
+  relief: Relief;
+  depth: number;
+  where: Where;
+  x: number;
+  y: number;
+  maxSize: number;
+};
+export type LogoForm = {
+  name: string;
+  paths: LogoMark["paths"];
+  box: LogoMark["box"];
+  width: number;
+  relief: Relief;
+  depth: number;
+  where: Where;
+  x: number;
+  y: number;
+};
 export type FormValues = {
   slab: { shape: SlabShape; thickness: number; gap: number; cornerRadius: number; margin: number };
   /** A preset's key ("220x220", see `bedKey`) or "custom" (then `bedWidth` × `bedDepth`). */
@@ -52,7 +104,17 @@ export type FormValues = {
 const D = DEFAULT_OPTIONS;
 
 /** A new text line as "Add a text line" makes it. */
-export const newLine = (value: string, size: number): LineForm => ({ value, size, font: "sans-bold", relief: "engrave", depth: 0.4, where: "auto", x: 0, y: 0, maxWidth: NaN });
+export const newLine = (value: string, size: number): LineForm => ({
+  value,
+  size,
+  font: "sans-bold",
+  relief: "engrave",
+  depth: 0.4,
+  where: "auto",
+  x: 0,
+  y: 0,
+  maxWidth: NaN,
+});
 
 export const DEFAULT_VALUES: FormValues = {
   slab: { ...D.slab },
@@ -92,7 +154,8 @@ export function bedChoice(size: { width: number; depth: number }): string {
 }
 
 export const toPosition = (where: Where, x: number, y: number): MarkPosition => (where === "at" ? { x, y } : where);
-export const fromPosition = (p: MarkPosition): { where: Where; x: number; y: number } => (typeof p === "object" ? { where: "at", x: p.x, y: p.y } : { where: p, x: 0, y: 0 });
+export const fromPosition = (p: MarkPosition): { where: Where; x: number; y: number } =>
+  typeof p === "object" ? { where: "at", x: p.x, y: p.y } : { where: p, x: 0, y: 0 };
 
 /** An optional number option: present when the field holds a number, left out when it is empty (NaN). */
 const optional = <K extends string>(k: K, v: number) => (Number.isFinite(v) ? ({ [k]: v } as Record<K, number>) : {});
@@ -102,7 +165,12 @@ const filled = (value: string) => value.trim() !== "";
 
 /** Placeholders used in the text and QR values that the person fills ({date} and {kit} fill themselves). */
 export function valuePlaceholders(f: Pick<FormValues, "text" | "qr">): string[] {
-  return usedPlaceholders({ marks: { text: f.text.filter((t) => filled(t.value)).map((t) => ({ value: t.value })), ...(filled(f.qr.value) ? { qr: { value: f.qr.value } } : {}) } }).filter((n) => !(BUILT_IN_VARIABLES as readonly string[]).includes(n));
+  return usedPlaceholders({
+    marks: {
+      text: f.text.filter((t) => filled(t.value)).map((t) => ({ value: t.value })),
+      ...(filled(f.qr.value) ? { qr: { value: f.qr.value } } : {}),
+    },
+  }).filter((n) => !(BUILT_IN_VARIABLES as readonly string[]).includes(n));
 }
 
 export function formToOptions(f: FormValues, placements?: Placement[]): SlabOptionsInput {
@@ -111,9 +179,43 @@ export function formToOptions(f: FormValues, placements?: Placement[]): SlabOpti
     layout: { spacing: f.spacing, bed: bedSize(f), copies: f.copies, ...(placements ? { placements } : {}) },
     marks: {
       // An emptied line is left out rather than refused, so a line can be retyped without an error.
-      text: f.text.filter((t) => filled(t.value)).map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: t.depth, position: toPosition(t.where, t.x, t.y), ...optional("maxWidth", t.maxWidth) })),
-      ...(filled(f.qr.value) ? { qr: { value: f.qr.value, module: f.qr.module, level: f.qr.level, relief: f.qr.relief, depth: f.qr.depth, position: toPosition(f.qr.where, f.qr.x, f.qr.y), ...optional("maxSize", f.qr.maxSize) } } : {}),
-      ...(f.logo ? { logo: { name: f.logo.name, paths: f.logo.paths, box: f.logo.box, width: f.logo.width, relief: f.logo.relief, depth: f.logo.depth, position: toPosition(f.logo.where, f.logo.x, f.logo.y) } } : {}),
+      text: f.text
+        .filter((t) => filled(t.value))
+        .map((t) => ({
+          value: t.value,
+          size: t.size,
+          font: t.font,
+          relief: t.relief,
+          depth: t.depth,
+          position: toPosition(t.where, t.x, t.y),
+          ...optional("maxWidth", t.maxWidth),
+        })),
+      ...(filled(f.qr.value)
+        ? {
+            qr: {
+              value: f.qr.value,
+              module: f.qr.module,
+              level: f.qr.level,
+              relief: f.qr.relief,
+              depth: f.qr.depth,
+              position: toPosition(f.qr.where, f.qr.x, f.qr.y),
+              ...optional("maxSize", f.qr.maxSize),
+            },
+          }
+        : {}),
+      ...(f.logo
+        ? {
+            logo: {
+              name: f.logo.name,
+              paths: f.logo.paths,
+              box: f.logo.box,
+              width: f.logo.width,
+              relief: f.logo.relief,
+              depth: f.logo.depth,
+              position: toPosition(f.logo.where, f.logo.x, f.logo.y),
+            },
+          }
+        : {}),
       numbers: f.numbers,
       numberStyle: { ...f.numberStyle },
       outlines: f.outlines,
@@ -156,9 +258,37 @@ export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samp
     layerHeight: o.layerHeight,
     firstLayerHeight: o.firstLayerHeight,
     pricePerKg: o.pricePerKg,
-    text: o.marks.text.map((t) => ({ value: t.value, size: t.size, font: t.font, relief: t.relief, depth: depth(t.depth), ...fromPosition(t.position), maxWidth: t.maxWidth ?? NaN })),
-    qr: qr ? { value: qr.value, module: qr.module, level: qr.level, relief: qr.relief, depth: depth(qr.depth), ...fromPosition(qr.position), maxSize: qr.maxSize ?? NaN } : DEFAULT_VALUES.qr,
-    logo: logo ? { name: logo.name, paths: logo.paths, box: logo.box, width: logo.width, relief: logo.relief, depth: depth(logo.depth), ...fromPosition(logo.position) } : null,
+    text: o.marks.text.map((t) => ({
+      value: t.value,
+      size: t.size,
+      font: t.font,
+      relief: t.relief,
+      depth: depth(t.depth),
+      ...fromPosition(t.position),
+      maxWidth: t.maxWidth ?? NaN,
+    })),
+    qr: qr
+      ? {
+          value: qr.value,
+          module: qr.module,
+          level: qr.level,
+          relief: qr.relief,
+          depth: depth(qr.depth),
+          ...fromPosition(qr.position),
+          maxSize: qr.maxSize ?? NaN,
+        }
+      : DEFAULT_VALUES.qr,
+    logo: logo
+      ? {
+          name: logo.name,
+          paths: logo.paths,
+          box: logo.box,
+          width: logo.width,
+          relief: logo.relief,
+          depth: depth(logo.depth),
+          ...fromPosition(logo.position),
+        }
+      : null,
     numbers: o.marks.numbers,
     numberStyle: { ...o.marks.numberStyle, depth: depth(o.marks.numberStyle.depth) },
     outlines: o.marks.outlines,
@@ -211,7 +341,8 @@ export function fieldNotes(findings: Finding[], values: Pick<FormValues, "text">
  * zod's words for a number field left empty (NaN), said the way the form says it. Only a wrong type
  * is: zod's range messages also say "expected number" ("Too big: expected number to be <=0.5").
  */
-export const friendlyMessage = (issue: { code: string; message: string }) => (issue.code === "invalid_type" && /expected number/i.test(issue.message) ? "Enter a number." : issue.message);
+export const friendlyMessage = (issue: { code: string; message: string }) =>
+  issue.code === "invalid_type" && /expected number/i.test(issue.message) ? "Enter a number." : issue.message;
 
 /** One message per form field, the first the schema gives for it, in field order. */
 export type FormProblems = { path: string; type: string; message: string }[];

@@ -6,7 +6,10 @@ const run = (actions: LayoutAction[], from: LayoutHistory = EMPTY_HISTORY) => ac
 
 describe("layout history", () => {
   it("undo walks back to the automatic layout, redo forward again", () => {
-    const h = run([{ type: "place", layout: at(1) }, { type: "place", layout: at(2) }]);
+    const h = run([
+      { type: "place", layout: at(1) },
+      { type: "place", layout: at(2) },
+    ]);
     expect(h.present).toEqual(at(2));
     const back1 = layoutHistory(h, { type: "undo" });
     expect(back1.present).toEqual(at(1));
@@ -32,13 +35,19 @@ describe("layout history", () => {
   });
 
   it("going back to automatic is a step that can be undone", () => {
-    const h = run([{ type: "place", layout: at(1) }, { type: "place", layout: undefined }]);
+    const h = run([
+      { type: "place", layout: at(1) },
+      { type: "place", layout: undefined },
+    ]);
     expect(h.present).toBeUndefined();
     expect(layoutHistory(h, { type: "undo" }).present).toEqual(at(1));
   });
 
   it("replace sets the layout without a step and keeps the history", () => {
-    const h = run([{ type: "place", layout: at(1) }, { type: "replace", layout: undefined }]);
+    const h = run([
+      { type: "place", layout: at(1) },
+      { type: "replace", layout: undefined },
+    ]);
     expect(h.present).toBeUndefined();
     expect(h.past).toEqual([undefined]);
   });
@@ -47,7 +56,10 @@ describe("layout history", () => {
     const h = run(Array.from({ length: HISTORY_LIMIT + 10 }, (_, i) => ({ type: "place", layout: at(i) }) as const));
     expect(h.past).toHaveLength(HISTORY_LIMIT);
     expect(h.past[0]).toEqual(at(9)); // places 0…59 made; the oldest kept is the 10th layout from the start
-    const undone = run(Array.from({ length: HISTORY_LIMIT + 5 }, () => ({ type: "undo" }) as const), h);
+    const undone = run(
+      Array.from({ length: HISTORY_LIMIT + 5 }, () => ({ type: "undo" }) as const),
+      h,
+    );
     expect(undone.present).toEqual(at(9));
   });
 });

@@ -37,6 +37,16 @@ export function layoutHistory(h: LayoutHistory, a: LayoutAction): LayoutHistory 
  * Every piece where the last build put it, one of them moved by dx, dy (mm) and turned by `turn`
  * degrees: the hand layout after a drag, an arrow key or a turn.
  */
-export function movedPlacements(pieces: Pick<PlacedPiece, "number" | "slot" | "x" | "y" | "rotation">[], number: number, dx: number, dy: number, turn = 0): Placement[] {
-  return pieces.map((p) => (p.number === number ? { piece: p.slot, x: p.x + dx, y: p.y + dy, rotation: p.rotation + turn } : { piece: p.slot, x: p.x, y: p.y, rotation: p.rotation }));
+export function movedPlacements(
+  pieces: Pick<PlacedPiece, "number" | "slot" | "x" | "y" | "rotation">[],
+  number: number,
+  dx: number,
+  dy: number,
+  turn = 0,
+): Placement[] {
+  return pieces.map((p) =>
+    p.number === number
+      ? { piece: p.slot, x: p.x + dx, y: p.y + dy, rotation: p.rotation + turn }
+      : { piece: p.slot, x: p.x, y: p.y, rotation: p.rotation },
+  );
 }

@@ -5,7 +5,19 @@ import { EXPORT_FORMAT_IDS, EXPORT_FORMATS } from "@/lib/geometry/formats";
 import type { Making } from "./use-make-plate";
 
 /** "Make the plate", its progress and downloads, and the cautions for printing and selling it. */
-export function MakePanel({ making, disabled, onMake, material, smallParts }: { making: Making | null; disabled: boolean; onMake: () => void; material: Material; smallParts: boolean }) {
+export function MakePanel({
+  making,
+  disabled,
+  onMake,
+  material,
+  smallParts,
+}: {
+  making: Making | null;
+  disabled: boolean;
+  onMake: () => void;
+  material: Material;
+  smallParts: boolean;
+}) {
   return (
     <section className="card space-y-2 p-3">
       <button type="button" className="btn-primary w-full" disabled={disabled} onClick={onMake}>
@@ -32,8 +44,12 @@ export function MakePanel({ making, disabled, onMake, material, smallParts }: { 
       <ul className="list-disc space-y-0.5 pl-4 text-xs text-muted" data-testid="cautions">
         <li>Keep the air gap in your slicer (support gap settings), or the pieces fuse to the slab.</li>
         <li>The nozzle (≈190–260 °C) and bed (up to ≈110 °C) are hot: let the plate cool before lifting the slab.</li>
-        {MATERIALS[material]?.styrene ? <li className="text-finding-warning">⚠ {material} gives off styrene and fine particles while printing: ventilate the room.</li> : null}
-        {smallParts ? <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li> : null}
+        {MATERIALS[material]?.styrene ? (
+          <li className="text-finding-warning">⚠ {material} gives off styrene and fine particles while printing: ventilate the room.</li>
+        ) : null}
+        {smallParts ? (
+          <li className="text-finding-warning">⚠ Small parts: not for children under 3; follow the rules where you sell.</li>
+        ) : null}
       </ul>
     </section>
   );

@@ -3,14 +3,29 @@
 import { useRef, useState } from "react";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 
-const path = (contours: [number, number][][]) => contours.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${y.toFixed(2)}`).join("L")}Z`).join("");
+const path = (contours: [number, number][][]) =>
+  contours.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${y.toFixed(2)}`).join("L")}Z`).join("");
 
 /**
  * The plate map, to scale (1 unit = 1 mm, y up): the slab, each piece's outline and number. Drag a
  * piece to move it (snapped to 0.5 mm; hold Alt for free moves). From the keyboard: Tab to a piece,
  * arrow keys move it 0.5 mm (Shift: 5 mm), R turns it 15° (Shift+R: 1°).
  */
-export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }: { layout: PlateLayout; pieces: PlacedPiece[]; selected?: number; flagged: Set<number>; onSelect: (n?: number) => void; onMove: (piece: PlacedPiece, dx: number, dy: number, turn?: number) => void }) {
+export function PlateMap({
+  layout,
+  pieces,
+  selected,
+  flagged,
+  onSelect,
+  onMove,
+}: {
+  layout: PlateLayout;
+  pieces: PlacedPiece[];
+  selected?: number;
+  flagged: Set<number>;
+  onSelect: (n?: number) => void;
+  onMove: (piece: PlacedPiece, dx: number, dy: number, turn?: number) => void;
+}) {
   const svg = useRef<SVGSVGElement>(null);
   const [drag, setDrag] = useState<{ piece: PlacedPiece; x0: number; y0: number; dx: number; dy: number } | null>(null);
   const { width: W, depth: D } = layout.slab;
@@ -30,7 +45,8 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
       onPointerMove={(e) => {
         if (!drag) return;
         const p = toMm(e);
-        let dx = p.x - drag.x0, dy = p.y - drag.y0;
+        let dx = p.x - drag.x0,
+          dy = p.y - drag.y0;
         if (!e.altKey) {
           dx = Math.round(dx * 2) / 2;
           dy = Math.round(dy * 2) / 2;
@@ -47,7 +63,17 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
         <path d={path(layout.slab.outline)} fill="#efe8dc" stroke="#c9bfae" strokeWidth={0.4} />
         {layout.markOutlines ? <path d={path(layout.markOutlines)} fill="#a99c86" /> : null}
         {layout.marks.map((m, i) => (
-          <rect key={i} x={m.bounds.minX} y={m.bounds.minY} width={m.bounds.maxX - m.bounds.minX} height={m.bounds.maxY - m.bounds.minY} fill="none" stroke="#c9bfae" strokeDasharray="1 1" strokeWidth={0.2} />
+          <rect
+            key={i}
+            x={m.bounds.minX}
+            y={m.bounds.minY}
+            width={m.bounds.maxX - m.bounds.minX}
+            height={m.bounds.maxY - m.bounds.minY}
+            fill="none"
+            stroke="#c9bfae"
+            strokeDasharray="1 1"
+            strokeWidth={0.2}
+          />
         ))}
         {pieces.map((p) => {
           const moving = drag?.piece.number === p.number;
@@ -65,7 +91,12 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
               onFocus={() => onSelect(p.number)}
               onKeyDown={(e) => {
                 const step = e.shiftKey ? 5 : 0.5;
-                const moves: Record<string, [number, number]> = { ArrowLeft: [-step, 0], ArrowRight: [step, 0], ArrowUp: [0, step], ArrowDown: [0, -step] };
+                const moves: Record<string, [number, number]> = {
+                  ArrowLeft: [-step, 0],
+                  ArrowRight: [step, 0],
+                  ArrowUp: [0, step],
+                  ArrowDown: [0, -step],
+                };
                 const mv = moves[e.key];
                 if (mv) {
                   e.preventDefault();
@@ -91,7 +122,18 @@ export function PlateMap({ layout, pieces, selected, flagged, onSelect, onMove }
         const moving = drag?.piece.number === p.number;
         const size = Math.max(2.5, Math.min(6, (p.bounds.maxX - p.bounds.minX) / 2.5));
         return (
-          <text key={p.number} x={(p.bounds.minX + p.bounds.maxX) / 2 + (moving ? drag.dx : 0)} y={D - (p.bounds.minY + p.bounds.maxY) / 2 - (moving ? drag.dy : 0)} fontSize={size} fontFamily="var(--font-mono)" fontWeight="bold" fill="#fff" textAnchor="middle" dominantBaseline="central" pointerEvents="none">
+          <text
+            key={p.number}
+            x={(p.bounds.minX + p.bounds.maxX) / 2 + (moving ? drag.dx : 0)}
+            y={D - (p.bounds.minY + p.bounds.maxY) / 2 - (moving ? drag.dy : 0)}
+            fontSize={size}
+            fontFamily="var(--font-mono)"
+            fontWeight="bold"
+            fill="#fff"
+            textAnchor="middle"
+            dominantBaseline="central"
+            pointerEvents="none"
+          >
             {p.number}
           </text>
         );

@@ -29,13 +29,20 @@ async function serve(answer: (n: number) => { status: number; body: unknown } | 
   return { seen, fetch: (url: string, init: { signal: AbortSignal }) => fetch(new URL(url, base), init) };
 }
 
-const job = (status: JobStatus["status"], progress: number, error: string | null = null) => ({ job: { status, progress, error: error ? { message: error } : null } });
+const job = (status: JobStatus["status"], progress: number, error: string | null = null) => ({
+  job: { status, progress, error: error ? { message: error } : null },
+});
 
 describe("following a plate", () => {
   it("asks until the plate is done, passing on every answer", async () => {
     const s = await serve((n) => ({ status: 200, body: n === 1 ? job("queued", 0) : n === 2 ? job("running", 0.5) : job("done", 1) }));
     const statuses: string[] = [];
-    const end = await watchPlate("p1", { signal: new AbortController().signal, onStatus: (j) => statuses.push(`${j.status} ${j.progress}`), intervalMs: 1, fetch: s.fetch });
+    const end = await watchPlate("p1", {
+      signal: new AbortController().signal,
+      onStatus: (j) => statuses.push(`${j.status} ${j.progress}`),
+      intervalMs: 1,
+      fetch: s.fetch,
+    });
     expect(end.kind).toBe("done");
     expect(statuses).toEqual(["queued 0", "running 0.5", "done 1"]);
     expect(s.seen).toEqual(["/api/plates/p1/status", "/api/plates/p1/status", "/api/plates/p1/status"]);
@@ -50,16 +57,24 @@ describe("following a plate", () => {
 
   it("stops when the status is lost (an HTTP error, or no answer at all)", async () => {
     const s = await serve(() => ({ status: 404, body: { error: { code: "not_found" } } }));
-    expect(await watchPlate("p3", { signal: new AbortController().signal, onStatus: () => {}, intervalMs: 1, fetch: s.fetch })).toEqual({ kind: "lost", reason: "status check answered HTTP 404" });
+    expect(await watchPlate("p3", { signal: new AbortController().signal, onStatus: () => {}, intervalMs: 1, fetch: s.fetch })).toEqual({
+      kind: "lost",
+      reason: "status check answered HTTP 404",
+    });
     expect(s.seen).toHaveLength(1);
     // A port nobody listens on: the fetch itself fails.
     const closed = (url: string, init: { signal: AbortSignal }) => fetch(new URL(url, "http://127.0.0.1:9"), init);
-    expect(await watchPlate("p3", { signal: new AbortController().signal, onStatus: () => {}, fetch: closed })).toEqual({ kind: "lost", reason: "the status check did not answer" });
+    expect(await watchPlate("p3", { signal: new AbortController().signal, onStatus: () => {}, fetch: closed })).toEqual({
+      kind: "lost",
+      reason: "the status check did not answer",
+    });
   });
 
   it("an answer without a job is lost, not followed for ever", async () => {
     const s = await serve(() => ({ status: 200, body: { findings: [] } }));
-    expect((await watchPlate("p4", { signal: new AbortController().signal, onStatus: () => {}, intervalMs: 1, fetch: s.fetch })).kind).toBe("lost");
+    expect((await watchPlate("p4", { signal: new AbortController().signal, onStatus: () => {}, intervalMs: 1, fetch: s.fetch })).kind).toBe(
+      "lost",
+    );
   });
 
   it("leaving stops it between two questions: no request after the abort", async () => {

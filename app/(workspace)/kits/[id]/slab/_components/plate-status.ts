@@ -7,7 +7,8 @@ import type { Plate } from "@/db/schema";
  */
 export type JobStatus = { status: Plate["jobState"]; progress: number; error: { message: string } | null };
 
-export type WatchEnd = { kind: "done"; job: JobStatus } | { kind: "failed"; job: JobStatus } | { kind: "lost"; reason: string } | { kind: "stopped" };
+export type WatchEnd =
+  { kind: "done"; job: JobStatus } | { kind: "failed"; job: JobStatus } | { kind: "lost"; reason: string } | { kind: "stopped" };
 
 export type WatchOptions = {
   signal: AbortSignal;
@@ -34,7 +35,10 @@ export function pause(ms: number, signal: AbortSignal): Promise<void> {
   });
 }
 
-export async function watchPlate(plateId: string, { signal, onStatus, intervalMs = 300, fetch: get = (url, init) => fetch(url, init) }: WatchOptions): Promise<WatchEnd> {
+export async function watchPlate(
+  plateId: string,
+  { signal, onStatus, intervalMs = 300, fetch: get = (url, init) => fetch(url, init) }: WatchOptions,
+): Promise<WatchEnd> {
   const stopped = { kind: "stopped" } as const;
   const lost = (reason: string): WatchEnd => (signal.aborted ? stopped : { kind: "lost", reason });
   for (;;) {

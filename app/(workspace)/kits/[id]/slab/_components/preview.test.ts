@@ -9,12 +9,29 @@ const slab = (name: string): Body => ({ name, positions: new Float32Array(9), in
 const piece = (number: number, x: number) => ({ number, slot: number, x, y: 0, rotation: 0 }) as PlacedPiece;
 const layout = (width: number) => ({ slab: { width } }) as PlateLayout;
 const overlap: Finding = { severity: "error", code: "pieces_overlap", message: "Pieces 1 and 2 overlap.", pieces: [1, 2] };
-const built = (seq: number, over: Partial<Built>): Built => ({ type: "built", seq, ms: 40, slab: null, pieces: [], layout: null, findings: [], estimates: null, ...over });
+const built = (seq: number, over: Partial<Built>): Built => ({
+  type: "built",
+  seq,
+  ms: 40,
+  slab: null,
+  pieces: [],
+  layout: null,
+  findings: [],
+  estimates: null,
+  ...over,
+});
 
 describe("the preview across builds", () => {
   it("a build with a slab shows it and its pieces", () => {
     const p = mergePreview(null, built(1, { slab: slab("a"), pieces: [piece(1, 10)], layout: layout(100) }));
-    expect(p).toMatchObject({ slab: { name: "a" }, stale: false, viewPieces: [piece(1, 10)], pieces: [piece(1, 10)], layout: { slab: { width: 100 } }, seq: 1 });
+    expect(p).toMatchObject({
+      slab: { name: "a" },
+      stale: false,
+      viewPieces: [piece(1, 10)],
+      pieces: [piece(1, 10)],
+      layout: { slab: { width: 100 } },
+      seq: 1,
+    });
   });
 
   it("a refused build keeps the last slab in view, marked stale, with the new findings and map", () => {

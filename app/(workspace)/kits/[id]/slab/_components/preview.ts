@@ -8,7 +8,17 @@ import type { Body, FromWorker } from "./protocol";
  * newest build's; `slab`, `viewPieces` (the pieces the 3D view places on it) and `layout` are the
  * newest that built, so a change the checks refuse leaves the last good slab in view, marked stale.
  */
-export type Preview = { slab: Body | null; viewPieces: PlacedPiece[]; stale: boolean; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null; ms: number; seq: number };
+export type Preview = {
+  slab: Body | null;
+  viewPieces: PlacedPiece[];
+  stale: boolean;
+  pieces: PlacedPiece[];
+  layout: PlateLayout | null;
+  findings: Finding[];
+  estimates: Estimates | null;
+  ms: number;
+  seq: number;
+};
 
 export function mergePreview(prev: Preview | null, m: Extract<FromWorker, { type: "built" }>): Preview {
   return {

@@ -11,8 +11,7 @@ import type { SlabOptionsInput } from "@/lib/geometry/options";
 export type EditorPart = { id: string; name: string; quantity: number; rotation: number; orientation: KitPart["orientation"] };
 
 export type ToWorker =
-  | { type: "init"; parts: EditorPart[] }
-  | { type: "build"; seq: number; options: SlabOptionsInput; variables: Record<string, string> };
+  { type: "init"; parts: EditorPart[] } | { type: "build"; seq: number; options: SlabOptionsInput; variables: Record<string, string> };
 
 export type Body = { name: string; piece?: number; positions: Float32Array; indices: Uint32Array };
 
@@ -25,5 +24,14 @@ export type DisplayPart = { id: string; positions: Float32Array; indices: Uint32
 
 export type FromWorker =
   | { type: "ready"; ms: number; triangles: number; parts: DisplayPart[] }
-  | { type: "built"; seq: number; ms: number; slab: Body | null; pieces: PlacedPiece[]; layout: PlateLayout | null; findings: Finding[]; estimates: Estimates | null }
+  | {
+      type: "built";
+      seq: number;
+      ms: number;
+      slab: Body | null;
+      pieces: PlacedPiece[];
+      layout: PlateLayout | null;
+      findings: Finding[];
+      estimates: Estimates | null;
+    }
   | { type: "error"; seq?: number; message: string };

@@ -11,13 +11,18 @@ export function FindingsPanel({ findings, onSelect }: { findings: Finding[] | nu
   return (
     <section className="card p-3">
       <h2 className="text-base">Findings</h2>
-      {!findings ? <p className="text-muted">—</p> : findings.length === 0 ? <p className="text-muted">None: the slab passes every check.</p> : null}
+      {!findings ? (
+        <p className="text-muted">—</p>
+      ) : findings.length === 0 ? (
+        <p className="text-muted">None: the slab passes every check.</p>
+      ) : null}
       <ul className="mt-1 space-y-1.5" data-testid="findings">
         {findings?.map((f, i) => (
           <li key={i} className={tone[f.severity]}>
             <button type="button" className="text-left" onClick={() => f.piece !== undefined && onSelect(f.piece)}>
               <span aria-hidden="true">{icon[f.severity]} </span>
-              <span className="font-bold">{f.severity}</span> <span className="text-ink">{f.message}</span> <code className="font-mono text-xs text-muted">{f.code}</code>
+              <span className="font-bold">{f.severity}</span> <span className="text-ink">{f.message}</span>{" "}
+              <code className="font-mono text-xs text-muted">{f.code}</code>
             </button>
           </li>
         ))}
@@ -35,11 +40,15 @@ export function EstimatesPanel({ preview }: { preview: Preview | null }) {
       <h2 className="text-base">Estimates</h2>
       <dl className="mt-1 grid grid-cols-2 gap-x-2 gap-y-0.5 font-mono text-xs">
         <dt className="font-sans text-muted">Slab</dt>
-        <dd>{layout.slab.width.toFixed(1)} × {layout.slab.depth.toFixed(1)} mm</dd>
+        <dd>
+          {layout.slab.width.toFixed(1)} × {layout.slab.depth.toFixed(1)} mm
+        </dd>
         <dt className="font-sans text-muted">Pieces</dt>
         <dd>{preview.pieces.length}</dd>
         <dt className="font-sans text-muted">Mass</dt>
-        <dd>{e.totalMass.toFixed(1)} g {e.material}</dd>
+        <dd>
+          {e.totalMass.toFixed(1)} g {e.material}
+        </dd>
         <dt className="font-sans text-muted">Filament</dt>
         <dd>{e.filamentLength.toFixed(2)} m</dd>
         <dt className="font-sans text-muted">Cost</dt>

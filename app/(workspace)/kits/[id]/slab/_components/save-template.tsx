@@ -25,7 +25,15 @@ type SaveForm = z.infer<typeof saveSchema>;
  * one variable per placeholder in use, each with a default and a sample value. Saving over an applied
  * template of this workspace adds a version.
  */
-export function SaveTemplate({ values, applied, onSaved }: { values: FormValues; applied: EditorTemplate | null; onSaved: (t: EditorTemplate) => void }) {
+export function SaveTemplate({
+  values,
+  applied,
+  onSaved,
+}: {
+  values: FormValues;
+  applied: EditorTemplate | null;
+  onSaved: (t: EditorTemplate) => void;
+}) {
   const [open, setOpen] = useState(false);
   const id = useId();
   const toast = useToast();
@@ -33,7 +41,10 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
   const [problem, setProblem] = useState<string | null>(null);
   const names = valuePlaceholders(values);
   const canVersion = Boolean(applied && !applied.starter);
-  const form = useForm<SaveForm>({ resolver: zodResolver(saveSchema), defaultValues: { mode: canVersion ? "version" : "new", name: "", description: "", note: "", variables: [] } });
+  const form = useForm<SaveForm>({
+    resolver: zodResolver(saveSchema),
+    defaultValues: { mode: canVersion ? "version" : "new", name: "", description: "", note: "", variables: [] },
+  });
   const vars = useFieldArray({ control: form.control, name: "variables" });
   // One row per placeholder in use, made when the form opens; a template's own definitions (label, default) are kept.
   const openForm = () => {
@@ -41,7 +52,15 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
     const current = new Map(form.getValues("variables").map((v) => [v.name, v]));
     form.setValue(
       "variables",
-      names.map((n) => current.get(n) ?? { name: n, label: known.get(n)?.label ?? "", default: known.get(n)?.default ?? "", sample: values.samples?.[n] ?? known.get(n)?.sample ?? "" }),
+      names.map(
+        (n) =>
+          current.get(n) ?? {
+            name: n,
+            label: known.get(n)?.label ?? "",
+            default: known.get(n)?.default ?? "",
+            sample: values.samples?.[n] ?? known.get(n)?.sample ?? "",
+          },
+      ),
     );
     setOpen(true);
   };
@@ -50,18 +69,31 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
   const submit = form.handleSubmit(async (f) => {
     setProblem(null);
     if (f.mode === "new" && !f.name) return form.setError("name", { message: "Give the template a name." });
-    const body = { options: formToOptions(values), variables: f.variables.map((v) => ({ name: v.name, ...(v.label ? { label: v.label } : {}), default: v.default, sample: v.sample })) };
+    const body = {
+      options: formToOptions(values),
+      variables: f.variables.map((v) => ({ name: v.name, ...(v.label ? { label: v.label } : {}), default: v.default, sample: v.sample })),
+    };
     // The server checks again with the same schema; checking here says it at once.
     const check = templateBodySchema.safeParse(body);
     if (!check.success) return setProblem(check.error.issues[0]!.message);
-    const r = f.mode === "version" && applied ? await saveTemplateVersionAction({ id: applied.id, body, note: f.note }) : await createTemplateAction({ name: f.name, description: f.description, body });
+    const r =
+      f.mode === "version" && applied
+        ? await saveTemplateVersionAction({ id: applied.id, body, note: f.note })
+        : await createTemplateAction({ name: f.name, description: f.description, body });
     if (!r.ok) {
       setProblem(r.message);
       return;
     }
     toast("done", r.message ?? "Template saved.");
     const saved = r.data as { id: string; version: number };
-    onSaved({ id: saved.id, name: f.mode === "version" && applied ? applied.name : f.name, version: saved.version, starter: false, options: body.options, variables: check.data.variables });
+    onSaved({
+      id: saved.id,
+      name: f.mode === "version" && applied ? applied.name : f.name,
+      version: saved.version,
+      starter: false,
+      options: body.options,
+      variables: check.data.variables,
+    });
     setOpen(false);
     router.refresh();
   });
@@ -90,7 +122,12 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
         <>
           <div className="text-xs text-muted">
             <label htmlFor={`${id}-name`}>Template name</label>
-            <input id={`${id}-name`} className="field-input mt-0.5 py-1 text-sm" {...form.register("name")} aria-invalid={Boolean(form.formState.errors.name)} />
+            <input
+              id={`${id}-name`}
+              className="field-input mt-0.5 py-1 text-sm"
+              {...form.register("name")}
+              aria-invalid={Boolean(form.formState.errors.name)}
+            />
             {form.formState.errors.name ? <span className="text-finding-error">{form.formState.errors.name.message}</span> : null}
           </div>
           <div className="text-xs text-muted">
@@ -106,17 +143,27 @@ export function SaveTemplate({ values, applied, onSaved }: { values: FormValues;
       )}
       <div className="space-y-1.5">
         <p className="text-xs font-bold">Variables</p>
-        {vars.fields.length === 0 ? <p className="text-xs text-muted">No placeholders in the text or QR: the template fills nothing per order.</p> : null}
+        {vars.fields.length === 0 ? (
+          <p className="text-xs text-muted">No placeholders in the text or QR: the template fills nothing per order.</p>
+        ) : null}
         {vars.fields.map((v, i) => (
           <div key={v.id} className="grid grid-cols-[4.5rem_1fr_1fr] items-end gap-1 text-xs text-muted">
             <code className="pb-1.5 font-mono text-ink">{`{${v.name}}`}</code>
             <label>
               default
-              <input className="field-input mt-0.5 py-1 text-sm" aria-label={`Default for {${v.name}}`} {...form.register(`variables.${i}.default`)} />
+              <input
+                className="field-input mt-0.5 py-1 text-sm"
+                aria-label={`Default for {${v.name}}`}
+                {...form.register(`variables.${i}.default`)}
+              />
             </label>
             <label>
               sample
-              <input className="field-input mt-0.5 py-1 text-sm" aria-label={`Sample for {${v.name}}`} {...form.register(`variables.${i}.sample`)} />
+              <input
+                className="field-input mt-0.5 py-1 text-sm"
+                aria-label={`Sample for {${v.name}}`}
+                {...form.register(`variables.${i}.sample`)}
+              />
             </label>
           </div>
         ))}

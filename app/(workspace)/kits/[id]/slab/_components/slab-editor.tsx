@@ -19,19 +19,43 @@ import { useMakePlate } from "./use-make-plate";
 import { useSlabWorker } from "./use-slab-worker";
 
 /** The form's values for a template: its options, and its variables' sample values (else their defaults). */
-const templateForm = (t: EditorTemplate) => optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default])));
+const templateForm = (t: EditorTemplate) =>
+  optionsToForm(t.options, Object.fromEntries(t.variables.map((v) => [v.name, v.sample || v.default])));
 
-const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), { ssr: false, loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p> });
+const View3D = dynamic(() => import("./view-3d").then((m) => m.View3D), {
+  ssr: false,
+  loading: () => <p className="p-4 text-sm text-muted">Loading the 3D view…</p>,
+});
 
 /**
  * The slab editor: the options form and templates on the left, the live preview (3D view and plate
  * map, hand placements) in the middle, findings, estimates and "Make the plate" on the right. The
  * engine runs in a Web Worker (useSlabWorker); the plate is made on the server (useMakePlate).
  */
-export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, templates, initialTemplateId }: { kitId: string; kitName: string; parts: EditorPart[]; canMake: boolean; canSaveTemplates: boolean; templates: EditorTemplate[]; initialTemplateId?: string }) {
+export function SlabEditor({
+  kitId,
+  kitName,
+  parts,
+  canMake,
+  canSaveTemplates,
+  templates,
+  initialTemplateId,
+}: {
+  kitId: string;
+  kitName: string;
+  parts: EditorPart[];
+  canMake: boolean;
+  canSaveTemplates: boolean;
+  templates: EditorTemplate[];
+  initialTemplateId?: string;
+}) {
   // A template named in the address opens the editor with its options and sample values.
   const [applied, setApplied] = useState<EditorTemplate | null>(() => templates.find((t) => t.id === initialTemplateId) ?? null);
-  const form = useForm<FormValues>({ defaultValues: applied ? templateForm(applied) : DEFAULT_VALUES, resolver: slabResolver, mode: "onChange" });
+  const form = useForm<FormValues>({
+    defaultValues: applied ? templateForm(applied) : DEFAULT_VALUES,
+    resolver: slabResolver,
+    mode: "onChange",
+  });
   const values = useWatch({ control: form.control }) as FormValues;
   const layout = useLayoutHistory();
   const placements = layout.placements;
@@ -62,7 +86,16 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   const { making, busy, make } = useMakePlate();
 
   const notes = useMemo(() => fieldNotes(result?.findings ?? [], form.getValues()), [result, form]);
-  const flagged = useMemo(() => new Set((result?.findings ?? []).filter((f) => f.severity !== "info").flatMap((f) => [f.piece, ...(f.pieces ?? [])]).filter((n): n is number => n !== undefined)), [result]);
+  const flagged = useMemo(
+    () =>
+      new Set(
+        (result?.findings ?? [])
+          .filter((f) => f.severity !== "info")
+          .flatMap((f) => [f.piece, ...(f.pieces ?? [])])
+          .filter((n): n is number => n !== undefined),
+      ),
+    [result],
+  );
   const moveTo = useCallback(
     (piece: PlacedPiece, dx: number, dy: number, turn = 0) => {
       if (result) place(movedPlacements(result.pieces, piece.number, dx, dy, turn));
@@ -74,7 +107,14 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
   return (
     <div className="grid gap-4 md:grid-cols-[16rem_minmax(0,1fr)] xl:grid-cols-[18rem_minmax(0,1fr)_18rem]">
       <div className="space-y-3">
-        <TemplatePicker templates={templates} applied={applied} onApply={applyTemplate} values={values} canSave={canSaveTemplates} onSaved={setApplied} />
+        <TemplatePicker
+          templates={templates}
+          applied={applied}
+          onApply={applyTemplate}
+          values={values}
+          canSave={canSaveTemplates}
+          onSaved={setApplied}
+        />
         <form className="card space-y-3 p-3 text-sm" aria-label="Slab options" onSubmit={(e) => e.preventDefault()}>
           <FieldNotesContext.Provider value={notes}>
             <OptionsFields form={form} />
@@ -86,12 +126,26 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
       <div className="space-y-3 md:sticky md:top-2 md:self-start">
         <div className="card relative h-[22rem] overflow-hidden bg-paper">
           {result?.slab && result.layout && ready ? (
-            <View3D slab={result.slab} parts={ready.parts} pieces={result.viewPieces} size={result.layout.slab} top={top} selected={selected} flagged={flagged} onPick={setSelected} />
+            <View3D
+              slab={result.slab}
+              parts={ready.parts}
+              pieces={result.viewPieces}
+              size={result.layout.slab}
+              top={top}
+              selected={selected}
+              flagged={flagged}
+              onPick={setSelected}
+            />
           ) : (
-            <p className="p-4 text-sm text-muted">{problem ?? (ready ? "Building the preview…" : "Starting the engine in your browser…")}</p>
+            <p className="p-4 text-sm text-muted">
+              {problem ?? (ready ? "Building the preview…" : "Starting the engine in your browser…")}
+            </p>
           )}
           {result?.stale ? (
-            <p className="absolute left-2 top-2 rounded-card bg-surface/90 px-2 py-1 text-xs text-finding-error" data-testid="stale-preview">
+            <p
+              className="absolute left-2 top-2 rounded-card bg-surface/90 px-2 py-1 text-xs text-finding-error"
+              data-testid="stale-preview"
+            >
               ✕ This change cannot be built (see the findings); the view shows the last slab that could.
             </p>
           ) : null}
@@ -101,7 +155,14 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
         </div>
         <div className="card h-[20rem] p-2">
           {result?.layout ? (
-            <PlateMap layout={result.layout} pieces={result.pieces} selected={selected} flagged={flagged} onSelect={setSelected} onMove={(p, dx, dy, turn) => moveTo(p, dx, dy, turn)} />
+            <PlateMap
+              layout={result.layout}
+              pieces={result.pieces}
+              selected={selected}
+              flagged={flagged}
+              onSelect={setSelected}
+              onMove={(p, dx, dy, turn) => moveTo(p, dx, dy, turn)}
+            />
           ) : (
             <p className="p-2 text-sm text-muted">The plate map appears with the first preview.</p>
           )}
@@ -118,7 +179,9 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
           </button>
           {sel ? (
             <>
-              <span>Piece {sel.number} · {sel.partName}</span>
+              <span>
+                Piece {sel.number} · {sel.partName}
+              </span>
               <button type="button" className="btn-quiet px-2 py-1" onClick={(e) => moveTo(sel, 0, 0, e.shiftKey ? 1 : 15)}>
                 Turn 15° (Shift: 1°)
               </button>
@@ -140,12 +203,21 @@ export function SlabEditor({ kitId, kitName, parts, canMake, canSaveTemplates, t
           <MakePanel
             making={making}
             disabled={!check.success || !result || result.findings.some((f) => f.severity === "error") || busy}
-            onMake={() => void make({ kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) }, result?.pieces.length)}
+            onMake={() =>
+              void make(
+                { kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) },
+                result?.pieces.length,
+              )
+            }
             material={values.material}
             smallParts={Boolean(result?.findings.some((f) => f.code === "small_part"))}
           />
         ) : null}
-        {ready ? <p className="text-xs text-muted">Engine ready in {ready.ms.toFixed(0)} ms · {ready.triangles.toLocaleString("en-US")} part triangles</p> : null}
+        {ready ? (
+          <p className="text-xs text-muted">
+            Engine ready in {ready.ms.toFixed(0)} ms · {ready.triangles.toLocaleString("en-US")} part triangles
+          </p>
+        ) : null}
       </aside>
     </div>
   );

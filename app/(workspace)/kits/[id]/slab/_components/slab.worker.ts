@@ -19,7 +19,6 @@ const cache = newPartCache();
 let pending: Extract<ToWorker, { type: "build" }> | null = null;
 let busy = false;
 
-
 async function init(msg: Extract<ToWorker, { type: "init" }>) {
   const t0 = performance.now();
   kernel = await loadKernel();
@@ -31,15 +30,27 @@ async function init(msg: Extract<ToWorker, { type: "init" }>) {
       const res = await fetch(`/api/parts/${p.id}/file`);
       if (!res.ok) throw new Error(`part ${p.name} could not be loaded (HTTP ${res.status})`);
       const bytes = new Uint8Array(await res.arrayBuffer());
-      const r = importMesh(bytes, kernel!, { fileName: `${p.name}.${res.headers.get("x-part-format") ?? "stl"}`, unit: (res.headers.get("x-part-unit") ?? undefined) as Unit | undefined });
+      const r = importMesh(bytes, kernel!, {
+        fileName: `${p.name}.${res.headers.get("x-part-format") ?? "stl"}`,
+        unit: (res.headers.get("x-part-unit") ?? undefined) as Unit | undefined,
+      });
       const layFlat = res.headers.get("x-part-lay-flat") === "1" || p.orientation === "lay-flat";
-      const mesh = orientMesh(combineMeshes(r.bodies.map((b) => b.mesh)), { layFlat, turnX: p.orientation === "turned" ? 2 : 0, rotateZ: p.rotation });
+      const mesh = orientMesh(combineMeshes(r.bodies.map((b) => b.mesh)), {
+        layFlat,
+        turnX: p.orientation === "turned" ? 2 : 0,
+        rotateZ: p.rotation,
+      });
       return { id: p.id, name: p.name, mesh, quantity: p.quantity };
     }),
   );
   const display = parts.map((p) => decimate(p));
   post(
-    { type: "ready", ms: performance.now() - t0, triangles: parts.reduce((s, p) => s + p.quantity * (p.mesh.triVerts.length / 3), 0), parts: display },
+    {
+      type: "ready",
+      ms: performance.now() - t0,
+      triangles: parts.reduce((s, p) => s + p.quantity * (p.mesh.triVerts.length / 3), 0),
+      parts: display,
+    },
     display.flatMap((d) => [d.positions.buffer, d.indices.buffer]) as ArrayBuffer[],
   );
 }
@@ -50,7 +61,8 @@ const DISPLAY_TOLERANCE = 0.02;
 
 function decimate(p: PlatePart): DisplayPart {
   const triangles = p.mesh.triVerts.length / 3;
-  if (triangles <= DISPLAY_TRIANGLES) return { id: p.id, positions: p.mesh.vertProperties.slice(), indices: p.mesh.triVerts.slice(), triangles, shownTriangles: triangles };
+  if (triangles <= DISPLAY_TRIANGLES)
+    return { id: p.id, positions: p.mesh.vertProperties.slice(), indices: p.mesh.triVerts.slice(), triangles, shownTriangles: triangles };
   const scope = kernel!.scope();
   try {
     const { Manifold, Mesh } = kernel!.wasm;
@@ -77,11 +89,24 @@ function pump() {
     const s = r.bodies?.find((b) => b.piece === undefined);
     const slab = s ? { name: s.name, positions: s.mesh.vertProperties, indices: s.mesh.triVerts } : null;
     post(
-      { type: "built", seq: msg.seq, ms: performance.now() - t0, slab, pieces: r.pieces, layout: r.layout, findings: r.findings, estimates: r.estimates },
+      {
+        type: "built",
+        seq: msg.seq,
+        ms: performance.now() - t0,
+        slab,
+        pieces: r.pieces,
+        layout: r.layout,
+        findings: r.findings,
+        estimates: r.estimates,
+      },
       slab ? ([slab.positions.buffer, slab.indices.buffer] as ArrayBuffer[]) : [],
     );
   } catch (err) {
-    post({ type: "error", seq: msg.seq, message: err instanceof MeshImportError ? err.message : err instanceof Error ? err.message : String(err) });
+    post({
+      type: "error",
+      seq: msg.seq,
+      message: err instanceof MeshImportError ? err.message : err instanceof Error ? err.message : String(err),
+    });
   } finally {
     busy = false;
     if (pending) setTimeout(pump, 0);

@@ -6,10 +6,31 @@ import type { TemplateVariableDef } from "@/lib/geometry/template";
 import type { FormValues } from "./form-model";
 import { SaveTemplate } from "./save-template";
 
-export type EditorTemplate = { id: string; name: string; version: number; starter: boolean; options: SlabOptionsInput; variables: TemplateVariableDef[] };
+export type EditorTemplate = {
+  id: string;
+  name: string;
+  version: number;
+  starter: boolean;
+  options: SlabOptionsInput;
+  variables: TemplateVariableDef[];
+};
 
 /** Apply one of the workspace's templates (or none), and save the form as a template. */
-export function TemplatePicker({ templates, applied, onApply, values, canSave, onSaved }: { templates: EditorTemplate[]; applied: EditorTemplate | null; onApply: (t: EditorTemplate | null) => void; values: FormValues; canSave: boolean; onSaved: (t: EditorTemplate) => void }) {
+export function TemplatePicker({
+  templates,
+  applied,
+  onApply,
+  values,
+  canSave,
+  onSaved,
+}: {
+  templates: EditorTemplate[];
+  applied: EditorTemplate | null;
+  onApply: (t: EditorTemplate | null) => void;
+  values: FormValues;
+  canSave: boolean;
+  onSaved: (t: EditorTemplate) => void;
+}) {
   const toast = useToast();
   return (
     <section className="card space-y-2 p-3 text-sm" aria-label="Template">

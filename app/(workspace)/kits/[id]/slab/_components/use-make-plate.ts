@@ -41,7 +41,10 @@ export function useMakePlate() {
         return setMaking({ progress: 0, status: "failed", message: r.message });
       }
       const plateId = r.data.plateId;
-      const end = await watchPlate(plateId, { signal, onStatus: (job) => setMaking({ plateId, progress: job.progress, status: job.status, message: job.error?.message }) });
+      const end = await watchPlate(plateId, {
+        signal,
+        onStatus: (job) => setMaking({ plateId, progress: job.progress, status: job.status, message: job.error?.message }),
+      });
       switch (end.kind) {
         case "stopped":
           return;

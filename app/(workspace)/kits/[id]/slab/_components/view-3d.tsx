@@ -57,10 +57,35 @@ function PartGeometry({ part, children }: { part: DisplayPart; children: (g: Buf
  * The slab and its pieces in 3D: orbit, pan and zoom; a top view; click a piece to select it. Each
  * part's geometry is made once; an edit moves the pieces and swaps the slab's geometry only.
  */
-export function View3D({ slab, parts, pieces, size, top, selected, flagged, onPick }: { slab: Body | null; parts: DisplayPart[]; pieces: PlacedPiece[]; size: { width: number; depth: number }; top: boolean; selected?: number; flagged: Set<number>; onPick: (n?: number) => void }) {
+export function View3D({
+  slab,
+  parts,
+  pieces,
+  size,
+  top,
+  selected,
+  flagged,
+  onPick,
+}: {
+  slab: Body | null;
+  parts: DisplayPart[];
+  pieces: PlacedPiece[];
+  size: { width: number; depth: number };
+  top: boolean;
+  selected?: number;
+  flagged: Set<number>;
+  onPick: (n?: number) => void;
+}) {
   const center = useMemo<[number, number, number]>(() => [size.width / 2, size.depth / 2, 0], [size.width, size.depth]);
   return (
-    <Canvas frameloop="demand" dpr={[1, 1.5]} gl={{ antialias: false, powerPreference: "high-performance" }} camera={{ fov: 35, near: 1, far: 5000 }} data-testid="view-3d" onPointerMissed={() => onPick(undefined)}>
+    <Canvas
+      frameloop="demand"
+      dpr={[1, 1.5]}
+      gl={{ antialias: false, powerPreference: "high-performance" }}
+      camera={{ fov: 35, near: 1, far: 5000 }}
+      data-testid="view-3d"
+      onPointerMissed={() => onPick(undefined)}
+    >
       <ambientLight intensity={0.55} />
       <directionalLight position={[size.width, -size.depth, 300]} intensity={1.6} />
       <directionalLight position={[-100, 200, 150]} intensity={0.4} />
@@ -72,7 +97,13 @@ export function View3D({ slab, parts, pieces, size, top, selected, flagged, onPi
             pieces
               .filter((p) => p.partId === part.id)
               .map((p) => (
-                <mesh key={p.slot} geometry={g} position={[p.x, p.y, p.z]} rotation={[0, 0, (p.rotation * Math.PI) / 180]} onClick={(e) => (e.stopPropagation(), onPick(p.number))}>
+                <mesh
+                  key={p.slot}
+                  geometry={g}
+                  position={[p.x, p.y, p.z]}
+                  rotation={[0, 0, (p.rotation * Math.PI) / 180]}
+                  onClick={(e) => (e.stopPropagation(), onPick(p.number))}
+                >
                   <meshLambertMaterial color={p.number === selected ? "#6d4aff" : flagged.has(p.number) ? "#b7791f" : "#4a4f57"} />
                 </mesh>
               ))

@@ -4,7 +4,10 @@ import { useWatch } from "react-hook-form";
 import { Num, Pick, type Form } from "../fields";
 import { BEDS, bedKey } from "../form-model";
 
-const BED_CHOICES: [string, string][] = [...BEDS.map(([w, d]) => [bedKey(w, d), `${w} × ${d} mm`] as [string, string]), ["custom", "custom size"]];
+const BED_CHOICES: [string, string][] = [
+  ...BEDS.map(([w, d]) => [bedKey(w, d), `${w} × ${d} mm`] as [string, string]),
+  ["custom", "custom size"],
+];
 
 /** How the pieces are laid out: spacing, copies of the kit and the bed (a preset or a custom size). */
 export function LayoutFields({ form }: { form: Form }) {

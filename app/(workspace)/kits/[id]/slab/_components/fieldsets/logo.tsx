@@ -28,7 +28,21 @@ export function LogoFieldset({ form }: { form: Form }) {
             try {
               const parsed = importSvgLogo(new Uint8Array(await file.arrayBuffer()));
               setProblem(null);
-              form.setValue("logo", { name: file.name.replace(/\.svg$/i, ""), paths: parsed.paths, box: parsed.box, width: logo?.width ?? 20, relief: logo?.relief ?? "engrave", depth: logo?.depth ?? 0.4, where: logo?.where ?? "auto", x: 0, y: 0 }, { shouldDirty: true, shouldValidate: true });
+              form.setValue(
+                "logo",
+                {
+                  name: file.name.replace(/\.svg$/i, ""),
+                  paths: parsed.paths,
+                  box: parsed.box,
+                  width: logo?.width ?? 20,
+                  relief: logo?.relief ?? "engrave",
+                  depth: logo?.depth ?? 0.4,
+                  where: logo?.where ?? "auto",
+                  x: 0,
+                  y: 0,
+                },
+                { shouldDirty: true, shouldValidate: true },
+              );
             } catch (err) {
               setProblem(err instanceof LogoError ? err.message : "The file could not be read as SVG.");
             }
@@ -52,7 +66,11 @@ export function LogoFieldset({ form }: { form: Form }) {
               <Num form={form} name="logo.y" label="y" unit="mm" step={0.5} />
             </>
           ) : null}
-          <button type="button" className="btn-quiet col-span-2 px-2 py-1 text-xs" onClick={() => form.setValue("logo", null, { shouldDirty: true })}>
+          <button
+            type="button"
+            className="btn-quiet col-span-2 px-2 py-1 text-xs"
+            onClick={() => form.setValue("logo", null, { shouldDirty: true })}
+          >
             Remove the logo
           </button>
         </div>

@@ -13,7 +13,17 @@ export function PieceMarksFieldset({ form }: { form: Form }) {
         <label className="flex items-center gap-2 pb-1.5 text-xs">
           <input type="checkbox" {...form.register("numbers")} /> numbers beside pieces
         </label>
-        <Pick form={form} name="outlines" label="Outlines" aria="Piece outlines" options={[["ring", "outline rings"], ["pocket", "pockets"], ["none", "no outlines"]]} />
+        <Pick
+          form={form}
+          name="outlines"
+          label="Outlines"
+          aria="Piece outlines"
+          options={[
+            ["ring", "outline rings"],
+            ["pocket", "pockets"],
+            ["none", "no outlines"],
+          ]}
+        />
       </div>
       {numbers ? (
         <div className="grid grid-cols-3 gap-2">

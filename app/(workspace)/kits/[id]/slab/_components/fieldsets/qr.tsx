@@ -3,7 +3,12 @@
 import { useWatch } from "react-hook-form";
 import { Num, Pick, RELIEF, Text, WHERE, type Form } from "../fields";
 
-const LEVELS: [string, string][] = [["L", "L (7 %)"], ["M", "M (15 %)"], ["Q", "Q (25 %)"], ["H", "H (30 %)"]];
+const LEVELS: [string, string][] = [
+  ["L", "L (7 %)"],
+  ["M", "M (15 %)"],
+  ["Q", "Q (25 %)"],
+  ["H", "H (30 %)"],
+];
 
 /** The QR code: what it says, then (once it says something) its module, error correction and place. */
 export function QrFieldset({ form }: { form: Form }) {

@@ -9,7 +9,13 @@ export function SlabFieldset({ form, children }: { form: Form; children?: ReactN
   return (
     <fieldset className="space-y-2">
       <legend className="font-bold">Slab</legend>
-      <Pick form={form} name="slab.shape" label="Outline" aria="Slab outline" options={SLAB_SHAPE_IDS.map((id) => [id, SLAB_SHAPES[id].label])} />
+      <Pick
+        form={form}
+        name="slab.shape"
+        label="Outline"
+        aria="Slab outline"
+        options={SLAB_SHAPE_IDS.map((id) => [id, SLAB_SHAPES[id].label])}
+      />
       <div className="grid grid-cols-2 gap-2">
         <Num form={form} name="slab.thickness" label="Thickness" unit="mm" step={0.1} />
         <Num form={form} name="slab.gap" label="Air gap" unit="mm" step={0.05} testId="opt-gap" />

@@ -14,14 +14,22 @@ export function TextLinesFieldset({ form }: { form: Form }) {
   return (
     <fieldset className="space-y-2">
       <legend className="font-bold">Text</legend>
-      {lines.fields.length === 0 ? <p className="text-xs text-muted">No text on the slab. Add a line for an order number or a thank-you.</p> : null}
+      {lines.fields.length === 0 ? (
+        <p className="text-xs text-muted">No text on the slab. Add a line for an order number or a thank-you.</p>
+      ) : null}
       {lines.fields.map((f, i) => (
         <div key={f.id} className="space-y-1.5 rounded-card border border-hairline p-2">
           <div className="flex items-end gap-1">
             <div className="grow">
               <Text form={form} name={`text.${i}.value`} label={`Text line ${i + 1}`} />
             </div>
-            <button type="button" className="btn-quiet px-2 py-1 text-xs" onClick={() => lines.remove(i)} aria-label={`Remove line ${i + 1}`} title="Remove this line">
+            <button
+              type="button"
+              className="btn-quiet px-2 py-1 text-xs"
+              onClick={() => lines.remove(i)}
+              aria-label={`Remove line ${i + 1}`}
+              title="Remove this line"
+            >
               ✕
             </button>
           </div>
@@ -41,7 +49,12 @@ export function TextLinesFieldset({ form }: { form: Form }) {
           ) : null}
         </div>
       ))}
-      <button type="button" className="btn-quiet px-2 py-1 text-xs" disabled={lines.fields.length >= MAX_LINES} onClick={() => lines.append(newLine("", 4))}>
+      <button
+        type="button"
+        className="btn-quiet px-2 py-1 text-xs"
+        disabled={lines.fields.length >= MAX_LINES}
+        onClick={() => lines.append(newLine("", 4))}
+      >
         Add a text line
       </button>
     </fieldset>

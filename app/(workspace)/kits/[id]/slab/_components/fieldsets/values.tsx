@@ -11,7 +11,9 @@ export function ValuesFieldset({ form }: { form: Form }) {
   return (
     <fieldset className="space-y-2">
       <legend className="font-bold">Values</legend>
-      <p className="text-xs text-muted">What fills the {"{placeholders}"} in the preview and on the plate; {"{date}"} is today and {"{kit}"} the kit&apos;s name.</p>
+      <p className="text-xs text-muted">
+        What fills the {"{placeholders}"} in the preview and on the plate; {"{date}"} is today and {"{kit}"} the kit&apos;s name.
+      </p>
       {names.length === 0 ? <p className="text-xs text-muted">No placeholders in the text or the QR code.</p> : null}
       <div className="grid grid-cols-2 gap-2">
         {names.map((n) => (
