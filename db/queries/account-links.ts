@@ -52,8 +52,8 @@ export type LockedSignUp = {
 /** The sign-up a link stands for, locked for the caller's transaction (it is used once), or null. */
 export async function lockPendingSignUp(tx: Tx, tokenHash: string): Promise<LockedSignUp | null> {
   const res = await tx.execute<LockedSignUp>(
-    sql`select id, email, name, password_hash, workshop, expires_at, used_at from pending_sign_ups where token_hash = ${tokenHash} ` +
-      `for update`,
+    sql`select id, email, name, password_hash, workshop, expires_at, used_at from pending_sign_ups where token_hash = ${tokenHash} 
+      for update`,
   );
   return res.rows[0] ?? null;
 }
@@ -73,8 +73,8 @@ export type LockedReset = { id: string; user_id: string; expires_at: Date; used_
 /** The reset a link stands for, with its account's address, locked for the caller's transaction, or null. */
 export async function lockPasswordReset(tx: Tx, tokenHash: string): Promise<LockedReset | null> {
   const res = await tx.execute<LockedReset>(
-    sql`select r.id, r.user_id, r.expires_at, r.used_at, u.email from password_resets r join users u on u.id = r.user_id where ` +
-      `r.token_hash = ${tokenHash} for update of r`,
+    sql`select r.id, r.user_id, r.expires_at, r.used_at, u.email from password_resets r join users u on u.id = r.user_id where 
+      r.token_hash = ${tokenHash} for update of r`,
   );
   return res.rows[0] ?? null;
 }

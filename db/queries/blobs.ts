@@ -9,8 +9,8 @@ import { db } from "@/db";
 export async function blobUses(key: string): Promise<number> {
   const [used] = await db()
     .execute<{ n: number }>(
-      sql`select (select count(*) from parts where blob_key = ${key}) + (select count(*) from plate_files where blob_key = ${key}) + ` +
-        `(select count(*) from plates where input::text like ${`%${key}%`}) + (select count(*) from part_uploads where blob_key = ` +
+      sql`select (select count(*) from parts where blob_key = ${key}) + (select count(*) from plate_files where blob_key = ${key}) + 
+        (select count(*) from plates where input::text like ${`%${key}%`}) + (select count(*) from part_uploads where blob_key = ` +
         `${key} and state = 'checking') as n`,
     )
     .then((r) => r.rows);

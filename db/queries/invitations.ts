@@ -117,8 +117,8 @@ export type LockedInvitation = {
 /** The invitation a link stands for, locked for the caller's transaction (it is used once), or null. */
 export async function lockInvitationByTokenHash(tx: Tx, tokenHash: string): Promise<LockedInvitation | null> {
   const res = await tx.execute<LockedInvitation>(
-    sql`select id, email, role, workspace_id, expires_at, accepted_at, revoked_at from invitations where token_hash = ${tokenHash} ` +
-      `for update`,
+    sql`select id, email, role, workspace_id, expires_at, accepted_at, revoked_at from invitations where token_hash = ${tokenHash} 
+      for update`,
   );
   return res.rows[0] ?? null;
 }

@@ -107,8 +107,8 @@ export async function revokeSession(sid: string, userId: string | null, expiresA
 /** Whether a session token is still good: its person exists, its version is current and it was not signed out. */
 export async function sessionStillValid(userId: string, version: number, sid: string): Promise<boolean> {
   const res = await db().execute<{ ok: boolean }>(
-    sql`select (u.session_version = ${version} and not exists (select 1 from revoked_sessions r where r.sid = ${sid})) as ok from ` +
-      `users u where u.id = ${userId}`,
+    sql`select (u.session_version = ${version} and not exists (select 1 from revoked_sessions r where r.sid = ${sid})) as ok from 
+      users u where u.id = ${userId}`,
   );
   return res.rows[0]?.ok === true;
 }

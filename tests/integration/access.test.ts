@@ -366,8 +366,8 @@ describe("secrets", () => {
   it("never appear in logs or in the database in clear (outside the dev outbox)", async () => {
     const everything = JSON.stringify(
       await db().execute(
-        sql`select (select json_agg(u) from users u) as u, (select json_agg(k) from api_keys k) as k, (select json_agg(i) from ` +
-          `invitations i) as i, (select json_agg(a) from audit_events a) as a, (select json_agg(v) from verification_tokens v) as v`,
+        sql`select (select json_agg(u) from users u) as u, (select json_agg(k) from api_keys k) as k, (select json_agg(i) from 
+          invitations i) as i, (select json_agg(a) from audit_events a) as a, (select json_agg(v) from verification_tokens v) as v`,
       ),
     );
     expect(secrets.length).toBeGreaterThan(5);

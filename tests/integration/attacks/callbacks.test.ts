@@ -139,8 +139,8 @@ describe("a callback host that never answers holds no build slot", () => {
       console.log(`[callbacks] /hold/0 attempts ${a2!.at - a1!.at} ms apart (attempt timeout ${timeoutMs} ms)`);
       // The queue's record of it: its own queue, 5 retries with backoff.
       const rows = await db().execute<{ retry_limit: number; retry_backoff: boolean; retry_count: number; state: string }>(
-        sql`select retry_limit, retry_backoff, retry_count, state from pgboss.job where name = 'plate-callback' and data->>'url' = ` +
-          `${holder.url("/hold/0")}`,
+        sql`select retry_limit, retry_backoff, retry_count, state from pgboss.job where name = 'plate-callback' and data->>'url' = 
+          ${holder.url("/hold/0")}`,
       );
       expect(rows.rows).toHaveLength(1);
       expect(rows.rows[0]).toMatchObject({ retry_limit: 5, retry_backoff: true });
