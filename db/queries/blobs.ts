@@ -10,8 +10,8 @@ export async function blobUses(key: string): Promise<number> {
   const [used] = await db()
     .execute<{ n: number }>(
       sql`select (select count(*) from parts where blob_key = ${key}) + (select count(*) from plate_files where blob_key = ${key}) + 
-        (select count(*) from plates where input::text like ${`%${key}%`}) + (select count(*) from part_uploads where blob_key = ` +
-        `${key} and state = 'checking') as n`,
+        (select count(*) from plates where input::text like ${`%${key}%`}) + (select count(*) from part_uploads where blob_key =
+        ${key} and state = 'checking') as n`,
     )
     .then((r) => r.rows);
   return Number(used?.n ?? 0);

@@ -22,14 +22,3 @@ export function permissionsOf(role: Role): Permission[] {
 export function systemActor(workspaceId: string): WorkspaceActor {
   return { workspaceId, userId: null, apiKeyId: null, permissions: [] };
 }
-
-/**
- * What the few services still called with a bare workspace id take (listTemplates, versionForPlate,
- * meterPlate, and the plate map's template label): an actor, or the id, which stands for the system
- * acting for that workspace. Their queries read or count within the workspace and record no person,
- * so both give the same result; once every caller passes its actor this goes.
- */
-export type ActorOrWorkspace = WorkspaceActor | string;
-export function asActor(a: ActorOrWorkspace): WorkspaceActor {
-  return typeof a === "string" ? systemActor(a) : a;
-}

@@ -22,7 +22,7 @@ import {
   type BillingRow,
 } from "@/db/queries/billing";
 import { transaction, type Tx } from "@/db/queries/tx";
-import { asActor, systemActor, type ActorOrWorkspace, type WorkspaceActor } from "@/lib/auth/actor";
+import { systemActor, type WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
 import { env, requireSecret } from "@/lib/env";
 import { PLANS, type Plan, type PlanId } from "./plans";
@@ -91,8 +91,7 @@ export function engravesLogo(options: unknown): boolean {
  * API, the editor, a remake, a reprint) comes through here with the plate's options, so the plan's
  * other limits (logos) are checked here too, once.
  */
-export async function meterPlate(tx: Tx, workspace: ActorOrWorkspace, count = 1, options?: unknown): Promise<Billing> {
-  const actor = asActor(workspace);
+export async function meterPlate(tx: Tx, actor: WorkspaceActor, count = 1, options?: unknown): Promise<Billing> {
   // One writer at a time per workspace, so two requests cannot both take the last plate.
   await lockUsage(tx, actor);
   const b = await billingOf(actor, tx);

@@ -1,7 +1,7 @@
 import "server-only";
 import type { Plate } from "@/db/schema";
 import { templateLabel } from "@/db/queries/templates";
-import { asActor } from "@/lib/auth/actor";
+import type { WorkspaceActor } from "@/lib/auth/actor";
 import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 import type { Estimates } from "@/lib/geometry/estimates";
 import { appUrl } from "@/lib/mail";
@@ -9,12 +9,12 @@ import { PAPERS, plateMapPdf, type Paper, type SheetPlate } from "./sheet";
 import { BadRequest, Conflict } from "@/lib/errors";
 
 /** What the sheet needs of a plate, with its template's name and version. */
-export async function sheetPlate(p: Plate): Promise<SheetPlate> {
+export async function sheetPlate(actor: WorkspaceActor, p: Plate): Promise<SheetPlate> {
   const stats = p.stats as { layout?: PlateLayout; pieces?: PlacedPiece[] } | null;
   if (p.jobState !== "done" || !stats?.layout || !stats.pieces)
     throw new Conflict("not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
   // Within the plate's workspace: its template is that workspace's own or a starter.
-  const t = p.templateVersionId ? await templateLabel(asActor(p.workspaceId), p.templateVersionId) : null;
+  const t = p.templateVersionId ? await templateLabel(actor, p.templateVersionId) : null;
   return {
     id: p.id,
     title: p.title,
@@ -34,10 +34,10 @@ export async function sheetPlate(p: Plate): Promise<SheetPlate> {
 /** The plate's page in the app, where the sheet's QR code leads (the inspection page). */
 export const platePageUrl = (id: string) => appUrl(`/floor/plates/${id}`);
 
-export async function sheetResponse(req: Request, p: Plate): Promise<Response> {
+export async function sheetResponse(req: Request, actor: WorkspaceActor, p: Plate): Promise<Response> {
   const paper = (new URL(req.url).searchParams.get("paper") ?? "a4").toLowerCase();
   if (!(paper in PAPERS)) throw new BadRequest("bad_request", "paper must be a4 or letter.");
-  const pdf = await plateMapPdf(await sheetPlate(p), platePageUrl(p.id), paper as Paper);
+  const pdf = await plateMapPdf(await sheetPlate(actor, p), platePageUrl(p.id), paper as Paper);
   const stem =
     (p.title ?? "plate")
       .toLowerCase()

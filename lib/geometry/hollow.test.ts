@@ -1,11 +1,12 @@
 import { inflateRawSync } from "node:zlib";
 import { beforeAll, describe, expect, it } from "vitest";
+import { boxShell as box } from "@/tests/support/meshes";
 import { buildPlate } from "@/lib/geometry/build-plate";
 import type { FontBook } from "@/lib/geometry/fonts";
 import { importMesh } from "@/lib/geometry/import";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
 import type { Kernel } from "@/lib/geometry/kernel";
-import { combineMeshes, signedVolume, windingNumber, type IndexedMesh } from "@/lib/geometry/mesh";
+import { combineMeshes, signedVolume, windingNumber } from "@/lib/geometry/mesh";
 import { parseOptions } from "@/lib/geometry/options";
 import { provePlate } from "@/lib/proof";
 import { engine, zlibDeflate } from "@/tests/support/engine";
@@ -17,13 +18,6 @@ let fonts: FontBook;
 beforeAll(async () => {
   ({ kernel, fonts } = await engine());
 });
-
-function box([x0, y0, z0]: number[], [x1, y1, z1]: number[], inward = false): IndexedMesh {
-  const v = [x0, y0, z0, x1, y0, z0, x1, y1, z0, x0, y1, z0, x0, y0, z1, x1, y0, z1, x1, y1, z1, x0, y1, z1] as number[];
-  const f = [0, 2, 1, 0, 3, 2, 4, 5, 6, 4, 6, 7, 0, 1, 5, 0, 5, 4, 1, 2, 6, 1, 6, 5, 2, 3, 7, 2, 7, 6, 3, 0, 4, 3, 4, 7];
-  if (inward) for (let i = 0; i < f.length; i += 3) [f[i + 1], f[i + 2]] = [f[i + 2]!, f[i + 1]!];
-  return { vertProperties: Float32Array.from(v), triVerts: Uint32Array.from(f) };
-}
 
 describe("hollow parts", () => {
   it("the winding number is 1 inside a closed shell, 0 outside, −1 inside an inside-out one", () => {

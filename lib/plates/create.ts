@@ -46,7 +46,7 @@ export async function createPlate(actor: WorkspaceActor, spec: NewPlate, how: Cr
   }
   let plan: PlanId = "bench";
   const plate = await transaction(async (tx) => {
-    plan = (await meterPlate(tx, actor.workspaceId, 1, spec.options)).plan;
+    plan = (await meterPlate(tx, actor, 1, spec.options)).plan;
     const row = await insertPlate(tx, actor, {
       ...spec,
       source: how.source,

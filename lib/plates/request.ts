@@ -48,7 +48,7 @@ export type PlateRequest = {
  * checked; every value the plate is made with fixed, {date} included, so it can be made again exactly.
  */
 export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrder): Promise<PlateRequest> {
-  const version = order.template ? await versionForPlate(actor.workspaceId, order.template.id, order.template.version) : null;
+  const version = order.template ? await versionForPlate(actor, order.template.id, order.template.version) : null;
   const storedOptions = version
     ? mergeOptions(version.options as SlabOptionsInput, order.options as SlabOptionsInput)
     : (order.options as SlabOptionsInput);

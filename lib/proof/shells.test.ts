@@ -1,4 +1,5 @@
 import { beforeAll, describe, expect, it } from "vitest";
+import { boxShell as box } from "@/tests/support/meshes";
 import { engine, zlibDeflate } from "@/tests/support/engine";
 import { buildPlate, type PlateResult } from "@/lib/geometry/build-plate";
 import type { FontBook } from "@/lib/geometry/fonts";
@@ -19,13 +20,6 @@ beforeAll(async () => {
   ({ kernel, fonts } = await engine());
 });
 
-/** An axis-aligned box, 12 triangles facing out (or in: the wall of a cavity). */
-function box([x0, y0, z0]: number[], [x1, y1, z1]: number[], inward = false): IndexedMesh {
-  const v = [x0, y0, z0, x1, y0, z0, x1, y1, z0, x0, y1, z0, x0, y0, z1, x1, y0, z1, x1, y1, z1, x0, y1, z1] as number[];
-  const f = [0, 2, 1, 0, 3, 2, 4, 5, 6, 4, 6, 7, 0, 1, 5, 0, 5, 4, 1, 2, 6, 1, 6, 5, 2, 3, 7, 2, 7, 6, 3, 0, 4, 3, 4, 7];
-  if (inward) for (let i = 0; i < f.length; i += 3) [f[i + 1], f[i + 2]] = [f[i + 2]!, f[i + 1]!];
-  return { vertProperties: Float32Array.from(v), triVerts: Uint32Array.from(f) };
-}
 const hollow = () => combineMeshes([box([0, 0, 0], [20, 20, 20]), box([5, 5, 5], [15, 15, 15], true)]);
 const twoBodies = () => combineMeshes([box([0, 0, 0], [12, 12, 8]), box([15, 0, 0], [23, 8, 8])]);
 /** Two bodies, the second 4 mm above the first: a piece with a part split off in mid-air. */

@@ -13,7 +13,7 @@ import {
   templateVersionRows,
 } from "@/db/queries/templates";
 import { transaction, type Tx } from "@/db/queries/tx";
-import { asActor, type ActorOrWorkspace, type WorkspaceActor } from "@/lib/auth/actor";
+import type { WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
 import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
@@ -53,8 +53,8 @@ export function checkBody(input: unknown): TemplateBody {
   return r.data;
 }
 
-export async function listTemplates(actor: ActorOrWorkspace, filter: { q?: string; archived?: boolean } = {}) {
-  return templateRows(asActor(actor), filter);
+export async function listTemplates(actor: WorkspaceActor, filter: { q?: string; archived?: boolean } = {}) {
+  return templateRows(actor, filter);
 }
 export type TemplateRow = Awaited<ReturnType<typeof listTemplates>>[number];
 
@@ -71,11 +71,10 @@ export async function getTemplate(actor: WorkspaceActor, id: string) {
 
 /** A template version a plate will use: the current one, or the one asked for. */
 export async function versionForPlate(
-  actor: ActorOrWorkspace,
+  a: WorkspaceActor,
   templateId: string,
   version?: number,
 ): Promise<TemplateVersion & { templateName: string }> {
-  const a = asActor(actor);
   const t = await templateById(a, templateId);
   if (!t) throw new NotFound("not_found", "No such template.");
   const v = await templateVersion(a, t.id, version ?? t.currentVersion);

@@ -36,3 +36,11 @@ export function concat(...meshes: IndexedMesh[]): IndexedMesh {
 }
 
 export const bytes = (s: string) => new TextEncoder().encode(s);
+
+/** An axis-aligned box from corner to corner, 12 triangles facing out (or in: the wall of a cavity). */
+export function boxShell([x0, y0, z0]: number[], [x1, y1, z1]: number[], inward = false): IndexedMesh {
+  const v = [x0, y0, z0, x1, y0, z0, x1, y1, z0, x0, y1, z0, x0, y0, z1, x1, y0, z1, x1, y1, z1, x0, y1, z1] as number[];
+  const f = [0, 2, 1, 0, 3, 2, 4, 5, 6, 4, 6, 7, 0, 1, 5, 0, 5, 4, 1, 2, 6, 1, 6, 5, 2, 3, 7, 2, 7, 6, 3, 0, 4, 3, 4, 7];
+  if (inward) for (let i = 0; i < f.length; i += 3) [f[i + 1], f[i + 2]] = [f[i + 2]!, f[i + 1]!];
+  return { vertProperties: Float32Array.from(v), triVerts: Uint32Array.from(f) };
+}

@@ -24,7 +24,7 @@ export default async function SlabEditorPage({
   const kit = await getKit(caller, (await params).id);
   if (!kit) notFound();
   const plates = await listPlates(caller, { kitId: kit.id, limit: 20 });
-  const templates = (await listTemplates(caller.workspace.id)).map((t) => ({
+  const templates = (await listTemplates(caller)).map((t) => ({
     id: t.id,
     name: t.name,
     version: t.version,

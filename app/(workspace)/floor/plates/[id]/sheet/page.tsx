@@ -24,7 +24,7 @@ export default async function SheetPage({ params }: { params: Promise<{ id: stri
   const caller = await requireCaller();
   let s;
   try {
-    s = await sheetPlate((await plateFloor(caller, (await params).id)).plate);
+    s = await sheetPlate(caller, (await plateFloor(caller, (await params).id)).plate);
   } catch (err) {
     if (err instanceof AppError) notFound();
     throw err;

@@ -9,5 +9,5 @@ export const dynamic = "force-dynamic";
 /** GET /api/v1/plates/{id}/map.pdf?paper=a4|letter — the plate map sheet (scope plates:read). */
 export const GET = apiRoute(async (req: Request, ctx: { params: Promise<{ id: string }> }) => {
   const caller = await requireApiKey(req, "plates:read");
-  return sheetResponse(req, await plateById(caller, (await ctx.params).id));
+  return sheetResponse(req, caller, await plateById(caller, (await ctx.params).id));
 });
