@@ -34,6 +34,9 @@ export default function LandingPage() {
         <div className="mx-auto flex max-w-column items-center justify-between px-4 py-3">
           <Brand />
           <nav className="flex items-center gap-3 text-sm">
+            <Link href="/pricing" className="text-accent underline">
+              Plans
+            </Link>
             <Link href="/sign-in" className="btn-primary">
               Sign in
             </Link>

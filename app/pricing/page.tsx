@@ -44,6 +44,14 @@ export default function PricingPage() {
           );
         })}
       </ul>
+      <div className="flex flex-wrap gap-3" data-testid="pricing-start">
+        <Link href="/sign-up" className="btn-primary">
+          Start on Bench, free
+        </Link>
+        <Link href="/sign-in" className="btn-quiet">
+          Try the demo workshop
+        </Link>
+      </div>
       <p className="text-sm text-muted">
         An owner changes the plan under Settings → Billing. Prices include no tax; the local payment page in the demo moves no money.
       </p>

@@ -2,7 +2,7 @@ import "server-only";
 import { and, eq, sql } from "drizzle-orm";
 import { db } from "@/db";
 import { idempotencyKeys, kitParts, kits, parts, plateFiles, plates, type Plate } from "@/db/schema";
-import type { ExportFormatId } from "@/lib/geometry/formats";
+import { EXPORT_FORMAT_IDS, type ExportFormatId } from "@/lib/geometry/formats";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import { notFound } from "@/lib/errors";
 import type { Tx } from "./tx";
@@ -30,6 +30,17 @@ export async function plateByJob(actor: WorkspaceActor, jobId: string): Promise<
     .where(and(eq(plates.jobId, jobId), eq(plates.workspaceId, actor.workspaceId)));
   if (!p) throw notFound("job");
   return p;
+}
+
+/** The formats a plate's files are stored in, in the registry's order. */
+export async function plateFormats(actor: WorkspaceActor, plateId: string): Promise<ExportFormatId[]> {
+  const rows = await db()
+    .select({ format: plateFiles.format })
+    .from(plateFiles)
+    .innerJoin(plates, eq(plates.id, plateFiles.plateId))
+    .where(and(eq(plateFiles.plateId, plateId), eq(plates.workspaceId, actor.workspaceId)));
+  const have = new Set(rows.map((r) => r.format));
+  return EXPORT_FORMAT_IDS.filter((f) => have.has(f));
 }
 
 /** A plate's stored file in one format, or null (not built yet, failed, or never written in it). */

@@ -54,6 +54,15 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
     .click();
   await expect(page.getByTestId("floor-state")).toContainText("printing");
   await expect(page.getByRole("link", { name: "Plate map (PDF, A4)" })).toBeVisible();
+  // The files for the slicer are on the plate's page too, for a role that may download them.
+  const stlHref = await page.getByTestId("plate-files").getByRole("link", { name: "Download STL" }).getAttribute("href");
+  const stlFile = await page.request.get(stlHref!);
+  expect(stlFile.status()).toBe(200);
+  expect(stlFile.headers()["content-type"]).toBe("model/stl");
+  const stlBytes = await stlFile.body();
+  // Binary STL: 84 + 50·n bytes, n at byte 80 (the format's published layout).
+  expect(stlBytes.byteLength).toBe(84 + 50 * stlBytes.readUInt32LE(80));
+  await expect(page.getByTestId("plate-files").getByRole("link", { name: "Download 3MF" })).toBeVisible();
 
   await page.getByTestId("inspect-piece-3").getByText("missing", { exact: true }).click();
   await page.getByLabel("Note for piece 3").fill("not on the slab when it came off the bed");
@@ -124,4 +133,12 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   const mail = owner.getByTestId("outbox-message").filter({ hasText: "dario@marrowby.example" }).filter({ hasText: "to reprint" }).first();
   await expect(mail).toBeVisible();
   await owner.close();
+
+  // A viewer sees the plate but no file links (the role may not download them).
+  const viewer = await browser.newPage();
+  await signInAs(viewer, "viewer");
+  await viewer.goto(`/floor/plates/${plateId}`);
+  await expect(viewer.getByTestId("floor-state")).toBeVisible();
+  await expect(viewer.getByTestId("plate-files")).toHaveCount(0);
+  await viewer.close();
 });

@@ -15,6 +15,18 @@ test("the landing page says what the product does and leads to sign-in", async (
   await expect(page.getByRole("form", { name: "Sign in by e-mail link" })).toBeVisible();
 });
 
+test("the landing page leads to the plans, and the plans to a start: sign up or the demo", async ({ page }) => {
+  await page.goto("/");
+  await page.getByRole("link", { name: "Plans" }).click();
+  await expect(page).toHaveURL(/\/pricing$/);
+  await expect(page.getByRole("list", { name: "Plans" })).toContainText("Bench");
+  await page.getByTestId("pricing-start").getByRole("link", { name: "Start on Bench, free" }).click();
+  await expect(page).toHaveURL(/\/sign-up$/);
+  await page.goBack();
+  await page.getByTestId("pricing-start").getByRole("link", { name: "Try the demo workshop" }).click();
+  await expect(page).toHaveURL(/\/sign-in$/);
+});
+
 test("a wrong password is refused with a message at the form, a bad e-mail at the field", async ({ page }) => {
   await page.goto("/sign-in");
   const form = page.getByRole("form", { name: "Sign in with a password" });

@@ -1,4 +1,6 @@
 import type { Metadata } from "next";
+import { plateFormats } from "@/db/queries/plates";
+import { EXPORT_FORMATS } from "@/lib/geometry/formats";
 import Link from "next/link";
 import { notFound } from "next/navigation";
 import { requireCaller } from "@/lib/auth/guards";
@@ -30,6 +32,8 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
   const last = inspections[0]?.i;
   const toReprint = last ? last.results.filter((r) => r.state !== "present") : [];
   const mayInspect = can(caller.role, "inspections:record");
+  // The files for the slicer, for the roles that may download them.
+  const formats = plate.jobState === "done" && can(caller.role, "plates:download") ? await plateFormats(caller, plate.id) : [];
   return (
     <div className="mx-auto max-w-2xl space-y-4">
       <header className="space-y-1">
@@ -57,6 +61,15 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
         {plate.proof ? (
           <p className={`text-sm ${plate.proof.ok ? "text-muted" : "text-finding-error"}`} data-testid="plate-proof">
             {plate.proof.summary}
+          </p>
+        ) : null}
+        {formats.length ? (
+          <p className="space-x-3 text-sm" data-testid="plate-files">
+            {formats.map((f) => (
+              <a key={f} className="text-accent underline" href={`/api/plates/${plate.id}/download?format=${f}`}>
+                Download {EXPORT_FORMATS[f].label}
+              </a>
+            ))}
           </p>
         ) : null}
         {state && mayInspect ? <MoveButtons id={plate.id} from={state} moves={nextMoves(state)} /> : null}
