@@ -4,6 +4,7 @@
  * that hit the WASM memory limit, so its memory (which WebAssembly never gives back) is renewed.
  */
 import { readFileSync } from "node:fs";
+import { stripImportExtension } from "@/lib/geometry/formats";
 import { env } from "@/lib/env";
 import os from "node:os";
 import path from "node:path";
@@ -181,7 +182,7 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       }
       // The importer's unit warning, and a refusal for a part too small to print or too large for the bed (the unit is likely wrong).
       unitNotes.push(...unitFindings({ ...held.read, index: i + 1, name: p.name, source: p.partId ? "library" : "upload" }, bed));
-      parts.push({ id: `part-${i + 1}`, name: p.name.replace(/\.(stl|3mf|obj)$/i, ""), mesh: held.mesh, quantity: p.quantity });
+      parts.push({ id: `part-${i + 1}`, name: stripImportExtension(p.name), mesh: held.mesh, quantity: p.quantity });
       shellsOf.set(`part-${i + 1}`, held.shells);
     }
     if (unitNotes.some((f) => f.severity === "error")) {

@@ -1,4 +1,5 @@
 import "server-only";
+import { IMPORT_FORMATS } from "@/lib/geometry/formats";
 import type { Part, PartUpload } from "@/db/schema";
 import { deletePartRow, insertUpload, partById, partsByIds, refuseUnqueuedUpload, renamePart, uploadById } from "@/db/queries/parts";
 import type { WorkspaceActor } from "@/lib/auth/actor";
@@ -77,12 +78,10 @@ export async function getPart(caller: Caller, id: string): Promise<Part | null> 
   return partById(caller, id);
 }
 
-const EXT: Record<Part["format"], string> = { stl: "stl", "3mf": "3mf", obj: "obj" };
-
 /** Queue a stored part to be read again by a build worker: in another unit, laid flat, or split into its bodies. */
 async function queueRework(caller: Caller, part: Part, options: { split?: boolean; unit?: Unit; layFlat?: boolean }): Promise<PartUpload> {
   const row = await insertUpload(caller, {
-    fileName: `${part.name}.${EXT[part.format]}`,
+    fileName: `${part.name}${IMPORT_FORMATS[part.format].extensions[0]}`,
     blobKey: part.blobKey,
     byteSize: part.byteSize,
     options: { ...options, replaces: part.id },
