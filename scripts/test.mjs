@@ -152,10 +152,14 @@ try {
   if (want("unit") || want("integration")) {
     const projects = ["unit", "integration"].filter(want).flatMap((p) => ["--project", p]);
     const out = path.join(resultsDir, "vitest.json");
-    const res = run(bin("vitest"), ["run", ...projects, ...filters, "--reporter=default", "--reporter=json", `--outputFile=${out}`], {
-      env,
-      allowFail: true,
-    });
+    const res = run(
+      bin("vitest"),
+      ["run", ...projects, ...filters.filter((f) => !f.includes("e2e")), "--reporter=default", "--reporter=json", `--outputFile=${out}`],
+      {
+        env,
+        allowFail: true,
+      },
+    );
     const json = readJson(out);
     if (json) {
       totals.passed += json.numPassedTests ?? 0;
@@ -170,7 +174,8 @@ try {
 
   if (want("e2e")) {
     const out = path.join(resultsDir, "playwright.json");
-    const res = run(bin("playwright"), ["test"], { env: { ...env, PLAYWRIGHT_JSON_OUTPUT_NAME: out }, allowFail: true });
+    const specs = filters.filter((f) => f.includes("e2e"));
+    const res = run(bin("playwright"), ["test", ...specs], { env: { ...env, PLAYWRIGHT_JSON_OUTPUT_NAME: out }, allowFail: true });
     const json = readJson(out);
     if (json?.stats) {
       totals.passed += json.stats.expected ?? 0;
