@@ -22,6 +22,7 @@ import { parseOptions, type SlabOptionsInput } from "@/lib/geometry/options";
 import { unitFindings, type ReadPart } from "@/lib/geometry/units";
 import { orientMesh } from "@/lib/geometry/orient";
 import { fillValue, provePlateAsync, type Proof } from "@/lib/proof";
+import { countEdgesOffThread, readThreeMfOffThread } from "./proof-thread";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
 import { blobStore } from "@/lib/storage";
 
@@ -209,12 +210,15 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
     // thread stays free for the queue).
     tamperForTest(result, task.variables);
     const options = parseOptions(task.options);
-    // The 3MF's model part is expanded in node:zlib's thread pool while the STL is checked here; one
-    // output buffer of the size the zip directory states (one byte more, so zlib ends there).
+    // The 3MF is read and the STL's edges counted on the proof's second thread while the rest of the
+    // STL is checked here; should that thread fail, its work is done here instead (node:zlib inflating
+    // into one output buffer of the size the zip directory states, one byte more so zlib ends there).
     const chunk = (size?: number) => (size ? { chunkSize: Math.max(64, size + 1) } : {});
     const proof = await provePlateAsync({
       stl: result.stl,
       threeMf: result.threeMf,
+      readThreeMf: readThreeMfOffThread,
+      countEdges: countEdgesOffThread,
       inflateRaw: (d, size) => inflateRawSync(d, chunk(size)),
       inflateRawAsync: (d, size) =>
         new Promise((resolve, reject) => inflateRaw(d, chunk(size), (err, out) => (err ? reject(err) : resolve(out)))),

@@ -23,7 +23,7 @@ import {
   type InflateRawAsync,
   type ThreeMfRead,
 } from "./three-mf";
-import { connectedBodies, edgeReport, hollows, type Body } from "./topology";
+import { connectedBodies, edgeReport, hollows, type Body, type EdgeReport } from "./topology";
 
 /**
  * The proof of a plate: an independent reading of the exported STL and 3MF bytes (no geometry kernel,
@@ -63,6 +63,14 @@ export type ProofInput = {
   inflateRaw?: InflateRaw;
   /** For provePlateAsync: a decoder off this thread for the 3MF's model part (node:zlib's inflateRaw). */
   inflateRawAsync?: InflateRawAsync;
+  /**
+   * For provePlateAsync: the whole 3MF read (readThreeMfBodies) on another thread, e.g. the worker's
+   * reader thread (lib/jobs/three-mf-reader.ts), so the STL and the 3MF are checked at once.
+   * Preferred to `inflateRawAsync`; rejects with ThreeMfProofError where the package does not read.
+   */
+  readThreeMf?: (bytes: Uint8Array) => Promise<ThreeMfRead>;
+  /** For provePlateAsync: the welded STL's edges counted (edgeReport) on another thread, while the other STL rules run here. */
+  countEdges?: (mesh: WeldedStl) => Promise<EdgeReport>;
   /** The layout's pieces, to name a piece by its number in a message. */
   labels?: { number: number; bounds: Box2 }[];
   /**
@@ -99,29 +107,41 @@ type Piece = {
 
 /** The proof, the 3MF read on this thread. */
 export function provePlate(input: ProofInput): Proof {
-  const steps = proofSteps(input, performance.now());
+  const steps = proofSteps(input, performance.now(), () => {});
   let r = steps.next();
-  while (!r.done) r = steps.next(readNow(input));
+  while (!r.done) r = steps.next(r.value.ask === "edges" ? edgeReport(r.value.mesh) : readNow(input));
   return r.value;
 }
 
 /**
- * The same proof, the 3MF's model part expanded by `input.inflateRawAsync` (node:zlib's thread pool
- * in the worker) while the STL is checked on this thread; without it, as provePlate.
+ * The same proof, the 3MF read while the STL is checked on this thread: wholly on another thread by
+ * `input.readThreeMf` (the worker's reader thread), or its model part expanded by
+ * `input.inflateRawAsync` (node:zlib's thread pool) and read here after the STL; without either, as
+ * provePlate.
  */
 export async function provePlateAsync(input: ProofInput): Promise<Proof> {
   const t0 = performance.now();
-  const pending = input.inflateRawAsync
-    ? readThreeMfBodiesAsync(input.threeMf, input.inflateRawAsync, input.inflateRaw).catch((err: unknown) => {
-        if (err instanceof ThreeMfProofError) return err;
-        throw err;
-      })
-    : null;
+  // A second thread that fails (it died, it could not start) costs time, not the proof: its work is
+  // then done here. Only the 3MF's own faults (ThreeMfProofError) come back as the 3MF's answer.
+  const pending: Promise<ThreeMfRead | ThreeMfProofError> | null = input.readThreeMf
+    ? input.readThreeMf(input.threeMf).catch((err: unknown) => (err instanceof ThreeMfProofError ? err : readNow(input)))
+    : input.inflateRawAsync
+      ? readThreeMfBodiesAsync(input.threeMf, input.inflateRawAsync, input.inflateRaw).catch((err: unknown) => {
+          if (err instanceof ThreeMfProofError) return err;
+          throw err;
+        })
+      : null;
   // Not asked for when the STL does not read: no rejection goes unheard.
   pending?.catch(() => {});
-  const steps = proofSteps(input, t0);
+  let edges: Promise<EdgeReport> | null = null;
+  const steps = proofSteps(input, t0, (m) => {
+    edges = input.countEdges?.(m).catch(() => edgeReport(m)) ?? null;
+  });
   let r = steps.next();
-  while (!r.done) r = steps.next(pending ? await pending : readNow(input));
+  while (!r.done) {
+    const a = r.value;
+    r = steps.next(a.ask === "edges" ? ((await edges) ?? edgeReport(a.mesh)) : pending ? await pending : readNow(input));
+  }
   return r.value;
 }
 
@@ -134,19 +154,34 @@ function readNow(input: ProofInput): ThreeMfRead | ThreeMfProofError {
   }
 }
 
-/** The rules in order; the 3MF's reading is asked for (yield) when its rule comes. */
-function* proofSteps(input: ProofInput, t0: number): Generator<void, Proof, ThreeMfRead | ThreeMfProofError> {
+/**
+ * What the rules ask their driver for: the edge count of the welded STL, started as soon as the STL
+ * is welded (`start`) and wanted when the rest of the STL's rules are done (`edges`); the 3MF's
+ * reading when its rule comes (`3mf`).
+ */
+type Ask = { ask: "edges"; mesh: WeldedStl } | { ask: "3mf" };
+type Answer = EdgeReport | ThreeMfRead | ThreeMfProofError | undefined;
+
+/** The rules in order; the edge count and the 3MF's reading are asked for (yield) when they are wanted. */
+function* proofSteps(input: ProofInput, t0: number, startEdges: (m: WeldedStl) => void): Generator<Ask, Proof, Answer> {
+  let welded: WeldedStl | null = null;
   // The STL's rules in a plain function: V8 optimizes a long loop in the middle of a plain function
   // (on-stack replacement), not one in a generator's body.
-  const s = stlRules(input, t0);
+  const s = stlRules(input, t0, (m) => {
+    welded = m;
+    startEdges(m);
+  });
   if ("proof" in s) return s.proof;
-  const read = yield;
+  edgeRules((yield { ask: "edges", mesh: welded! }) as EdgeReport, s.rules, s.figures);
+  s.lap("edges");
+  const read = (yield { ask: "3mf" }) as ThreeMfRead | ThreeMfProofError;
   return threeMfRule(read, s.bodies, s.rules, s.done);
 }
 
-type StlDone = { proof: Proof } | { bodies: Body[]; rules: ProofRule[]; done: () => Proof };
+type StlDone =
+  { proof: Proof } | { bodies: Body[]; rules: ProofRule[]; figures: ProofFigures; lap: (name: string) => void; done: () => Proof };
 
-function stlRules(input: ProofInput, t0: number): StlDone {
+function stlRules(input: ProofInput, t0: number, startEdges: (m: WeldedStl) => void): StlDone {
   const timings: Record<string, number> = {};
   let tl = t0;
   const lap = (name: string) => {
@@ -189,41 +224,9 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   });
 
   lap("read");
-  // 1. Closed and oriented: every undirected edge in exactly two triangles, each directed edge once.
-  const e = edgeReport(m);
-  figures.openEdges = e.open + e.nonManifold;
-  const where = e.firstBad ? ` (first at ${at(e.firstBad.at[0], e.firstBad.at[1])}, z ${fmt(e.firstBad.at[2])} mm)` : "";
-  rules.push(
-    e.open + e.nonManifold + e.degenerate === 0
-      ? {
-          rule: "closed",
-          pass: true,
-          figure: 0,
-          message: `All ${e.edges.toLocaleString("en-US")} edges are shared by exactly two triangles.`,
-        }
-      : {
-          rule: "closed",
-          pass: false,
-          figure: e.open + e.nonManifold,
-          message:
-            `The STL is not closed: ${e.open} open edges, ${e.nonManifold} edges in more than two ` +
-            `triangles${e.degenerate ? `, ${e.degenerate} triangles with a repeated corner` : ""}${where}.`,
-        },
-  );
-  rules.push(
-    e.misoriented === 0
-      ? { rule: "oriented", pass: true, figure: 0, message: "Every edge is used once in each direction." }
-      : {
-          rule: "oriented",
-          pass: false,
-          figure: e.misoriented,
-          message:
-            `${e.misoriented} edges run the same way in both their triangles: a triangle is turned ` +
-            `over${e.firstBad?.kind === "misoriented" ? where : ""}.`,
-        },
-  );
-
-  lap("edges");
+  // 1. Closed and oriented (edgeRules, below), counted while the rest goes on: on another thread
+  // where the caller has one, and put in its place among the rules when it is in.
+  startEdges(m);
   // 2. Bodies: positive volume each; the slab is the one body standing on z = 0; the rest are the pieces.
   const facing = new Int8Array(m.triangles);
   const bodies = connectedBodies(m, facing);
@@ -302,7 +305,7 @@ function stlRules(input: ProofInput, t0: number): StlDone {
   }
   if (!slab) {
     rules.push({ rule: "on_slab", pass: false, message: "There is no slab for the pieces to stand on." });
-    return { bodies, rules, done };
+    return { bodies, rules, figures, lap, done };
   }
 
   lap("bodies");
@@ -538,7 +541,45 @@ function stlRules(input: ProofInput, t0: number): StlDone {
     if (text !== asked) figures.qrText = text;
   }
   lap("qr");
-  return { bodies, rules, done };
+  return { bodies, rules, figures, lap, done };
+}
+
+/** 1. Closed and oriented: every undirected edge in exactly two triangles, each directed edge once. Second among the rules. */
+function edgeRules(e: EdgeReport, rules: ProofRule[], figures: ProofFigures): void {
+  const found: ProofRule[] = [];
+  figures.openEdges = e.open + e.nonManifold;
+  const where = e.firstBad ? ` (first at ${at(e.firstBad.at[0], e.firstBad.at[1])}, z ${fmt(e.firstBad.at[2])} mm)` : "";
+  found.push(
+    e.open + e.nonManifold + e.degenerate === 0
+      ? {
+          rule: "closed",
+          pass: true,
+          figure: 0,
+          message: `All ${e.edges.toLocaleString("en-US")} edges are shared by exactly two triangles.`,
+        }
+      : {
+          rule: "closed",
+          pass: false,
+          figure: e.open + e.nonManifold,
+          message:
+            `The STL is not closed: ${e.open} open edges, ${e.nonManifold} edges in more than two ` +
+            `triangles${e.degenerate ? `, ${e.degenerate} triangles with a repeated corner` : ""}${where}.`,
+        },
+  );
+  found.push(
+    e.misoriented === 0
+      ? { rule: "oriented", pass: true, figure: 0, message: "Every edge is used once in each direction." }
+      : {
+          rule: "oriented",
+          pass: false,
+          figure: e.misoriented,
+          message:
+            `${e.misoriented} edges run the same way in both their triangles: a triangle is turned ` +
+            `over${e.firstBad?.kind === "misoriented" ? where : ""}.`,
+        },
+  );
+
+  rules.splice(1, 0, ...found);
 }
 
 /** 8. The 3MF read back holds the same bodies, shell for shell: count, triangles, bounds within 1e-3 mm, volume. */
