@@ -16,7 +16,7 @@ export default async function CheckEmailPage({ searchParams }: { searchParams: P
           : "We sent you a sign-in link. It works once, for 15 minutes. You can close this page."}
       </p>
       <p className="mt-4 text-sm">
-        <Link href="/sign-in" className="text-accent hover:underline">
+        <Link href="/sign-in" className="text-accent underline">
           Back to sign in
         </Link>
       </p>

@@ -19,7 +19,7 @@ export default async function SignInPage({ searchParams }: { searchParams: Promi
             `/sign-up${next ? `?next=${encodeURIComponent(next)}` : ""}` +
             `${email ? `${next ? "&" : "?"}email=${encodeURIComponent(email)}` : ""}`
           }
-          className="text-accent hover:underline"
+          className="text-accent underline"
         >
           Create an account
         </Link>

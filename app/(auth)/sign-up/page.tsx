@@ -13,7 +13,7 @@ export default async function SignUpPage({ searchParams }: { searchParams: Promi
       <p className="mt-2 text-sm text-muted">
         {invited ? "After this you will be taken back to your invitation." : "You get a workshop of your own to lay out kits in."} Already
         have an account?{" "}
-        <Link href={`/sign-in${next ? `?next=${encodeURIComponent(next)}` : ""}`} className="text-accent hover:underline">
+        <Link href={`/sign-in${next ? `?next=${encodeURIComponent(next)}` : ""}`} className="text-accent underline">
           Sign in
         </Link>
         .

@@ -62,11 +62,11 @@ function verify(raw, header, secret) {
       <div className="space-y-6 text-sm">
         <p>
           Keys are made by owners under{" "}
-          <Link className="text-accent hover:underline" href="/settings/api-keys">
+          <Link className="text-accent underline" href="/settings/api-keys">
             Settings → API keys
           </Link>
           . The full reference, generated from the same schemas the server checks, is at{" "}
-          <a className="font-mono text-accent hover:underline" href="/api/v1/openapi.json">
+          <a className="font-mono text-accent underline" href="/api/v1/openapi.json">
             /api/v1/openapi.json
           </a>{" "}
           (OpenAPI 3.1).

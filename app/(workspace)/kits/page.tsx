@@ -32,7 +32,7 @@ export default async function KitsPage() {
                   {k.name}
                 </Link>
                 {k.description ? <span className="block text-xs text-muted">{k.description}</span> : null}
-                <Link href={`/kits/${k.id}/slab`} className="text-xs text-accent hover:underline">
+                <Link href={`/kits/${k.id}/slab`} className="text-xs text-accent underline">
                   Slab editor →
                 </Link>
               </td>

@@ -18,7 +18,7 @@ export function SignInForm({ next, email }: { next?: string; email?: string }) {
           <Submit pending={pw.pending} pendingText="Signing in…">
             Sign in
           </Submit>
-          <Link href="/reset-password" className="text-sm text-accent hover:underline">
+          <Link href="/reset-password" className="text-sm text-accent underline">
             Forgot your password?
           </Link>
         </div>

@@ -32,7 +32,7 @@ export default async function FinishSignUpPage({ params }: { params: Promise<{ t
             {SIGN_UP_LINK_MESSAGES[pending.state]}
           </p>
           <p className="mt-4 text-sm">
-            <Link href={pending.state === "used" ? "/sign-in" : "/sign-up"} className="text-accent hover:underline">
+            <Link href={pending.state === "used" ? "/sign-in" : "/sign-up"} className="text-accent underline">
               {pending.state === "used" ? "Sign in" : "Sign up again"}
             </Link>
           </p>
