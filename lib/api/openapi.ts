@@ -4,7 +4,7 @@ import { apiKeyScopes } from "@/db/schema/workspaces";
 import { slabOptionsSchema } from "@/lib/geometry/options";
 import { APP_VERSION } from "@/lib/version";
 import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, IMPORT_FORMAT_IDS, IMPORT_FORMATS } from "@/lib/geometry/formats";
-import { formatSchema, quantitySchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
+import { formatSchema, quantitySchema, referenceSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
 /** A plate file in each export format, by its media type. */
 const fileContent = () =>
@@ -64,6 +64,7 @@ export const plateSchema = z.object({
     createdAt: z.string(),
     finishedAt: z.string().nullable(),
     title: z.string().nullable(),
+    reference: z.string().nullable().describe("The order system's reference sent with the plate (null when none was sent)."),
   }),
   pieces: z.array(z.record(z.string(), z.unknown())),
   layout: z.record(z.string(), z.unknown()).nullable(),
@@ -124,6 +125,13 @@ const plateForm = z.object({
     .string()
     .optional()
     .describe("A version number of the template, to make a plate with an earlier version; the newest by default."),
+  reference: referenceSchema
+    .optional()
+    .describe(
+      "Your own reference for the order, e.g. ORD-1042 (at most 80 characters, no control characters; blank is none): kept on the " +
+        "plate, shown wherever it is named (the floor, the plate map, the 3MF's Title), found by the floor's search, and kept by its " +
+        "reprints. A longer one is a 422 invalid_reference.",
+    ),
 });
 
 export const templateListSchema = z.object({
