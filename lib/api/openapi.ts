@@ -3,6 +3,7 @@ import { templateVariableSchema } from "@/lib/geometry/template";
 import { apiKeyScopes } from "@/db/schema/workspaces";
 import { slabOptionsSchema } from "@/lib/geometry/options";
 import { APP_VERSION } from "@/lib/version";
+import { PAPER_IDS } from "@/lib/floor/sheet-layout";
 import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, IMPORT_FORMAT_IDS, IMPORT_FORMATS } from "@/lib/geometry/formats";
 import { formatSchema, quantitySchema, referenceSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
@@ -293,11 +294,22 @@ export function openApiDocument() {
       "/api/v1/plates/{id}/map.pdf": {
         get: {
           operationId: "getPlateMap",
-          summary: "The plate map sheet as PDF: top view to scale, piece table, QR code to the plate's inspection page (scope plates:read)",
-          parameters: [idParam("id"), { name: "paper", in: "query", required: false, schema: { type: "string", enum: ["a4", "letter"] } }],
+          summary: "The plate map sheet as PDF: top view at 1:1, piece table, QR code to the plate's inspection page (scope plates:read)",
+          parameters: [
+            idParam("id"),
+            {
+              name: "paper",
+              in: "query",
+              required: false,
+              description: "a4 by default",
+              schema: { type: "string", enum: PAPER_IDS },
+            },
+          ],
           responses: {
             "200": {
-              description: "One page",
+              description:
+                "One page when the slab fits it at 1:1; otherwise a first page with an overview at a stated scale, then the slab at " +
+                "1:1 on pages of its own, tiled with overlap marks and page labels when it is larger than the paper",
               content: { "application/pdf": { schema: { type: "string", contentMediaType: "application/pdf" } } },
             },
             ...errors(400, 401, 403, 404, 409, 429),

@@ -57,10 +57,7 @@ export function FloorNoticeLine() {
   return (
     <div aria-live={notice && !notice.ok ? "assertive" : "polite"} data-testid="floor-notice">
       {notice ? (
-        <p
-          key={notice.at}
-          className={`mb-3 rounded-card border-l-4 bg-surface px-3 py-2 text-sm ${notice.ok ? TONE.ok : TONE.problem}`}
-        >
+        <p key={notice.at} className={`mb-3 rounded-card border-l-4 bg-surface px-3 py-2 text-sm ${notice.ok ? TONE.ok : TONE.problem}`}>
           {notice.ok ? "" : "✕ "}
           {notice.text}
         </p>
