@@ -18,6 +18,7 @@ import {
   ReprintButton,
 } from "../../_components/floor-controls";
 import { plateName } from "@/lib/plates/name";
+import { PAPER_IDS, PAPERS } from "@/lib/floor/sheet-layout";
 import { plural } from "@/lib/plural";
 import { NotFound } from "@/lib/errors";
 
@@ -115,12 +116,11 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
               }}
             />
             <p className="flex flex-wrap gap-3 text-sm">
-              <a className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=a4`}>
-                Plate map (PDF, A4)
-              </a>
-              <a className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=letter`}>
-                Plate map (PDF, Letter)
-              </a>
+              {PAPER_IDS.map((paper) => (
+                <a key={paper} className="text-accent underline" href={`/api/plates/${plate.id}/map.pdf?paper=${paper}`}>
+                  Plate map (PDF, {PAPERS[paper].label})
+                </a>
+              ))}
               <Link className="text-accent underline" href={`/floor/plates/${plate.id}/sheet`}>
                 Printable page
               </Link>
