@@ -70,13 +70,13 @@ export default async function FloorPage({ searchParams }: { searchParams: Promis
             <input
               name="q"
               defaultValue={q}
-              className="field-input mt-0.5 w-64 max-w-full py-1"
+              className="field-input mt-0.5 w-64 max-w-full py-1 text-sm"
               placeholder="order reference, plate number or kit"
             />
           </label>
           <label className="text-sm">
             <span className="block text-xs text-muted">Kit</span>
-            <select name="kit" defaultValue={kit ?? ""} className="field-input mt-0.5 py-1">
+            <select name="kit" defaultValue={kit ?? ""} className="field-input mt-0.5 py-1 text-sm">
               <option value="">every kit</option>
               {choices.kits.map((k) => (
                 <option key={k.id} value={k.id}>
@@ -87,7 +87,7 @@ export default async function FloorPage({ searchParams }: { searchParams: Promis
           </label>
           <label className="text-sm">
             <span className="block text-xs text-muted">Template</span>
-            <select name="template" defaultValue={template ?? ""} className="field-input mt-0.5 py-1">
+            <select name="template" defaultValue={template ?? ""} className="field-input mt-0.5 py-1 text-sm">
               <option value="">every template</option>
               {choices.templates.map((t) => (
                 <option key={t.id} value={t.id}>
@@ -98,7 +98,7 @@ export default async function FloorPage({ searchParams }: { searchParams: Promis
           </label>
           <label className="text-sm">
             <span className="block text-xs text-muted">Sort</span>
-            <select name="sort" defaultValue={sort} className="field-input mt-0.5 py-1">
+            <select name="sort" defaultValue={sort} className="field-input mt-0.5 py-1 text-sm">
               {FLOOR_SORTS.map((s) => (
                 <option key={s} value={s}>
                   {SORT_LABEL[s]}

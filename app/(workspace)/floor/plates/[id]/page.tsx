@@ -62,7 +62,7 @@ export default async function FloorPlatePage({ params }: { params: Promise<{ id:
               ← Floor
             </Link>
           </p>
-          <h1 className="text-2xl">
+          <h1 className="text-xl sm:text-2xl">
             {plateName(plate)} <span className="font-mono text-base text-muted">{plate.id.slice(0, 8)}</span>
           </h1>
           <p className="text-sm text-muted">

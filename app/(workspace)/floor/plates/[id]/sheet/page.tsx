@@ -134,22 +134,25 @@ export default async function SheetPage({
           Scan to inspect
         </div>
       </header>
-      {fits ? (
-        <TopView s={s} win={{ x0: 0, y0: 0, w: W, h: D }} label={`Top view at 1:1, ${W.toFixed(0)} × ${D.toFixed(0)} mm`} />
-      ) : (
-        <svg
-          viewBox={`0 0 ${W} ${D}`}
-          style={{ width: `${W * overview}mm`, height: `${D * overview}mm` }}
-          className="block"
-          role="img"
-          aria-label={`Overview at 1:${(1 / overview).toFixed(2)}`}
-        >
-          <path d={path(s.layout.slab.outline, D)} fill="#efe8dc" stroke="#c9bfae" strokeWidth={0.3 / overview} />
-          {s.pieces.map((p) => (
-            <path key={p.number} d={path(p.outline, D)} fill="#4a4f57" fillOpacity={0.85} />
-          ))}
-        </svg>
-      )}
+      {/* Life size may be wider than a phone: it scrolls there rather than shrinking. */}
+      <div className="max-w-full overflow-x-auto print:overflow-visible">
+        {fits ? (
+          <TopView s={s} win={{ x0: 0, y0: 0, w: W, h: D }} label={`Top view at 1:1, ${W.toFixed(0)} × ${D.toFixed(0)} mm`} />
+        ) : (
+          <svg
+            viewBox={`0 0 ${W} ${D}`}
+            style={{ width: `${W * overview}mm`, height: `${D * overview}mm` }}
+            className="block"
+            role="img"
+            aria-label={`Overview at 1:${(1 / overview).toFixed(2)}`}
+          >
+            <path d={path(s.layout.slab.outline, D)} fill="#efe8dc" stroke="#c9bfae" strokeWidth={0.3 / overview} />
+            {s.pieces.map((p) => (
+              <path key={p.number} d={path(p.outline, D)} fill="#4a4f57" fillOpacity={0.85} />
+            ))}
+          </svg>
+        )}
+      </div>
       <p className="text-xs text-muted" data-testid="sheet-scale">
         {fits
           ? "Scale 1:1 — print at 100 % (turn off “fit to page”)."
@@ -204,7 +207,7 @@ export default async function SheetPage({
             </strong>{" "}
             · Scale 1:1, print at 100 % · {name} · plate {s.id.slice(0, 8)}
           </p>
-          <div className="outline-dashed outline-1 outline-hairline">
+          <div className="max-w-full overflow-x-auto outline-dashed outline-1 outline-hairline print:overflow-visible">
             <TopView s={s} win={t} label={`Top view at 1:1, tile ${i + 1}`} />
           </div>
         </section>
