@@ -9,7 +9,9 @@ import { requestPasswordReset, resetPassword } from "@/lib/accounts/passwords";
 import { pendingSignUpByToken, requestSignUp, SIGN_UP_LINK_MESSAGES } from "@/lib/accounts/sign-up";
 import { signIn } from "@/lib/auth/config";
 import { hit } from "@/lib/auth/rate-limit";
-import { loadSessionUser, setActiveWorkspace } from "@/lib/auth/guards";
+import { loadSessionUser, roleIn, setActiveWorkspace } from "@/lib/auth/guards";
+import type { Role } from "@/db/schema";
+import { HOME } from "@/lib/auth/landing";
 import { clientIp } from "@/lib/auth/request";
 import {
   magicLinkSchema,
@@ -29,7 +31,7 @@ const invalid = (error: z.ZodError): ActionResult<never> => ({
 });
 const wait = (seconds: number) =>
   seconds < 90 ? `${seconds} ${seconds === 1 ? "second" : "seconds"}` : `${Math.ceil(seconds / 60)} minutes`;
-const safeNext = (next: unknown) => (typeof next === "string" && /^\/(?!\/)[\w\-/?=&%.]*$/.test(next) ? next : "/parts");
+const safeNext = (next: unknown) => (typeof next === "string" && /^\/(?!\/)[\w\-/?=&%.]*$/.test(next) ? next : HOME);
 
 export async function signInWithPassword(input: z.input<typeof signInSchema> & { next?: string }): Promise<ActionResult> {
   const parsed = signInSchema.safeParse(input);
@@ -159,17 +161,19 @@ export async function confirmPasswordReset(input: z.input<typeof resetConfirmSch
     if (err instanceof AppError) return { ok: false, code: err.code, message: err.message };
     throw err;
   }
-  await signIn("credentials", { email: parsed.data.email, password: parsed.data.password, redirectTo: "/parts" });
+  await signIn("credentials", { email: parsed.data.email, password: parsed.data.password, redirectTo: HOME });
   return { ok: true, data: undefined };
 }
 
-export async function acceptInvite(input: { token: string }): Promise<ActionResult<{ workspaceId: string }>> {
+export async function acceptInvite(input: { token: string }): Promise<ActionResult<{ workspaceId: string; role: Role }>> {
   const user = await loadSessionUser();
   if (!user) return { ok: false, code: "unauthorized", message: "Sign in first." };
   try {
     const { workspaceId } = await acceptInvitation(user, String(input.token ?? ""));
     await setActiveWorkspace(workspaceId);
-    return { ok: true, data: { workspaceId } };
+    // The role the person now holds there (one who was already a member keeps theirs), for their landing page.
+    const role = (await roleIn(workspaceId, user.id)) ?? "viewer";
+    return { ok: true, data: { workspaceId, role } };
   } catch (err) {
     if (err instanceof AppError) return { ok: false, code: err.code, message: err.message };
     throw err;

@@ -4,6 +4,7 @@ import { redirect } from "next/navigation";
 import { z } from "zod";
 import { signOut } from "@/lib/auth/config";
 import { loadCaller, setActiveWorkspace } from "@/lib/auth/guards";
+import { HOME } from "@/lib/auth/landing";
 
 const switchSchema = z.object({ workspaceId: z.string().uuid() });
 
@@ -15,7 +16,7 @@ export async function switchWorkspace(form: FormData): Promise<void> {
   if (parsed.success && caller.workspaces.some((w) => w.id === parsed.data.workspaceId)) {
     await setActiveWorkspace(parsed.data.workspaceId);
   }
-  redirect("/parts");
+  redirect(HOME);
 }
 
 export async function signOutAction(): Promise<void> {

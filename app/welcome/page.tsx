@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import { redirect } from "next/navigation";
 import { NarrowPage } from "@/app/_components/narrow-page";
 import { callerFor, loadSessionUser } from "@/lib/auth/guards";
+import { HOME } from "@/lib/auth/landing";
 import { WorkspaceForm } from "./_components/workspace-form";
 
 export const metadata: Metadata = { title: "Welcome" };
@@ -10,7 +11,7 @@ export const metadata: Metadata = { title: "Welcome" };
 export default async function WelcomePage() {
   const user = await loadSessionUser();
   if (!user) redirect("/sign-in");
-  if (await callerFor(user)) redirect("/parts");
+  if (await callerFor(user)) redirect(HOME);
   return (
     <NarrowPage>
       <h1 className="text-xl">Welcome, {user.name ?? user.email}</h1>

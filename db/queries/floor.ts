@@ -1,5 +1,5 @@
 import "server-only";
-import { and, asc, desc, eq, ilike, isNotNull, like, or, sql } from "drizzle-orm";
+import { and, asc, desc, eq, ilike, inArray, isNotNull, like, or, sql } from "drizzle-orm";
 import { db } from "@/db";
 import {
   FLOOR_STATES,
@@ -8,6 +8,8 @@ import {
   kits,
   memberships,
   plates,
+  templates,
+  templateVersions,
   users,
   type FloorState,
   type PieceCheck,
@@ -20,16 +22,47 @@ import type { Tx } from "./tx";
 
 const WAITING = new Set<FloorState>(["to_print", "printing", "to_inspect", "reprint_needed"]);
 
+/** Plates per page in each state's list. */
+export const FLOOR_PAGE = 50;
+
+/** How a state's list is sorted: the longest waiting first (the newest first for done), the newest first, or by order reference. */
+export const FLOOR_SORTS = ["waiting", "newest", "reference"] as const;
+export type FloorSort = (typeof FLOOR_SORTS)[number];
+
+export type FloorFilter = {
+  /** The start of a plate's id, or text in its order reference, kit or title. */
+  term?: string;
+  kitId?: string;
+  templateId?: string;
+  sort?: FloorSort;
+  /** The page (from 1) of each state's list. */
+  pages?: Partial<Record<FloorState, number>>;
+};
+
 /**
- * The floor by state: how many plates are in each, and the first 50 of each — the oldest first where
- * plates wait their turn (to print, printing, to inspect, reprint needed), the newest first otherwise.
- * `term` finds a plate by the start of its id, or a kit or title containing it.
+ * The floor by state: how many plates are in each, and one page of each (FLOOR_PAGE plates), sorted as
+ * asked; filtered by a search term, a kit or a template (any of its versions), all in the query.
  */
-export async function floorQueue(actor: WorkspaceActor, term?: string) {
+export async function floorQueue(actor: WorkspaceActor, filter: FloorFilter = {}) {
   const ws = actor.workspaceId;
-  const match = term
-    ? or(like(plates.id, `${term.toLowerCase()}%`), ilike(kits.name, `%${term}%`), ilike(plates.title, `%${term}%`))
-    : undefined;
+  const { term, kitId, templateId, sort = "waiting", pages = {} } = filter;
+  const match = and(
+    term
+      ? or(
+          like(plates.id, `${term.toLowerCase()}%`),
+          ilike(plates.reference, `%${term}%`),
+          ilike(kits.name, `%${term}%`),
+          ilike(plates.title, `%${term}%`),
+        )
+      : undefined,
+    kitId ? eq(plates.kitId, kitId) : undefined,
+    templateId
+      ? inArray(
+          plates.templateVersionId,
+          db().select({ id: templateVersions.id }).from(templateVersions).where(eq(templateVersions.templateId, templateId)),
+        )
+      : undefined,
+  );
   const last = db()
     .selectDistinctOn([floorEvents.plateId], { plateId: floorEvents.plateId, at: floorEvents.at, by: users.name, byEmail: users.email })
     .from(floorEvents)
@@ -43,14 +76,26 @@ export async function floorQueue(actor: WorkspaceActor, term?: string) {
     .leftJoin(kits, eq(kits.id, plates.kitId))
     .where(and(eq(plates.workspaceId, ws), isNotNull(plates.floorState), match))
     .groupBy(plates.floorState);
+  const byState = Object.fromEntries(counts.map((c) => [c.state!, c.n])) as Partial<Record<FloorState, number>>;
   const lists = await Promise.all(
     FLOOR_STATES.map(async (state) => {
+      const total = byState[state] ?? 0;
+      // A page past the end shows the last one.
+      const page = Math.min(Math.max(1, Math.floor(pages[state] ?? 1)), Math.max(1, Math.ceil(total / FLOOR_PAGE)));
+      if (!total) return [state, { page, rows: [] }] as const;
       const since = sql`coalesce(${last.at}, ${plates.createdAt})`;
+      const order =
+        sort === "reference"
+          ? [sql`${plates.reference} asc nulls last`, desc(plates.createdAt), asc(plates.id)]
+          : sort === "newest"
+            ? [desc(plates.createdAt), asc(plates.id)]
+            : [WAITING.has(state) ? asc(since) : desc(since), asc(plates.id)];
       const rows = await db()
         .select({
           id: plates.id,
           floorState: plates.floorState,
           title: plates.title,
+          reference: plates.reference,
           kitName: kits.name,
           pieceCount: plates.pieceCount,
           createdAt: plates.createdAt,
@@ -64,15 +109,37 @@ export async function floorQueue(actor: WorkspaceActor, term?: string) {
         .leftJoin(kits, eq(kits.id, plates.kitId))
         .leftJoin(last, eq(last.plateId, plates.id))
         .where(and(eq(plates.workspaceId, ws), eq(plates.floorState, state), match))
-        .orderBy(WAITING.has(state) ? asc(since) : desc(since))
-        .limit(50);
-      return [state, rows] as const;
+        .orderBy(...order)
+        .limit(FLOOR_PAGE)
+        .offset((page - 1) * FLOOR_PAGE);
+      return [state, { page, rows }] as const;
     }),
   );
   return {
-    counts: Object.fromEntries(counts.map((c) => [c.state!, c.n])) as Partial<Record<FloorState, number>>,
+    counts: byState,
     lists: Object.fromEntries(lists) as Record<FloorState, (typeof lists)[number][1]>,
   };
+}
+
+/** The kits and templates that plates on the floor were made with, for the floor's filters. */
+export async function floorFilterChoices(actor: WorkspaceActor) {
+  const ws = actor.workspaceId;
+  const [kitRows, templateRows] = await Promise.all([
+    db()
+      .selectDistinct({ id: kits.id, name: kits.name })
+      .from(plates)
+      .innerJoin(kits, eq(kits.id, plates.kitId))
+      .where(and(eq(plates.workspaceId, ws), isNotNull(plates.floorState)))
+      .orderBy(asc(kits.name)),
+    db()
+      .selectDistinct({ id: templates.id, name: templates.name })
+      .from(plates)
+      .innerJoin(templateVersions, eq(templateVersions.id, plates.templateVersionId))
+      .innerJoin(templates, eq(templates.id, templateVersions.templateId))
+      .where(and(eq(plates.workspaceId, ws), isNotNull(plates.floorState)))
+      .orderBy(asc(templates.name)),
+  ]);
+  return { kits: kitRows, templates: templateRows };
 }
 
 /** A plate's floor history: its moves and inspections (newest first), its reprints, and the plate it reprints. */

@@ -107,6 +107,8 @@ export const plates = pgTable(
     input: jsonb("input").$type<PlateInput>(),
     callbackUrl: text("callback_url"),
     title: text("title"),
+    /** The order system's own reference for the plate (the API's `reference`), shown wherever the plate is named. */
+    reference: text("reference"),
     /** Where the plate is on the print floor (see floor.ts); set to to_print when its files are ready. */
     floorState: text("floor_state").$type<"to_print" | "printing" | "print_failed" | "to_inspect" | "reprint_needed" | "done">(),
     /** A reprint names the plate whose missing or defective pieces it holds. */
@@ -118,6 +120,7 @@ export const plates = pgTable(
   (t) => [
     index("plates_workspace_created_idx").on(t.workspaceId, t.createdAt),
     index("plates_kit_created_idx").on(t.kitId, t.createdAt),
+    index("plates_workspace_reference_idx").on(t.workspaceId, t.reference),
     uniqueIndex("plates_job_key").on(t.jobId),
   ],
 );

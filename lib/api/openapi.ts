@@ -3,8 +3,9 @@ import { templateVariableSchema } from "@/lib/geometry/template";
 import { apiKeyScopes } from "@/db/schema/workspaces";
 import { slabOptionsSchema } from "@/lib/geometry/options";
 import { APP_VERSION } from "@/lib/version";
+import { PAPER_IDS } from "@/lib/floor/sheet-layout";
 import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, IMPORT_FORMAT_IDS, IMPORT_FORMATS } from "@/lib/geometry/formats";
-import { formatSchema, quantitySchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
+import { formatSchema, quantitySchema, referenceSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
 /** A plate file in each export format, by its media type. */
 const fileContent = () =>
@@ -64,6 +65,7 @@ export const plateSchema = z.object({
     createdAt: z.string(),
     finishedAt: z.string().nullable(),
     title: z.string().nullable(),
+    reference: z.string().nullable().describe("The order system's reference sent with the plate (null when none was sent)."),
   }),
   pieces: z.array(z.record(z.string(), z.unknown())),
   layout: z.record(z.string(), z.unknown()).nullable(),
@@ -124,6 +126,13 @@ const plateForm = z.object({
     .string()
     .optional()
     .describe("A version number of the template, to make a plate with an earlier version; the newest by default."),
+  reference: referenceSchema
+    .optional()
+    .describe(
+      "Your own reference for the order, e.g. ORD-1042 (at most 80 characters, no control characters; blank is none): kept on the " +
+        "plate, shown wherever it is named (the floor, the plate map, the 3MF's Title), found by the floor's search, and kept by its " +
+        "reprints. A longer one is a 422 invalid_reference.",
+    ),
 });
 
 export const templateListSchema = z.object({
@@ -285,11 +294,22 @@ export function openApiDocument() {
       "/api/v1/plates/{id}/map.pdf": {
         get: {
           operationId: "getPlateMap",
-          summary: "The plate map sheet as PDF: top view to scale, piece table, QR code to the plate's inspection page (scope plates:read)",
-          parameters: [idParam("id"), { name: "paper", in: "query", required: false, schema: { type: "string", enum: ["a4", "letter"] } }],
+          summary: "The plate map sheet as PDF: top view at 1:1, piece table, QR code to the plate's inspection page (scope plates:read)",
+          parameters: [
+            idParam("id"),
+            {
+              name: "paper",
+              in: "query",
+              required: false,
+              description: "a4 by default",
+              schema: { type: "string", enum: PAPER_IDS },
+            },
+          ],
           responses: {
             "200": {
-              description: "One page",
+              description:
+                "One page when the slab fits it at 1:1; otherwise a first page with an overview at a stated scale, then the slab at " +
+                "1:1 on pages of its own, tiled with overlap marks and page labels when it is larger than the paper",
               content: { "application/pdf": { schema: { type: "string", contentMediaType: "application/pdf" } } },
             },
             ...errors(400, 401, 403, 404, 409, 429),

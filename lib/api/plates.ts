@@ -8,7 +8,7 @@ import { EXPORT_FORMAT_IDS, EXPORT_FORMATS, type ExportFormatId } from "@/lib/ge
 import { plateFileOf } from "@/db/queries/plates";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import { blobStore } from "@/lib/storage";
-import { formatSchema, quantitySchema, unitSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
+import { formatSchema, quantitySchema, referenceSchema, unitSchema, unitsSchema, variablesSchema } from "@/lib/validation/plates";
 
 /** The plate API's HTTP side: the multipart form read into a typed order, and the views it answers with. */
 function json<T>(form: StreamedForm, schema: z.ZodType<T>, field: string): T | undefined {
@@ -77,12 +77,17 @@ export function orderFromForm(form: StreamedForm, queryFormat: string | null): P
   const fmt = formatSchema.safeParse(form.get("format") ?? queryFormat ?? "3mf");
   if (!fmt.success) throw new BadRequest("bad_request", "format must be stl, 3mf or json.");
   const callbackUrl = form.get("callbackUrl") || undefined;
+  if (form.fileFields.has("reference")) throw new BadRequest("bad_request", "reference must be a text field.");
+  const ref = referenceSchema.safeParse(form.get("reference") ?? "");
+  if (!ref.success)
+    throw new Invalid("invalid_reference", ref.error.issues[0]?.message ?? "reference is not valid.", { field: "reference" });
   const order: PlateOrder = {
     options,
     variables,
     format: fmt.data,
     ...(templateRef ? { template: { id: templateRef, ...(templateVersion ? { version: templateVersion } : {}) } } : {}),
     ...(callbackUrl ? { callbackUrl } : {}),
+    ...(ref.data ? { reference: ref.data } : {}),
   };
   if (kitId) return { ...order, kitId };
   const quantity = json(form, quantitySchema, "quantity");
@@ -127,6 +132,7 @@ export function plateView(p: Plate) {
       createdAt: p.createdAt,
       finishedAt: p.finishedAt,
       title: p.title,
+      reference: p.reference,
     },
     pieces: pieces ?? [],
     layout: layout ?? null,

@@ -6,6 +6,7 @@ import {
   firstInspectionsByWeek,
   floorHistory,
   floorQueue as queueRows,
+  type FloorFilter,
   insertInspection,
   lastInspection,
   problemRecipients,
@@ -18,6 +19,8 @@ import { enqueueCallback } from "@/lib/jobs/queue";
 import { appUrl, sendMail } from "@/lib/mail";
 import { createPlate, specOf } from "@/lib/plates/create";
 import { Conflict, Invalid } from "@/lib/errors";
+import { plateName } from "@/lib/plates/name";
+import { plural } from "@/lib/plural";
 
 /**
  * The print floor: plates move through to print → printing → to inspect → done (or print failed);
@@ -47,9 +50,9 @@ export const nextMoves = (s: FloorState) => MOVES[s];
 
 export const piecesOf = (p: Plate) => (p.stats as { pieces?: PlacedPiece[] } | null)?.pieces ?? [];
 
-/** The floor by state (counts, and the first 50 plates of each); `q` finds a plate by id, kit or title. */
-export async function floorQueue(actor: WorkspaceActor, q?: string) {
-  return queueRows(actor, q?.trim() || undefined);
+/** The floor by state (counts, and one page of each); `term` finds a plate by id, order reference, kit or title. */
+export async function floorQueue(actor: WorkspaceActor, filter: FloorFilter = {}) {
+  return queueRows(actor, { ...filter, term: filter.term?.trim() || undefined });
 }
 
 export async function plateFloor(actor: WorkspaceActor, id: string) {
@@ -124,9 +127,9 @@ async function notifyProblem(p: Plate, results: PieceCheck[]) {
     await sendMail({
       to: email,
       workspaceId: p.workspaceId,
-      subject: `Plate ${p.title ?? p.id.slice(0, 8)}: ${bad.length} piece${bad.length > 1 ? "s" : ""} to reprint`,
+      subject: `Plate ${plateName(p)}: ${plural(bad.length, "piece")} to reprint`,
       text:
-        `The inspection of plate ${p.title ?? ""} (${p.id.slice(0, 8)}) ` +
+        `The inspection of plate ${plateName(p)} (${p.id.slice(0, 8)}) ` +
         `found:\n\n${list.map((l) => `• ${l}`).join("\n")}\n\nMake the reprint from the plate's page: ${url}\n\n— Slabwright`,
     });
   }
@@ -169,7 +172,7 @@ export async function makeReprint(actor: WorkspaceActor, id: string): Promise<Pl
       p.id,
       p.floorState,
       p.floorState ?? "reprint_needed",
-      `reprint ${row.id.slice(0, 8)} made (${wanted.length} piece${wanted.length > 1 ? "s" : ""})`,
+      `reprint ${row.id.slice(0, 8)} made (${plural(wanted.length, "piece")})`,
     ),
   );
   return row;
@@ -186,4 +189,4 @@ export async function firstPassYield(actor: WorkspaceActor, kitId?: string) {
   return { inspected, passed, yield: inspected ? passed / inspected : null, weeks: rows };
 }
 
-export { inspectionRows, kitsWithInspections } from "@/db/queries/floor";
+export { FLOOR_PAGE, FLOOR_SORTS, floorFilterChoices, inspectionRows, kitsWithInspections, type FloorSort } from "@/db/queries/floor";

@@ -6,6 +6,8 @@ import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 import type { Estimates } from "@/lib/geometry/estimates";
 import { appUrl } from "@/lib/mail";
 import { PAPERS, plateMapPdf, type Paper, type SheetPlate } from "./sheet";
+import { PAPER_IDS } from "./sheet-layout";
+import { plateName } from "@/lib/plates/name";
 import { BadRequest, Conflict } from "@/lib/errors";
 
 /** What the sheet needs of a plate, with its template's name and version. */
@@ -18,6 +20,7 @@ export async function sheetPlate(actor: WorkspaceActor, p: Plate): Promise<Sheet
   return {
     id: p.id,
     title: p.title,
+    reference: p.reference,
     createdAt: p.createdAt,
     options: p.options,
     variables: p.variables,
@@ -36,10 +39,10 @@ export const platePageUrl = (id: string) => appUrl(`/floor/plates/${id}`);
 
 export async function sheetResponse(req: Request, actor: WorkspaceActor, p: Plate): Promise<Response> {
   const paper = (new URL(req.url).searchParams.get("paper") ?? "a4").toLowerCase();
-  if (!(paper in PAPERS)) throw new BadRequest("bad_request", "paper must be a4 or letter.");
+  if (!(paper in PAPERS)) throw new BadRequest("bad_request", `paper must be one of ${PAPER_IDS.join(", ")}.`);
   const pdf = await plateMapPdf(await sheetPlate(actor, p), platePageUrl(p.id), paper as Paper);
   const stem =
-    (p.title ?? "plate")
+    plateName(p)
       .toLowerCase()
       .replace(/[^a-z0-9]+/g, "-")
       .replace(/^-|-$/g, "")

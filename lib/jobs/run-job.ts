@@ -6,6 +6,7 @@ import { systemActor } from "@/lib/auth/actor";
 import { blobStore } from "@/lib/storage";
 import type { BuildOutcome, BuildTask } from "./build-thread";
 import { enqueueCallback, PLATE_CHANNEL } from "./queue";
+import { plateName } from "@/lib/plates/name";
 
 const errorFindings = (findings: unknown[]) => (findings as { severity: string }[]).filter((f) => f.severity === "error");
 
@@ -26,7 +27,8 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     parts: plate.input.parts,
     options: plate.options,
     variables: plate.variables,
-    title: plate.title ?? "Slabwright plate",
+    // The 3MF's Title: the plate as people name it, the order reference first.
+    title: plateName(plate),
   };
   const outcome = (await pool.run(task)) as BuildOutcome;
   if (!outcome.ok) {

@@ -17,6 +17,8 @@ export type NewPlate = {
   variables: Record<string, string>;
   input: PlateInput;
   title: string | null;
+  /** The order system's reference (API plates; a reprint keeps its original's). */
+  reference: string | null;
   pieceCount: number;
   callbackUrl: string | null;
 };
@@ -90,6 +92,7 @@ export function specOf(p: Plate): NewPlate {
     variables: p.variables as Record<string, string>,
     input: p.input,
     title: p.title,
+    reference: p.reference,
     pieceCount: p.pieceCount,
     callbackUrl: null,
   };

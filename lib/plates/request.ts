@@ -14,6 +14,7 @@ import { callbackProblem } from "@/lib/jobs/webhook";
 import { versionForPlate } from "@/lib/templates/service";
 import type { formatSchema } from "@/lib/validation/plates";
 import type { NewPlate } from "./create";
+import { titleFromParts } from "./name";
 
 /** A part file an order brought, already streamed into the blob store. */
 export type OrderFile = { name: string; key: string; size: number; head: Uint8Array; quantity: number; unit?: ApiUnit };
@@ -30,6 +31,8 @@ export type PlateOrder = {
   variables: Record<string, string>;
   format: z.infer<typeof formatSchema>;
   callbackUrl?: string;
+  /** The order system's own reference, kept on the plate. */
+  reference?: string;
 };
 
 /** An order checked and resolved against the workspace: what the plate is made of, and how it is answered. */
@@ -69,7 +72,8 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
   }
 
   const input: PlateInput = { parts: [] };
-  let title = "Slabwright plate";
+  // Named for its kit, or for the part files it holds ("gear, cube"), never a bare product name.
+  let title = titleFromParts((order.files ?? []).map((f) => f.name));
   if (order.kitId) {
     const { kit, lines } = await kitForPlate(actor, order.kitId);
     input.kitId = kit.id;
@@ -122,6 +126,7 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
     template: order.template?.id ?? null,
     templateVersion: order.template?.version ?? null,
     variables: order.variables,
+    reference: order.reference ?? null,
   };
   return {
     spec: {
@@ -131,6 +136,7 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
       variables,
       input,
       title,
+      reference: order.reference ?? null,
       pieceCount: input.parts.reduce((s, p) => s + p.quantity, 0) * parsed.data.layout.copies,
       callbackUrl: order.callbackUrl ?? null,
     },

@@ -7,6 +7,16 @@ export const formatSchema = z.enum([...EXPORT_FORMAT_IDS, "json"]);
 export const variablesSchema = z.record(z.string().regex(/^[a-z][a-z0-9_]*$/i), z.string().max(500));
 export const quantitySchema = z.array(z.number().int().min(1).max(500));
 
+/**
+ * An order system's own reference for a plate ("ORD-1042"): up to 80 characters, no control characters;
+ * blank is none. Shown wherever the plate is named and searchable on the floor.
+ */
+export const referenceSchema = z
+  .string()
+  .trim()
+  .max(80, "reference must be at most 80 characters.")
+  .regex(/^[^\p{Cc}]*$/u, "reference must not hold control characters.");
+
 /** A part's length unit in the plate API (STL and OBJ carry none; a 3MF's own is overridden). */
 export const unitSchema = z.enum(["mm", "cm", "m", "in"]);
 /** `units`: one unit for every part file, or a JSON array of them in part order (like `quantity`). */

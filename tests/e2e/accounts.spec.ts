@@ -6,13 +6,14 @@ type Creds = { users: { email: string; password: string; role: string }[] };
 const creds = (): Creds => JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"));
 const user = (role: string) => creds().users.find((u) => u.role === role)!;
 
+/** The owner's password sign-in: the owner lands on the workspace overview. */
 async function signIn(page: Page, email: string, password: string) {
   await page.goto("/sign-in");
   const form = page.getByRole("form", { name: "Sign in with a password" });
   await form.getByLabel("E-mail").fill(email);
   await form.getByLabel("Password").fill(password);
   await form.getByRole("button", { name: "Sign in" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(/\/overview$/);
 }
 
 test("an invited person signs up from the e-mailed link, joins the demo workspace and sees what an operator may do", async ({
@@ -63,8 +64,10 @@ test("an invited person signs up from the e-mailed link, joins the demo workspac
   await p.getByRole("button", { name: "Create my account" }).click();
   await expect(p).toHaveURL(/\/invite\//);
   await p.getByRole("button", { name: /Join Marrowby/ }).click();
-  await expect(p).toHaveURL(/\/parts$/);
+  // An operator lands where the work is: the print floor.
+  await expect(p).toHaveURL(/\/floor$/);
   await expect(p.getByTestId("whoami")).toContainText("Operator");
+  await p.getByRole("link", { name: "Parts" }).click();
   await p.getByLabel("Search parts").fill("Harbour tile");
   await expect(p.getByTestId("part-Harbour tile")).toBeVisible();
   // An operator sees the members but cannot manage them, keys or the audit log.

@@ -39,7 +39,7 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
     .getByTestId("floor-row")
     .filter({ hasText: plateId.slice(0, 8) });
   await expect(row).toBeVisible();
-  await row.getByRole("button", { name: "Printing" }).click();
+  await row.getByRole("button", { name: "Start printing" }).click();
   await expect(
     page
       .getByRole("list", { name: "printing" })
@@ -91,9 +91,9 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   try {
     await usage(1_000_000);
     await page.getByRole("button", { name: "Make the reprint (1 piece)" }).click();
-    await expect(page.getByTestId("toasts")).toContainText(/made its [\d,]+ plates for this billing period/);
-    await expect(page.getByTestId("toasts")).toContainText("An owner can upgrade under Settings → Billing");
-    await expect(page.getByTestId("toasts")).not.toContainText("Something went wrong");
+    await expect(page.getByTestId("floor-notice")).toContainText(/made its [\d,]+ plates for this billing period/);
+    await expect(page.getByTestId("floor-notice")).toContainText("An owner can upgrade under Settings → Billing");
+    await expect(page.getByTestId("floor-notice")).not.toContainText("Something went wrong");
     await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
     await expect(page.getByTestId("reprint-row")).toHaveCount(0);
   } finally {
@@ -105,15 +105,8 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
   // The reprint's page: it names the original and its status; the original lists the reprint.
   await expect(page.getByTestId("floor-state")).toContainText("reprint of", { timeout: 15_000 });
   await expect(page.getByTestId("floor-state")).toContainText("reprint needed");
-  await expect
-    .poll(
-      async () => {
-        await page.reload();
-        return page.getByTestId("floor-state").textContent();
-      },
-      { timeout: 30_000 },
-    )
-    .toMatch(/Status: to print/);
+  // The page follows the build by itself: no reload.
+  await expect(page.getByTestId("floor-state")).toContainText("Status: to print", { timeout: 30_000 });
   await page.getByRole("link", { name: plateId.slice(0, 8) }).click();
   await expect(page.getByTestId("reprint-row")).toContainText("1 piece");
   await expect(page.getByTestId("reprint-row")).toContainText("to print");

@@ -1,5 +1,7 @@
 import { readFileSync } from "node:fs";
 import { expect, type Page } from "@playwright/test";
+import type { Role } from "../../db/schema";
+import { LANDING } from "../../lib/auth/landing";
 
 type Creds = { users: { email: string; password: string; role: string }[] };
 
@@ -8,7 +10,7 @@ export function demoUser(role: string): { email: string; password: string } {
   return creds.users.find((u) => u.role === role)!;
 }
 
-/** Sign in as a demo user with the password form and wait for the parts library. */
+/** Sign in as a demo user with the password form and wait for the role's landing page (where its work is). */
 export async function signInAs(page: Page, role: string) {
   const u = demoUser(role);
   await page.goto("/sign-in");
@@ -16,5 +18,5 @@ export async function signInAs(page: Page, role: string) {
   await f.getByLabel("E-mail").fill(u.email);
   await f.getByLabel("Password").fill(u.password);
   await f.getByRole("button", { name: "Sign in" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(new RegExp(`${LANDING[role as Role]}$`));
 }

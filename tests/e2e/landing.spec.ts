@@ -48,8 +48,11 @@ test("the demo owner signs in, sees the demo parts and kit, and signs out", asyn
   await form.getByLabel("E-mail").fill(owner.email);
   await form.getByLabel("Password").fill(owner.password);
   await form.getByRole("button", { name: "Sign in" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
+  // The owner lands on the workspace overview, which links each section it counts.
+  await expect(page).toHaveURL(/\/overview$/);
   await expect(page.getByTestId("whoami")).toContainText("Owner");
+  await expect(page.getByTestId("overview-tile").filter({ hasText: "Kits" })).toContainText("Open the kits");
+  await page.getByRole("link", { name: "Parts" }).click();
   await page.getByLabel("Search parts").fill("Harbour tile");
   await expect(page.getByTestId("part-Harbour tile")).toBeVisible();
   await page.getByLabel("Search parts").fill("Beacon pawn");

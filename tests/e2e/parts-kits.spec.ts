@@ -20,6 +20,7 @@ test("the demo designer uploads three files (one broken), sees progress and the 
   writeFileSync(broken, readFileSync("node_modules/stl-models/objects/bunny.bin.stl")); // has holes
 
   await signInAs(page, "designer");
+  await page.goto("/parts"); // a designer lands on the kits
 
   const cdp = await page.context().newCDPSession(page);
   await cdp.send("Network.enable");

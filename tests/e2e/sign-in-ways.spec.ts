@@ -33,8 +33,9 @@ async function signUp(page: Page, email: string, password: string) {
   await expect(page.getByTestId("check-email-text")).toContainText("finish creating your account");
   await page.goto(await linkFromOutbox(email, /Finish creating/, since));
   await page.getByRole("button", { name: "Create my account" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
-  await expect(page.getByTestId("whoami")).toContainText("Owner"); // a workshop of their own
+  // A workshop of their own: its owner lands on the overview.
+  await expect(page).toHaveURL(/\/overview$/);
+  await expect(page.getByTestId("whoami")).toContainText("Owner");
 }
 
 test("signing in by an e-mailed link, which works once", async ({ page }) => {
@@ -49,7 +50,7 @@ test("signing in by an e-mailed link, which works once", async ({ page }) => {
   await expect(page).toHaveURL(/\/check-email/);
   const link = await linkFromOutbox(email, /sign-in link/);
   await page.goto(link);
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(/\/overview$/);
   await signOut(page);
   await page.goto(link);
   await expect(page.getByText("expired or was already used")).toBeVisible();
@@ -71,12 +72,12 @@ test("resetting a forgotten password", async ({ page }) => {
   await set.getByLabel("E-mail").fill(email);
   await set.getByLabel("New password").fill("the-second-password");
   await set.getByRole("button", { name: "Save and sign in" }).click();
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(/\/overview$/);
   await signOut(page);
   await signInWithPassword(page, email, "the-first-password");
   await expect(page.getByRole("form", { name: "Sign in with a password" }).getByTestId("form-message")).toContainText("do not match");
   await signInWithPassword(page, email, "the-second-password");
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(/\/overview$/);
   // The link was single use.
   await signOut(page);
   await page.goto(link);
@@ -107,7 +108,7 @@ test("wrong passwords slow an account down instead of locking it, and the e-mail
   await form.getByRole("button", { name: "E-mail me a sign-in link" }).click();
   await expect(page).toHaveURL(/\/check-email/);
   await page.goto(await linkFromOutbox(email, /sign-in link/, since));
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(/\/overview$/);
 });
 
 test("signing up with an address that has an account changes nothing and says only: check your e-mail", async ({ page }) => {
@@ -130,5 +131,5 @@ test("signing up with an address that has an account changes nothing and says on
   await signInWithPassword(page, email, "a-strangers-password");
   await expect(page.getByRole("form", { name: "Sign in with a password" }).getByTestId("form-message")).toContainText("do not match");
   await signInWithPassword(page, email, "the-owners-own-password");
-  await expect(page).toHaveURL(/\/parts$/);
+  await expect(page).toHaveURL(/\/overview$/);
 });

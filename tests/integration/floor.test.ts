@@ -83,7 +83,11 @@ describe("the plate map sheet", () => {
     const letter = await fetch(`${baseUrl()}/api/v1/plates/${plateId}/map.pdf?paper=letter`, { headers: auth });
     const l = await pdfText(new Uint8Array(await letter.arrayBuffer()));
     expect([l.size[2], l.size[3]]).toEqual([expect.closeTo(612, 0), expect.closeTo(792, 0)]); // US Letter, 8.5 × 11 in
-    expect((await fetch(`${baseUrl()}/api/v1/plates/${plateId}/map.pdf?paper=a3`, { headers: auth })).status).toBe(400);
+    const a3 = await pdfText(
+      new Uint8Array(await (await fetch(`${baseUrl()}/api/v1/plates/${plateId}/map.pdf?paper=a3`, { headers: auth })).arrayBuffer()),
+    );
+    expect([a3.size[2], a3.size[3]]).toEqual([expect.closeTo((297 / 25.4) * 72, 0), expect.closeTo((420 / 25.4) * 72, 0)]); // ISO 216 A3
+    expect((await fetch(`${baseUrl()}/api/v1/plates/${plateId}/map.pdf?paper=b5`, { headers: auth })).status).toBe(400);
     expect((await fetch(`${baseUrl()}/api/v1/plates/${plateId}/map.pdf`)).status).toBe(401);
   });
 

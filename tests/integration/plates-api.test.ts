@@ -183,6 +183,20 @@ describe("POST /api/v1/plates", () => {
     expect((await errorOf(r)).code).toBe(code);
   });
 
+  it("keeps an order reference on the plate, answers it in the plate view, and refuses one over 80 characters", async () => {
+    const r = await post(form({ kit: kitId, format: "json", reference: "  ORD-1042  " }));
+    expect(r.status).toBe(200);
+    const body = (await r.json()) as { plate: { id: string; reference: string | null } };
+    expect(body.plate.reference).toBe("ORD-1042"); // trimmed
+    const again = (await (await fetch(`${baseUrl()}/api/v1/plates/${body.plate.id}`, { headers: auth })).json()) as typeof body;
+    expect(again.plate.reference).toBe("ORD-1042");
+    const none = (await (await post(form({ kit: kitId, format: "json" }))).json()) as typeof body;
+    expect(none.plate.reference).toBeNull();
+    const long = await post(form({ kit: kitId, format: "json", reference: "x".repeat(81) }));
+    expect(long.status).toBe(422);
+    expect((await errorOf(long)).code).toBe("invalid_reference");
+  });
+
   it("422 lists the findings when the plate cannot fit the bed", async () => {
     const r = await post(form({ kit: kitId, options: JSON.stringify({ layout: { bed: { width: 60, depth: 60 } } }) }));
     expect(r.status).toBe(422);
@@ -277,6 +291,9 @@ describe("GET /api/v1/openapi.json", () => {
       expect.arrayContaining(["/api/v1/plates", "/api/v1/jobs/{id}", "/api/v1/plates/{id}", "/api/v1/plates/{id}/file"]),
     );
     // Generated from the options schema itself: the canonical names are there.
+    // The order reference is documented on the plate and in the plate form.
+    expect(doc.components.schemas.Plate!.properties!.plate).toMatchObject({ properties: { reference: expect.anything() } });
+    expect(JSON.stringify(doc.paths["/api/v1/plates"])).toContain('"reference"');
     expect(Object.keys(doc.components.schemas.SlabOptions!.properties!)).toEqual(
       expect.arrayContaining(["slab", "layout", "marks", "material", "nozzle", "layerHeight", "pricePerKg"]),
     );

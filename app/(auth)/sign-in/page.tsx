@@ -2,13 +2,14 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { redirect } from "next/navigation";
 import { loadSessionUser } from "@/lib/auth/guards";
+import { HOME } from "@/lib/auth/landing";
 import { SignInForm } from "./_components/sign-in-form";
 
 export const metadata: Metadata = { title: "Sign in" };
 
 export default async function SignInPage({ searchParams }: { searchParams: Promise<{ next?: string; email?: string; error?: string }> }) {
   const { next, email, error } = await searchParams;
-  if (await loadSessionUser()) redirect(next?.startsWith("/") ? next : "/parts");
+  if (await loadSessionUser()) redirect(next?.startsWith("/") ? next : HOME);
   return (
     <div>
       <h1 className="text-xl">Sign in to your workshop</h1>

@@ -16,8 +16,9 @@ const sections = [
 export function SectionNav() {
   const path = usePathname();
   return (
-    <nav aria-label="Sections" className="-mx-4 overflow-x-auto px-4">
-      <ul className="flex gap-1 text-sm">
+    <nav aria-label="Sections" className="-mx-4 px-4">
+      {/* Wraps onto a second line on a narrow screen rather than hiding sections off its edge. */}
+      <ul className="flex flex-wrap gap-x-1 text-sm">
         {sections.map((s) => {
           const active = path === s.href || path.startsWith(`${s.href}/`);
           return (
@@ -26,7 +27,7 @@ export function SectionNav() {
                 href={s.href}
                 aria-current={active ? "page" : undefined}
                 className={
-                  `block whitespace-nowrap border-b-2 px-3 py-2 ` +
+                  `block whitespace-nowrap border-b-2 px-2.5 py-2 sm:px-3 ` +
                   `${active ? "border-accent font-bold text-ink" : "border-transparent text-muted hover:text-ink"}`
                 }
               >

@@ -1,5 +1,6 @@
 import { Brand } from "@/app/_components/brand";
 import type { Caller } from "@/lib/auth/guards";
+import { HOME } from "@/lib/auth/landing";
 import { signOutAction, switchWorkspace } from "../actions";
 import { SectionNav } from "./section-nav";
 
@@ -7,7 +8,7 @@ export function TopBar({ caller }: { caller: Caller }) {
   return (
     <header className="border-b border-hairline bg-surface print:hidden">
       <div className="mx-auto flex max-w-column flex-wrap items-center gap-x-4 gap-y-2 px-4 pt-3">
-        <Brand href="/parts" />
+        <Brand href={HOME} />
         <form action={switchWorkspace} className="flex items-center gap-2 text-sm">
           <label htmlFor="workspace" className="sr-only">
             Workspace

@@ -4,7 +4,8 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { FLOOR_STATES } from "@/db/schema";
 import { guardedAction } from "@/lib/auth/guards";
-import { makeReprint, movePlate, recordInspection } from "@/lib/floor/service";
+import { makeReprint, movePlate, recordInspection, STATE_LABEL } from "@/lib/floor/service";
+import { plural } from "@/lib/plural";
 
 const refresh = (id: string) => {
   revalidatePath("/floor");
@@ -18,7 +19,7 @@ export const movePlateAction = guardedAction(
   async (input, caller) => {
     await movePlate(caller, input.id, input.to, input.note || undefined);
     refresh(input.id);
-    return { ok: true, data: undefined, message: "Moved." };
+    return { ok: true, data: undefined, message: `Plate ${input.id.slice(0, 8)} is now ${STATE_LABEL[input.to]}.` };
   },
 );
 
@@ -40,7 +41,7 @@ export const inspectAction = guardedAction(
       data: { state: r.to },
       message:
         r.missing || r.defective
-          ? `Recorded: ${r.missing} missing, ${r.defective} defective. The maker has been told; make the reprint when you are ready.`
+          ? `Recorded: ${r.missing} missing, ${r.defective} defective. The maker has been told; make the reprint below when you are ready.`
           : "Recorded: every piece present. The plate is done.",
     };
   },
@@ -54,6 +55,6 @@ export const reprintAction = guardedAction(
     const p = await makeReprint(caller, input.id);
     refresh(input.id);
     revalidatePath("/plates");
-    return { ok: true, data: { plateId: p.id }, message: `Reprint made with ${p.pieceCount} piece${p.pieceCount > 1 ? "s" : ""}.` };
+    return { ok: true, data: { plateId: p.id }, message: `Reprint made with ${plural(p.pieceCount, "piece")}.` };
   },
 );

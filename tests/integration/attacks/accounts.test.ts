@@ -127,7 +127,8 @@ describe("sign-up cannot claim an existing account", () => {
     const done = await callAction(new URL(link).pathname, AUTH, "confirmPasswordReset", [
       { token, email, password: "chosen-by-the-owner" },
     ]);
-    expect(done.redirect).toBe("/parts");
+    // Home sends each role on to its own landing page.
+    expect(done.redirect).toBe("/home");
     expect((await tryPassword(email, "chosen-by-the-owner")).ok).toBe(true);
   });
 });

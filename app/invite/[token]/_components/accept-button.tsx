@@ -3,6 +3,7 @@
 import { useRouter } from "next/navigation";
 import { ActionButton } from "@/app/_components/action-button";
 import { acceptInvite } from "@/app/(auth)/actions";
+import { LANDING } from "@/lib/auth/landing";
 
 export function AcceptButton({ token, workspace }: { token: string; workspace: string }) {
   const router = useRouter();
@@ -11,7 +12,7 @@ export function AcceptButton({ token, workspace }: { token: string; workspace: s
       label={`Join ${workspace}`}
       pendingLabel="Joining…"
       run={() => acceptInvite({ token })}
-      onOk={() => router.push("/parts")}
+      onOk={(r) => router.push(LANDING[r.role])}
     />
   );
 }
