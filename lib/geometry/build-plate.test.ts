@@ -253,8 +253,9 @@ describe("layout", () => {
     const tried = r.tried!;
     expect(tried.bed).toEqual({ width: 60, depth: 60 });
     expect(tried.pieces.map((p) => p.slot)).toEqual([1, 2, 3, 4, 5, 6]);
+    const { room } = tried;
     const within = (b: { minX: number; minY: number; maxX: number; maxY: number }) =>
-      b.minX >= tried.room.minX - 1e-6 && b.maxX <= tried.room.maxX + 1e-6 && b.minY >= tried.room.minY - 1e-6 && b.maxY <= tried.room.maxY + 1e-6;
+      b.minX >= room.minX - 1e-6 && b.maxX <= room.maxX + 1e-6 && b.minY >= room.minY - 1e-6 && b.maxY <= room.maxY + 1e-6;
     // The packer runs past the bed's depth, not its width: what does not fit sits above the room.
     expect(tried.pieces.some((p) => p.overflows)).toBe(true);
     expect(Math.max(...tried.pieces.map((p) => p.bounds.maxY))).toBeGreaterThan(tried.room.maxY);

@@ -36,7 +36,10 @@ export const kitSlabSettingsSchema = z.object({
     "The slab options do not match the slab builder's options.",
   ),
   samples: z.record(z.string(), z.string().max(500)).default({}),
-  template: z.object({ id: z.string().min(1), version: z.number().int().min(1) }).nullable().default(null),
+  template: z
+    .object({ id: z.string().min(1), version: z.number().int().min(1) })
+    .nullable()
+    .default(null),
 });
 export type KitSlabSettings = z.output<typeof kitSlabSettingsSchema>;
 

@@ -15,12 +15,15 @@ export function PlatesTable({
   showKit = true,
   empty,
   canMake = false,
+  canDownload = false,
 }: {
   rows: PlateRow[];
   label: string;
   showKit?: boolean;
   empty: string;
   canMake?: boolean;
+  /** The files' links only for a role that may download them (a viewer's would answer "forbidden"). */
+  canDownload?: boolean;
 }) {
   if (rows.length === 0) return <EmptyState message={empty} />;
   return (
@@ -67,12 +70,13 @@ export function PlatesTable({
               ) : null}
             </td>
             <td className="space-x-2 px-3 py-2">
-              {EXPORT_FORMAT_IDS.filter((f) => p.files.includes(f)).map((f) => (
+              {(canDownload ? EXPORT_FORMAT_IDS.filter((f) => p.files.includes(f)) : []).map((f) => (
                 <a key={f} className="text-accent underline" href={`/api/plates/${p.id}/download?format=${f}`}>
                   {EXPORT_FORMATS[f].label}
                 </a>
               ))}
               {p.files.length === 0 ? <span className="text-muted">—</span> : null}
+              {p.files.length > 0 && !canDownload ? <span className="text-muted">no download for your role</span> : null}
               {canMake && p.remakeable && p.jobState !== "queued" && p.jobState !== "running" ? <RemakeButton plateId={p.id} /> : null}
             </td>
           </tr>

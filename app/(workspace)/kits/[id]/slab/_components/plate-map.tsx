@@ -6,6 +6,8 @@ import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 const path = (contours: [number, number][][]) =>
   contours.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${y.toFixed(2)}`).join("L")}Z`).join("");
 
+const FOCUS_RING = "outline-none [&:focus-visible>path]:stroke-[#6d4aff] [&:focus-visible>path]:[stroke-width:0.8]";
+
 /**
  * The plate map, to scale (1 unit = 1 mm, y up): the slab, each piece's outline and number. Drag a
  * piece to move it (snapped to 0.5 mm; hold Alt for free moves). From the keyboard: Tab to a piece,
@@ -88,7 +90,7 @@ export function PlateMap({
               transform={moving ? `translate(${drag.dx} ${drag.dy})` : undefined}
               data-testid={`map-piece-${p.number}`}
               data-slot={p.slot}
-              className={`${readOnly ? "cursor-pointer" : "cursor-grab"} outline-none [&:focus-visible>path]:stroke-[#6d4aff] [&:focus-visible>path]:[stroke-width:0.8]`}
+              className={`${readOnly ? "cursor-pointer" : "cursor-grab"} ${FOCUS_RING}`}
               tabIndex={0}
               role="button"
               aria-label={`Piece ${p.number}, ${p.partName}${readOnly ? "" : ": arrow keys move it, R turns it"}`}

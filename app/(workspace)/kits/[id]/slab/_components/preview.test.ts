@@ -57,7 +57,12 @@ describe("the preview across builds", () => {
   });
 
   it("a build whose pieces do not fit the bed brings what was tried; the next that fits drops it", () => {
-    const tried = { bed: { width: 60, depth: 60 }, room: { minX: 5, minY: 5, maxX: 55, maxY: 55 }, bands: { bottom: null, top: null, overflows: false }, pieces: [] };
+    const tried = {
+      bed: { width: 60, depth: 60 },
+      room: { minX: 5, minY: 5, maxX: 55, maxY: 55 },
+      bands: { bottom: null, top: null, overflows: false },
+      pieces: [],
+    };
     const none = mergePreview(null, built(1, { tried, findings: [{ severity: "error", code: "does_not_fit", message: "…" }] }));
     expect(none).toMatchObject({ slab: null, layout: null, tried: { bed: { width: 60 } } });
     const fits = mergePreview(none, built(2, { slab: slab("a"), pieces: [piece(1, 10)], layout: layout(100) }));
