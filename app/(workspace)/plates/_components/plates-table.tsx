@@ -5,6 +5,8 @@ import { when } from "@/lib/format";
 import { DataTable, EmptyState } from "../../_components/page-header";
 import { RemakeButton } from "./remake-button";
 
+/** A proof's summary wraps within its cell rather than widen the table past the column. */
+const PROOF = "block min-w-[12rem] max-w-[18rem] whitespace-normal text-xs";
 const sourceLabel = { editor: "slab editor", api: "API", reprint: "reprint" } as const;
 const stateLabel = { queued: "waiting for a worker", running: "building", done: "ready", failed: "failed" } as const;
 
@@ -64,7 +66,7 @@ export function PlatesTable({
               {stateLabel[p.jobState]}
               {warnings ? <span className="ml-1 text-finding-warning">· ⚠ {warnings}</span> : null}
               {p.proofSummary ? (
-                <span data-testid="plate-proof" className={`block text-xs ${p.proofOk ? "text-muted" : "text-finding-error"}`}>
+                <span data-testid="plate-proof" className={`${PROOF} ${p.proofOk ? "text-muted" : "text-finding-error"}`}>
                   {p.proofSummary}
                 </span>
               ) : null}

@@ -100,10 +100,15 @@ export function SlabEditor({
     const t = setTimeout(flush, STEP_PAUSE_MS);
     return () => clearTimeout(t);
   }, [values, flush]);
-  // Undo and redo put their state's values back in the form.
+  // Undo and redo put their state's values back in the form (only they: a step the form made itself
+  // must not overwrite a key typed since).
+  const { restores } = history;
+  const restored = useRef(0);
   useEffect(() => {
+    if (restored.current === restores) return;
+    restored.current = restores;
     if (!sameValues(form.getValues(), present.values)) form.reset(present.values);
-  }, [present, form]);
+  }, [restores, present, form]);
 
   const placements = present.placements;
   const applied = present.applied;
@@ -317,6 +322,7 @@ export function SlabEditor({
               className={`ml-auto ${keeping.state === "failed" ? "text-finding-error" : "text-muted"}`}
               data-testid="kept"
               data-state={keeping.state}
+              data-saves={keeping.saves}
               title={keeping.message}
             >
               {keeping.state === "failed" ? "✕ " : ""}

@@ -2,7 +2,8 @@ import { useEffect, useRef, useState } from "react";
 import type { KitSlabSettings } from "@/lib/validation/kits";
 import { saveSlabSettingsAction } from "../../../actions";
 
-export type Keeping = { state: "kept" | "keeping" | "failed"; message?: string };
+/** `saves`: how many saves the server has taken since the editor opened. */
+export type Keeping = { state: "kept" | "keeping" | "failed"; message?: string; saves: number };
 
 /** How long the editor waits after the last change before the kit keeps its settings. */
 const PAUSE_MS = 700;
@@ -13,7 +14,7 @@ const PAUSE_MS = 700;
  * refuses) keeps the last good settings. Off (`enabled` false) for a role that cannot edit kits.
  */
 export function useKeptSettings(kitId: string, settings: KitSlabSettings | null, enabled: boolean): Keeping {
-  const [keeping, setKeeping] = useState<Keeping>({ state: "kept" });
+  const [keeping, setKeeping] = useState<Keeping>({ state: "kept", saves: 0 });
   const json = settings ? JSON.stringify(settings) : null;
   const last = useRef(json);
   const waiting = useRef<string | null>(null);
@@ -23,15 +24,15 @@ export function useKeptSettings(kitId: string, settings: KitSlabSettings | null,
     waiting.current = json;
     const timer = setTimeout(() => {
       waiting.current = null;
-      setKeeping({ state: "keeping" });
+      setKeeping((k) => ({ state: "keeping", saves: k.saves }));
       saveSlabSettingsAction({ kitId, settings: JSON.parse(json) as KitSlabSettings })
         .then((r) => {
           if (r.ok) {
             last.current = json;
-            setKeeping({ state: "kept" });
-          } else setKeeping({ state: "failed", message: r.message });
+            setKeeping((k) => ({ state: "kept", saves: k.saves + 1 }));
+          } else setKeeping((k) => ({ state: "failed", message: r.message, saves: k.saves }));
         })
-        .catch(() => setKeeping({ state: "failed", message: "the server could not be reached" }));
+        .catch(() => setKeeping((k) => ({ state: "failed", message: "the server could not be reached", saves: k.saves })));
     }, PAUSE_MS);
     return () => clearTimeout(timer);
   }, [json, kitId, enabled]);
