@@ -93,8 +93,10 @@ export function SlabEditor({
       const next = change(flush());
       step(next);
       presentRef.current = next;
+      // A template applied or saved changes the form's values too.
+      if (!sameValues(form.getValues(), next.values)) form.reset(next.values);
     },
-    [flush, step],
+    [flush, step, form],
   );
   useEffect(() => {
     const t = setTimeout(flush, STEP_PAUSE_MS);
@@ -146,12 +148,13 @@ export function SlabEditor({
       stepFrom((s) => (t ? { values: templateForm(t), placements: undefined, applied: t } : { ...s, applied: null })),
     [stepFrom],
   );
-  // A template just saved: applied, and the Values fields take its samples where they are empty.
+  // A template just saved: applied, and the Values fields take the sample values typed in the save
+  // form (the newest word on them); a variable saved without a sample keeps its field, else its default.
   const onSaved = useCallback(
     (t: EditorTemplate) =>
       stepFrom((s) => {
         const samples = { ...s.values.samples };
-        for (const [name, value] of Object.entries(templateSamples(t))) if (!samples[name]?.trim()) samples[name] = value;
+        for (const v of t.variables) samples[v.name] = v.sample.trim() ? v.sample : samples[v.name]?.trim() ? samples[v.name]! : v.default;
         return { ...s, values: { ...s.values, samples }, applied: t };
       }),
     [stepFrom],
@@ -212,8 +215,8 @@ export function SlabEditor({
         </form>
       </div>
 
-      {/* The preview and the map stay in sight while the options column scrolls. */}
-      <div className="min-w-0 space-y-3 md:sticky md:top-2 md:self-start">
+      {/* The preview and the map stay in sight while the options column scrolls; on a phone they come first. */}
+      <div className="order-first min-w-0 space-y-3 md:sticky md:top-2 md:order-none md:self-start">
         <div
           className="card overflow-hidden bg-paper"
           data-highlight={shown ? `${shown.slot}:${shown.partName}` : ""}
