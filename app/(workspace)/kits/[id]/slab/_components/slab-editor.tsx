@@ -189,7 +189,7 @@ export function SlabEditor({
   const doesNotFit = result?.findings.find((f) => f.code === "does_not_fit");
 
   return (
-    <div className="grid gap-4 md:grid-cols-[17rem_minmax(0,1fr)] xl:grid-cols-[19rem_minmax(0,1fr)_19rem]" data-wide>
+    <div className="grid gap-4 md:grid-cols-[19rem_minmax(0,1fr)] xl:grid-cols-[19rem_minmax(0,1fr)_19rem]" data-wide>
       <div className="min-w-0 space-y-3">
         {!canEdit ? (
           <p className="card border-finding-info/40 p-3 text-sm" data-testid="read-only">
