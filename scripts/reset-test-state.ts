@@ -1,6 +1,7 @@
 /**
  * Before a test run: clear counters and caught mail in the *test* database, so abuse limits and plan
- * usage from an earlier run (invitations per hour, sign-in attempts, plates made) do not leak into this one.
+ * usage from an earlier run (invitations per hour, sign-in attempts, plates made), and kits' saved slab settings,
+ * do not leak into this one.
  */
 import { createPool } from "@/db/index";
 import { env } from "@/lib/env";
@@ -21,4 +22,6 @@ await pool.query(
 await pool.query(
   `delete from api_keys where name <> 'Demo order system' and workspace_id in (select id from workspaces where slug = 'marrowby')`,
 );
+// Every kit opens the slab editor on its defaults again: a spec that changes a kit's slab does not change the next run's start.
+await pool.query("update kits set slab_settings = null where slab_settings is not null");
 await pool.end();

@@ -32,7 +32,8 @@ export default async function WorkspaceLayout({ children }: { children: ReactNod
             )}
           </p>
         ) : null}
-        <main className="mx-auto max-w-column px-4 py-6">{children}</main>
+        {/* The slab editor (marked data-wide) takes the full width; lists keep the centred column. */}
+        <main className="mx-auto max-w-column px-4 py-6 has-[[data-wide]]:max-w-[110rem]">{children}</main>
       </div>
     </ToastProvider>
   );

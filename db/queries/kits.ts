@@ -85,3 +85,17 @@ export async function archiveKitRow(actor: WorkspaceActor, id: string): Promise<
     .returning({ id: kits.id });
   return Boolean(res[0]);
 }
+
+/**
+ * Keep the slab editor's settings with a kit of the actor's workspace (unchecked here: the service
+ * checks them); false when the workspace has no such kit. The kit's updated time stays: settings
+ * saved as the designer works are not an edit of the kit's parts.
+ */
+export async function setKitSlabSettings(actor: WorkspaceActor, id: string, settings: unknown): Promise<boolean> {
+  const res = await db()
+    .update(kits)
+    .set({ slabSettings: settings })
+    .where(and(eq(kits.id, id), eq(kits.workspaceId, actor.workspaceId)))
+    .returning({ id: kits.id });
+  return Boolean(res[0]);
+}

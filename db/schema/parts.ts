@@ -116,6 +116,8 @@ export const kits = pgTable(
       .references(() => workspaces.id, { onDelete: "cascade" }),
     name: text("name").notNull(),
     description: text("description"),
+    /** The slab editor's last settings for this kit (lib/validation/kits.ts `readSlabSettings` reads them back). */
+    slabSettings: jsonb("slab_settings").$type<unknown>(),
     archivedAt: timestamp("archived_at", { withTimezone: true }),
     createdBy: text("created_by").references(() => users.id, { onDelete: "set null" }),
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),

@@ -249,6 +249,30 @@ describe("layout", () => {
     const r = plate({ layout: { bed: { width: 60, depth: 60 } } }, undefined, { formats: ["stl"] });
     expect(r.findings[0]).toMatchObject({ severity: "error", code: "does_not_fit" });
     expect(r.stl).toBeUndefined();
+    // What was tried comes back for the plate map: every piece, each inside the bed or marked as reaching past it.
+    const tried = r.tried!;
+    expect(tried.bed).toEqual({ width: 60, depth: 60 });
+    expect(tried.pieces.map((p) => p.slot)).toEqual([1, 2, 3, 4, 5, 6]);
+    const { room } = tried;
+    const within = (b: { minX: number; minY: number; maxX: number; maxY: number }) =>
+      b.minX >= room.minX - 1e-6 && b.maxX <= room.maxX + 1e-6 && b.minY >= room.minY - 1e-6 && b.maxY <= room.maxY + 1e-6;
+    // The packer runs past the bed's depth, not its width: what does not fit sits above the room.
+    expect(tried.pieces.some((p) => p.overflows)).toBe(true);
+    expect(Math.max(...tried.pieces.map((p) => p.bounds.maxY))).toBeGreaterThan(tried.room.maxY);
+    expect(Math.max(...tried.pieces.map((p) => p.bounds.maxX))).toBeLessThanOrEqual(tried.room.maxX + 1e-6);
+    for (const p of tried.pieces) {
+      expect(p.outline.length).toBeGreaterThanOrEqual(3);
+      if (!p.overflows) expect(within(p.bounds)).toBe(true);
+    }
+    // The packed pieces do not overlap: their shadows' extents are apart.
+    const boxes = tried.pieces.map((p) => p.bounds);
+    for (let i = 0; i < boxes.length; i++)
+      for (let j = i + 1; j < boxes.length; j++) {
+        const a = boxes[i]!,
+          b = boxes[j]!;
+        expect(a.maxX <= b.minX + 1e-6 || b.maxX <= a.minX + 1e-6 || a.maxY <= b.minY + 1e-6 || b.maxY <= a.minY + 1e-6).toBe(true);
+      }
+    expect(plate({}).tried).toBeUndefined();
     const long = plate({
       layout: { bed: { width: 100, depth: 200 } },
       marks: { text: [{ value: "THIS LINE IS FAR TOO LONG FOR THE BED" }] },

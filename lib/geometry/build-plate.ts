@@ -23,7 +23,7 @@ import { allReliefs, markReliefs, reliefOutlines, type Reliefs } from "./mark-re
 import type { Contour } from "./marks/text";
 import type { IndexedMesh } from "./mesh";
 import { parseOptions, slicedGap, type SlabOptions, type SlabOptionsInput } from "./options";
-import { numberPieces, pieceBoxes, pieceRoom, placePieces } from "./piece-layout";
+import { numberPieces, pieceBoxes, pieceRoom, placePieces, triedPlacement, type TriedLayout } from "./piece-layout";
 import {
   checkedPieces,
   kitPieces,
@@ -46,6 +46,7 @@ import { slabAround, slabSolid } from "./slab-solid";
 import { unfilledPlaceholders } from "./variables";
 
 export { newPartCache, placeMesh, type PartCache, type PartMeasure, type PlacedPiece, type PlatePart } from "./pieces";
+export type { TriedLayout } from "./piece-layout";
 
 export type BuildInput = {
   parts: PlatePart[];
@@ -90,6 +91,8 @@ export type PlateResult = {
    * under the deepest engraving (mm).
    */
   slicing?: { slabTop: number; pieceBase: number; gap: number; gapLayers: number; minFloor: number };
+  /** When the pieces do not fit the bed: where they were tried, and what reaches past it (for the plate map). */
+  tried?: TriedLayout;
   /** Kernel-free meshes of every body, for a preview. */
   bodies?: { name: string; mesh: IndexedMesh; piece?: number }[];
 };
@@ -135,7 +138,7 @@ function build(ctx: BuildContext): PlateResult {
   // 3. The pieces on the bed (where placed by hand, else packed), then numbered.
   const placing = placePieces(o, pieces, room, bands, shapes.texts);
   laps.lap("layout");
-  if (!placing.fits) return refuse(...doesNotFit(o, placing, shapes.texts));
+  if (!placing.fits) return { ...refuse(...doesNotFit(o, placing, shapes.texts)), tried: triedPlacement(o, pieces, room, bands) };
   const numbersAsked = pieceNumbersMismatch(o.layout.pieceNumbers, pieces.length);
   if (numbersAsked) return refuse(numbersAsked);
   const numberOf = numberPieces(

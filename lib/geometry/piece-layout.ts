@@ -1,10 +1,10 @@
 import { rotatedBounds } from "./footprint";
-import { arrange, type PackItem } from "./layout";
+import { arrange, maxRectsPack, type PackItem } from "./layout";
 import { SHAPE_RULES } from "./slab";
 import { NUMBER_GAP, NUMBER_PAD, type Bands, type NumberGlyphs } from "./mark-bands";
 import { lineWidth, type TextShape } from "./marks/text";
 import type { SlabOptions } from "./options";
-import { pieceBounds, pieceInSlot, type Piece } from "./pieces";
+import { hullAt, pieceBounds, pieceInSlot, type Piece } from "./pieces";
 import type { Box } from "./plate-context";
 
 /** What a piece's rectangle on the bed holds besides its shadow. */
@@ -87,6 +87,66 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
     p.y = packed.y + baseY + ext - rb.minY;
   }
   return { fits: true };
+}
+
+/**
+ * What was tried when the pieces do not fit: the bed (mm, y up, its corner at 0, 0), the room the
+ * margins and the text and QR bands leave, and every piece where a packer that may run past the bed's
+ * depth (and, for a piece wider than the bed, its width) put it. `overflows` marks each piece, and the
+ * bands, that reach past that room: what the designer has to change.
+ */
+export type TriedLayout = {
+  bed: { width: number; depth: number };
+  room: Box;
+  bands: { bottom: Box | null; top: Box | null; overflows: boolean };
+  pieces: { slot: number; partId: string; partName: string; copy: number; outline: [number, number][]; bounds: Box; overflows: boolean }[];
+};
+
+const EPS = 1e-6;
+
+export function triedPlacement(o: SlabOptions, pieces: Piece[], room: PieceRoom, bands: Bands): TriedLayout {
+  const m = o.slab.margin;
+  const { ext, gutter, spacing } = room;
+  const { width: W, depth: D } = o.layout.bed;
+  const fixed = new Set((o.layout.placements ?? []).map((p) => p.piece));
+  const sizeAt = (p: Piece, angle: number): [number, number] => {
+    const rb = rotatedBounds(p.fp.hull, angle);
+    return [rb.w + 2 * ext + gutter, Math.max(rb.h + 2 * ext, room.numberRow)];
+  };
+  const auto = pieces.filter((p) => !fixed.has(p.slot));
+  const items = auto.map((p) => ({ key: p.slot, sizes: [sizeAt(p, p.angle), sizeAt(p, p.angle + 90)] }));
+  const widest = Math.max(0, ...items.map((it) => Math.min(...it.sizes.map((d) => d[0]))));
+  // Tall enough for every piece stacked, so the packer always places them all.
+  const tall = items.reduce((s, it) => s + Math.max(...it.sizes.map((d) => d[1])) + spacing, 0);
+  const baseY = m + (bands.bottom.h ? bands.bottom.h + spacing : 0);
+  for (const packed of maxRectsPack(items, Math.max(W - 2 * m, widest), Math.max(tall, 1), spacing) ?? []) {
+    const p = pieceInSlot(pieces, packed.key);
+    if (packed.choice === 1) p.angle = (p.angle + 90) % 360;
+    const rb = rotatedBounds(p.fp.hull, p.angle);
+    p.x = packed.x + m + gutter + ext - rb.minX;
+    p.y = packed.y + baseY + ext - rb.minY;
+  }
+  const roomBox = { minX: m, minY: baseY, maxX: W - m, maxY: D - m - (bands.top.h ? bands.top.h + spacing : 0) };
+  const outside = (b: Box, r: Box) => b.minX < r.minX - EPS || b.minY < r.minY - EPS || b.maxX > r.maxX + EPS || b.maxY > r.maxY + EPS;
+  const band = (h: number, y: number): Box | null => (h ? { minX: m, minY: y, maxX: m + bands.w, maxY: y + h } : null);
+  return {
+    bed: { width: W, depth: D },
+    room: roomBox,
+    bands: { bottom: band(bands.bottom.h, m), top: band(bands.top.h, D - m - bands.top.h), overflows: bands.w > W - 2 * m + EPS },
+    pieces: pieces.map((p) => {
+      const b = pieceBounds(p);
+      const box = { minX: b.minX - ext - gutter, minY: b.minY - ext, maxX: b.maxX + ext, maxY: b.maxY + ext };
+      return {
+        slot: p.slot,
+        partId: p.part.id,
+        partName: p.part.name,
+        copy: p.copy,
+        outline: hullAt(p),
+        bounds: b,
+        overflows: outside(box, roomBox),
+      };
+    }),
+  };
 }
 
 /**

@@ -1,13 +1,5 @@
 import { describe, expect, it } from "vitest";
-import {
-  describeChanges,
-  mergeOptions,
-  resolveValues,
-  sampleValues,
-  templateBodySchema,
-  TemplateValueError,
-  usedPlaceholders,
-} from "./template";
+import { describeChanges, mergeOptions, templateBodySchema, usedPlaceholders } from "./template";
 
 const defs = [
   { name: "order", default: "", sample: "10482" },
@@ -34,43 +26,6 @@ describe("template variables", () => {
       expect.stringMatching(/filled by Slabwright itself/),
     ]);
     expect(templateBodySchema.safeParse({ options: {}, variables: [{ name: "Order No" }] }).success).toBe(false);
-  });
-
-  it("substitution: given values win, defaults fill the rest, {date} and {kit} are filled", () => {
-    expect(resolveValues(defs, { order: "20931" }, { date: "2026-12-02", kit: "Harbour Run" })).toEqual({
-      date: "2026-12-02",
-      kit: "Harbour Run",
-      order: "20931",
-      customer: "friend",
-    });
-    // A caller may fix the date (a remade plate keeps its day).
-    expect(resolveValues(defs, { order: "1", date: "2026-11-30" }, { date: "2026-12-02" }).date).toBe("2026-11-30");
-  });
-
-  it("substitution: a missing value with no default, and an extra value, are errors naming the variables", () => {
-    const caught = (f: () => unknown): TemplateValueError => {
-      try {
-        f();
-      } catch (e) {
-        return e as TemplateValueError;
-      }
-      throw new Error("expected an error");
-    };
-    const missing = caught(() => resolveValues(defs, {}, { date: "2026-12-02" }));
-    expect(missing).toBeInstanceOf(TemplateValueError);
-    expect([missing.code, missing.names]).toEqual(["missing_variable", ["order"]]);
-    const extra = caught(() => resolveValues(defs, { order: "1", ordr: "2" }, { date: "2026-12-02" }));
-    expect([extra.code, extra.names]).toEqual(["unknown_variable", ["ordr"]]);
-    expect(extra.message).toMatch(/no variable \{ordr\}/);
-  });
-
-  it("sample values for previews", () => {
-    expect(sampleValues(defs, "Harbour Run", "2026-12-02")).toEqual({
-      date: "2026-12-02",
-      kit: "Harbour Run",
-      order: "10482",
-      customer: "Sam",
-    });
   });
 
   it("options over a template's merge key by key; text lines replace as a whole", () => {

@@ -9,8 +9,6 @@ import { placeholders } from "./variables";
  * server checks it again when it is saved and when a plate uses it.
  */
 
-const braced = (names: string[]) => names.map((n) => `{${n}}`).join(", ");
-
 export const BUILT_IN_VARIABLES = ["date", "kit"] as const;
 const NAME = /^[a-z][a-z0-9_]*$/;
 
@@ -63,64 +61,6 @@ export const templateBodySchema = z
     }
   });
 export type TemplateBody = z.output<typeof templateBodySchema>;
-
-export class TemplateValueError extends Error {
-  constructor(
-    readonly code: "missing_variable" | "unknown_variable",
-    message: string,
-    readonly names: string[],
-  ) {
-    super(message);
-    this.name = "TemplateValueError";
-  }
-}
-
-/**
- * The values a plate is made with: what the caller gave, else the variable's default; `{date}` and
- * `{kit}` filled. A value for a variable the template does not have is refused (a typo would
- * otherwise be silently ignored), and so is a variable with neither a value nor a default.
- */
-export function resolveValues(
-  defs: TemplateVariableDef[],
-  given: Record<string, string>,
-  builtIns: { date: string; kit?: string },
-): Record<string, string> {
-  const known = new Set([...defs.map((d) => d.name), ...BUILT_IN_VARIABLES]);
-  const extra = Object.keys(given).filter((k) => !known.has(k));
-  if (extra.length) {
-    throw new TemplateValueError(
-      "unknown_variable",
-      `The template has no variable${extra.length > 1 ? "s" : ""} ${braced(extra)}; it has ${braced([...known])}.`,
-      extra,
-    );
-  }
-  const out: Record<string, string> = {
-    date: given.date ?? builtIns.date,
-    ...(builtIns.kit !== undefined || given.kit !== undefined ? { kit: given.kit ?? builtIns.kit! } : {}),
-  };
-  const missing: string[] = [];
-  for (const d of defs) {
-    const v = given[d.name] ?? d.default;
-    if (v === "") missing.push(d.name);
-    else out[d.name] = v;
-  }
-  if (missing.length)
-    throw new TemplateValueError(
-      "missing_variable",
-      `Give a value for ${missing.map((n) => `{${n}}`).join(", ")}: the template has no default for ${missing.length > 1 ? "them" : "it"}.`,
-      missing,
-    );
-  return out;
-}
-
-/** Sample values for previews and thumbnails: each variable's sample, else its default. */
-export function sampleValues(
-  defs: TemplateVariableDef[],
-  kit = "Sample kit",
-  date = new Date().toISOString().slice(0, 10),
-): Record<string, string> {
-  return { date, kit, ...Object.fromEntries(defs.map((d) => [d.name, d.sample || d.default || d.name])) };
-}
 
 type Json = null | boolean | number | string | Json[] | { [k: string]: Json };
 

@@ -1,6 +1,7 @@
 import type { Piscina } from "piscina";
 import { setThumbnail, versionForThumbnail } from "@/db/queries/templates";
-import { sampleValues, type TemplateVariableDef } from "@/lib/geometry/template";
+import type { TemplateVariableDef } from "@/lib/geometry/template";
+import { thumbnailValues } from "@/lib/templates/values";
 import { slabTopSvg } from "@/lib/geometry/thumbnail";
 import type { BuildOutcome, BuildTask } from "./build-thread";
 
@@ -14,7 +15,7 @@ export async function runThumbnailJob(pool: Piscina, versionId: string): Promise
   const task: BuildTask = {
     parts: [],
     options: v.options,
-    variables: sampleValues(v.variables as TemplateVariableDef[], "Sample kit", v.createdAt.toISOString().slice(0, 10)),
+    variables: thumbnailValues(v.variables as TemplateVariableDef[], v.createdAt.toISOString().slice(0, 10)),
     title: "template",
     sample: true,
   };

@@ -1,10 +1,10 @@
 import "server-only";
 import type { z } from "zod";
-import { archiveKitRow, countWorkspaceParts, getKit, insertKit, replaceKitLines, updateKit } from "@/db/queries/kits";
+import { archiveKitRow, countWorkspaceParts, getKit, insertKit, replaceKitLines, setKitSlabSettings, updateKit } from "@/db/queries/kits";
 import { transaction } from "@/db/queries/tx";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import { Invalid, NotFound } from "@/lib/errors";
-import type { kitSchema } from "@/lib/validation/kits";
+import type { KitSlabSettings, kitSchema } from "@/lib/validation/kits";
 
 type KitData = z.output<typeof kitSchema>;
 
@@ -39,4 +39,9 @@ export async function duplicateKit(actor: WorkspaceActor, id: string): Promise<s
 
 export async function archiveKit(actor: WorkspaceActor, id: string): Promise<void> {
   if (!(await archiveKitRow(actor, id))) throw new NotFound("not_found", "No such kit.");
+}
+
+/** Keep the slab editor's settings (already checked by `kitSlabSettingsSchema`) with a kit of the actor's workspace. */
+export async function saveSlabSettings(actor: WorkspaceActor, kitId: string, settings: KitSlabSettings): Promise<void> {
+  if (!(await setKitSlabSettings(actor, kitId, settings))) throw new NotFound("not_found", "No such kit.");
 }

@@ -8,10 +8,11 @@ import { Invalid, UnsupportedMedia } from "@/lib/errors";
 import { ACCEPTED_FORMATS } from "@/lib/geometry/formats";
 import { sniffHead } from "@/lib/geometry/io/sniff";
 import { slabOptionsSchema, type SlabOptionsInput } from "@/lib/geometry/options";
-import { mergeOptions, resolveValues, TemplateValueError, type TemplateVariableDef } from "@/lib/geometry/template";
+import { mergeOptions, type TemplateVariableDef } from "@/lib/geometry/template";
 import { API_UNITS, type ApiUnit } from "@/lib/geometry/units";
 import { callbackProblem } from "@/lib/jobs/webhook";
 import { versionForPlate } from "@/lib/templates/service";
+import { plateValues, TemplateValueError } from "@/lib/templates/values";
 import type { formatSchema } from "@/lib/validation/plates";
 import type { NewPlate } from "./create";
 import { titleFromParts } from "./name";
@@ -109,7 +110,7 @@ export async function resolvePlateRequest(actor: WorkspaceActor, order: PlateOrd
   let variables: Record<string, string>;
   if (version) {
     try {
-      variables = resolveValues(version.variables as TemplateVariableDef[], order.variables, {
+      variables = plateValues(version.variables as TemplateVariableDef[], order.variables, {
         date: today,
         kit: order.kitId ? title : undefined,
       });

@@ -4,10 +4,10 @@ import { revalidatePath } from "next/cache";
 import { z } from "zod";
 import { createPlate, remakePlate } from "@/lib/plates/create";
 import { resolvePlateRequest } from "@/lib/plates/request";
-import { archiveKit, duplicateKit, saveKit } from "@/lib/kits/service";
+import { archiveKit, duplicateKit, saveKit, saveSlabSettings } from "@/lib/kits/service";
 import { guardedAction } from "@/lib/auth/guards";
 import { idSchema } from "@/lib/validation/accounts";
-import { kitSchema } from "@/lib/validation/kits";
+import { kitSchema, kitSlabSettingsSchema } from "@/lib/validation/kits";
 
 export const saveKitAction = guardedAction(kitSchema, "kits:write", "editing kits", async (input, caller) => {
   const id = await saveKit(caller, input);
@@ -26,6 +26,20 @@ export const archiveKitAction = guardedAction(idSchema, "kits:write", "archiving
   revalidatePath("/kits");
   return { ok: true, data: undefined, message: "Kit archived." };
 });
+
+/**
+ * The slab editor keeps the kit's slab as the designer works (debounced, one call per pause). No
+ * revalidation: the editor already shows what it saved, and a refresh would reset the form.
+ */
+export const saveSlabSettingsAction = guardedAction(
+  z.object({ kitId: z.string().min(1), settings: kitSlabSettingsSchema }),
+  "kits:write",
+  "changing kits",
+  async (input, caller) => {
+    await saveSlabSettings(caller, input.kitId, input.settings);
+    return { ok: true, data: undefined };
+  },
+);
 
 const makePlateSchema = z.object({
   kitId: z.string().min(1),

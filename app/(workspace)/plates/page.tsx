@@ -15,6 +15,7 @@ export default async function PlatesPage() {
       <PageHeader title="Plates" lead="Every print-ready file made in this workspace, newest first." />
       <PlatesTable
         canMake={can(caller.role, "plates:make")}
+        canDownload={can(caller.role, "plates:download")}
         rows={rows}
         label="Plates"
         empty="No plates yet: open a kit in the slab editor and make its first plate."

@@ -173,7 +173,9 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
                   </td>
                   <td className="px-3 py-2 font-mono">{p.contactArea === null ? "—" : p.contactArea.toFixed(0)}</td>
                   <td className="px-3 py-2 font-mono">{(p.volume / 1000).toFixed(2)}</td>
-                  <td className="px-3 py-2 text-xs text-muted">{p.repairs.length ? p.repairs.join("; ") : "none"}</td>
+                  <td className="max-w-[14rem] whitespace-normal! px-3 py-2 text-xs text-muted">
+                    {p.repairs.length ? p.repairs.join("; ") : "none"}
+                  </td>
                   <td className="px-3 py-2 text-xs text-muted">
                     {p.createdAt.slice(0, 10)}
                     {p.uploadedBy ? ` · ${p.uploadedBy}` : ""}

@@ -5,6 +5,10 @@ import { when } from "@/lib/format";
 import { DataTable, EmptyState } from "../../_components/page-header";
 import { RemakeButton } from "./remake-button";
 
+/** A proof's summary wraps within its cell rather than widen the table past the column. */
+const PROOF = "block min-w-[10rem] max-w-[14rem] whitespace-normal text-xs";
+/** Names wrap (the table's cells do not by default), so a long kit or template name does not push the files out of sight. */
+const WRAP = "min-w-[8rem] max-w-[14rem] whitespace-normal!";
 const sourceLabel = { editor: "slab editor", api: "API", reprint: "reprint" } as const;
 const stateLabel = { queued: "waiting for a worker", running: "building", done: "ready", failed: "failed" } as const;
 
@@ -15,12 +19,15 @@ export function PlatesTable({
   showKit = true,
   empty,
   canMake = false,
+  canDownload = false,
 }: {
   rows: PlateRow[];
   label: string;
   showKit?: boolean;
   empty: string;
   canMake?: boolean;
+  /** The files' links only for a role that may download them (a viewer's would answer "forbidden"). */
+  canDownload?: boolean;
 }) {
   if (rows.length === 0) return <EmptyState message={empty} />;
   return (
@@ -32,7 +39,7 @@ export function PlatesTable({
           <tr key={p.id} data-testid="plate-row">
             <td className="px-3 py-2 text-muted">{when(p.createdAt)}</td>
             {showKit ? (
-              <td className="px-3 py-2 font-bold">
+              <td className={`${WRAP} px-3 py-2 font-bold`}>
                 {p.kitId && p.kitName ? (
                   <Link href={`/kits/${p.kitId}/slab`} className="hover:underline">
                     {p.kitName}
@@ -42,7 +49,7 @@ export function PlatesTable({
                 )}
               </td>
             ) : null}
-            <td className="px-3 py-2">
+            <td className={`${WRAP} px-3 py-2`}>
               {p.templateId ? (
                 <Link href={`/templates/${p.templateId}`} className="hover:underline">
                   {p.templateName} <span className="font-mono text-xs text-muted">v{p.templateVersion}</span>
@@ -61,19 +68,26 @@ export function PlatesTable({
               {stateLabel[p.jobState]}
               {warnings ? <span className="ml-1 text-finding-warning">· ⚠ {warnings}</span> : null}
               {p.proofSummary ? (
-                <span data-testid="plate-proof" className={`block text-xs ${p.proofOk ? "text-muted" : "text-finding-error"}`}>
+                <span data-testid="plate-proof" className={`${PROOF} ${p.proofOk ? "text-muted" : "text-finding-error"}`}>
                   {p.proofSummary}
                 </span>
               ) : null}
             </td>
-            <td className="space-x-2 px-3 py-2">
-              {EXPORT_FORMAT_IDS.filter((f) => p.files.includes(f)).map((f) => (
-                <a key={f} className="text-accent underline" href={`/api/plates/${p.id}/download?format=${f}`}>
-                  {EXPORT_FORMATS[f].label}
-                </a>
-              ))}
-              {p.files.length === 0 ? <span className="text-muted">—</span> : null}
-              {canMake && p.remakeable && p.jobState !== "queued" && p.jobState !== "running" ? <RemakeButton plateId={p.id} /> : null}
+            <td className="px-3 py-2">
+              <div className="flex flex-wrap items-center gap-x-2 gap-y-1">
+                {(canDownload ? EXPORT_FORMAT_IDS.filter((f) => p.files.includes(f)) : []).map((f) => (
+                  <a key={f} className="text-accent underline" href={`/api/plates/${p.id}/download?format=${f}`}>
+                    {EXPORT_FORMATS[f].label}
+                  </a>
+                ))}
+                {p.files.length === 0 ? <span className="text-muted">—</span> : null}
+                {p.files.length > 0 && !canDownload ? <span className="text-muted">no download for your role</span> : null}
+              </div>
+              {canMake && p.remakeable && p.jobState !== "queued" && p.jobState !== "running" ? (
+                <div className="mt-1">
+                  <RemakeButton plateId={p.id} />
+                </div>
+              ) : null}
             </td>
           </tr>
         );

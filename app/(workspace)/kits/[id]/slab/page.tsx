@@ -7,6 +7,7 @@ import type { TemplateVariableDef } from "@/lib/geometry/template";
 import { listTemplates } from "@/lib/templates/service";
 import { requireCaller } from "@/lib/auth/guards";
 import { can } from "@/lib/auth/permissions";
+import { readSlabSettings } from "@/lib/validation/kits";
 import { PageHeader } from "../../../_components/page-header";
 import { PlatesTable } from "../../../plates/_components/plates-table";
 import { SlabEditor } from "./_components/slab-editor";
@@ -33,6 +34,7 @@ export default async function SlabEditorPage({
     variables: t.variables as TemplateVariableDef[],
   }));
   const { template } = await searchParams;
+  const canEdit = can(caller.role, "kits:write");
   const parts = kit.lines.map((l) => ({
     id: l.partId,
     name: l.name,
@@ -44,13 +46,19 @@ export default async function SlabEditorPage({
     <>
       <PageHeader
         title={`Slab editor · ${kit.name}`}
-        lead="Every change rebuilds the preview in your browser with the same engine that makes the plate."
+        lead={
+          canEdit
+            ? "Every change rebuilds the preview in your browser with the same engine that makes the plate; the kit keeps your last slab."
+            : "The kit's slab as it was last set, built in your browser with the same engine that makes the plate."
+        }
       />
       <SlabEditor
         kitId={kit.id}
         kitName={kit.name}
         parts={parts}
+        canEdit={canEdit}
         canMake={can(caller.role, "plates:make")}
+        saved={readSlabSettings(kit.slabSettings)}
         canSaveTemplates={can(caller.role, "templates:write")}
         templates={templates}
         initialTemplateId={template}
@@ -61,10 +69,13 @@ export default async function SlabEditorPage({
         </h2>
         <PlatesTable
           canMake={can(caller.role, "plates:make")}
+          canDownload={can(caller.role, "plates:download")}
           rows={plates}
           label="Plates of this kit"
           showKit={false}
-          empty="No plate made from this kit yet: tune the slab above, then make the plate."
+          empty={
+            canEdit ? "No plate made from this kit yet: tune the slab above, then make the plate." : "No plate made from this kit yet."
+          }
         />
       </section>
     </>

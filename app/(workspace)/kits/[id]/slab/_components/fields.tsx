@@ -55,6 +55,7 @@ export function Num({
   unit,
   step,
   testId,
+  className = "",
 }: {
   form: Form;
   name: Path<FormValues>;
@@ -62,11 +63,12 @@ export function Num({
   unit?: string;
   step: number;
   testId?: string;
+  className?: string;
 }) {
   const id = `${useId()}-${name}`;
   const error = errorAt(form, name);
   return (
-    <div className="text-xs text-muted">
+    <div className={`text-xs text-muted ${className}`}>
       <label htmlFor={id}>
         {label}
         {unit ? <span className="ml-1">({unit})</span> : null}

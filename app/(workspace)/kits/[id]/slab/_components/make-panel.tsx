@@ -11,18 +11,24 @@ export function MakePanel({
   onMake,
   material,
   smallParts,
+  missing = [],
 }: {
   making: Making | null;
   disabled: boolean;
   onMake: () => void;
   material: Material;
   smallParts: boolean;
+  /** Placeholders with no value: the plate cannot be made until each has one. */
+  missing?: string[];
 }) {
   return (
     <section className="card space-y-2 p-3">
       <button type="button" className="btn-primary w-full" disabled={disabled} onClick={onMake}>
         Make the plate
       </button>
+      {missing.length ? (
+        <p className="text-xs text-finding-warning">⚠ Give a value for {missing.map((n) => `{${n}}`).join(", ")} under Values first.</p>
+      ) : null}
       {making ? (
         <div data-testid="make-status">
           <progress className="h-1.5 w-full accent-[#6d4aff]" max={1} value={making.progress} aria-label="Build progress" />

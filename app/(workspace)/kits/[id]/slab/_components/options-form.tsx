@@ -34,7 +34,19 @@ export const slabResolver: Resolver<FormValues> = async (values) => {
   return { values: {}, errors: errors as FieldErrors<FormValues> };
 };
 
-export function OptionsFields({ form }: { form: Form }) {
+/**
+ * `missing`: placeholders with no value at all; `fallbacks`: what an empty Values field falls back
+ * to (a template's samples or defaults).
+ */
+export function OptionsFields({
+  form,
+  missing = [],
+  fallbacks = {},
+}: {
+  form: Form;
+  missing?: string[];
+  fallbacks?: Record<string, string>;
+}) {
   return (
     <>
       <SlabFieldset form={form}>
@@ -45,7 +57,7 @@ export function OptionsFields({ form }: { form: Form }) {
       <QrFieldset form={form} />
       <LogoFieldset form={form} />
       <PieceMarksFieldset form={form} />
-      <ValuesFieldset form={form} />
+      <ValuesFieldset form={form} missing={missing} fallbacks={fallbacks} />
     </>
   );
 }

@@ -6,10 +6,13 @@ import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
 const path = (contours: [number, number][][]) =>
   contours.map((c) => `M${c.map(([x, y]) => `${x.toFixed(2)} ${y.toFixed(2)}`).join("L")}Z`).join("");
 
+const FOCUS_RING = "outline-none [&:focus-visible>path]:stroke-[#6d4aff] [&:focus-visible>path]:[stroke-width:0.8]";
+
 /**
  * The plate map, to scale (1 unit = 1 mm, y up): the slab, each piece's outline and number. Drag a
  * piece to move it (snapped to 0.5 mm; hold Alt for free moves). From the keyboard: Tab to a piece,
- * arrow keys move it 0.5 mm (Shift: 5 mm), R turns it 15° (Shift+R: 1°).
+ * arrow keys move it 0.5 mm (Shift: 5 mm), R turns it 15° (Shift+R: 1°). Selection is by kit slot, which
+ * stays with the piece; its number follows its place. `readOnly`: pieces can be picked, not moved.
  */
 export function PlateMap({
   layout,
@@ -18,13 +21,16 @@ export function PlateMap({
   flagged,
   onSelect,
   onMove,
+  readOnly = false,
 }: {
   layout: PlateLayout;
   pieces: PlacedPiece[];
+  /** The selected piece's slot, and the slots of pieces a finding points at. */
   selected?: number;
   flagged: Set<number>;
-  onSelect: (n?: number) => void;
+  onSelect: (slot?: number) => void;
   onMove: (piece: PlacedPiece, dx: number, dy: number, turn?: number) => void;
+  readOnly?: boolean;
 }) {
   const svg = useRef<SVGSVGElement>(null);
   const [drag, setDrag] = useState<{ piece: PlacedPiece; x0: number; y0: number; dx: number; dy: number } | null>(null);
@@ -76,20 +82,22 @@ export function PlateMap({
           />
         ))}
         {pieces.map((p) => {
-          const moving = drag?.piece.number === p.number;
-          const colour = p.number === selected ? "#6d4aff" : flagged.has(p.number) ? "#b7791f" : "#4a4f57";
+          const moving = drag?.piece.slot === p.slot;
+          const colour = p.slot === selected ? "#6d4aff" : flagged.has(p.slot) ? "#b7791f" : "#4a4f57";
           return (
             <g
               key={p.slot}
               transform={moving ? `translate(${drag.dx} ${drag.dy})` : undefined}
               data-testid={`map-piece-${p.number}`}
-              className="cursor-grab outline-none [&:focus-visible>path]:stroke-[#6d4aff] [&:focus-visible>path]:[stroke-width:0.8]"
+              data-slot={p.slot}
+              className={`${readOnly ? "cursor-pointer" : "cursor-grab"} ${FOCUS_RING}`}
               tabIndex={0}
               role="button"
-              aria-label={`Piece ${p.number}, ${p.partName}: arrow keys move it, R turns it`}
-              aria-pressed={p.number === selected}
-              onFocus={() => onSelect(p.number)}
+              aria-label={`Piece ${p.number}, ${p.partName}${readOnly ? "" : ": arrow keys move it, R turns it"}`}
+              aria-pressed={p.slot === selected}
+              onFocus={() => onSelect(p.slot)}
               onKeyDown={(e) => {
+                if (readOnly) return;
                 const step = e.shiftKey ? 5 : 0.5;
                 const moves: Record<string, [number, number]> = {
                   ArrowLeft: [-step, 0],
@@ -108,8 +116,9 @@ export function PlateMap({
               }}
               onPointerDown={(e) => {
                 e.currentTarget.ownerSVGElement?.setPointerCapture?.(e.pointerId);
+                onSelect(p.slot);
+                if (readOnly) return;
                 const q = toMm(e);
-                onSelect(p.number);
                 setDrag({ piece: p, x0: q.x, y0: q.y, dx: 0, dy: 0 });
               }}
             >
@@ -119,11 +128,11 @@ export function PlateMap({
         })}
       </g>
       {pieces.map((p) => {
-        const moving = drag?.piece.number === p.number;
+        const moving = drag?.piece.slot === p.slot;
         const size = Math.max(2.5, Math.min(6, (p.bounds.maxX - p.bounds.minX) / 2.5));
         return (
           <text
-            key={p.number}
+            key={p.slot}
             x={(p.bounds.minX + p.bounds.maxX) / 2 + (moving ? drag.dx : 0)}
             y={D - (p.bounds.minY + p.bounds.maxY) / 2 - (moving ? drag.dy : 0)}
             fontSize={size}

@@ -16,6 +16,7 @@ const built = (seq: number, over: Partial<Built>): Built => ({
   slab: null,
   pieces: [],
   layout: null,
+  tried: null,
   findings: [],
   estimates: null,
   ...over,
@@ -53,5 +54,18 @@ describe("the preview across builds", () => {
   it("a first build that is refused is not stale: there is nothing older to show", () => {
     const p = mergePreview(null, built(1, { slab: null, pieces: [piece(1, 5)], findings: [overlap] }));
     expect(p).toMatchObject({ slab: null, stale: false, viewPieces: [piece(1, 5)], layout: null });
+  });
+
+  it("a build whose pieces do not fit the bed brings what was tried; the next that fits drops it", () => {
+    const tried = {
+      bed: { width: 60, depth: 60 },
+      room: { minX: 5, minY: 5, maxX: 55, maxY: 55 },
+      bands: { bottom: null, top: null, overflows: false },
+      pieces: [],
+    };
+    const none = mergePreview(null, built(1, { tried, findings: [{ severity: "error", code: "does_not_fit", message: "…" }] }));
+    expect(none).toMatchObject({ slab: null, layout: null, tried: { bed: { width: 60 } } });
+    const fits = mergePreview(none, built(2, { slab: slab("a"), pieces: [piece(1, 10)], layout: layout(100) }));
+    expect(fits.tried).toBeNull();
   });
 });

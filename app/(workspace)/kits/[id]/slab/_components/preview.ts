@@ -1,4 +1,4 @@
-import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
+import type { PlacedPiece, PlateLayout, TriedLayout } from "@/lib/geometry/build-plate";
 import type { Finding } from "@/lib/geometry/checks";
 import type { Estimates } from "@/lib/geometry/estimates";
 import type { Body, FromWorker } from "./protocol";
@@ -7,6 +7,7 @@ import type { Body, FromWorker } from "./protocol";
  * What the editor shows of the newest preview build. `pieces`, findings and estimates are always the
  * newest build's; `slab`, `viewPieces` (the pieces the 3D view places on it) and `layout` are the
  * newest that built, so a change the checks refuse leaves the last good slab in view, marked stale.
+ * `tried` is the newest build's when its pieces did not fit the bed (what the plate map shows then).
  */
 export type Preview = {
   slab: Body | null;
@@ -14,6 +15,7 @@ export type Preview = {
   stale: boolean;
   pieces: PlacedPiece[];
   layout: PlateLayout | null;
+  tried: TriedLayout | null;
   findings: Finding[];
   estimates: Estimates | null;
   ms: number;
@@ -28,6 +30,7 @@ export function mergePreview(prev: Preview | null, m: Extract<FromWorker, { type
     pieces: m.pieces,
     viewPieces: m.slab || !prev ? m.pieces : prev.viewPieces,
     layout: m.layout ?? prev?.layout ?? null,
+    tried: m.tried,
     findings: m.findings,
     estimates: m.estimates,
     ms: m.ms,

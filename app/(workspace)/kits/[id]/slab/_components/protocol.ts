@@ -1,7 +1,7 @@
 import type { KitPart } from "@/db/schema";
 import type { Finding } from "@/lib/geometry/checks";
 import type { Estimates } from "@/lib/geometry/estimates";
-import type { PlacedPiece, PlateLayout } from "@/lib/geometry/build-plate";
+import type { PlacedPiece, PlateLayout, TriedLayout } from "@/lib/geometry/build-plate";
 import type { SlabOptionsInput } from "@/lib/geometry/options";
 
 /**
@@ -31,6 +31,8 @@ export type FromWorker =
       slab: Body | null;
       pieces: PlacedPiece[];
       layout: PlateLayout | null;
+      /** The pieces do not fit the bed: where they were tried. */
+      tried: TriedLayout | null;
       findings: Finding[];
       estimates: Estimates | null;
     }

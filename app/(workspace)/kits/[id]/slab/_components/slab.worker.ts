@@ -96,6 +96,7 @@ function pump() {
         slab,
         pieces: r.pieces,
         layout: r.layout,
+        tried: r.tried ?? null,
         findings: r.findings,
         estimates: r.estimates,
       },

@@ -23,6 +23,7 @@ export function TemplatePicker({
   values,
   canSave,
   onSaved,
+  disabled = false,
 }: {
   templates: EditorTemplate[];
   applied: EditorTemplate | null;
@@ -30,6 +31,7 @@ export function TemplatePicker({
   values: FormValues;
   canSave: boolean;
   onSaved: (t: EditorTemplate) => void;
+  disabled?: boolean;
 }) {
   const toast = useToast();
   return (
@@ -39,6 +41,7 @@ export function TemplatePicker({
         <select
           className="field-input mt-0.5 py-1 text-sm"
           aria-label="Apply a template"
+          disabled={disabled}
           value={applied?.id ?? ""}
           onChange={(e) => {
             const t = templates.find((x) => x.id === e.target.value) ?? null;

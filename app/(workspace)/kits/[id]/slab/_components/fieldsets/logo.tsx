@@ -5,6 +5,12 @@ import { useWatch } from "react-hook-form";
 import { importSvgLogo, LogoError } from "@/lib/geometry/marks/logo";
 import { Num, Pick, RELIEF, WHERE, type Form } from "../fields";
 
+const FILE_INPUT = [
+  "field-input mt-0.5 cursor-pointer px-1.5 py-1 text-xs text-muted",
+  "file:mr-2 file:cursor-pointer file:rounded-card file:border file:border-solid file:border-hairline file:bg-paper",
+  "file:px-2 file:py-0.5 file:text-xs file:font-bold file:text-ink hover:file:border-accent",
+].join(" ");
+
 /** A logo from an SVG drawing (its outlines), read in the browser; then its width, relief and place. */
 export function LogoFieldset({ form }: { form: Form }) {
   const logo = useWatch({ control: form.control, name: "logo" });
@@ -14,13 +20,19 @@ export function LogoFieldset({ form }: { form: Form }) {
     <fieldset className="space-y-2">
       <legend className="font-bold">Logo</legend>
       <div className="text-xs text-muted">
-        <label htmlFor={`${id}-file`}>{logo ? `“${logo.name}” — replace with another SVG` : "SVG drawing (outlines only)"}</label>
+        <label htmlFor={`${id}-file`}>SVG drawing (outlines only){logo ? ": choose another to replace it" : ""}</label>
+        {logo ? (
+          <span className="block text-ink" id={`${id}-now`}>
+            Now: “{logo.name}”
+          </span>
+        ) : null}
+        {/* The browser's own file control (keyboard and screen readers know it), dressed like our fields. */}
         <input
           id={`${id}-file`}
           type="file"
           accept=".svg,image/svg+xml"
-          className="mt-0.5 block w-full text-xs"
-          aria-describedby={problem ? `${id}-e` : undefined}
+          className={FILE_INPUT}
+          aria-describedby={[problem ? `${id}-e` : "", logo ? `${id}-now` : ""].filter(Boolean).join(" ") || undefined}
           onChange={async (e) => {
             const file = e.target.files?.[0];
             e.target.value = "";

@@ -26,14 +26,14 @@ export function PieceMarksFieldset({ form }: { form: Form }) {
         />
       </div>
       {numbers ? (
-        <div className="grid grid-cols-3 gap-2">
+        <div className="grid grid-cols-2 gap-2">
           <Num form={form} name="numberStyle.size" label="Number height" unit="mm" step={0.5} />
           <Pick form={form} name="numberStyle.font" label="Number face" options={FACES} />
           <Num form={form} name="numberStyle.depth" label="Number depth" unit="mm" step={0.1} />
         </div>
       ) : null}
       {outlines !== "none" ? (
-        <div className="grid grid-cols-3 gap-2">
+        <div className="grid grid-cols-2 gap-2">
           {outlines === "ring" ? <Num form={form} name="ringStyle.width" label="Ring width" unit="mm" step={0.1} /> : null}
           <Num form={form} name="ringStyle.clearance" label="Clearance" unit="mm" step={0.1} />
           <Num form={form} name="ringStyle.depth" label={outlines === "ring" ? "Ring depth" : "Pocket depth"} unit="mm" step={0.1} />
