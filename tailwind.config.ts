@@ -17,7 +17,7 @@ const config: Config = {
         muted: "var(--sw-muted)",
         hairline: "var(--sw-hairline)",
         accent: { DEFAULT: "#6d4aff", hover: "#5a38f0", soft: "var(--sw-accent-soft)" },
-        finding: { error: "#c8322d", warning: "#b7791f", info: "#55606e" },
+        finding: { error: "var(--sw-finding-error)", warning: "var(--sw-finding-warning)", info: "var(--sw-finding-info)" },
         slab: { top: "#efe8dc", piece: "#4a4f57" },
       },
       fontFamily: {

@@ -1,4 +1,5 @@
 import type { Piscina } from "piscina";
+import { runOnPool } from "./pool-run";
 import type { ExportFormatId } from "@/lib/geometry/formats";
 import type { plates, Plate } from "@/db/schema";
 import { announcePlate, finishBuild, plateForBuild, setBuildProgress, startBuild } from "@/db/queries/builds";
@@ -30,7 +31,7 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     // The 3MF's Title: the plate as people name it, the order reference first.
     title: plateName(plate),
   };
-  const outcome = (await pool.run(task)) as BuildOutcome;
+  const outcome = await runOnPool<BuildOutcome>(pool, task);
   if (!outcome.ok) {
     await finish(plate, {
       jobState: "failed",

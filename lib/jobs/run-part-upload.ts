@@ -1,4 +1,5 @@
 import type { Piscina } from "piscina";
+import { runOnPool } from "./pool-run";
 import type { PartUpload } from "@/db/schema";
 import { deletePartRow, finishUpload, insertParts, lockPart, refuseUpload, setPartMeasures, uploadForImport } from "@/db/queries/parts";
 import { transaction, type Tx } from "@/db/queries/tx";
@@ -36,7 +37,7 @@ export async function runPartUploadJob(pool: Piscina, uploadId: string): Promise
     unit: u.options.unit as Unit | undefined,
     layFlat: u.options.layFlat,
   };
-  const outcome = (await pool.run(task, { name: "importPart" })) as PartUploadOutcome;
+  const outcome = await runOnPool<PartUploadOutcome>(pool, task, { name: "importPart" });
   if (!outcome.ok) return refuse(u, outcome.code, outcome.message, outcome.details);
   try {
     await transaction(async (tx) => {

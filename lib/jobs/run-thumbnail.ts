@@ -1,4 +1,5 @@
 import type { Piscina } from "piscina";
+import { runOnPool } from "./pool-run";
 import { setThumbnail, versionForThumbnail } from "@/db/queries/templates";
 import type { TemplateVariableDef } from "@/lib/geometry/template";
 import { thumbnailValues } from "@/lib/templates/values";
@@ -19,7 +20,7 @@ export async function runThumbnailJob(pool: Piscina, versionId: string): Promise
     title: "template",
     sample: true,
   };
-  const outcome = (await pool.run(task)) as BuildOutcome;
+  const outcome = await runOnPool<BuildOutcome>(pool, task);
   if (!outcome.ok) {
     await setThumbnail(versionId, {
       thumbnailState: "failed",

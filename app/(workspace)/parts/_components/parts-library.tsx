@@ -61,12 +61,11 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
     await mutate();
   };
   const header = (label: string, s?: Sort) => (
-    <th scope="col" className="px-3 py-2 font-bold">
+    <th scope="col" className="px-3 py-2 font-bold" aria-sort={s && sort === s ? (dir === "asc" ? "ascending" : "descending") : undefined}>
       {s ? (
         <button
           type="button"
           className="uppercase tracking-wide hover:text-ink"
-          aria-sort={sort === s ? (dir === "asc" ? "ascending" : "descending") : undefined}
           onClick={() => {
             if (sort === s) setDir(dir === "asc" ? "desc" : "asc");
             else {
