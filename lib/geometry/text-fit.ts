@@ -8,7 +8,7 @@
 import type { Finding } from "./checks";
 import { printableStroke, strokeLoss, THIN_LOSS } from "./checks";
 import { inBand, type MarkShapes, type TextLine } from "./mark-bands";
-import { layoutText, lineWidth } from "./marks/text";
+import { layoutText, lineWidth, type TextShape } from "./marks/text";
 import type { PlateContext } from "./plate-context";
 
 /** Cap heights are tried in steps of this (mm). */
@@ -86,17 +86,18 @@ export function fitTextLines(ctx: PlateContext, shapes: MarkShapes, spacing: num
     const fitsPrinting = fitting !== null && prints(fitting) ? fitting : null;
     const label = `Text line ${t.line + 1} ("${t.value}")`;
     const field = (name: "value" | "size") => ["marks", "text", t.line, name];
-    if (t.mark.fit === "shrink" && fitsPrinting !== null) {
+    const shrunk = (size: number, to: TextShape): TextLine => {
       findings.push({
         severity: "warning",
         code: "text_shrunk",
         field: field("size"),
         message:
-          `${label} was reduced from ${mmOf(t.size)} to ${mmOf(fitsPrinting)} cap height to fit: at ${mmOf(t.size)} it is ` +
+          `${label} was reduced from ${mmOf(t.size)} to ${mmOf(size)} cap height to fit: at ${mmOf(t.size)} it is ` +
           `${r1(width)} mm long, and ${room.words}. Shorten it, or give it ${roomAdvice(room)}, to keep its size.`,
       });
-      return { ...t, size: fitsPrinting, shape };
-    }
+      return { ...t, size, shape: to };
+    };
+    if (t.mark.fit === "shrink" && fitsPrinting !== null) return shrunk(fitsPrinting, shape);
     if (t.mark.fit === "refuse") {
       findings.push({
         severity: "error",
@@ -111,7 +112,10 @@ export function fitTextLines(ctx: PlateContext, shapes: MarkShapes, spacing: num
     }
     // Shrinking cannot help: at the smallest cap height that prints it is still too long.
     const floor = smallestPrinting(t.size, prints);
-    const atFloor = lineWidth(at(floor ?? t.size));
+    const floorShape = at(floor ?? t.size);
+    const atFloor = lineWidth(floorShape);
+    // Strokes that thin out as the text grows (rare) may print at the floor though not at the fitting step.
+    if (floor !== null && atFloor <= room.width + 1e-9) return shrunk(floor, floorShape);
     const strokes = `${t.mark.relief === "engrave" ? "engraved strokes need 1" : "embossed strokes need 2"} × its line width`;
     findings.push({
       severity: "error",
