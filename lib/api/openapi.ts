@@ -210,7 +210,10 @@ export function openApiDocument() {
             "one that is plainly not a mesh (by its first bytes) is refused at once (415, or 422 `empty`). The meshes are imported " +
             "by the build worker, not while the request is read: an import refusal (e.g. `open_mesh`, `too_many_triangles`, " +
             "`too_many_vertices`, `too_many_bodies`, `archive_too_large`) comes back as the build's 422 within the wait, " +
-            "or as the job's `error` when the answer is 202.",
+            "or as the job's `error` when the answer is 202. A text line longer than its room (its `maxWidth`, or what the bed " +
+            "leaves it) follows its `fit`: `shrink` (the default) makes it smaller, never below the smallest cap height whose " +
+            "strokes print at the nozzle, and says so in a `text_shrunk` warning; `refuse`, or a line too long even at that floor, " +
+            "is a 422 with the `text_too_long` finding, whose `field` names the line (e.g. `marks.text.1.value`).",
           parameters: [
             {
               name: "Idempotency-Key",

@@ -5,10 +5,9 @@
  * mark's depth.
  */
 import type { Finding } from "./checks";
-import type { Logo, MarkPlaces, MarkShapes, TextLine } from "./mark-bands";
+import type { Logo, MarkPlaces, MarkShapes } from "./mark-bands";
 import { LOGO_LIMITS } from "./marks/logo";
 import { qrShape } from "./marks/qr";
-import { lineWidth } from "./marks/text";
 import { deepestEngraving, depthOrDefault, floorUnderMarks, type Depth, type SlabOptions } from "./options";
 import type { CornerFit } from "./slab";
 
@@ -27,22 +26,12 @@ export function logoTooComplex(logo: Logo | null): Finding | undefined {
   };
 }
 
-/** Room a template gives its filled values (a line's maxWidth, the QR's maxSize): too long is an error that says by how much. */
+/**
+ * Room a template gives the QR code's filled value (its maxSize): too large is an error that says by
+ * how much. (A text line's room, maxWidth included, is fitted in text-fit.ts.)
+ */
 export function roomForValues(shapes: MarkShapes): Finding[] {
   const out: Finding[] = [];
-  for (const [i, t] of shapes.texts.entries()) {
-    const width = lineWidth(t.shape);
-    if (t.mark.maxWidth !== undefined && width > t.mark.maxWidth + 1e-9) {
-      out.push({
-        severity: "error",
-        code: "text_too_long",
-        field: ["marks", "text", i, "value"],
-        message:
-          `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; its line allows ${t.mark.maxWidth} mm: ` +
-          `${(width - t.mark.maxWidth).toFixed(1)} mm too long. Shorten the value or make the text smaller.`,
-      });
-    }
-  }
   const qr = shapes.qr;
   if (qr && qr.mark.maxSize !== undefined && qr.shape.sizeWithQuietZone > qr.mark.maxSize + 1e-9) {
     // The longest start of the value that still fits, found by halving.
@@ -67,12 +56,15 @@ export function roomForValues(shapes: MarkShapes): Finding[] {
   return out;
 }
 
-/** The pieces and bands found no place on the bed: what the widest row needs, and each text line too long for the bed. */
-export function doesNotFit(o: SlabOptions, room: { needW: number; maxW: number }, texts: TextLine[]): Finding[] {
+/**
+ * The pieces and bands found no place on the bed: what the widest row needs. Text lines are fitted
+ * to the bed before the layout (text-fit.ts), so a too-long line is never the cause here.
+ */
+export function doesNotFit(o: SlabOptions, room: { needW: number; maxW: number }): Finding[] {
   const { needW, maxW } = room;
   const m = o.slab.margin;
   const widest = needW > maxW ? ` (the widest row needs ${needW.toFixed(1)} mm, ${(needW - maxW).toFixed(1)} mm more than there is)` : "";
-  const out: Finding[] = [
+  return [
     {
       severity: "error",
       code: "does_not_fit",
@@ -82,19 +74,6 @@ export function doesNotFit(o: SlabOptions, room: { needW: number; maxW: number }
         `margins${widest}. Use a bigger bed, fewer copies, or split the kit over two plates.`,
     },
   ];
-  for (const [i, t] of texts.entries()) {
-    const width = lineWidth(t.shape);
-    if (width > maxW)
-      out.push({
-        severity: "error",
-        code: "text_too_long",
-        field: ["marks", "text", i, "value"],
-        message:
-          `"${t.value}" is ${width.toFixed(1)} mm long at ${t.mark.size} mm; the bed leaves ${maxW.toFixed(1)} mm: ` +
-          `${(width - maxW).toFixed(1)} mm too long. Shorten it or make it smaller.`,
-      });
-  }
-  return out;
 }
 
 /** Numbers asked for in layout.pieceNumbers must be one per piece, each its own. */
@@ -209,8 +188,7 @@ export function markDepths(o: SlabOptions, places: MarkPlaces, logo: Logo | null
     : 0;
   const texts = places.texts.map((b) => {
     if (b.shape.contours.length === 0) return undefined;
-    const line = marks.text.indexOf(b.mark);
-    return depthOf(b.mark.relief, b.mark.depth, ["marks", "text", line, "depth"], `text line ${line + 1} ("${b.value}")`);
+    return depthOf(b.mark.relief, b.mark.depth, ["marks", "text", b.line, "depth"], `text line ${b.line + 1} ("${b.value}")`);
   });
   const qr = places.qr ? depthOf(places.qr.mark.relief, places.qr.mark.depth, ["marks", "qr", "depth"], "QR code") : undefined;
   const lg =

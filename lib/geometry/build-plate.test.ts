@@ -273,12 +273,14 @@ describe("layout", () => {
         expect(a.maxX <= b.minX + 1e-6 || b.maxX <= a.minX + 1e-6 || a.maxY <= b.minY + 1e-6 || b.maxY <= a.minY + 1e-6).toBe(true);
       }
     expect(plate({}).tried).toBeUndefined();
+    // A line too long for the bed is the line's own finding, never the kit's.
     const long = plate({
       layout: { bed: { width: 100, depth: 200 } },
-      marks: { text: [{ value: "THIS LINE IS FAR TOO LONG FOR THE BED" }] },
+      marks: { text: [{ value: "THIS LINE IS FAR TOO LONG FOR THE BED", fit: "refuse" }] },
     });
     expect(codes(long)).toContain("text_too_long");
-    expect(long.findings.find((f) => f.code === "text_too_long")!.message).toMatch(/mm too long/);
+    expect(codes(long)).not.toContain("does_not_fit");
+    expect(long.findings.find((f) => f.code === "text_too_long")!.message).toMatch(/^Text line 1 .* mm too long/);
   });
 });
 
@@ -443,6 +445,16 @@ describe("one fixture per finding code", () => {
       "unfilled_placeholder",
       () => plate({ marks: { text: [{ value: "Order {order}" }] } }),
       () => plate({ marks: { text: [{ value: "Order {order}" }] } }, undefined, { variables: { order: "7" } }),
+    ],
+    [
+      "text_shrunk",
+      () => plate({ marks: { text: [{ value: "Thank you, Jordan Okafor!", size: 4, maxWidth: 70 }] } }),
+      () => plate({ marks: { text: [{ value: "Thank you, Sam!", size: 4, maxWidth: 70 }] } }),
+    ],
+    [
+      "text_too_long",
+      () => plate({ marks: { text: [{ value: "Thank you, Jordan Okafor!", size: 4, maxWidth: 70, fit: "refuse" }] } }),
+      () => plate({ marks: { text: [{ value: "Thank you, Jordan Okafor!", size: 4, maxWidth: 70 }] } }),
     ],
     ["mark_collides", () => placedText(true), () => placedText(false)],
     ["pieces_overlap", () => twoAt(5), () => twoAt(45)],

@@ -43,6 +43,7 @@ import {
 import { Laps, type Box, type PlateContext } from "./plate-context";
 import type { SlabShape } from "./slab";
 import { slabAround, slabSolid } from "./slab-solid";
+import { fitTextLines } from "./text-fit";
 import { unfilledPlaceholders } from "./variables";
 
 export { newPartCache, placeMesh, type PartCache, type PartMeasure, type PlacedPiece, type PlatePart } from "./pieces";
@@ -126,19 +127,24 @@ function build(ctx: BuildContext): PlateResult {
   laps.lap("footprints");
   const pieces = kitPieces(o, input.parts, footprints);
 
-  // 2. The marks' shapes, and the room they and the numbers take around the pieces.
-  const shapes = markShapes(ctx);
-  const complex = logoTooComplex(shapes.logo);
+  // 2. The marks' shapes, each text line fitted to its room (shrunk, or refused: that stops the
+  // build here), and the room they and the numbers take around the pieces.
+  const laidOut = markShapes(ctx);
+  const complex = logoTooComplex(laidOut.logo);
   if (complex) return refuse(complex);
-  findings.push(...roomForValues(shapes));
+  findings.push(...roomForValues(laidOut));
   const room = pieceRoom(o, numberWidth(ctx, pieces.length));
+  const fitted = fitTextLines(ctx, laidOut, room.spacing);
+  findings.push(...fitted.findings);
+  if (fitted.findings.some((f) => f.severity === "error")) return refuse();
+  const shapes = fitted.shapes;
   const bands = markBands(shapes, room.spacing);
   laps.lap("marks layout");
 
   // 3. The pieces on the bed (where placed by hand, else packed), then numbered.
-  const placing = placePieces(o, pieces, room, bands, shapes.texts);
+  const placing = placePieces(o, pieces, room, bands);
   laps.lap("layout");
-  if (!placing.fits) return { ...refuse(...doesNotFit(o, placing, shapes.texts)), tried: triedPlacement(o, pieces, room, bands) };
+  if (!placing.fits) return { ...refuse(...doesNotFit(o, placing)), tried: triedPlacement(o, pieces, room, bands) };
   const numbersAsked = pieceNumbersMismatch(o.layout.pieceNumbers, pieces.length);
   if (numbersAsked) return refuse(numbersAsked);
   const numberOf = numberPieces(

@@ -30,6 +30,7 @@ export type FindingCode =
   // The marks' shapes and the room a template gives them.
   | "logo_too_complex"
   | "text_too_long"
+  | "text_shrunk"
   | "qr_too_large"
   // The layout on the bed.
   | "does_not_fit"
@@ -106,7 +107,26 @@ const AREA_EPS = 0.01;
 export const TIP_RATIO = 3;
 
 /** Warn when an opening (shrink, then grow back) by half the printable stroke removes more of a mark than this. */
-const THIN_LOSS = 0.25;
+export const THIN_LOSS = 0.25;
+
+/**
+ * The narrowest stroke a mark prints with: one line of the nozzle for an engraved groove, two for an
+ * embossed rib (a slicer draws a raised stroke as two perimeters; narrower, it leaves it out).
+ */
+export function printableStroke(nozzle: number, relief: "engrave" | "emboss"): number {
+  return relief === "engrave" ? nozzle : 2 * nozzle;
+}
+
+/**
+ * The share of a region that an opening by `stroke` removes (shrink by half of it, grow back): what
+ * is narrower than the stroke and would not print. 0 for a region without area.
+ */
+export function strokeLoss(scope: Scope, cs: CrossSection, stroke: number): number {
+  const a = cs.area();
+  if (a <= 0) return 0;
+  const opened = scope.track(scope.track(cs.offset(-stroke / 2, "Round", 2, 16)).offset(stroke / 2, "Round", 2, 16));
+  return 1 - opened.area() / a;
+}
 
 const r1 = (n: number) => n.toFixed(1);
 const r2 = (n: number) => n.toFixed(2);
@@ -315,11 +335,8 @@ export function runChecks(kernel: Kernel, scope: Scope, c: CheckInput): Finding[
   }
   for (const mk of c.marks) {
     if (mk.kind === "qr") continue;
-    const stroke = mk.relief === "engrave" ? nozzle : 2 * nozzle;
-    const a = area(mk.cs);
-    if (a <= 0) continue;
-    const opened = scope.track(scope.track(mk.cs.offset(-stroke / 2, "Round", 2, 16)).offset(stroke / 2, "Round", 2, 16));
-    const lost = 1 - area(opened) / a;
+    const stroke = printableStroke(nozzle, mk.relief);
+    const lost = strokeLoss(scope, mk.cs, stroke);
     if (lost > THIN_LOSS) {
       out.push({
         severity: "warning",

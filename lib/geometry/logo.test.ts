@@ -174,13 +174,13 @@ describe("room for a template's values", () => {
     const r = buildPlate(kernel, {
       parts: tile(),
       fonts,
-      options: { marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 40 }] } },
+      options: { marks: { text: [{ value: "Thank you, {customer}!", size: 5, maxWidth: 40, fit: "refuse" }] } },
       variables: { customer: "Bartholomew Quennell-Ashdown" },
       formats: [],
     });
     const f = r.findings.find((x) => x.code === "text_too_long")!;
     expect(f.severity).toBe("error");
-    expect(f.message).toMatch(/allows 40 mm: \d+\.\d mm too long/);
+    expect(f.message).toMatch(/^Text line 1 .* is \d+\.\d mm too long: .* its line allows 40 mm/);
     const ok = buildPlate(kernel, {
       parts: tile(),
       fonts,

@@ -1,7 +1,7 @@
 import { logoContours, logoHeight } from "./marks/logo";
 import { qrShape, type QrShape } from "./marks/qr";
 import { layoutText, lineWidth, type TextShape } from "./marks/text";
-import type { LogoMark, QrMark, SlabOptions, TextMark } from "./options";
+import type { LogoMark, MarkPosition, QrMark, SlabOptions, TextMark } from "./options";
 import type { PieceRoom } from "./piece-layout";
 import { pieceBounds, type Piece } from "./pieces";
 import type { Box, PlateContext } from "./plate-context";
@@ -17,7 +17,11 @@ export const NUMBER_GAP = 0.8;
 /** Above and below a number's cap height in its row (mm). */
 export const NUMBER_PAD = 0.3;
 
-export type TextLine = { mark: TextMark; value: string; shape: TextShape };
+/**
+ * A text line with its placeholders filled and laid out: `line` is its place in the options' text
+ * lines, `size` the cap height it is laid out at (its mark's size, or less where it was shrunk to fit).
+ */
+export type TextLine = { mark: TextMark; line: number; value: string; size: number; shape: TextShape };
 export type QrCode = { mark: QrMark; value: string; shape: QrShape };
 export type Logo = { mark: LogoMark; w: number; h: number; parts: ReturnType<typeof logoContours> };
 /** The marks that need room, with their placeholders filled and their shapes laid out (mm, kernel-free). */
@@ -25,9 +29,9 @@ export type MarkShapes = { texts: TextLine[]; qr: QrCode | null; logo: Logo | nu
 
 export function markShapes(ctx: PlateContext): MarkShapes {
   const { marks } = ctx.options;
-  const texts = marks.text.map((mark) => {
+  const texts = marks.text.map((mark, line) => {
     const value = fillPlaceholders(mark.value, ctx.vars);
-    return { mark, value, shape: layoutText(ctx.fonts[mark.font], value, mark.size) };
+    return { mark, line, value, size: mark.size, shape: layoutText(ctx.fonts[mark.font], value, mark.size) };
   });
   const qrValue = marks.qr ? fillPlaceholders(marks.qr.value, ctx.vars) : "";
   const qr = marks.qr ? { mark: marks.qr, value: qrValue, shape: qrShape(qrValue, marks.qr.module, marks.qr.level) } : null;
@@ -49,14 +53,17 @@ export type Band = { lines: TextLine[]; qr: QrCode | null; logo: Logo | null; h:
 /** Both bands, and the height and width they take on the slab (with the spacing to the pieces). */
 export type Bands = { bottom: Band; top: Band; h: number; w: number };
 
+/** Whether a mark at `position` sits in that band ("auto" is the bottom band; a hand-placed mark is in neither). */
+export function inBand(position: MarkPosition, where: "top" | "bottom"): boolean {
+  return position === where || (where === "bottom" && position === "auto");
+}
+
 function band(shapes: MarkShapes, where: "top" | "bottom", spacing: number): Band {
-  const inBand = (p: SlabOptions["marks"]["text"][number]["position"]) => p === where || (where === "bottom" && p === "auto");
-  const lines = shapes.texts.filter((t) => inBand(t.mark.position));
-  const qr = shapes.qr && inBand(shapes.qr.mark.position) ? shapes.qr : null;
-  const logo = shapes.logo && inBand(shapes.logo.mark.position) ? shapes.logo : null;
+  const lines = shapes.texts.filter((t) => inBand(t.mark.position, where));
+  const qr = shapes.qr && inBand(shapes.qr.mark.position, where) ? shapes.qr : null;
+  const logo = shapes.logo && inBand(shapes.logo.mark.position, where) ? shapes.logo : null;
   const textH =
-    lines.reduce((s, t, i) => s + t.mark.size * (i === 0 ? 1 : LINE_PITCH), 0) +
-    (lines.length ? DESCENT * lines[lines.length - 1]!.mark.size : 0);
+    lines.reduce((s, t, i) => s + t.size * (i === 0 ? 1 : LINE_PITCH), 0) + (lines.length ? DESCENT * lines[lines.length - 1]!.size : 0);
   const textW = Math.max(0, ...lines.map((t) => lineWidth(t.shape)));
   const qrSide = qr ? qr.shape.sizeWithQuietZone : 0;
   const h = Math.max(textH, qrSide, logo?.h ?? 0);
@@ -130,9 +137,9 @@ export type MarkPlaces = { texts: TextBlock[]; qr: QrBlock | null; logo: LogoBlo
 export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, frame: BandFrame, spacing: number): MarkPlaces {
   const texts: TextBlock[] = [];
   const placeBand = (b: Band, y0: number) => {
-    let y = y0 + b.h - (b.lines[0]?.mark.size ?? 0) - Math.max(0, (b.h - b.textH) / 2);
+    let y = y0 + b.h - (b.lines[0]?.size ?? 0) - Math.max(0, (b.h - b.textH) / 2);
     b.lines.forEach((t, i) => {
-      if (i > 0) y -= t.mark.size * LINE_PITCH;
+      if (i > 0) y -= t.size * LINE_PITCH;
       // On a disc the lines are centred (in the room the QR leaves), which keeps the disc small.
       const room = frame.innerW - b.logoW - (b.qr ? b.qr.shape.sizeWithQuietZone + spacing : 0);
       const width = lineWidth(t.shape);

@@ -65,7 +65,7 @@ export function markReliefs(
       label: `"${b.value}"`,
       cs,
       relief: b.mark.relief,
-      field: ["marks", "text", o.marks.text.indexOf(b.mark), "size"],
+      field: ["marks", "text", b.line, "size"],
     });
   });
   const qr = places.qr;

@@ -37,6 +37,19 @@ export const reliefSchema = z.enum(["engrave", "emboss"]);
 export const depthSchema = z.union([mm(0.1, 2), z.literal("max")]);
 export type Depth = z.infer<typeof depthSchema>;
 
+/**
+ * What a text line does when it is longer than the room it has (its maxWidth, or what the bed leaves
+ * it beside the band's logo and QR code): "shrink" lowers its cap height, never below the smallest
+ * whose strokes still print at the nozzle, and says so; "refuse" stops the build with the line's finding.
+ */
+export const textFitSchema = z
+  .enum(["shrink", "refuse"])
+  .describe(
+    'When the filled line is longer than its room (maxWidth, or what the bed leaves it): "shrink" lowers its cap height, ' +
+      'never below the smallest whose strokes print at the nozzle (a text_shrunk warning); "refuse" fails with text_too_long.',
+  );
+export type TextFit = z.infer<typeof textFitSchema>;
+
 export const textMarkSchema = z
   .object({
     value: z.string().trim().min(1, "Enter the text to engrave.").max(120),
@@ -49,6 +62,7 @@ export const textMarkSchema = z
     position: markPositionSchema.default("auto"),
     /** The longest the line may be once its {placeholders} are filled (a template's room for a name). */
     maxWidth: mm(5, 2000).optional(),
+    fit: textFitSchema.default("shrink"),
   })
   .strict();
 export type TextMark = z.infer<typeof textMarkSchema>;

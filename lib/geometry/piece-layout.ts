@@ -2,7 +2,6 @@ import { rotatedBounds } from "./footprint";
 import { arrange, maxRectsPack, type PackItem } from "./layout";
 import { SHAPE_RULES } from "./slab";
 import { NUMBER_GAP, NUMBER_PAD, type Bands, type NumberGlyphs } from "./mark-bands";
-import { lineWidth, type TextShape } from "./marks/text";
 import type { SlabOptions } from "./options";
 import { hullAt, pieceBounds, pieceInSlot, type Piece } from "./pieces";
 import type { Box } from "./plate-context";
@@ -39,9 +38,10 @@ export type Placing = { fits: true } | { fits: false; needW: number; maxW: numbe
 /**
  * Hand-placed pieces keep their places; the rest are packed to their right, above the bottom band,
  * within the bed less its margins and the bands. Sets each piece's angle, x and y. Packed pieces do
- * not fit when the packer finds no place for them, or the bands or a text line are wider than the bed.
+ * not fit when the packer finds no place for them, or the bands are wider than the bed (their text
+ * lines are fitted to it first: text-fit.ts).
  */
-export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, bands: Bands, texts: { shape: TextShape }[]): Placing {
+export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, bands: Bands): Placing {
   const m = o.slab.margin;
   const { ext, gutter, spacing } = room;
   const maxW = o.layout.bed.width - 2 * m;
@@ -72,7 +72,7 @@ export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, ba
     return SHAPE_RULES[o.slab.shape].packingScore(W, H);
   };
   const found = arrange(auto.map(itemOf), maxW - manualMaxX, maxH, spacing, score);
-  if (!found || texts.some((t) => lineWidth(t.shape) > maxW) || bands.w > maxW || maxH <= 0) {
+  if (!found || bands.w > maxW || maxH <= 0) {
     return { fits: false, maxW, needW: Math.max(bands.w, ...auto.map((p) => Math.min(...itemOf(p).sizes.map((d) => d[0])))) };
   }
   const baseY = m + (bands.bottom.h ? bands.bottom.h + spacing : 0);

@@ -232,6 +232,36 @@ describe("the new rules' wording: what is wrong, where, by how much, what to cha
     ["gap_below_layer", () => build({ slab: { gap: 0.15 } }, tiles()), /0\.15 mm gap/, /thinner than one 0\.20 mm layer/],
     ["gap_sliced", () => build({ slab: { gap: 0.3 } }, tiles()), /0\.30 mm gap/, /0\.20 mm \(1 layer\)/],
     ["piece_numbers_mismatch", () => build({ layout: { pieceNumbers: [1] } }, tiles(2)), /layout\.pieceNumbers/, /1 numbers for 2 pieces/],
+    [
+      "text_shrunk",
+      () => build({ marks: { text: [{ value: "ORDER 7" }, { value: "Thank you, Jordan Okafor!", size: 4, maxWidth: 70 }] } }, tiles()),
+      /Text line 2 \("Thank you, Jordan Okafor!"\)/,
+      /reduced from 4 mm to \d+(\.\d)? mm/,
+    ],
+    [
+      "text_too_long",
+      () =>
+        build(
+          {
+            marks: {
+              text: [{ value: "ORDER 7" }, { value: "Thank you, Maximiliana Featherstonehaugh-Abernethy!", size: 4, maxWidth: 60 }],
+            },
+          },
+          tiles(),
+        ),
+      /Text line 2 \("Thank you, Maximiliana Featherstonehaugh-Abernethy!"\)/,
+      /\d+\.\d mm too long: even at \d+(\.\d)? mm/,
+    ],
+    [
+      "text_too_long",
+      () =>
+        build(
+          { marks: { text: [{ value: "ORDER 7" }, { value: "Thank you, Jordan Okafor!", size: 4, maxWidth: 70, fit: "refuse" }] } },
+          tiles(),
+        ),
+      /Text line 2 \("Thank you, Jordan Okafor!"\)/,
+      /\d+\.\d mm too long: at 4 mm/,
+    ],
   ] as const)("%s", (code, make, where, howMuch) => {
     const f = make().findings.find((x) => x.code === code)!;
     expect(f, code).toBeDefined();

@@ -1,12 +1,12 @@
 import { createHmac } from "node:crypto";
 import { readFileSync } from "node:fs";
 import path from "node:path";
-import { eq } from "drizzle-orm";
+import { and, eq } from "drizzle-orm";
 import { DOMParser } from "linkedom";
 import { ThreeMFLoader } from "three/examples/jsm/loaders/3MFLoader.js";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
-import { apiKeys, kits, workspaces } from "@/db/schema";
+import { apiKeys, kits, templates, workspaces } from "@/db/schema";
 import { generateApiKey } from "@/lib/auth/api-keys";
 import { importMesh } from "@/lib/geometry/import";
 import { writeBinaryStl } from "@/lib/geometry/io/stl-write";
@@ -203,6 +203,61 @@ describe("POST /api/v1/plates", () => {
     const e = await errorOf(r);
     expect(e.code).toBe("findings");
     expect(JSON.stringify(e.details)).toContain("does_not_fit");
+  });
+
+  describe("a template's text line with a long real name", () => {
+    // The demo shop's template: line 2 is "Thank you, {customer}!" at 4 mm, at most 70 mm long (fit left to its default).
+    const demo = async () => {
+      const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
+      const [t] = await db()
+        .select()
+        .from(templates)
+        .where(and(eq(templates.workspaceId, ws!.id), eq(templates.name, "Marrowby thank-you")));
+      return t!.id;
+    };
+    type Finding = { severity: string; code: string; message: string; field?: (string | number)[] };
+
+    it("is shrunk to fit: 200 with the text_shrunk warning at the line's size, and the line within its 70 mm", async () => {
+      const r = await post(
+        form({
+          kit: kitId,
+          template: await demo(),
+          format: "json",
+          variables: JSON.stringify({ order: "10482", customer: "Maximilian Featherstonehaugh" }),
+        }),
+      );
+      expect(r.status).toBe(200);
+      const body = (await r.json()) as {
+        findings: Finding[];
+        layout: { marks: { kind: string; value: string; bounds: { minX: number; maxX: number } }[] };
+      };
+      const shrunk = body.findings.filter((f) => f.code === "text_shrunk");
+      expect(shrunk).toHaveLength(1);
+      expect(shrunk[0]).toMatchObject({ severity: "warning", field: ["marks", "text", 1, "size"] });
+      expect(shrunk[0]!.message).toMatch(/^Text line 2 \("Thank you, Maximilian Featherstonehaugh!"\) was reduced from 4 mm to \d/);
+      expect(body.findings.map((f) => f.code)).not.toContain("does_not_fit");
+      const line = body.layout.marks.find((m) => m.value === "Thank you, Maximilian Featherstonehaugh!")!;
+      expect(line.bounds.maxX - line.bounds.minX).toBeLessThanOrEqual(70);
+    });
+
+    it("too long at any printable size: 422 findings with text_too_long at the line's value, by how much, not does_not_fit", async () => {
+      const r = await post(
+        form({
+          kit: kitId,
+          template: await demo(),
+          format: "json",
+          variables: JSON.stringify({ order: "10482", customer: "Maximiliana Featherstonehaugh-Abernethy of Lower Marrowby" }),
+        }),
+      );
+      expect(r.status).toBe(422);
+      const e = await errorOf(r);
+      expect(e.code).toBe("findings");
+      const { findings } = e.details as { findings: Finding[] };
+      expect(findings.map((f) => f.code)).toEqual(["text_too_long"]);
+      expect(findings[0]).toMatchObject({ severity: "error", field: ["marks", "text", 1, "value"] });
+      expect(findings[0]!.message).toMatch(/^Text line 2 .* is \d+\.\d mm too long: even at \d+(\.\d)? mm/);
+      expect(findings[0]!.message).toMatch(/Use shorter text/);
+    });
   });
 
   it("401 for an unknown key, 403 for a key without plates:write", async () => {

@@ -99,7 +99,8 @@ describe("plates from a template", () => {
     });
     expect(extra.status).toBe(422);
     expect((await errorOf(extra)).code).toBe("unknown_variable");
-    // The order label's text lines may be at most 80 mm: a very long customer name does not fit.
+    // The order label's text lines may be at most 80 mm: a very long customer name does not fit, even
+    // shrunk to the smallest cap height that prints.
     const long = await post({
       kit: kitId,
       template: label.id,
@@ -109,7 +110,8 @@ describe("plates from a template", () => {
     expect(long.status).toBe(422);
     const l = await errorOf(long);
     expect(l.code).toBe("findings");
-    expect(JSON.stringify(l.details)).toMatch(/allows 80 mm: \d+\.\d mm too long/);
+    expect(JSON.stringify(l.details)).toMatch(/Text line 2 .* \d+\.\d mm too long: even at .* its line allows 80 mm/);
+    expect(JSON.stringify(l.details)).toContain('"field":["marks","text",1,"value"]');
     const missingTemplate = await post({ kit: kitId, template: "no-such-template", format: "stl" });
     expect(missingTemplate.status).toBe(404);
   });
