@@ -146,6 +146,7 @@ export async function createTemplate(
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: "template_created",
         target: t.id,
@@ -187,6 +188,7 @@ export async function saveVersion(
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: input.restoredFrom ? "template_version_restored" : "template_version_saved",
         target: id,
@@ -229,6 +231,7 @@ export async function duplicateTemplate(actor: Actor, id: string): Promise<{ id:
   await audit({
     workspaceId: actor.workspaceId,
     actorUserId: actor.userId,
+    actorApiKeyId: actor.apiKeyId,
     actorEmail: actor.email,
     action: "template_duplicated",
     target: out.id,
@@ -245,6 +248,7 @@ export async function setArchived(actor: Actor, id: string, archived: boolean) {
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: archived ? "template_archived" : "template_unarchived",
         target: id,
@@ -262,6 +266,7 @@ export async function renameTemplate(actor: Actor, id: string, name: string, des
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: "template_renamed",
         target: id,

@@ -18,6 +18,7 @@ const LABEL: Record<string, string> = {
   password_reset_requested: "asked for a password reset",
   password_reset: "reset the password",
   invitation_sent: "invited",
+  invitation_resent: "sent the invitation again to",
   invitation_revoked: "withdrew the invitation of",
   invitation_accepted: "accepted an invitation",
   role_changed: "changed the role of",
@@ -49,7 +50,12 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
         {rows.map((r) => (
           <tr key={r.id}>
             <td className="px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
-            <td className="px-3 py-2">{r.actorName ?? r.actorUserEmail ?? r.actorEmail ?? "—"}</td>
+            <td className="px-3 py-2">
+              {r.actorName ??
+                r.actorUserEmail ??
+                r.actorEmail ??
+                (r.actorKeyName ? `the API key “${r.actorKeyName}” (swk_${r.actorKeyPrefix}…)` : "—")}
+            </td>
             <td className="px-3 py-2">
               {LABEL[r.action] ?? r.action} {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? <strong>{r.target}</strong> : null}
               {r.details && "from" in r.details ? ` (${String(r.details.from)} → ${String(r.details.to)})` : ""}
