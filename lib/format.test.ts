@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { aOrAn, day } from "./format";
+import { aOrAn, amount, day } from "./format";
 
 describe("day", () => {
   const now = new Date("2026-12-10T12:00:00Z");
@@ -17,5 +17,18 @@ describe("day", () => {
 describe("aOrAn", () => {
   it("puts 'an' before the roles that start with a vowel and 'a' before the others", () => {
     expect(["owner", "designer", "operator", "viewer"].map(aOrAn)).toEqual(["an owner", "a designer", "an operator", "a viewer"]);
+  });
+});
+
+describe("amount", () => {
+  it("writes minor units with the currency's sign and decimals, as en-GB does", () => {
+    // ISO 4217 minor units: EUR and GBP have 2, JPY has 0 (CLDR en-GB symbols: €, £, US$, JP¥).
+    expect(amount(7900)).toBe("€79.00");
+    expect(amount(500, "gbp")).toBe("£5.00");
+    expect(amount(1250, "USD")).toBe("US$12.50");
+    expect(amount(1900, "JPY")).toBe("JP¥1,900");
+  });
+  it("falls back to the number and the code for a code that is not one", () => {
+    expect(amount(100, "€€")).toBe("1.00 €€");
   });
 });

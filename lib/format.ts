@@ -33,3 +33,17 @@ export function day(d: Date | string, now: Date = new Date()): string {
 export function aOrAn(word: string): string {
   return `${/^[aeiou]/i.test(word) ? "an" : "a"} ${word}`;
 }
+
+/**
+ * An amount in the smallest unit of its currency (cents), as en-GB writes it: "€19.00", "£5.00",
+ * "US$12.50". Euro unless told otherwise: a workspace has no currency setting, and the plans are priced in euro.
+ */
+export function amount(minorUnits: number, currency = "EUR"): string {
+  const code = currency.toUpperCase();
+  try {
+    const f = new Intl.NumberFormat("en-GB", { style: "currency", currency: code });
+    return f.format(minorUnits / 10 ** (f.resolvedOptions().maximumFractionDigits ?? 2));
+  } catch {
+    return `${(minorUnits / 100).toFixed(2)} ${code}`; // not an ISO 4217 code Intl knows
+  }
+}
