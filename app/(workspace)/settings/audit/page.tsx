@@ -2,6 +2,7 @@ import type { Metadata } from "next";
 import Link from "next/link";
 import { listAudit } from "@/lib/accounts/activity";
 import { requirePermission } from "@/lib/auth/guards";
+import { PLANS, type PlanId } from "@/lib/billing/plans";
 import { when } from "@/lib/format";
 import { DataTable } from "../../_components/page-header";
 
@@ -38,6 +39,14 @@ const LABEL: Record<string, string> = {
   billing_event: "payment provider event",
 };
 
+/** What a change went from and to, in words: plans by their names, roles as they are. */
+function changeWords(action: string, details: Record<string, unknown> | null): string {
+  if (!details || !("to" in details)) return "";
+  const name = (v: unknown) => (action === "plan_changed" && typeof v === "string" && v in PLANS ? PLANS[v as PlanId].name : String(v));
+  const reason = typeof details.reason === "string" ? `: ${details.reason}` : "";
+  return "from" in details ? ` (${name(details.from)} → ${name(details.to)})${reason}` : ` to ${name(details.to)}${reason}`;
+}
+
 export default async function AuditPage({ searchParams }: { searchParams: Promise<{ page?: string }> }) {
   const { caller, allowed } = await requirePermission("audit:view");
   if (!allowed) return <p className="card p-4 text-sm">Only the workspace&apos;s owners can read the audit log.</p>;
@@ -49,7 +58,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       <DataTable label="Audit log" head={["When", "Who", "What", "From"]}>
         {rows.map((r) => (
           <tr key={r.id}>
-            <td className="px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
+            <td className="whitespace-nowrap px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
             <td className="px-3 py-2">
               {r.actorName ??
                 r.actorUserEmail ??
@@ -58,7 +67,7 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
             </td>
             <td className="px-3 py-2">
               {LABEL[r.action] ?? r.action} {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? <strong>{r.target}</strong> : null}
-              {r.details && "from" in r.details ? ` (${String(r.details.from)} → ${String(r.details.to)})` : ""}
+              {changeWords(r.action, r.details)}
             </td>
             <td className="px-3 py-2 font-mono text-xs text-muted">{r.ip ?? ""}</td>
           </tr>
