@@ -22,8 +22,22 @@ const PAGES = [
   { name: "developers", path: "/developers" },
 ];
 
-/** How far the page reaches past the right edge of the window, in CSS pixels (0 when it fits). */
-const overflow = (page: Page) => page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+/** How far the page reaches past the right edge of the window (CSS pixels, 0 when it fits), and the elements that reach out. */
+const overflow = (page: Page) =>
+  page.evaluate(() => {
+    const width = document.documentElement.clientWidth;
+    const out = [...document.querySelectorAll("body *")]
+      .filter((e) => e.getBoundingClientRect().right > width + 1)
+      // Not what a box of its own scrolls or clips: those do not widen the page.
+      .filter((e) => {
+        for (let a = e.parentElement; a && a !== document.body; a = a.parentElement)
+          if (getComputedStyle(a).overflowX !== "visible") return getComputedStyle(e).position === "absolute";
+        return true;
+      })
+      .slice(0, 5)
+      .map((e) => `${e.tagName.toLowerCase()}.${[...e.classList].join(".")}`);
+    return { by: document.documentElement.scrollWidth - width, out };
+  });
 
 test("the owner's and the seller's pages fit a desktop, a laptop and a phone without scrolling sideways", async ({ page }) => {
   test.setTimeout(120_000);
@@ -39,7 +53,8 @@ test("the owner's and the seller's pages fit a desktop, a laptop and a phone wit
       await page.goto(p.path || template!);
       await expect(page.getByRole("main")).toBeVisible();
       await page.screenshot({ path: `.data/shots/${p.name}-${size.name}.png`, fullPage: true });
-      expect(await overflow(page), `${p.name} at ${size.width} px`).toBeLessThanOrEqual(0);
+      const o = await overflow(page);
+      expect.soft(o.by, `${p.name} at ${size.width} px reaches out by ${o.by} px: ${o.out.join(", ")}`).toBeLessThanOrEqual(0);
     }
   }
   // The words a person reads on the people page: an article that fits the role.

@@ -57,13 +57,15 @@ export function People({ members, pending, manage, me }: { members: Member[]; pe
       <section>
         <h2 className="mb-3 text-lg">Members</h2>
         <FormMessage message={message} />
-        <div className="card mt-3 overflow-x-auto">
+        {/* relative: the header's screen-reader-only text is positioned absolutely; without it, it escapes the
+            scrolling box and widens the page. */}
+        <div className="card relative mt-3 overflow-x-auto">
           <table className="w-full text-left text-sm" aria-label="Members">
             <thead className="border-b border-hairline text-xs uppercase tracking-wide text-muted">
               <tr>
                 <th className="px-3 py-2">Person</th>
                 <th className="px-3 py-2">Role</th>
-                <th className="px-3 py-2">Member since</th>
+                <th className="hidden px-3 py-2 sm:table-cell">Member since</th>
                 {manage ? (
                   <th className="px-3 py-2">
                     <span className="sr-only">Actions</span>
@@ -98,7 +100,7 @@ export function People({ members, pending, manage, me }: { members: Member[]; pe
                       <span className="capitalize">{m.role}</span>
                     )}
                   </td>
-                  <td className="px-3 py-2 text-muted">{day(m.since)}</td>
+                  <td className="hidden px-3 py-2 text-muted sm:table-cell">{day(m.since)}</td>
                   {manage ? (
                     <td className="px-3 py-2 text-right">
                       <button

@@ -36,15 +36,47 @@ const LABEL: Record<string, string> = {
   template_renamed: "renamed the template",
   checkout_started: "started a checkout",
   plan_changed: "plan changed",
-  billing_event: "payment provider event",
+  billing_event: "reported",
 };
 
-/** What a change went from and to, in words: plans by their names, roles as they are. */
+/** The payment provider's events the app applies, in words. */
+const PROVIDER_EVENT: Record<string, string> = {
+  "checkout.session.completed": "checkout completed",
+  "customer.subscription.created": "subscription started",
+  "customer.subscription.updated": "subscription updated",
+  "customer.subscription.deleted": "subscription ended",
+  "invoice.paid": "payment received",
+  "invoice.payment_failed": "payment failed",
+};
+
+/** What a change went from and to, in words: plans by their names, roles as they are; a provider event by what it says. */
 function changeWords(action: string, details: Record<string, unknown> | null): string {
-  if (!details || !("to" in details)) return "";
-  const name = (v: unknown) => (action === "plan_changed" && typeof v === "string" && v in PLANS ? PLANS[v as PlanId].name : String(v));
-  const reason = typeof details.reason === "string" ? `: ${details.reason}` : "";
+  if (!details) return "";
+  const event = typeof details.event === "string" ? (PROVIDER_EVENT[details.event] ?? "another event") : null;
+  if (action === "billing_event") return event ? `: ${event}` : "";
+  if (!("to" in details)) return "";
+  const plan = action === "plan_changed" || action === "billing_event";
+  const name = (v: unknown) => (plan && typeof v === "string" && v in PLANS ? PLANS[v as PlanId].name : String(v));
+  const reason = typeof details.reason === "string" ? `: ${details.reason}` : event ? `: ${event}` : "";
   return "from" in details ? ` (${name(details.from)} → ${name(details.to)})${reason}` : ` to ${name(details.to)}${reason}`;
+}
+
+/** Who acted: a person, an address that was tried, an API key by its name, or the payment provider. */
+function who(r: {
+  action: string;
+  actorName: string | null;
+  actorUserEmail: string | null;
+  actorEmail: string | null;
+  actorKeyName: string | null;
+  actorKeyPrefix: string | null;
+  details: Record<string, unknown> | null;
+}): string {
+  const person = r.actorName ?? r.actorUserEmail ?? r.actorEmail;
+  if (person) return person;
+  if (r.actorKeyName) return `the API key “${r.actorKeyName}” (swk_${r.actorKeyPrefix}…)`;
+  // A plan changed by an event came from the provider; one without (a grace period that ran out) from Slabwright itself.
+  if (r.action === "billing_event" || (r.action === "plan_changed" && r.details && "event" in r.details)) return "the payment provider";
+  return r.action === "plan_changed" ? "Slabwright" : "—";
 }
 
 export default async function AuditPage({ searchParams }: { searchParams: Promise<{ page?: string }> }) {
@@ -59,14 +91,10 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
         {rows.map((r) => (
           <tr key={r.id}>
             <td className="whitespace-nowrap px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
-            <td className="px-3 py-2">
-              {r.actorName ??
-                r.actorUserEmail ??
-                r.actorEmail ??
-                (r.actorKeyName ? `the API key “${r.actorKeyName}” (swk_${r.actorKeyPrefix}…)` : "—")}
-            </td>
-            <td className="px-3 py-2">
-              {LABEL[r.action] ?? r.action} {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? <strong>{r.target}</strong> : null}
+            <td className="!whitespace-normal break-words px-3 py-2">{who(r)}</td>
+            <td className="!whitespace-normal break-words px-3 py-2">
+              {LABEL[r.action] ?? r.action.replaceAll("_", " ")}{" "}
+              {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? <strong>{r.target}</strong> : null}
               {changeWords(r.action, r.details)}
             </td>
             <td className="px-3 py-2 font-mono text-xs text-muted">{r.ip ?? ""}</td>

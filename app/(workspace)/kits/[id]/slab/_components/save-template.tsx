@@ -62,6 +62,8 @@ export function SaveTemplate({
           },
       ),
     );
+    // Once a template of this workspace is applied (or just saved), a new version of it is the first choice.
+    form.setValue("mode", canVersion ? "version" : "new");
     setOpen(true);
   };
   const mode = useWatch({ control: form.control, name: "mode" });
