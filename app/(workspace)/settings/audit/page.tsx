@@ -91,10 +91,16 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
         {rows.map((r) => (
           <tr key={r.id}>
             <td className="whitespace-nowrap px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
-            <td className="!whitespace-normal break-words px-3 py-2">{who(r)}</td>
-            <td className="!whitespace-normal break-words px-3 py-2">
-              {LABEL[r.action] ?? r.action.replaceAll("_", " ")}{" "}
-              {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? <strong>{r.target}</strong> : null}
+            {/* Long addresses may break anywhere: on a phone the table then fits its box instead of hiding what happened. */}
+            <td className="!whitespace-normal px-3 py-2 [overflow-wrap:anywhere]">{who(r)}</td>
+            <td className="!whitespace-normal px-3 py-2 [overflow-wrap:anywhere]">
+              {LABEL[r.action] ?? r.action.replaceAll("_", " ")}
+              {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? (
+                <>
+                  {" "}
+                  <strong>{r.target}</strong>
+                </>
+              ) : null}
               {changeWords(r.action, r.details)}
             </td>
             <td className="px-3 py-2 font-mono text-xs text-muted">{r.ip ?? ""}</td>
