@@ -90,15 +90,19 @@ export default async function AuditPage({ searchParams }: { searchParams: Promis
       <DataTable label="Audit log" head={["When", "Who", "What", "From"]}>
         {rows.map((r) => (
           <tr key={r.id}>
-            <td className="whitespace-nowrap px-3 py-2 font-mono text-xs">{when(r.createdAt)}</td>
-            {/* Long addresses may break anywhere: on a phone the table then fits its box instead of hiding what happened. */}
-            <td className="!whitespace-normal px-3 py-2 [overflow-wrap:anywhere]">{who(r)}</td>
-            <td className="!whitespace-normal px-3 py-2 [overflow-wrap:anywhere]">
+            {/* Date and time each stay whole; on a phone the time goes under the date. */}
+            <td className="!whitespace-normal px-3 py-2 font-mono text-xs">
+              <span className="whitespace-nowrap">{when(r.createdAt).slice(0, 10)}</span>{" "}
+              <span className="whitespace-nowrap">{when(r.createdAt).slice(11)}</span>
+            </td>
+            {/* Words wrap and a long address breaks anywhere: a phone then shows what happened. */}
+            <td className="!whitespace-normal px-3 py-2">{who(r)}</td>
+            <td className="!whitespace-normal px-3 py-2">
               {LABEL[r.action] ?? r.action.replaceAll("_", " ")}
               {r.target && !r.target.match(/^[0-9a-f-]{36}$/) ? (
                 <>
                   {" "}
-                  <strong>{r.target}</strong>
+                  <strong className="[overflow-wrap:anywhere]">{r.target}</strong>
                 </>
               ) : null}
               {changeWords(r.action, r.details)}
