@@ -5,7 +5,7 @@
 import { promises as fs } from "node:fs";
 import { parseEnv } from "@/lib/env";
 import path from "node:path";
-import { and, eq, isNull } from "drizzle-orm";
+import { and, eq, isNull, sql } from "drizzle-orm";
 import {
   apiKeyScopes,
   apiKeys,
@@ -223,7 +223,8 @@ export async function seedDemo(databaseUrl = env().DATABASE_URL): Promise<DemoCr
       const [demoFound] = await tx
         .select({ id: templates.id })
         .from(templates)
-        .where(and(eq(templates.workspaceId, ws.id), eq(templates.name, demo.name)));
+        // Names are unique per workspace whatever their case (templates_workspace_name_key).
+        .where(and(eq(templates.workspaceId, ws.id), sql`lower(${templates.name}) = lower(${demo.name})`));
       if (!demoFound) {
         const body = templateBodySchema.parse({ options: demo.options, variables: demo.variables });
         const [t] = await tx

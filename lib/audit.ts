@@ -13,6 +13,7 @@ export type AuditAction =
   | "password_reset_requested"
   | "password_reset"
   | "invitation_sent"
+  | "invitation_resent"
   | "invitation_revoked"
   | "invitation_accepted"
   | "role_changed"

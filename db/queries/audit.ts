@@ -1,7 +1,7 @@
 import "server-only";
 import { and, count, desc, eq, inArray, isNull, or } from "drizzle-orm";
 import { db } from "@/db";
-import { auditEvents, memberships, users } from "@/db/schema";
+import { apiKeys, auditEvents, memberships, users } from "@/db/schema";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import type { Tx } from "./tx";
 
@@ -38,9 +38,12 @@ export async function auditPage(actor: WorkspaceActor, page: { limit: number; of
       actorEmail: auditEvents.actorEmail,
       actorName: users.name,
       actorUserEmail: users.email,
+      actorKeyName: apiKeys.name,
+      actorKeyPrefix: apiKeys.prefix,
     })
     .from(auditEvents)
     .leftJoin(users, eq(users.id, auditEvents.actorUserId))
+    .leftJoin(apiKeys, eq(apiKeys.id, auditEvents.actorApiKeyId))
     .where(where)
     .orderBy(desc(auditEvents.createdAt), desc(auditEvents.id))
     .limit(page.limit)

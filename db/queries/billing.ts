@@ -94,6 +94,17 @@ export async function checkoutSessionById(id: string) {
   return record ?? null;
 }
 
+/** The newest checkout session the workspace started (the billing page tells a confirmed one from one still waiting), or null. */
+export async function latestCheckoutSession(actor: WorkspaceActor) {
+  const [record] = await db()
+    .select()
+    .from(checkoutSessions)
+    .where(eq(checkoutSessions.workspaceId, actor.workspaceId))
+    .orderBy(desc(checkoutSessions.createdAt))
+    .limit(1);
+  return record ?? null;
+}
+
 /** Mark a checkout applied; false when it was applied once already. */
 export async function completeCheckoutSession(tx: Tx, actor: WorkspaceActor, id: string): Promise<boolean> {
   const [first] = await tx

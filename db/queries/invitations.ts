@@ -25,6 +25,40 @@ export async function revokePendingInvitations(tx: Tx, actor: WorkspaceActor, em
     );
 }
 
+type Db = ReturnType<typeof db> | Tx;
+
+/** The address's newest invitation still open (not accepted, withdrawn or expired), or null; locked when read in a transaction. */
+export async function pendingInvitationFor(
+  actor: WorkspaceActor,
+  email: string,
+  opts: { tx?: Tx } = {},
+): Promise<{ id: string; role: Role; createdAt: Date; expiresAt: Date } | null> {
+  const q = (opts.tx ?? (db() as Db))
+    .select({ id: invitations.id, role: invitations.role, createdAt: invitations.createdAt, expiresAt: invitations.expiresAt })
+    .from(invitations)
+    .where(
+      and(
+        eq(invitations.workspaceId, actor.workspaceId),
+        eq(invitations.email, email),
+        isNull(invitations.acceptedAt),
+        isNull(invitations.revokedAt),
+        gt(invitations.expiresAt, new Date()),
+      ),
+    )
+    .orderBy(desc(invitations.createdAt))
+    .limit(1);
+  const [row] = opts.tx ? await q.for("update") : await q;
+  return row ?? null;
+}
+
+/** Open an invitation withdrawn a moment ago again (the mail that was to replace it could not be sent). */
+export async function reinstateInvitation(actor: WorkspaceActor, id: string): Promise<void> {
+  await db()
+    .update(invitations)
+    .set({ revokedAt: null })
+    .where(and(eq(invitations.id, id), eq(invitations.workspaceId, actor.workspaceId), isNull(invitations.acceptedAt)));
+}
+
 /** A new invitation from the actor; its id. */
 export async function insertInvitation(
   tx: Tx,

@@ -5,6 +5,9 @@ import { users } from "./auth";
 import { kits } from "./parts";
 import { workspaces } from "./workspaces";
 
+/** The unique index on (workspace_id, lower(name)): its name is how a clash is told from other failures. */
+export const TEMPLATE_NAME_KEY = "templates_workspace_name_key";
+
 /** A saved slab-and-marks recipe. The options live in versions; editing adds a version. */
 export const templates = pgTable(
   "templates",
@@ -24,7 +27,11 @@ export const templates = pgTable(
     createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
     updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
   },
-  (t) => [index("templates_workspace_updated_idx").on(t.workspaceId, t.updatedAt)],
+  (t) => [
+    index("templates_workspace_updated_idx").on(t.workspaceId, t.updatedAt),
+    /** A name names one template of a workspace, whatever its case (the service turns a clash into a Conflict on the name). */
+    uniqueIndex(TEMPLATE_NAME_KEY).on(t.workspaceId, sql`lower(${t.name})`),
+  ],
 );
 
 export type TemplateVariable = { name: string; label?: string; default: string; sample: string };

@@ -5,7 +5,9 @@ import {
   invitationByTokenHash,
   lockInvitationByTokenHash,
   markInvitationAccepted,
+  pendingInvitationFor,
   pendingInvitationRows,
+  reinstateInvitation,
   revokeInvitationRow,
   revokePendingInvitations,
   withdrawInvitation,
@@ -20,20 +22,38 @@ import { hit } from "@/lib/auth/rate-limit";
 import { hashToken, newToken } from "@/lib/auth/tokens";
 import { audit } from "@/lib/audit";
 import { Conflict, Invalid, NotFound, Unavailable } from "@/lib/errors";
+import { aOrAn, day } from "@/lib/format";
 import { sendMail } from "@/lib/mail";
 import { invitationMessage } from "./mail";
 
 export const INVITATION_DAYS = 7;
 
-/** Invite someone by address: a link mailed to them; a member already is refused. */
+/** The refusal of a second invitation to an address one is already waiting for: said at the e-mail field. */
+function alreadyWaiting(email: string, waiting: { role: Role; createdAt: Date }, role: Role): Conflict {
+  const as = waiting.role === role ? "" : `, as ${aOrAn(waiting.role)}`;
+  return new Conflict(
+    "invitation_pending",
+    `An invitation to ${email} is already waiting, sent ${day(waiting.createdAt)}${as}. Send it again, or withdraw it first to ` +
+      `invite with another role.`,
+    { sentAt: waiting.createdAt.toISOString(), role: waiting.role },
+    "email",
+  );
+}
+
+/**
+ * Invite someone by address: a link mailed to them. A member already is refused, and so is an
+ * address an invitation is still waiting for (nothing is mailed: `resendInvitation` sends it again).
+ */
 export async function inviteMember(caller: Caller, email: string, role: Role): Promise<{ id: string }> {
+  const waiting = await pendingInvitationFor(caller, email);
+  if (waiting) throw alreadyWaiting(email, waiting, role);
   const limit = await hit("invitationsPerWorkspace", caller.workspaceId);
   if (!limit.ok) throw rateLimited(limit.retryAfter, "invitations from this workspace");
   const { token, hash } = newToken();
   const id = await transaction(async (tx) => {
     if (await isMemberByEmail(tx, caller, email))
       throw new Conflict("already_member", "That person is already a member.", undefined, "email");
-    // A new invitation replaces any earlier one still pending for the same address.
+    // One invitation per address: one that expired, or came in at the same moment, is replaced.
     await revokePendingInvitations(tx, caller, email);
     const id = await insertInvitation(tx, caller, {
       email,
@@ -48,20 +68,67 @@ export async function inviteMember(caller: Caller, email: string, role: Role): P
     );
     return id;
   });
+  await mailInvitation(caller, { email, role, token }, async () => {
+    // Without the message the invitation is useless: take it back rather than leave it half-done.
+    await withdrawInvitation(caller, id);
+    return "The invitation e-mail could not be sent, so no invitation was made. Try again later.";
+  });
+  return { id };
+}
+
+/**
+ * Send the invitation waiting for an address again: the same address and role, a new link (the old
+ * one stops working) and a new expiry. It replaces the waiting row, so "sent" is when it last went
+ * out. Limited like new invitations, and audit-logged.
+ */
+export async function resendInvitation(caller: Caller, email: string): Promise<{ id: string }> {
+  const limit = await hit("invitationsPerWorkspace", caller.workspaceId);
+  if (!limit.ok) throw rateLimited(limit.retryAfter, "invitations from this workspace");
+  const { token, hash } = newToken();
+  const { id, previous, role } = await transaction(async (tx) => {
+    const waiting = await pendingInvitationFor(caller, email, { tx });
+    if (!waiting) throw new NotFound("not_found", `No invitation to ${email} is waiting any more: send a new one.`, undefined, "email");
+    await revokePendingInvitations(tx, caller, email);
+    const id = await insertInvitation(tx, caller, {
+      email,
+      role: waiting.role,
+      tokenHash: hash,
+      invitedBy: caller.userId,
+      expiresAt: new Date(Date.now() + INVITATION_DAYS * 86400_000),
+    });
+    await audit(
+      {
+        workspaceId: caller.workspaceId,
+        actorUserId: caller.userId,
+        action: "invitation_resent",
+        target: email,
+        details: { role: waiting.role, firstSent: waiting.createdAt.toISOString() },
+      },
+      tx,
+    );
+    return { id, previous: waiting.id, role: waiting.role };
+  });
+  await mailInvitation(caller, { email, role, token }, async () => {
+    // The earlier link still reaches its mailbox: keep it open rather than leave the address with none.
+    await withdrawInvitation(caller, id);
+    await reinstateInvitation(caller, previous);
+    return "The invitation e-mail could not be sent again; the earlier invitation still stands. Try again later.";
+  });
+  return { id };
+}
+
+async function mailInvitation(caller: Caller, inv: { email: string; role: Role; token: string }, undo: () => Promise<string>) {
   try {
     await sendMail(
       invitationMessage(
-        { email, role, token, days: INVITATION_DAYS },
+        { ...inv, days: INVITATION_DAYS },
         { inviter: caller.user.name ?? caller.user.email, workspaceId: caller.workspace.id, workspaceName: caller.workspace.name },
       ),
     );
   } catch (err) {
-    // Without the message the invitation is useless: take it back rather than leave it half-done.
-    await withdrawInvitation(caller, id);
     console.error("[mail] invitation not sent", err);
-    throw new Unavailable("mail_failed", "The invitation e-mail could not be sent, so no invitation was made. Try again later.");
+    throw new Unavailable("mail_failed", await undo());
   }
-  return { id };
 }
 
 export async function listPendingInvitations(actor: WorkspaceActor) {

@@ -1,5 +1,6 @@
 import "server-only";
 import type { Role } from "@/db/schema";
+import { aOrAn } from "@/lib/format";
 import { appUrl, linkMessage, linksMessage, type Message } from "@/lib/mail";
 
 /** The account mail's wording: what each message says and where its links lead. */
@@ -39,8 +40,7 @@ export function invitationMessage(
     ...linkMessage(
       invitation.email,
       `${from.inviter} invited you to ${from.workspaceName} on Slabwright`,
-      `${from.inviter} invited you to join ${from.workspaceName} on Slabwright as ` +
-        `${invitation.role === "owner" ? "an owner" : `a ${invitation.role}`}.`,
+      `${from.inviter} invited you to join ${from.workspaceName} on Slabwright as ` + `${aOrAn(invitation.role)}.`,
       "Accept the invitation",
       appUrl(`/invite/${invitation.token}`),
       `The link works once and expires in ${invitation.days} days.`,

@@ -2,6 +2,8 @@
  * Plans, kept as data: what each allows and what it costs. Our own names and numbers. Prices are in
  * the smallest currency unit (cents); `price` names the payment provider's price for checkout.
  */
+import { amount } from "@/lib/format";
+
 export type PlanId = "bench" | "workshop" | "farm";
 
 export type Plan = {
@@ -56,4 +58,5 @@ export const PLANS: Record<PlanId, Plan> = {
 
 export const PLAN_ORDER: PlanId[] = ["bench", "workshop", "farm"];
 
-export const money = (cents: number) => (cents === 0 ? "free" : `€${(cents / 100).toFixed(2)} a month`);
+/** A plan's price in words: "free", or "€19.00 a month" (plans are priced in euro). */
+export const money = (cents: number) => (cents === 0 ? "free" : `${amount(cents, "EUR")} a month`);

@@ -5,6 +5,7 @@ import {
   addPlates,
   billingRow,
   checkoutSessionById,
+  latestCheckoutSession,
   completeCheckoutSession,
   endGrace,
   insertBillingEvent,
@@ -317,6 +318,16 @@ export async function handleBillingEvent(raw: string, signature: string | null):
     );
     return done("applied");
   });
+}
+
+/**
+ * What became of the newest checkout, for the page the provider sends the owner back to: "pending"
+ * until its completion has been applied (the provider's signed event, checked), then "confirmed".
+ */
+export async function checkoutState(actor: WorkspaceActor): Promise<{ state: "pending" | "confirmed"; plan: PlanId } | null> {
+  const record = await latestCheckoutSession(actor);
+  if (!record) return null;
+  return { state: record.completedAt ? "confirmed" : "pending", plan: record.plan };
 }
 
 export async function invoicesOf(actor: WorkspaceActor) {

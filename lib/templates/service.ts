@@ -1,5 +1,5 @@
 import "server-only";
-import type { TemplateVersion } from "@/db/schema";
+import { TEMPLATE_NAME_KEY, type TemplateVersion } from "@/db/schema";
 import {
   insertTemplate,
   insertTemplateVersion,
@@ -12,7 +12,7 @@ import {
   templateVersion,
   templateVersionRows,
 } from "@/db/queries/templates";
-import { transaction, type Tx } from "@/db/queries/tx";
+import { isUniqueViolation, transaction, type Tx } from "@/db/queries/tx";
 import type { WorkspaceActor } from "@/lib/auth/actor";
 import { audit } from "@/lib/audit";
 import { LOGO_LIMITS, logoContours } from "@/lib/geometry/marks/logo";
@@ -82,6 +82,26 @@ export async function versionForPlate(
   return { ...v, templateName: t.name };
 }
 
+/** The refusal for a name another template of the workspace already has (any case), at the name field. */
+export function nameTaken(name: string): Conflict {
+  return new Conflict(
+    "template_name_taken",
+    `A template called “${name}” already exists in this workspace. Choose another name, or save a new version of that one.`,
+    { name },
+    "name",
+  );
+}
+
+/** Run a write that sets a template's name; the unique index's refusal becomes `nameTaken`. */
+async function naming<T>(name: string, write: () => Promise<T>): Promise<T> {
+  try {
+    return await write();
+  } catch (err) {
+    if (isUniqueViolation(err, TEMPLATE_NAME_KEY)) throw nameTaken(name);
+    throw err;
+  }
+}
+
 async function writable(tx: Tx, actor: Actor, id: string) {
   const t = await lockTemplate(tx, actor, id);
   if (!t) throw new NotFound("not_found", "No such template.");
@@ -109,12 +129,11 @@ export async function createTemplate(
 ): Promise<{ id: string; versionId: string }> {
   const body = checkBody(input.body);
   await checkPlan(actor, body);
+  const name = input.name.trim();
   const out = await transaction(async (tx) => {
-    const t = await insertTemplate(tx, actor, {
-      name: input.name.trim(),
-      description: input.description?.trim() ?? "",
-      createdBy: actor.userId,
-    });
+    const t = await naming(name, () =>
+      insertTemplate(tx, actor, { name, description: input.description?.trim() ?? "", createdBy: actor.userId }),
+    );
     const v = await insertTemplateVersion(tx, t.id, {
       version: 1,
       options: body.options as Record<string, unknown>,
@@ -127,6 +146,7 @@ export async function createTemplate(
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: "template_created",
         target: t.id,
@@ -168,6 +188,7 @@ export async function saveVersion(
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: input.restoredFrom ? "template_version_restored" : "template_version_saved",
         target: id,
@@ -188,17 +209,29 @@ export async function restoreVersion(actor: Actor, id: string, version: number) 
   return saveVersion(actor, id, { body: { options: old.options, variables: old.variables }, restoredFrom: version });
 }
 
+/** Copies are named "<name> (copy)", then "(copy 2)", "(copy 3)" … while a name is taken. */
+const COPY_NAMES = 20;
+
 export async function duplicateTemplate(actor: Actor, id: string): Promise<{ id: string; versionId: string }> {
   const { template, current } = await getTemplate(actor, id);
-  const out = await createTemplate(actor, {
-    name: `${template.name} (copy)`,
-    description: template.description,
-    body: { options: current.options, variables: current.variables },
-    note: `copied from ${template.name}, version ${current.version}`,
-  });
+  let out: { id: string; versionId: string } | undefined;
+  for (let n = 1; !out; n++) {
+    const name = `${template.name} (copy${n > 1 ? ` ${n}` : ""})`;
+    try {
+      out = await createTemplate(actor, {
+        name,
+        description: template.description,
+        body: { options: current.options, variables: current.variables },
+        note: `copied from ${template.name}, version ${current.version}`,
+      });
+    } catch (err) {
+      if (!(err instanceof Conflict && err.code === "template_name_taken") || n >= COPY_NAMES) throw err;
+    }
+  }
   await audit({
     workspaceId: actor.workspaceId,
     actorUserId: actor.userId,
+    actorApiKeyId: actor.apiKeyId,
     actorEmail: actor.email,
     action: "template_duplicated",
     target: out.id,
@@ -215,6 +248,7 @@ export async function setArchived(actor: Actor, id: string, archived: boolean) {
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: archived ? "template_archived" : "template_unarchived",
         target: id,
@@ -227,11 +261,12 @@ export async function setArchived(actor: Actor, id: string, archived: boolean) {
 export async function renameTemplate(actor: Actor, id: string, name: string, description: string) {
   await transaction(async (tx) => {
     await writable(tx, actor, id);
-    await setTemplateName(tx, actor, id, name.trim(), description.trim());
+    await naming(name.trim(), () => setTemplateName(tx, actor, id, name.trim(), description.trim()));
     await audit(
       {
         workspaceId: actor.workspaceId,
         actorUserId: actor.userId,
+        actorApiKeyId: actor.apiKeyId,
         actorEmail: actor.email,
         action: "template_renamed",
         target: id,

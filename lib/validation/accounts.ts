@@ -38,6 +38,7 @@ export const changePasswordSchema = z.object({
 
 export const roleField = z.enum(["owner", "designer", "operator", "viewer"]);
 export const inviteSchema = z.object({ email: emailField, role: roleField });
+export const resendInviteSchema = z.object({ email: emailField });
 export const changeRoleSchema = z.object({ userId: z.string().min(1), role: roleField });
 export const memberSchema = z.object({ userId: z.string().min(1) });
 export const idSchema = z.object({ id: z.string().min(1).max(100) });

@@ -1,6 +1,7 @@
 import { readFileSync } from "node:fs";
 import { expect, test, type Page } from "@playwright/test";
-import { mailTo } from "../support/mail";
+import { mailCount, mailTo } from "../support/mail";
+import { signInAs } from "./helpers";
 
 type Creds = { users: { email: string; password: string; role: string }[] };
 const creds = (): Creds => JSON.parse(readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"));
@@ -113,4 +114,62 @@ test("responses carry the security headers", async ({ request }) => {
   expect(h["content-security-policy"]).toContain("worker-src 'self' blob:");
   expect(h["x-content-type-options"]).toBe("nosniff");
   expect(h["referrer-policy"]).toBe("strict-origin-when-cross-origin");
+});
+
+// An owner invites an address twice by mistake: the second time nothing is mailed and the field says
+// an invitation is waiting; "Send again" (at the field, then in the waiting list) mails it once each,
+// with a new link, and the earlier link stops working.
+test("inviting an address that already has a pending invitation sends no second mail until the owner asks to send it again", async ({
+  page,
+}) => {
+  test.setTimeout(60_000);
+  const email = `twice-${Date.now()}@example.com`;
+  const since = new Date();
+  // The day as the app writes it (en-GB, UTC): "3 Dec".
+  const today = new Date().toLocaleDateString("en-GB", { day: "numeric", month: "short", timeZone: "UTC" });
+  await signInAs(page, "owner");
+  await page.goto("/settings");
+  const invite = page.getByRole("form", { name: "Invite someone" });
+  await invite.getByLabel("E-mail").fill(email);
+  await invite.getByLabel("Role").selectOption("operator");
+  await invite.getByRole("button", { name: "Send invitation" }).click();
+  await expect(invite.getByTestId("form-message")).toContainText(`Invitation sent to ${email}`);
+  const first = await mailTo(email, { since, subject: /invited you to/ });
+  expect(first.text).toContain("as an operator."); // a/an before a vowel
+  expect(await mailCount(email, since)).toBe(1);
+
+  // The same address again: said at the field, nothing mailed.
+  await invite.getByLabel("E-mail").fill(email.toUpperCase());
+  await invite.getByRole("button", { name: "Send invitation" }).click();
+  await expect(invite.getByTestId("email-error")).toHaveText(
+    `An invitation to ${email} is already waiting, sent ${today}. Send it again, or withdraw it first to invite with another role.`,
+  );
+  await expect(invite.getByTestId("form-message")).toHaveText("✕ Nothing was sent.");
+  await page.waitForTimeout(1500); // time for a mail to arrive, had one been sent
+  expect(await mailCount(email, since)).toBe(1);
+
+  // "Send again" at the field: one more mail, with a new link; the first link no longer works.
+  await invite.getByRole("button", { name: "Send again" }).click();
+  await expect(invite.getByTestId("form-message")).toContainText(`Invitation sent again to ${email}`);
+  await expect.poll(() => mailCount(email, since), { timeout: 10_000 }).toBe(2);
+  const second = await mailTo(email, { since, subject: /invited you to/ });
+  const [firstLink, secondLink] = [first.links.find((l) => l.includes("/invite/")), second.links.find((l) => l.includes("/invite/"))];
+  expect(secondLink).toMatch(/\/invite\/[A-Za-z0-9_-]{43}$/);
+  expect(secondLink).not.toBe(firstLink);
+
+  // The waiting list offers it too, with the day it was sent.
+  const row = page.getByTestId(`invitation-${email}`);
+  await expect(row).toContainText(`sent ${today}`);
+  await row.getByRole("button", { name: "Send again" }).click();
+  await expect(page.getByTestId("form-message").filter({ hasText: "Invitation sent again" })).toBeVisible();
+  await expect.poll(() => mailCount(email, since), { timeout: 10_000 }).toBe(3);
+  await expect(page.getByTestId(`invitation-${email}`)).toHaveCount(1);
+
+  // The resends are in the audit log.
+  await page.goto("/settings/audit");
+  await expect(page.getByRole("table", { name: "Audit log" }).getByRole("row").filter({ hasText: email })).toHaveCount(3);
+  await expect(page.getByRole("row").filter({ hasText: `sent the invitation again to ${email}` })).toHaveCount(2);
+
+  await page.goto(firstLink!);
+  await expect(page.getByTestId("invite-problem")).toContainText("withdrawn");
 });

@@ -88,3 +88,55 @@ test("a designer makes a branded template with a logo and two variables, sees it
   expect(api.status()).toBe(200);
   expect(Buffer.from(await api.body()).equals(editorStl)).toBe(true);
 });
+
+// A second template under a name the workspace already has (in another case) is refused at the name
+// field; a variable's label is asked for, kept through a new version, and a long value stays readable.
+test("a designer cannot save two templates under one name, and gives each variable a label that stays", async ({ page }) => {
+  test.setTimeout(90_000);
+  await page.setViewportSize({ width: 1440, height: 900 });
+  await signInAs(page, "designer");
+  await page.goto("/kits");
+  await page
+    .getByRole("row", { name: /Harbour Run token set/ })
+    .getByRole("link", { name: "Slab editor →" })
+    .click();
+  await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
+  await page.getByLabel("Text line 1").fill("ORDER {order}");
+
+  await page.getByRole("button", { name: "Save as a template…" }).click();
+  const save = page.getByRole("form", { name: "Save as a template" });
+  // The demo shop already has "Marrowby thank-you".
+  await save.getByLabel("Template name").fill("MARROWBY THANK-YOU");
+  await save.getByLabel("Label for {order}").fill("Order number");
+  const sample = save.getByLabel("Sample for {order}");
+  await sample.fill("Marrowby Tabletop Co.");
+  // The value fits its box: nothing scrolls out of sight in the editor's column.
+  expect(await sample.evaluate((el: HTMLInputElement) => el.scrollWidth <= el.clientWidth)).toBe(true);
+  await page.screenshot({ path: ".data/shots/save-template-1440.png" });
+  await save.getByRole("button", { name: "Save the template" }).click();
+  await expect(save.getByTestId("template-name-error")).toHaveText(
+    "A template called “MARROWBY THANK-YOU” already exists in this workspace. Choose another name, or save a new version of that one.",
+  );
+  await expect(save.getByLabel("Template name")).toHaveAttribute("aria-invalid", "true");
+  await expect(page.getByTestId("toasts")).not.toContainText("saved as version 1");
+
+  const name = `Order slip ${Date.now()}`;
+  await save.getByLabel("Template name").fill(name);
+  await save.getByRole("button", { name: "Save the template" }).click();
+  await expect(page.getByTestId("toasts")).toContainText(`“${name}” saved as version 1`);
+
+  // Saving again over it offers a version, with the label as it was.
+  await page.getByRole("button", { name: "Save as a template…" }).click();
+  await expect(save.getByLabel(/version 2 of/)).toBeChecked();
+  await expect(save.getByLabel("Label for {order}")).toHaveValue("Order number");
+  await save.getByRole("button", { name: "Save the template" }).click();
+  await expect(page.getByTestId("toasts")).toContainText("Saved as version 2");
+
+  await page.goto(`/templates?q=${encodeURIComponent(name)}`);
+  await page.getByRole("link", { name, exact: true }).click();
+  await expect(page.getByRole("heading", { name })).toBeVisible();
+  await expect(page.getByTestId("version-row")).toHaveCount(2);
+  const variables = page.locator("section", { has: page.getByRole("heading", { name: "Variables" }) });
+  await expect(variables).toContainText("{order}Order number");
+  await expect(variables).toContainText("sample “Marrowby Tabletop Co.”");
+});

@@ -29,7 +29,15 @@ import { apiKeys, auditEvents, devOutbox, invitations, kits, memberships, users,
 import { authorize, callerFor, loadCaller, type Caller } from "@/lib/auth/guards";
 import { hashPassword } from "@/lib/auth/password";
 import type { Permission } from "@/lib/auth/permissions";
-import { dropApiKey, dropMember, makeApiKey, sendInvitation, setMemberRole, withdrawInvitation } from "@/app/(workspace)/settings/actions";
+import {
+  dropApiKey,
+  dropMember,
+  makeApiKey,
+  sendInvitation,
+  sendInvitationAgain,
+  setMemberRole,
+  withdrawInvitation,
+} from "@/app/(workspace)/settings/actions";
 import { GET as getKit } from "@/app/api/v1/kits/[id]/route";
 import { GET as listKitsRoute } from "@/app/api/v1/kits/route";
 
@@ -273,6 +281,55 @@ describe("invitations", () => {
     expect(await withdrawInvitation({ id: inv!.id })).toMatchObject({ ok: true });
     await expect(acceptInvitation({ id: u!.id, email: email2, name: null }, token2)).rejects.toMatchObject({ code: "invitation_revoked" });
     await expect(acceptInvitation({ id: u!.id, email, name: null }, "x".repeat(43))).rejects.toMatchObject({ code: "invitation_unknown" });
+    await db().delete(users).where(eq(users.id, u!.id));
+  });
+
+  it("mails nothing for a second invitation to a waiting address; sending it again gives a new link and retires the old", async () => {
+    const email = `twice-${Date.now()}@example.com`;
+    as("owner");
+    expect(await sendInvitation({ email, role: "designer" })).toMatchObject({ ok: true });
+    const token = await waitForToken(email);
+    secrets.push(token);
+    const mails = async () =>
+      (
+        await db()
+          .select({ id: devOutbox.id })
+          .from(devOutbox)
+          .where(sql`${devOutbox.toAddresses} like ${"%" + email + "%"}`)
+      ).length;
+
+    const again = await sendInvitation({ email, role: "viewer" });
+    expect(again).toMatchObject({ ok: false, code: "invitation_pending", fieldErrors: { email: [expect.stringContaining(email)] } });
+    expect(again.ok ? "" : again.message).toMatch(/is already waiting, sent \d{1,2} [A-Z][a-z]{2,3}, as a designer\./);
+    await new Promise((r) => setTimeout(r, 500));
+    expect(await mails()).toBe(1);
+
+    expect(await sendInvitationAgain({ email })).toMatchObject({ ok: true });
+    let fresh: string | undefined;
+    for (let i = 0; i < 50 && (!fresh || fresh === token); i++) {
+      fresh = await latestToken(email);
+      await new Promise((r) => setTimeout(r, 100));
+    }
+    expect(fresh).toBeDefined();
+    expect(fresh).not.toBe(token);
+    secrets.push(fresh!);
+    expect(await mails()).toBe(2);
+    const open = await db()
+      .select()
+      .from(invitations)
+      .where(sql`${invitations.email} = ${email} and ${invitations.revokedAt} is null`);
+    expect(open.map((i) => i.role)).toEqual(["designer"]); // one waiting, with the role it had
+    const [event] = await db()
+      .select()
+      .from(auditEvents)
+      .where(sql`${auditEvents.action} = 'invitation_resent' and ${auditEvents.target} = ${email}`);
+    expect(event).toMatchObject({ workspaceId: demoWs, actorUserId: ids.owner, details: { role: "designer" } });
+
+    const [u] = await db().insert(users).values({ email }).returning();
+    await expect(acceptInvitation({ id: u!.id, email, name: null }, token)).rejects.toMatchObject({ code: "invitation_revoked" });
+    await acceptInvitation({ id: u!.id, email, name: null }, fresh!);
+    // Nothing is waiting any more: sending again is refused, at the field.
+    expect(await sendInvitationAgain({ email })).toMatchObject({ ok: false, code: "not_found", fieldErrors: { email: expect.any(Array) } });
     await db().delete(users).where(eq(users.id, u!.id));
   });
 

@@ -1,9 +1,12 @@
-import { readdirSync } from "node:fs";
+import { cpSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
+import { tmpdir } from "node:os";
 import path from "node:path";
+import { drizzle } from "drizzle-orm/node-postgres";
+import { migrate } from "drizzle-orm/node-postgres/migrator";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
 import type pg from "pg";
 import { createPool } from "@/db";
-import { applyMigrations } from "@/db/migrate";
+import { applyMigrations, MIGRATIONS_FOLDER } from "@/db/migrate";
 import { createScratchDatabase } from "../support/db";
 
 let scratch: Awaited<ReturnType<typeof createScratchDatabase>>;
@@ -83,5 +86,60 @@ describe("migrations", () => {
     await pool.query("delete from workspaces where id = 'w1'");
     const left = await pool.query("select (select count(*) from parts)::int as parts, (select count(*) from kit_parts)::int as lines");
     expect(left.rows[0]).toEqual({ parts: 0, lines: 0 });
+  });
+});
+
+describe("0014_template_names", () => {
+  let before: Awaited<ReturnType<typeof createScratchDatabase>>;
+  let beforePool: pg.Pool;
+  let folder: string;
+  beforeAll(async () => {
+    before = await createScratchDatabase();
+    beforePool = createPool(before.url);
+    // Every migration but 0014, so the rows below are what a workspace may hold when it runs.
+    folder = mkdtempSync(path.join(tmpdir(), "slab-migrations-"));
+    cpSync(MIGRATIONS_FOLDER, folder, { recursive: true });
+    const journalFile = path.join(folder, "meta", "_journal.json");
+    const journal = JSON.parse(readFileSync(journalFile, "utf8")) as { entries: { tag: string }[] };
+    journal.entries = journal.entries.filter((e) => e.tag !== "0014_template_names");
+    writeFileSync(journalFile, JSON.stringify(journal));
+  });
+  afterAll(async () => {
+    await beforePool?.end();
+    await before?.drop();
+    if (folder) rmSync(folder, { recursive: true, force: true });
+  });
+
+  it("renames names that clash in a workspace (any case) oldest first, then refuses a new clash", async () => {
+    await migrate(drizzle(beforePool), { migrationsFolder: folder });
+    await beforePool.query("insert into workspaces (id, name, slug) values ('wa', 'A', 'a'), ('wb', 'B', 'b')");
+    const rows: [string, string | null, string, string][] = [
+      ["t1", "wa", "Thank-you card", "2026-01-01"],
+      ["t2", "wa", "thank-you CARD", "2026-01-02"],
+      ["t3", "wa", "Thank-you card", "2026-01-03"],
+      // Already holds the name the second copy would get: that copy goes on to " (3)", this one to " (4)".
+      ["t4", "wa", "Thank-you card (2)", "2025-12-01"],
+      ["t5", "wb", "Thank-you card", "2026-01-04"], // another workspace: no clash
+      ["t6", null, "Round thanks", "2026-01-01"], // starters keep their names, even twice
+      ["t7", null, "Round thanks", "2026-01-02"],
+    ];
+    for (const [id, ws, name, at] of rows)
+      await beforePool.query("insert into templates (id, workspace_id, name, created_at) values ($1, $2, $3, $4)", [id, ws, name, at]);
+
+    await applyMigrations(beforePool);
+    const names = await beforePool.query<{ id: string; name: string }>("select id, name from templates order by id");
+    expect(Object.fromEntries(names.rows.map((r) => [r.id, r.name]))).toEqual({
+      t1: "Thank-you card",
+      t2: "thank-you CARD (3)",
+      t3: "Thank-you card (4)",
+      t4: "Thank-you card (2)",
+      t5: "Thank-you card",
+      t6: "Round thanks",
+      t7: "Round thanks",
+    });
+    // PostgreSQL's unique_violation, SQLSTATE 23505, on the new index.
+    await expect(
+      beforePool.query("insert into templates (id, workspace_id, name) values ('t8', 'wa', 'THANK-YOU CARD')"),
+    ).rejects.toMatchObject({ code: "23505", constraint: "templates_workspace_name_key" });
   });
 });

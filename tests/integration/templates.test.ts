@@ -1,11 +1,11 @@
 import { readFileSync } from "node:fs";
-import { and, eq, isNull } from "drizzle-orm";
+import { and, eq, inArray, isNull, sql } from "drizzle-orm";
 import { beforeAll, describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { kits, plates, templates, users, workspaces } from "@/db/schema";
 import { remakePlate } from "@/lib/plates/create";
 import { permissionsOf } from "@/lib/auth/actor";
-import { createTemplate, saveVersion } from "@/lib/templates/service";
+import { createTemplate, duplicateTemplate, renameTemplate, saveVersion } from "@/lib/templates/service";
 import { baseUrl } from "../support/http";
 
 // Templates through the plate API against the started app and worker: starters listed, values
@@ -179,5 +179,36 @@ describe("plates from a template", () => {
   it("starter templates cannot be changed", async () => {
     const round = await starter("round-thanks");
     await expect(saveVersion(designer(), round.id, { body: { options: {}, variables: [] } })).rejects.toThrow(/duplicate it/);
+  });
+
+  it("a name is one template's per workspace, whatever its case: saving or renaming onto it is a 409 at the name field", async () => {
+    const actor = designer();
+    const body = { options: {}, variables: [] };
+    const name = `Thank-you card ${Date.now()}`;
+    const first = await createTemplate(actor, { name, body });
+    const again = createTemplate(actor, { name: `  ${name.toUpperCase()} `, body });
+    await expect(again).rejects.toMatchObject({ code: "template_name_taken", field: "name", status: 409 });
+    await expect(again).rejects.toThrow(`A template called “${name.toUpperCase()}” already exists in this workspace`);
+    // The refused save left nothing behind.
+    const same = await db()
+      .select()
+      .from(templates)
+      .where(and(eq(templates.workspaceId, workspaceId), sql`lower(${templates.name}) = lower(${name})`));
+    expect(same.map((t) => t.id)).toEqual([first.id]);
+
+    const other = await createTemplate(actor, { name: `${name} B`, body });
+    await expect(renameTemplate(actor, other.id, name.toLowerCase(), "")).rejects.toMatchObject({
+      code: "template_name_taken",
+      status: 409,
+    });
+    await renameTemplate(actor, first.id, name.toLowerCase(), ""); // its own name in another case is no clash
+    // Copies count on: "(copy)", then "(copy 2)".
+    const c1 = await duplicateTemplate(actor, first.id);
+    const c2 = await duplicateTemplate(actor, first.id);
+    const copies = await db()
+      .select({ id: templates.id, name: templates.name })
+      .from(templates)
+      .where(inArray(templates.id, [c1.id, c2.id]));
+    expect(copies.map((c) => c.name).sort()).toEqual([`${name.toLowerCase()} (copy 2)`, `${name.toLowerCase()} (copy)`]);
   });
 });

@@ -9,7 +9,8 @@ import { PageHeader } from "../_components/page-header";
 export const metadata: Metadata = { title: "API" };
 
 function Code({ children }: { children: string }) {
-  return <pre className="card overflow-x-auto whitespace-pre p-3 font-mono text-xs leading-5">{children}</pre>;
+  // Long lines wrap inside the box (a phone is narrower than any command), indentation kept.
+  return <pre className="card whitespace-pre-wrap p-3 font-mono text-xs leading-5 [overflow-wrap:anywhere]">{children}</pre>;
 }
 
 export default async function DevelopersPage() {
@@ -17,7 +18,8 @@ export default async function DevelopersPage() {
   const owner = can(caller.role, "api-keys:manage");
   const base = appUrl("/").replace(/\/$/, "");
   const secret = owner ? await webhookSecret(caller) : null;
-  const curl = `curl -sS -X POST ${base}/api/v1/plates \\
+  const curl = `# --fail-with-body: on a refusal curl exits non-zero, and the file holds the JSON error instead of a plate
+curl -sS --fail-with-body -X POST ${base}/api/v1/plates \\
   -H "Authorization: Bearer $SLAB_KEY" \\
   -H "Idempotency-Key: order-10482" \\
   -F part=@tile.stl -F part=@pawn.stl \\
@@ -26,10 +28,10 @@ export default async function DevelopersPage() {
   -F 'variables={"order":"10482"}' \\
   -F format=3mf -o plate-10482.3mf -D -`;
   const curlTemplate = `# A saved template (GET /api/v1/templates lists them, with their variables)
-curl -sS -X POST ${base}/api/v1/plates \
-  -H "Authorization: Bearer $SLAB_KEY" \
-  -F kit=$KIT_ID -F template=$TEMPLATE_ID \
-  -F 'variables={"order":"10482","customer":"Sam"}' \
+curl -sS --fail-with-body -X POST ${base}/api/v1/plates \\
+  -H "Authorization: Bearer $SLAB_KEY" \\
+  -F kit=$KIT_ID -F template=$TEMPLATE_ID \\
+  -F 'variables={"order":"10482","customer":"Sam"}' \\
   -F format=stl -o plate-10482.stl`;
   const fetchJs = `const form = new FormData();
 form.append("kit", kitId);                       // or append("part", file, "tile.stl") per mesh

@@ -3,16 +3,23 @@
 import { revalidatePath } from "next/cache";
 import { activeApiKeyCount } from "@/db/queries/api-keys";
 import { createApiKey, revokeApiKey } from "@/lib/accounts/api-keys";
-import { inviteMember, revokeInvitation } from "@/lib/accounts/invitations";
+import { inviteMember, resendInvitation, revokeInvitation } from "@/lib/accounts/invitations";
 import { changeRole, removeMember } from "@/lib/accounts/members";
 import { billingOf } from "@/lib/billing/service";
 import { guardedAction } from "@/lib/auth/guards";
-import { apiKeySchema, changeRoleSchema, idSchema, inviteSchema, memberSchema } from "@/lib/validation/accounts";
+import { apiKeySchema, changeRoleSchema, idSchema, inviteSchema, memberSchema, resendInviteSchema } from "@/lib/validation/accounts";
 
 export const sendInvitation = guardedAction(inviteSchema, "invitations:manage", "inviting people", async (input, caller) => {
   await inviteMember(caller, input.email, input.role);
   revalidatePath("/settings");
   return { ok: true, data: undefined, message: `Invitation sent to ${input.email}.` };
+});
+
+/** "Send again": the invitation waiting for an address, with a new link and expiry (the old link stops working). */
+export const sendInvitationAgain = guardedAction(resendInviteSchema, "invitations:manage", "inviting people", async (input, caller) => {
+  await resendInvitation(caller, input.email);
+  revalidatePath("/settings");
+  return { ok: true, data: undefined, message: `Invitation sent again to ${input.email}; the link in the earlier e-mail no longer works.` };
 });
 
 export const withdrawInvitation = guardedAction(idSchema, "invitations:manage", "withdrawing invitations", async (input, caller) => {

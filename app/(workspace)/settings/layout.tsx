@@ -2,6 +2,7 @@ import type { ReactNode } from "react";
 import { requireCaller } from "@/lib/auth/guards";
 import { can } from "@/lib/auth/permissions";
 import { env } from "@/lib/env";
+import { aOrAn } from "@/lib/format";
 import { PageHeader } from "../_components/page-header";
 import { SettingsNav } from "./_components/settings-nav";
 
@@ -21,10 +22,7 @@ export default async function SettingsLayout({ children }: { children: ReactNode
   if (env().SLAB_FAKE_SMTP === "1") items.push({ href: "/settings/outbox", label: "Outbox (demo)" });
   return (
     <>
-      <PageHeader
-        title="Settings"
-        lead={`${caller.workspace.name} · you are ${caller.role === "owner" ? "an owner" : `a ${caller.role}`}`}
-      />
+      <PageHeader title="Settings" lead={`${caller.workspace.name} · you are ${aOrAn(caller.role)}`} />
       <SettingsNav items={items} />
       {children}
     </>

@@ -17,7 +17,13 @@ export default async function SettingsPage() {
       me={caller.user.id}
       manage={manage}
       members={members.map((m) => ({ ...m, since: m.since.toISOString() }))}
-      pending={pending.map((p) => ({ id: p.id, email: p.email, role: p.role, expiresAt: p.expiresAt.toISOString() }))}
+      pending={pending.map((p) => ({
+        id: p.id,
+        email: p.email,
+        role: p.role,
+        sentAt: p.createdAt.toISOString(),
+        expiresAt: p.expiresAt.toISOString(),
+      }))}
     />
   );
 }

@@ -1,6 +1,7 @@
 "use client";
 
-import { useTransition } from "react";
+import { useRouter } from "next/navigation";
+import { useEffect, useState, useTransition } from "react";
 import { useToast } from "@/app/_components/toasts";
 import { checkoutAction, portalAction } from "./actions";
 
@@ -40,4 +41,25 @@ export function UpgradeButton({ plan, label }: { plan: "workshop" | "farm"; labe
 
 export function PortalButton() {
   return <ProviderButton go={() => portalAction({})} label="Manage billing" />;
+}
+
+/** While a checkout waits for the provider's confirmation: reload the page's data every few seconds, for two minutes at most. */
+export function RefreshWhileConfirming() {
+  const router = useRouter();
+  const [gaveUp, setGaveUp] = useState(false);
+  useEffect(() => {
+    const started = Date.now();
+    const t = setInterval(() => {
+      if (Date.now() - started > 120_000) {
+        clearInterval(t);
+        setGaveUp(true);
+      } else router.refresh();
+    }, 3000);
+    return () => clearInterval(t);
+  }, [router]);
+  return gaveUp ? (
+    <p className="mt-1 text-muted">
+      No confirmation yet. Nothing is lost: reload this page later, or open Manage billing to see the payment.
+    </p>
+  ) : null;
 }

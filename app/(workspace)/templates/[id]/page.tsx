@@ -78,7 +78,7 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
             <h2 className="text-base">Use it</h2>
             <UseInEditor templateId={template.id} kits={kits.map((k) => ({ id: k.id, name: k.name }))} />
             <p className="text-xs text-muted">
-              From the API: <code className="font-mono">template={template.id}</code>
+              From the API: <code className="break-all font-mono">template={template.id}</code>
             </p>
             {mayEdit ? (
               <div className="flex gap-2">

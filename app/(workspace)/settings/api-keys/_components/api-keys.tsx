@@ -4,6 +4,7 @@ import { useState, useTransition } from "react";
 import { FormMessage, Submit, useServerForm, Field } from "@/app/_components/form";
 import { apiKeyScopes } from "@/db/schema/workspaces";
 import { apiKeySchema } from "@/lib/validation/accounts";
+import { day, when } from "@/lib/format";
 import { dropApiKey, makeApiKey } from "../../actions";
 
 type Key = {
@@ -76,11 +77,19 @@ export function ApiKeys({ keys }: { keys: Key[] }) {
           <ul className="card mt-2 divide-y divide-hairline text-sm">
             {keys.map((k) => (
               <li key={k.id} className="flex items-start justify-between gap-3 px-3 py-2" data-testid={`key-${k.prefix}`}>
-                <span>
-                  <span className="font-bold">{k.name}</span> <code className="font-mono text-muted">swk_{k.prefix}…</code>
+                <span className="min-w-0">
+                  <span className="break-words font-bold">{k.name}</span>{" "}
+                  <code className="whitespace-nowrap font-mono text-muted">swk_{k.prefix}…</code>
+                  {/* Each fact stays on one line: a date never breaks from its time. */}
                   <span className="block text-xs text-muted">
-                    {k.scopes.join(", ")} · last used {k.lastUsedAt ? k.lastUsedAt.slice(0, 16).replace("T", " ") : "never"}
-                    {k.revokedAt ? ` · revoked ${k.revokedAt.slice(0, 10)}` : ""}
+                    {k.scopes.join(", ")} ·{" "}
+                    <span className="whitespace-nowrap">last used {k.lastUsedAt ? `${when(k.lastUsedAt)} UTC` : "never"}</span>
+                    {k.revokedAt ? (
+                      <>
+                        {" "}
+                        · <span className="whitespace-nowrap">revoked {day(k.revokedAt)}</span>
+                      </>
+                    ) : null}
                   </span>
                 </span>
                 {k.revokedAt ? (

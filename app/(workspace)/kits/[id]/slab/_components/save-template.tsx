@@ -62,6 +62,8 @@ export function SaveTemplate({
           },
       ),
     );
+    // Once a template of this workspace is applied (or just saved), a new version of it is the first choice.
+    form.setValue("mode", canVersion ? "version" : "new");
     setOpen(true);
   };
   const mode = useWatch({ control: form.control, name: "mode" });
@@ -81,7 +83,10 @@ export function SaveTemplate({
         ? await saveTemplateVersionAction({ id: applied.id, body, note: f.note })
         : await createTemplateAction({ name: f.name, description: f.description, body });
     if (!r.ok) {
-      setProblem(r.message);
+      // A name the workspace already has is said at the name field.
+      const nameError = r.fieldErrors?.name?.[0];
+      if (nameError && f.mode === "new") form.setError("name", { message: nameError }, { shouldFocus: true });
+      else setProblem(r.message);
       return;
     }
     toast("done", r.message ?? "Template saved.");
@@ -127,8 +132,13 @@ export function SaveTemplate({
               className="field-input mt-0.5 py-1 text-sm"
               {...form.register("name")}
               aria-invalid={Boolean(form.formState.errors.name)}
+              aria-describedby={form.formState.errors.name ? `${id}-name-error` : undefined}
             />
-            {form.formState.errors.name ? <span className="text-finding-error">{form.formState.errors.name.message}</span> : null}
+            {form.formState.errors.name ? (
+              <span id={`${id}-name-error`} className="mt-0.5 block text-finding-error" data-testid="template-name-error">
+                {form.formState.errors.name.message}
+              </span>
+            ) : null}
           </div>
           <div className="text-xs text-muted">
             <label htmlFor={`${id}-desc`}>Description (optional)</label>
@@ -146,26 +156,38 @@ export function SaveTemplate({
         {vars.fields.length === 0 ? (
           <p className="text-xs text-muted">No placeholders in the text or QR: the template fills nothing per order.</p>
         ) : null}
+        {/* Stacked in the editor's narrow column, side by side where the form has room: the values stay readable. */}
         {vars.fields.map((v, i) => (
-          <div key={v.id} className="grid grid-cols-[4.5rem_1fr_1fr] items-end gap-1 text-xs text-muted">
-            <code className="pb-1.5 font-mono text-ink">{`{${v.name}}`}</code>
-            <label>
-              default
-              <input
-                className="field-input mt-0.5 py-1 text-sm"
-                aria-label={`Default for {${v.name}}`}
-                {...form.register(`variables.${i}.default`)}
-              />
-            </label>
-            <label>
-              sample
-              <input
-                className="field-input mt-0.5 py-1 text-sm"
-                aria-label={`Sample for {${v.name}}`}
-                {...form.register(`variables.${i}.sample`)}
-              />
-            </label>
-          </div>
+          <fieldset key={v.id} className="@container rounded-card border border-hairline p-1.5 text-xs text-muted">
+            <legend className="px-0.5 font-mono text-ink">{`{${v.name}}`}</legend>
+            <div className="grid grid-cols-1 gap-1 @sm:grid-cols-3">
+              <label className="min-w-0">
+                label
+                <input
+                  className="field-input mt-0.5 px-2 py-1 text-sm"
+                  aria-label={`Label for {${v.name}}`}
+                  placeholder="e.g. Order number"
+                  {...form.register(`variables.${i}.label`)}
+                />
+              </label>
+              <label className="min-w-0">
+                default
+                <input
+                  className="field-input mt-0.5 px-2 py-1 text-sm"
+                  aria-label={`Default for {${v.name}}`}
+                  {...form.register(`variables.${i}.default`)}
+                />
+              </label>
+              <label className="min-w-0">
+                sample
+                <input
+                  className="field-input mt-0.5 px-2 py-1 text-sm"
+                  aria-label={`Sample for {${v.name}}`}
+                  {...form.register(`variables.${i}.sample`)}
+                />
+              </label>
+            </div>
+          </fieldset>
         ))}
         <p className="text-xs text-muted">An empty default makes the value required for every plate.</p>
       </div>
