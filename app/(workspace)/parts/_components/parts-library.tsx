@@ -176,12 +176,12 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
                     {p.repairs.length ? p.repairs.join("; ") : "none"}
                   </td>
                   <td className="px-3 py-2 text-xs text-muted">
-                    {p.createdAt.slice(0, 10)}
-                    {p.uploadedBy ? ` · ${p.uploadedBy}` : ""}
+                    <span className="block">{p.createdAt.slice(0, 10)}</span>
+                    {p.uploadedBy ? <span className="block">{p.uploadedBy}</span> : null}
                   </td>
                   {canWrite ? (
                     <td className="px-3 py-2">
-                      <div className="flex min-w-48 flex-wrap justify-end gap-1 whitespace-normal">
+                      <div className="flex min-w-40 flex-wrap justify-end gap-1 whitespace-normal">
                         <button
                           type="button"
                           className="btn-quiet px-2 py-0.5 text-xs"
