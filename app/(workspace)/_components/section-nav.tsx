@@ -4,6 +4,7 @@ import Link from "next/link";
 import { usePathname } from "next/navigation";
 
 const sections = [
+  { href: "/overview", label: "Overview" },
   { href: "/parts", label: "Parts" },
   { href: "/kits", label: "Kits" },
   { href: "/templates", label: "Templates" },
