@@ -49,6 +49,7 @@ export async function listPlates(actor: WorkspaceActor, filter: { kitId?: string
       title: plates.title,
       estimates: plates.estimates,
       findings: plates.findings,
+      error: plates.error,
       proofSummary: sql<string | null>`${plates.proof}->>'summary'`,
       proofOk: sql<boolean | null>`(${plates.proof}->>'ok')::boolean`,
       files: sql<

@@ -15,6 +15,11 @@ const PLURAL: Record<Unit, string> = {
   meter: "metres",
 };
 
+/** A unit named in words, en-GB and plural ("centimetres"), as the UI says it. */
+export function unitWords(unit: Unit): string {
+  return PLURAL[unit];
+}
+
 /** A part as the build read it: which one, in which unit, with what the importer noticed and its size as it will stand. */
 export type ReadPart = {
   /** 1-based place in the request (or kit). */

@@ -4,6 +4,8 @@ import { useState } from "react";
 import { follow, type UploadBody } from "./follow-upload";
 import useSWR from "swr";
 import { UploadZone } from "./upload-zone";
+import type { Unit } from "@/lib/geometry/io/raw";
+import { unitWords } from "@/lib/geometry/units";
 
 type Row = {
   id: string;
@@ -17,7 +19,7 @@ type Row = {
   contactArea: number | null;
   repairs: string[];
   warnings: { code: string; message: string; suggestion?: { unit: string } }[];
-  unit: string;
+  unit: Unit;
   layFlat: boolean;
   bodies: number;
   createdAt: string;
@@ -25,6 +27,9 @@ type Row = {
   thumbnail: string;
 };
 type Page = { rows: Row[]; total: number; page: number; pages: number };
+/** mm² to the precision the size calls for: a 0.32 mm² foot is not "0". */
+const contact = (a: number) => a.toFixed(a >= 100 ? 0 : a >= 1 ? 1 : 2);
+
 type Sort = "name" | "triangles" | "volume" | "contactArea" | "createdAt" | "sizeZ";
 
 const fetcher = async (url: string) => {
@@ -156,7 +161,7 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
                     <span className="font-bold">{p.name}</span>
                     <span className="block text-xs text-muted">
                       {p.format.toUpperCase()}
-                      {p.unit !== "millimeter" ? ` · read in ${p.unit}s` : ""}
+                      {p.unit !== "millimeter" ? ` · read in ${unitWords(p.unit)}` : ""}
                       {p.layFlat ? " · laid flat" : ""}
                       {p.bodies > 1 ? ` · ${p.bodies} bodies` : ""}
                     </span>
@@ -170,7 +175,7 @@ export function PartsLibrary({ canWrite }: { canWrite: boolean }) {
                   <td className="px-3 py-2 font-mono">
                     {mm(p.sizeX)} × {mm(p.sizeY)} × {mm(p.sizeZ)}
                   </td>
-                  <td className="px-3 py-2 font-mono">{p.contactArea === null ? "—" : p.contactArea.toFixed(0)}</td>
+                  <td className="px-3 py-2 font-mono">{p.contactArea === null ? "—" : contact(p.contactArea)}</td>
                   <td className="px-3 py-2 font-mono">{(p.volume / 1000).toFixed(2)}</td>
                   <td className="max-w-[14rem] whitespace-normal! px-3 py-2 text-xs text-muted">
                     {p.repairs.length ? p.repairs.join("; ") : "none"}

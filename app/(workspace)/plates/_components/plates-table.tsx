@@ -34,7 +34,10 @@ export function PlatesTable({
     <DataTable label={label} head={["Made", ...(showKit ? ["Kit"] : []), "Template", "Pieces", "Mass", "From", "By", "Status", "Files"]}>
       {rows.map((p) => {
         const est = p.estimates as { totalMass?: number; material?: string } | null;
-        const warnings = (p.findings as { severity: string }[]).filter((f) => f.severity === "warning").length;
+        const findings = p.findings as { severity: string; message?: string }[];
+        const warnings = findings.filter((f) => f.severity === "warning").length;
+        // Why a plate failed, in words: its first error finding, else the build's own error.
+        const reason = p.jobState === "failed" ? (findings.find((f) => f.severity === "error")?.message ?? p.error?.message ?? null) : null;
         return (
           <tr key={p.id} data-testid="plate-row">
             <td className="px-3 py-2 text-muted">{when(p.createdAt)}</td>
@@ -67,6 +70,11 @@ export function PlatesTable({
             <td className={`px-3 py-2 ${p.jobState === "failed" ? "text-finding-error" : ""}`}>
               {stateLabel[p.jobState]}
               {warnings ? <span className="ml-1 text-finding-warning">· ⚠ {warnings}</span> : null}
+              {reason ? (
+                <span data-testid="plate-failure" className={PROOF}>
+                  {reason}
+                </span>
+              ) : null}
               {p.proofSummary ? (
                 <span data-testid="plate-proof" className={`${PROOF} ${p.proofOk ? "text-muted" : "text-finding-error"}`}>
                   {p.proofSummary}
