@@ -47,6 +47,7 @@ export async function listPlates(actor: WorkspaceActor, filter: { kitId?: string
       kitId: plates.kitId,
       kitName: kits.name,
       title: plates.title,
+      reference: plates.reference,
       estimates: plates.estimates,
       findings: plates.findings,
       error: plates.error,

@@ -43,6 +43,7 @@ export function PlatesTable({
             <td className="px-3 py-2 text-muted">{when(p.createdAt)}</td>
             {showKit ? (
               <td className={`${WRAP} px-3 py-2 font-bold`}>
+                {p.reference ? <span className="block font-mono text-xs font-normal text-muted">{p.reference}</span> : null}
                 {p.kitId && p.kitName ? (
                   <Link href={`/kits/${p.kitId}/slab`} className="hover:underline">
                     {p.kitName}
