@@ -1,13 +1,20 @@
 "use client";
 
 import { useFieldArray, useWatch } from "react-hook-form";
+import type { TextFit } from "@/lib/geometry/options";
 import { FACES, Num, Pick, RELIEF, Text, WHERE, type Form } from "../fields";
 import { newLine } from "../form-model";
+
+/** What the engine does with a line longer than its room (see lib/geometry/text-fit.ts). */
+const FIT: [TextFit, string][] = [
+  ["shrink", "Shrink it to fit"],
+  ["refuse", "Refuse the plate"],
+];
 
 /** The schema takes at most six text lines. */
 const MAX_LINES = 6;
 
-/** Text lines: each with its size, face, relief, depth, place and longest width. */
+/** Text lines: each with its size, face, relief, depth, place, longest width and what to do when too long. */
 export function TextLinesFieldset({ form }: { form: Form }) {
   const lines = useFieldArray({ control: form.control, name: "text" });
   const text = useWatch({ control: form.control, name: "text" });
@@ -41,6 +48,7 @@ export function TextLinesFieldset({ form }: { form: Form }) {
             <Pick form={form} name={`text.${i}.where`} label="Place" options={WHERE} />
             <Num form={form} name={`text.${i}.maxWidth`} label="Max width" unit="mm" step={1} />
           </div>
+          <Pick form={form} name={`text.${i}.fit`} label="If the line is too long" options={FIT} />
           {text[i]?.where === "at" ? (
             <div className="grid grid-cols-2 gap-2">
               <Num form={form} name={`text.${i}.x`} label="x" unit="mm" step={0.5} />
