@@ -1,4 +1,5 @@
 import { mkdirSync } from "node:fs";
+import AxeBuilder from "@axe-core/playwright";
 import { expect, test, type Page } from "@playwright/test";
 import { signInAs } from "./helpers";
 
@@ -10,9 +11,9 @@ const SIZES = [
   [390, 844],
 ] as const;
 
-async function shots(page: Page, name: string) {
+async function shots(page: Page, name: string, sizes: readonly (readonly [number, number])[] = SIZES) {
   mkdirSync(".data/shots", { recursive: true });
-  for (const [width, height] of SIZES) {
+  for (const [width, height] of sizes) {
     await page.setViewportSize({ width, height });
     await page.waitForTimeout(400);
     await page.screenshot({ path: `.data/shots/${name}-${width}.png`, fullPage: true });
@@ -38,6 +39,14 @@ async function newKit(page: Page, name: string): Promise<string> {
     .click();
   await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   return /\/kits\/([^/]+)\/slab/.exec(page.url())![1]!;
+}
+
+/** Axe's serious and critical violations on the page, each with where it is (none is the aim). */
+async function axeProblems(page: Page): Promise<string[]> {
+  const axe = await new AxeBuilder({ page }).analyze();
+  return axe.violations
+    .filter((v) => v.impact === "serious" || v.impact === "critical")
+    .map((v) => `${v.impact} ${v.id} (${v.nodes.length}×: ${v.nodes[0]?.target.join(" ")})`);
 }
 
 /** The kit's settings have been saved once more than `before` times. */
@@ -184,6 +193,69 @@ test("a template's defaults and the sample values typed when saving reach the pr
   await expect(page.getByLabel("{shop}", { exact: true })).toHaveValue("Harbour Crafts");
   await expect(page.getByLabel("{order}", { exact: true })).toHaveValue("31337");
   await expect(page.getByTestId("findings")).not.toContainText("unfilled_placeholder");
+});
+
+test("a customer's long name: the line shrinks with a warning at it; refused instead, the map says it is not updated and why", async ({
+  page,
+}) => {
+  test.setTimeout(150_000);
+  await page.setViewportSize({ width: 1440, height: 900 });
+  await signInAs(page, "designer");
+  await newKit(page, `Long name kit ${Date.now()}`);
+  // The editor as it opens passes axe: no serious or critical violation (the plate map holds its
+  // pieces' buttons as a group, not inside an image).
+  expect(await axeProblems(page)).toEqual([]);
+  // The cost is money, in euro.
+  await expect(page.getByTestId("estimates")).toContainText(/Cost\s*€\d+\.\d\d/);
+
+  // The demo shop's thank-you template: its second line has 70 mm of room for the name.
+  const demo = await page.locator("option", { hasText: "Marrowby thank-you" }).first().getAttribute("value");
+  await page.getByLabel("Apply a template").selectOption(demo!);
+  await expect(page.getByLabel("Text line 2")).toHaveValue("Thank you, {customer}!");
+  const built = Number(await page.getByTestId("preview-ms").getAttribute("data-build"));
+  await page.getByLabel("{customer}", { exact: true }).fill("Maximilian Featherstonehaugh");
+  await expect
+    .poll(async () => Number(await page.getByTestId("preview-ms").getAttribute("data-build")), { timeout: 15_000 })
+    .toBeGreaterThan(built);
+
+  // Shrunk (the default): a warning at the line's cap height, the plate still current and makeable.
+  const capHeight = page.getByLabel(/^Cap height/).nth(1);
+  await expect(capHeight).toHaveAccessibleDescription(/Text line 2 .* was reduced from 4 mm to [\d.]+ mm cap height to fit/, {
+    timeout: 15_000,
+  });
+  await expect(page.getByTestId("findings")).toContainText("text_shrunk");
+  await expect(page.getByTestId("map-card")).toHaveAttribute("data-state", "current");
+  await expect(page.getByRole("button", { name: "Make the plate" })).toBeEnabled();
+  await shots(page, "long-name-shrunk", [SIZES[0], SIZES[2]]);
+
+  // Refuse the plate instead: the map is the last plate that built, greyed, saying why the new one is not.
+  const fit = page.getByLabel("If the line is too long").nth(1);
+  await expect(fit).toHaveValue("shrink");
+  await fit.selectOption({ label: "Refuse the plate" });
+  const banner = page.getByTestId("map-not-updated");
+  await expect(banner).toBeVisible({ timeout: 15_000 });
+  await expect(banner).toContainText("Not updated");
+  await expect(banner).toContainText("The map shows the last plate that could be built");
+  await expect(banner).toContainText(/Text line 2 .* is [\d.]+ mm too long/);
+  await expect(page.getByTestId("map-card")).toHaveAttribute("data-state", "not-updated");
+  // The last plate's pieces are still on the map (a refused line builds no layout and no pieces).
+  expect(await page.locator('[data-testid^="map-piece-"]').count()).toBe(5);
+  await expect(page.getByTestId("plate-map")).toHaveAccessibleName(/^Plate map \(not updated/);
+  // The refusal at its field: the cap height, since a smaller size that prints would fit.
+  await expect(capHeight).toHaveAccessibleDescription(/Text line 2 .* too long: at 4 mm .*it fits at [\d.]+ mm/);
+  await expect(page.getByTestId("findings")).toContainText("text_too_long");
+  await expect(page.getByTestId("findings")).not.toContainText("text_shrunk");
+  // No plate: the button is off and says what stops it.
+  await expect(page.getByRole("button", { name: "Make the plate" })).toBeDisabled();
+  await expect(page.getByTestId("make-refusal")).toContainText(/Not until this is fixed: Text line 2 .* too long/);
+  expect(await axeProblems(page)).toEqual([]);
+  await shots(page, "long-name-refused", [SIZES[0], SIZES[2]]);
+
+  // A shorter name: current again, and the plate can be made.
+  await page.getByLabel("{customer}", { exact: true }).fill("Max");
+  await expect(page.getByTestId("map-card")).toHaveAttribute("data-state", "current", { timeout: 15_000 });
+  await expect(banner).toHaveCount(0);
+  await expect(page.getByRole("button", { name: "Make the plate" })).toBeEnabled();
 });
 
 test("a viewer sees the kit's slab read-only, with no links or buttons the role cannot use", async ({ page }) => {

@@ -28,6 +28,12 @@ const input = "field-input mt-0.5 py-1 text-sm";
 
 const errorAt = (form: Form, name: Path<FormValues>) => (get(form.formState.errors, name) as { message?: string } | undefined)?.message;
 
+/** The ids of a field's notes, for its control's aria-describedby: a screen reader says them at the field. */
+function useNoteIds(name: string, id: string): string | undefined {
+  const notes = useContext(FieldNotesContext).get(name);
+  return notes?.length ? notes.map((n) => `${id}-n-${n.code}`).join(" ") : undefined;
+}
+
 function Notes({ name, id }: { name: string; id: string }) {
   const notes = useContext(FieldNotesContext).get(name);
   if (!notes?.length) return null;
@@ -67,6 +73,7 @@ export function Num({
 }) {
   const id = `${useId()}-${name}`;
   const error = errorAt(form, name);
+  const noteIds = useNoteIds(name, id);
   return (
     <div className={`text-xs text-muted ${className}`}>
       <label htmlFor={id}>
@@ -80,7 +87,7 @@ export function Num({
         step={step}
         className={input}
         aria-invalid={Boolean(error)}
-        aria-describedby={error ? `${id}-e` : undefined}
+        aria-describedby={error ? `${id}-e` : noteIds}
         data-testid={testId}
         {...form.register(name, { valueAsNumber: true })}
       />
@@ -109,10 +116,11 @@ export function Pick({
   aria?: string;
 }) {
   const id = `${useId()}-${name}`;
+  const noteIds = useNoteIds(name, id);
   return (
     <div className="text-xs text-muted">
       <label htmlFor={id}>{label}</label>
-      <select id={id} className={input} aria-label={aria} {...form.register(name)}>
+      <select id={id} className={input} aria-label={aria} aria-describedby={noteIds} {...form.register(name)}>
         {options.map(([v, l]) => (
           <option key={v} value={v}>
             {l}
@@ -139,11 +147,26 @@ export function Text({
 }) {
   const id = `${useId()}-${name}`;
   const error = errorAt(form, name);
+  const noteIds = useNoteIds(name, id);
   return (
     <div className="text-xs text-muted">
       <label htmlFor={id}>{label}</label>
-      <input id={id} className={input} placeholder={placeholder} aria-label={aria} aria-invalid={Boolean(error)} {...form.register(name)} />
-      {error ? <span className="mt-0.5 block text-finding-error">{error}</span> : <Notes name={name} id={id} />}
+      <input
+        id={id}
+        className={input}
+        placeholder={placeholder}
+        aria-label={aria}
+        aria-invalid={Boolean(error)}
+        aria-describedby={error ? `${id}-e` : noteIds}
+        {...form.register(name)}
+      />
+      {error ? (
+        <span id={`${id}-e`} className="mt-0.5 block text-finding-error">
+          {error}
+        </span>
+      ) : (
+        <Notes name={name} id={id} />
+      )}
     </div>
   );
 }

@@ -36,7 +36,16 @@ const FULL: SlabOptionsInput = {
   },
   marks: {
     text: [
-      { value: "ORDER {order}", size: 6, font: "mono-bold", relief: "emboss", depth: 0.6, position: { x: 12, y: 8 }, maxWidth: 80 },
+      {
+        value: "ORDER {order}",
+        size: 6,
+        font: "mono-bold",
+        relief: "emboss",
+        depth: 0.6,
+        position: { x: 12, y: 8 },
+        maxWidth: 80,
+        fit: "refuse",
+      },
       { value: "Thanks, {customer}", position: "bottom" },
     ],
     qr: { value: "https://shop.example/o/{order}", module: 0.9, level: "Q", depth: "max", position: "top", maxSize: 40 },
@@ -78,8 +87,8 @@ describe("round trips", () => {
       marks: {
         ...DEFAULT_OPTIONS.marks,
         text: [
-          { value: "ORDER {order}", size: 5, font: "sans-bold", relief: "engrave", depth: 0.4, position: "auto" },
-          { value: "Thank you, {customer}!", size: 4, font: "sans-bold", relief: "engrave", depth: 0.4, position: "auto" },
+          { value: "ORDER {order}", size: 5, font: "sans-bold", relief: "engrave", depth: 0.4, position: "auto", fit: "shrink" },
+          { value: "Thank you, {customer}!", size: 4, font: "sans-bold", relief: "engrave", depth: 0.4, position: "auto", fit: "shrink" },
         ],
         numberStyle: { ...DEFAULT_OPTIONS.marks.numberStyle, depth: 0.4 },
         ringStyle: { ...DEFAULT_OPTIONS.marks.ringStyle, depth: 0.4 },
@@ -119,7 +128,18 @@ describe("round trips", () => {
       firstLayerHeight: 0.3,
       pricePerKg: 31.5,
       text: [
-        { value: "ORDER {order}", size: 6, font: "mono-bold", relief: "emboss", depth: 0.6, where: "at", x: 12, y: 8, maxWidth: 80 },
+        {
+          value: "ORDER {order}",
+          size: 6,
+          font: "mono-bold",
+          relief: "emboss",
+          depth: 0.6,
+          where: "at",
+          x: 12,
+          y: 8,
+          maxWidth: 80,
+          fit: "refuse",
+        },
         // The second line's left-out options come back as the engine's defaults.
         {
           value: "Thanks, {customer}",
@@ -131,6 +151,7 @@ describe("round trips", () => {
           x: 0,
           y: 0,
           maxWidth: NaN,
+          fit: "shrink",
         },
       ],
       qr: {
@@ -214,6 +235,14 @@ describe("each field's conversion", () => {
     );
     expect(set.marks?.text?.[0]?.maxWidth).toBe(60);
     expect(set.marks?.qr?.maxSize).toBe(25);
+  });
+
+  it('a line\'s fit goes both ways: a saved "refuse" is not lost to the default "shrink"', () => {
+    const o = formToOptions(values({ text: [{ ...newLine("A", 4), fit: "refuse" }, newLine("B", 4)] }));
+    expect(parse(o).marks.text.map((t) => t.fit)).toEqual(["refuse", "shrink"]);
+    expect(optionsToForm(o).text.map((t) => t.fit)).toEqual(["refuse", "shrink"]);
+    // A line saved before lines had a fit (no `fit` key) comes back as the engine's default.
+    expect(optionsToForm({ marks: { text: [{ value: "C" }] } }).text[0]?.fit).toBe("shrink");
   });
 
   it('required numbers: an empty field is refused at that field as "Enter a number."', () => {
@@ -322,6 +351,18 @@ describe("messages at their fields", () => {
     // A text too long for the schema (at most 120 characters) on the second sent line.
     const long = { ...DEFAULT_VALUES, text: [newLine("", 4), newLine("A", 4), newLine("x".repeat(121), 4)] };
     expect(formProblems(long).map((p) => p.path)).toEqual(["text.2.value"]);
+  });
+
+  // The fields lib/geometry/text-fit.ts gives its findings: a shrunk line at its size, a refused
+  // one at its size (a smaller printable size would fit) or its value (none would), by engine index.
+  it("a text line's fit findings show at that line's size or value, past an emptied line", () => {
+    const findings: Finding[] = [
+      { severity: "warning", code: "text_shrunk", message: "Text line 1 was reduced", field: ["marks", "text", 0, "size"] },
+      { severity: "error", code: "text_too_long", message: "Text line 2 is 9.0 mm too long", field: ["marks", "text", 1, "value"] },
+    ];
+    const notes = fieldNotes(findings, { text: [newLine("A", 4), newLine("", 4), newLine("B", 4)] });
+    expect(notes.get("text.0.size")?.map((n) => n.code)).toEqual(["text_shrunk"]);
+    expect(notes.get("text.2.value")).toEqual([{ severity: "error", code: "text_too_long", message: "Text line 2 is 9.0 mm too long" }]);
   });
 
   it("findings: only errors and warnings that name a field, grouped by field", () => {

@@ -12,6 +12,7 @@ import {
   type QrMark,
   type SlabOptions,
   type SlabOptionsInput,
+  type TextFit,
   type TextMark,
 } from "@/lib/geometry/options";
 import type { SlabShape } from "@/lib/geometry/slab";
@@ -54,6 +55,8 @@ export type LineForm = {
   x: number;
   y: number;
   maxWidth: number;
+  /** What the engine does with a line too long for its room: shrink it, or refuse the plate. */
+  fit: TextFit;
 };
 export type QrForm = {
   value: string;
@@ -114,6 +117,7 @@ export const newLine = (value: string, size: number): LineForm => ({
   x: 0,
   y: 0,
   maxWidth: NaN,
+  fit: "shrink",
 });
 
 export const DEFAULT_VALUES: FormValues = {
@@ -189,6 +193,7 @@ export function formToOptions(f: FormValues, placements?: Placement[]): SlabOpti
           depth: t.depth,
           position: toPosition(t.where, t.x, t.y),
           ...optional("maxWidth", t.maxWidth),
+          fit: t.fit,
         })),
       ...(filled(f.qr.value)
         ? {
@@ -266,6 +271,7 @@ export function optionsToForm(input: SlabOptionsInput, samples: FormValues["samp
       depth: depth(t.depth),
       ...fromPosition(t.position),
       maxWidth: t.maxWidth ?? NaN,
+      fit: t.fit,
     })),
     qr: qr
       ? {

@@ -12,6 +12,7 @@ export function MakePanel({
   material,
   smallParts,
   missing = [],
+  refusal,
 }: {
   making: Making | null;
   disabled: boolean;
@@ -20,12 +21,19 @@ export function MakePanel({
   smallParts: boolean;
   /** Placeholders with no value: the plate cannot be made until each has one. */
   missing?: string[];
+  /** The newest preview's error, if any: the plate is not made until it is fixed. */
+  refusal?: string;
 }) {
   return (
     <section className="card space-y-2 p-3">
       <button type="button" className="btn-primary w-full" disabled={disabled} onClick={onMake}>
         Make the plate
       </button>
+      {refusal ? (
+        <p className="text-xs text-finding-error" data-testid="make-refusal">
+          <span aria-hidden="true">✕ </span>Not until this is fixed: {refusal}
+        </p>
+      ) : null}
       {missing.length ? (
         <p className="text-xs text-finding-warning">⚠ Give a value for {missing.map((n) => `{${n}}`).join(", ")} under Values first.</p>
       ) : null}

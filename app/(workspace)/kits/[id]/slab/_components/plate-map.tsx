@@ -22,6 +22,7 @@ export function PlateMap({
   onSelect,
   onMove,
   readOnly = false,
+  notUpdated = false,
 }: {
   layout: PlateLayout;
   pieces: PlacedPiece[];
@@ -31,10 +32,13 @@ export function PlateMap({
   onSelect: (slot?: number) => void;
   onMove: (piece: PlacedPiece, dx: number, dy: number, turn?: number) => void;
   readOnly?: boolean;
+  /** The map is the last plate that built, not the change now in the form. */
+  notUpdated?: boolean;
 }) {
   const svg = useRef<SVGSVGElement>(null);
   const [drag, setDrag] = useState<{ piece: PlacedPiece; x0: number; y0: number; dx: number; dy: number } | null>(null);
   const { width: W, depth: D } = layout.slab;
+  const size = `${W.toFixed(0)} × ${D.toFixed(0)} mm`;
   const toMm = (e: React.PointerEvent) => {
     const m = svg.current!.getScreenCTM()!.inverse();
     const p = new DOMPoint(e.clientX, e.clientY).matrixTransform(m);
@@ -45,8 +49,9 @@ export function PlateMap({
       ref={svg}
       viewBox={`-2 -2 ${W + 4} ${D + 4}`}
       className="h-full w-full touch-none select-none"
-      role="img"
-      aria-label={`Plate map: a ${W.toFixed(0)} × ${D.toFixed(0)} mm slab with ${pieces.length} pieces`}
+      // A group, not an image: its pieces are buttons, and an image may hold nothing interactive.
+      role="group"
+      aria-label={`Plate map${notUpdated ? " (not updated: the last plate that built)" : ""}: a ${size} slab with ${pieces.length} pieces`}
       data-testid="plate-map"
       onPointerMove={(e) => {
         if (!drag) return;

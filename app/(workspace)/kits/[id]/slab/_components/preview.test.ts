@@ -35,15 +35,18 @@ describe("the preview across builds", () => {
     });
   });
 
-  it("a refused build keeps the last slab in view, marked stale, with the new findings and map", () => {
+  // lib/geometry/build-plate.ts: a plate the checks refuse still returns its layout and the pieces'
+  // new places (no slab solid); a refused text line stops the build before the layout (no layout, no pieces).
+  it("a plate the checks refuse keeps the last slab in view, marked stale, with the new findings and map", () => {
     const good = mergePreview(null, built(1, { slab: slab("a"), pieces: [piece(1, 10)], layout: layout(100) }));
-    const refused = mergePreview(good, built(2, { slab: null, pieces: [piece(1, 30)], findings: [overlap] }));
+    const refused = mergePreview(good, built(2, { slab: null, pieces: [piece(1, 30)], layout: layout(104), findings: [overlap] }));
     expect(refused.slab?.name).toBe("a");
     expect(refused.stale).toBe(true);
     // The 3D view keeps the pieces that belong to the slab it shows; the map shows the new places.
     expect(refused.viewPieces).toEqual([piece(1, 10)]);
     expect(refused.pieces).toEqual([piece(1, 30)]);
-    expect(refused.layout?.slab.width).toBe(100);
+    expect(refused.layout?.slab.width).toBe(104);
+    expect(refused.mapStale).toBe(false);
     expect(refused.findings).toEqual([overlap]);
     expect(refused.seq).toBe(2);
     // The next build that works replaces it all and is no longer stale.
@@ -51,9 +54,30 @@ describe("the preview across builds", () => {
     expect(fixed).toMatchObject({ slab: { name: "b" }, stale: false, viewPieces: [piece(1, 12)], layout: { slab: { width: 110 } } });
   });
 
+  it("a build refused before its layout (a text line too long) keeps the last map whole: its layout and its pieces", () => {
+    const tooLong: Finding = {
+      severity: "error",
+      code: "text_too_long",
+      message: "Text line 2 is 9.0 mm too long",
+      field: ["marks", "text", 1, "value"],
+    };
+    const good = mergePreview(null, built(1, { slab: slab("a"), pieces: [piece(1, 10), piece(2, 40)], layout: layout(100) }));
+    const refused = mergePreview(good, built(2, { slab: null, pieces: [], layout: null, findings: [tooLong] }));
+    expect(refused).toMatchObject({ slab: { name: "a" }, stale: true, mapStale: true, layout: { slab: { width: 100 } }, seq: 2 });
+    expect(refused.pieces).toEqual([piece(1, 10), piece(2, 40)]);
+    expect(refused.viewPieces).toEqual([piece(1, 10), piece(2, 40)]);
+    expect(refused.findings).toEqual([tooLong]);
+    // A second refusal in a row still has the first good map to show.
+    const again = mergePreview(refused, built(3, { slab: null, pieces: [], layout: null, findings: [tooLong] }));
+    expect(again).toMatchObject({ mapStale: true, pieces: [piece(1, 10), piece(2, 40)], layout: { slab: { width: 100 } } });
+    // The line fixed: the new map, current again.
+    const fixed = mergePreview(again, built(4, { slab: slab("b"), pieces: [piece(1, 12)], layout: layout(90) }));
+    expect(fixed).toMatchObject({ mapStale: false, pieces: [piece(1, 12)], layout: { slab: { width: 90 } } });
+  });
+
   it("a first build that is refused is not stale: there is nothing older to show", () => {
     const p = mergePreview(null, built(1, { slab: null, pieces: [piece(1, 5)], findings: [overlap] }));
-    expect(p).toMatchObject({ slab: null, stale: false, viewPieces: [piece(1, 5)], layout: null });
+    expect(p).toMatchObject({ slab: null, stale: false, mapStale: false, viewPieces: [piece(1, 5)], layout: null });
   });
 
   it("a build whose pieces do not fit the bed brings what was tried; the next that fits drops it", () => {

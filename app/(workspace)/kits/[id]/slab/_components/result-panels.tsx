@@ -1,6 +1,7 @@
 "use client";
 
 import type { Finding } from "@/lib/geometry/checks";
+import { amount } from "@/lib/format";
 import type { Preview } from "./preview";
 
 const icon = { error: "✕", warning: "⚠", info: "ℹ" } as const;
@@ -52,7 +53,8 @@ export function EstimatesPanel({ preview }: { preview: Preview | null }) {
         <dt className="font-sans text-muted">Filament</dt>
         <dd>{e.filamentLength.toFixed(2)} m</dd>
         <dt className="font-sans text-muted">Cost</dt>
-        <dd>{e.cost.toFixed(2)}</dd>
+        {/* The engine's cost is in the price per kg's currency, euro (a workspace has no currency setting). */}
+        <dd>{amount(Math.round(e.cost * 100))}</dd>
         <dt className="font-sans text-muted">Slab used</dt>
         <dd>{(layout.utilisation * 100).toFixed(0)} %</dd>
       </dl>

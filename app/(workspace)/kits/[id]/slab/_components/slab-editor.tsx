@@ -187,6 +187,8 @@ export function SlabEditor({
   const sel = result?.pieces.find((p) => p.slot === selected);
   const shown = result?.viewPieces.find((p) => p.slot === selected);
   const doesNotFit = result?.findings.find((f) => f.code === "does_not_fit");
+  // What stops this change from building: said on the map when it still shows the last plate that built.
+  const refusal = result?.findings.find((f) => f.severity === "error");
 
   return (
     <div className="grid gap-4 md:grid-cols-[19rem_minmax(0,1fr)] xl:grid-cols-[19rem_minmax(0,1fr)_19rem]" data-wide>
@@ -262,22 +264,36 @@ export function SlabEditor({
             )}
           </div>
         </div>
-        <div className="card h-[20rem] p-2">
-          {result?.tried ? (
-            <TriedMap tried={result.tried} message={doesNotFit?.message} />
-          ) : result?.layout ? (
-            <PlateMap
-              layout={result.layout}
-              pieces={result.pieces}
-              selected={selected}
-              flagged={flagged}
-              onSelect={setSelected}
-              onMove={(p, dx, dy, turn) => moveTo(p, dx, dy, turn)}
-              readOnly={!canEdit}
-            />
-          ) : (
-            <p className="p-2 text-sm text-muted">The plate map appears with the first preview.</p>
-          )}
+        <div className="card p-2" data-testid="map-card" data-state={result?.mapStale && !result.tried ? "not-updated" : "current"}>
+          {result?.mapStale && !result.tried ? (
+            <div className="mb-2 rounded-card border border-finding-error/40 bg-finding-error/10 p-2 text-xs" data-testid="map-not-updated">
+              <p className="font-bold text-finding-error">
+                <span aria-hidden="true">✕ </span>Not updated
+              </p>
+              <p className="mt-0.5">
+                The map shows the last plate that could be built. This change cannot be: {refusal?.message ?? "see the findings."}
+              </p>
+            </div>
+          ) : null}
+          {/* Greyed while not updated; pieces can be picked, not moved (a move would not show until it builds). */}
+          <div className={`h-[19rem] ${result?.mapStale && !result.tried ? "grayscale" : ""}`}>
+            {result?.tried ? (
+              <TriedMap tried={result.tried} message={doesNotFit?.message} />
+            ) : result?.layout ? (
+              <PlateMap
+                layout={result.layout}
+                pieces={result.pieces}
+                selected={selected}
+                flagged={flagged}
+                onSelect={setSelected}
+                onMove={(p, dx, dy, turn) => moveTo(p, dx, dy, turn)}
+                readOnly={!canEdit || result.mapStale}
+                notUpdated={result.mapStale}
+              />
+            ) : (
+              <p className="p-2 text-sm text-muted">The plate map appears with the first preview.</p>
+            )}
+          </div>
         </div>
         <div className="flex flex-wrap items-center gap-2 text-xs">
           {canEdit ? (
@@ -350,6 +366,7 @@ export function SlabEditor({
               !check.success || !result || result.findings.some((f) => f.severity === "error") || busy || resolved.missing.length > 0
             }
             missing={resolved.missing}
+            refusal={refusal?.message}
             onMake={() =>
               void make(
                 { kitId, options, variables, ...(applied ? { templateId: applied.id, templateVersion: applied.version } : {}) },

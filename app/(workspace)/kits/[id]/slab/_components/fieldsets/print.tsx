@@ -15,7 +15,7 @@ export function PrintFieldset({ form }: { form: Form }) {
         <Num form={form} name="nozzle" label="Nozzle" unit="mm" step={0.1} />
         <Num form={form} name="layerHeight" label="Layer height" unit="mm" step={0.02} />
         <Num form={form} name="firstLayerHeight" label="First layer" unit="mm" step={0.02} />
-        <Num form={form} name="pricePerKg" label="Filament price per kg" step={1} className="col-span-2" />
+        <Num form={form} name="pricePerKg" label="Filament price per kg" unit="€" step={1} className="col-span-2" />
       </div>
     </fieldset>
   );

@@ -1,16 +1,27 @@
 "use client";
 
+import { useContext } from "react";
 import { useFieldArray, useWatch } from "react-hook-form";
-import { FACES, Num, Pick, RELIEF, Text, WHERE, type Form } from "../fields";
+import type { TextFit } from "@/lib/geometry/options";
+import { FACES, FieldNotesContext, Num, Pick, RELIEF, Text, WHERE, type Form } from "../fields";
 import { newLine } from "../form-model";
+
+/** What the engine does with a line longer than its room (see lib/geometry/text-fit.ts). */
+const FIT: [TextFit, string][] = [
+  ["shrink", "Shrink it to fit"],
+  ["refuse", "Refuse the plate"],
+];
 
 /** The schema takes at most six text lines. */
 const MAX_LINES = 6;
 
-/** Text lines: each with its size, face, relief, depth, place and longest width. */
+/** Text lines: each with its size, face, relief, depth, place, longest width and what to do when too long. */
 export function TextLinesFieldset({ form }: { form: Form }) {
   const lines = useFieldArray({ control: form.control, name: "text" });
   const text = useWatch({ control: form.control, name: "text" });
+  // A number field with the engine's words under it takes the whole row, so a long note reads as prose.
+  const notes = useContext(FieldNotesContext);
+  const wide = (i: number, field: string) => (notes.get(`text.${i}.${field}`)?.length ? "col-span-2" : "");
   return (
     <fieldset className="space-y-2">
       <legend className="font-bold">Text</legend>
@@ -34,13 +45,14 @@ export function TextLinesFieldset({ form }: { form: Form }) {
             </button>
           </div>
           <div className="grid grid-cols-2 gap-2">
-            <Num form={form} name={`text.${i}.size`} label="Cap height" unit="mm" step={0.5} />
+            <Num form={form} name={`text.${i}.size`} label="Cap height" unit="mm" step={0.5} className={wide(i, "size")} />
             <Pick form={form} name={`text.${i}.font`} label="Face" options={FACES} />
             <Pick form={form} name={`text.${i}.relief`} label="Relief" options={RELIEF} />
             <Num form={form} name={`text.${i}.depth`} label={text[i]?.relief === "emboss" ? "Height" : "Depth"} unit="mm" step={0.1} />
             <Pick form={form} name={`text.${i}.where`} label="Place" options={WHERE} />
-            <Num form={form} name={`text.${i}.maxWidth`} label="Max width" unit="mm" step={1} />
+            <Num form={form} name={`text.${i}.maxWidth`} label="Max width" unit="mm" step={1} className={wide(i, "maxWidth")} />
           </div>
+          <Pick form={form} name={`text.${i}.fit`} label="If the line is too long" options={FIT} />
           {text[i]?.where === "at" ? (
             <div className="grid grid-cols-2 gap-2">
               <Num form={form} name={`text.${i}.x`} label="x" unit="mm" step={0.5} />
