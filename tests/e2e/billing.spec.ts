@@ -58,7 +58,7 @@ test("at the plan's limit the slab editor says so, with the way to upgrade", asy
       .click();
     await expect(page.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
     await page.getByRole("button", { name: "Make the plate" }).click();
-    await expect(page.getByTestId("make-status")).toContainText("failed");
+    await expect(page.getByTestId("make-status")).toHaveAttribute("data-state", "failed");
     await expect(page.getByTestId("make-status")).toContainText(/made its [\d,]+ plates for this billing period/);
     await expect(page.getByTestId("toasts")).toContainText("upgrade under Settings → Billing");
   } finally {

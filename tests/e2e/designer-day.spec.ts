@@ -183,7 +183,7 @@ test("a template's defaults and the sample values typed when saving reach the pr
   await expect(page.getByTestId("findings")).not.toContainText("unfilled_placeholder");
   await expect(page.getByTestId("values-missing")).toHaveCount(0);
   await page.getByRole("button", { name: "Make the plate" }).click();
-  await expect(page.getByTestId("make-status")).toContainText("done", { timeout: 40_000 });
+  await expect(page.getByTestId("make-status")).toHaveAttribute("data-state", "done", { timeout: 40_000 });
   await expect(page.getByTestId("toasts")).not.toContainText("no default");
 
   // Opened from the template: its default fills {shop}.

@@ -15,7 +15,7 @@ test("an operator inspects a plate from the floor queue, marks piece 3 missing a
     .click();
   await expect(designer.getByTestId("plate-map")).toBeVisible({ timeout: 30_000 });
   await designer.getByRole("button", { name: "Make the plate" }).click();
-  await expect(designer.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
+  await expect(designer.getByTestId("make-status")).toHaveAttribute("data-state", "done", { timeout: 30_000 });
   const plateId = /\/api\/plates\/([^/]+)\/download/.exec(
     (await designer.getByRole("link", { name: "Download STL" }).getAttribute("href"))!,
   )![1]!;

@@ -6,8 +6,8 @@ import { demoUser } from "./helpers";
 // Every page each role can reach, found by following the workspace's own links from where the role
 // lands (one page of each route: record ids folded to [id]), checked the way a person meets it:
 // - axe-core (Deque's WCAG 2.x rule set, through @axe-core/playwright): no serious or critical violation;
-// - no raw code on screen: visible text outside a <details> disclosure, <code>, <pre>, <kbd> and
-//   form values holds no snake_case word (an error or state code such as `does_not_fit`);
+// - no raw code on screen: visible text outside a <details> disclosure, <pre>, <kbd>, form values
+//   and literals the user copies ([data-literal]) holds no snake_case word (a code such as `does_not_fit`);
 // - nothing wider than a 390 px phone screen (no sideways scrolling of the page itself).
 // SLAB_SHOTS=1 also saves full-page screenshots at 1440 × 900, 1024 × 768 and 390 × 844 under
 // .data/shots/<role>/ to look at.
@@ -39,21 +39,16 @@ async function signIn(page: Page, role: string) {
 async function rawCodes(page: Page): Promise<string[]> {
   return page.evaluate(() => {
     const out = new Set<string>();
-    const hidden = (el: Element | null): boolean => {
-      for (let e = el; e; e = e.parentElement) {
-        const tag = e.tagName;
-        if (tag === "DETAILS" || tag === "CODE" || tag === "PRE" || tag === "KBD" || tag === "SCRIPT" || tag === "STYLE") return true;
-        if (tag === "TEXTAREA") return true;
-      }
-      return false;
-    };
+    // Inside a disclosure, a code sample (<pre>), keys to press, or a literal the user copies (an API
+    // key's prefix, marked data-literal) a code is in its place.
+    const hidden = (el: Element) => el.closest("details, pre, kbd, script, style, textarea, [data-literal]") !== null;
     const walker = document.createTreeWalker(document.body, NodeFilter.SHOW_TEXT);
     for (let n = walker.nextNode(); n; n = walker.nextNode()) {
       const el = n.parentElement;
       if (!el || hidden(el)) continue;
       const style = getComputedStyle(el);
       if (style.display === "none" || style.visibility === "hidden") continue;
-      for (const m of (n.textContent ?? "").matchAll(/\b[a-z][a-z0-9]*(?:_[a-z0-9]+)+\b/g)) out.add(m[0]);
+      for (const m of (n.textContent ?? "").matchAll(/\b[a-z]+(?:_[a-z]+)+\b/g)) out.add(m[0]);
     }
     return [...out];
   });

@@ -44,7 +44,8 @@ test("a designer tunes the demo kit's slab live, places a piece by hand, and mak
 
   // Make the plate: the worker builds it, the progress bar fills, the files download.
   await page.getByRole("button", { name: "Make the plate" }).click();
-  await expect(page.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
+  await expect(page.getByTestId("make-status")).toHaveAttribute("data-state", "done", { timeout: 30_000 });
+  await expect(page.getByTestId("make-status")).toContainText("Ready: the plate is made and has passed its proof.");
   const href = await page.getByRole("link", { name: "Download 3MF" }).getAttribute("href");
   const res = await page.request.get(href!);
   expect(res.status()).toBe(200);
@@ -128,7 +129,8 @@ test("disc outline, a text line and a QR code change the preview; the downloaded
   await expect(page.getByTestId("findings")).not.toContainText("error");
 
   await page.getByRole("button", { name: "Make the plate" }).click();
-  await expect(page.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
+  await expect(page.getByTestId("make-status")).toHaveAttribute("data-state", "done", { timeout: 30_000 });
+  await expect(page.getByTestId("make-status")).toContainText("Ready: the plate is made and has passed its proof.");
   await expect(page.getByTestId("cautions")).toContainText("let the plate cool");
   await expect(page.getByTestId("toasts")).toContainText("Plate made");
   await expect(page.getByRole("table", { name: "Plates of this kit" }).getByTestId("plate-row").first()).toContainText("ready");

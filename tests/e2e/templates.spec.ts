@@ -65,7 +65,7 @@ test("a designer makes a branded template with a logo and two variables, sees it
   await page.getByLabel("{customer}", { exact: true }).fill("Rowan");
   await expect(page.getByTestId("findings")).not.toContainText("error");
   await page.getByRole("button", { name: "Make the plate" }).click();
-  await expect(page.getByTestId("make-status")).toContainText("done", { timeout: 30_000 });
+  await expect(page.getByTestId("make-status")).toHaveAttribute("data-state", "done", { timeout: 30_000 });
   const href = await page.getByRole("link", { name: "Download STL" }).getAttribute("href");
   const editorStl = Buffer.from(await (await page.request.get(href!)).body());
   const n = editorStl.readUInt32LE(80);

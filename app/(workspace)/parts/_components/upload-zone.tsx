@@ -3,6 +3,7 @@
 import { useCallback, useRef, useState } from "react";
 import { ACCEPT_ATTRIBUTE } from "@/lib/geometry/formats";
 import { follow, type UploadBody } from "./follow-upload";
+import { CodeDetails } from "@/app/_components/code-details";
 
 type Item = {
   key: string;
@@ -147,7 +148,7 @@ export function UploadZone({
               ) : null}
               {i.state === "failed" ? (
                 <p className="mt-1 text-finding-error" data-testid="upload-error">
-                  {i.message} <code className="font-mono text-xs">({i.code})</code>
+                  {i.message} {i.code ? <CodeDetails code={i.code} /> : null}
                 </p>
               ) : null}
               {i.parts?.map((p) => (

@@ -11,6 +11,7 @@ import { ArchiveButton, DuplicateButton, RestoreButton } from "../_components/te
 import { TemplateThumb } from "../_components/thumb";
 import { UseInEditor } from "../_components/use-in-editor";
 import { NotFound } from "@/lib/errors";
+import { CodeDetails } from "@/app/_components/code-details";
 
 export const metadata: Metadata = { title: "Template" };
 
@@ -48,7 +49,7 @@ export default async function TemplatePage({ params }: { params: Promise<{ id: s
             .filter((f) => f.severity !== "info")
             .map((f, i) => (
               <p key={i} className={f.severity === "error" ? "text-sm text-finding-error" : "text-sm text-finding-warning"}>
-                {f.severity === "error" ? "✕" : "⚠"} {f.message} <code className="text-xs text-muted">{f.code}</code>
+                {f.severity === "error" ? "✕" : "⚠"} {f.message} <CodeDetails code={f.code} />
               </p>
             ))}
         </section>

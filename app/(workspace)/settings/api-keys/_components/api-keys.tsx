@@ -79,7 +79,9 @@ export function ApiKeys({ keys }: { keys: Key[] }) {
               <li key={k.id} className="flex items-start justify-between gap-3 px-3 py-2" data-testid={`key-${k.prefix}`}>
                 <span className="min-w-0">
                   <span className="break-words font-bold">{k.name}</span>{" "}
-                  <code className="whitespace-nowrap font-mono text-muted">swk_{k.prefix}…</code>
+                  <code data-literal className="whitespace-nowrap font-mono text-muted">
+                    swk_{k.prefix}…
+                  </code>
                   {/* Each fact stays on one line: a date never breaks from its time. */}
                   <span className="block text-xs text-muted">
                     {k.scopes.join(", ")} ·{" "}

@@ -4,6 +4,14 @@ import { MATERIALS, type Material } from "@/lib/geometry/options";
 import { EXPORT_FORMAT_IDS, EXPORT_FORMATS } from "@/lib/geometry/formats";
 import type { Making } from "./use-make-plate";
 
+/** The plate's build as a sentence (the state itself is the panel's data-state). */
+const MAKING_WORDS: Record<string, string> = {
+  queued: "Waiting for a worker…",
+  running: "Building and checking the plate…",
+  done: "Ready: the plate is made and has passed its proof.",
+  failed: "Not made.",
+};
+
 /** "Make the plate", its progress and downloads, and the cautions for printing and selling it. */
 export function MakePanel({
   making,
@@ -38,11 +46,11 @@ export function MakePanel({
         <p className="text-xs text-finding-warning">⚠ Give a value for {missing.map((n) => `{${n}}`).join(", ")} under Values first.</p>
       ) : null}
       {making ? (
-        <div data-testid="make-status">
+        <div data-testid="make-status" data-state={making.status}>
           <progress className="h-1.5 w-full accent-[#6d4aff]" max={1} value={making.progress} aria-label="Build progress" />
           <p className="text-xs text-muted">
-            {making.status}
-            {making.message ? ` — ${making.message}` : ""}
+            {MAKING_WORDS[making.status] ?? making.status}
+            {making.message ? ` ${making.message}` : ""}
           </p>
           {making.status === "done" && making.plateId ? (
             <p className="space-x-3 text-xs">

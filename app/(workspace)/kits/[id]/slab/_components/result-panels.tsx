@@ -3,6 +3,7 @@
 import type { Finding } from "@/lib/geometry/checks";
 import { amount } from "@/lib/format";
 import type { Preview } from "./preview";
+import { CodeDetails } from "@/app/_components/code-details";
 
 const icon = { error: "✕", warning: "⚠", info: "ℹ" } as const;
 const tone = { error: "text-finding-error", warning: "text-finding-warning", info: "text-finding-info" } as const;
@@ -22,9 +23,9 @@ export function FindingsPanel({ findings, onSelect }: { findings: Finding[] | nu
           <li key={i} className={tone[f.severity]}>
             <button type="button" className="text-left" onClick={() => f.piece !== undefined && onSelect(f.piece)}>
               <span aria-hidden="true">{icon[f.severity]} </span>
-              <span className="font-bold">{f.severity}</span> <span className="text-ink">{f.message}</span>{" "}
-              <code className="font-mono text-xs text-muted">{f.code}</code>
+              <span className="font-bold">{f.severity}</span> <span className="text-ink">{f.message}</span>
             </button>
+            <CodeDetails code={f.code} />
           </li>
         ))}
       </ul>

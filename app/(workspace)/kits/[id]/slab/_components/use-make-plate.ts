@@ -33,7 +33,7 @@ export function useMakePlate() {
       } catch {
         if (signal.aborted) return;
         toast("problem", "The plate was not made: the server could not be reached. Try again.");
-        return setMaking({ progress: 0, status: "failed", message: "the server could not be reached" });
+        return setMaking({ progress: 0, status: "failed", message: "The server could not be reached; try again in a moment." });
       }
       if (signal.aborted) return;
       if (!r.ok) {
