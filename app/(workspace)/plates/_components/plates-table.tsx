@@ -40,7 +40,7 @@ export function PlatesTable({
         const reason = p.jobState === "failed" ? (findings.find((f) => f.severity === "error")?.message ?? p.error?.message ?? null) : null;
         return (
           <tr key={p.id} data-testid="plate-row">
-            <td className="px-3 py-2 text-muted">{when(p.createdAt)}</td>
+            <td className="w-[6.5rem] whitespace-normal! px-3 py-2 text-muted">{when(p.createdAt)}</td>
             {showKit ? (
               <td className={`${WRAP} px-3 py-2 font-bold`}>
                 {p.reference ? <span className="block font-mono text-xs font-normal text-muted">{p.reference}</span> : null}
