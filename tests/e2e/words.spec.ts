@@ -29,3 +29,15 @@ test("a failed plate is listed with its reason in words", async ({ page, request
   await expect(row.getByTestId("plate-failure")).toContainText(/turned over/);
   await expect(row).not.toContainText("proof_failed");
 });
+
+// On a phone the plates list leaves out the columns a glance does not need (template, pieces, mass,
+// from, by), so the status starts on screen and the files are a short scroll inside the table.
+test("on a 390 px phone the plates list keeps when, what, status and files", async ({ page }) => {
+  await page.setViewportSize({ width: 390, height: 844 });
+  await signInAs(page, "designer");
+  await page.goto("/plates");
+  const table = page.getByRole("table", { name: "Plates", exact: true });
+  await expect(table).toBeVisible();
+  await expect(table.getByRole("columnheader", { name: "Status" })).toBeInViewport();
+  await expect(table.getByRole("columnheader", { name: "Template" })).toBeHidden();
+});

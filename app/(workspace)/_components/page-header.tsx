@@ -22,14 +22,31 @@ export function EmptyState({ message, action }: { message: string; action?: Reac
   );
 }
 
-export function DataTable({ head, children, label }: { head: string[]; children: ReactNode; label: string }) {
+/** A column's cells left out on a phone (see DataTable's `wideOnly`). */
+export const WIDE_ONLY = "hidden md:table-cell";
+
+/**
+ * A table in a card that scrolls sideways when it must. `wideOnly` names the columns left out below
+ * the md breakpoint (their cells carry WIDE_ONLY), so a phone shows what matters without scrolling.
+ */
+export function DataTable({
+  head,
+  children,
+  label,
+  wideOnly = [],
+}: {
+  head: string[];
+  children: ReactNode;
+  label: string;
+  wideOnly?: string[];
+}) {
   return (
     <div className="card overflow-x-auto">
       <table className="w-full text-left text-sm [&_td]:whitespace-nowrap" aria-label={label}>
         <thead className="border-b border-hairline text-xs uppercase tracking-wide text-muted">
           <tr>
             {head.map((h) => (
-              <th key={h} scope="col" className="px-3 py-2 font-bold">
+              <th key={h} scope="col" className={`px-3 py-2 font-bold ${wideOnly.includes(h) ? WIDE_ONLY : ""}`}>
                 {h}
               </th>
             ))}

@@ -2,7 +2,7 @@ import Link from "next/link";
 import { EXPORT_FORMAT_IDS, EXPORT_FORMATS } from "@/lib/geometry/formats";
 import type { PlateRow } from "@/db/queries/library";
 import { when } from "@/lib/format";
-import { DataTable, EmptyState } from "../../_components/page-header";
+import { DataTable, EmptyState, WIDE_ONLY } from "../../_components/page-header";
 import { RemakeButton } from "./remake-button";
 
 /** A proof's summary wraps within its cell rather than widen the table past the column. */
@@ -31,7 +31,11 @@ export function PlatesTable({
 }) {
   if (rows.length === 0) return <EmptyState message={empty} />;
   return (
-    <DataTable label={label} head={["Made", ...(showKit ? ["Kit"] : []), "Template", "Pieces", "Mass", "From", "By", "Status", "Files"]}>
+    <DataTable
+      label={label}
+      wideOnly={["Template", "Pieces", "Mass", "From", "By"]}
+      head={["Made", ...(showKit ? ["Kit"] : []), "Template", "Pieces", "Mass", "From", "By", "Status", "Files"]}
+    >
       {rows.map((p) => {
         const est = p.estimates as { totalMass?: number; material?: string } | null;
         const findings = p.findings as { severity: string; message?: string }[];
@@ -53,7 +57,7 @@ export function PlatesTable({
                 )}
               </td>
             ) : null}
-            <td className={`${WRAP} px-3 py-2`}>
+            <td className={`${WRAP} px-3 py-2 ${WIDE_ONLY}`}>
               {p.templateId ? (
                 <Link href={`/templates/${p.templateId}`} className="hover:underline">
                   {p.templateName} <span className="font-mono text-xs text-muted">v{p.templateVersion}</span>
@@ -62,12 +66,12 @@ export function PlatesTable({
                 <span className="text-muted">—</span>
               )}
             </td>
-            <td className="px-3 py-2 font-mono">{p.pieceCount}</td>
-            <td className="px-3 py-2 font-mono">
+            <td className={`px-3 py-2 font-mono ${WIDE_ONLY}`}>{p.pieceCount}</td>
+            <td className={`px-3 py-2 font-mono ${WIDE_ONLY}`}>
               {est?.totalMass !== undefined ? `${est.totalMass.toFixed(1)} g ${est.material ?? ""}` : "—"}
             </td>
-            <td className="px-3 py-2">{sourceLabel[p.source]}</td>
-            <td className="px-3 py-2 text-muted">{p.makerName ?? p.makerEmail ?? (p.source === "api" ? "API key" : "—")}</td>
+            <td className={`px-3 py-2 ${WIDE_ONLY}`}>{sourceLabel[p.source]}</td>
+            <td className={`px-3 py-2 text-muted ${WIDE_ONLY}`}>{p.makerName ?? p.makerEmail ?? (p.source === "api" ? "API key" : "—")}</td>
             <td className={`px-3 py-2 ${p.jobState === "failed" ? "text-finding-error" : ""}`}>
               {stateLabel[p.jobState]}
               {warnings ? <span className="ml-1 text-finding-warning">· ⚠ {warnings}</span> : null}
