@@ -14,7 +14,12 @@ import { BadRequest, Conflict } from "@/lib/errors";
 export async function sheetPlate(actor: WorkspaceActor, p: Plate): Promise<SheetPlate> {
   const stats = p.stats as { layout?: PlateLayout; pieces?: PlacedPiece[] } | null;
   if (p.jobState !== "done" || !stats?.layout || !stats.pieces)
-    throw new Conflict("not_ready", `The plate is ${p.jobState}; its map exists once the build is done.`);
+    throw new Conflict(
+      "not_ready",
+      p.jobState === "failed"
+        ? "The plate failed, so it has no map."
+        : "The plate is still being made; its map exists once the build is done.",
+    );
   // Within the plate's workspace: its template is that workspace's own or a starter.
   const t = p.templateVersionId ? await templateLabel(actor, p.templateVersionId) : null;
   return {
@@ -39,7 +44,7 @@ export const platePageUrl = (id: string) => appUrl(`/floor/plates/${id}`);
 
 export async function sheetResponse(req: Request, actor: WorkspaceActor, p: Plate): Promise<Response> {
   const paper = (new URL(req.url).searchParams.get("paper") ?? "a4").toLowerCase();
-  if (!(paper in PAPERS)) throw new BadRequest("bad_request", `paper must be one of ${PAPER_IDS.join(", ")}.`);
+  if (!(paper in PAPERS)) throw new BadRequest("bad_request", `Paper must be one of ${PAPER_IDS.join(", ")}.`);
   const pdf = await plateMapPdf(await sheetPlate(actor, p), platePageUrl(p.id), paper as Paper);
   const stem =
     plateName(p)
