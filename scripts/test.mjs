@@ -30,7 +30,13 @@ const started = Date.now();
 const args = process.argv.slice(2);
 const filters = args.filter((a) => a.includes("/") || a.endsWith(".ts"));
 const only = args.filter((a) => !filters.includes(a));
-const want = (stage) => only.length === 0 || only.includes(stage);
+// Paths alone narrow the run to the stages they name: browser specs (a path with "e2e") to the e2e
+// stage, any other path to unit and integration; the static checks always run.
+const pathStage = (stage) =>
+  filters.length === 0 ||
+  stage === "static" ||
+  (stage === "e2e" ? filters.some((f) => f.includes("e2e")) : filters.some((f) => !f.includes("e2e")));
+const want = (stage) => (only.length ? only.includes(stage) : pathStage(stage));
 
 const lock = takeLock("test");
 if (!lock.ok) {

@@ -11,7 +11,7 @@ export async function blobUses(key: string): Promise<number> {
     .execute<{ n: number }>(
       sql`select (select count(*) from parts where blob_key = ${key}) + (select count(*) from plate_files where blob_key = ${key}) + 
         (select count(*) from plates where input::text like ${`%${key}%`}) + (select count(*) from part_uploads where blob_key =
-        ${key} and state = 'checking') as n`,
+        ${key} and state = 'checking') + (select count(*) from part_preparations where blob_key = ${key}) as n`,
     )
     .then((r) => r.rows);
   return Number(used?.n ?? 0);

@@ -152,6 +152,28 @@ export const kitParts = pgTable(
   ],
 );
 
+/**
+ * A part read and measured once for every build (lib/geometry/prepared.ts): found by `source`, the
+ * SHA-256 of the engine's version, the part's own blob and the reading that shapes its mesh, and
+ * kept as a blob (`blob_key`). Not a workspace's row: it is only ever found from the part's own
+ * content key, which the build already holds. `part_blob_key` lets the preparations of a file go
+ * with it when the file is dropped.
+ */
+export const partPreparations = pgTable(
+  "part_preparations",
+  {
+    source: text("source").primaryKey(),
+    partBlobKey: text("part_blob_key").notNull(),
+    blobKey: text("blob_key").notNull(),
+    bytes: integer("bytes").notNull(),
+    /** The layer heights (mm) the blob holds measures for. */
+    layerHeights: real("layer_heights").array().notNull(),
+    createdAt: timestamp("created_at", { withTimezone: true }).notNull().defaultNow(),
+    updatedAt: timestamp("updated_at", { withTimezone: true }).notNull().defaultNow(),
+  },
+  (t) => [index("part_preparations_part_blob_idx").on(t.partBlobKey), index("part_preparations_blob_idx").on(t.blobKey)],
+);
+
 export type Part = typeof parts.$inferSelect;
 export type PartUpload = typeof partUploads.$inferSelect;
 export type Kit = typeof kits.$inferSelect;

@@ -24,7 +24,10 @@ import { orientMesh } from "@/lib/geometry/orient";
 import { fillValue, provePlateAsync, type Proof } from "@/lib/proof";
 import { countEdgesOffThread, readThreeMfOffThread } from "./proof-thread";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
-import { blobStore } from "@/lib/storage";
+import { blobStore, BlobNotFoundError } from "@/lib/storage";
+import { decodePrepared, encodePrepared, PreparedPartError, preparedSource, type PreparedReading } from "@/lib/geometry/prepared";
+import { findPreparation, savePreparation } from "@/db/queries/preparations";
+import { blobUses } from "@/db/queries/blobs";
 
 export type BuildTask = {
   /** Parts by blob key; `bytes` may be left out, and the thread reads the blob itself unless it holds the part already. */
@@ -46,8 +49,12 @@ export type BuildTask = {
   sample?: boolean;
 };
 
+/** A plate file the thread stored itself (hashed and written here, so only its key travels back). */
+export type StoredFile = { format: "stl" | "3mf"; key: string; bytes: number };
+
 export type BuildOutcome =
-  { ok: true; result: Omit<PlateResult, "bodies">; proof?: Proof } | { ok: false; code: string; message: string; details?: unknown };
+  | { ok: true; result: Omit<PlateResult, "bodies">; proof?: Proof; files?: StoredFile[] }
+  | { ok: false; code: string; message: string; details?: unknown };
 
 // Builds and imports are batch work: on Linux a thread's nice value is its own, so each pool thread
 // lowers its own priority and the web process (and the worker's queue loop) keep the CPU they need
@@ -66,7 +73,15 @@ let fonts: ReturnType<typeof parseFontBook> | undefined;
  * Parts already read and oriented by this thread, by content key and reading: an order system sends
  * the same kit again and again, and importing (weld + kernel check) costs more than the build itself.
  */
-const meshCache = new Map<string, { mesh: IndexedMesh; shells: number; read: Pick<ReadPart, "unit" | "warnings" | "size"> }>();
+type Held = {
+  mesh: IndexedMesh;
+  shells: number;
+  read: Pick<ReadPart, "unit" | "warnings" | "size">;
+  /** Its prepared blob's source key (lib/geometry/prepared.ts), and the layer heights that blob holds. */
+  source: string;
+  stored: Set<number>;
+};
+const meshCache = new Map<string, Held>();
 const CACHE_ENTRIES = 64;
 /** Their measures (footprints, size, volume), kept while the mesh stays in the cache above. */
 const partCache = newPartCache();
@@ -102,6 +117,75 @@ function tamperForTest(result: { stl?: Uint8Array }, variables: Record<string, s
   stl.copyWithin(84 + 24, 84 + 36, 84 + 48);
   stl.set(b, 84 + 36);
   result.stl = stl;
+}
+
+/** A part read and measured by an earlier build (any thread, any worker), from the blob store; null when none is kept or readable. */
+async function preparedHeld(reading: PreparedReading): Promise<Held | null> {
+  const source = preparedSource(reading);
+  // Kept preparations are an optimisation: a database that cannot answer costs the reading, not the build.
+  const row = await findPreparation(source).catch((err: unknown) => {
+    console.warn(`[build] kept preparations not looked up: ${err instanceof Error ? err.message.split("\n")[0] : String(err)}`);
+    return null;
+  });
+  if (!row) return null;
+  try {
+    const prepared = decodePrepared(await blobStore().get(row.blobKey));
+    partCache.parts.set(prepared.mesh, new Map(prepared.measures));
+    return { mesh: prepared.mesh, shells: prepared.shells, read: prepared.read, source, stored: new Set(prepared.measures.keys()) };
+  } catch (err) {
+    // A blob gone or unreadable costs the reading again, not the build.
+    if (err instanceof BlobNotFoundError || err instanceof PreparedPartError) return null;
+    throw err;
+  }
+}
+
+/** Read a part's file as the build asks (units, lay flat, turned, rotation): the import with its weld and kernel checks. */
+async function readPart(k: Kernel, p: BuildTask["parts"][number], reading: PreparedReading): Promise<Held> {
+  const bytes = p.bytes ?? (await blobStore().get(p.blobKey));
+  const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
+  const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), {
+    layFlat: p.layFlat,
+    turnX: p.turned ? 2 : 0,
+    rotateZ: p.rotation ?? 0,
+  });
+  const b = bounds(mesh);
+  return {
+    mesh,
+    shells: imported.bodies.reduce((s, x) => s + x.shells, 0),
+    read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] },
+    source: preparedSource(reading),
+    stored: new Set(),
+  };
+}
+
+/**
+ * Store the preparation of every part this build measured at a layer height its kept blob does not
+ * hold yet. Keeping is an optimisation: when it fails (the database or the store is away), the build
+ * still stands and the next one measures again.
+ */
+async function keepPrepared(list: { held: Held; blobKey: string }[]): Promise<void> {
+  const seen = new Set<Held>();
+  for (const { held, blobKey } of list) {
+    if (seen.has(held)) continue;
+    seen.add(held);
+    const measures = partCache.parts.get(held.mesh);
+    if (!measures || [...measures.keys()].every((h) => held.stored.has(h))) continue;
+    try {
+      const bytes = encodePrepared({ mesh: held.mesh, shells: held.shells, read: held.read, measures });
+      const stored = await blobStore().put(bytes);
+      const replaced = await savePreparation({
+        source: held.source,
+        partBlobKey: blobKey,
+        blobKey: stored.key,
+        bytes: bytes.byteLength,
+        layerHeights: [...measures.keys()].sort((a, b) => a - b),
+      });
+      held.stored = new Set(measures.keys());
+      if (replaced && (await blobUses(replaced)) === 0) await blobStore().delete(replaced);
+    } catch (err) {
+      console.warn(`[build] a prepared part was not kept: ${err instanceof Error ? err.message : String(err)}`);
+    }
+  }
 }
 
 function retire() {
@@ -160,27 +244,18 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
     // counts a part of several bodies, or a hollow one, shell for shell.
     const shellsOf = new Map<string, number>();
     const unitNotes: Finding[] = [];
+    const heldParts: { held: Held; blobKey: string }[] = [];
     const bed = parseOptions(task.options).layout.bed;
     for (const [i, p] of task.parts.entries()) {
       const cacheKey = `${p.blobKey}|${p.unit ?? ""}|${p.layFlat ? 1 : 0}|${p.turned ? 1 : 0}|${p.rotation ?? 0}`;
       let held = meshCache.get(cacheKey);
       if (!held) {
-        const bytes = p.bytes ?? (await blobStore().get(p.blobKey));
-        const imported = importMesh(bytes, k, { fileName: p.name, unit: p.unit as Unit | undefined });
-        const mesh = orientMesh(combineMeshes(imported.bodies.map((b) => b.mesh)), {
-          layFlat: p.layFlat,
-          turnX: p.turned ? 2 : 0,
-          rotateZ: p.rotation ?? 0,
-        });
-        const b = bounds(mesh);
-        held = {
-          mesh,
-          shells: imported.bodies.reduce((s, x) => s + x.shells, 0),
-          read: { unit: imported.unit, warnings: imported.warnings, size: [b.max[0] - b.min[0], b.max[1] - b.min[1], b.max[2] - b.min[2]] },
-        };
+        const reading: PreparedReading = { blobKey: p.blobKey, unit: p.unit, layFlat: p.layFlat, turned: p.turned, rotation: p.rotation };
+        held = (await preparedHeld(reading)) ?? (await readPart(k, p, reading));
         if (meshCache.size >= CACHE_ENTRIES) meshCache.delete(meshCache.keys().next().value!);
         meshCache.set(cacheKey, held);
       }
+      heldParts.push({ held, blobKey: p.blobKey });
       // The importer's unit warning, and a refusal for a part too small to print or too large for the bed (the unit is likely wrong).
       unitNotes.push(...unitFindings({ ...held.read, index: i + 1, name: p.name, source: p.partId ? "library" : "upload" }, bed));
       parts.push({ id: `part-${i + 1}`, name: stripImportExtension(p.name), mesh: held.mesh, quantity: p.quantity });
@@ -205,6 +280,8 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       deflateRaw: (d) => deflateRawSync(d, { level: 1 }),
     });
     if (unitNotes.length) result.findings = [...unitNotes, ...result.findings];
+    // Parts measured here for the first time (or at a new layer height) are kept for every later build.
+    await keepPrepared(heldParts);
     if (!result.stl || !result.threeMf) return { ok: true, result };
     // The proof reads the files exactly as they will be stored, here in the thread (the worker's main
     // thread stays free for the queue).
@@ -232,7 +309,19 @@ export default async function build(task: BuildTask): Promise<BuildOutcome> {
       labels: result.pieces.map((p) => ({ number: p.number, bounds: p.bounds })),
       shells: result.pieces.map((p) => shellsOf.get(p.partId) ?? 1),
     });
-    return { ok: true, result, proof };
+    if (!proof.ok || result.findings.some((f) => f.severity === "error")) return { ok: true, result, proof };
+    // A proven plate's files are hashed and written here, not on the worker's main thread, and only
+    // their keys go back to it (not tens of megabytes copied between threads).
+    const written: [StoredFile["format"], Uint8Array][] = [
+      ["stl", result.stl],
+      ["3mf", result.threeMf],
+    ];
+    const files = await Promise.all(
+      written.map(async ([format, bytes]) => ({ format, key: (await blobStore().put(bytes)).key, bytes: bytes.byteLength })),
+    );
+    delete result.stl;
+    delete result.threeMf;
+    return { ok: true, result, proof, files };
   } catch (err) {
     if (err instanceof MeshImportError) return { ok: false, code: err.code, message: err.message, details: err.details };
     if (err instanceof WebAssembly.RuntimeError || (err instanceof RangeError && /memory/i.test(err.message))) {

@@ -41,7 +41,7 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     return;
   }
   const r = outcome.result;
-  if (errorFindings(r.findings).length || !r.stl || !r.threeMf) {
+  if (errorFindings(r.findings).length || !(outcome.files?.length || (r.stl && r.threeMf))) {
     await finish(plate, {
       jobState: "failed",
       status: "failed",
@@ -77,13 +77,18 @@ export async function runPlateJob(pool: Piscina, plateId: string, jobId: string)
     return;
   }
   await setBuildProgress(actor, plateId, 0.9);
-  const written: [ExportFormatId, Uint8Array][] = [
-    ["stl", r.stl],
-    ["3mf", r.threeMf],
-  ];
-  const files = await Promise.all(
-    written.map(async ([format, bytes]) => ({ format, ...(await blobStore().put(bytes)), bytes: bytes.byteLength })),
-  );
+  // The build thread stored the files itself and sent their keys; files sent back whole (none today) are stored here.
+  const written: [ExportFormatId, Uint8Array][] = outcome.files
+    ? []
+    : [
+        ["stl", r.stl!],
+        ["3mf", r.threeMf!],
+      ];
+  const files =
+    outcome.files ??
+    (await Promise.all(
+      written.map(async ([format, bytes]) => ({ format, key: (await blobStore().put(bytes)).key, bytes: bytes.byteLength })),
+    ));
   await finish(
     plate,
     {

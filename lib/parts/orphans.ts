@@ -1,4 +1,5 @@
 import { blobUses } from "@/db/queries/blobs";
+import { dropPreparationsOf } from "@/db/queries/preparations";
 import { blobStore } from "@/lib/storage";
 
 /**
@@ -8,6 +9,9 @@ import { blobStore } from "@/lib/storage";
  */
 export async function dropOrphans(keys: string[]): Promise<void> {
   for (const key of keys) {
-    if ((await blobUses(key)) === 0) await blobStore().delete(key);
+    if ((await blobUses(key)) !== 0) continue;
+    // The file's prepared readings (lib/geometry/prepared.ts) go with it.
+    for (const prepared of await dropPreparationsOf(key)) if ((await blobUses(prepared)) === 0) await blobStore().delete(prepared);
+    await blobStore().delete(key);
   }
 }

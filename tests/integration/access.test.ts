@@ -369,7 +369,7 @@ describe("API keys and cross-workspace access", () => {
     const none = await call(getKit as never, key, "/api/v1/kits/nope", { params: Promise.resolve({ id: "nope" }) });
     expect(none.status).toBe(404);
 
-    const [ours] = await db().select().from(kits).where(eq(kits.workspaceId, demoWs));
+    const [ours] = await db().select().from(kits).where(eq(kits.workspaceId, demoWs)).orderBy(kits.createdAt);
     const mine = await call(getKit as never, key, `/api/v1/kits/${ours!.id}`, { params: Promise.resolve({ id: ours!.id }) });
     expect(mine.status).toBe(200);
     expect(((await mine.json()) as { kit: { parts: unknown[] } }).kit.parts).toHaveLength(2);

@@ -306,7 +306,7 @@ describe("quota and failed payments", () => {
     const creds = JSON.parse(
       (await import("node:fs")).readFileSync(process.env.SLAB_CREDENTIALS_FILE ?? ".data/demo-credentials.test.json", "utf8"),
     ) as { apiKey: string };
-    const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo!.id));
+    const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo!.id)).orderBy(kits.createdAt);
     const f = new FormData();
     f.append("kit", kit!.id);
     f.append("format", "json");

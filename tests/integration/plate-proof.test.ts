@@ -16,7 +16,7 @@ let kitId: string;
 
 beforeAll(async () => {
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
-  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id));
+  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id)).orderBy(kits.createdAt);
   kitId = k!.id;
 });
 

@@ -26,7 +26,7 @@ beforeAll(async () => {
   kernel = await loadKernel();
   (globalThis as { DOMParser?: unknown }).DOMParser = DOMParser;
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
-  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id));
+  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id)).orderBy(kits.createdAt);
   kitId = k!.id;
 });
 

@@ -17,7 +17,7 @@ let replacement: ChildProcess | undefined;
 
 beforeAll(async () => {
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
-  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id));
+  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id)).orderBy(kits.createdAt);
   kitId = k!.id;
   // The per-key limit is 120 a minute; the earlier files used some of it.
   await db().execute(sql`delete from abuse_counters where key like 'apiPerKey:%'`);

@@ -14,7 +14,7 @@ let kitId: string;
 
 beforeAll(async () => {
   const [ws] = await db().select().from(workspaces).where(eq(workspaces.slug, "marrowby"));
-  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id));
+  const [k] = await db().select().from(kits).where(eq(kits.workspaceId, ws!.id)).orderBy(kits.createdAt);
   kitId = k!.id;
   // A key of its own, so these requests do not count against the demo key's rate limit.
   const made = generateApiKey();

@@ -33,7 +33,7 @@ afterAll(async () => {
 describe("plan limits on every plate path", () => {
   it("the slab editor's 'Make the plate' with a logo on the Bench plan is refused and stores nothing", async () => {
     const s = await signInOverHttp(demoUser("designer").email, demoUser("designer").password);
-    const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo)).limit(1);
+    const [kit] = await db().select().from(kits).where(eq(kits.workspaceId, demo)).orderBy(kits.createdAt).limit(1);
     const before = (await db().select({ n: count() }).from(plates).where(eq(plates.workspaceId, demo)))[0]!.n;
     const res = await callAction(
       `/kits/${kit!.id}/slab`,
