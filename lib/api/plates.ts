@@ -148,7 +148,8 @@ export async function plateFile(actor: WorkspaceActor, plate: Plate, format: Exp
   if (plate.jobState !== "done") throw new Conflict("not_ready", `The plate is ${plate.jobState}; its files exist once the build is done.`);
   const file = await plateFileOf(actor, plate.id, format);
   if (!file) throw new NotFound("no_file", `This plate was not written as ${EXPORT_FORMATS[format].label}.`);
-  const bytes = await blobStore().get(file.blobKey);
+  // Streamed from the store as it is read: a 30 MB plate file is never held whole in the server's memory.
+  const blob = await blobStore().open(file.blobKey);
   const warnings = (plate.findings as { severity: string; code: string }[]).filter((f) => f.severity === "warning").map((f) => f.code);
   // The kit (or title) and the day the plate was made, e.g. harbour-run-token-set-2026-12-01.3mf.
   const stem =
@@ -158,11 +159,11 @@ export async function plateFile(actor: WorkspaceActor, plate: Plate, format: Exp
       .replace(/^-|-$/g, "")
       .slice(0, 60) || "plate";
   const name = `${stem}-${plate.createdAt.toISOString().slice(0, 10)}-${plate.id.slice(0, 4)}${EXPORT_FORMATS[format].extension}`;
-  return new Response(bytes as Uint8Array<ArrayBuffer>, {
+  return new Response(blob.stream, {
     headers: {
       "Content-Type": EXPORT_FORMATS[format].mime,
       "Content-Disposition": `attachment; filename="${name}"`,
-      "Content-Length": String(bytes.byteLength),
+      "Content-Length": String(blob.size),
       // The file's SHA-256 as its entity tag (RFC 9110 §8.8.3): the same plate file, the same tag.
       ETag: `"${file.sha256}"`,
       "X-Plate-Id": plate.id,

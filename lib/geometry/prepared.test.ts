@@ -8,7 +8,8 @@ import type { FontBook } from "./fonts";
 import type { Kernel } from "./kernel";
 import type { SlabOptionsInput } from "./options";
 import { orientMesh } from "./orient";
-import { decodePrepared, encodePrepared, PREPARED_VERSION, PreparedPartError, preparedSource, type PreparedPart } from "./prepared";
+import { decodePrepared, encodePrepared, PREPARED_VERSION, PreparedPartError, type PreparedPart } from "./prepared";
+import { preparedSource } from "@/lib/parts/prepared-source";
 
 let kernel: Kernel;
 let fonts: FontBook;

@@ -4,14 +4,14 @@
  * measures (footprints, hull, volume, the small-parts fit) at each layer height measured so far.
  * Reading a part and measuring it cost more than the rest of a build (making the kernel's solid of
  * every part alone is most of it), and neither changes while the part does not, so they are kept as
- * a blob in the blob store, found by `preparedSource` of the part's own blob and its reading.
+ * a blob in the blob store, found by `preparedSource` (lib/parts/prepared-source.ts) of the part's
+ * own blob and its reading.
  *
  * The bytes: "SLABPREP" (8), a little-endian uint32 header length, the header as UTF-8 JSON, padding
  * to 4 bytes, then the mesh's vertex positions (float32 × 3) and triangles (uint32 × 3). Numbers in
  * the header are written by JSON.stringify, which gives the shortest text that reads back to the same
  * double (ECMA-262, Number::toString), so every measure comes back bit for bit.
  */
-import { createHash } from "node:crypto";
 import type { IndexedMesh } from "./mesh";
 import type { PartMeasure } from "./pieces";
 import type { ReadPart } from "./units";
@@ -32,15 +32,6 @@ export type PreparedPart = {
   /** By layer height (mm). */
   measures: Map<number, PartMeasure>;
 };
-
-/** How a part is read for a build: its stored file and the choices that change the mesh. */
-export type PreparedReading = { blobKey: string; unit?: string; layFlat?: boolean; turned?: boolean; rotation?: number };
-
-/** The key a prepared part is found by: SHA-256 of the engine's version and everything that shapes the mesh. */
-export function preparedSource(r: PreparedReading): string {
-  const what = [PREPARED_VERSION, r.blobKey, r.unit ?? "", Boolean(r.layFlat), Boolean(r.turned), r.rotation ?? 0];
-  return createHash("sha256").update(JSON.stringify(what)).digest("hex");
-}
 
 export class PreparedPartError extends Error {
   constructor(message: string) {

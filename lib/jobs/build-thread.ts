@@ -25,7 +25,8 @@ import { fillValue, provePlateAsync, type Proof } from "@/lib/proof";
 import { countEdgesOffThread, readThreeMfOffThread } from "./proof-thread";
 import { draftParts, type PartDraft, type PartUploadTask } from "@/lib/parts/measure";
 import { blobStore, BlobNotFoundError } from "@/lib/storage";
-import { decodePrepared, encodePrepared, PreparedPartError, preparedSource, type PreparedReading } from "@/lib/geometry/prepared";
+import { decodePrepared, encodePrepared, PreparedPartError } from "@/lib/geometry/prepared";
+import { preparedSource, type PreparedReading } from "@/lib/parts/prepared-source";
 import { findPreparation, savePreparation } from "@/db/queries/preparations";
 import { blobUses } from "@/db/queries/blobs";
 

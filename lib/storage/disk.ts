@@ -1,6 +1,7 @@
 import { randomBytes } from "node:crypto";
 import { promises as fs } from "node:fs";
 import path from "node:path";
+import { Readable } from "node:stream";
 import { sha256Hex } from "./hash";
 import { spool } from "./spool";
 import { assertKey, BlobNotFoundError, type BlobStore, type StoredBlob } from "./types";
@@ -64,6 +65,25 @@ export class DiskBlobStore implements BlobStore {
       return new Uint8Array(await fs.readFile(this.pathFor(key)));
     } catch (err) {
       if ((err as NodeJS.ErrnoException).code === "ENOENT") throw new BlobNotFoundError(key);
+      throw err;
+    }
+  }
+
+  async open(key: string): Promise<{ size: number; stream: ReadableStream<Uint8Array> }> {
+    let handle: fs.FileHandle;
+    try {
+      handle = await fs.open(this.pathFor(key), "r");
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code === "ENOENT") throw new BlobNotFoundError(key);
+      throw err;
+    }
+    try {
+      const { size } = await handle.stat();
+      // The read stream closes the handle when it ends or is destroyed (a cancelled web stream destroys it).
+      const stream = Readable.toWeb(handle.createReadStream({ highWaterMark: 256 * 1024 })) as ReadableStream<Uint8Array>;
+      return { size, stream };
+    } catch (err) {
+      await handle.close();
       throw err;
     }
   }

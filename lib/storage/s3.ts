@@ -96,6 +96,17 @@ export class S3BlobStore implements BlobStore {
     }
   }
 
+  async open(key: string): Promise<{ size: number; stream: ReadableStream<Uint8Array> }> {
+    try {
+      const out = await this.client.send(new GetObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));
+      if (!out.Body) throw new BlobNotFoundError(key);
+      return { size: Number(out.ContentLength ?? 0), stream: out.Body.transformToWebStream() as ReadableStream<Uint8Array> };
+    } catch (err) {
+      if (isNotFound(err)) throw new BlobNotFoundError(key);
+      throw err;
+    }
+  }
+
   async has(key: string): Promise<boolean> {
     try {
       await this.client.send(new HeadObjectCommand({ Bucket: this.config.bucket, Key: this.objectKey(key) }));

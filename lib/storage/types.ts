@@ -10,6 +10,12 @@ export interface BlobStore {
    */
   putStream(source: AsyncIterable<Uint8Array>, opts?: { maxBytes?: number }): Promise<StoredBlob>;
   get(key: string): Promise<Uint8Array>;
+  /**
+   * A blob to send on as it is read (disk: a file stream; S3: the object's body), never held whole in
+   * memory; the stream closes the file or connection when it ends or is cancelled (a client that goes
+   * away). A missing blob throws BlobNotFoundError here, before any byte, so a route can answer 404.
+   */
+  open(key: string): Promise<{ size: number; stream: ReadableStream<Uint8Array> }>;
   has(key: string): Promise<boolean>;
   /** Remove a blob; removing a missing one is not an error. */
   delete(key: string): Promise<void>;

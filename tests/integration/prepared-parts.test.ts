@@ -3,7 +3,8 @@ import { eq, inArray } from "drizzle-orm";
 import { describe, expect, it } from "vitest";
 import { db } from "@/db";
 import { kitParts, kits, partPreparations, parts, workspaces } from "@/db/schema";
-import { decodePrepared, preparedSource } from "@/lib/geometry/prepared";
+import { decodePrepared } from "@/lib/geometry/prepared";
+import { preparedSource } from "@/lib/parts/prepared-source";
 import { blobStore } from "@/lib/storage";
 import { baseUrl } from "../support/http";
 

@@ -92,4 +92,29 @@ export function blobStoreContract(getStore: () => BlobStore) {
       await expect(store.has(bad)).rejects.toBeInstanceOf(BadBlobKeyError);
     }
   });
+
+  it("streams a blob as read: the same bytes (SHA-256 = key), its size first, a missing key refused before any byte", async () => {
+    const store = getStore();
+    const bytes = new Uint8Array(3_000_000);
+    for (let i = 0; i < bytes.length; i++) bytes[i] = (i * 2654435761) >>> 24;
+    const { key } = await store.put(bytes);
+    const blob = await store.open(key);
+    expect(blob.size).toBe(bytes.byteLength);
+    const hash = createHash("sha256");
+    let chunksRead = 0;
+    const all = blob.stream.getReader();
+    for (let r = await all.read(); !r.done; r = await all.read()) {
+      hash.update(r.value);
+      chunksRead++;
+    }
+    expect(hash.digest("hex")).toBe(key);
+    // Read in pieces, not whole (the point of a stream).
+    expect(chunksRead).toBeGreaterThan(1);
+    await expect(store.open("0".repeat(64))).rejects.toBeInstanceOf(BlobNotFoundError);
+    // A reader that goes away after the first chunk: cancelling ends the stream without an error.
+    const again = await store.open(key);
+    const reader = again.stream.getReader();
+    expect((await reader.read()).done).toBe(false);
+    await reader.cancel();
+  });
 }

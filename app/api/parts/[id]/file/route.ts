@@ -12,9 +12,11 @@ export const GET = apiRoute(async (_req: Request, ctx: { params: Promise<{ id: s
   const caller = await authorize("workspace:view", "seeing parts");
   const part = await getPart(caller, (await ctx.params).id);
   if (!part) throw notFound("part");
-  const bytes = await blobStore().get(part.blobKey);
-  return new Response(new Uint8Array(bytes), {
+  // Streamed from the store as it is read, never held whole in the server's memory.
+  const blob = await blobStore().open(part.blobKey);
+  return new Response(blob.stream, {
     headers: {
+      "Content-Length": String(blob.size),
       "Content-Type": "application/octet-stream",
       "X-Part-Unit": part.unit,
       "X-Part-Lay-Flat": part.layFlat ? "1" : "0",
