@@ -11,6 +11,7 @@ import { withScope, type Kernel } from "./kernel";
 import {
   bandFrame,
   markBands,
+  nestedFrame,
   markList,
   markShapes,
   moveMarks,
@@ -142,7 +143,7 @@ function build(ctx: BuildContext): PlateResult {
   laps.lap("marks layout");
 
   // 3. The pieces on the bed (where placed by hand, else packed), then numbered.
-  const placing = placePieces(o, pieces, room, bands);
+  const placing = placePieces(ctx, pieces, room, bands, input.cache?.nests);
   laps.lap("layout");
   if (!placing.fits) return { ...refuse(...doesNotFit(o, placing)), tried: triedPlacement(o, pieces, room, bands) };
   const numbersAsked = pieceNumbersMismatch(o.layout.pieceNumbers, pieces.length);
@@ -155,8 +156,15 @@ function build(ctx: BuildContext): PlateResult {
 
   // 4. The bands below and above the pieces, the slab's outline round everything, all moved to sit from (0, 0).
   const boxes = pieceBoxes(pieces, room, glyphs);
-  const places = placeMarks(o, shapes, bands, bandFrame(o, boxes, bands, room.spacing), room.spacing);
-  const slab = slabAround(ctx, { pieces, pieceBoxes: boxes, markBoxes: markList(places).map((mk) => mk.bounds), ext: room.ext });
+  const frame = placing.bandsAt ? nestedFrame(bands, placing.bandsAt) : bandFrame(o, boxes, bands, room.spacing);
+  const places = placeMarks(o, shapes, bands, frame, room.spacing);
+  const slab = slabAround(ctx, {
+    pieces,
+    pieceBoxes: boxes,
+    glyphBoxes: [...glyphs.values()].map((g) => g.box),
+    markBoxes: markList(places).map((mk) => mk.bounds),
+    ext: room.ext,
+  });
   if (slab.corners) findings.push(cornerFinding(o, slab.corners));
   movePieces(pieces, slab.dx, slab.dy);
   moveMarks(places, glyphs, slab.dx, slab.dy);

@@ -7,6 +7,7 @@ import { pieceBounds, type Piece } from "./pieces";
 import type { Box, PlateContext } from "./plate-context";
 import { SHAPE_RULES } from "./slab";
 import { fillPlaceholders } from "./variables";
+import { numberSpot, ringHullAt } from "./hug";
 
 /** Baseline to baseline of two text lines in a band, in cap heights of the lower line. */
 export const LINE_PITCH = 1.6;
@@ -98,8 +99,22 @@ export function numberGlyphs(
   for (const p of pieces) {
     const b = pieceBounds(p);
     const shape = layoutText(font, String(numberOf.get(p.slot)!), size);
-    const x = b.minX - ext - gutter - Math.min(0, shape.bounds.minX);
-    const y = Math.max(b.maxY + ext, b.minY - ext + size + 2 * NUMBER_PAD) - size - NUMBER_PAD;
+    let x: number, y: number;
+    if (room.hug) {
+      // Beside the ring where the piece stands, at its top: as the nest left room for it (piece-nest.ts).
+      const spot = numberSpot(
+        ringHullAt(p.fp.hull, p.angle, ext).map(([hx, hy]) => [hx + p.x, hy + p.y]),
+        room.numberRow,
+        NUMBER_GAP,
+        gutter - NUMBER_GAP,
+        p.numberSide ?? 0,
+      );
+      x = spot.minX - Math.min(0, shape.bounds.minX);
+      y = spot.rowTop - size - NUMBER_PAD;
+    } else {
+      x = b.minX - ext - gutter - Math.min(0, shape.bounds.minX);
+      y = Math.max(b.maxY + ext, b.minY - ext + size + 2 * NUMBER_PAD) - size - NUMBER_PAD;
+    }
     out.set(p.slot, {
       shape,
       x,
@@ -110,8 +125,8 @@ export function numberGlyphs(
   return out;
 }
 
-/** Where the bands go: their left edge and width, and the bottom band's and the top band's lower edges. */
-export type BandFrame = { minX: number; innerW: number; bottomY: number; topY: number };
+/** Where each band goes: its left edge, its lower edge and its width. */
+export type BandFrame = { bottom: { x: number; y: number; w: number }; top: { x: number; y: number; w: number } };
 
 /** The bands below and above the pieces' boxes (rings and numbers included), as wide as the wider of the two. */
 export function bandFrame(o: SlabOptions, pieceBoxes: Box[], bands: Bands, spacing: number): BandFrame {
@@ -119,12 +134,18 @@ export function bandFrame(o: SlabOptions, pieceBoxes: Box[], bands: Bands, spaci
   const piecesMaxX = Math.max(m, ...pieceBoxes.map((b) => b.maxX));
   const piecesMinY = Math.min(...pieceBoxes.map((b) => b.minY), m + (bands.bottom.h ? bands.bottom.h + spacing : 0));
   const piecesMaxY = Math.max(m, ...pieceBoxes.map((b) => b.maxY));
+  const w = Math.max(piecesMaxX - m, bands.w);
   return {
-    minX: m,
-    innerW: Math.max(piecesMaxX - m, bands.w),
-    bottomY: Math.min(m, piecesMinY - spacing - bands.bottom.h),
-    topY: piecesMaxY + (bands.top.h ? spacing : 0),
+    bottom: { x: m, y: Math.min(m, piecesMinY - spacing - bands.bottom.h), w },
+    top: { x: m, y: piecesMaxY + (bands.top.h ? spacing : 0), w },
   };
+}
+
+/** The bands where the nest put them (lower left corners), each as wide as its own marks. */
+export function nestedFrame(bands: Bands, at: { bottom?: [number, number]; top?: [number, number] }): BandFrame {
+  const b = at.bottom ?? [0, 0],
+    t = at.top ?? [0, 0];
+  return { bottom: { x: b[0], y: b[1], w: bands.bottom.w }, top: { x: t[0], y: t[1], w: bands.top.w } };
 }
 
 export type TextBlock = TextLine & { x: number; y: number };
@@ -136,19 +157,20 @@ export type MarkPlaces = { texts: TextBlock[]; qr: QrBlock | null; logo: LogoBlo
 /** Text left-aligned in its band (centred on a disc), the logo at the band's left, the QR at its right; hand-placed marks where asked. */
 export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, frame: BandFrame, spacing: number): MarkPlaces {
   const texts: TextBlock[] = [];
-  const placeBand = (b: Band, y0: number) => {
+  const placeBand = (b: Band, f: BandFrame["bottom"]) => {
+    const y0 = f.y;
     let y = y0 + b.h - (b.lines[0]?.size ?? 0) - Math.max(0, (b.h - b.textH) / 2);
     b.lines.forEach((t, i) => {
       if (i > 0) y -= t.size * LINE_PITCH;
       // On a disc the lines are centred (in the room the QR leaves), which keeps the disc small.
-      const room = frame.innerW - b.logoW - (b.qr ? b.qr.shape.sizeWithQuietZone + spacing : 0);
+      const room = f.w - b.logoW - (b.qr ? b.qr.shape.sizeWithQuietZone + spacing : 0);
       const width = lineWidth(t.shape);
       const indent = SHAPE_RULES[o.slab.shape].centreText ? Math.max(0, (room - width) / 2) : 0;
-      texts.push({ ...t, x: frame.minX + b.logoW + indent - Math.min(0, t.shape.bounds.minX), y });
+      texts.push({ ...t, x: f.x + b.logoW + indent - Math.min(0, t.shape.bounds.minX), y });
     });
   };
-  placeBand(bands.bottom, frame.bottomY);
-  placeBand(bands.top, frame.topY);
+  placeBand(bands.bottom, frame.bottom);
+  placeBand(bands.top, frame.top);
   for (const t of shapes.texts) {
     if (typeof t.mark.position === "object") texts.push({ ...t, x: t.mark.position.x, y: t.mark.position.y });
   }
@@ -160,14 +182,21 @@ export function placeMarks(o: SlabOptions, shapes: MarkShapes, bands: Bands, fra
     logo =
       typeof pos === "object"
         ? { value: mark.name, x: pos.x, y: pos.y, w, h }
-        : { value: mark.name, x: frame.minX, y: (pos === "top" ? frame.topY : frame.bottomY) + (b.h - h) / 2, w, h };
+        : {
+            value: mark.name,
+            x: (pos === "top" ? frame.top : frame.bottom).x,
+            y: (pos === "top" ? frame.top : frame.bottom).y + (b.h - h) / 2,
+            w,
+            h,
+          };
   }
   let qr: QrBlock | null = null;
   if (shapes.qr) {
     const side = shapes.qr.shape.sizeWithQuietZone;
     const pos = shapes.qr.mark.position;
-    const x = typeof pos === "object" ? pos.x : frame.minX + frame.innerW - side;
-    const y = typeof pos === "object" ? pos.y : pos === "top" ? frame.topY + bands.top.h - side : frame.bottomY;
+    const f = pos === "top" ? frame.top : frame.bottom;
+    const x = typeof pos === "object" ? pos.x : f.x + f.w - side;
+    const y = typeof pos === "object" ? pos.y : pos === "top" ? f.y + bands.top.h - side : f.y;
     qr = { ...shapes.qr, x, y };
   }
   return { texts, qr, logo };

@@ -160,6 +160,11 @@ export const slabOptionsSchema = z
           .strict()
           .default({ width: 220, depth: 220 }),
         copies: z.number().int().min(1).max(100).default(1),
+        /**
+         * How pieces are packed: `shapes` nests them by their outlines, turned in 15° steps
+         * (piece-nest.ts); `boxes` packs their bounding rectangles in rows, turned only a quarter.
+         */
+        packing: z.enum(["shapes", "boxes"]).default("shapes"),
         placements: z.array(placementSchema).max(2000).optional(),
         /**
          * Numbers to give the pieces, in kit order, instead of numbering them in reading order: a

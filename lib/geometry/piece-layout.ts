@@ -3,8 +3,14 @@ import { arrange, maxRectsPack, type PackItem } from "./layout";
 import { SHAPE_RULES } from "./slab";
 import { NUMBER_GAP, NUMBER_PAD, type Bands, type NumberGlyphs } from "./mark-bands";
 import type { SlabOptions } from "./options";
-import { hullAt, pieceBounds, pieceInSlot, type Piece } from "./pieces";
-import type { Box } from "./plate-context";
+import { hullAt, pieceBounds, pieceInSlot, type NestCache, type Piece } from "./pieces";
+import type { Box, PlateContext } from "./plate-context";
+import { nestPieces, type BandsAt } from "./piece-nest";
+
+/** The least width a piece's rectangle takes, as it is or turned a quarter. */
+function narrowest(p: Piece, room: PieceRoom): number {
+  return Math.min(rotatedBounds(p.fp.hull, p.angle).w, rotatedBounds(p.fp.hull, p.angle + 90).w) + 2 * room.ext + room.gutter;
+}
 
 /** What a piece's rectangle on the bed holds besides its shadow. */
 export type PieceRoom = {
@@ -16,6 +22,8 @@ export type PieceRoom = {
   gutter: number;
   /** The number's row: the least height of a piece's rectangle (0 without numbers). */
   numberRow: number;
+  /** Numbers hug their piece's ring (nested by shape) rather than sit in a gutter at the left of its box. */
+  hug: boolean;
 };
 
 /** `numberWidth`: the widest number's advance (0 without numbers; see mark-bands.ts). */
@@ -29,11 +37,12 @@ export function pieceRoom(o: SlabOptions, numberWidth: number): PieceRoom {
     spacing: Math.max(o.layout.spacing, o.nozzle),
     gutter: o.marks.numbers ? numberWidth + NUMBER_GAP : 0,
     numberRow: o.marks.numbers ? o.marks.numberStyle.size + 2 * NUMBER_PAD : 0,
+    hug: o.layout.packing === "shapes",
   };
 }
 
 /** Whether the pieces found places; when not, the width the widest row needs and what the bed leaves. */
-export type Placing = { fits: true } | { fits: false; needW: number; maxW: number };
+export type Placing = { fits: true; bandsAt?: BandsAt } | { fits: false; needW: number; maxW: number };
 
 /**
  * Hand-placed pieces keep their places; the rest are packed to their right, above the bottom band,
@@ -41,7 +50,17 @@ export type Placing = { fits: true } | { fits: false; needW: number; maxW: numbe
  * not fit when the packer finds no place for them, or the bands are wider than the bed (their text
  * lines are fitted to it first: text-fit.ts).
  */
-export function placePieces(o: SlabOptions, pieces: Piece[], room: PieceRoom, bands: Bands): Placing {
+export function placePieces(ctx: PlateContext, pieces: Piece[], room: PieceRoom, bands: Bands, cache?: NestCache): Placing {
+  const o = ctx.options;
+  if (o.layout.packing === "shapes") {
+    const nested = nestPieces(ctx, pieces, room, bands, cache);
+    if (nested) return { fits: true, bandsAt: nested.bandsAt };
+    return {
+      fits: false,
+      maxW: o.layout.bed.width - 2 * o.slab.margin,
+      needW: Math.max(bands.w, ...pieces.map((p) => narrowest(p, room))),
+    };
+  }
   const m = o.slab.margin;
   const { ext, gutter, spacing } = room;
   const maxW = o.layout.bed.width - 2 * m;
@@ -176,7 +195,8 @@ export function numberPieces(items: { slot: number; box: Box }[], given?: number
 
 /** Each piece's box on the slab with its ring and its number: content the slab is built around. Kit order. */
 export function pieceBoxes(pieces: Piece[], room: PieceRoom, glyphs: Map<number, NumberGlyphs>): Box[] {
-  const { ext, gutter } = room;
+  const { ext } = room;
+  const gutter = room.hug ? 0 : room.gutter;
   return pieces.map((p) => {
     const b = pieceBounds(p);
     const box = { minX: b.minX - ext - gutter, minY: b.minY - ext, maxX: b.maxX + ext, maxY: b.maxY + ext };

@@ -37,8 +37,17 @@ export type PartMeasure = {
  * mark's cross-section and depth). A change that leaves the slab as it was (the gap, the material, a
  * price) then reuses it instead of running the booleans again.
  */
-export type PartCache = { parts: WeakMap<IndexedMesh, Map<number, PartMeasure>>; slabs: SlabCache };
-export const newPartCache = (): PartCache => ({ parts: new WeakMap(), slabs: new Map() });
+export type PartCache = { parts: WeakMap<IndexedMesh, Map<number, PartMeasure>>; slabs: SlabCache; nests: NestCache };
+export const newPartCache = (): PartCache => ({ parts: new WeakMap(), slabs: new Map(), nests: new Map() });
+/**
+ * The last few nests a process worked out, by exactly what shapes them (the pieces' outlines, the
+ * room they take, the bands, the bed): an option change that moves no piece (depths, the gap, the
+ * material) then re-nests nothing. Each piece's turn, place and number side by slot, and the bands'.
+ */
+export type NestCache = Map<
+  string,
+  { pieces: [number, number, number, number][]; bandsAt: { bottom?: [number, number]; top?: [number, number] } }
+>;
 
 function measurePart(kernel: Kernel, scope: Scope, mesh: IndexedMesh, layerHeight: number, cache?: PartCache): PartMeasure {
   const hit = cache?.parts.get(mesh)?.get(layerHeight);
@@ -97,6 +106,8 @@ export type Piece = {
   fp: PartFootprint;
   /** Turn about Z (degrees) and where the part's origin sits (mm). */
   angle: number;
+  /** Where its number sits by its ring when nested by shape (hug.ts `numberSpot`): 0 left of its top, by default. */
+  numberSide?: number;
   x: number;
   y: number;
 };

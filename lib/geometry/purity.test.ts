@@ -5,7 +5,18 @@ import { describe, expect, it } from "vitest";
 // lib/geometry runs unchanged in a route handler, a worker thread and a browser Web Worker, so its
 // (non-test) sources may import only each other and browser-safe packages.
 const ROOT = path.join(process.cwd(), "lib", "geometry");
-const ALLOWED_PACKAGES = new Set(["manifold-3d", "earcut", "fflate", "saxes", "opentype.js", "qrcode", "svgpath", "zod", "quickhull3d"]);
+const ALLOWED_PACKAGES = new Set([
+  "manifold-3d",
+  "earcut",
+  "fflate",
+  "saxes",
+  "opentype.js",
+  "qrcode",
+  "svgpath",
+  "zod",
+  "quickhull3d",
+  "poly-decomp-es",
+]);
 
 function sources(dir: string): string[] {
   return readdirSync(dir).flatMap((name) => {

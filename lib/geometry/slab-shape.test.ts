@@ -5,7 +5,7 @@ import { hexTile, pawn } from "./demo-shapes";
 import type { FontBook } from "./fonts";
 import type { Kernel } from "./kernel";
 import { orientMesh } from "./orient";
-import { DISC_SEGMENTS, enclosingCircle } from "./slab";
+import { DISC_SEGMENTS, enclosingCircle, roundedRect } from "./slab";
 
 let kernel: Kernel;
 let fonts: FontBook;
@@ -69,16 +69,19 @@ describe("the slab's size is chosen with its marks and shape in view", () => {
     const R = layout!.slab.width / 2;
     const cx = R,
       cy = R;
-    for (const b of boxes)
+    // Margin kept (4 mm) from every mark's corner to the rim, and from every piece's ring (its shadow
+    // outline grown by the default ring's clearance and width, 0.8 + 0.8 mm).
+    for (const m of layout!.marks)
       for (const [x, y] of [
-        [b.minX, b.minY],
-        [b.maxX, b.minY],
-        [b.minX, b.maxY],
-        [b.maxX, b.maxY],
+        [m.bounds.minX, m.bounds.minY],
+        [m.bounds.maxX, m.bounds.minY],
+        [m.bounds.minX, m.bounds.maxY],
+        [m.bounds.maxX, m.bounds.maxY],
       ] as const) {
-        // Margin kept (4 mm) from every corner of every piece and mark to the rim.
         expect(R - Math.hypot(x - cx, y - cy)).toBeGreaterThanOrEqual(4 - 1e-6);
       }
+    for (const p of r.pieces)
+      for (const c of p.outline) for (const [x, y] of c) expect(R - Math.hypot(x - cx, y - cy)).toBeGreaterThanOrEqual(4 + 1.6 - 1e-3);
     // The smallest enclosing circle is never larger than the one through the bounding box's corners
     // (the shadows here leave out the rings, 1.4 mm, and the number column, about 3.2 mm: 6 mm covers both).
     expect(R).toBeLessThanOrEqual((Math.hypot(maxX - minX, maxY - minY) / 2 + 6 + 4) / Math.cos(Math.PI / DISC_SEGMENTS));
@@ -129,5 +132,22 @@ describe("the slab's size is chosen with its marks and shape in view", () => {
     }
     expect(cache.slabs.size).toBeGreaterThanOrEqual(3);
     expect(reused).toBeGreaterThanOrEqual(2);
+  });
+
+  it("a rounded rectangle whose radius is half its side has no repeated corner where its arcs meet", () => {
+    // Found by the property test: two arc ends 1e-14 mm apart became one float32 corner in the STL,
+    // and the proof (rightly) found triangles with a repeated corner.
+    for (const [w, h] of [
+      [40, 60],
+      [60, 40],
+      [40, 40],
+    ]) {
+      const c = roundedRect(3.2, 7.9, w!, h!, 100);
+      for (let i = 0; i < c.length; i++) {
+        const p = c[i]!,
+          q = c[(i + 1) % c.length]!;
+        expect(Math.hypot(p[0] - q[0], p[1] - q[1])).toBeGreaterThan(1e-6);
+      }
+    }
   });
 });

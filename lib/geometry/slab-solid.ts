@@ -3,6 +3,7 @@ import type { Reliefs } from "./mark-reliefs";
 import type { IndexedMesh } from "./mesh";
 import { hullAt, placedShadow, type Piece } from "./pieces";
 import type { Box, PlateContext } from "./plate-context";
+import { grownHull } from "./hug";
 import { SHAPE_RULES, type ContentPoint, type CornerFit } from "./slab";
 
 /** The last few slab solids a process built, by a fingerprint of what shapes them (see `PartCache`). */
@@ -19,25 +20,33 @@ const CUT_OVERSHOOT = 0.01;
  */
 export function slabAround(
   ctx: PlateContext,
-  content: { pieces: Piece[]; pieceBoxes: Box[]; markBoxes: Box[]; ext: number },
+  content: { pieces: Piece[]; pieceBoxes: Box[]; glyphBoxes: Box[]; markBoxes: Box[]; ext: number },
 ): { outline: CrossSection; width: number; depth: number; dx: number; dy: number; corners?: CornerFit } {
   const { kernel, scope, options: o } = ctx;
+  const hug = o.layout.packing === "shapes";
   const boxes = [...content.pieceBoxes, ...content.markBoxes];
-  // What the slab must hold with its margin: each piece's hull grown by its ring, every box's corners.
-  const points: ContentPoint[] = [
-    ...content.pieces.flatMap((p) => hullAt(p).map(([x, y]) => ({ x, y, clearance: content.ext }))),
-    ...boxes.flatMap((b) =>
-      [
-        [b.minX, b.minY],
-        [b.maxX, b.minY],
-        [b.minX, b.maxY],
-        [b.maxX, b.maxY],
-      ].map(([x, y]) => ({ x: x!, y: y!, clearance: 0 })),
-    ),
+  // Boxes drawn into a contour outline, and whose corners the slab must hold: by shape, only the
+  // numbers and the marks (the pieces by their hulls and rings); by boxes, the pieces' boxes too.
+  const rects = hug ? [...content.glyphBoxes, ...content.markBoxes] : boxes;
+  const corners = (b: Box): [number, number][] => [
+    [b.minX, b.minY],
+    [b.maxX, b.minY],
+    [b.minX, b.maxY],
+    [b.maxX, b.maxY],
   ];
+  // What the slab must hold with its margin: each piece's hull grown by its ring, every box's corners.
+  const hulls = content.pieces.map((p) => hullAt(p));
+  const points: ContentPoint[] = [
+    ...hulls.flatMap((h) => h.map(([x, y]) => ({ x, y, clearance: content.ext }))),
+    ...rects.flatMap((b) => corners(b).map(([x, y]) => ({ x, y, clearance: 0 }))),
+  ];
+  // For a circle round it all: the rings' hulls as polygons that hold them, and the boxes' corners.
+  const circlePoints: [number, number][] = [...hulls.flatMap((h) => grownHull(h, content.ext)), ...rects.flatMap(corners)];
   const shaped = SHAPE_RULES[o.slab.shape].outline(kernel, scope, o, {
     boxes,
+    rects,
     points,
+    circlePoints,
     pieceShadows: content.pieces.map((p) => placedShadow(scope, p)),
     ext: content.ext,
   });

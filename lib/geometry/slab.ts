@@ -122,7 +122,12 @@ export function roundedRect(x0: number, y0: number, w: number, h: number, r: num
       pts.push([cx + rr * Math.cos(a), cy + rr * Math.sin(a)]);
     }
   }
-  return pts;
+  // Where the radius is half a side, two arcs meet with no straight between them: their end points
+  // are one point (kept twice, they land on one float32 corner in the file and fold a triangle).
+  const near = (p: [number, number], q: [number, number]) => Math.abs(p[0] - q[0]) < 1e-6 && Math.abs(p[1] - q[1]) < 1e-6;
+  const out = pts.filter((p, i) => i === 0 || !near(p, pts[i - 1]!));
+  if (out.length > 1 && near(out[0]!, out[out.length - 1]!)) out.pop();
+  return out;
 }
 
 export function disc(cx: number, cy: number, r: number, segments = DISC_SEGMENTS): Contour {
@@ -135,7 +140,17 @@ export function disc(cx: number, cy: number, r: number, segments = DISC_SEGMENTS
 }
 
 /** What the slab is built around: the content's boxes and points, the pieces' shadows and how far rings reach past them. */
-export type SlabContent = { boxes: Box[]; points: ContentPoint[]; pieceShadows: CrossSection[]; ext: number };
+export type SlabContent = {
+  /** Everything's boxes: the slab's rectangle holds them. */
+  boxes: Box[];
+  /** Boxes a contour outline draws round as they are (numbers and marks; by boxes, the pieces' too). */
+  rects: Box[];
+  points: ContentPoint[];
+  /** Points a disc must hold (the rings' hulls as polygons that hold them, the boxes' corners). */
+  circlePoints: [number, number][];
+  pieceShadows: CrossSection[];
+  ext: number;
+};
 export type OutlineResult = { outline: CrossSection; corners?: CornerFit };
 
 const boxOf = (boxes: Box[]) =>
@@ -149,18 +164,9 @@ const boxOf = (boxes: Box[]) =>
     { minX: Infinity, minY: Infinity, maxX: -Infinity, maxY: -Infinity },
   );
 
-/** A disc round every content box, the smallest that holds them with the margin. */
+/** The smallest disc round the content (the rings' hulls, every box), with the margin. */
 export function discOutline(kernel: Kernel, scope: Scope, o: SlabOptions, content: SlabContent): OutlineResult {
-  const pts = content.boxes.flatMap(
-    (x) =>
-      [
-        [x.minX, x.minY],
-        [x.maxX, x.minY],
-        [x.minX, x.maxY],
-        [x.maxX, x.maxY],
-      ] as [number, number][],
-  );
-  const c = enclosingCircle(pts);
+  const c = enclosingCircle(content.circlePoints);
   // Grow by the margin, and by the polygon's inset so the inscribed edges keep the full margin.
   const radius = (c.r + o.slab.margin) / Math.cos(Math.PI / DISC_SEGMENTS);
   return { outline: scope.track(new kernel.wasm.CrossSection([disc(c.x, c.y, radius)])) };
@@ -173,7 +179,7 @@ export function contourOutline(kernel: Kernel, scope: Scope, o: SlabOptions, con
   // may then shave the outline, never the content.
   const slack = o.slab.margin + 0.02;
   const grown = content.pieceShadows.map((s) => scope.track(s.offset(content.ext + slack, "Round", 2, 48)));
-  const rects = content.boxes.map(
+  const rects = content.rects.map(
     (x) =>
       [
         [x.minX - slack, x.minY - slack],
@@ -188,6 +194,10 @@ export function contourOutline(kernel: Kernel, scope: Scope, o: SlabOptions, con
   cs = scope.track(scope.track(cs.offset(close, "Round", 2, 48)).offset(-close, "Round", 2, 48));
   const islands = cs.decompose().map((x) => scope.track(x));
   if (islands.length > 1) cs = scope.track(cs.hull());
+  // No holes: where nested pieces leave a hollow wider than the closing reaches, the slab still
+  // runs under it (a hole would weaken the slab and read as a cut through it).
+  const outer = cs.toPolygons().filter((c) => ringArea(c) > 0);
+  cs = scope.track(new CrossSection(outer, "Positive"));
   return { outline: scope.track(cs.simplify(0.01)) };
 }
 
@@ -266,4 +276,11 @@ export function enclosingCircle(points: [number, number][]): Circle {
     }
   }
   return c;
+}
+
+/** Signed area of a contour (counter-clockwise positive). */
+function ringArea(c: Contour): number {
+  let a = 0;
+  for (let i = 0, j = c.length - 1; i < c.length; j = i++) a += (c[j]![0] - c[i]![0]) * (c[j]![1] + c[i]![1]);
+  return a / 2;
 }
