@@ -11,6 +11,7 @@ import { buildPlate, type PlateResult } from "../lib/geometry/build-plate";
 import { loadKernel } from "../lib/geometry/kernel";
 import { parseOptions, type SlabOptionsInput } from "../lib/geometry/options";
 import { orientMesh } from "../lib/geometry/orient";
+import { planPlates } from "../lib/geometry/plans";
 import { benchFonts } from "./kit";
 import { mixedKit, nestKits, type NestKit } from "./nesting-kits";
 
@@ -100,5 +101,25 @@ console.log(
 const dd = results.get("d/disc/shapes")!;
 console.log(`  (d) disc outline: ${dd.fits ? `${f1(dd.w)} mm across, fits the 220 mm bed` : "does not fit the 220 mm bed"}`);
 const f = mixedKit();
-const fr = run(f, "shapes", "rounded-rect");
-console.log(`  (f) ${f.title}: ${fr.fits ? "one plate" : "more than one plate: splitting a kit over plates is not built yet"}`);
+const fParts = f.parts.map((p) => ({ ...p, mesh: orientMesh(p.mesh) }));
+let t = performance.now();
+const plan = planPlates(kernel, { parts: fParts, options: f.options, fonts });
+const planMs = performance.now() - t;
+if ("findings" in plan) console.log(`  (f) ${f.title}: refused: ${plan.findings.map((x) => x.message).join("; ")}`);
+else {
+  const sizes = plan.plates.map((p) => p.slots.length).join(" + ");
+  console.log(
+    `  (f) ${f.title}: ${plan.plates.length} plates (${sizes} pieces), area bound ${plan.areaBound} ` +
+      `(target: the bound or one more), planned in ${planMs.toFixed(0)} ms`,
+  );
+}
+// Nesting time for 50 pieces (kit f's mix, 50 pieces, on a bed that holds them): target ≤ 1.5 s on the server.
+const fifty = f.parts.map((p, i) => ({ ...p, mesh: orientMesh(p.mesh), quantity: [10, 14, 14, 7, 5][i]! }));
+const big: SlabOptionsInput = { ...f.options, layout: { bed: { width: 400, depth: 400 } } };
+buildPlate(kernel, { parts: fifty, options: big, fonts });
+t = performance.now();
+const r50 = buildPlate(kernel, { parts: fifty, options: big, fonts });
+console.log(
+  `  nesting 50 pieces: ${(r50.stats.timings.layout ?? NaN).toFixed(0)} ms (target ≤ 1500), ` +
+    `whole build ${(performance.now() - t).toFixed(0)} ms, ${r50.pieces.length} placed`,
+);

@@ -76,6 +76,24 @@ export function doesNotFit(o: SlabOptions, room: { needW: number; maxW: number }
   ];
 }
 
+/** The slots a plate of a split kit holds (layout.pieces) must be the kit's, each once. */
+export function unknownSlots(o: SlabOptions, kitSize: number): Finding | undefined {
+  const asked = o.layout.pieces;
+  if (!asked) return undefined;
+  const seen = new Set<number>();
+  const bad = asked.find((s) => s > kitSize || seen.size === seen.add(s).size);
+  if (bad === undefined) return undefined;
+  return {
+    code: "plate_pieces_unknown",
+    severity: "error",
+    field: ["layout", "pieces"],
+    message:
+      bad > kitSize
+        ? `layout.pieces names piece ${bad}, but the kit has ${kitSize} pieces; give pieces 1 to ${kitSize}, in kit order.`
+        : `layout.pieces names piece ${bad} twice; give each piece of this plate once.`,
+  };
+}
+
 /** Numbers asked for in layout.pieceNumbers must be one per piece, each its own. */
 export function pieceNumbersMismatch(given: number[] | undefined, pieces: number): Finding | undefined {
   if (!given) return undefined;

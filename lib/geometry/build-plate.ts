@@ -1,5 +1,5 @@
 import type { CrossSection, Manifold } from "manifold-3d";
-import { cornerFinding, doesNotFit, logoTooComplex, markDepths, pieceNumbersMismatch, roomForValues } from "./build-checks";
+import { cornerFinding, doesNotFit, logoTooComplex, markDepths, pieceNumbersMismatch, roomForValues, unknownSlots } from "./build-checks";
 import { runChecks, type Finding } from "./checks";
 import { estimate, type Estimates } from "./estimates";
 import { EXPORT_FORMAT_IDS, type ExportFormatId } from "./formats";
@@ -28,6 +28,7 @@ import { numberPieces, pieceBoxes, pieceRoom, placePieces, triedPlacement, type 
 import {
   checkedPieces,
   kitPieces,
+  kitSize,
   measureParts,
   movePieces,
   pieceBounds,
@@ -123,24 +124,10 @@ function build(ctx: BuildContext): PlateResult {
     return { pieces: [], layout: null, findings, estimates: null, stats: { triangles: 0, bodies: 0, timings: laps.timings } };
   };
 
-  // 1. Parts measured once (or taken from the cache); their pieces in kit order.
-  const { measures, footprints } = measureParts(ctx, input.parts, input.cache);
-  laps.lap("footprints");
-  const pieces = kitPieces(o, input.parts, footprints);
-
-  // 2. The marks' shapes, each text line fitted to its room (shrunk, or refused: that stops the
-  // build here), and the room they and the numbers take around the pieces.
-  const laidOut = markShapes(ctx);
-  const complex = logoTooComplex(laidOut.logo);
-  if (complex) return refuse(complex);
-  findings.push(...roomForValues(laidOut));
-  const room = pieceRoom(o, numberWidth(ctx, pieces.length));
-  const fitted = fitTextLines(ctx, laidOut, room.spacing);
-  findings.push(...fitted.findings);
-  if (fitted.findings.some((f) => f.severity === "error")) return refuse();
-  const shapes = fitted.shapes;
-  const bands = markBands(shapes, room.spacing);
-  laps.lap("marks layout");
+  // 1–2. Parts measured, their pieces, the marks' shapes and the room they take.
+  const staged = piecesAndBands(ctx, input, findings);
+  if (!staged) return refuse();
+  const { measures, pieces, room, shapes, bands } = staged;
 
   // 3. The pieces on the bed (where placed by hand, else packed), then numbered.
   const placing = placePieces(ctx, pieces, room, bands, input.cache?.nests);
@@ -151,6 +138,7 @@ function build(ctx: BuildContext): PlateResult {
   const numberOf = numberPieces(
     pieces.map((p) => ({ slot: p.slot, box: pieceBounds(p) })),
     o.layout.pieceNumbers,
+    o.layout.firstNumber,
   );
   const glyphs = numberGlyphs(ctx, pieces, numberOf, room);
 
@@ -231,6 +219,39 @@ function build(ctx: BuildContext): PlateResult {
     slicing,
     bodies,
   };
+}
+
+/**
+ * The build's first steps, shared with planning a kit over plates (plans.ts): 1. parts measured
+ * once (or taken from the cache), their pieces in kit order (the plate's own, with layout.pieces);
+ * 2. the marks' shapes, each text line fitted to its room (shrunk, or refused), and the room they
+ * and the numbers take around the pieces. Null, with the findings, when the build stops here.
+ */
+export function piecesAndBands(ctx: PlateContext & { laps?: Laps }, input: BuildInput, findings: Finding[]) {
+  const o = ctx.options;
+  const { measures, footprints } = measureParts(ctx, input.parts, input.cache);
+  ctx.laps?.lap("footprints");
+  const unknown = unknownSlots(o, kitSize(o, input.parts));
+  if (unknown) {
+    findings.push(unknown);
+    return null;
+  }
+  const pieces = kitPieces(o, input.parts, footprints);
+  const laidOut = markShapes(ctx);
+  const complex = logoTooComplex(laidOut.logo);
+  if (complex) {
+    findings.push(complex);
+    return null;
+  }
+  findings.push(...roomForValues(laidOut));
+  const room = pieceRoom(o, numberWidth(ctx, o.layout.firstNumber - 1 + kitSize(o, input.parts)));
+  const fitted = fitTextLines(ctx, laidOut, room.spacing);
+  findings.push(...fitted.findings);
+  if (fitted.findings.some((f) => f.severity === "error")) return null;
+  const shapes = fitted.shapes;
+  const bands = markBands(shapes, room.spacing);
+  ctx.laps?.lap("marks layout");
+  return { measures, pieces, room, shapes, bands };
 }
 
 /** The plate as laid out, for the plate map, previews and the API (kernel-free). */

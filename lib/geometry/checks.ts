@@ -35,6 +35,7 @@ export type FindingCode =
   // The layout on the bed.
   | "does_not_fit"
   | "piece_numbers_mismatch"
+  | "plate_pieces_unknown"
   // The slab's outline.
   | "corners_grow_slab"
   | "corner_radius_limited"

@@ -171,9 +171,18 @@ type Placed = { item: NestItem; o: Orientation; x: number; y: number };
 
 /**
  * Nest the items in the order given (fixed ones first wherever they are in the list), each where
- * its rule puts it inside `room`. Null when some item has no place in the room in any turn.
+ * its rule puts it inside `room`. Null when some item has no place in the room in any turn (with
+ * `partial`, such items are left out and the rest placed), or when `stop` says so of the extent so far.
  */
-export function nest(kernel: Kernel, scope: Scope, items: NestItem[], room: Box, goal: NestGoal): NestPlace[] | null {
+export function nest(
+  kernel: Kernel,
+  scope: Scope,
+  items: NestItem[],
+  room: Box,
+  goal: NestGoal,
+  stop?: (extent: Box) => boolean,
+  partial = false,
+): NestPlace[] | null {
   const placed: Placed[] = [];
   const out: NestPlace[] = [];
   // No-fit polygons relative to the placed item's reference point, by the pair of orientations.
@@ -239,9 +248,14 @@ export function nest(kernel: Kernel, scope: Scope, items: NestItem[], room: Box,
         }
         if (rule !== "goal") region.close();
       });
-      if (!best) return null;
+      if (!best) {
+        if (partial) continue; // left for another plate
+        return null;
+      }
       const b = best as { oi: number; x: number; y: number };
       add(item, b.oi, b.x, b.y);
+      // The extent only grows: a caller with a better nest in hand may give this one up early.
+      if (stop?.(extent!)) return null;
     }
     return out;
   } finally {

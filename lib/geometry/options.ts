@@ -167,6 +167,13 @@ export const slabOptionsSchema = z
         packing: z.enum(["shapes", "boxes"]).default("shapes"),
         placements: z.array(placementSchema).max(2000).optional(),
         /**
+         * The kit's pieces this plate holds, by their place in kit order (from 1): one plate of a kit
+         * split over several (plans.ts `planPlates`). All of them when not given.
+         */
+        pieces: z.array(z.number().int().min(1).max(100_000)).min(1).max(2000).optional(),
+        /** The number of the plate's first piece: a kit split over plates numbers on from plate to plate. */
+        firstNumber: z.number().int().min(1).max(100_000).default(1),
+        /**
          * Numbers to give the pieces, in kit order, instead of numbering them in reading order: a
          * reprint keeps each piece's number from the plate it replaces.
          */

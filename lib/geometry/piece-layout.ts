@@ -176,7 +176,7 @@ export function triedPlacement(o: SlabOptions, pieces: Piece[], room: PieceRoom,
  * `given` (in kit order, checked by `pieceNumbersMismatch`) replaces them, as a reprint keeps its
  * pieces' numbers. Keyed by slot.
  */
-export function numberPieces(items: { slot: number; box: Box }[], given?: number[]): Map<number, number> {
+export function numberPieces(items: { slot: number; box: Box }[], given?: number[], first = 1): Map<number, number> {
   if (given) return new Map(items.map((it, i) => [it.slot, given[i]!]));
   const cy = (b: Box) => (b.minY + b.maxY) / 2,
     cx = (b: Box) => (b.minX + b.maxX) / 2;
@@ -190,7 +190,7 @@ export function numberPieces(items: { slot: number; box: Box }[], given?: number
     else rows.push({ anchor: it.box, members: [it] });
   }
   const read = rows.flatMap((r) => r.members.sort((a, b) => cx(a.box) - cx(b.box) || a.slot - b.slot));
-  return new Map(read.map((it, i) => [it.slot, i + 1]));
+  return new Map(read.map((it, i) => [it.slot, i + first]));
 }
 
 /** Each piece's box on the slab with its ring and its number: content the slab is built around. Kit order. */

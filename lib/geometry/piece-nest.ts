@@ -130,6 +130,9 @@ function pieceOrientations(shape: PartShape, p: Piece, room: PieceRoom, half: nu
   return out;
 }
 
+/** The free search (every piece in any turn) only where the pieces' turns number no more than this. */
+const FREE_TURNS_AT_MOST = 240;
+
 /** Share of a strip the packing shapes fill, for choosing its width (common practice for nested sheets, from memory). */
 const EXPECTED_FILL = 0.82;
 
@@ -151,15 +154,25 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
   const roomW = room.maxX - room.minX;
   const w0 = Math.min(roomW, Math.max(widest, Math.sqrt(area / EXPECTED_FILL)));
   const few = loose.length <= 30;
+  // The square's width, a little less and more, and two or three of the widest item side by side
+  // (bars in two columns) where that is near the square.
   const widths = few ? [w0, w0 * 0.85, w0 * 1.2] : [w0];
+  for (const k of [2, 3]) {
+    const w = k * widest + 1e-6;
+    if (few && w >= 0.7 * w0 && w <= 1.5 * w0 && widths.every((x) => Math.abs(x - w) > 1)) widths.push(w);
+  }
   const score = SHAPE_RULES[o.slab.shape].packingScore;
+  const grow = o.slab.margin - half;
   let best: { placed: NestPlace[]; score: number } | null = null;
-  // Turns tried: each piece free to take any (the costly search, in one width), or every piece of a
-  // part in one turn, its first, a twelfth (30°) or a quarter (90°) on, so copies line up in the
-  // rows or columns they interlock in (pointed hexagons in rows, flat ones in columns).
+  const stop = (e: Box) => best !== null && score(e.maxX - e.minX + 2 * grow, e.maxY - e.minY + 2 * grow) >= best.score;
+  // Turns tried: every piece of a part in one turn, its first, a twelfth (30°) or a quarter (90°)
+  // on, so copies line up in the rows or columns they interlock in (pointed hexagons in rows, flat
+  // ones in columns); then each piece free to take any (the costly search, in one width, given up as
+  // soon as it cannot beat the best so far).
+  const turnsInAll = loose.reduce((n, it) => n + it.orientations.length, 0);
   const variants: { only: number | null; widths: number[] }[] = [
-    { only: null, widths: [w0] },
     ...[0, 2, 6].map((k) => ({ only: k, widths })),
+    ...(turnsInAll <= FREE_TURNS_AT_MOST ? [{ only: null, widths: [w0] }] : []),
   ];
   for (const { only, widths: ws } of variants) {
     const items = only === null ? ordered : ordered.map((it) => onlyTurn(it, only));
@@ -168,9 +181,9 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
     for (const across of [false, true]) {
       const span = across ? room.maxY - room.minY : roomW;
       for (const w of ws.map((x) => Math.min(span, Math.max(across ? tallest(loose) : widest, x)))) {
-        const placed = nest(ctx.kernel, ctx.scope, items, room, { kind: "strip", width: w, across });
+        const placed = nest(ctx.kernel, ctx.scope, items, room, { kind: "strip", width: w, across }, stop);
         if (!placed) continue;
-        const sc = extentScore(placed, items, score, o.slab.margin - half);
+        const sc = extentScore(placed, items, score, grow);
         if (process.env.NEST_DEBUG) console.log(only, across ? "across" : "strip", w.toFixed(1), "score", sc.toFixed(0));
         if (!best || sc < best.score - 1e-9) best = { placed: backTo(placed, items, ordered), score: sc };
       }
@@ -180,14 +193,16 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
   return w0 < roomW ? nest(ctx.kernel, ctx.scope, ordered, room, { kind: "strip", width: roomW }) : null;
 }
 
-/** The item with only its turns of index `k` (every side of its number), where it has them and is free to turn. */
+/** The item with only its turns of index `k` and k + a half turn (every side of its number), where it has them and is free to turn. */
 const turnCache = new WeakMap<Orientation[], Map<number, Orientation[]>>();
 function onlyTurn(it: NestItem, k: number): NestItem {
   if (it.at || it.rule) return it;
   let byK = turnCache.get(it.orientations);
   if (!byK) turnCache.set(it.orientations, (byK = new Map()));
   let os = byK.get(k);
-  if (!os) byK.set(k, (os = it.orientations.filter((q) => q.turn === k)));
+  // Its turn k and the half turn from it: copies of an L lie head to tail, a pair interlocking.
+  const half = 180 / TURN_STEP;
+  if (!os) byK.set(k, (os = it.orientations.filter((q) => q.turn === k || q.turn === k + half)));
   return os.length && os.length < it.orientations.length ? { ...it, orientations: os } : it;
 }
 
@@ -253,6 +268,7 @@ export function nestPieces(
     return { bandsAt: hit.bandsAt };
   }
   const found = nestAnew(ctx, pieces, room, bands);
+  if (found && found.slots.length < pieces.length) return null;
   if (found && cache) {
     cache.set(key, { pieces: pieces.map((p) => [p.angle, p.x, p.y, p.numberSide ?? 0]), bandsAt: found.bandsAt });
     while (cache.size > NESTS_KEPT) cache.delete(cache.keys().next().value!);
@@ -275,7 +291,23 @@ function nestKey(o: SlabOptions, pieces: Piece[], room: PieceRoom, bands: Bands)
   ]);
 }
 
-function nestAnew(ctx: PlateContext, pieces: Piece[], room: PieceRoom, bands: Bands): { bandsAt: BandsAt } | null {
+/**
+ * As many of the pieces as the bed holds, largest first, each where it fits (the bed filled from
+ * its bottom left): the slots placed, for one plate of a kit split over several (plans.ts). The
+ * bands take their places on every plate.
+ */
+export function fillBed(ctx: PlateContext, pieces: Piece[], room: PieceRoom, bands: Bands): number[] {
+  const placed = nestAnew(ctx, pieces, room, bands, true);
+  return placed ? placed.slots : [];
+}
+
+function nestAnew(
+  ctx: PlateContext,
+  pieces: Piece[],
+  room: PieceRoom,
+  bands: Bands,
+  partial = false,
+): { bandsAt: BandsAt; slots: number[] } | null {
   const o: SlabOptions = ctx.options;
   const m = o.slab.margin;
   const half = room.spacing / 2;
@@ -319,10 +351,23 @@ function nestAnew(ctx: PlateContext, pieces: Piece[], room: PieceRoom, bands: Ba
     ...(!disc && top ? [top] : []),
   ];
   const bed: Box = { minX: m - half, minY: m - half, maxX: o.layout.bed.width - m + half, maxY: o.layout.bed.depth - m + half };
-  const placed = disc
-    ? nest(ctx.kernel, ctx.scope, ordered, bed, { kind: "circle", centre: [(bed.minX + bed.maxX) / 2, (bed.minY + bed.maxY) / 2] })
-    : stripNest(ctx, ordered, bed, [...(bottom ? [bottom] : []), ...loose, ...(top ? [top] : [])], half);
+  const centre: Pt = [(bed.minX + bed.maxX) / 2, (bed.minY + bed.maxY) / 2];
+  const placed = partial
+    ? nest(
+        ctx.kernel,
+        ctx.scope,
+        ordered,
+        bed,
+        disc ? { kind: "circle", centre } : { kind: "strip", width: bed.maxX - bed.minX },
+        undefined,
+        true,
+      )
+    : disc
+      ? nest(ctx.kernel, ctx.scope, ordered, bed, { kind: "circle", centre })
+      : stripNest(ctx, ordered, bed, [...(bottom ? [bottom] : []), ...loose, ...(top ? [top] : [])], half);
   if (!placed) return null;
+  // A band that found no place leaves the bed to no piece: nothing fits this plate.
+  if (partial && ((bottom && !placed.some((pl) => pl.key === -1)) || (top && !placed.some((pl) => pl.key === -2)))) return null;
   const bandsAt: BandsAt = {};
   const bySlot = new Map(pieces.map((p) => [p.slot, p]));
   const itemOf = new Map(items.map((it) => [it.key, it]));
@@ -339,5 +384,5 @@ function nestAnew(ctx: PlateContext, pieces: Piece[], room: PieceRoom, bands: Ba
       p.y = pl.y;
     }
   }
-  return { bandsAt };
+  return { bandsAt, slots: placed.filter((pl) => pl.key > 0).map((pl) => pl.key) };
 }

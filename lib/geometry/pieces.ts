@@ -112,23 +112,36 @@ export type Piece = {
   y: number;
 };
 
-/** Pieces in kit order: copies, then parts, then quantity; each first turned to its best packing angle. */
+/**
+ * Pieces in kit order: copies, then parts, then quantity; each first turned to its best packing
+ * angle. With `layout.pieces`, only those slots (a plate of a split kit), keeping their kit slots.
+ */
 export function kitPieces(o: SlabOptions, parts: PlatePart[], footprints: PartFootprint[]): Piece[] {
   const pieces: Piece[] = [];
+  let slot = 0;
+  const only = o.layout.pieces ? new Set(o.layout.pieces) : null;
   for (let copy = 1; copy <= o.layout.copies; copy++) {
     parts.forEach((part, partIndex) => {
       for (let q = 0; q < part.quantity; q++) {
+        slot++;
+        if (only && !only.has(slot)) continue;
         const fp = footprints[partIndex]!;
-        pieces.push({ slot: pieces.length + 1, part, partIndex, copy, fp, angle: bestPackingAngle(fp.hull), x: 0, y: 0 });
+        pieces.push({ slot, part, partIndex, copy, fp, angle: bestPackingAngle(fp.hull), x: 0, y: 0 });
       }
     });
   }
   return pieces;
 }
 
+/** How many pieces the whole kit holds (every copy of every part). */
+export function kitSize(o: SlabOptions, parts: PlatePart[]): number {
+  return o.layout.copies * parts.reduce((s, p) => s + p.quantity, 0);
+}
+
 /** The piece in a slot (slots count from 1 in kit order, as `kitPieces` gives them). */
 export function pieceInSlot(pieces: Piece[], slot: number): Piece {
-  return pieces[slot - 1]!;
+  const at = pieces[slot - 1];
+  return at && at.slot === slot ? at : pieces.find((p) => p.slot === slot)!;
 }
 
 /** The piece's shadow extent where it stands (its hull turned and moved). */

@@ -232,6 +232,7 @@ describe("the new rules' wording: what is wrong, where, by how much, what to cha
     ["gap_below_layer", () => build({ slab: { gap: 0.15 } }, tiles()), /0\.15 mm gap/, /thinner than one 0\.20 mm layer/],
     ["gap_sliced", () => build({ slab: { gap: 0.3 } }, tiles()), /0\.30 mm gap/, /0\.20 mm \(1 layer\)/],
     ["piece_numbers_mismatch", () => build({ layout: { pieceNumbers: [1] } }, tiles(2)), /layout\.pieceNumbers/, /1 numbers for 2 pieces/],
+    ["plate_pieces_unknown", () => build({ layout: { pieces: [1, 5] } }, tiles(2)), /names piece 5/, /give pieces 1 to 2/],
     [
       "text_shrunk",
       () => build({ marks: { text: [{ value: "ORDER 7" }, { value: "Thank you, Jordan Okafor!", size: 4, maxWidth: 70 }] } }, tiles()),
