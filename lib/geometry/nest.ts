@@ -170,6 +170,12 @@ export function convexArea(c: Convex): number {
 type Placed = { item: NestItem; o: Orientation; x: number; y: number };
 
 /**
+ * No-fit polygons relative to the placed item's reference point, by the pair of orientations: one
+ * map may serve several nests of the same items (they share their Orientation objects).
+ */
+export type NfpCache = Map<Orientation, Map<Orientation, Convex[]>>;
+
+/**
  * Nest the items in the order given (fixed ones first wherever they are in the list), each where
  * its rule puts it inside `room`. Null when some item has no place in the room in any turn (with
  * `partial`, such items are left out and the rest placed), or when `stop` says so of the extent so far.
@@ -182,11 +188,10 @@ export function nest(
   goal: NestGoal,
   stop?: (extent: Box) => boolean,
   partial = false,
+  nfps: NfpCache = new Map(),
 ): NestPlace[] | null {
   const placed: Placed[] = [];
   const out: NestPlace[] = [];
-  // No-fit polygons relative to the placed item's reference point, by the pair of orientations.
-  const nfps = new Map<Orientation, Map<Orientation, Convex[]>>();
   const nfpOf = (fixed: Orientation, moving: Orientation): Convex[] => {
     let row = nfps.get(fixed);
     if (!row) nfps.set(fixed, (row = new Map()));

@@ -8,6 +8,7 @@ import {
   turned,
   type Convex,
   type NestPlace,
+  type NfpCache,
   type NestItem,
   type Orientation,
   type Pt,
@@ -156,7 +157,7 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
   const few = loose.length <= 30;
   // The square's width, a little less and more, and two or three of the widest item side by side
   // (bars in two columns) where that is near the square.
-  const widths = few ? [w0, w0 * 0.85, w0 * 1.2] : [w0];
+  const widths = few ? [w0, w0 * 1.2] : [w0];
   for (const k of [2, 3]) {
     const w = k * widest + 1e-6;
     if (few && w >= 0.7 * w0 && w <= 1.5 * w0 && widths.every((x) => Math.abs(x - w) > 1)) widths.push(w);
@@ -164,6 +165,7 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
   const score = SHAPE_RULES[o.slab.shape].packingScore;
   const grow = o.slab.margin - half;
   let best: { placed: NestPlace[]; score: number } | null = null;
+  const nfps: NfpCache = new Map();
   const stop = (e: Box) => best !== null && score(e.maxX - e.minX + 2 * grow, e.maxY - e.minY + 2 * grow) >= best.score;
   // Turns tried: every piece of a part in one turn, its first, a twelfth (30°) or a quarter (90°)
   // on, so copies line up in the rows or columns they interlock in (pointed hexagons in rows, flat
@@ -174,14 +176,17 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
     ...[0, 2, 6].map((k) => ({ only: k, widths })),
     ...(turnsInAll <= FREE_TURNS_AT_MOST ? [{ only: null, widths: [w0] }] : []),
   ];
+  const tried: NestItem[][] = [];
   for (const { only, widths: ws } of variants) {
     const items = only === null ? ordered : ordered.map((it) => onlyTurn(it, only));
-    if (only !== null && items.every((it, i) => it === ordered[i])) continue; // no part has that turn
+    // The same turns as a variant tried already (every part repeats by then): nothing new to find.
+    if (tried.some((t) => t.every((it, i) => it.orientations === items[i]!.orientations))) continue;
+    tried.push(items);
     // Filled upwards in strips of each width, and filled rightwards in bands of each height.
     for (const across of [false, true]) {
       const span = across ? room.maxY - room.minY : roomW;
       for (const w of ws.map((x) => Math.min(span, Math.max(across ? tallest(loose) : widest, x)))) {
-        const placed = nest(ctx.kernel, ctx.scope, items, room, { kind: "strip", width: w, across }, stop);
+        const placed = nest(ctx.kernel, ctx.scope, items, room, { kind: "strip", width: w, across }, stop, false, nfps);
         if (!placed) continue;
         const sc = extentScore(placed, items, score, grow);
         if (process.env.NEST_DEBUG) console.log(only, across ? "across" : "strip", w.toFixed(1), "score", sc.toFixed(0));
@@ -193,7 +198,10 @@ function stripNest(ctx: PlateContext, ordered: NestItem[], room: Box, loose: Nes
   return w0 < roomW ? nest(ctx.kernel, ctx.scope, ordered, room, { kind: "strip", width: roomW }) : null;
 }
 
-/** The item with only its turns of index `k` and k + a half turn (every side of its number), where it has them and is free to turn. */
+/**
+ * The item with only its turns of index `k` and k + a half turn (every side of its number), or its
+ * first turn where it has no turn k; a fixed item or a band as it is.
+ */
 const turnCache = new WeakMap<Orientation[], Map<number, Orientation[]>>();
 function onlyTurn(it: NestItem, k: number): NestItem {
   if (it.at || it.rule) return it;
@@ -202,7 +210,9 @@ function onlyTurn(it: NestItem, k: number): NestItem {
   let os = byK.get(k);
   // Its turn k and the half turn from it: copies of an L lie head to tail, a pair interlocking.
   const half = 180 / TURN_STEP;
-  if (!os) byK.set(k, (os = it.orientations.filter((q) => q.turn === k || q.turn === k + half)));
+  const pick = (j: number) => it.orientations.filter((q) => q.turn === j || q.turn === j + half);
+  // A part that repeats before turn k (a hexagon has no 90°: it is its 30°) keeps its first turn.
+  if (!os) byK.set(k, (os = pick(k).length ? pick(k) : pick(0)));
   return os.length && os.length < it.orientations.length ? { ...it, orientations: os } : it;
 }
 

@@ -13,7 +13,7 @@ import { engine } from "@/tests/support/engine";
 import { box } from "@/tests/support/meshes";
 import { rasterizeStl } from "@/tests/support/raster";
 import { admesh, bodyStl, lowestTopSurface, slabAndPieces } from "@/tests/support/stl-bodies";
-import { buildPlate, type PlatePart } from "./build-plate";
+import { buildPlate, newPartCache, type PlatePart } from "./build-plate";
 import { hexTile, pawn } from "./demo-shapes";
 import type { FontBook } from "./fonts";
 import { importMesh } from "./import";
@@ -50,6 +50,7 @@ beforeAll(async () => {
 });
 
 const RUNS = Number(process.env.SLAB_PROPERTY_RUNS ?? 300);
+const cache = newPartCache();
 const step = (min: number, max: number, by: number) =>
   fc.integer({ min: Math.round(min / by), max: Math.round(max / by) }).map((n) => Math.round(n * by * 1000) / 1000);
 const depth = fc.oneof({ arbitrary: step(0.1, 1.2, 0.1), weight: 4 }, { arbitrary: fc.constant("max" as const), weight: 1 });
@@ -112,7 +113,8 @@ describe("every plate either is refused at a field or exports clean", () => {
     fc.assert(
       fc.property(optionsArb, partsArb, (options, [names, quantities]) => {
         const parts: PlatePart[] = names.map((n, i) => ({ id: n, name: n, mesh: shapes[n]!, quantity: quantities[i]! }));
-        const r = buildPlate(kernel, { parts, options, fonts, formats: ["stl", "3mf"], variables: { date: "2026-12-03" } });
+        // One part cache for every case, as a worker's build thread keeps one between plates.
+        const r = buildPlate(kernel, { parts, options, fonts, formats: ["stl", "3mf"], variables: { date: "2026-12-03" }, cache });
         const errors = r.findings.filter((f) => f.severity === "error");
         if (errors.length) {
           if (process.env.SLAB_PROPERTY_LOG)
