@@ -21,7 +21,7 @@ export function grownHull(hull: Pt[], grow: number, uniform = 16): Convex {
       dirs.push(Math.atan2(-(b[0] - a[0]), b[1] - a[1]));
     }
   }
-  const k = h.length <= 24 ? uniform : 32;
+  const k = h.length <= 24 ? uniform : 20;
   for (let i = 0; i < k; i++) dirs.push(-Math.PI + ((i + 0.5) * 2 * Math.PI) / k);
   const sorted = dirs.map((d) => Math.atan2(Math.sin(d), Math.cos(d))).sort((a, b) => a - b);
   const ds = sorted.filter((d, i) => i === 0 || d - sorted[i - 1]! > 1e-7);
